@@ -1,0 +1,79 @@
+"""A beam solved once, and its envelopes at any points.
+
+:func:`solve_beam` builds the elements, the unit cases and the combination
+sets and solves every unit case at once.  :func:`envelope_at` envelopes one
+quantity at any points, in chunks of rows so that memory stays bounded.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from envelope import config
+from envelope.combinations import build as build_combinations
+from envelope.enveloper import CaseSet, Extremes, build_case_set, reduce
+from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
+from envelope.mesh import Mesh, build_mesh
+from envelope.model import LIVE_KINDS, Beam, Combination
+from envelope.recovery import Points, evaluate
+from envelope.solver import Solution, solve
+
+#: Which combination set envelopes which quantity (outputs contract).
+QUANTITY_SET = {"moment": "strength", "shear": "strength", "deflection": "service",
+                "rotation": "service"}
+
+
+@dataclass(frozen=True, slots=True)
+class Solved:
+    """A beam with every unit case solved and its combination sets as coefficients."""
+
+    beam: Beam
+    mesh: Mesh
+    cells: Cells
+    units: UnitCases
+    solution: Solution
+    strength: CaseSet
+    service: CaseSet
+    live: CaseSet  # live kinds alone at 1.0, patterned: for deflection_live
+
+    def case_set(self, name: str) -> CaseSet:
+        return {"strength": self.strength, "service": self.service, "live": self.live}[name]
+
+
+def live_combination(beam: Beam) -> tuple[Combination, ...]:
+    """The live kinds alone at 1.0 (for ``deflection_live``); empty with no live case."""
+    live = tuple((c.name, 1.0) for c in beam.cases if c.kind in LIVE_KINDS)
+    return (Combination("live kinds", "service", live, "live kinds alone"),) if live else ()
+
+
+def solve_beam(beam: Beam) -> Solved:
+    mesh = build_mesh(beam)
+    cells = build_cells(beam)
+    units = build_unit_cases(beam, mesh, cells)
+    solution = solve(mesh, beam.supports, units, beam.source)
+    combos = build_combinations(beam.cases, beam.combinations)
+    strength = tuple(c for c in combos if c.set == "strength")
+    service = tuple(c for c in combos if c.set == "service")
+    return Solved(
+        beam, mesh, cells, units, solution,
+        strength=build_case_set(beam, strength, units, cells),
+        service=build_case_set(beam, service, units, cells),
+        live=build_case_set(beam, live_combination(beam), units, cells),
+    )
+
+
+def envelope_at(solved: Solved, points: Points, quantity: str,
+                case_set: str | None = None, labels: bool = True) -> Extremes | None:
+    """Envelope of ``quantity`` (shear, moment, rotation, deflection) at ``points``, in
+    chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows; None for an empty set.
+    ``labels=False`` skips the ``_loaded`` texts (for searches that need values only)."""
+    cs = solved.case_set(case_set or QUANTITY_SET[quantity])
+    if cs.is_empty:
+        return None
+    parts = []
+    step = config.STATION_CHUNK_ROWS
+    for lo in range(0, max(points.n, 1), step):
+        chunk = points.take(slice(lo, lo + step))
+        resp = evaluate(solved.mesh, solved.units, solved.solution, chunk)
+        parts.append(reduce(getattr(resp, quantity), cs, labels))
+    return Extremes.concat(parts)

@@ -1,0 +1,99 @@
+"""The command line: reads arguments, calls the API, prints; no engineering here.
+
+Every deliberate error is one line on standard error with exit status 2 (bad
+input) or 3 (a failed statics check); nothing is written for a case that fails.
+Set ENVELOPE_DEBUG=1 to see a traceback of an unexpected error.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+from contextlib import ExitStack
+from importlib import resources
+from pathlib import Path
+
+import click
+
+from envelope import __version__
+from envelope.errors import EnvelopeError
+
+
+def _fail(message: str, code: int) -> None:
+    click.echo(f"error: {message}", err=True)
+    sys.exit(code)
+
+
+def _guard(fn):  # type: ignore[no-untyped-def]
+    """Turn deliberate errors into one line and an exit status, never a traceback."""
+
+    def wrapper(*args, **kwargs):  # type: ignore[no-untyped-def]
+        try:
+            return fn(*args, **kwargs)
+        except EnvelopeError as exc:
+            _fail(str(exc), exc.exit_code)
+        except Exception as exc:  # an unexpected error: still one line
+            if os.environ.get("ENVELOPE_DEBUG"):
+                raise
+            _fail(f"internal error ({type(exc).__name__}): {exc}", 1)
+
+    wrapper.__name__ = fn.__name__
+    wrapper.__doc__ = fn.__doc__
+    return wrapper
+
+
+@click.group()
+@click.version_option(__version__, prog_name="envelope")
+def main() -> None:
+    """Load-pattern envelopes for continuous floor beams.
+
+    Results are for checking by a licensed engineer and defer to local codes.
+    """
+
+
+@main.command()
+@click.argument("case", required=False, type=click.Path(dir_okay=False))
+@click.option("-o", "--out", default="results", show_default=True,
+              type=click.Path(file_okay=False), help="Output folder; files go to OUT/<id>/.")
+@click.option("-q", "--quiet", is_flag=True, help="Print only the output folder.")
+@_guard
+def run(case: str | None, out: str, quiet: bool) -> None:
+    """Analyse CASE (a TOML case file; the bundled demo when omitted)."""
+    from envelope import api
+    from envelope.summary import span_summary
+
+    with ExitStack() as stack:
+        if case is None:
+            ref = resources.files("envelope") / "data" / "demo.toml"
+            path = str(stack.enter_context(resources.as_file(ref)))
+        else:
+            path = case
+        beam = api.load_case(path)
+        result = api.analyse(beam)
+        folder = api.write(result, out)
+    if not quiet:
+        click.echo(span_summary(result))
+    click.echo(f"wrote {Path(folder)}")
+
+
+@main.command()
+@click.argument("cases", nargs=-1, required=True, type=click.Path(dir_okay=False))
+def check(cases: tuple[str, ...]) -> None:
+    """Check case files without analysing them; exit 2 if any is bad."""
+    from envelope.casefile import load_case
+
+    bad = 0
+    for path in cases:
+        try:
+            beam = load_case(path)
+        except EnvelopeError as exc:
+            click.echo(f"error: {exc}", err=True)
+            bad += 1
+            continue
+        click.echo(f"ok: {path} ({beam.id}, {beam.n_spans} spans, {len(beam.loads)} load items)")
+    if bad:
+        sys.exit(2)
+
+
+if __name__ == "__main__":
+    main()

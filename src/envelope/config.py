@@ -1,0 +1,29 @@
+"""Tolerances and chunk sizes, in one place, each with its reason."""
+
+from __future__ import annotations
+
+#: Relative tolerance of the statics check on every solve (sum of reactions
+#: against sum of loads, and moments about the left end), relative to the sum
+#: of absolute loads.  The issue's contract: 1e-9.
+STATICS_RTOL = 1e-9
+
+#: Relative tolerance of the solve residual |K d - F| / (|K| |d| + |F|).
+RESIDUAL_RTOL = 1e-9
+
+#: Two positions closer than this fraction of the beam length are one station
+#: (so that a point load placed at a generated station does not add a third row).
+STATION_MERGE_RTOL = 1e-12
+
+#: Rows of stations handled at once by the enveloper: the response block is
+#: rows x unit cases float64 per quantity, so 2048 rows of 2048 units is 32 MiB.
+STATION_CHUNK_ROWS = 2048
+
+#: Rows per Parquet row group of stations.parquet (all cases, long format).
+STATIONS_ROW_GROUP = 1_000_000
+
+#: Positions of design extremes are refined to this fraction of the span length.
+DESIGN_XTOL = 1e-10
+
+#: A spring stiffer than this times the beam's own stiffness scale is treated as
+#: rigid in the conditioning warning, not in the analysis.
+CONDITION_WARN = 1e12

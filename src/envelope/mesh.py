@@ -1,0 +1,91 @@
+"""Prismatic elements of a beam: spans cut where the section changes.
+
+Nodes run left to right; element ``e`` joins nodes ``e`` and ``e + 1``, so the
+stiffness matrix is banded with three diagonals above the main one.  Joints
+(supports) are the nodes listed in ``joint_node``.  Lengths are in the
+consistent unit (m or ft) and EI in force*length^2.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from envelope.model import Beam
+
+
+@dataclass(frozen=True, slots=True)
+class Mesh:
+    """Element arrays for a whole beam (all length ``n_elements`` unless noted)."""
+
+    span: np.ndarray  # int: span index of each element (0-based)
+    start: np.ndarray  # element start, span-local
+    length: np.ndarray
+    EI: np.ndarray
+    x0: np.ndarray  # element start, global (from the left end of span 1)
+    joint_node: np.ndarray  # int, n_joints: node index of each joint
+    span_first: np.ndarray  # int, n_spans: first element of each span
+    span_count: np.ndarray  # int, n_spans: elements in each span
+
+    @property
+    def n_elements(self) -> int:
+        return int(self.length.size)
+
+    @property
+    def n_nodes(self) -> int:
+        return self.n_elements + 1
+
+    @property
+    def node_x(self) -> np.ndarray:
+        return np.append(self.x0, self.x0[-1] + self.length[-1])
+
+
+def build_mesh(beam: Beam) -> Mesh:
+    """One element per stretch of constant section in every span."""
+    span, start, length, ei, x0 = [], [], [], [], []
+    joint_node = [0]
+    span_first, span_count = [], []
+    x_left = 0.0
+    for j, sp in enumerate(beam.spans):
+        span_first.append(len(span))
+        for st in sp.stretches:
+            span.append(j)
+            start.append(st.start)
+            length.append(st.end - st.start)
+            ei.append(st.section.EI)
+            x0.append(x_left + st.start)
+        span_count.append(len(sp.stretches))
+        joint_node.append(len(span))
+        x_left += sp.length
+    return Mesh(
+        span=np.asarray(span, dtype=np.int64),
+        start=np.asarray(start, dtype=float),
+        length=np.asarray(length, dtype=float),
+        EI=np.asarray(ei, dtype=float),
+        x0=np.asarray(x0, dtype=float),
+        joint_node=np.asarray(joint_node, dtype=np.int64),
+        span_first=np.asarray(span_first, dtype=np.int64),
+        span_count=np.asarray(span_count, dtype=np.int64),
+    )
+
+
+def locate(mesh: Mesh, span: np.ndarray, x_span: np.ndarray, right: np.ndarray) -> np.ndarray:
+    """Element holding each point: the right-side limit takes the element starting at a
+    section change, the left-side limit the element ending there."""
+    span = np.asarray(span, dtype=np.int64)
+    x_span = np.asarray(x_span, dtype=float)
+    right = np.asarray(right, dtype=bool)
+    elem = np.empty(span.shape, dtype=np.int64)
+    # per span, the element boundaries are few: a small loop over spans' element counts
+    first = mesh.span_first[span]
+    count = mesh.span_count[span]
+    elem[:] = first
+    for k in range(1, int(mesh.span_count.max(initial=1))):
+        has = count > k
+        e = first + k
+        e_safe = np.where(has, e, 0)
+        b = mesh.start[e_safe]
+        step = has & np.where(right, x_span >= b, x_span > b)
+        elem = np.where(step, e, elem)
+    return elem

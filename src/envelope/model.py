@@ -1,0 +1,220 @@
+"""The beam as validated, frozen values.
+
+Everything here is in the *consistent* units of the case's unit system
+(see :mod:`envelope.units`): SI uses m, kN, kN/m, kN*m, kN/m^2 for E, m^4 for I,
+m^2 for A and kN/m^3 for unit weight; US uses ft, kip, kip/ft, kip*ft,
+kip/ft^2, ft^4, ft^2 and kip/ft^3.  :mod:`envelope.casefile` is the only
+producer of these objects and checks every value once; nothing downstream
+re-checks input.
+
+Sign conventions (the case-format contract): loads downward positive,
+applied point moments clockwise positive, reactions upward positive.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Literal
+
+from envelope.units import UnitSystem
+
+SupportKind = Literal["pinned", "fixed", "free", "spring"]
+LoadType = Literal["uniform", "linear", "point", "moment", "self_weight"]
+CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind"]
+CombinationSet = Literal["strength", "service"]
+PatternMethod = Literal["none", "code", "exhaustive", "segments"]
+
+CASE_KINDS: tuple[str, ...] = ("dead", "live", "roof_live", "snow", "rain", "wind")
+#: Kinds patterned unless the case says ``pattern = false`` (case-format contract).
+PATTERNED_BY_DEFAULT: frozenset[str] = frozenset({"live", "roof_live"})
+#: Kinds whose deflection is reported as ``deflection_live``.
+LIVE_KINDS: frozenset[str] = frozenset({"live", "roof_live"})
+
+
+@dataclass(frozen=True, slots=True)
+class Section:
+    """Prismatic cross-section: E (force/length^2), I (length^4), optional A and unit weight."""
+
+    E: float
+    I: float  # noqa: E741 - the engineering name
+    A: float | None = None
+    unit_weight: float | None = None
+
+    @property
+    def EI(self) -> float:
+        return self.E * self.I
+
+    @property
+    def self_weight(self) -> float | None:
+        """Weight per unit length (force/length), or None when A or unit weight is missing."""
+        if self.A is None or self.unit_weight is None:
+            return None
+        return self.A * self.unit_weight
+
+
+@dataclass(frozen=True, slots=True)
+class Stretch:
+    """A stretch of a span, from ``start`` to ``end`` (span-local), with its own section."""
+
+    start: float
+    end: float
+    section: Section
+
+
+@dataclass(frozen=True, slots=True)
+class Span:
+    """One span between two joints.  ``stretches`` cover [0, length] without gaps."""
+
+    length: float
+    stretches: tuple[Stretch, ...]
+
+    @property
+    def section(self) -> Section:
+        """The section of the first stretch (the span's own section where none is overridden)."""
+        return self.stretches[0].section
+
+
+@dataclass(frozen=True, slots=True)
+class Support:
+    """A joint's restraint.  Stiffnesses are force/length and moment/radian;
+    ``math.inf`` is rigid, 0 is no restraint."""
+
+    kind: SupportKind
+    k_vertical: float
+    k_rotation: float
+    width: float = 0.0
+
+    @property
+    def restrains_vertical(self) -> bool:
+        return self.k_vertical > 0.0
+
+    @property
+    def restrains_rotation(self) -> bool:
+        return self.k_rotation > 0.0
+
+    @property
+    def is_restrained(self) -> bool:
+        return self.restrains_vertical or self.restrains_rotation
+
+
+@dataclass(frozen=True, slots=True)
+class LoadCase:
+    """A named load case: its kind, whether it is patterned, and its EN 1990 category."""
+
+    name: str
+    kind: CaseKind
+    patterned: bool
+    category: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Load:
+    """One load item on one span, span-local coordinates, downward / clockwise positive.
+
+    ``uniform`` and ``linear`` use ``start``, ``end``, ``w_start``, ``w_end``;
+    ``point`` uses ``P`` at ``at``; ``moment`` uses ``M`` at ``at``;
+    ``self_weight`` uses ``start`` and ``end`` and the span's sections.
+    ``key`` is where the item came from in the case file, e.g. ``loads[3]``.
+    """
+
+    case: str
+    type: LoadType
+    span: int  # 0-based
+    start: float = 0.0
+    end: float = 0.0
+    w_start: float = 0.0
+    w_end: float = 0.0
+    P: float = 0.0
+    M: float = 0.0
+    at: float = 0.0
+    key: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class Combination:
+    """A load combination: factors by case name.  ``source`` cites the clause or says "custom"."""
+
+    name: str
+    set: CombinationSet
+    factors: tuple[tuple[str, float], ...]
+    source: str = "custom"
+
+    def factor(self, case: str) -> float:
+        for name, value in self.factors:
+            if name == case:
+                return value
+        return 0.0
+
+    @property
+    def factor_map(self) -> dict[str, float]:
+        return dict(self.factors)
+
+
+@dataclass(frozen=True, slots=True)
+class CombinationSpec:
+    """The ``[combinations]`` table: rule-set names and custom combinations."""
+
+    strength: str = "none"
+    service: str = "none"
+    reduced_companion_live: bool = False
+    custom: tuple[Combination, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Patterning:
+    """The ``[patterning]`` table."""
+
+    method: PatternMethod = "none"
+    segments: int = 1
+    favourable_dead: float = 1.0
+
+
+@dataclass(frozen=True, slots=True)
+class OutputOptions:
+    """The ``[output]`` table."""
+
+    stations_per_span: int = 21
+    all_cases: bool = False
+    moment_plot: Literal["sagging-up", "tension-side"] = "sagging-up"
+
+
+@dataclass(frozen=True, slots=True)
+class Beam:
+    """A validated continuous beam: the whole case file."""
+
+    id: str
+    title: str
+    units: UnitSystem
+    spans: tuple[Span, ...]
+    supports: tuple[Support, ...]
+    cases: tuple[LoadCase, ...]
+    loads: tuple[Load, ...]
+    combinations: CombinationSpec = field(default_factory=CombinationSpec)
+    patterning: Patterning = field(default_factory=Patterning)
+    output: OutputOptions = field(default_factory=OutputOptions)
+    design: dict | None = None  # the raw [design] table, read by sizing
+    source: str = "<memory>"
+    input_sha256: str = ""
+
+    @property
+    def n_spans(self) -> int:
+        return len(self.spans)
+
+    @property
+    def joint_x(self) -> tuple[float, ...]:
+        """Global position of every joint, from the left end of span 1."""
+        xs = [0.0]
+        for span in self.spans:
+            xs.append(xs[-1] + span.length)
+        return tuple(xs)
+
+    @property
+    def length(self) -> float:
+        return math.fsum(s.length for s in self.spans)
+
+    def case(self, name: str) -> LoadCase:
+        for c in self.cases:
+            if c.name == name:
+                return c
+        raise KeyError(name)

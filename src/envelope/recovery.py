@@ -1,0 +1,172 @@
+"""Exact shear, moment, rotation and deflection of every unit case at any points.
+
+A point is (span, x_span, side): ``right`` is the right-side limit, used at a
+jump; elsewhere either side gives the same value.  Values come from the
+element start state of the solution and the closed-form load terms of
+:mod:`envelope.loadterms`, so they are exact, not mesh approximations.
+
+Output arrays are (n_points, n_units) in consistent units, in the contract's
+sign conventions: shear V = sum of upward forces left of the point; moment
+sagging positive; deflection downward positive (consistent length unit);
+rotation = d(deflection)/dx, clockwise positive (rad).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from envelope.loading import DISTRIBUTED, MOMENT, POINT, UnitCases
+from envelope.loadterms import load_terms
+from envelope.mesh import Mesh, locate
+from envelope.model import Beam
+from envelope.solver import Solution
+
+
+@dataclass(frozen=True, slots=True)
+class Points:
+    """Points along the beam, sorted by x with the left side first at a jump."""
+
+    span: np.ndarray  # int, 0-based
+    x_span: np.ndarray
+    right: np.ndarray  # bool: right-side limit
+    x: np.ndarray  # from the left end of span 1
+
+    @property
+    def n(self) -> int:
+        return int(self.span.size)
+
+    def take(self, idx: np.ndarray | slice) -> Points:
+        return Points(self.span[idx], self.x_span[idx], self.right[idx], self.x[idx])
+
+
+@dataclass(frozen=True, slots=True)
+class Response:
+    """Per point and unit case: shear, moment, rotation, deflection."""
+
+    shear: np.ndarray
+    moment: np.ndarray
+    rotation: np.ndarray
+    deflection: np.ndarray
+
+
+def make_points(beam: Beam, span: np.ndarray, x_span: np.ndarray,
+                right: np.ndarray | None = None) -> Points:
+    span = np.asarray(span, dtype=np.int64)
+    x_span = np.asarray(x_span, dtype=float)
+    if right is None:
+        right = np.ones(span.shape, dtype=bool)
+    joint_x = np.asarray(beam.joint_x)
+    return Points(span, x_span, np.asarray(right, dtype=bool), joint_x[span] + x_span)
+
+
+def stations(beam: Beam, mesh: Mesh, units: UnitCases) -> Points:
+    """The contract's stations: ``stations_per_span`` equally spaced points per span (ends
+    included), plus point-load and point-moment positions (two rows: left side, then right
+    side), ends of distributed items and support faces.  At an interior support the
+    left-side row belongs to the span on the left (x_span = its length) and the
+    right-side row to the next span (x_span = 0)."""
+    n = beam.output.stations_per_span
+    span_of_elem = mesh.span
+    jumps_by_span: dict[int, set[float]] = {}
+    kinks_by_span: dict[int, set[float]] = {}
+    conc = (units.item_kind == POINT) | (units.item_kind == MOMENT)
+    e_start = mesh.start[units.item_elem]
+    for j, a in zip(span_of_elem[units.item_elem][conc], (units.item_a + e_start)[conc],
+                    strict=True):
+        jumps_by_span.setdefault(int(j), set()).add(float(a))
+    dist = units.item_kind == DISTRIBUTED
+    for j, a, b in zip(span_of_elem[units.item_elem][dist], (units.item_a + e_start)[dist],
+                       (units.item_b + e_start)[dist], strict=True):
+        kinks_by_span.setdefault(int(j), set()).update((float(a), float(b)))
+
+    spans, xs, rights = [], [], []
+    for j, sp in enumerate(beam.spans):
+        L = sp.length
+        tol = L * 1e-12
+        pts = set(np.linspace(0.0, L, n).tolist())
+        pts.update(kinks_by_span.get(j, ()))
+        w_left, w_right = beam.supports[j].width, beam.supports[j + 1].width
+        if 0.0 < w_left / 2 < L:
+            pts.add(w_left / 2)
+        if 0.0 < w_right / 2 < L:
+            pts.add(L - w_right / 2)
+        jumps = {a for a in jumps_by_span.get(j, ()) if 0.0 < a < L}
+        merged = _merge(sorted(pts | jumps), jumps, tol)
+        for x in merged:
+            if x == 0.0:
+                spans.append(j)
+                xs.append(0.0)
+                rights.append(True)
+            elif x == L:
+                spans.append(j)
+                xs.append(L)
+                rights.append(False)
+            elif x in jumps:
+                spans += [j, j]
+                xs += [x, x]
+                rights += [False, True]
+            else:
+                spans.append(j)
+                xs.append(x)
+                rights.append(True)
+    return make_points(beam, np.array(spans), np.array(xs), np.array(rights))
+
+
+def _merge(sorted_pts: list[float], keep: set[float], tol: float) -> list[float]:
+    """Drop points within ``tol`` of a neighbour, preferring exact jump positions and ends."""
+    out: list[float] = []
+    for x in sorted_pts:
+        if out and x - out[-1] <= tol:
+            if x in keep or x == sorted_pts[-1]:
+                out[-1] = x
+            continue
+        out.append(x)
+    if out:
+        out[0] = 0.0 if out[0] <= tol else out[0]
+    return out
+
+
+def _pairs(pt_elem: np.ndarray, item_elem: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """All (point, item) index pairs with the point and the item on the same element."""
+    order = np.argsort(item_elem, kind="stable")
+    sorted_elem = item_elem[order]
+    lo = np.searchsorted(sorted_elem, pt_elem, side="left")
+    hi = np.searchsorted(sorted_elem, pt_elem, side="right")
+    count = hi - lo
+    total = int(count.sum())
+    pt_idx = np.repeat(np.arange(pt_elem.size), count)
+    offsets = np.arange(total) - np.repeat(np.cumsum(count) - count, count)
+    item_idx = order[np.repeat(lo, count) + offsets]
+    return pt_idx, item_idx
+
+
+def evaluate(mesh: Mesh, units: UnitCases, sol: Solution, points: Points) -> Response:
+    """Response of every unit case at ``points``: (n_points, n_units) arrays."""
+    elem = locate(mesh, points.span, points.x_span, points.right)
+    s = points.x_span - mesh.start[elem]
+    s = np.clip(s, 0.0, mesh.length[elem])
+    EI = mesh.EI[elem][:, None]
+    V0, M0 = sol.V0[elem], sol.M0[elem]
+    th1, v1 = sol.theta1[elem], sol.v1[elem]
+    sc = s[:, None]
+    shear = V0.copy()
+    moment = M0 + V0 * sc
+    theta = th1 + (M0 * sc + V0 * sc**2 / 2.0) / EI
+    v = v1 + th1 * sc + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI
+
+    pt, it = _pairs(elem, units.item_elem)
+    if pt.size:
+        Q, m, m1, m2 = load_terms(units.item_kind[it], units.item_a[it], units.item_b[it],
+                                  units.item_wa[it], units.item_wb[it], units.item_p[it],
+                                  s[pt], points.right[pt])
+        n_u = units.n_units
+        flat = pt * n_u + units.item_unit[it]
+        size = points.n * n_u
+        ei_pt = mesh.EI[elem[pt]]
+        shear -= np.bincount(flat, Q, size).reshape(points.n, n_u)
+        moment -= np.bincount(flat, m, size).reshape(points.n, n_u)
+        theta -= np.bincount(flat, m1 / ei_pt, size).reshape(points.n, n_u)
+        v -= np.bincount(flat, m2 / ei_pt, size).reshape(points.n, n_u)
+    return Response(shear=shear, moment=moment, rotation=-theta, deflection=-v)

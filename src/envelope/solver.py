@@ -1,0 +1,181 @@
+"""Direct stiffness solution of every unit case at once.
+
+Euler-Bernoulli elements, two degrees of freedom per node (deflection up,
+rotation counter-clockwise).  All element matrices are assembled in one
+vectorised step into upper banded storage (three super-diagonals), rigid
+restraints become identity rows, springs add to the diagonal, the matrix is
+factorised once by banded Cholesky and every unit case is a column of one
+multi-right-hand-side solve.  Each solve is checked: the residual at every free
+degree of freedom, and statics (vertical forces and moments about the left end)
+against :data:`envelope.config.STATICS_RTOL`.  A failed check raises
+:class:`envelope.errors.StaticsError`; it never returns a result.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.linalg import LinAlgError, cho_solve_banded, cholesky_banded
+
+from envelope import config
+from envelope.errors import StaticsError, UnstableBeamError
+from envelope.loading import UnitCases
+from envelope.loadterms import load_terms
+from envelope.mesh import Mesh
+from envelope.model import Support
+
+
+@dataclass(frozen=True, slots=True)
+class Solution:
+    """Element start states and support reactions of every unit case.
+
+    Arrays are (n_elements, n_units) unless noted: ``V0`` shear and ``M0``
+    sagging moment just right of each element's left end, ``theta1`` rotation
+    (counter-clockwise, rad) and ``v1`` deflection (upward) there.
+    ``reaction`` and ``reaction_moment`` are (n_joints, n_units): upward force
+    and counter-clockwise moment on the beam from each support.
+    """
+
+    V0: np.ndarray
+    M0: np.ndarray
+    theta1: np.ndarray
+    v1: np.ndarray
+    reaction: np.ndarray
+    reaction_moment: np.ndarray
+
+
+def element_stiffness(length: np.ndarray, EI: np.ndarray) -> np.ndarray:
+    """(n, 4, 4) Euler-Bernoulli stiffness matrices, dofs (v1, th1, v2, th2)."""
+    l = length[:, None, None]  # noqa: E741
+    k = np.empty((length.size, 4, 4))
+    base = np.array([[12, 6, -12, 6], [6, 4, -6, 2], [-12, -6, 12, -6], [6, 2, -6, 4]], float)
+    powers = np.array([[0, 1, 0, 1], [1, 2, 1, 2], [0, 1, 0, 1], [1, 2, 1, 2]])
+    k[:] = base
+    k *= l ** powers
+    k *= (EI / length**3)[:, None, None]
+    return k
+
+
+def fixed_end_terms(mesh: Mesh, units: UnitCases) -> tuple[np.ndarray, ...]:
+    """(Q, m, m1, m2) at each element's right end, per element and unit: (n_elem, n_units)."""
+    n_e, n_u = mesh.n_elements, units.n_units
+    s = mesh.length[units.item_elem]
+    terms = load_terms(units.item_kind, units.item_a, units.item_b, units.item_wa,
+                       units.item_wb, units.item_p, s, np.ones(s.shape, dtype=bool))
+    flat = units.item_elem * n_u + units.item_unit
+    return tuple(np.bincount(flat, weights=t, minlength=n_e * n_u).reshape(n_e, n_u)
+                 for t in terms)
+
+
+def _restraints(mesh: Mesh, supports: tuple[Support, ...]) -> tuple[np.ndarray, np.ndarray]:
+    """Per degree of freedom: rigid mask and finite spring stiffness."""
+    n_dof = 2 * mesh.n_nodes
+    rigid = np.zeros(n_dof, dtype=bool)
+    spring = np.zeros(n_dof)
+    for node, sup in zip(mesh.joint_node, supports, strict=True):
+        for dof, k in ((2 * node, sup.k_vertical), (2 * node + 1, sup.k_rotation)):
+            if math.isinf(k):
+                rigid[dof] = True
+            else:
+                spring[dof] = k
+    return rigid, spring
+
+
+def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
+          source: str = "") -> Solution:
+    """Assemble, factorise once, solve every unit case, recover element start states."""
+    n_e, n_u = mesh.n_elements, units.n_units
+    n_dof = 2 * mesh.n_nodes
+    ke = element_stiffness(mesh.length, mesh.EI)
+
+    # upper banded storage: ab[3 + i - j, j] = K[i, j]
+    ab = np.zeros((4, n_dof))
+    p, q = np.triu_indices(4)
+    base = 2 * np.arange(n_e)
+    np.add.at(ab, (3 + p - q, base[:, None] + q), ke[:, p, q])
+    rigid, spring = _restraints(mesh, supports)
+    ab[3] += spring
+    scale = float(ab[3].max())
+    for d in np.flatnonzero(rigid):
+        for off in range(4):
+            if d + off < n_dof:
+                ab[3 - off, d + off] = 0.0  # row d, columns d+off
+            if off and d - off >= 0:
+                ab[3 - off, d] = 0.0  # column d, rows d-off
+        ab[3, d] = scale
+
+    # fixed-end forces on each element from its nodes (up, ccw)
+    Ql, ml, m1l, m2l = fixed_end_terms(mesh, units)
+    l = mesh.length[:, None]  # noqa: E741
+    V0F = 6.0 * m1l / l**2 - 12.0 * m2l / l**3
+    M0F = -2.0 * m1l / l + 6.0 * m2l / l**2
+    fF = np.stack([V0F, -M0F, Ql - V0F, M0F + V0F * l - ml], axis=1)  # (n_e, 4, n_u)
+
+    F = np.zeros((n_dof, n_u))
+    np.add.at(F, base[:, None] + np.arange(4), -fF)
+    F[rigid] = 0.0
+
+    try:
+        chol = cholesky_banded(ab, lower=False, check_finite=False)
+    except LinAlgError:
+        raise UnstableBeamError(source, "supports",
+                                "unstable beam: the stiffness matrix is singular "
+                                "(a part of the beam can move freely)") from None
+    d = cho_solve_banded((chol, False), F, check_finite=False) if n_u else F
+    d[rigid] = 0.0
+
+    de = d[base[:, None] + np.arange(4)]  # (n_e, 4, n_u)
+    f = np.einsum("epq,equ->epu", ke, de) + fF
+    node_f = np.zeros((n_dof, n_u))
+    np.add.at(node_f, base[:, None] + np.arange(4), f)  # sum of element end forces
+    support_dof = np.zeros(n_dof, dtype=bool)
+    support_dof[rigid] = True
+    support_dof[spring > 0.0] = True
+    _check(mesh, node_f, support_dof, Ql, ml, source)
+
+    joints = mesh.joint_node
+    restrained_v = support_dof[2 * joints]
+    restrained_r = support_dof[2 * joints + 1]
+    reaction = np.where(restrained_v[:, None], node_f[2 * joints], 0.0)
+    reaction_moment = np.where(restrained_r[:, None], node_f[2 * joints + 1], 0.0)
+    return Solution(
+        V0=f[:, 0, :],
+        M0=-f[:, 1, :],
+        theta1=de[:, 1, :],
+        v1=de[:, 0, :],
+        reaction=reaction,
+        reaction_moment=reaction_moment,
+    )
+
+
+def _check(mesh: Mesh, node_f: np.ndarray, support_dof: np.ndarray, Ql: np.ndarray,
+           ml: np.ndarray, source: str) -> None:
+    """Residual at free dofs and global statics of every unit case, or StaticsError."""
+    x = mesh.node_x
+    xe = (mesh.x0 + mesh.length)[:, None]
+    load_force = Ql.sum(axis=0)
+    load_moment = (xe * Ql - ml).sum(axis=0)
+    scale_f = np.abs(Ql).sum(axis=0) + np.abs(node_f[support_dof]).sum(axis=0)
+    lever = float(x[-1]) if x[-1] > 0 else 1.0
+    scale_m = scale_f * lever + np.abs(ml).sum(axis=0)
+    tiny = np.finfo(float).tiny
+
+    free = ~support_dof
+    residual = np.abs(node_f[free]).max(axis=0, initial=0.0) if free.any() else 0.0
+    if np.any(residual > config.RESIDUAL_RTOL * (scale_f + tiny)):
+        raise StaticsError(f"{source}: solve residual too large "
+                           f"({float(np.max(residual)):.3g}); result withheld")
+    react_v = node_f[0::2][support_dof[0::2]]
+    xv = x[support_dof[0::2]][:, None]
+    react_m = node_f[1::2][support_dof[1::2]]
+    sum_f = react_v.sum(axis=0)
+    sum_m = (react_v * xv).sum(axis=0) + react_m.sum(axis=0)
+    bad_f = np.abs(sum_f - load_force) > config.STATICS_RTOL * (scale_f + tiny)
+    bad_m = np.abs(sum_m - load_moment) > config.STATICS_RTOL * (scale_m + tiny)
+    if np.any(bad_f | bad_m):
+        u = int(np.flatnonzero(bad_f | bad_m)[0])
+        raise StaticsError(
+            f"{source}: statics check failed for unit case {u}: reactions "
+            f"{sum_f[u]:.12g} against loads {load_force[u]:.12g}; result withheld")
