@@ -107,8 +107,11 @@ def design_actions(solved: Solved, pts: Points,
     moment, shear = env["moment"], env["shear"]
     if moment is not None:
         pos, pos_x = refine_max(solved, pts, moment.max, "moment")
-        out["moment_pos"] = np.maximum(pos, 0.0)
-        out["moment_pos_x"] = np.where(pos > 0.0, pos_x, np.nan)
+        # round-off at a free end is not a sagging moment
+        zero = config.ZERO_RTOL * max(float(np.abs(moment.max).max()),
+                                      float(np.abs(moment.min).max()))
+        out["moment_pos"] = np.where(pos > zero, pos, 0.0)
+        out["moment_pos_x"] = np.where(pos > zero, pos_x, np.nan)
         out["moment_neg_left"] = np.minimum(moment.min[left], 0.0)
         out["moment_neg_right"] = np.minimum(moment.min[right], 0.0)
         half_l = np.array([beam.supports[j].width / 2 for j in range(n)])

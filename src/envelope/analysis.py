@@ -9,13 +9,15 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
+
 from envelope import config
 from envelope.combinations import build as build_combinations
 from envelope.enveloper import CaseSet, Extremes, build_case_set, reduce
 from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
 from envelope.mesh import Mesh, build_mesh
 from envelope.model import LIVE_KINDS, Beam, Combination
-from envelope.recovery import Points, evaluate
+from envelope.recovery import Points, Response, evaluate
 from envelope.solver import Solution, solve
 
 #: Which combination set envelopes which quantity (outputs contract).
@@ -77,3 +79,13 @@ def envelope_at(solved: Solved, points: Points, quantity: str,
         resp = evaluate(solved.mesh, solved.units, solved.solution, chunk)
         parts.append(reduce(getattr(resp, quantity), cs, labels))
     return Extremes.concat(parts)
+
+
+def case_responses(solved: Solved, points: Points) -> Response:
+    """Each load case alone on every span at ``points``: (n_points, n_cases) arrays, in
+    the order of ``beam.cases`` (consistent units, contract sign conventions)."""
+    per_case = np.zeros((solved.units.n_units, len(solved.beam.cases)))
+    per_case[np.arange(solved.units.n_units), solved.units.case] = 1.0
+    r = evaluate(solved.mesh, solved.units, solved.solution, points)
+    return Response(r.shear @ per_case, r.moment @ per_case, r.rotation @ per_case,
+                    r.deflection @ per_case)

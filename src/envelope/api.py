@@ -7,12 +7,13 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from envelope.casefile import load_case
+from envelope.errors import EnvelopeError
 from envelope.results import Analysis, analyse
 
 if TYPE_CHECKING:
     import pyarrow as pa
 
-__all__ = ["Analysis", "analyse", "load_case", "tables", "write"]
+__all__ = ["Analysis", "analyse", "load_case", "redraw", "tables", "write"]
 
 
 def tables(result: Analysis) -> dict[str, pa.Table]:
@@ -22,14 +23,27 @@ def tables(result: Analysis) -> dict[str, pa.Table]:
     return store.tables(result)
 
 
-def write(result: Analysis, out: str | os.PathLike = "results") -> Path:
-    """Write ``OUT/<id>/`` with every result file; returns that folder.
-
-    All tables are built before the first file is written, so a failure writes nothing.
-    """
+def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = False) -> Path:
+    """Write ``OUT/<id>/`` with every result file (and envelope.png with ``plots``);
+    returns that folder.  All tables are built before the first file is written, so a
+    failure in the analysis or the tables writes nothing."""
     from envelope import store
 
     built = store.tables(result)
     folder = Path(out) / result.beam.id
     store.write_tables(folder, built)
+    if plots:
+        redraw(folder)
     return folder
+
+
+def redraw(folder: str | os.PathLike, output: str | os.PathLike | None = None) -> Path:
+    """Draw the envelope figure of a result folder from its Parquet files."""
+    from envelope import plots, store
+
+    folder = Path(folder)
+    try:
+        results = store.read_results(folder)
+    except (FileNotFoundError, OSError) as exc:
+        raise EnvelopeError(f"{folder}: not a result folder ({exc})") from None
+    return plots.draw_results(results, Path(output) if output else folder / "envelope.png")

@@ -56,8 +56,10 @@ def main() -> None:
 @click.option("-o", "--out", default="results", show_default=True,
               type=click.Path(file_okay=False), help="Output folder; files go to OUT/<id>/.")
 @click.option("-q", "--quiet", is_flag=True, help="Print only the output folder.")
+@click.option("--plots/--no-plots", default=True, show_default=True,
+              help="Draw envelope.png beside the Parquet files.")
 @_guard
-def run(case: str | None, out: str, quiet: bool) -> None:
+def run(case: str | None, out: str, quiet: bool, plots: bool) -> None:
     """Analyse CASE (a TOML case file; the bundled demo when omitted)."""
     from envelope import api
     from envelope.summary import span_summary
@@ -70,7 +72,7 @@ def run(case: str | None, out: str, quiet: bool) -> None:
             path = case
         beam = api.load_case(path)
         result = api.analyse(beam)
-        folder = api.write(result, out)
+        folder = api.write(result, out, plots=plots)
     if not quiet:
         click.echo(span_summary(result))
     click.echo(f"wrote {Path(folder)}")
@@ -93,6 +95,19 @@ def check(cases: tuple[str, ...]) -> None:
         click.echo(f"ok: {path} ({beam.id}, {beam.n_spans} spans, {len(beam.loads)} load items)")
     if bad:
         sys.exit(2)
+
+
+@main.command()
+@click.argument("folder", type=click.Path(file_okay=False, exists=True))
+@click.option("-o", "--output", type=click.Path(dir_okay=False),
+              help="Figure file (.png, .svg, .pdf); default FOLDER/envelope.png.")
+@_guard
+def plot(folder: str, output: str | None) -> None:
+    """Redraw the envelope figure of one result folder (OUT/<id>) from its Parquet files."""
+    from envelope import api
+
+    path = api.redraw(folder, output)
+    click.echo(f"wrote {path}")
 
 
 if __name__ == "__main__":

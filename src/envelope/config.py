@@ -27,3 +27,7 @@ DESIGN_XTOL = 1e-10
 #: A spring stiffer than this times the beam's own stiffness scale is treated as
 #: rigid in the conditioning warning, not in the analysis.
 CONDITION_WARN = 1e12
+
+#: A design value smaller than this fraction of the beam's largest value of the same
+#: quantity is round-off (e.g. the moment at a cantilever tip) and is reported as 0.
+ZERO_RTOL = 1e-9

@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from collections.abc import Mapping
 from pathlib import Path
 
@@ -21,6 +20,7 @@ import pyarrow.parquet as pq
 
 from envelope import __version__
 from envelope.enveloper import CaseSet, Extremes
+from envelope.files import write_atomic
 from envelope.results import Analysis
 
 CAUTION = ("Results are for checking by a licensed engineer and defer to local codes; "
@@ -36,6 +36,8 @@ def _metadata(analysis: Analysis) -> dict[bytes, bytes]:
         b"envelope:input_sha256": beam.input_sha256.encode(),
         b"envelope:beam": beam.id.encode(),
         b"envelope:caution": CAUTION.encode(),
+        b"envelope:title": beam.title.encode(),
+        b"envelope:moment_plot": beam.output.moment_plot.encode(),
     }
 
 
@@ -163,19 +165,9 @@ def tables(analysis: Analysis) -> dict[str, pa.Table]:
     }
 
 
-def write_atomic(path: Path, table: pa.Table) -> None:
-    """Write a Parquet file to a temporary name beside ``path``, then rename it."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            pq.write_table(table, fh)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
+def write_parquet(path: Path, table: pa.Table) -> None:
+    """Write one Parquet file atomically (see :mod:`envelope.files`)."""
+    write_atomic(path, lambda fh: pq.write_table(table, fh))
 
 
 def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> list[Path]:
@@ -183,10 +175,33 @@ def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> list[P
     paths = []
     for stem, table in result_tables.items():
         path = out_dir / f"{stem}.parquet"
-        write_atomic(path, table)
+        write_parquet(path, table)
         paths.append(path)
     return paths
 
 
 def read_table(path: str | os.PathLike) -> pa.Table:
     return pq.read_table(path)
+
+
+def read_results(folder: str | os.PathLike) -> dict[str, dict[str, object]]:
+    """The result files of one beam as plain columns (numpy arrays / lists) plus metadata:
+    ``{"envelope": {...}, "design": {...}, "reactions": {...}, "meta": {...}}``."""
+    folder = Path(folder)
+    out: dict[str, dict[str, object]] = {}
+    meta: dict[str, object] = {}
+    for stem in ("envelope", "design", "reactions"):
+        table = pq.read_table(folder / f"{stem}.parquet")
+        cols: dict[str, object] = {}
+        for name in table.column_names:
+            col = table.column(name)
+            if pa.types.is_string(col.type):
+                cols[name] = np.array(col.to_pylist(), dtype=object)
+            else:
+                cols[name] = col.to_numpy(zero_copy_only=False).astype(float)
+        out[stem] = cols
+        raw = table.schema.metadata or {}
+        meta = {k.decode(): v.decode() for k, v in raw.items()}
+    meta["units"] = json.loads(str(meta.get("envelope:units", "{}")))
+    out["meta"] = meta
+    return out

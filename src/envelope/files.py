@@ -1,0 +1,28 @@
+"""Atomic file writing: a temporary name in the same folder, then a rename.
+
+A crash at any moment leaves either the old complete file or the new complete
+file under the final name, never a half-written one.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from collections.abc import Callable
+from pathlib import Path
+from typing import BinaryIO
+
+
+def write_atomic(path: Path, write: Callable[[BinaryIO], None]) -> None:
+    """Call ``write(fh)`` on a temporary file beside ``path``, fsync it, rename it."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            write(fh)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
