@@ -13,11 +13,22 @@ from pathlib import Path
 from typing import BinaryIO
 
 
+def _file_mode() -> int:
+    """The mode an ordinary new file gets under the process umask (mkstemp uses 0600)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    return 0o666 & ~mask
+
+
+_MODE = _file_mode()
+
+
 def write_atomic(path: Path, write: Callable[[BinaryIO], None]) -> None:
     """Call ``write(fh)`` on a temporary file beside ``path``, fsync it, rename it."""
     path.parent.mkdir(parents=True, exist_ok=True)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     try:
+        os.fchmod(fd, _MODE)
         with os.fdopen(fd, "wb") as fh:
             write(fh)
             fh.flush()
