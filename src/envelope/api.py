@@ -23,14 +23,20 @@ def tables(result: Analysis) -> dict[str, pa.Table]:
     return store.tables(result)
 
 
-def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = False) -> Path:
-    """Write ``OUT/<id>/`` with every result file (and envelope.png with ``plots``);
+def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = False,
+          all_cases: bool | None = None) -> Path:
+    """Write ``OUT/<id>/`` with every result file (envelope.png with ``plots``,
+    stations.parquet with ``all_cases``, default the case file's ``[output] all_cases``);
     returns that folder.  All tables are built before the first file is written, so a
     failure in the analysis or the tables writes nothing."""
     from envelope import store
 
-    built = store.tables(result)
+    if all_cases is None:
+        all_cases = result.beam.output.all_cases
+    built = store.tables(result, all_cases)
     folder = Path(out) / result.beam.id
+    if all_cases:
+        store.write_stations(folder / "stations.parquet", result)
     store.write_tables(folder, built)
     if plots:
         redraw(folder)

@@ -58,8 +58,10 @@ def main() -> None:
 @click.option("-q", "--quiet", is_flag=True, help="Print only the output folder.")
 @click.option("--plots/--no-plots", default=True, show_default=True,
               help="Draw envelope.png beside the Parquet files.")
+@click.option("--all-cases", is_flag=True, default=None,
+              help="Also write stations.parquet: every explicit case at every station.")
 @_guard
-def run(case: str | None, out: str, quiet: bool, plots: bool) -> None:
+def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | None) -> None:
     """Analyse CASE (a TOML case file; the bundled demo when omitted)."""
     from envelope import api
     from envelope.summary import span_summary
@@ -72,7 +74,7 @@ def run(case: str | None, out: str, quiet: bool, plots: bool) -> None:
             path = case
         beam = api.load_case(path)
         result = api.analyse(beam)
-        folder = api.write(result, out, plots=plots)
+        folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
     if not quiet:
         click.echo(span_summary(result))
     click.echo(f"wrote {Path(folder)}")

@@ -57,20 +57,35 @@ class CaseSet:
     def superposed(self) -> bool:
         return self.coef is None
 
-    def case_rows(self) -> list[dict[str, str]]:
-        """What was run: one row per explicit case, or per combination ("any")."""
+    def case_rows(self, explicit: bool = False) -> list[dict[str, str]]:
+        """What was run: one row per explicit case, or per combination ("any") for the
+        superposition methods.  With ``explicit``, a superposed set also lists each
+        combination with every span loaded ("all"), the cases of :meth:`explicit_cases`."""
         rows = []
         if self.superposed:
-            for c in self.combinations:
-                rows.append({"combination": c.name, "loaded": "any",
-                             "factors": json.dumps(dict(c.factors))})
-        else:
-            assert self.case_combo is not None
-            for k, loaded in zip(self.case_combo, self.case_loaded, strict=True):
-                c = self.combinations[int(k)]
-                rows.append({"combination": c.name, "loaded": loaded,
-                             "factors": json.dumps(dict(c.factors))})
+            rows = [{"combination": c.name, "loaded": "any",
+                     "factors": json.dumps(dict(c.factors))} for c in self.combinations]
+            if not explicit:
+                return rows
+        _, combo, loaded = self.explicit_cases()
+        for k, text in zip(combo, loaded, strict=True):
+            c = self.combinations[int(k)]
+            rows.append({"combination": c.name, "loaded": text,
+                         "factors": json.dumps(dict(c.factors))})
         return rows
+
+    def explicit_cases(self) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
+        """Coefficients (units x cases), combination index and ``loaded`` text of the
+        explicit cases: those run for ``none`` and ``code``; for the superposition
+        methods, each combination with every cell loaded."""
+        if not self.superposed:
+            assert self.coef is not None and self.case_combo is not None
+            return self.coef, self.case_combo, self.case_loaded
+        assert self.fixed is not None and self.patterned is not None
+        assert self.dead_var is not None
+        coef = self.fixed + self.patterned + self.dead_var
+        n_k = len(self.combinations)
+        return coef, np.arange(n_k), ("all",) * n_k
 
 
 @dataclass(frozen=True, slots=True)

@@ -2,15 +2,17 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterator
 from dataclasses import dataclass
 
 import numpy as np
 
+from envelope import config
 from envelope.actions import design_actions
 from envelope.analysis import Solved, envelope_at, solve_beam
 from envelope.enveloper import CaseSet, Extremes, reduce
 from envelope.model import Beam
-from envelope.recovery import Points, stations
+from envelope.recovery import Points, evaluate, stations
 
 
 @dataclass(frozen=True, slots=True)
@@ -66,3 +68,42 @@ def support_moments(reaction_moment: np.ndarray) -> np.ndarray:
 
 def _reduce_rows(R: np.ndarray, cs: CaseSet) -> Extremes | None:
     return None if cs.is_empty else reduce(R, cs)
+
+
+def explicit_case_blocks(analysis: Analysis) -> Iterator[dict[str, np.ndarray]]:
+    """Every explicit case (strength, then service; see ``CaseSet.explicit_cases``) at
+    every station, in blocks of stations, long format: case index (rows of
+    cases.parquet with ``all_cases``), span (1-based), x, x_span, shear, moment,
+    rotation and deflection in output units.  One block is in memory at a time."""
+    solved = analysis.solved
+    beam = solved.beam
+    sets = [s for s in (solved.strength, solved.service)]
+    coefs, offsets = [], []
+    offset = 0
+    for cs in sets:
+        if cs.superposed:
+            offset += len(cs.combinations)  # the "any" rows come first in cases.parquet
+        coef, _, _ = cs.explicit_cases()
+        coefs.append(coef)
+        offsets.append(offset)
+        offset += coef.shape[1]
+    coef = np.concatenate(coefs, axis=1)
+    case_index = np.concatenate([np.arange(c.shape[1]) + o
+                                 for c, o in zip(coefs, offsets, strict=True)])
+    n_c = coef.shape[1]
+    pts = analysis.stations
+    defl = beam.units.deflection_factor
+    step = max(1, config.STATION_CHUNK_ROWS)
+    for lo in range(0, pts.n, step):
+        chunk = pts.take(slice(lo, lo + step))
+        r = evaluate(solved.mesh, solved.units, solved.solution, chunk)
+        yield {
+            "case": np.tile(case_index, chunk.n).astype(np.int32),
+            "span": np.repeat(chunk.span + 1, n_c).astype(np.int32),
+            "x": np.repeat(chunk.x, n_c),
+            "x_span": np.repeat(chunk.x_span, n_c),
+            "shear": (r.shear @ coef).ravel(),
+            "moment": (r.moment @ coef).ravel(),
+            "rotation": (r.rotation @ coef).ravel(),
+            "deflection": (r.deflection @ coef).ravel() * defl,
+        }

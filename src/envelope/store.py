@@ -18,10 +18,10 @@ import numpy as np
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from envelope import __version__
+from envelope import __version__, config
 from envelope.enveloper import CaseSet, Extremes
 from envelope.files import write_atomic
-from envelope.results import Analysis
+from envelope.results import Analysis, explicit_case_blocks
 
 CAUTION = ("Results are for checking by a licensed engineer and defer to local codes; "
            "they are not a design.")
@@ -140,13 +140,14 @@ def design_table(analysis: Analysis) -> pa.Table:
     return pa.table(cols).replace_schema_metadata(_metadata(analysis))
 
 
-def cases_table(analysis: Analysis) -> pa.Table:
-    """cases.parquet: what was run, set by set."""
+def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
+    """cases.parquet: what was run, set by set (with ``all_cases``, also the explicit
+    cases of stations.parquet, which indexes this table's rows)."""
     rows = []
     solved = analysis.solved
     for name, cs in (("strength", solved.strength), ("service", solved.service)):
         sources = {c.name: c.source for c in cs.combinations}
-        for r in cs.case_rows():
+        for r in cs.case_rows(explicit=all_cases):
             rows.append({"set": name, **r, "source": sources[r["combination"]]})
     schema = pa.schema([("set", pa.string()), ("combination", pa.string()),
                         ("loaded", pa.string()), ("factors", pa.string()),
@@ -155,13 +156,40 @@ def cases_table(analysis: Analysis) -> pa.Table:
     return table.replace_schema_metadata(_metadata(analysis))
 
 
-def tables(analysis: Analysis) -> dict[str, pa.Table]:
-    """Every result table of the outputs contract, by file stem."""
+STATIONS_SCHEMA = pa.schema([("beam", pa.string()), ("case", pa.int32()),
+                             ("span", pa.int32()), ("x", pa.float64()),
+                             ("x_span", pa.float64()), ("shear", pa.float64()),
+                             ("moment", pa.float64()), ("rotation", pa.float64()),
+                             ("deflection", pa.float64())])
+
+
+def write_stations(path: Path, analysis: Analysis) -> None:
+    """stations.parquet: every explicit case at every station, long format, written in
+    row groups as the blocks are computed, so the whole table is never in memory."""
+    meta = _metadata(analysis)
+    schema = STATIONS_SCHEMA.with_metadata(meta)
+    beam_id = analysis.beam.id
+
+    def write(fh: object) -> None:
+        with pq.ParquetWriter(fh, schema) as writer:
+            for block in explicit_case_blocks(analysis):
+                n = block["case"].size
+                cols = [pa.array(np.full(n, beam_id, dtype=object), pa.string())]
+                cols += [pa.array(block[f.name], f.type) for f in list(STATIONS_SCHEMA)[1:]]
+                writer.write_table(pa.Table.from_arrays(cols, schema=schema),
+                                   row_group_size=config.STATIONS_ROW_GROUP)
+
+    write_atomic(path, write)  # type: ignore[arg-type]
+
+
+def tables(analysis: Analysis, all_cases: bool = False) -> dict[str, pa.Table]:
+    """Every result table of the outputs contract, by file stem (stations.parquet, which
+    may be far larger than memory, is written by :func:`write_stations`)."""
     return {
         "envelope": envelope_table(analysis),
         "reactions": reactions_table(analysis),
         "design": design_table(analysis),
-        "cases": cases_table(analysis),
+        "cases": cases_table(analysis, all_cases),
     }
 
 
