@@ -57,25 +57,26 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
     length = np.array([solved.beam.spans[j].length for j in owner])
 
     def f(x: np.ndarray) -> np.ndarray:
-        ext = envelope_at(solved, make_points(solved.beam, span, x), quantity, case_set,
+        owners = span if x.size == span.size else np.r_[span, span]
+        ext = envelope_at(solved, make_points(solved.beam, owners, x), quantity, case_set,
                           labels=False)
         assert ext is not None
         return ext.max
 
     c = b - _INV_PHI * (b - a)
     d = a + _INV_PHI * (b - a)
-    fc, fd = f(c), f(d)
-    for _ in range(200):
+    both = f(np.r_[c, d])
+    fc, fd = both[: c.size], both[c.size:]
+    for _ in range(200):  # golden section: one new point per bracket per step
         if np.all(b - a <= config.DESIGN_XTOL * length):
             break
-        left = fc >= fd  # keep [a, d]
+        left = fc >= fd  # the maximum is in [a, d]: d becomes the new c
         b = np.where(left, d, b)
         a = np.where(left, a, c)
-        new_c = b - _INV_PHI * (b - a)
-        new_d = a + _INV_PHI * (b - a)
-        # golden section reuses one point; evaluating both keeps the arrays simple
-        c, d = new_c, new_d
-        fc, fd = f(c), f(d)
+        new_x = np.where(left, b - _INV_PHI * (b - a), a + _INV_PHI * (b - a))
+        f_new = f(new_x)
+        c, d = np.where(left, new_x, d), np.where(left, c, new_x)
+        fc, fd = np.where(left, f_new, fd), np.where(left, fc, f_new)
     xm = np.where(fc >= fd, c, d)
     vm = np.maximum(fc, fd)
     for i, j in enumerate(owner):

@@ -172,7 +172,8 @@ def _cell_onehot(cs: CaseSet) -> np.ndarray:
 
 def _superposed_values(R: np.ndarray, cs: CaseSet, k: int, sign: float,
                        onehot: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Extreme (sign=+1: max, -1: min) of combination k over all subsets of cells.
+    """Extreme (sign=+1: max, -1: min) of combination k over all subsets of cells, with
+    the cell-by-cell choice that ``favourable_dead`` needs.
 
     Returns the value per row, the chosen patterned units (rows x units, bool) and
     the loaded cells (rows x cells, bool)."""
@@ -181,10 +182,7 @@ def _superposed_values(R: np.ndarray, cs: CaseSet, k: int, sign: float,
     take = X > 0.0
     base = R @ cs.fixed[:, k]
     dead_k = cs.dead_var[:, k]
-    if not dead_k.any():
-        value = base + sign * np.where(take, X, 0.0).sum(axis=1)
-        return value, take, (take.astype(float) @ onehot) > 0
-    # favourable dead: each cell chooses "unloaded" (fav * A) or "loaded" (A + best)
+    # each cell chooses "unloaded" (fav * A) or "loaded" (A + best non-empty choice)
     A = sign * ((R * dead_k) @ onehot)  # rows x cells, loaded dead effect
     is_pat = cs.patterned[:, k] != 0.0
     pos = np.where(take, X, 0.0) @ onehot
@@ -211,51 +209,92 @@ def _superposed_values(R: np.ndarray, cs: CaseSet, k: int, sign: float,
     return value, chosen, loaded
 
 
-def _reduce_superposed(R: np.ndarray, cs: CaseSet, labels: bool) -> Extremes:
-    n_rows, n_k = R.shape[0], len(cs.combinations)
+def superposed_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]:
+    """Largest and smallest value of every combination over all subsets of cells:
+    two (rows x combinations) arrays.
+
+    Where dead load does not depend on the pattern, the sum of positive parts is
+    sum(max(R_u p_u, 0)) = (R @ P + |R| @ |P|) / 2, since max(a, 0) = (a + |a|) / 2
+    term by term: two matrix products, no loop over unit cases or combinations.
+    Combinations with a pattern-dependent (favourable) dead load take the cell-by-cell
+    choice of :func:`_superposed_values`."""
+    assert cs.fixed is not None and cs.patterned is not None and cs.dead_var is not None
+    base = R @ cs.fixed
+    signed = R @ cs.patterned
+    spread = np.abs(R) @ np.abs(cs.patterned)
+    vmax = base + 0.5 * (signed + spread)
+    vmin = base + 0.5 * (signed - spread)
+    fav = np.flatnonzero(cs.dead_var.any(axis=0))
+    if fav.size:
+        onehot = _cell_onehot(cs)
+        for k in fav:
+            vmax[:, k] = _superposed_values(R, cs, int(k), 1.0, onehot)[0]
+            vmin[:, k] = _superposed_values(R, cs, int(k), -1.0, onehot)[0]
+    return vmax, vmin
+
+
+def _choices(R: np.ndarray, cs: CaseSet, combo: np.ndarray,
+             sign: float) -> tuple[np.ndarray, np.ndarray | None]:
+    """The governing choice at each row for its own combination: chosen patterned
+    units (rows x units) and, where dead load is pattern-dependent, loaded cells."""
+    assert cs.patterned is not None and cs.dead_var is not None
+    P = cs.patterned.T[combo]  # rows x units: each row's own combination
+    units = (sign * R * P) > 0.0
+    fav = np.flatnonzero(cs.dead_var.any(axis=0))
+    if not fav.size:
+        return units, None
     onehot = _cell_onehot(cs)
-    out = {}
-    for sign, name in ((1.0, "max"), (-1.0, "min")):
-        best_val = np.full(n_rows, -np.inf)
-        best_k = np.zeros(n_rows, dtype=np.int64)
-        best_units = np.zeros((n_rows, R.shape[1]), dtype=bool)
-        best_cells = np.zeros((n_rows, onehot.shape[1]), dtype=bool)
-        for k in range(n_k):
-            val, units, cells = _superposed_values(R, cs, k, sign, onehot)
-            val = sign * val
-            better = val > best_val
-            best_val = np.where(better, val, best_val)
-            best_k = np.where(better, k, best_k)
-            best_units[better] = units[better]
-            best_cells[better] = cells[better]
-        text = (_labels(cs, best_k, best_units, best_cells) if labels
-                else np.full(n_rows, "", dtype=object))
-        out[name] = (sign * best_val, best_k, text)
-    return Extremes(out["max"][0], out["min"][0], out["max"][1], out["min"][1],
-                    out["max"][2], out["min"][2])
+    cells = (units.astype(float) @ onehot) > 0
+    for k in fav:
+        rows = np.flatnonzero(combo == k)
+        if rows.size:
+            _, u_k, c_k = _superposed_values(R[rows], cs, int(k), sign, onehot)
+            units[rows], cells[rows] = u_k, c_k
+    return units, cells
+
+
+def _reduce_superposed(R: np.ndarray, cs: CaseSet, labels: bool) -> Extremes:
+    vmax, vmin = superposed_extremes(R, cs)
+    rows = np.arange(R.shape[0])
+    k_max, k_min = np.argmax(vmax, axis=1), np.argmin(vmin, axis=1)
+    if labels:
+        t_max = _labels(cs, k_max, *_choices(R, cs, k_max, 1.0))
+        t_min = _labels(cs, k_min, *_choices(R, cs, k_min, -1.0))
+    else:
+        t_max = t_min = np.full(R.shape[0], "", dtype=object)
+    return Extremes(vmax[rows, k_max], vmin[rows, k_min], k_max, k_min, t_max, t_min)
+
+
+def _patterned_cases(cs: CaseSet) -> list[list[str]]:
+    """Per combination, the names of its patterned cases (in declaration order)."""
+    assert cs.patterned is not None
+    out = []
+    for k in range(len(cs.combinations)):
+        names = [cs.unit_case_name[u] for u in np.flatnonzero(cs.patterned[:, k] != 0.0)]
+        out.append(list(dict.fromkeys(names)))
+    return out
 
 
 def _labels(cs: CaseSet, combo: np.ndarray, units: np.ndarray,
-            cells: np.ndarray) -> np.ndarray:
-    """``_loaded`` text per row from the chosen units and loaded cells."""
-    assert cs.patterned is not None
-    key = np.concatenate([combo[:, None].astype(np.uint8), np.packbits(units, axis=1),
-                          np.packbits(cells, axis=1)], axis=1) if units.size else combo[:, None]
-    uniq, inverse = np.unique(key, axis=0, return_inverse=True)
-    first = np.zeros(uniq.shape[0], dtype=np.int64)
-    first[inverse.ravel()[::-1]] = np.arange(key.shape[0])[::-1]
-    text = np.empty(uniq.shape[0], dtype=object)
+            cells: np.ndarray | None) -> np.ndarray:
+    """``_loaded`` text per row from the chosen units (and loaded cells, where dead load
+    depends on the pattern)."""
+    parts = [combo[:, None].astype(np.uint16).view(np.uint8), np.packbits(units, axis=1)]
+    if cells is not None:
+        parts.append(np.packbits(cells, axis=1))
+    key = np.ascontiguousarray(np.concatenate(parts, axis=1))
+    # one text per distinct (combination, choice): rows as opaque byte strings
+    raw = key.view(np.dtype((np.void, key.shape[1]))).ravel()
+    _, first, inverse = np.unique(raw, return_index=True, return_inverse=True)
+    text = np.empty(first.size, dtype=object)
     n_g = len(cs.cell_labels)
+    pat_cases = _patterned_cases(cs)
     for i, row in enumerate(first):
         k = int(combo[row])
-        pat_cases = [name for name in dict.fromkeys(cs.unit_case_name)
-                     if cs.combinations[k].factor(name) != 0.0
-                     and any(cs.patterned[u, k] != 0.0 for u in range(len(cs.unit_case_name))
-                             if cs.unit_case_name[u] == name)]
-        by_case: dict[str, list[bool]] = {c: [False] * n_g for c in pat_cases}
+        by_case: dict[str, list[bool]] = {c: [False] * n_g for c in pat_cases[k]}
         for u in np.flatnonzero(units[row]):
             by_case[cs.unit_case_name[u]][int(cs.unit_cell[u])] = True
-        if cs.dead_var is not None and cs.dead_var[:, k].any():
+        if cells is not None:
             # a loaded cell may carry a patterned case with no load of its own there
             for c in by_case:
                 by_case[c] = [a or (b and not any(by_case[o][g] for o in by_case))
