@@ -87,10 +87,10 @@ def test_bundled_demo_parses_as_described() -> None:
     assert all(s.width == 0.4 for s in beam.supports)
     assert [c.name for c in beam.cases] == ["D", "L"]
     assert beam.case("L").patterned and not beam.case("D").patterned
-    assert beam.combinations.strength == "none"
-    assert [(c.name, c.set) for c in beam.combinations.custom] == [
-        ("1.2D+1.6L", "strength"), ("1.4D", "strength"), ("D+L", "service")]
-    assert beam.patterning.method == "none"
+    assert beam.combinations.strength == "asce7-lrfd"
+    assert beam.combinations.service == "characteristic"
+    assert [(c.name, c.set) for c in beam.combinations.custom] == [("1.35D+1.5L", "strength")]
+    assert beam.patterning.method == "exhaustive"
     assert beam.output.stations_per_span == 21
     assert {ld.type for ld in beam.loads} == {"self_weight", "uniform"}
     # A = 227500 mm^2 at 24 kN/m^3: 0.2275 m^2 * 24 = 5.46 kN/m (arithmetic)
