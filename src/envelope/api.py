@@ -39,7 +39,9 @@ def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = Fa
         store.write_stations(folder / "stations.parquet", result)
     store.write_tables(folder, built)
     if plots:
-        redraw(folder)
+        from envelope import plots as figures
+
+        figures.draw_results(store.result_columns(built), folder / "envelope.png")
     return folder
 
 

@@ -212,14 +212,13 @@ def read_table(path: str | os.PathLike) -> pa.Table:
     return pq.read_table(path)
 
 
-def read_results(folder: str | os.PathLike) -> dict[str, dict[str, object]]:
-    """The result files of one beam as plain columns (numpy arrays / lists) plus metadata:
-    ``{"envelope": {...}, "design": {...}, "reactions": {...}, "meta": {...}}``."""
-    folder = Path(folder)
+def result_columns(result_tables: Mapping[str, pa.Table]) -> dict[str, dict[str, object]]:
+    """The envelope, design and reactions tables as plain columns (numpy arrays; strings
+    as object arrays) plus their metadata under ``"meta"`` (``units`` decoded)."""
     out: dict[str, dict[str, object]] = {}
     meta: dict[str, object] = {}
     for stem in ("envelope", "design", "reactions"):
-        table = pq.read_table(folder / f"{stem}.parquet")
+        table = result_tables[stem]
         cols: dict[str, object] = {}
         for name in table.column_names:
             col = table.column(name)
@@ -233,3 +232,10 @@ def read_results(folder: str | os.PathLike) -> dict[str, dict[str, object]]:
     meta["units"] = json.loads(str(meta.get("envelope:units", "{}")))
     out["meta"] = meta
     return out
+
+
+def read_results(folder: str | os.PathLike) -> dict[str, dict[str, object]]:
+    """:func:`result_columns` of the Parquet files in one beam's result folder."""
+    folder = Path(folder)
+    return result_columns({stem: pq.read_table(folder / f"{stem}.parquet")
+                           for stem in ("envelope", "design", "reactions")})
