@@ -74,6 +74,8 @@ def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | 
             path = case
         beam = api.load_case(path)
         result = api.analyse(beam)
+        for warning in result.solved.solution.warnings:
+            click.echo(f"warning: {path}: {warning}", err=True)
         folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
     if not quiet:
         click.echo(span_summary(result))

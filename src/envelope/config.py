@@ -24,8 +24,9 @@ STATIONS_ROW_GROUP = 1_000_000
 #: Positions of design extremes are refined to this fraction of the span length.
 DESIGN_XTOL = 1e-10
 
-#: A spring stiffer than this times the beam's own stiffness scale is treated as
-#: rigid in the conditioning warning, not in the analysis.
+#: Warn when the estimated condition number of the stiffness matrix exceeds this:
+#: with float64 (eps 2.2e-16) about 1e-4 relative accuracy remains at 1e12, and the
+#: residual and statics checks still guard every result.
 CONDITION_WARN = 1e12
 
 #: A design value smaller than this fraction of the beam's largest value of the same

@@ -44,6 +44,15 @@ class Solution:
     v1: np.ndarray
     reaction: np.ndarray
     reaction_moment: np.ndarray
+    condition: float = 1.0  # estimate of the stiffness matrix's condition number
+
+    @property
+    def warnings(self) -> tuple[str, ...]:
+        if self.condition > config.CONDITION_WARN:
+            return (f"the stiffness matrix is badly conditioned (condition estimate "
+                    f"{self.condition:.2g}): a near-mechanism, or stiffnesses of very "
+                    f"different orders; check soft springs and very flexible parts",)
+        return ()
 
 
 def element_stiffness(length: np.ndarray, EI: np.ndarray) -> np.ndarray:
@@ -124,6 +133,8 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
                                 "unstable beam: the stiffness matrix is singular "
                                 "(a part of the beam can move freely)") from None
     d = cho_solve_banded((chol, False), F, check_finite=False) if n_u else F
+    pivots = chol[3]
+    condition = float((pivots.max() / pivots.min()) ** 2)  # a lower bound, cheap
     d[rigid] = 0.0
 
     de = d[base[:, None] + np.arange(4)]  # (n_e, 4, n_u)
@@ -147,6 +158,7 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
         v1=de[:, 0, :],
         reaction=reaction,
         reaction_moment=reaction_moment,
+        condition=condition,
     )
 
 

@@ -20,6 +20,7 @@ import pyarrow.parquet as pq
 
 from envelope import __version__, config
 from envelope.enveloper import CaseSet, Extremes
+from envelope.errors import StaticsError
 from envelope.files import write_atomic
 from envelope.results import Analysis, explicit_case_blocks
 
@@ -38,6 +39,7 @@ def _metadata(analysis: Analysis) -> dict[bytes, bytes]:
         b"envelope:caution": CAUTION.encode(),
         b"envelope:title": beam.title.encode(),
         b"envelope:moment_plot": beam.output.moment_plot.encode(),
+        b"envelope:warnings": json.dumps(list(analysis.solved.solution.warnings)).encode(),
     }
 
 
@@ -176,8 +178,9 @@ def write_stations(path: Path, analysis: Analysis) -> None:
                 n = block["case"].size
                 cols = [pa.array(np.full(n, beam_id, dtype=object), pa.string())]
                 cols += [pa.array(block[f.name], f.type) for f in list(STATIONS_SCHEMA)[1:]]
-                writer.write_table(pa.Table.from_arrays(cols, schema=schema),
-                                   row_group_size=config.STATIONS_ROW_GROUP)
+                part = pa.Table.from_arrays(cols, schema=schema)
+                check_finite(part, str(path))
+                writer.write_table(part, row_group_size=config.STATIONS_ROW_GROUP)
 
     write_atomic(path, write)  # type: ignore[arg-type]
 
@@ -193,8 +196,20 @@ def tables(analysis: Analysis, all_cases: bool = False) -> dict[str, pa.Table]:
     }
 
 
+def check_finite(table: pa.Table, name: str) -> None:
+    """Refuse NaN or infinity in any float column (nulls are allowed: they mean "none")."""
+    for field in table.schema:
+        if pa.types.is_floating(field.type):
+            values = table.column(field.name).to_numpy(zero_copy_only=False)
+            values = values[~np.isnan(values)] if table.column(field.name).null_count else values
+            if not np.all(np.isfinite(values)):
+                raise StaticsError(f"{name}: column {field.name} holds a non-finite value; "
+                                   "result withheld")
+
+
 def write_parquet(path: Path, table: pa.Table) -> None:
-    """Write one Parquet file atomically (see :mod:`envelope.files`)."""
+    """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only."""
+    check_finite(table, str(path))
     write_atomic(path, lambda fh: pq.write_table(table, fh))
 
 
