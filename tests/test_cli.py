@@ -13,9 +13,9 @@ from pathlib import Path
 
 import pyarrow.parquet as pq
 import pytest
+from bad_inputs import BAD_INPUTS
 from click.testing import CliRunner
 
-from bad_inputs import BAD_INPUTS
 from envelope.cli import main
 
 REPO = Path(__file__).resolve().parents[1]
