@@ -1,0 +1,132 @@
+"""Small shared helpers for tests: build case-file TOML texts, solve them, and read
+per-case reactions and responses.
+
+Everything here is in the engine's consistent units (SI: m, kN; the texts use unit
+strings such as ``"1 kN/m^2"`` where a plain number would be read in MPa or mm^4).
+Sign conventions are the case-format contract's: loads downward positive, applied
+point moments clockwise positive, reactions upward positive, shear = sum of upward
+forces left of the point, moment sagging positive, deflection downward positive,
+rotation = d(deflection)/dx.
+"""
+
+from __future__ import annotations
+
+import json
+import tomllib
+from collections.abc import Mapping, Sequence
+from typing import Any
+
+import numpy as np
+
+from envelope.analysis import Solved, case_responses, solve_beam
+from envelope.casefile import parse_case
+from envelope.model import Beam
+from envelope.recovery import Response, make_points
+
+#: Section giving EI = 1 kN*m^2 (E and I as unit strings, so no MPa / mm^4 scaling).
+UNIT_EI = {"E": "1 kN/m^2", "I": "1 m^4"}
+
+
+def toml_value(value: Any) -> str:
+    """One TOML value: numbers (float repr round-trips exactly), strings, lists, inline tables."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, int | float):
+        return repr(value)
+    if isinstance(value, str):
+        return json.dumps(value)
+    if isinstance(value, Mapping):
+        return "{ " + ", ".join(f"{k} = {toml_value(v)}" for k, v in value.items()) + " }"
+    if isinstance(value, Sequence):
+        return "[" + ", ".join(toml_value(v) for v in value) + "]"
+    raise TypeError(f"no TOML form for {value!r}")
+
+
+def _table(header: str, items: Mapping[str, Any]) -> str:
+    return header + "\n" + "".join(f"{k} = {toml_value(v)}\n" for k, v in items.items())
+
+
+def beam_text(
+    spans: Sequence[float | Mapping[str, Any]],
+    supports: Sequence[str | Mapping[str, Any]],
+    loads: Sequence[Mapping[str, Any]],
+    *,
+    section: Mapping[str, Any] = UNIT_EI,
+    cases: Mapping[str, str] | None = None,
+) -> str:
+    """A whole SI case file.
+
+    ``spans``: lengths in m, or tables of span keys (a ``sections`` entry is a list of
+    stretch tables, written as ``[[spans.sections]]``).  ``supports``: a type name or a
+    support table.  ``loads``: load tables; ``case`` defaults to ``"D"``.  ``cases``:
+    name -> kind, default one dead case ``D``.  Combinations: none for strength, the
+    characteristic service set, so every case can be read with ``case_responses``.
+    """
+    cases = {"D": "dead"} if cases is None else cases
+    parts = ['units = "SI"\n', _table("[section]", section)]
+    for sp in spans:
+        table = {"length": sp} if isinstance(sp, int | float) else dict(sp)
+        stretches = table.pop("sections", ())
+        parts.append(_table("[[spans]]", table))
+        parts.extend(_table("[[spans.sections]]", st) for st in stretches)
+    for su in supports:
+        parts.append(_table("[[supports]]", {"type": su} if isinstance(su, str) else su))
+    parts.append(_table("[cases]", {name: {"kind": kind} for name, kind in cases.items()}))
+    for ld in loads:
+        parts.append(_table("[[loads]]", {"case": "D", **ld}))
+    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n')
+    return "\n".join(parts)
+
+
+def parse_text(text: str, name: str = "test.toml") -> Beam:
+    return parse_case(tomllib.loads(text), name)
+
+
+def solve_text(text: str) -> Solved:
+    """Parse and solve a case-file text."""
+    return solve_beam(parse_text(text))
+
+
+def _per_case(solved: Solved) -> np.ndarray:
+    """(n_units, n_cases) 0/1 matrix summing unit cases into their load cases."""
+    m = np.zeros((solved.units.n_units, len(solved.beam.cases)))
+    m[np.arange(solved.units.n_units), solved.units.case] = 1.0
+    return m
+
+
+def case_reactions(solved: Solved) -> np.ndarray:
+    """(n_joints, n_cases) upward support reactions of each load case on every span."""
+    return solved.solution.reaction @ _per_case(solved)
+
+
+def case_reaction_moments(solved: Solved) -> np.ndarray:
+    """(n_joints, n_cases) support moment reactions on the beam (counter-clockwise positive,
+    the solver's convention)."""
+    return solved.solution.reaction_moment @ _per_case(solved)
+
+
+def responses(solved: Solved, span: Sequence[int] | np.ndarray | int,
+              x_span: Sequence[float] | np.ndarray | float,
+              right: Sequence[bool] | np.ndarray | bool = True) -> Response:
+    """Each load case at the given points (span 0-based, span-local x; ``right=False``
+    for the left-side limit).  Scalars broadcast."""
+    x_arr = np.atleast_1d(np.asarray(x_span, dtype=float))
+    span_arr = np.broadcast_to(np.asarray(span, dtype=np.int64), x_arr.shape)
+    right_arr = np.broadcast_to(np.asarray(right, dtype=bool), x_arr.shape)
+    return case_responses(solved, make_points(solved.beam, span_arr, x_arr, right_arr))
+
+
+def peak(solved: Solved, span: int, quantity: str, case: int = 0, sign: float = 1.0,
+         n: int = 20001, zooms: int = 4) -> tuple[float, float]:
+    """(x, value) of the largest ``sign * quantity`` inside ``span``: a dense search over
+    ``n`` equally spaced points, then ``zooms`` rounds of a dense search of the bracket
+    round the best point (so the position is found far below the first grid step)."""
+    length = solved.beam.spans[span].length
+    lo, hi = 0.0, length
+    for _ in range(zooms + 1):
+        xs = np.linspace(lo, hi, n)
+        vals = sign * getattr(responses(solved, span, xs), quantity)[:, case]
+        i = int(np.argmax(vals))
+        step = xs[1] - xs[0]
+        lo, hi = max(0.0, xs[i] - step), min(length, xs[i] + step)
+    return float(xs[i]), float(getattr(responses(solved, span, xs[i]), quantity)[0, case])
