@@ -126,7 +126,8 @@ def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[s
                 _label_peak(axes[2], x[kd], dmax[kd], f"{dmax[kd]:.2f}", False)
     for xj in joint_x:
         near = np.flatnonzero(np.isclose(x, xj, rtol=0, atol=1e-9 * max(x.max(), 1.0)))
-        if near.size and np.nanmin(mmin[near]) < 0:
+        scale = float(np.nanmax(np.abs(np.r_[mmax, mmin]))) if mmin.size else 0.0
+        if near.size and np.nanmin(mmin[near]) < -1e-6 * scale:
             k = near[np.nanargmin(mmin[near])]
             _label_peak(axes[0], x[k], mmin[k], f"{mmin[k]:.1f}\n{combo_min[k]}", flip)
 
