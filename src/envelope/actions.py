@@ -15,9 +15,12 @@ import math
 import numpy as np
 
 from envelope import config
-from envelope.analysis import Solved, envelope_at
-from envelope.enveloper import Extremes
-from envelope.recovery import Points, make_points
+from envelope.analysis import QUANTITY_SET, Solved, envelope_at
+from envelope.enveloper import Extremes, governing_coefficients
+from envelope.recovery import Points, evaluate_some, make_points
+
+#: The derivative of each quantity along the beam: dM/dx = V, d(deflection)/dx = rotation.
+_SLOPE = {"moment": "shear", "deflection": "rotation"}
 
 _INV_PHI = (math.sqrt(5.0) - 1.0) / 2.0
 
@@ -79,10 +82,51 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
         fc, fd = np.where(left, f_new, fd), np.where(left, fc, f_new)
     xm = np.where(fc >= fd, c, d)
     vm = np.maximum(fc, fd)
+    xm, vm = _polish(solved, span, length, xm, vm, quantity, case_set)
     for i, j in enumerate(owner):
         if vm[i] > best[j]:
             best[j], best_x[j] = vm[i], xm[i]
     return best, best_x
+
+
+def _polish(solved: Solved, span: np.ndarray, length: np.ndarray, x: np.ndarray,
+            value: np.ndarray, quantity: str, case_set: str | None
+            ) -> tuple[np.ndarray, np.ndarray]:
+    """Move each maximum to the root of the governing case's slope (shear for moment,
+    rotation for deflection) by bisection, where the slope changes sign within
+    :data:`envelope.config.ROOT_BRACKET` of the span length; elsewhere (a kink under a
+    point load, an end of the span) the golden-section position stands."""
+    beam = solved.beam
+    cs = solved.case_set(case_set or QUANTITY_SET[quantity])
+    h = config.ROOT_BRACKET * length
+    lo = np.clip(x - h, 0.0, length)
+    hi = np.clip(x + h, 0.0, length)
+    owners = np.r_[span, span]
+
+    def responses(xs: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
+        pts = make_points(beam, owners[: xs.size] if xs.size == span.size else owners, xs)
+        return evaluate_some(solved.mesh, solved.units, solved.solution, pts, names)
+
+    coef = governing_coefficients(responses(x, (quantity,))[quantity], cs)
+    slope_name = _SLOPE[quantity]
+    ends = responses(np.r_[lo, hi], (slope_name,))[slope_name]
+    s_lo = np.einsum("iu,iu->i", ends[: x.size], coef)
+    s_hi = np.einsum("iu,iu->i", ends[x.size:], coef)
+    ok = (s_lo > 0.0) & (s_hi < 0.0)
+    if not ok.any():
+        return x, value
+    for _ in range(60):  # bisection: 2e-6 L down to round-off
+        mid = 0.5 * (lo + hi)
+        s_mid = np.einsum("iu,iu->i", responses(mid, (slope_name,))[slope_name], coef)
+        lo = np.where(s_mid > 0.0, mid, lo)
+        hi = np.where(s_mid > 0.0, hi, mid)
+        if np.all(hi - lo <= 4.0 * np.finfo(float).eps * np.maximum(length, 1.0)):
+            break
+    root = 0.5 * (lo + hi)
+    ext = envelope_at(solved, make_points(beam, span, root), quantity, case_set, labels=False)
+    assert ext is not None
+    better = ok & (ext.max >= value - config.ZERO_RTOL * np.abs(value))
+    return np.where(better, root, x), np.where(better, np.maximum(ext.max, value), value)
 
 
 def _at_span_ends(pts: Points, n_spans: int) -> tuple[np.ndarray, np.ndarray]:

@@ -17,7 +17,7 @@ from envelope.enveloper import CaseSet, Extremes, build_case_set, reduce
 from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
 from envelope.mesh import Mesh, build_mesh
 from envelope.model import LIVE_KINDS, Beam, Combination
-from envelope.recovery import Points, Response, evaluate
+from envelope.recovery import Points, Response, evaluate, evaluate_some
 from envelope.solver import Solution, solve
 
 #: Which combination set envelopes which quantity (outputs contract).
@@ -64,21 +64,31 @@ def solve_beam(beam: Beam) -> Solved:
     )
 
 
+def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
+                 labels: bool = True) -> dict[str, Extremes | None]:
+    """Envelopes at ``points`` for each ``quantity -> case set`` of ``requests``, in
+    chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows, each chunk's response
+    computed once for all quantities; None for an empty case set.  ``labels=False``
+    skips the ``_loaded`` texts (for searches that need values only)."""
+    sets = {q: solved.case_set(name) for q, name in requests.items()}
+    wanted = tuple(q for q, cs in sets.items() if not cs.is_empty)
+    parts: dict[str, list[Extremes]] = {q: [] for q in wanted}
+    step = config.STATION_CHUNK_ROWS
+    if wanted:
+        for lo in range(0, max(points.n, 1), step):
+            chunk = points.take(slice(lo, lo + step))
+            resp = evaluate_some(solved.mesh, solved.units, solved.solution, chunk, wanted)
+            for q in wanted:
+                parts[q].append(reduce(resp[q], sets[q], labels))
+    return {q: Extremes.concat(parts[q]) if q in parts else None for q in requests}
+
+
 def envelope_at(solved: Solved, points: Points, quantity: str,
                 case_set: str | None = None, labels: bool = True) -> Extremes | None:
-    """Envelope of ``quantity`` (shear, moment, rotation, deflection) at ``points``, in
-    chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows; None for an empty set.
-    ``labels=False`` skips the ``_loaded`` texts (for searches that need values only)."""
-    cs = solved.case_set(case_set or QUANTITY_SET[quantity])
-    if cs.is_empty:
-        return None
-    parts = []
-    step = config.STATION_CHUNK_ROWS
-    for lo in range(0, max(points.n, 1), step):
-        chunk = points.take(slice(lo, lo + step))
-        resp = evaluate(solved.mesh, solved.units, solved.solution, chunk)
-        parts.append(reduce(getattr(resp, quantity), cs, labels))
-    return Extremes.concat(parts)
+    """Envelope of one ``quantity`` (shear, moment, rotation, deflection) at ``points``
+    over ``case_set`` (default: strength for moment and shear, service otherwise)."""
+    name = case_set or QUANTITY_SET[quantity]
+    return envelopes_at(solved, points, {quantity: name}, labels)[quantity]
 
 
 def case_responses(solved: Solved, points: Points) -> Response:

@@ -32,3 +32,8 @@ CONDITION_WARN = 1e12
 #: A design value smaller than this fraction of the beam's largest value of the same
 #: quantity is round-off (e.g. the moment at a cantilever tip) and is reported as 0.
 ZERO_RTOL = 1e-9
+
+#: Half-width (fraction of the span) of the bracket around a refined maximum in which
+#: the root of the governing case's slope is sought: golden section leaves the position
+#: of a smooth maximum uncertain by about sqrt(eps) ~ 1e-8 of the span.
+ROOT_BRACKET = 1e-6

@@ -253,6 +253,26 @@ def _choices(R: np.ndarray, cs: CaseSet, combo: np.ndarray,
     return units, cells
 
 
+def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
+    """Coefficients over unit cases (rows x units) of the case that governs the maximum
+    at each row: the explicit case, or the combination with its chosen subset of cells.
+    The response of that one fixed case is smooth where the envelope is, so its
+    derivative locates the envelope's extreme exactly."""
+    if not cs.superposed:
+        assert cs.coef is not None
+        return cs.coef.T[np.argmax(R @ cs.coef, axis=1)]
+    assert cs.fixed is not None and cs.patterned is not None and cs.dead_var is not None
+    vmax, _ = superposed_extremes(R, cs)
+    k = np.argmax(vmax, axis=1)
+    units, cells = _choices(R, cs, k, 1.0)
+    coef = cs.fixed.T[k] + cs.patterned.T[k] * units
+    dead = cs.dead_var.T[k]
+    if cells is not None:
+        on = cells[:, cs.unit_cell]
+        coef += np.where(on, dead, dead * cs.favourable_dead)
+    return coef
+
+
 def _reduce_superposed(R: np.ndarray, cs: CaseSet, labels: bool) -> Extremes:
     vmax, vmin = superposed_extremes(R, cs)
     rows = np.arange(R.shape[0])

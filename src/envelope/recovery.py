@@ -142,19 +142,34 @@ def _pairs(pt_elem: np.ndarray, item_elem: np.ndarray) -> tuple[np.ndarray, np.n
     return pt_idx, item_idx
 
 
+QUANTITIES = ("shear", "moment", "rotation", "deflection")
+
+
 def evaluate(mesh: Mesh, units: UnitCases, sol: Solution, points: Points) -> Response:
     """Response of every unit case at ``points``: (n_points, n_units) arrays."""
+    return Response(**evaluate_some(mesh, units, sol, points, QUANTITIES))
+
+
+def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
+                  quantities: tuple[str, ...]) -> dict[str, np.ndarray]:
+    """Only the named quantities of :func:`evaluate` (the rest is not computed)."""
     elem = locate(mesh, points.span, points.x_span, points.right)
     s = points.x_span - mesh.start[elem]
     s = np.clip(s, 0.0, mesh.length[elem])
     EI = mesh.EI[elem][:, None]
     V0, M0 = sol.V0[elem], sol.M0[elem]
-    th1, v1 = sol.theta1[elem], sol.v1[elem]
     sc = s[:, None]
-    shear = V0.copy()
-    moment = M0 + V0 * sc
-    theta = th1 + (M0 * sc + V0 * sc**2 / 2.0) / EI
-    v = v1 + th1 * sc + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI
+    out: dict[str, np.ndarray] = {}
+    if "shear" in quantities:
+        out["shear"] = V0.copy()
+    if "moment" in quantities:
+        out["moment"] = M0 + V0 * sc
+    if "rotation" in quantities:
+        # d(deflection)/dx with deflection downward: minus the upward slope
+        out["rotation"] = -(sol.theta1[elem] + (M0 * sc + V0 * sc**2 / 2.0) / EI)
+    if "deflection" in quantities:
+        out["deflection"] = -(sol.v1[elem] + sol.theta1[elem] * sc
+                              + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
 
     pt, it = _pairs(elem, units.item_elem)
     if pt.size:
@@ -165,8 +180,9 @@ def evaluate(mesh: Mesh, units: UnitCases, sol: Solution, points: Points) -> Res
         flat = pt * n_u + units.item_unit[it]
         size = points.n * n_u
         ei_pt = mesh.EI[elem[pt]]
-        shear -= np.bincount(flat, Q, size).reshape(points.n, n_u)
-        moment -= np.bincount(flat, m, size).reshape(points.n, n_u)
-        theta -= np.bincount(flat, m1 / ei_pt, size).reshape(points.n, n_u)
-        v -= np.bincount(flat, m2 / ei_pt, size).reshape(points.n, n_u)
-    return Response(shear=shear, moment=moment, rotation=-theta, deflection=-v)
+        # particular parts: shear -Q, moment -m, upward slope -m1/EI, upward v -m2/EI
+        for name, term in (("shear", -Q), ("moment", -m), ("rotation", m1 / ei_pt),
+                           ("deflection", m2 / ei_pt)):
+            if name in out:
+                out[name] += np.bincount(flat, term, size).reshape(points.n, n_u)
+    return out

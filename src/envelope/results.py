@@ -9,7 +9,7 @@ import numpy as np
 
 from envelope import config
 from envelope.actions import design_actions
-from envelope.analysis import Solved, envelope_at, solve_beam
+from envelope.analysis import Solved, envelopes_at, solve_beam
 from envelope.enveloper import CaseSet, Extremes, reduce
 from envelope.model import Beam
 from envelope.recovery import Points, evaluate, stations
@@ -37,7 +37,8 @@ def analyse(beam: Beam) -> Analysis:
     design actions."""
     solved = solve_beam(beam)
     pts = stations(beam, solved.mesh, solved.units)
-    env = {q: envelope_at(solved, pts, q) for q in ("moment", "shear", "deflection")}
+    env = envelopes_at(solved, pts, {"moment": "strength", "shear": "strength",
+                                     "deflection": "service"})
 
     sol = solved.solution
     joints = np.array([j for j, s in enumerate(beam.supports) if s.is_restrained], dtype=int)
