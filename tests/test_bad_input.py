@@ -7,10 +7,11 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from bad_inputs import BAD_INPUTS
 
 from envelope.casefile import load_case, parse_case
 from envelope.errors import CaseError, UnstableBeamError
+
+from bad_inputs import BAD_INPUTS
 
 
 def _write(tmp_path: Path, text: str | bytes) -> Path:

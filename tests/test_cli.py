@@ -13,10 +13,11 @@ from pathlib import Path
 
 import pyarrow.parquet as pq
 import pytest
-from bad_inputs import BAD_INPUTS
 from click.testing import CliRunner
 
 from envelope.cli import main
+
+from bad_inputs import BAD_INPUTS
 
 REPO = Path(__file__).resolve().parents[1]
 CASES = sorted((REPO / "cases").glob("*.toml"))

@@ -31,6 +31,7 @@ from fractions import Fraction as F
 import numpy as np
 import pytest
 import sympy as sp
+
 from beams import beam_text, case_reaction_moments, case_reactions, peak, responses, solve_text
 
 EXACT = 1e-9  # relative tolerance for exact (rational or closed-form) values

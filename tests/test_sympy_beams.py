@@ -45,8 +45,9 @@ from fractions import Fraction
 import numpy as np
 import pytest
 import sympy as sp
-from beams import beam_text, case_reaction_moments, case_reactions, responses, solve_text
 from sympy.physics.continuum_mechanics.beam import Beam
+
+from beams import beam_text, case_reaction_moments, case_reactions, responses, solve_text
 
 REL = 1e-7
 FLOOR = 1e-10
