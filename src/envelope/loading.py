@@ -104,7 +104,7 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
         j = load.span
         c = case_index[load.case]
         elems = list(range(mesh.span_first[j], mesh.span_first[j] + mesh.span_count[j]))
-        e_bounds = [(float(mesh.start[e]), float(mesh.start[e] + mesh.length[e])) for e in elems]
+        e_bounds = [(float(mesh.start[e]), float(mesh.end[e])) for e in elems]
         g_list = span_cells[j]
         g_bounds = [(float(cells.start[g]), float(cells.end[g])) for g in g_list]
         if load.type in ("point", "moment"):
@@ -121,6 +121,8 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
             g = g_list[_owner(lo, g_bounds)]
             wa, wb = _intensity(load, beam, j, lo), _intensity(load, beam, j, hi, upper=True)
             e0 = float(mesh.start[e])
+            if hi - e0 <= lo - e0:
+                continue  # a sliver that vanishes in element-local coordinates
             rows.append((unit(c, g), e, DISTRIBUTED, lo - e0, hi - e0, wa, wb, 0.0))
 
     keys = sorted(unit_of, key=unit_of.__getitem__)

@@ -52,7 +52,8 @@ def load_terms(
         wad, wbd = wa[dist], wb[dist]
         c = np.clip(sd, ad, bd)
         half = 0.5 * (c - ad)
-        slope = (wbd - wad) / (bd - ad)
+        width = bd - ad
+        slope = np.divide(wbd - wad, width, out=np.zeros_like(width), where=width > 0.0)
         q_sum = np.zeros((4, sd.size))
         for xi, wi in zip(_GAUSS_X, _GAUSS_W, strict=True):
             t = ad + half * (1.0 + xi)

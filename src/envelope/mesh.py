@@ -21,6 +21,7 @@ class Mesh:
 
     span: np.ndarray  # int: span index of each element (0-based)
     start: np.ndarray  # element start, span-local
+    end: np.ndarray  # element end, span-local: exactly the stretch's end
     length: np.ndarray
     EI: np.ndarray
     x0: np.ndarray  # element start, global (from the left end of span 1)
@@ -43,7 +44,7 @@ class Mesh:
 
 def build_mesh(beam: Beam) -> Mesh:
     """One element per stretch of constant section in every span."""
-    span, start, length, ei, x0 = [], [], [], [], []
+    span, start, end, length, ei, x0 = [], [], [], [], [], []
     joint_node = [0]
     span_first, span_count = [], []
     x_left = 0.0
@@ -52,6 +53,7 @@ def build_mesh(beam: Beam) -> Mesh:
         for st in sp.stretches:
             span.append(j)
             start.append(st.start)
+            end.append(st.end)
             length.append(st.end - st.start)
             ei.append(st.section.EI)
             x0.append(x_left + st.start)
@@ -61,6 +63,7 @@ def build_mesh(beam: Beam) -> Mesh:
     return Mesh(
         span=np.asarray(span, dtype=np.int64),
         start=np.asarray(start, dtype=float),
+        end=np.asarray(end, dtype=float),
         length=np.asarray(length, dtype=float),
         EI=np.asarray(ei, dtype=float),
         x0=np.asarray(x0, dtype=float),
