@@ -114,5 +114,9 @@ def plot(folder: str, output: str | None) -> None:
     click.echo(f"wrote {path}")
 
 
+from envelope.batch import batch as _batch_command  # noqa: E402
+
+main.add_command(_batch_command)
+
 if __name__ == "__main__":
     main()

@@ -47,8 +47,11 @@ def _supports(ax, joint_x: np.ndarray, kinds: list[str], y: float, size: float) 
 
 
 def _label_peak(ax, x: float, y: float, text: str, above: bool) -> None:  # type: ignore[no-untyped-def]
+    lo, hi = ax.get_xlim()
+    where = (x - lo) / (hi - lo) if hi > lo else 0.5
+    ha = "left" if where < 0.06 else "right" if where > 0.94 else "center"  # keep inside
     ax.annotate(text, (x, y), xytext=(0, 9 if above else -9), textcoords="offset points",
-                ha="center", va="bottom" if above else "top", fontsize=7.5,
+                ha=ha, va="bottom" if above else "top", fontsize=7.5,
                 bbox={"boxstyle": "round,pad=0.2", "fc": "white", "ec": "none", "alpha": 0.8})
 
 
@@ -84,7 +87,10 @@ def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[s
 
     has_defl = not np.all(np.isnan(_finite(envelope["deflection_max"])))
     n_panels = 3 if has_defl else 2
-    fig = Figure(figsize=(11, 2.7 * n_panels + 0.6), layout="constrained")
+    height = 2.7 * n_panels + 0.6
+    fig = Figure(figsize=(11, height))  # fixed margins: a layout engine costs a redraw
+    fig.subplots_adjust(left=0.085, right=0.985, top=1 - 0.62 / height, bottom=0.5 / height,
+                        hspace=0.14)
     FigureCanvasAgg(fig)
     axes = fig.subplots(n_panels, 1, sharex=True)
     fig.suptitle(title or "Envelopes", fontsize=11, x=0.01, ha="left")
@@ -148,8 +154,8 @@ def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[s
             top.text(mid, 1.02, f"span {j}", transform=top.get_xaxis_transform(),
                      ha="center", va="bottom", fontsize=8.5, color="#444444")
     handles, _ = axes[0].get_legend_handles_labels()
-    fig.legend(handles, ["envelope maximum", "envelope minimum"], loc="outside upper right",
-               fontsize=8, frameon=False, ncol=2)
+    fig.legend(handles, ["envelope maximum", "envelope minimum"], loc="upper right",
+               bbox_to_anchor=(0.985, 1.0), fontsize=8, frameon=False, ncol=2)
     fig.text(0.99, 0.005, "For checking by a licensed engineer; defer to local codes.",
              ha="right", va="bottom", fontsize=7, color="#777777")
     fmt = path.suffix.lstrip(".").lower() or "png"

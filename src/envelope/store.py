@@ -29,6 +29,51 @@ CAUTION = ("Results are for checking by a licensed engineer and defer to local c
 _ENVELOPE_QUANTITIES = (("moment", 1.0), ("shear", 1.0), ("deflection", None))
 
 
+# Column builders straight from buffers: pyarrow's pa.array() imports pandas when it is
+# installed (about 0.4 s at start-up), and these need nothing but numpy.
+
+
+def float_column(values: np.ndarray | list[float], null: np.ndarray | None = None) -> pa.Array:
+    """float64 column; ``null`` marks missing entries (None: none missing)."""
+    data = np.ascontiguousarray(values, dtype=np.float64)
+    if null is None or not np.any(null):
+        return pa.Array.from_buffers(pa.float64(), data.size, [None, pa.py_buffer(data)])
+    valid = np.packbits(~np.asarray(null, dtype=bool), bitorder="little")
+    return pa.Array.from_buffers(pa.float64(), data.size,
+                                 [pa.py_buffer(valid), pa.py_buffer(data)],
+                                 null_count=int(np.count_nonzero(null)))
+
+
+def int_column(values: np.ndarray | list[int]) -> pa.Array:
+    data = np.ascontiguousarray(values, dtype=np.int32)
+    return pa.Array.from_buffers(pa.int32(), data.size, [None, pa.py_buffer(data)])
+
+
+def string_column(values: np.ndarray | list[str], null: np.ndarray | None = None) -> pa.Array:
+    """UTF-8 string column from Python strings; ``null`` marks missing entries."""
+    encoded = [str(v).encode() for v in values]
+    offsets = np.zeros(len(encoded) + 1, dtype=np.int64)
+    np.cumsum([len(e) for e in encoded], out=offsets[1:])
+    data = b"".join(encoded)
+    bufs = [None, pa.py_buffer(offsets), pa.py_buffer(data)]
+    count = 0
+    if null is not None and np.any(null):
+        bufs[0] = pa.py_buffer(np.packbits(~np.asarray(null, dtype=bool), bitorder="little"))
+        count = int(np.count_nonzero(null))
+    return pa.Array.from_buffers(pa.large_string(), len(encoded), bufs,
+                                 null_count=count).cast(pa.string())
+
+
+def repeated_string(value: str, n: int) -> pa.Array:
+    """A string column holding one value n times (the beam id)."""
+    return pa.DictionaryArray.from_arrays(int_column(np.zeros(n)), string_column([value])
+                                          ).cast(pa.string())
+
+
+def make_table(cols: Mapping[str, pa.Array]) -> pa.Table:
+    return pa.Table.from_arrays(list(cols.values()), names=list(cols.keys()))
+
+
 def _metadata(analysis: Analysis) -> dict[bytes, bytes]:
     beam = analysis.beam
     return {
@@ -48,8 +93,8 @@ def _extreme_columns(prefix: str, ext: Extremes | None, cs: CaseSet, n: int,
     """``<prefix>_max``, ``_min`` and their ``_combo`` / ``_loaded`` columns (null where the
     set is empty or ``mask`` is False)."""
     if ext is None:
-        null_f = pa.nulls(n, pa.float64())
-        null_s = pa.nulls(n, pa.string())
+        null_f = float_column(np.zeros(n), np.ones(n, dtype=bool))
+        null_s = string_column([""] * n, np.ones(n, dtype=bool))
         return {f"{prefix}_max": null_f, f"{prefix}_min": null_f,
                 f"{prefix}_max_combo": null_s, f"{prefix}_max_loaded": null_s,
                 f"{prefix}_min_combo": null_s, f"{prefix}_min_loaded": null_s}
@@ -57,10 +102,10 @@ def _extreme_columns(prefix: str, ext: Extremes | None, cs: CaseSet, n: int,
     valid = None if mask is None else ~np.asarray(mask, dtype=bool)
 
     def f(v: np.ndarray) -> pa.Array:
-        return pa.array(v * scale, pa.float64(), mask=valid)
+        return float_column(v * scale, valid)
 
     def s(v: np.ndarray) -> pa.Array:
-        return pa.array(list(v), pa.string(), mask=valid)
+        return string_column(list(v), valid)
 
     return {f"{prefix}_max": f(ext.max), f"{prefix}_min": f(ext.min),
             f"{prefix}_max_combo": s(names[ext.max_combo]),
@@ -74,18 +119,18 @@ def envelope_table(analysis: Analysis) -> pa.Table:
     pts = analysis.stations
     beam = analysis.beam
     cols: dict[str, pa.Array] = {
-        "beam": pa.array([beam.id] * pts.n, pa.string()),
-        "span": pa.array(pts.span + 1, pa.int32()),
-        "x": pa.array(pts.x, pa.float64()),
-        "x_span": pa.array(pts.x_span, pa.float64()),
-        "side": pa.array(np.where(pts.right, "right", "left"), pa.string()),
+        "beam": repeated_string(beam.id, pts.n),
+        "span": int_column(pts.span + 1),
+        "x": float_column(pts.x),
+        "x_span": float_column(pts.x_span),
+        "side": string_column(np.where(pts.right, "right", "left")),
     }
     solved = analysis.solved
     for q, scale in _ENVELOPE_QUANTITIES:
         cs = solved.strength if q != "deflection" else solved.service
         factor = scale if scale is not None else beam.units.deflection_factor
         cols.update(_extreme_columns(q, analysis.envelope[q], cs, pts.n, factor))
-    return pa.table(cols).replace_schema_metadata(_metadata(analysis))
+    return make_table(cols).replace_schema_metadata(_metadata(analysis))
 
 
 def reactions_table(analysis: Analysis) -> pa.Table:
@@ -96,10 +141,10 @@ def reactions_table(analysis: Analysis) -> pa.Table:
     solved = analysis.solved
     rot = np.array([beam.supports[j].restrains_rotation for j in joints], dtype=bool)
     cols: dict[str, pa.Array] = {
-        "beam": pa.array([beam.id] * n, pa.string()),
-        "support": pa.array(joints + 1, pa.int32()),
-        "x": pa.array(np.asarray(beam.joint_x)[joints], pa.float64()),
-        "type": pa.array([beam.supports[j].kind for j in joints], pa.string()),
+        "beam": repeated_string(beam.id, n),
+        "support": int_column(joints + 1),
+        "x": float_column(np.asarray(beam.joint_x)[joints]),
+        "type": string_column([beam.supports[j].kind for j in joints]),
     }
     cols.update(_extreme_columns("reaction", analysis.reactions["reaction"],
                                  solved.strength, n, 1.0))
@@ -108,8 +153,8 @@ def reactions_table(analysis: Analysis) -> pa.Table:
     cols.update(_extreme_columns("support_moment", analysis.reactions["support_moment"],
                                  solved.strength, n, 1.0, mask=rot))
     for i, case in enumerate(beam.cases):
-        cols[f"unfactored_{case.name}"] = pa.array(analysis.unfactored[:, i], pa.float64())
-    return pa.table(cols).replace_schema_metadata(_metadata(analysis))
+        cols[f"unfactored_{case.name}"] = float_column(analysis.unfactored[:, i])
+    return make_table(cols).replace_schema_metadata(_metadata(analysis))
 
 
 def design_table(analysis: Analysis) -> pa.Table:
@@ -121,11 +166,11 @@ def design_table(analysis: Analysis) -> pa.Table:
 
     def col(key: str, scale: float = 1.0) -> pa.Array:
         v = np.asarray(d[key], dtype=float)
-        return pa.array(v * scale, pa.float64(), mask=np.isnan(v))
+        return float_column(v * scale, np.isnan(v))
 
     cols = {
-        "beam": pa.array([beam.id] * n, pa.string()),
-        "span": pa.array(np.arange(1, n + 1), pa.int32()),
+        "beam": repeated_string(beam.id, n),
+        "span": int_column(np.arange(1, n + 1)),
         "length": col("length"),
         "moment_pos": col("moment_pos"),
         "moment_pos_x": col("moment_pos_x"),
@@ -139,7 +184,7 @@ def design_table(analysis: Analysis) -> pa.Table:
         "deflection_live": col("deflection_live", defl),
         "span_over_deflection": col("span_over_deflection"),
     }
-    return pa.table(cols).replace_schema_metadata(_metadata(analysis))
+    return make_table(cols).replace_schema_metadata(_metadata(analysis))
 
 
 def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
@@ -151,10 +196,8 @@ def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
         sources = {c.name: c.source for c in cs.combinations}
         for r in cs.case_rows(explicit=all_cases):
             rows.append({"set": name, **r, "source": sources[r["combination"]]})
-    schema = pa.schema([("set", pa.string()), ("combination", pa.string()),
-                        ("loaded", pa.string()), ("factors", pa.string()),
-                        ("source", pa.string())])
-    table = pa.Table.from_pylist(rows, schema=schema)
+    names = ("set", "combination", "loaded", "factors", "source")
+    table = make_table({k: string_column([r[k] for r in rows]) for k in names})
     return table.replace_schema_metadata(_metadata(analysis))
 
 
@@ -176,8 +219,9 @@ def write_stations(path: Path, analysis: Analysis) -> None:
         with pq.ParquetWriter(fh, schema) as writer:
             for block in explicit_case_blocks(analysis):
                 n = block["case"].size
-                cols = [pa.array(np.full(n, beam_id, dtype=object), pa.string())]
-                cols += [pa.array(block[f.name], f.type) for f in list(STATIONS_SCHEMA)[1:]]
+                cols = [repeated_string(beam_id, n), int_column(block["case"]),
+                        int_column(block["span"])]
+                cols += [float_column(block[f.name]) for f in list(STATIONS_SCHEMA)[3:]]
                 part = pa.Table.from_arrays(cols, schema=schema)
                 check_finite(part, str(path))
                 writer.write_table(part, row_group_size=config.STATIONS_ROW_GROUP)

@@ -1,0 +1,125 @@
+"""Member sizing from the envelopes: one row per design section of every span.
+
+:func:`size` returns the sizing.parquet columns as arrays in output units: lengths along
+the beam m / ft, moments kN*m / kip*ft, forces kN / kip, deflections mm / in, section
+quantities in section units (mm, mm^2, mm^3, mm^4, mm^2/mm / in, in^2, in^3, in^4,
+in^2/in); :func:`size_with_units` also names the unit of every column.  Rows: for each span
+``left`` (the left support face), ``span`` (the largest sagging moment), ``right``.
+
+- concrete, ACI 318-19: :mod:`envelope.sizing.concrete_aci`;
+- concrete, EN 1992-1-1: :mod:`envelope.sizing.concrete_en`;
+- steel, AISC 360-22: :mod:`envelope.sizing.steel_aisc`;
+- deflection limits for every material: :mod:`envelope.sizing.deflection` (on span rows);
+- hogging and sagging extents per span: :func:`extents` (on span rows).
+
+``status`` is ``ok`` or every reason the row fails, each with the amount; ``note`` says
+what governs.  Sizing is a first check for a licensed engineer, not a design.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from envelope.errors import CaseError
+from envelope.results import Analysis
+from envelope.sizing import deflection
+from envelope.sizing.concrete import size_concrete
+from envelope.sizing.extents import EXTENT_KEYS, extents
+from envelope.sizing.layout import Sized
+from envelope.sizing.steel import size_steel
+
+__all__ = ["extents", "size", "size_with_units"]
+
+#: Units of the columns that do not depend on the material (by quantity label key).
+COLUMN_UNITS = {"x_span": "length", "x": "length", "moment_design": "moment",
+                "shear_design": "force", "shear_x_span": "length",
+                "deflection_live": "deflection", "deflection_total": "deflection",
+                "deflection_live_allowed": "deflection",
+                "deflection_total_allowed": "deflection",
+                **{k: "length" for k in EXTENT_KEYS}}
+
+DEFLECTION_NOTE = ("deflections of the gross section as analysed (no cracking, creep or "
+                   "shrinkage)")
+
+
+def _deflection_failures(sized: Sized, defl: dict[str, np.ndarray], live: np.ndarray,
+                         total: np.ndarray, limits: dict[str, float], unit: str,
+                         factor: float) -> None:
+    """Concrete: the analysed deflections against their limits, on span rows."""
+    for i in np.flatnonzero(sized.rows.is_span):
+        j = int(sized.rows.span[i])
+        sized.notes[i].append(DEFLECTION_NOTE)
+        for kind, value, allowed, util in (
+                ("live-load", live[j], defl["allowed_live"][j], defl["utilisation_live"][j]),
+                ("total-load", total[j], defl["allowed_total"][j],
+                 defl["utilisation_total"][j])):
+            if util > 1.0:
+                limit = limits["live" if kind == "live-load" else "total"]
+                sized.failures[i].append(
+                    f"{kind} deflection {value * factor:.2f} {unit} exceeds span/{limit:g} = "
+                    f"{allowed * factor:.2f} {unit} by {100.0 * (util - 1.0):.1f}%")
+
+
+def size(analysis: Analysis) -> dict[str, np.ndarray]:
+    """The sizing.parquet columns (see the module docstring); the beam must have a
+    ``[design]`` table.  Raises :class:`envelope.errors.CaseError` for a sections table
+    that cannot be read."""
+    return size_with_units(analysis)[0]
+
+
+def size_with_units(analysis: Analysis) -> tuple[dict[str, np.ndarray], dict[str, str]]:
+    """:func:`size`, and the unit of each column that has one (column -> unit text)."""
+    beam = analysis.beam
+    design = beam.design
+    if design is None:
+        raise ValueError(f"{beam.source}: no [design] table, nothing to size")
+    if analysis.envelope["moment"] is None:
+        raise CaseError(beam.source, "design", "member sizing needs strength combinations, "
+                                               "and [combinations] gives none")
+    d = analysis.design
+    limits = deflection.limits(design)
+    ell = deflection.ratio_lengths(beam)
+    live, total = d["deflection_live"], d["deflection_max"]
+    defl = deflection.check(ell, live, total, limits["live"], limits["total"])
+    factor = beam.units.deflection_factor
+    if design["material"] == "steel":
+        sized = size_steel(analysis, defl)
+    else:
+        sized = size_concrete(analysis)
+        _deflection_failures(sized, defl, live, total, limits, beam.units.labels["deflection"],
+                             factor)
+    rows = sized.rows
+    n = rows.n
+    mid = rows.is_span
+    if np.all(np.isnan(total)):
+        for i in np.flatnonzero(mid):
+            sized.notes[i].append("no service combinations: total-load deflection not "
+                                  "checked (live-load deflection is)")
+    by_span = {"deflection_live": live * factor, "deflection_total": total * factor,
+               "deflection_live_allowed": defl["allowed_live"] * factor,
+               "deflection_total_allowed": defl["allowed_total"] * factor,
+               **extents(analysis)}
+    on_span = {k: np.where(mid, np.repeat(v, 3), np.nan) for k, v in by_span.items()}
+    if design["material"] != "steel":
+        on_span["utilisation_deflection"] = np.where(mid, np.repeat(defl["utilisation"], 3),
+                                                     np.nan)
+    joint_x = np.asarray(beam.joint_x)
+    out: dict[str, np.ndarray] = {
+        "beam": np.full(n, beam.id, dtype=object),
+        "span": rows.span + 1,
+        "section": rows.section,
+        "x_span": rows.x_span,
+        "x": joint_x[rows.span] + rows.x_span,
+        "moment_design": rows.moment,
+        "shear_design": rows.shear,
+        "shear_x_span": rows.shear_x_span,
+        **sized.columns,
+        **on_span,
+        "note": np.array(["; ".join(v) for v in sized.notes], dtype=object),
+        "status": np.array(["; ".join(v) if v else "ok" for v in sized.failures],
+                           dtype=object),
+    }
+    labels = beam.units.labels
+    units = {k: labels[q] for k, q in COLUMN_UNITS.items()}
+    units.update(sized.units)
+    return out, {k: units[k] for k in out if k in units}

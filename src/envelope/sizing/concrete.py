@@ -1,0 +1,252 @@
+"""Sizing columns of a reinforced concrete beam (ACI 318-19 or EN 1992-1-1).
+
+Turns the design rows (:mod:`envelope.sizing.layout`) and the ``[design]`` table into
+arrays in output units: areas mm^2 / in^2, depths mm / in, Av/s mm^2/mm / in^2/in,
+moments kN*m / kip*ft, forces kN / kip.  Each row gets ``notes`` (what governs) and
+``failures`` (what fails and by how much); :mod:`envelope.sizing` joins them into the
+``note`` and ``status`` columns.
+
+Tension steel for shear (rho_w, rho_l) at an end is the design steel of that face where
+it hogs; where it does not (a pinned end), a quarter of the span's design bottom steel,
+the least that reaches a support (ACI 318-19 9.7.3.8.1; EN 1992-1-1 9.2.1.4(1) with the
+recommended beta_2 = 0.25), so that the shear strength of the concrete is not overstated.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from envelope.results import Analysis
+from envelope.sizing import concrete_aci as aci
+from envelope.sizing import concrete_en as en
+from envelope.sizing.layout import (
+    ACI_SCALES,
+    EN_SCALES,
+    FACE_REASONS,
+    SECTION_UNITS,
+    Rows,
+    Sized,
+    design_rows,
+    section_to_consistent,
+)
+
+
+def _pct(demand: float, capacity: float) -> str:
+    return f"{100.0 * (demand / capacity - 1.0):.1f}%"
+
+
+def _fmt(v: float) -> str:
+    return f"{v:.4g}" if abs(v) < 1e4 else f"{v:.4e}"
+
+
+def _end_steel(rows: Rows, as_des: np.ndarray) -> np.ndarray:
+    """Tension steel for shear at each row (see the module docstring); NaN on span rows."""
+    span_steel = np.repeat(as_des[rows.is_span], 3)
+    steel = np.where(as_des > 0, as_des, aci.BOTTOM_BARS_AT_END * span_steel)
+    return np.where(rows.is_end, np.nan_to_num(steel), np.nan)
+
+
+def size_concrete(analysis: Analysis) -> Sized:
+    """Columns, units, notes and failures of every design row of a concrete beam."""
+    beam = analysis.beam
+    design = beam.design
+    assert design is not None and design["material"] == "concrete"
+    b = float(design["b"])
+    h = float(design["h"])
+    d = h - float(design["cover_to_bar_centre"])
+    rows = design_rows(analysis, at_faces=True, shear_shift=d * section_to_consistent(beam))
+    tee = "flange_width" in design
+    sag = rows.is_span & tee
+    bf = np.where(sag, float(design.get("flange_width", b)), b)
+    hf = np.where(sag, float(design.get("flange_depth", 0.0)), 0.0)
+    notes: list[list[str]] = [[] for _ in range(rows.n)]
+    failures: list[list[str]] = [[] for _ in range(rows.n)]
+    for i in range(rows.n):
+        if rows.moment[i] == 0.0:
+            kind = "sagging moment in this span" if rows.is_span[i] else \
+                "hogging moment at this face"
+            notes[i].append(f"no {kind}: no tension steel required")
+    if design["code"] == "aci318-19":
+        cols, units = _aci(analysis, rows, b, d, bf, hf, notes, failures)
+    else:
+        cols, units = _en(analysis, rows, b, h, d, bf, hf, notes, failures)
+    for i, why in enumerate(rows.face_reason):
+        if why:
+            notes[i].append(f"shear taken at the face: {FACE_REASONS[why]}")
+    su = SECTION_UNITS[beam.units.name]
+    base = {"b": np.full(rows.n, b), "h": np.full(rows.n, h), "d": np.full(rows.n, d)}
+    units.update({k: su["length"] for k in base})
+    return Sized(rows, {**base, **cols}, units, notes, failures)
+
+
+def _aci(analysis: Analysis, rows: Rows, b: float, d: float, bf: np.ndarray,
+         hf: np.ndarray, notes: list[list[str]], failures: list[list[str]]
+         ) -> tuple[dict[str, np.ndarray], dict[str, str]]:
+    beam = analysis.beam
+    design = beam.design
+    assert design is not None
+    system = beam.units.name
+    s = ACI_SCALES[system]
+    u = beam.units.labels
+    su = SECTION_UNITS[system]
+    fc, fy = float(design["fc"]) * s.stress, float(design["fy"]) * s.stress
+    fyt = float(design.get("stirrup_fy", design["fy"])) * s.stress
+    mu = np.abs(rows.moment) * s.moment
+    fl = aci.flexure(mu, b, d, fc, fy, system, bf, hf)
+    as_min = np.where(rows.moment != 0.0, aci.as_min(b, d, fc, fy, system), 0.0)
+    as_des = aci.as_design(fl["as_required"], as_min)
+    cap = aci.capacity(np.nan_to_num(as_des), b, d, fc, fy, system, bf, hf)
+    too_small = fl["too_small"]
+    phi_mn = np.where(too_small, fl["phi_mn_max"], cap["phi_mn"]) / s.moment
+
+    for i in range(rows.n):
+        if too_small[i]:
+            failures[i].append(
+                f"section too small for singly reinforced design: Mu = "
+                f"{mu[i] / s.moment:.1f} {u['moment']} exceeds the largest phiMn = "
+                f"{phi_mn[i]:.1f} {u['moment']} with eps_t >= 0.004 (ACI 318-19 9.3.3.1) "
+                f"by {_pct(mu[i], fl['phi_mn_max'][i])}; deepen or widen the section, "
+                f"raise f'c, or add compression steel")
+            continue
+        if rows.moment[i] == 0.0:
+            continue
+        if as_min[i] > fl["as_required"][i]:
+            if as_des[i] >= as_min[i]:
+                notes[i].append("minimum steel governs (ACI 318-19 9.6.1.2)")
+            else:
+                notes[i].append("4/3 of the required steel governs, below the 9.6.1.2 "
+                                "minimum (ACI 318-19 9.6.1.3)")
+        if cap["phi"][i] < aci.PHI_TENSION_CONTROLLED - 1e-9:
+            notes[i].append(f"transition zone: phi = {cap['phi'][i]:.3f} "
+                            f"(ACI 318-19 Table 21.2.2)")
+        if rows.is_span[i] and bf[i] > b:
+            where = "within" if cap["block_in_flange"][i] else "below"
+            notes[i].append(f"T-section: stress block {where} the flange")
+
+    ends = rows.is_end
+    steel = _end_steel(rows, np.nan_to_num(as_des))
+    vu = np.where(ends, rows.shear, 0.0) * s.force
+    sh = aci.shear(vu, b, d, fc, fyt, steel / (b * d), system)
+    for i in np.flatnonzero(ends):
+        if sh["too_small"][i]:
+            limit = aci.PHI_SHEAR * (sh["vc"][i] + sh["vs_limit"][i]) / s.force
+            failures[i].append(
+                f"section too small for shear: Vu = {rows.shear[i]:.1f} {u['force']} "
+                f"exceeds phi(Vc + Vs,max) = {limit:.1f} {u['force']} (ACI 318-19 22.5.1.2) "
+                f"by {_pct(rows.shear[i], limit)}; widen or deepen the section")
+        elif not sh["needs_stirrups"][i]:
+            notes[i].append("no stirrups needed: Vu <= phi Vc without them (Table "
+                            "22.5.5.1(c)) and Vu <= phi lambda sqrt(f'c) bw d (ACI 318-19 "
+                            "9.6.3.1)")
+        elif sh["av_over_s_required"][i] <= sh["av_over_s_min"][i]:
+            notes[i].append("minimum stirrups govern (ACI 318-19 Table 9.6.3.4)")
+        if sh["tight"][i] and not sh["too_small"][i]:
+            notes[i].append("stirrup spacing limits halved: Vs > 4 sqrt(f'c) bw d "
+                            "(ACI 318-19 9.7.6.2.2)")
+    end_only = np.where(ends, 1.0, np.nan)
+    return {
+        "beta1": fl["beta1"],
+        "a": np.where(too_small, np.nan, cap["a"]),
+        "as_required": fl["as_required"], "as_min": as_min, "as_max": fl["as_max"],
+        "as_design": as_des,
+        "phi": np.where(too_small, np.nan, cap["phi"]),
+        "eps_t": np.where(too_small, np.nan, cap["eps_t"]),
+        "phiMn": phi_mn,
+        "Vc": sh["vc"] / s.force * end_only,
+        "phiVc": aci.PHI_SHEAR * sh["vc"] / s.force * end_only,
+        "av_over_s_min": sh["av_over_s_min"] * end_only,
+        "av_over_s_required": sh["av_over_s_required"] * end_only,
+        "s_max": sh["s_max"] * end_only,
+    }, {"a": su["length"], "as_required": su["area"], "as_min": su["area"],
+        "as_max": su["area"], "as_design": su["area"], "phiMn": u["moment"],
+        "Vc": u["force"], "phiVc": u["force"], "av_over_s_min": su["area_per_length"],
+        "av_over_s_required": su["area_per_length"], "s_max": su["length"]}
+
+
+def _en(analysis: Analysis, rows: Rows, b: float, h: float, d: float, bf: np.ndarray,
+        hf: np.ndarray, notes: list[list[str]], failures: list[list[str]]
+        ) -> tuple[dict[str, np.ndarray], dict[str, str]]:
+    beam = analysis.beam
+    design = beam.design
+    assert design is not None
+    system = beam.units.name
+    s = EN_SCALES[system]
+    u = beam.units.labels
+    su = SECTION_UNITS[system]
+    L = s.length
+    fck, fyk = float(design["fc"]) * s.stress, float(design["fy"]) * s.stress
+    fywk = float(design.get("stirrup_fy", design["fy"])) * s.stress
+    m = np.abs(rows.moment) * s.moment
+    bm, dm, hm = b * L, d * L, h * L
+    # T-section: the flange width where the block (depth 0.8x) stays in the flange,
+    # else the web alone (on the safe side: the rectangular method does not cover it)
+    width = bf * L
+    fl = en.flexure(m, width, dm, fck, fyk)
+    inside = 0.8 * fl["x"] <= hf * L
+    use_web = (bf > b) & ~inside
+    width = np.where(use_web, bm, width)
+    fl = en.flexure(m, width, dm, fck, fyk)
+    as_min = np.where(rows.moment != 0.0, en.as_min(bm, dm, fck, fyk), 0.0)
+    as_req = fl["as_required"]
+    as_des = np.where(as_req > 0, np.maximum(as_req, as_min),
+                      np.where(as_req == 0, 0.0, np.nan))
+    res = en.resistance(np.nan_to_num(as_des), width, dm, fck, fyk)
+    too_small = fl["too_small"]
+    as_max = np.full(rows.n, float(en.as_max(bm, hm)))
+    for i in range(rows.n):
+        if too_small[i]:
+            failures[i].append(
+                f"section too small for singly reinforced design: K = {fl['K'][i]:.3f} "
+                f"exceeds K' = {en.K_LIM} by {_pct(fl['K'][i], en.K_LIM)} (M = "
+                f"{m[i] / s.moment:.1f} {u['moment']} > K' b d^2 fck = "
+                f"{fl['m_lim'][i] / s.moment:.1f} {u['moment']}); deepen or widen the "
+                f"section, raise fck, or add compression steel")
+            continue
+        if rows.moment[i] == 0.0:
+            continue
+        if as_des[i] > as_max[i]:
+            failures[i].append(
+                f"tension steel {_fmt(as_des[i] * s.area)} {su['area']} exceeds 0.04 Ac = "
+                f"{_fmt(as_max[i] * s.area)} {su['area']} (EN 1992-1-1 9.2.1.1(3)) by "
+                f"{_pct(as_des[i], as_max[i])}")
+        if as_min[i] > as_req[i]:
+            notes[i].append("minimum steel governs (EN 1992-1-1 9.2.1.1(1))")
+        if rows.is_span[i] and bf[i] > b:
+            notes[i].append("T-section: stress block within the flange" if not use_web[i]
+                            else "T-section: stress block below the flange, web alone used "
+                                 "(rectangular method)")
+    ends = rows.is_end
+    steel = _end_steel(rows, np.nan_to_num(as_des))
+    ved = np.where(ends, rows.shear, 0.0) * s.force
+    sh = en.shear(ved, bm, dm, fck, fywk, steel / (bm * dm))
+    for i in np.flatnonzero(ends):
+        if sh["too_small"][i]:
+            limit = sh["vrd_max"][i] / s.force
+            failures[i].append(
+                f"section too small for shear: VEd = {rows.shear[i]:.1f} {u['force']} "
+                f"exceeds VRd,max = {limit:.1f} {u['force']} at cot(theta) = 1 (EN 1992-1-1 "
+                f"6.2.3(3)) by {_pct(rows.shear[i], limit)}; widen or deepen the section")
+        elif not sh["needs_calculated"][i]:
+            notes[i].append("VEd <= VRd,c: minimum links only (EN 1992-1-1 9.2.2(5))")
+        elif sh["av_over_s_required"][i] <= sh["av_over_s_min"][i]:
+            notes[i].append("minimum links govern (EN 1992-1-1 9.2.2(5))")
+    end_only = np.where(ends, 1.0, np.nan)
+    ok = ~too_small
+    return {
+        "K": fl["K"], "K_lim": np.full(rows.n, en.K_LIM),
+        "z": np.where(ok & (rows.moment != 0.0), fl["z"], np.nan) / L,
+        "as_required": as_req * s.area, "as_min": as_min * s.area, "as_max": as_max * s.area,
+        "as_design": as_des * s.area,
+        "phi": np.full(rows.n, np.nan),
+        "eps_t": np.where(ok, res["eps_s"], np.nan),
+        "MRd": np.where(ok, res["m_rd"] / s.moment, np.nan),
+        "VRdc": sh["vrdc"] / s.force * end_only,
+        "cot_theta": sh["cot_theta"] * end_only,
+        # mm^2/mm -> in^2/in is area / length: s.area * L
+        "av_over_s_min": sh["av_over_s_min"] * s.area * L * end_only,
+        "av_over_s_required": sh["av_over_s_required"] * s.area * L * end_only,
+        "s_max": sh["s_max"] / L * end_only,
+    }, {"z": su["length"], "as_required": su["area"], "as_min": su["area"],
+        "as_max": su["area"], "as_design": su["area"], "MRd": u["moment"],
+        "VRdc": u["force"], "av_over_s_min": su["area_per_length"],
+        "av_over_s_required": su["area_per_length"], "s_max": su["length"]}

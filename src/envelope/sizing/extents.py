@@ -1,0 +1,123 @@
+"""Extents of the hogging and sagging regions of each span, from the strength envelope,
+for detailing the cut-off of top and bottom bars.
+
+Per span (x_span measured from the span's left support centreline, consistent length):
+
+- ``hogging_left_extent``: from the left support to the last point of the hogging region
+  that starts there (where the envelope minimum rises to zero); 0 where there is no
+  hogging next to the support, the span length where the envelope can hog over the whole
+  span (a zero moment at a pin or a free tip counts as part of the region beside it);
+- ``hogging_right_extent``: the same measured back from the right support;
+- ``sagging_start``, ``sagging_end``: the first and last x_span where the envelope
+  maximum is sagging (NaN where the span never sags).
+
+Crossings are bracketed on a grid of the stations plus ``samples`` equal steps, then
+bisected on the envelope itself (evaluated exactly at any point) to
+:data:`envelope.config.DESIGN_XTOL` of the span length.  Moments below
+:data:`envelope.config.ZERO_RTOL` of the largest are round-off, not hogging or sagging.
+These are the points of zero moment only: bar extensions beyond them (development
+length, d or 12 db) are the detailer's.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from envelope import config
+from envelope.analysis import envelope_at
+from envelope.recovery import make_points
+from envelope.results import Analysis
+
+EXTENT_KEYS = ("hogging_left_extent", "hogging_right_extent", "sagging_start", "sagging_end")
+
+
+def _envelope(analysis: Analysis, span: np.ndarray, x: np.ndarray,
+              length: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    right = x < length  # the left-side limit at the span's right end
+    ext = envelope_at(analysis.solved, make_points(analysis.beam, span, x, right), "moment",
+                      labels=False)
+    assert ext is not None
+    return ext.max, ext.min
+
+
+def extents(analysis: Analysis, samples: int = 200) -> dict[str, np.ndarray]:
+    """Hogging and sagging extents per span (see the module docstring); consistent
+    length units; all NaN where there is no strength set."""
+    beam = analysis.beam
+    n = beam.n_spans
+    out = {k: np.full(n, np.nan) for k in EXTENT_KEYS}
+    env = analysis.envelope["moment"]
+    if env is None:
+        return out
+    tol = config.ZERO_RTOL * max(float(np.abs(env.max).max()), float(np.abs(env.min).max()),
+                                 np.finfo(float).tiny)
+    lengths = np.array([s.length for s in beam.spans])
+    pts = analysis.stations
+    grids = []
+    for j, L in enumerate(lengths):
+        grids.append(np.unique(np.r_[np.linspace(0.0, L, samples + 1),
+                                     pts.x_span[pts.span == j]]))
+    span_all = np.concatenate([np.full(g.size, j) for j, g in enumerate(grids)])
+    x_all = np.concatenate(grids)
+    mmax, mmin = _envelope(analysis, span_all, x_all, lengths[span_all])
+
+    # brackets where the predicate ("hogging" or "sagging") changes between lo and hi
+    brackets: list[tuple[int, str, float, float, bool]] = []
+    for j, L in enumerate(lengths):
+        rows = span_all == j
+        x, neg, pos = x_all[rows], mmin[rows] < -tol, mmax[rows] > tol
+        # a support moment of round-off zero (a pin, a free tip) belongs to the region
+        # next to it, so that a region reaching the end starts exactly there
+        for v, flags in ((mmin[rows], neg), (mmax[rows], pos)):
+            for end, inner in ((0, 1), (-1, -2)):
+                if abs(v[end]) <= tol:
+                    flags[end] = flags[inner]
+        if not neg[0]:
+            out["hogging_left_extent"][j] = 0.0
+        elif neg.all():
+            out["hogging_left_extent"][j] = L
+        else:
+            k = int(np.argmin(neg))
+            brackets.append((j, "hogging_left_extent", x[k - 1], x[k], True))
+        if not neg[-1]:
+            out["hogging_right_extent"][j] = 0.0
+        elif neg.all():
+            out["hogging_right_extent"][j] = L
+        else:
+            k = int(np.flatnonzero(~neg)[-1])
+            brackets.append((j, "hogging_right_extent", x[k], x[k + 1], True))
+        if pos.any():
+            first, last = np.flatnonzero(pos)[[0, -1]]
+            if first == 0:
+                out["sagging_start"][j] = 0.0
+            else:
+                brackets.append((j, "sagging_start", x[first - 1], x[first], False))
+            if last == x.size - 1:
+                out["sagging_end"][j] = L
+            else:
+                brackets.append((j, "sagging_end", x[last], x[last + 1], False))
+    if not brackets:
+        return out
+
+    span = np.array([b[0] for b in brackets])
+    lo = np.array([b[2] for b in brackets])
+    hi = np.array([b[3] for b in brackets])
+    is_neg = np.array([b[4] for b in brackets])
+    L = lengths[span]
+
+    def predicate(x: np.ndarray) -> np.ndarray:
+        vmax, vmin = _envelope(analysis, span, x, L)
+        return np.where(is_neg, vmin < -tol, vmax > tol)
+
+    p_lo = predicate(lo)
+    for _ in range(200):
+        if np.all(hi - lo <= config.DESIGN_XTOL * L):
+            break
+        mid = 0.5 * (lo + hi)
+        same = predicate(mid) == p_lo
+        lo = np.where(same, mid, lo)
+        hi = np.where(same, hi, mid)
+    crossing = 0.5 * (lo + hi)
+    for i, (j, key, *_) in enumerate(brackets):
+        out[key][j] = lengths[j] - crossing[i] if key == "hogging_right_extent" else crossing[i]
+    return out

@@ -1,0 +1,106 @@
+"""The user's own table of steel sections (CSV), read and checked once.
+
+Header ``name,Zx,Ix,Aw,weight`` (any order, each once); one section per row in the case's
+section units: Zx mm^3 / in^3, Ix mm^4 / in^4, Aw mm^2 / in^2, weight in any consistent
+unit (only the order matters).  Blank lines and lines starting with ``#`` are skipped.
+The path in ``[design] sections`` is relative to the case file.  Bad content raises
+:class:`envelope.errors.CaseError` naming the CSV file, the line and column, and the
+problem.
+"""
+
+from __future__ import annotations
+
+import csv
+import math
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from envelope.errors import CaseError
+from envelope.model import Beam
+
+COLUMNS = ("name", "Zx", "Ix", "Aw", "weight")
+
+
+@dataclass(frozen=True, slots=True)
+class SectionTable:
+    """Steel sections as arrays, in table order; ``source`` is the CSV path as resolved."""
+
+    name: tuple[str, ...]
+    Zx: np.ndarray
+    Ix: np.ndarray
+    Aw: np.ndarray
+    weight: np.ndarray
+    source: str
+
+
+def resolve(beam: Beam, path: str) -> Path:
+    """The CSV path relative to the case file's folder (absolute paths are kept)."""
+    return Path(beam.source).parent / path
+
+
+def read_sections(beam: Beam) -> SectionTable:
+    """Read the CSV named by ``beam.design["sections"]``."""
+    assert beam.design is not None and "sections" in beam.design
+    path = resolve(beam, beam.design["sections"])
+    try:
+        text = path.read_text(encoding="utf-8-sig")
+    except OSError as exc:
+        raise CaseError(beam.source, "design.sections",
+                        f"cannot read the sections table {str(path)!r} "
+                        f"({exc.strerror or type(exc).__name__})") from None
+    except UnicodeDecodeError:
+        raise CaseError(beam.source, "design.sections",
+                        f"the sections table {str(path)!r} is not UTF-8 text") from None
+    return parse_sections(text, str(path))
+
+
+def parse_sections(text: str, source: str) -> SectionTable:
+    """Parse CSV text (``source`` names it in messages)."""
+    rows = [(i, r) for i, r in enumerate(csv.reader(text.splitlines()), start=1)
+            if any(cell.strip() for cell in r) and not r[0].lstrip().startswith("#")]
+    if not rows:
+        raise CaseError(source, "", "the sections table is empty; give a header row "
+                                    "name,Zx,Ix,Aw,weight and one row per section")
+    line, header = rows[0]
+    header = [h.strip() for h in header]
+    for h in header:
+        if h not in COLUMNS:
+            raise CaseError(source, f"line {line}",
+                            f"unknown column {h!r}; the header is name,Zx,Ix,Aw,weight")
+        if header.count(h) > 1:
+            raise CaseError(source, f"line {line}", f"column {h!r} appears twice")
+    missing = [c for c in COLUMNS if c not in header]
+    if missing:
+        raise CaseError(source, f"line {line}",
+                        f"missing column{'s' if len(missing) > 1 else ''} "
+                        f"{', '.join(missing)}; the header is name,Zx,Ix,Aw,weight")
+    if len(rows) == 1:
+        raise CaseError(source, "", "the sections table has a header but no sections")
+    col = {h: k for k, h in enumerate(header)}
+    names: list[str] = []
+    values: dict[str, list[float]] = {c: [] for c in COLUMNS[1:]}
+    for line, row in rows[1:]:
+        if len(row) != len(header):
+            raise CaseError(source, f"line {line}",
+                            f"expected {len(header)} values, got {len(row)}")
+        name = row[col["name"]].strip()
+        if not name:
+            raise CaseError(source, f"line {line}.name", "the name is empty")
+        if name in names:
+            raise CaseError(source, f"line {line}.name", f"section {name!r} appears twice")
+        names.append(name)
+        for c in COLUMNS[1:]:
+            raw = row[col[c]].strip()
+            try:
+                value = float(raw)
+            except ValueError:
+                raise CaseError(source, f"line {line}.{c}",
+                                f"not a number: {raw!r}") from None
+            if not math.isfinite(value) or value <= 0:
+                raise CaseError(source, f"line {line}.{c}",
+                                f"must be a finite number greater than zero, got {raw!r}")
+            values[c].append(value)
+    return SectionTable(tuple(names), *(np.array(values[c]) for c in COLUMNS[1:]),
+                        source=source)

@@ -1,0 +1,121 @@
+"""sizing.parquet as an Arrow table, and the console summary of the sizing.
+
+The table carries the metadata of every result file (:func:`envelope.store._metadata`)
+plus ``envelope:sizing_units`` (JSON: column -> unit) and ``envelope:sizing_code``.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+
+from envelope.results import Analysis
+from envelope.sizing import size_with_units
+from envelope.sizing.layout import SECTION_UNITS
+from envelope.store import _metadata, float_column, int_column, make_table, string_column
+
+SIZING_CAUTION = ("Sizing is a first check for a licensed engineer, not a design: the "
+                  "engineer of record chooses and details the members.")
+
+CODE_TITLES = {"aci318-19": "ACI 318-19", "en1992-1-1": "EN 1992-1-1",
+               "aisc360-22": "AISC 360-22"}
+
+
+def _arrow(name: str, values: np.ndarray):  # type: ignore[no-untyped-def]
+    if values.dtype == object:
+        return string_column(list(values))
+    if name == "span":
+        return int_column(values)
+    v = np.asarray(values, dtype=float)
+    return float_column(v, np.isnan(v))
+
+
+def sizing_table(analysis: Analysis):  # type: ignore[no-untyped-def]  # a pyarrow Table
+    """sizing.parquet: one row per design section (see :mod:`envelope.sizing`); NaN
+    values (a quantity that does not apply to the row) are nulls."""
+    cols, units = size_with_units(analysis)
+    design = analysis.beam.design
+    assert design is not None
+    table = make_table({k: _arrow(k, v) for k, v in cols.items()})
+    meta = _metadata(analysis)
+    meta[b"envelope:sizing_units"] = json.dumps(units).encode()
+    meta[b"envelope:sizing_code"] = design["code"].encode()
+    return table.replace_schema_metadata(meta)
+
+
+def _n(v: float, digits: int = 1) -> str:
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "-"
+    return f"{v:.{digits}f}"
+
+
+def _g(v: float) -> str:
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "-"
+    return f"{v:.4g}"
+
+
+def sizing_summary(analysis: Analysis) -> str:
+    """A fixed-width table, one line per design section, then the extents per span and the
+    closing line that sizing is a first check for a licensed engineer."""
+    beam = analysis.beam
+    design = beam.design
+    assert design is not None
+    cols, _ = size_with_units(analysis)
+    u = beam.units.labels
+    su = SECTION_UNITS[beam.units.name]
+    steel = design["material"] == "steel"
+    code = CODE_TITLES[design["code"]]
+    if steel:
+        name = cols["steel_section"][0]
+        lines = [f"Sizing, {code} steel, Fy = {design['Fy']:g} {su['stress']}: {name}"]
+        head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'Zx req':>10} {'V':>8} "
+                f"{'Aw req':>8} {'Ix req':>10} {'util M':>6} {'util V':>6} {'util d':>6}  status")
+        units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {su['modulus']:>10} "
+                 f"{u['force']:>8} {su['area']:>8} {su['inertia']:>10}")
+    else:
+        fc_name, fy_name = ("f'c", "fy") if design["code"] == "aci318-19" else ("fck", "fyk")
+        shape = (f"T {design['flange_width']:g}x{design['flange_depth']:g} on "
+                 if "flange_width" in design else "")
+        lines = [f"Sizing, {code} concrete: {shape}{design['b']:g} x {design['h']:g} "
+                 f"{su['length']}, d = {design['h'] - design['cover_to_bar_centre']:g} "
+                 f"{su['length']}, {fc_name} = {design['fc']:g}, {fy_name} = "
+                 f"{design['fy']:g} {su['stress']}"]
+        head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'As req':>8} {'As':>8} "
+                f"{'V':>8} {'Av/s':>7} {'s max':>6} {'util d':>6}  status")
+        units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {su['area']:>8} "
+                 f"{su['area']:>8} {u['force']:>8} {su['area_per_length']:>7} "
+                 f"{su['length']:>6}")
+    lines += [head, units]
+    for i in range(cols["span"].size):
+        start = (f"{cols['span'][i]:>4} {cols['section'][i]:<7} {_n(cols['x_span'][i], 2):>7} "
+                 f"{_n(cols['moment_design'][i]):>9} ")
+        if steel:
+            body = (f"{_g(cols['zx_required'][i]):>10} {_n(cols['shear_design'][i]):>8} "
+                    f"{_g(cols['aw_required'][i]):>8} {_g(cols['ix_required'][i]):>10} "
+                    f"{_n(cols['utilisation_moment'][i], 2):>6} "
+                    f"{_n(cols['utilisation_shear'][i], 2):>6} "
+                    f"{_n(cols['utilisation_deflection'][i], 2):>6}")
+        else:
+            body = (f"{_n(cols['as_required'][i], 0 if su['area'] == 'mm2' else 2):>8} "
+                    f"{_n(cols['as_design'][i], 0 if su['area'] == 'mm2' else 2):>8} "
+                    f"{_n(cols['shear_design'][i]):>8} "
+                    f"{_n(cols['av_over_s_required'][i], 3):>7} "
+                    f"{_n(cols['s_max'][i], 0 if su['length'] == 'mm' else 1):>6} "
+                    f"{_n(cols['utilisation_deflection'][i], 2):>6}")
+        lines.append(start + body + f"  {cols['status'][i]}")
+    lines.append(f"Zero-moment extents ({u['length']}): hogging measured from each support, "
+                 f"sagging as x_span from the left support.")
+    mid = np.flatnonzero(cols["section"] == "span")
+    for i in mid:
+        lines.append(f"  span {cols['span'][i]}: hogging {_n(cols['hogging_left_extent'][i], 2)}"
+                     f" from the left, {_n(cols['hogging_right_extent'][i], 2)} from the right;"
+                     f" sagging {_n(cols['sagging_start'][i], 2)} to "
+                     f"{_n(cols['sagging_end'][i], 2)}")
+    lines.append("M: moment at the section (sagging positive); V: shear at the end section; "
+                 "util d: deflection over its limit.  Notes on what governs are in "
+                 "sizing.parquet.")
+    lines.append(SIZING_CAUTION)
+    return "\n".join(lines)
