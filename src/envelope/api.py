@@ -34,6 +34,10 @@ def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = Fa
     if all_cases is None:
         all_cases = result.beam.output.all_cases
     built = store.tables(result, all_cases)
+    if result.beam.design is not None:
+        from envelope.sizing.table import sizing_table
+
+        built["sizing"] = sizing_table(result)
     folder = Path(out) / result.beam.id
     if all_cases:
         store.write_stations(folder / "stations.parquet", result)

@@ -79,6 +79,10 @@ def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | 
         folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
     if not quiet:
         click.echo(span_summary(result))
+        if result.beam.design is not None:
+            from envelope.sizing.table import sizing_summary
+
+            click.echo(sizing_summary(result))
     click.echo(f"wrote {Path(folder)}")
 
 
@@ -92,6 +96,10 @@ def check(cases: tuple[str, ...]) -> None:
     for path in cases:
         try:
             beam = load_case(path)
+            if beam.design and "sections" in beam.design:
+                from envelope.sizing.sections import read_sections
+
+                read_sections(beam)  # the sections table is input too
         except EnvelopeError as exc:
             click.echo(f"error: {exc}", err=True)
             bad += 1
