@@ -3,7 +3,9 @@
 The largest sagging moment and the largest service deflection of each span are
 not limited to stations: every local maximum of the station envelope is
 refined by golden-section search on the envelope itself, evaluated exactly at
-any point, to :data:`envelope.config.DESIGN_XTOL` of the span length.  Hogging
+any point, to :data:`envelope.config.GOLDEN_XTOL` of the span length, then moved
+to the root of the governing case's slope (shear for moment, rotation for
+deflection), exact to round-off.  Hogging
 moments are taken at the support centrelines and at the support faces (half
 the support width from the centreline; the centreline where no width is given).
 """
@@ -71,7 +73,7 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
     both = f(np.r_[c, d])
     fc, fd = both[: c.size], both[c.size:]
     for _ in range(200):  # golden section: one new point per bracket per step
-        if np.all(b - a <= config.DESIGN_XTOL * length):
+        if np.all(b - a <= config.GOLDEN_XTOL * length):
             break
         left = fc >= fd  # the maximum is in [a, d]: d becomes the new c
         b = np.where(left, d, b)
@@ -93,7 +95,7 @@ def _polish(solved: Solved, span: np.ndarray, length: np.ndarray, x: np.ndarray,
             value: np.ndarray, quantity: str, case_set: str | None
             ) -> tuple[np.ndarray, np.ndarray]:
     """Move each maximum to the root of the governing case's slope (shear for moment,
-    rotation for deflection) by bisection, where the slope changes sign within
+    rotation for deflection) by regula falsi, where the slope changes sign within
     :data:`envelope.config.ROOT_BRACKET` of the span length; elsewhere (a kink under a
     point load, an end of the span) the golden-section position stands."""
     beam = solved.beam
@@ -115,14 +117,27 @@ def _polish(solved: Solved, span: np.ndarray, length: np.ndarray, x: np.ndarray,
     ok = (s_lo > 0.0) & (s_hi < 0.0)
     if not ok.any():
         return x, value
-    for _ in range(60):  # bisection: 2e-6 L down to round-off
-        mid = 0.5 * (lo + hi)
-        s_mid = np.einsum("iu,iu->i", responses(mid, (slope_name,))[slope_name], coef)
-        lo = np.where(s_mid > 0.0, mid, lo)
-        hi = np.where(s_mid > 0.0, hi, mid)
-        if np.all(hi - lo <= 4.0 * np.finfo(float).eps * np.maximum(length, 1.0)):
+    # Illinois regula falsi: superlinear, and the root stays bracketed
+    f_lo, f_hi = s_lo, s_hi
+    root = x.copy()
+    last = np.zeros(x.size)
+    tol = 4.0 * np.finfo(float).eps * np.maximum(length, 1.0)
+    for _ in range(60):
+        denom = np.where(ok, f_hi - f_lo, -1.0)
+        c = np.where(ok, (lo * f_hi - hi * f_lo) / denom, x)
+        c = np.clip(c, lo, hi)
+        f_c = np.einsum("iu,iu->i", responses(c, (slope_name,))[slope_name], coef)
+        done = np.abs(c - root) <= tol
+        root = c
+        if np.all(done | ~ok):
             break
-    root = 0.5 * (lo + hi)
+        move_lo = f_c > 0.0
+        lo, f_lo = np.where(move_lo, c, lo), np.where(move_lo, f_c, f_lo)
+        hi, f_hi = np.where(move_lo, hi, c), np.where(move_lo, f_hi, f_c)
+        # Illinois: halve the stale end's value when the same end moves twice
+        f_hi = np.where(move_lo & (last > 0), 0.5 * f_hi, f_hi)
+        f_lo = np.where(~move_lo & (last < 0), 0.5 * f_lo, f_lo)
+        last = np.where(move_lo, 1.0, -1.0)
     ext = envelope_at(solved, make_points(beam, span, root), quantity, case_set, labels=False)
     assert ext is not None
     better = ok & (ext.max >= value - config.ZERO_RTOL * np.abs(value))

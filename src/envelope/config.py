@@ -21,8 +21,13 @@ STATION_CHUNK_ROWS = 2048
 #: Rows per Parquet row group of stations.parquet (all cases, long format).
 STATIONS_ROW_GROUP = 1_000_000
 
-#: Positions of design extremes are refined to this fraction of the span length.
+#: Zero crossings of the envelope (detailing extents) are found to this fraction of the
+#: span length.
 DESIGN_XTOL = 1e-10
+
+#: Golden-section search on the envelope brackets each design maximum to this fraction
+#: of the span; the root of the governing case's slope then fixes it to round-off.
+GOLDEN_XTOL = 1e-6
 
 #: Warn when the estimated condition number of the stiffness matrix exceeds this:
 #: with float64 (eps 2.2e-16) about 1e-4 relative accuracy remains at 1e12, and the
@@ -36,4 +41,4 @@ ZERO_RTOL = 1e-9
 #: Half-width (fraction of the span) of the bracket around a refined maximum in which
 #: the root of the governing case's slope is sought: golden section leaves the position
 #: of a smooth maximum uncertain by about sqrt(eps) ~ 1e-8 of the span.
-ROOT_BRACKET = 1e-6
+ROOT_BRACKET = 1e-5
