@@ -122,7 +122,8 @@ class Outcome:
     error: str | None = None          # None: written
     manifest: dict[str, Any] | None = None
     analyse_seconds: float = 0.0      # reading, checking and analysing the case
-    write_seconds: float = 0.0        # api.write and the manifest
+    write_seconds: float = 0.0        # api.write: the beam's own files
+    batch_seconds: float = 0.0        # the batch's own writes: partition and manifest
 
 
 @dataclass
@@ -336,11 +337,13 @@ def run_beam(task: Task, out: str, plots: bool) -> Outcome:
         (folder / MANIFEST).unlink(missing_ok=True)
         before = _snapshot(folder)
         api.write(result, out, plots=plots)
+        written = time.perf_counter()
         after = _snapshot(folder)
         produced = {name: ident for name, ident in after.items() if before.get(name) != ident}
         for name in before.keys() - produced.keys():
             if _is_result(name):  # written by an earlier run, not by this one: stale
                 (folder / name).unlink(missing_ok=True)
+        write_partition(Path(out), beam.id, beam.units.name)
         manifest = {
             "beam": beam.id, "input_sha256": beam.input_sha256, "version": __version__,
             "source": shown, "units": beam.units.name, "plots": plots,
@@ -349,7 +352,8 @@ def run_beam(task: Task, out: str, plots: bool) -> Outcome:
         data = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
         write_atomic(folder / MANIFEST, lambda fh: fh.write(data))
         done = time.perf_counter()
-        return Outcome(shown, beam.id, None, manifest, analysed - start, done - analysed)
+        return Outcome(shown, beam.id, None, manifest, analysed - start, written - analysed,
+                       done - written)
     except Exception as exc:
         return Outcome(shown, beam_id, _message(exc, target, shown), None,
                        time.perf_counter() - start, 0.0)
@@ -450,13 +454,15 @@ def _drain(chunks: Sequence[list[Task]], workers: int, window: int, out: str, pl
                 for future in finished:
                     chunk = inflight.pop(future)
                     try:
-                        report(future.result())
+                        outcomes = future.result()
                     except BrokenProcessPool:
                         broken.append(chunk)
                         dead = True
+                        continue
                     except Exception as exc:  # could not send or receive the task
-                        report([_died(t, f"the task failed ({type(exc).__name__}: {exc})")
-                                for t in chunk])
+                        outcomes = [_died(t, f"the task failed ({type(exc).__name__}: "
+                                             f"{exc})") for t in chunk]
+                    report(outcomes)
         finally:
             pool.shutdown(wait=True, cancel_futures=True)
     return broken
@@ -563,27 +569,43 @@ def run_cluster(tasks: Sequence[Task], out: str, plots: bool, client: Any, slots
     for future in queue:
         chunk_tasks = futures.pop(future)
         try:
-            report(future.result())
+            outcomes = future.result()
         except KilledWorker:
             if len(chunk_tasks) > 1:
                 for task in chunk_tasks:
                     single = submit([task])
                     futures[single] = [task]
                     queue.add(single)
-            else:
-                report([_died(chunk_tasks[0], "the cluster gave up on this beam: every "
-                              "worker that ran it died")])
+                continue
+            outcomes = [_died(chunk_tasks[0], "the cluster gave up on this beam: every "
+                              "worker that ran it died")]
         except (CancelledError, OSError, TimeoutError) as exc:
             raise ClusterError(f"the cluster stopped answering ({type(exc).__name__}: "
                                f"{exc}); rerun the same command to resume") from None
         except Exception as exc:
-            report([_died(t, f"the cluster could not run this beam "
-                             f"({type(exc).__name__}: {exc})") for t in chunk_tasks])
+            outcomes = [_died(t, f"the cluster could not run this beam "
+                                 f"({type(exc).__name__}: {exc})") for t in chunk_tasks]
+        report(outcomes)
 
 
 # ---------------------------------------------------------------------------
 # Combined results and the failure list
 # ---------------------------------------------------------------------------
+
+
+def _read(path: Path) -> Any:
+    """One Parquet file as a pyarrow Table (ParquetFile: no dataset discovery, which
+    costs several times the read of a small file)."""
+    import pyarrow.parquet as pq
+
+    return pq.ParquetFile(path).read()
+
+
+def _write(path: Path, table: Any) -> None:
+    """One Parquet file, atomically (:mod:`envelope.files`)."""
+    import pyarrow.parquet as pq
+
+    write_atomic(path, lambda fh: pq.write_table(table, fh))
 
 
 def _units_metadata(labels: dict[str, str]) -> bytes:
@@ -599,18 +621,16 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
     """The ``<stem>.parquet`` tables of ``ids`` one after the other, with a ``system``
     column (SI or US); None when no beam has the file."""
     import pyarrow as pa
-    import pyarrow.parquet as pq
 
-    from envelope.store import CAUTION
-
-    tables, labels = [], {}
+    tables, labels, caution = [], {}, b""
     for beam_id in ids:
         path = out / beam_id / f"{stem}.parquet"
         if not path.exists():
             continue
-        table = pq.read_table(path)
-        units = (table.schema.metadata or {}).get(b"envelope:units", b"{}").decode()
-        labels[systems[beam_id]] = units
+        table = _read(path)
+        meta = table.schema.metadata or {}
+        labels[systems[beam_id]] = meta.get(b"envelope:units", b"{}").decode()
+        caution = meta.get(b"envelope:caution", caution)
         system = pa.array([systems[beam_id]] * table.num_rows, pa.string())
         tables.append(table.replace_schema_metadata(None).append_column("system", system))
     if not tables:
@@ -621,21 +641,29 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
         b"envelope:version": __version__.encode(),
         b"envelope:input_sha256": inputs_sha256.encode(),
         b"envelope:beams": str(len(tables)).encode(),
-        b"envelope:caution": CAUTION.encode(),
+        b"envelope:caution": caution,
     })
 
 
-def combine(out: Path, done: dict[str, dict[str, Any]], force: bool = False) -> None:
-    """Refresh ``OUT/_all/`` for the beams in ``done`` (id -> manifest): one partition
-    per beam (rewritten when its beam's hash or the engine version changed, or with
-    ``force``), partitions of other beams removed, design.parquet and sizing.parquet
+def write_partition(out: Path, beam_id: str, system: str) -> None:
+    """``OUT/_all/envelope/beam=<id>/part-0.parquet``: the beam's envelope.parquet
+    without its beam column (readers take it from the folder name, and most refuse it
+    twice) and with a ``system`` column (SI or US), metadata kept.  Written by the worker
+    that ran the beam, so that combining costs the coordinator no more than a check."""
+    import pyarrow as pa
+
+    table = _read(out / beam_id / "envelope.parquet")
+    column = pa.array([system] * table.num_rows, pa.string())
+    table = table.drop_columns(["beam"]).append_column("system", column)
+    _write(out / COMBINED / "envelope" / f"beam={beam_id}" / "part-0.parquet", table)
+
+
+def combine(out: Path, done: dict[str, dict[str, Any]]) -> None:
+    """Refresh ``OUT/_all/`` for the beams in ``done`` (id -> manifest): each beam's
+    partition checked (written again when missing or stamped with another input hash or
+    engine version), partitions of other beams removed, design.parquet and sizing.parquet
     rebuilt.  ``envelope:input_sha256`` of a combined file is the SHA-256 of the sorted
     ``<id> <input hash>`` lines of its beams."""
-    import pyarrow as pa
-    import pyarrow.parquet as pq
-
-    from envelope.store import write_parquet
-
     root = out / COMBINED
     dataset = root / "envelope"
     root.mkdir(parents=True, exist_ok=True)
@@ -651,13 +679,8 @@ def combine(out: Path, done: dict[str, dict[str, Any]], force: bool = False) -> 
                 _remove_temporaries(child)
     for beam_id in ids:
         part = dataset / f"beam={beam_id}" / "part-0.parquet"
-        if not force and _stamped(part, done[beam_id]["input_sha256"]):
-            continue
-        table = pq.read_table(out / beam_id / "envelope.parquet")
-        system = pa.array([systems[beam_id]] * table.num_rows, pa.string())
-        # the partition folder carries the beam: readers add the column from the path
-        table = table.drop_columns(["beam"]).append_column("system", system)
-        write_parquet(part, table)
+        if not _stamped(part, done[beam_id]["input_sha256"]):
+            write_partition(out, beam_id, systems[beam_id])
     lines = "".join(f"{i} {done[i]['input_sha256']}\n" for i in ids)
     digest = hashlib.sha256(lines.encode()).hexdigest()
     for stem in ("design", "sizing"):
@@ -666,7 +689,7 @@ def combine(out: Path, done: dict[str, dict[str, Any]], force: bool = False) -> 
         if table is None:
             target.unlink(missing_ok=True)
         else:
-            write_parquet(target, table)
+            _write(target, table)
 
 
 def write_failures(out: Path, failures: Sequence[Outcome], order: dict[str, int]) -> Path:
@@ -851,7 +874,13 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
         else:
             slots = workers or default_workers()
         _run(todo, out_path, summary, done, client, slots, plots, progress, chunk)
-        combine(out_path, done, force)
+        # Temporaries of writes killed with a worker or a batch, in every folder of the
+        # batch (a beam completed by a later run may hold one of an earlier kill); the
+        # batch's own workers are done by now.
+        ids = {e.beam_id for e in entries} | {o.beam_id for o in summary.outcomes}
+        for beam_id in sorted(i for i in ids if i and i != COMBINED):
+            _remove_temporaries(out_path / beam_id)
+        combine(out_path, done)
         write_failures(out_path, summary.failed, {e.path: e.index for e in entries})
     summary.seconds = time.perf_counter() - started
     return summary
@@ -891,10 +920,6 @@ def _run(todo: Sequence[Entry], out: Path, summary: Summary, done: dict[str, dic
         run_local(tasks, os.fspath(out), plots, slots, report, chunk)
     summary.run_seconds = time.perf_counter() - run_started
     bar.close()
-    # temporaries of writes killed with a worker (the batch's own workers are done now)
-    for beam_id in {e.beam_id for e in todo} | {o.beam_id for o in summary.outcomes}:
-        if beam_id and beam_id != COMBINED:
-            _remove_temporaries(out / beam_id)
 
 
 # ---------------------------------------------------------------------------
@@ -915,9 +940,11 @@ def _run(todo: Sequence[Entry], out: Path, summary: Summary, done: dict[str, dic
 @click.option("--force", is_flag=True, help="Rerun every beam, even unchanged ones.")
 def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str | None,
           plots: bool, force: bool) -> None:
-    """Analyse many case files: PATHs are case files, folders (every *.toml inside) or
-    glob patterns.  Unchanged beams are skipped, so an interrupted batch resumes where
-    it stopped; failures are listed in OUT/_all/failures.csv (exit status 2)."""
+    """Analyse many case files into OUT/<id>/, combined in OUT/_all/.
+
+    PATHs are case files, folders (every *.toml inside) or glob patterns.  Unchanged
+    beams are skipped, so an interrupted batch resumes where it stopped; failures are
+    listed in OUT/_all/failures.csv (exit status 2)."""
     try:
         summary = run_batch(paths, out, workers=workers, scheduler=scheduler, plots=plots,
                             force=force, progress=sys.stderr)

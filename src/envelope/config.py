@@ -7,6 +7,11 @@ from __future__ import annotations
 #: of absolute loads.  The issue's contract: 1e-9.
 STATICS_RTOL = 1e-9
 
+#: Steps of iterative refinement after the banded solve (same factor, residual from the
+#: element deformations).  One step recovers the digits a very short, stiff element
+#: costs; the second is a margin.
+REFINE_STEPS = 2
+
 #: Relative tolerance of the solve residual |K d - F| / (|K| |d| + |F|).
 RESIDUAL_RTOL = 1e-9
 

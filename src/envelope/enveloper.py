@@ -309,17 +309,23 @@ def _labels(cs: CaseSet, combo: np.ndarray, units: np.ndarray,
     text = np.empty(first.size, dtype=object)
     n_g = len(cs.cell_labels)
     pat_cases = _patterned_cases(cs)
+    assert cs.patterned is not None
+    present = [{c: {int(cs.unit_cell[u]) for u in np.flatnonzero(cs.patterned[:, k] != 0.0)
+                    if cs.unit_case_name[u] == c} for c in pat_cases[k]}
+               for k in range(len(cs.combinations))]
     for i, row in enumerate(first):
         k = int(combo[row])
         by_case: dict[str, list[bool]] = {c: [False] * n_g for c in pat_cases[k]}
         for u in np.flatnonzero(units[row]):
             by_case[cs.unit_case_name[u]][int(cs.unit_cell[u])] = True
         if cells is not None:
-            # a loaded cell may carry a patterned case with no load of its own there
-            for c in by_case:
-                by_case[c] = [a or (b and not any(by_case[o][g] for o in by_case))
-                              for g, (a, b) in enumerate(zip(by_case[c], cells[row],
-                                                             strict=True))]
+            # a cell loaded with none of its own patterned units carries a patterned case
+            # that has no load there (so its dead load takes the full factor)
+            for g in np.flatnonzero(cells[row]):
+                if not any(mask[g] for mask in by_case.values()):
+                    empty = [c for c in by_case if int(g) not in present[k][c]]
+                    if empty:
+                        by_case[empty[0]][int(g)] = True
         text[i] = _label_text(cs.cell_labels, by_case)
     return text[inverse.ravel()]
 
