@@ -38,8 +38,8 @@ import pytest
 
 from envelope.analysis import case_responses
 from envelope.casefile import parse_case
-from envelope.errors import CaseError
 from envelope.combinations import build as build_combinations
+from envelope.errors import CaseError
 from envelope.model import Beam, Combination
 from envelope.recovery import make_points
 from envelope.results import Analysis, analyse
