@@ -18,7 +18,28 @@ from typing import TYPE_CHECKING, Any
 
 __version__ = "0.1.0"
 
-__all__ = ["__version__", "analyse", "load_case", "tables", "write"]
+__all__ = ["__version__", "analyse", "engine_version", "load_case", "tables", "write"]
+
+
+def engine_version() -> str:
+    """The release number plus a fingerprint of the package's own source files, e.g.
+    ``0.1.0+3f2a9c1d04be``: written into every result file, so results of a changed
+    engine never pass for current ones when a batch resumes."""
+    global _ENGINE_VERSION
+    if _ENGINE_VERSION is None:
+        import hashlib
+        from pathlib import Path
+
+        digest = hashlib.sha256()
+        root = Path(__file__).resolve().parent
+        for path in sorted(root.rglob("*.py")) + sorted(root.rglob("*.toml")):
+            digest.update(path.relative_to(root).as_posix().encode())
+            digest.update(path.read_bytes())
+        _ENGINE_VERSION = f"{__version__}+{digest.hexdigest()[:12]}"
+    return _ENGINE_VERSION
+
+
+_ENGINE_VERSION: str | None = None
 
 if TYPE_CHECKING:
     from envelope.api import analyse, load_case, tables, write

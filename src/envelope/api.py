@@ -39,6 +39,8 @@ def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = Fa
 
         built["sizing"] = sizing_table(result)
     folder = Path(out) / result.beam.id
+    for stem, table in built.items():  # refuse before anything is written
+        store.check_finite(table, str(folder / f"{stem}.parquet"))
     if all_cases:
         store.write_stations(folder / "stations.parquet", result)
     store.write_tables(folder, built)

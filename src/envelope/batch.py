@@ -54,7 +54,7 @@ from typing import Any, TextIO
 
 import click
 
-from envelope import __version__
+from envelope import engine_version
 from envelope.errors import EnvelopeError
 from envelope.files import write_atomic
 
@@ -246,7 +246,7 @@ def _stamped(path: Path, sha256: str) -> bool:
     except Exception:  # missing, truncated or not Parquet at all
         return False
     return (meta.get(b"envelope:input_sha256") == sha256.encode()
-            and meta.get(b"envelope:version") == __version__.encode())
+            and meta.get(b"envelope:version") == engine_version().encode())
 
 
 def completed(out: Path, entry: Entry, plots: bool) -> dict[str, Any] | None:
@@ -260,8 +260,9 @@ def completed(out: Path, entry: Entry, plots: bool) -> dict[str, Any] | None:
         manifest = json.loads((folder / MANIFEST).read_bytes())
     except (OSError, ValueError):
         return None
-    if not isinstance(manifest, dict) or manifest.get("input_sha256") != entry.sha256 \
-            or manifest.get("version") != __version__ or manifest.get("beam") != entry.beam_id:
+    if (not isinstance(manifest, dict) or manifest.get("input_sha256") != entry.sha256
+            or manifest.get("version") != engine_version()
+            or manifest.get("beam") != entry.beam_id):
         return None
     files = manifest.get("files")
     if not isinstance(files, dict) or "envelope.parquet" not in files \
@@ -345,7 +346,7 @@ def run_beam(task: Task, out: str, plots: bool) -> Outcome:
                 (folder / name).unlink(missing_ok=True)
         write_partition(Path(out), beam.id, beam.units.name)
         manifest = {
-            "beam": beam.id, "input_sha256": beam.input_sha256, "version": __version__,
+            "beam": beam.id, "input_sha256": beam.input_sha256, "version": engine_version(),
             "source": shown, "units": beam.units.name, "plots": plots,
             "files": {name: produced[name][2] for name in sorted(produced)},
         }
@@ -364,9 +365,9 @@ def run_chunk(tasks: Sequence[Task], out: str, plots: bool) -> list[Outcome]:
     return [run_beam(task, out, plots) for task in tasks]
 
 
-def engine_version() -> str:
+def worker_engine_version() -> str:
     """The engine version of the process this runs in (asked of cluster workers)."""
-    return __version__
+    return engine_version()
 
 
 def _died(task: Task, how: str) -> Outcome:
@@ -511,14 +512,14 @@ def _check_cluster(client: Any, out: str, probe: str | None) -> int:
         except Exception:
             raise BatchError(f"no workers joined the scheduler within {CONNECT_TIMEOUT:g} s"
                              ) from None
-    versions = client.run(engine_version, on_error="return")
+    versions = client.run(worker_engine_version, on_error="return")
     for worker, version in sorted(versions.items()):
         if isinstance(version, BaseException):
             raise BatchError(f"worker {worker} cannot run envelope ({type(version).__name__}: "
                              f"{version}); install envelope on every worker")
-        if version != __version__:
+        if version != engine_version():
             raise BatchError(f"worker {worker} runs envelope {version}, this machine "
-                             f"{__version__}; install the same version everywhere")
+                             f"{engine_version()}; install the same version everywhere")
     for path, test, what in ((out, os.path.isdir, "the output folder"),
                              (probe, os.path.isfile, "the case files")):
         if path is None:
@@ -638,7 +639,7 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
     combined = pa.concat_tables(tables, promote_options="permissive")
     return combined.replace_schema_metadata({
         b"envelope:units": _units_metadata(labels),
-        b"envelope:version": __version__.encode(),
+        b"envelope:version": engine_version().encode(),
         b"envelope:input_sha256": inputs_sha256.encode(),
         b"envelope:beams": str(len(tables)).encode(),
         b"envelope:caution": caution,

@@ -18,7 +18,7 @@ import numpy as np
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from envelope import __version__, config
+from envelope import config, engine_version
 from envelope.enveloper import CaseSet, Extremes
 from envelope.errors import StaticsError
 from envelope.files import write_atomic
@@ -78,7 +78,7 @@ def _metadata(analysis: Analysis) -> dict[bytes, bytes]:
     beam = analysis.beam
     return {
         b"envelope:units": json.dumps(beam.units.labels).encode(),
-        b"envelope:version": __version__.encode(),
+        b"envelope:version": engine_version().encode(),
         b"envelope:input_sha256": beam.input_sha256.encode(),
         b"envelope:beam": beam.id.encode(),
         b"envelope:caution": CAUTION.encode(),
@@ -258,7 +258,10 @@ def write_parquet(path: Path, table: pa.Table) -> None:
 
 
 def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> list[Path]:
-    """Write each table as ``<stem>.parquet`` in ``out_dir``; returns the paths."""
+    """Write each table as ``<stem>.parquet`` in ``out_dir``; returns the paths.  Every
+    table is checked before the first file is written, so a refusal writes nothing."""
+    for stem, table in result_tables.items():
+        check_finite(table, str(out_dir / f"{stem}.parquet"))
     paths = []
     for stem, table in result_tables.items():
         path = out_dir / f"{stem}.parquet"
