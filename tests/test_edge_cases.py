@@ -27,8 +27,9 @@ import pyarrow.parquet as pq
 import pytest
 from click.testing import CliRunner
 
+from envelope.analysis import Solved
 from envelope.cli import main
-from envelope.errors import StaticsError
+from envelope.errors import UnstableBeamError
 
 from beams import case_reaction_moments, case_reactions, responses, solve_text, toml_value
 
@@ -258,23 +259,29 @@ def test_spring_under_the_middle_support_matches_compatibility(k: float,
                                atol=RTOL * total)
 
 
-NEAR_MECHANISM = pytest.mark.xfail(
-    strict=True, raises=StaticsError,
-    reason="near-mechanism refused with StaticsError 'solve residual too large' (exit 3): "
-           "the residual check scales with the load, not with |K| |d|")
+def solved_or_nearly_unstable(text: str) -> Solved | None:
+    """Solve, or None where the engine refuses the beam as nearly unstable (a clear
+    refusal: the soft restraint costs more digits than the statics tolerance allows)."""
+    try:
+        return solve_text(text)
+    except UnstableBeamError as exc:
+        assert "nearly unstable beam" in str(exc) and "supports" in exc.key
+        return None
 
 
-@pytest.mark.parametrize("k", [pytest.param(1e-6, marks=NEAR_MECHANISM),
-                               pytest.param(1e-4, marks=NEAR_MECHANISM),
-                               1e-3, 1e-2, 1.0, 1e3, 1e6, 1e9, 1e12])
+@pytest.mark.parametrize("k", [1e-6, 1e-4, 1e-3, 1e-2, 1.0, 1e3, 1e6, 1e9, 1e12])
 def test_end_spring_of_a_simple_span_matches_statics_and_the_rigid_rotation(k: float) -> None:
     """A 6 m span pinned at the left, on a spring k (kN/m) at the right: the reactions
     are statically determinate (wL/2 each) whatever k; the spring end drops (wL/2)/k and
-    midspan drops half that plus 5wL^4/(384EI).  A soft spring is a near-mechanism."""
+    midspan drops half that plus 5wL^4/(384EI).  A soft spring is a near-mechanism: exact,
+    or refused as nearly unstable, and only for the softest springs."""
     L, w, EI = 6.0, 10.0, EI_CONCRETE
     text = case_text([L], ["pinned", {"type": "spring", "k_vertical": k}],
                      [{"type": "uniform", "spans": "all", "w": w}], section=CONCRETE)
-    s = solve_text(text)
+    s = solved_or_nearly_unstable(text)
+    if s is None:
+        assert k < 1e-3
+        return
     np.testing.assert_allclose(case_reactions(s)[:, 0], [w * L / 2] * 2, rtol=0,
                                atol=RTOL * w * L)
     end = (w * L / 2) / k
@@ -300,16 +307,17 @@ def test_rotational_end_spring_matches_compatibility(kr: float) -> None:
                                rtol=0, atol=RTOL * w * L)
 
 
-@pytest.mark.parametrize("kr", [pytest.param(1e-6, marks=NEAR_MECHANISM),
-                                pytest.param(1e-3, marks=NEAR_MECHANISM),
-                                1.0, 1e3, 1e6, 1e12])
+@pytest.mark.parametrize("kr", [1e-6, 1e-3, 1.0, 1e3, 1e6, 1e12])
 def test_beam_held_by_a_pin_and_a_rotational_spring_alone_matches_statics(kr: float) -> None:
     """Left joint: k_vertical = 0, rotational spring kr; right joint pinned.  The pin
     takes the whole load wL and the spring the moment wL^2/2 (statics), for any kr."""
     L, w = 6.0, 10.0
     text = case_text([L], [{"type": "spring", "k_vertical": 0, "k_rotation": kr}, "pinned"],
                      [{"type": "uniform", "spans": "all", "w": w}], section=CONCRETE)
-    s = solve_text(text)
+    s = solved_or_nearly_unstable(text)
+    if s is None:
+        assert kr < 1.0
+        return
     np.testing.assert_allclose(case_reactions(s)[:, 0], [0.0, w * L], rtol=0, atol=RTOL * w * L)
     np.testing.assert_allclose(abs(case_reaction_moments(s)[0, 0]), w * L**2 / 2, rtol=RTOL)
 
@@ -397,9 +405,6 @@ def test_a_near_rigid_spring_is_solved_with_a_conditioning_warning(tmp_path: Pat
         assert "badly conditioned" in json.loads(meta[b"envelope:warnings"])[0]
 
 
-@pytest.mark.xfail(strict=True, reason="a near-mechanism (pin + very soft end spring) exits 3 "
-                                       "with 'solve residual too large' instead of a result "
-                                       "with a conditioning warning or a clear refusal")
 @pytest.mark.parametrize("k", [1e-6, 1e-10])
 def test_a_near_mechanism_is_solved_with_a_warning_or_refused_clearly(k: float,
                                                                       tmp_path: Path) -> None:
@@ -616,10 +621,6 @@ def test_500_partial_loads_tiling_a_span_equal_one_uniform_load(tmp_path: Path) 
 # Magnitudes at the ends of floating point: a clear refusal, not exit 3
 # ---------------------------------------------------------------------------
 
-@pytest.mark.xfail(strict=True, reason="E*I overflows to infinity in the analysis: numpy "
-                                       "RuntimeWarnings on stderr and exit 3 naming "
-                                       "envelope.parquet, instead of a one-line refusal "
-                                       "naming the section")
 def test_a_stiffness_that_overflows_is_refused_naming_the_section(tmp_path: Path) -> None:
     text = case_text([6.0], ["pinned", "pinned"], [{"type": "uniform", "spans": 1, "w": 1.0}],
                      section={"E": 1e300, "I": 1e300})
@@ -627,9 +628,6 @@ def test_a_stiffness_that_overflows_is_refused_naming_the_section(tmp_path: Path
     assert ": section" in line
 
 
-@pytest.mark.xfail(strict=True, reason="E*I underflows to zero: refused as 'supports: unstable "
-                                       "beam: the stiffness matrix is singular', blaming the "
-                                       "supports")
 def test_a_stiffness_that_underflows_is_refused_naming_the_section(tmp_path: Path) -> None:
     text = case_text([6.0], ["pinned", "pinned"], [{"type": "uniform", "spans": 1, "w": 1.0}],
                      section={"E": 1e-300, "I": 1e-300})
@@ -637,10 +635,19 @@ def test_a_stiffness_that_underflows_is_refused_naming_the_section(tmp_path: Pat
     assert ": section" in line
 
 
-def test_very_large_and_very_small_loads_scale_exactly(tmp_path: Path) -> None:
-    """Linearity over 200 orders of magnitude: w = 1e100 and w = 1e-100 give the results of
-    w = 1 scaled (two 6 m spans: 3/8, 10/8, 3/8 of wL, handbook coefficients)."""
+def test_loads_beyond_the_carried_range_are_refused_naming_the_key(tmp_path: Path) -> None:
+    """Magnitudes outside 1e-30 .. 1e30 (consistent units) are refused at the key, exit 2."""
     for w in (1e100, 1e-100):
+        text = case_text([6.0, 6.0], ["pinned"] * 3, [{"type": "uniform", "spans": "all",
+                                                       "w": w}], section=CONCRETE)
+        line = refusal(text, tmp_path)
+        assert "loads[1].w" in line and "outside the range the analysis can carry" in line
+
+
+def test_very_large_and_very_small_loads_scale_exactly(tmp_path: Path) -> None:
+    """Linearity over 50 orders of magnitude: w = 1e25 and w = 1e-25 give the results of
+    w = 1 scaled (two 6 m spans: 3/8, 10/8, 3/8 of wL, handbook coefficients)."""
+    for w in (1e25, 1e-25):
         text = case_text([6.0, 6.0], ["pinned"] * 3, [{"type": "uniform", "spans": "all",
                                                        "w": w}], section=CONCRETE)
         tables, _ = run_case(text, tmp_path, name=f"w{w:g}".replace("+", ""))

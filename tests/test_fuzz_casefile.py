@@ -782,8 +782,6 @@ def test_lines_dropped_or_repeated_give_a_beam_or_a_one_line_case_error(
 
 # -- known bugs, fuzzed on their own -----------------------------------------
 
-@pytest.mark.xfail(strict=True, reason="a key name with a line break is echoed raw into the "
-                                       "key path, so the message spans two lines")
 @fuzz(200, shrink=False)
 @given(documents(key_text=st.text(st.sampled_from("ab" + LINE_BREAKS), min_size=1,
                                   max_size=4)))
@@ -791,8 +789,6 @@ def test_keys_with_line_breaks_still_give_one_line(doc: dict[str, Any]) -> None:
     check_doc(doc)
 
 
-@pytest.mark.xfail(strict=True, reason="OverflowError from pint's integer arithmetic escapes "
-                                       "the reader (units.parse_quantity float(out))")
 @fuzz(50, shrink=False)
 @given(st.sampled_from(sorted(BASES)), st.data())
 def test_arithmetic_unit_strings_are_read_or_refused(name: str, data: st.DataObject) -> None:
@@ -839,9 +835,6 @@ def test_run_answers_exit_0_or_2_with_one_line_and_safe_files(doc: dict[str, Any
 EXTREME_NUMBERS = [1e300, 1e-300, 1e200, 1e-200, 1e150, 5e-324, 1.7e308]
 
 
-@pytest.mark.xfail(strict=True, reason="extreme magnitudes overflow inside the analysis: "
-                                       "numpy RuntimeWarnings on stderr, exit 3, and files "
-                                       "already written before a later table is refused")
 @fuzz(40, shrink=False)
 @given(st.data())
 def test_run_with_extreme_magnitudes_answers_exit_0_or_2(data: st.DataObject) -> None:

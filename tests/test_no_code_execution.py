@@ -85,8 +85,9 @@ def test_code_in_a_unit_string_is_refused_as_an_unreadable_quantity(
         before = set(tmp_path.iterdir())
         result = CliRunner().invoke(main, ["run", case.name, "-o", "out"])
         assert result.exit_code == 2, (payload, result.output)
-        assert result.stderr == (f"error: {case.name}: {place}: cannot read {payload!r} as a "
-                                 f"quantity ({result.stderr.rsplit('(', 1)[1]}"), payload
+        assert result.stderr.startswith(f"error: {case.name}: {place}: cannot read "
+                                        f"{payload!r} as a quantity"), payload
+        assert result.stderr.count("\n") == 1, payload
         assert set(tmp_path.iterdir()) == before, payload
         assert not (tmp_path / MARKER).exists()
 
@@ -129,10 +130,6 @@ def test_code_in_text_keys_is_kept_as_text(tmp_path: Path, monkeypatch: pytest.M
 # pint's own arithmetic, bounded
 # ---------------------------------------------------------------------------
 
-@pytest.mark.xfail(strict=True, reason="pint computes integer powers as exact Python ints; "
-                                       "float() of a huge one raises OverflowError, which "
-                                       "escapes the reader: 'internal error (OverflowError)', "
-                                       "exit 1")
 @pytest.mark.parametrize("value", ["2**10000 m", "10**400 m"])
 def test_a_huge_integer_power_in_a_unit_string_is_refused(value: str, tmp_path: Path) -> None:
     case = tmp_path / "case.toml"
@@ -150,8 +147,6 @@ def _cpu_limit() -> None:
 
 
 @pytest.mark.skipif(not hasattr(os, "fork"), reason="needs a POSIX resource limit")
-@pytest.mark.xfail(strict=True, reason="pint evaluates '10**10**10' as an exact Python integer "
-                                       "(ten billion digits): the reader never answers")
 def test_a_tower_of_powers_in_a_unit_string_is_refused_without_exhausting_the_machine(
         tmp_path: Path) -> None:
     """A resource guard, not a timing: the process gets 5 s of CPU for an answer that

@@ -23,6 +23,7 @@ from __future__ import annotations
 import difflib
 import hashlib
 import itertools
+import json
 import math
 import os
 import re
@@ -89,6 +90,12 @@ CUSTOM_KEYS = ("name", "set", "factors")
 COMBINATION_SETS = ("strength", "service")
 PATTERNING_KEYS = ("method", "segments", "favourable_dead")
 PATTERN_METHODS = ("none", "code", "exhaustive", "segments")
+#: Every number, in consistent units, is 0 or of a magnitude in this range.  Products in
+#: the analysis (E*I, loads times lengths to the fourth power) must stay inside float64;
+#: no real beam comes near either bound.
+MIN_MAGNITUDE = 1e-30
+MAX_MAGNITUDE = 1e30
+
 #: Shortest stretch of constant section, as a fraction of its span.  Shorter elements
 #: are so much stiffer than their neighbours that double precision cannot resolve their
 #: end forces to the statics tolerance (measured: a 12 m span fails below about 8 mm).
@@ -182,6 +189,10 @@ def _one_line(text: str) -> str:
 
 
 def _join(base: str, name: str) -> str:
+    """Key path ``base.name``; a key name that is not plain text is quoted (escaped), so
+    that no key can break the one-line message."""
+    if not re.fullmatch(r"[A-Za-z0-9_-]+", name):
+        name = json.dumps(name)
     return f"{base}.{name}" if base else name
 
 
@@ -311,6 +322,11 @@ class _Reader:
             self.fail(key, f"expected a number or a string with units, got {_describe(value)}")
         if not math.isfinite(out):
             self.fail(key, "must be a finite number (NaN and infinity are refused)")
+        if out != 0.0 and not (MIN_MAGNITUDE <= abs(out) <= MAX_MAGNITUDE):
+            unit = _pretty_unit(self.system.consistent(quantity))
+            self.fail(key, f"{self.shown(value, quantity)} is {abs(out):.3g} {unit}, outside "
+                           f"the range the analysis can carry ({MIN_MAGNITUDE:g} to "
+                           f"{MAX_MAGNITUDE:g} {unit}); check the value and its unit")
         return out
 
     def shown(self, value: object, quantity: str) -> str:

@@ -12,7 +12,8 @@ STATICS_RTOL = 1e-9
 #: costs; the second is a margin.
 REFINE_STEPS = 2
 
-#: Relative tolerance of the solve residual |K d - F| / (|K| |d| + |F|).
+#: Relative tolerance of the solve residual at every free degree of freedom,
+#: |K d - F| / (|K| |d| + |F|): the backward error of the solve.
 RESIDUAL_RTOL = 1e-9
 
 #: Two positions closer than this fraction of the beam length are one station
@@ -38,6 +39,11 @@ GOLDEN_XTOL = 1e-6
 #: with float64 (eps 2.2e-16) about 1e-4 relative accuracy remains at 1e12, and the
 #: residual and statics checks still guard every result.
 CONDITION_WARN = 1e12
+
+#: A statics failure with a condition estimate above this is reported as a nearly
+#: unstable beam (bad input, exit 2), since the lost digits (estimate x 2.2e-16) then
+#: reach the statics tolerance; below it a failure is the engine's own (exit 3).
+CONDITION_BLAME = 1e6
 
 #: A design value smaller than this fraction of the beam's largest value of the same
 #: quantity is round-off (e.g. the moment at a cantilever tip) and is reported as 0.

@@ -178,7 +178,22 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     support_dof = np.zeros(n_dof, dtype=bool)
     support_dof[rigid] = True
     support_dof[spring > 0.0] = True
-    _check(mesh, node_f, support_dof, Ql, ml, source)
+    # the scale of the forces meeting at each dof: |k_e| |d_e| + |fixed-end forces|
+    bound = np.zeros((n_dof, n_u))
+    np.add.at(bound, base[:, None] + np.arange(4),
+              np.einsum("epq,equ->epu", np.abs(ke), np.abs(de)) + np.abs(fF))
+    try:
+        _check(mesh, node_f, bound, support_dof, Ql, ml, source)
+    except StaticsError:
+        if condition <= config.CONDITION_BLAME:
+            raise
+        soft = [j + 1 for j, s in enumerate(supports) if s.kind == "spring"]
+        where = f" (springs at support {', '.join(map(str, soft))})" if soft else ""
+        raise UnstableBeamError(
+            source, "supports",
+            f"nearly unstable beam: the stiffness matrix is too badly conditioned "
+            f"(condition estimate {condition:.2g}) to meet the statics check; stiffen the "
+            f"softest restraint{where} or add a support") from None
 
     joints = mesh.joint_node
     restrained_v = support_dof[2 * joints]
@@ -196,9 +211,11 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     )
 
 
-def _check(mesh: Mesh, node_f: np.ndarray, support_dof: np.ndarray, Ql: np.ndarray,
-           ml: np.ndarray, source: str) -> None:
-    """Residual at free dofs and global statics of every unit case, or StaticsError."""
+def _check(mesh: Mesh, node_f: np.ndarray, bound: np.ndarray, support_dof: np.ndarray,
+           Ql: np.ndarray, ml: np.ndarray, source: str) -> None:
+    """Residual at free dofs (relative to ``bound``, the sum of the magnitudes of the
+    forces meeting there: the backward error of the solve) and global statics of every
+    unit case, or StaticsError."""
     x = mesh.node_x
     xe = (mesh.x0 + mesh.length)[:, None]
     load_force = Ql.sum(axis=0)
@@ -209,10 +226,11 @@ def _check(mesh: Mesh, node_f: np.ndarray, support_dof: np.ndarray, Ql: np.ndarr
     tiny = np.finfo(float).tiny
 
     free = ~support_dof
-    residual = np.abs(node_f[free]).max(axis=0, initial=0.0) if free.any() else 0.0
-    if not np.all(residual <= config.RESIDUAL_RTOL * (scale_f + tiny)):  # NaN fails too
-        raise StaticsError(f"{source}: solve residual too large "
-                           f"({float(np.max(residual)):.3g}); result withheld")
+    ratio = np.abs(node_f[free]) / (bound[free] + tiny)
+    residual = ratio.max(axis=0, initial=0.0) if free.any() else np.zeros(1)
+    if not np.all(residual <= config.RESIDUAL_RTOL):  # NaN fails too
+        raise StaticsError(f"{source}: solve residual too large (relative "
+                           f"{float(np.max(residual)):.3g}); result withheld")
     react_v = node_f[0::2][support_dof[0::2]]
     xv = x[support_dof[0::2]][:, None]
     react_m = node_f[1::2][support_dof[1::2]]

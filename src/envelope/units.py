@@ -9,6 +9,7 @@ string with units is met, so plain-number case files never pay for it.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from functools import cache
 from typing import Any
@@ -96,37 +97,76 @@ def _registry() -> Any:
     import pint  # deferred: only case files with unit strings need it
 
     reg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    # the trade's abbreviations for US loads (common practice)
+    for line in ("psf = lbf / ft ** 2", "ksf = kip / ft ** 2", "plf = lbf / ft",
+                 "klf = kip / ft", "pcf = lbf / ft ** 3", "kcf = kip / ft ** 3"):
+        reg.define(line)
     return reg
+
+
+#: What each quantity is called in messages.
+QUANTITY_NAMES = {
+    "length": "length", "force": "force", "line_load": "line load (force per length)",
+    "moment": "moment", "modulus": "stress or modulus", "inertia": "second moment of area",
+    "area": "area", "unit_weight": "unit weight (force per volume)",
+    "k_vertical": "vertical spring stiffness (force per length)",
+    "k_rotation": "rotational spring stiffness (moment per radian)",
+    "deflection": "deflection",
+}
+
+# A quantity string is a decimal number and a unit made of names, '*', '/', '·', spaces
+# and small integer powers ('^2', '**-1').  Anything else (arithmetic, brackets, comments,
+# huge powers) is refused before pint sees it: pint would compute it.
+_NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d{1,3})?"
+_POWER = r"(?:\^|\*\*)-?\d{1,2}"
+_NAME = r"[A-Za-zµμΩ°]+(?:" + _POWER + r")?"
+_UNIT = _NAME + r"(?:\s*(?:\*|/|·)?\s*" + _NAME + r")*"
+_QUANTITY = re.compile(r"\s*(" + _NUMBER + r")\s*(" + _UNIT + r")?\s*")
+
+
+def pretty_unit(expr: str) -> str:
+    """A pint unit expression as users write it: ``mm**4`` -> ``mm^4``."""
+    return expr.replace("**", "^")
 
 
 def parse_quantity(text: str, system: UnitSystem, quantity: str) -> float:
     """Read a string such as ``"7.5 m"`` and return its value in consistent units.
 
-    The string is parsed by pint's quantity parser (never evaluated as Python).
-    Raises :class:`UnitError` with a message fit for the user.
+    The string must be a number and a unit (checked first, so nothing is ever computed
+    from it); pint then reads the unit.  Raises :class:`UnitError` with a message fit
+    for the user.
     """
+    name = QUANTITY_NAMES.get(quantity, quantity.replace("_", " "))
+    expected = pretty_unit(system.customary(quantity))
+    form = _QUANTITY.fullmatch(text)
+    if form is None:
+        raise UnitError(f"cannot read {text!r} as a quantity: write a number and a unit, "
+                        f"such as '2.5 {expected}'")
+    number, unit = form.group(1), form.group(2)
+    if not unit:
+        raise UnitError(f"{text!r} has no unit; give a plain number (read in {expected}) "
+                        f"or a number with a unit")
     reg = _registry()
     target = system.consistent(quantity)
     try:
-        value = reg.Quantity(text)
-    except Exception as exc:  # pint raises many types for bad strings
-        raise UnitError(f"cannot read {text!r} as a quantity ({type(exc).__name__})") from None
-    if not hasattr(value, "to"):
-        raise UnitError(f"cannot read {text!r} as a quantity")
+        value = reg.Quantity(float(number), unit.replace("^", "**"))
+    except Exception:  # pint raises many types for unknown units
+        raise UnitError(f"cannot read {text!r} as a quantity: unknown unit {unit!r}"
+                        ) from None
     if value.dimensionless and quantity != "k_rotation":
-        raise UnitError(
-            f"{text!r} has no unit; give a plain number (read in "
-            f"{system.customary(quantity)}) or a number with a unit"
-        )
+        raise UnitError(f"{text!r} has no unit; give a plain number (read in {expected}) "
+                        f"or a number with a unit")
     try:
         if quantity == "k_rotation":
             # radians are dimensionless in pint: accept kN*m and kN*m/rad alike
             out = value.to(target.replace("/rad", "")).magnitude
         else:
             out = value.to(target).magnitude
+        out = float(out)
+    except OverflowError:
+        raise UnitError(f"{text!r} is too large a number") from None
     except Exception:
-        raise UnitError(
-            f"{text!r} is not a {quantity.replace('_', ' ')} (expected units like "
-            f"{system.customary(quantity)})"
-        ) from None
-    return float(out)
+        article = "an" if name[0] in "aeiou" else "a"
+        raise UnitError(f"{text!r} is not {article} {name} (expected units like {expected})"
+                        ) from None
+    return out
