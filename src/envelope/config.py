@@ -53,3 +53,8 @@ ZERO_RTOL = 1e-9
 #: the root of the governing case's slope is sought: golden section leaves the position
 #: of a smooth maximum uncertain by about sqrt(eps) ~ 1e-8 of the span.
 ROOT_BRACKET = 1e-5
+
+#: Above this many (point, load item) pairs in one block of stations, the load terms
+#: are summed by the numba kernel instead of numpy pair arrays (24 bytes a pair, times
+#: several temporaries); below it numpy is quicker than importing numba.
+KERNEL_MIN_PAIRS = 2_000_000

@@ -17,6 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from envelope import config
 from envelope.loading import DISTRIBUTED, MOMENT, POINT, UnitCases
 from envelope.loadterms import load_terms
 from envelope.mesh import Mesh, locate
@@ -151,28 +152,40 @@ def evaluate(mesh: Mesh, units: UnitCases, sol: Solution, points: Points) -> Res
 
 
 def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
-                  quantities: tuple[str, ...]) -> dict[str, np.ndarray]:
-    """Only the named quantities of :func:`evaluate` (the rest is not computed)."""
+                  quantities: tuple[str, ...], kernel: bool | None = None
+                  ) -> dict[str, np.ndarray]:
+    """Only the named quantities of :func:`evaluate` (the rest is not computed).
+
+    The load terms are summed by numpy over (point, item) pairs, or, where there are
+    more than :data:`envelope.config.KERNEL_MIN_PAIRS` pairs (or ``kernel=True``), by
+    the numba kernel of :mod:`envelope._kernels`, which needs no pair arrays."""
     elem = locate(mesh, points.span, points.x_span, points.right)
     s = points.x_span - mesh.start[elem]
     s = np.clip(s, 0.0, mesh.length[elem])
     EI = mesh.EI[elem][:, None]
     V0, M0 = sol.V0[elem], sol.M0[elem]
     sc = s[:, None]
+    # upward slope and deflection here; turned to the contract's signs at the end
     out: dict[str, np.ndarray] = {}
     if "shear" in quantities:
         out["shear"] = V0.copy()
     if "moment" in quantities:
         out["moment"] = M0 + V0 * sc
     if "rotation" in quantities:
-        # d(deflection)/dx with deflection downward: minus the upward slope
-        out["rotation"] = -(sol.theta1[elem] + (M0 * sc + V0 * sc**2 / 2.0) / EI)
+        out["rotation"] = sol.theta1[elem] + (M0 * sc + V0 * sc**2 / 2.0) / EI
     if "deflection" in quantities:
-        out["deflection"] = -(sol.v1[elem] + sol.theta1[elem] * sc
-                              + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
+        out["deflection"] = (sol.v1[elem] + sol.theta1[elem] * sc
+                             + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
 
-    pt, it = _pairs(elem, units.item_elem)
-    if pt.size:
+    order = np.argsort(units.item_elem, kind="stable")
+    first = np.searchsorted(units.item_elem[order], np.arange(mesh.n_elements + 1))
+    n_pairs = int((first[elem + 1] - first[elem]).sum())
+    if kernel is None:
+        kernel = n_pairs > config.KERNEL_MIN_PAIRS
+    if n_pairs and kernel:
+        _kernel_terms(mesh, units, points, elem, s, order, first, out)
+    elif n_pairs:
+        pt, it = _pairs(elem, units.item_elem)
         Q, m, m1, m2 = load_terms(units.item_kind[it], units.item_a[it], units.item_b[it],
                                   units.item_wa[it], units.item_wb[it], units.item_p[it],
                                   s[pt], points.right[pt])
@@ -180,9 +193,28 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
         flat = pt * n_u + units.item_unit[it]
         size = points.n * n_u
         ei_pt = mesh.EI[elem[pt]]
-        # particular parts: shear -Q, moment -m, upward slope -m1/EI, upward v -m2/EI
-        for name, term in (("shear", -Q), ("moment", -m), ("rotation", m1 / ei_pt),
+        for name, term in (("shear", Q), ("moment", m), ("rotation", m1 / ei_pt),
                            ("deflection", m2 / ei_pt)):
             if name in out:
-                out[name] += np.bincount(flat, term, size).reshape(points.n, n_u)
+                out[name] -= np.bincount(flat, term, size).reshape(points.n, n_u)
+    for name in ("rotation", "deflection"):  # downward deflection, clockwise rotation
+        if name in out:
+            out[name] = -out[name]
     return out
+
+
+def _kernel_terms(mesh: Mesh, units: UnitCases, points: Points, elem: np.ndarray,
+                  s: np.ndarray, order: np.ndarray, first: np.ndarray,
+                  out: dict[str, np.ndarray]) -> None:
+    """The load terms by the numba kernel, subtracted in place from ``out``."""
+    from envelope import _kernels  # numba is imported only here
+
+    block = np.zeros((4, points.n, units.n_units))
+    gx, gw = _kernels.gauss_rule()
+    _kernels.particular_terms(
+        elem, s, points.right, first, units.item_unit[order], units.item_kind[order],
+        units.item_a[order], units.item_b[order], units.item_wa[order],
+        units.item_wb[order], units.item_p[order], mesh.EI[elem], gx, gw, block)
+    for i, name in enumerate(QUANTITIES):
+        if name in out:
+            out[name] += block[i]

@@ -1,0 +1,85 @@
+"""numba kernels: arrays in, arrays out, nothing else of the package imported.
+
+One kernel: the particular (load) terms of every load item at every point on the
+same element, accumulated straight into the (points x unit cases) response
+arrays.  The numpy path of :func:`envelope.recovery.evaluate_some` builds every
+(point, item) pair as arrays first, which for thousands of load items on one
+element costs memory and time in proportion to points x items; this kernel
+loops over them without allocating.  It computes exactly what
+:func:`envelope.loadterms.load_terms` computes (the same three-point
+Gauss-Legendre rule for distributed items), and the tests compare the two.
+
+Compiled on first use and cached on disk (``cache=True``), so a worker pays the
+compile once per machine, not per beam.  numba is imported only when a problem
+is large enough to need this (see :data:`envelope.config.KERNEL_MIN_PAIRS`).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit, prange
+
+_GX, _GW = np.polynomial.legendre.leggauss(3)
+
+
+@njit(cache=True, parallel=True, fastmath=False)
+def particular_terms(pt_elem: np.ndarray, s: np.ndarray, right: np.ndarray,
+                     first_item: np.ndarray, item_unit: np.ndarray, item_kind: np.ndarray,
+                     item_a: np.ndarray, item_b: np.ndarray, item_wa: np.ndarray,
+                     item_wb: np.ndarray, item_p: np.ndarray, point_ei: np.ndarray,
+                     gx: np.ndarray, gw: np.ndarray, out: np.ndarray) -> None:  # pragma: no cover
+    """Subtract the load terms from ``out`` (4, n_points, n_units): shear -= Q,
+    moment -= m, upward slope -= m1/EI, upward deflection -= m2/EI.
+
+    Items are sorted by element; ``first_item[e]:first_item[e + 1]`` are element e's."""
+    n_points = s.size
+    for p in prange(n_points):
+        e = pt_elem[p]
+        sp = s[p]
+        ei = point_ei[p]
+        for it in range(first_item[e], first_item[e + 1]):
+            u = item_unit[it]
+            kind = item_kind[it]
+            a = item_a[it]
+            if kind == 0:  # distributed, linear from wa at a to wb at b
+                b = item_b[it]
+                c = min(max(sp, a), b)
+                half = 0.5 * (c - a)
+                width = b - a
+                slope = (item_wb[it] - item_wa[it]) / width if width > 0.0 else 0.0
+                q0 = 0.0
+                q1 = 0.0
+                q2 = 0.0
+                q3 = 0.0
+                for g in range(3):
+                    t = a + half * (1.0 + gx[g])
+                    wq = gw[g] * half * (item_wa[it] + slope * (t - a))
+                    r = sp - t
+                    q0 += wq
+                    q1 += wq * r
+                    q2 += wq * r * r / 2.0
+                    q3 += wq * r * r * r / 6.0
+            else:
+                d = sp - a
+                on = d > 0.0 or (d == 0.0 and right[p])
+                if not on:
+                    continue
+                pv = item_p[it]
+                if kind == 1:  # point force
+                    q0 = pv
+                    q1 = pv * d
+                    q2 = pv * d * d / 2.0
+                    q3 = pv * d * d * d / 6.0
+                else:  # clockwise point moment
+                    q0 = 0.0
+                    q1 = -pv
+                    q2 = -pv * d
+                    q3 = -pv * d * d / 2.0
+            out[0, p, u] -= q0
+            out[1, p, u] -= q1
+            out[2, p, u] -= q2 / ei
+            out[3, p, u] -= q3 / ei
+
+
+def gauss_rule() -> tuple[np.ndarray, np.ndarray]:
+    return _GX.copy(), _GW.copy()
