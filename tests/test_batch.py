@@ -46,10 +46,10 @@ from envelope.batch import (
     Outcome,
     Progress,
     Task,
-    _check_cluster,
     discover,
     run_local,
 )
+from envelope.batch.cluster import _check_cluster
 from envelope.cli import main
 
 REPO = Path(__file__).resolve().parents[1]

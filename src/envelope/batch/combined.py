@@ -1,0 +1,131 @@
+"""The combined results under OUT/_all (partitions, design and sizing tables) and the
+failure list."""
+
+from __future__ import annotations
+
+import csv
+import hashlib
+import io
+import json
+import shutil
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+from envelope import engine_version
+from envelope.batch.model import COMBINED, Outcome
+from envelope.batch.resume import _remove_temporaries, _stamped
+from envelope.files import write_atomic
+
+
+def _read(path: Path) -> Any:
+    """One Parquet file as a pyarrow Table (ParquetFile: no dataset discovery, which
+    costs several times the read of a small file)."""
+    import pyarrow.parquet as pq
+
+    return pq.ParquetFile(path).read()
+
+
+def _write(path: Path, table: Any) -> None:
+    """One Parquet file, atomically (:mod:`envelope.files`)."""
+    import pyarrow.parquet as pq
+
+    write_atomic(path, lambda fh: pq.write_table(table, fh))
+
+
+def _units_metadata(labels: dict[str, str]) -> bytes:
+    """``envelope:units`` of a combined file: the labels when every beam has the same,
+    else the labels of each system present (see the ``system`` column)."""
+    if len(labels) == 1:
+        return next(iter(labels.values())).encode()
+    return json.dumps({k: json.loads(v) for k, v in sorted(labels.items())}).encode()
+
+
+def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem: str,
+                   inputs_sha256: str) -> Any:
+    """The ``<stem>.parquet`` tables of ``ids`` one after the other, with a ``system``
+    column (SI or US); None when no beam has the file."""
+    import pyarrow as pa
+
+    tables, labels, caution = [], {}, b""
+    for beam_id in ids:
+        path = out / beam_id / f"{stem}.parquet"
+        if not path.exists():
+            continue
+        table = _read(path)
+        meta = table.schema.metadata or {}
+        labels[systems[beam_id]] = meta.get(b"envelope:units", b"{}").decode()
+        caution = meta.get(b"envelope:caution", caution)
+        system = pa.array([systems[beam_id]] * table.num_rows, pa.string())
+        tables.append(table.replace_schema_metadata(None).append_column("system", system))
+    if not tables:
+        return None
+    combined = pa.concat_tables(tables, promote_options="permissive")
+    return combined.replace_schema_metadata({
+        b"envelope:units": _units_metadata(labels),
+        b"envelope:version": engine_version().encode(),
+        b"envelope:input_sha256": inputs_sha256.encode(),
+        b"envelope:beams": str(len(tables)).encode(),
+        b"envelope:caution": caution,
+    })
+
+
+def write_partition(out: Path, beam_id: str, system: str) -> None:
+    """``OUT/_all/envelope/beam=<id>/part-0.parquet``: the beam's envelope.parquet
+    without its beam column (readers take it from the folder name, and most refuse it
+    twice) and with a ``system`` column (SI or US), metadata kept.  Written by the worker
+    that ran the beam, so that combining costs the coordinator no more than a check."""
+    import pyarrow as pa
+
+    table = _read(out / beam_id / "envelope.parquet")
+    column = pa.array([system] * table.num_rows, pa.string())
+    table = table.drop_columns(["beam"]).append_column("system", column)
+    _write(out / COMBINED / "envelope" / f"beam={beam_id}" / "part-0.parquet", table)
+
+
+def combine(out: Path, done: dict[str, dict[str, Any]]) -> None:
+    """Refresh ``OUT/_all/`` for the beams in ``done`` (id -> manifest): each beam's
+    partition checked (written again when missing or stamped with another input hash or
+    engine version), partitions of other beams removed, design.parquet and sizing.parquet
+    rebuilt.  ``envelope:input_sha256`` of a combined file is the SHA-256 of the sorted
+    ``<id> <input hash>`` lines of its beams."""
+    root = out / COMBINED
+    dataset = root / "envelope"
+    root.mkdir(parents=True, exist_ok=True)
+    _remove_temporaries(root)
+    ids = sorted(done)
+    systems = {beam_id: str(done[beam_id].get("units", "")) for beam_id in ids}
+    keep = {f"beam={beam_id}" for beam_id in ids}
+    if dataset.is_dir():
+        for child in dataset.iterdir():
+            if child.name not in keep:
+                shutil.rmtree(child) if child.is_dir() else child.unlink()
+            elif child.is_dir():
+                _remove_temporaries(child)
+    for beam_id in ids:
+        part = dataset / f"beam={beam_id}" / "part-0.parquet"
+        if not _stamped(part, done[beam_id]["input_sha256"]):
+            write_partition(out, beam_id, systems[beam_id])
+    lines = "".join(f"{i} {done[i]['input_sha256']}\n" for i in ids)
+    digest = hashlib.sha256(lines.encode()).hexdigest()
+    for stem in ("design", "sizing"):
+        target = root / f"{stem}.parquet"
+        table = _combine_table(out, ids, systems, stem, digest)
+        if table is None:
+            target.unlink(missing_ok=True)
+        else:
+            _write(target, table)
+
+
+def write_failures(out: Path, failures: Sequence[Outcome], order: dict[str, int]) -> Path:
+    """``OUT/_all/failures.csv``: file, id, error, in discovery order (header only when
+    nothing failed, so an earlier run's list never stands)."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(["file", "id", "error"])
+    for o in sorted(failures, key=lambda o: order.get(o.path, -1)):
+        writer.writerow([o.path, o.beam_id, o.error])
+    data = buffer.getvalue().encode()
+    path = out / COMBINED / "failures.csv"
+    write_atomic(path, lambda fh: fh.write(data))
+    return path

@@ -1,0 +1,142 @@
+"""The local process pool: worker start-up, chunking, and survival of dead workers."""
+
+from __future__ import annotations
+
+import math
+import os
+import signal
+import sys
+import threading
+import time
+from collections import deque
+from collections.abc import Callable, Sequence
+from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
+from concurrent.futures.process import BrokenProcessPool
+
+from envelope.batch.model import Outcome, Task
+from envelope.batch.worker import _died, run_chunk
+
+#: Chunks per worker slot: enough for load balance at the end of the batch.
+CHUNKS_PER_SLOT = 4
+#: Most beams in one task (a task lost with its worker is rerun whole).
+MAX_CHUNK = 16
+
+
+def _watch_parent(parent: int) -> None:
+    """End this worker when the coordinating process ends, even by SIGKILL: at once on
+    Linux (PR_SET_PDEATHSIG), within a second elsewhere (polling the parent id)."""
+    if sys.platform.startswith("linux"):
+        try:
+            import ctypes
+
+            ctypes.CDLL(None, use_errno=True).prctl(1, signal.SIGKILL)  # PR_SET_PDEATHSIG
+        except (OSError, AttributeError):
+            pass
+
+    def poll() -> None:
+        while True:
+            if os.getppid() != parent:
+                os._exit(1)
+            time.sleep(1.0)
+
+    threading.Thread(target=poll, name="envelope-parent-watch", daemon=True).start()
+
+
+#: Thread pools of the numerical libraries, one thread per worker process unless the
+#: user set otherwise: the pool already keeps every core busy, and more threads per
+#: process only contend for the same cores.
+THREAD_VARIABLES = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS",
+                    "VECLIB_MAXIMUM_THREADS", "NUMEXPR_NUM_THREADS")
+
+
+def _init_worker(parent: int) -> None:
+    """Once per worker process: leave Ctrl-C to the coordinator, die with it, one thread
+    per numerical library (set before numpy loads), and import the engine and pyarrow
+    now rather than in the first beam."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    _watch_parent(parent)
+    for name in THREAD_VARIABLES:
+        os.environ.setdefault(name, "1")
+    import envelope.api
+    import envelope.store  # noqa: F401  (pyarrow)
+
+
+def _pool(workers: int) -> ProcessPoolExecutor:
+    import multiprocessing
+
+    # spawn: a clean interpreter, no copy of the coordinator's threads or locks
+    return ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context("spawn"),
+                               initializer=_init_worker, initargs=(os.getpid(),))
+
+
+Work = Callable[[Sequence[Task], str, bool], list[Outcome]]
+
+
+def _drain(chunks: Sequence[list[Task]], workers: int, window: int, out: str, plots: bool,
+           report: Callable[[list[Outcome]], None], work: Work) -> list[list[Task]]:
+    """Run ``work`` on each of ``chunks`` on pools of ``workers`` processes with at most
+    ``window`` tasks in flight; returns the chunks that were in flight when a worker
+    process died (a new pool takes the rest)."""
+    todo = deque(chunks)
+    broken: list[list[Task]] = []
+    while todo:
+        pool = _pool(max(1, min(workers, len(todo))))
+        try:
+            inflight: dict[Future[list[Outcome]], list[Task]] = {}
+            dead = False
+            while (todo and not dead) or inflight:
+                while todo and not dead and len(inflight) < window:
+                    chunk = todo.popleft()
+                    try:
+                        inflight[pool.submit(work, chunk, out, plots)] = chunk
+                    except BrokenProcessPool:
+                        todo.appendleft(chunk)
+                        dead = True
+                if not inflight:
+                    break
+                finished, _ = wait(inflight, return_when=FIRST_COMPLETED)
+                for future in finished:
+                    chunk = inflight.pop(future)
+                    try:
+                        outcomes = future.result()
+                    except BrokenProcessPool:
+                        broken.append(chunk)
+                        dead = True
+                        continue
+                    except Exception as exc:  # could not send or receive the task
+                        outcomes = [_died(t, f"the task failed ({type(exc).__name__}: "
+                                             f"{exc})") for t in chunk]
+                    report(outcomes)
+        finally:
+            pool.shutdown(wait=True, cancel_futures=True)
+    return broken
+
+
+def run_local(tasks: Sequence[Task], out: str, plots: bool, workers: int,
+              report: Callable[[list[Outcome]], None], chunk: int | None = None,
+              work: Work = run_chunk) -> None:
+    """Every task on a local pool (``work`` runs one chunk; :func:`run_chunk` but in
+    tests).  Chunks lost with a dead worker are rerun beam by beam, on every worker;
+    beams lost again are run alone on a pool of one, where a death is that beam's."""
+    size = chunk or chunk_size(len(tasks), workers)
+    chunks = [list(tasks[i:i + size]) for i in range(0, len(tasks), size)]
+    lost = _drain(chunks, workers, 2 * workers, out, plots, report, work)
+    if lost:
+        singles = [[t] for c in lost for t in c]
+        lost = _drain(singles, workers, workers, out, plots, report, work)
+    if lost:
+        lost = _drain(lost, 1, 1, out, plots, report, work)
+    for (task,) in lost:
+        report([_died(task, "the worker process died while analysing this beam")])
+
+
+def chunk_size(n_tasks: int, slots: int) -> int:
+    """Beams per task: about CHUNKS_PER_SLOT tasks per worker slot, at most MAX_CHUNK."""
+    return max(1, min(MAX_CHUNK, math.ceil(n_tasks / (max(1, slots) * CHUNKS_PER_SLOT))))
+
+
+def default_workers() -> int:
+    """Every core this process may use."""
+    if hasattr(os, "sched_getaffinity"):
+        return max(1, len(os.sched_getaffinity(0)))
+    return max(1, os.cpu_count() or 1)

@@ -1,0 +1,85 @@
+"""The shared pieces of a batch: its errors, the task tuple, entries, outcomes, the
+summary, and the names of the files it writes under OUT."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from envelope.errors import EnvelopeError
+
+#: The manifest of a complete beam folder, written after every other file.
+MANIFEST = ".complete.json"
+#: The folder of the combined results under OUT; no beam may take this id.
+COMBINED = "_all"
+
+#: A task: (path the worker opens, path shown to the user, id from a quick read or None).
+Task = tuple[str, str, str | None]
+
+
+class BatchError(EnvelopeError):
+    """A batch that cannot start (bad paths, duplicate ids, an unusable cluster)."""
+
+
+class DuplicateIdError(BatchError):
+    """Two or more case files give the same beam id; one line per duplicate."""
+
+    def __init__(self, lines: list[str]) -> None:
+        self.lines = lines
+        super().__init__(lines[0] if len(lines) == 1 else
+                         f"{lines[0]} (and {len(lines) - 1} more)")
+
+
+class ClusterError(EnvelopeError):
+    """The cluster stopped answering in the middle of a batch (rerun to resume)."""
+
+    exit_code = 1
+
+
+@dataclass(frozen=True, slots=True)
+class Entry:
+    """One case file of the batch as the coordinating process sees it."""
+
+    index: int            # discovery order
+    path: str             # as shown to the user
+    target: str           # as opened by a worker (absolute for a cluster)
+    beam_id: str | None   # from a quick read of the file; None when it cannot be told
+    sha256: str | None    # of the raw bytes; None when the file cannot be read
+
+    @property
+    def task(self) -> Task:
+        return (self.target, self.path, self.beam_id)
+
+
+@dataclass(frozen=True, slots=True)
+class Outcome:
+    """What a worker did with one case file (timings in seconds)."""
+
+    path: str
+    beam_id: str
+    error: str | None = None          # None: written
+    manifest: dict[str, Any] | None = None
+    analyse_seconds: float = 0.0      # reading, checking and analysing the case
+    write_seconds: float = 0.0        # api.write: the beam's own files
+    batch_seconds: float = 0.0        # the batch's own writes: partition and manifest
+
+
+@dataclass
+class Summary:
+    """The result of :func:`run_batch`."""
+
+    out: Path
+    total: int = 0
+    skipped: list[str] = field(default_factory=list)     # beam ids, unchanged
+    outcomes: list[Outcome] = field(default_factory=list)
+    seconds: float = 0.0                                 # wall time of the whole batch
+    run_seconds: float = 0.0                             # wall time of the analysis part
+
+    @property
+    def written(self) -> list[Outcome]:
+        return [o for o in self.outcomes if o.error is None]
+
+    @property
+    def failed(self) -> list[Outcome]:
+        return [o for o in self.outcomes if o.error is not None]

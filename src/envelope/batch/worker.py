@@ -1,0 +1,98 @@
+"""The work of one beam and of one chunk of beams, run in a worker process."""
+
+from __future__ import annotations
+
+import json
+import os
+import time
+from collections.abc import Sequence
+from pathlib import Path
+
+from envelope import engine_version
+from envelope.batch.combined import write_partition
+from envelope.batch.model import COMBINED, MANIFEST, BatchError, Outcome, Task
+from envelope.errors import EnvelopeError
+from envelope.files import write_atomic
+
+
+def _is_result(name: str) -> bool:
+    """A file name that a beam run writes (removed when a rerun no longer writes it)."""
+    return not name.startswith(".") and (name.endswith(".parquet") or name == "envelope.png")
+
+
+def _snapshot(folder: Path) -> dict[str, tuple[int, int, int]]:
+    """Identity (inode, mtime, size) of each visible file in ``folder``."""
+    out: dict[str, tuple[int, int, int]] = {}
+    try:
+        with os.scandir(folder) as it:
+            for item in it:
+                if item.is_file() and not item.name.startswith("."):
+                    st = item.stat()
+                    out[item.name] = (st.st_ino, st.st_mtime_ns, st.st_size)
+    except FileNotFoundError:
+        pass
+    return out
+
+
+def _message(exc: BaseException, target: str, shown: str) -> str:
+    text = str(exc) if isinstance(exc, EnvelopeError) else \
+        f"internal error ({type(exc).__name__}): {exc}"
+    text = " ".join(text.split())  # one line
+    return text.replace(target, shown) if target != shown else text
+
+
+def run_beam(task: Task, out: str, plots: bool) -> Outcome:
+    """Analyse one case file and write ``OUT/<id>/`` as ``envelope run`` does, then the
+    manifest; any error becomes the outcome's message (nothing raised)."""
+    from envelope import api
+
+    target, shown, quick_id = task
+    start = time.perf_counter()
+    beam_id = quick_id or ""
+    try:
+        beam = api.load_case(target)
+        beam_id = beam.id
+        if beam.id == COMBINED:
+            raise BatchError(f"{target}: id: {COMBINED!r} is reserved for the combined "
+                             "results of a batch; give the beam another id")
+        result = api.analyse(beam)
+        analysed = time.perf_counter()
+        folder = Path(out) / beam.id
+        # From here on the folder is not complete until the new manifest stands.
+        (folder / MANIFEST).unlink(missing_ok=True)
+        before = _snapshot(folder)
+        api.write(result, out, plots=plots)
+        written = time.perf_counter()
+        after = _snapshot(folder)
+        produced = {name: ident for name, ident in after.items() if before.get(name) != ident}
+        for name in before.keys() - produced.keys():
+            if _is_result(name):  # written by an earlier run, not by this one: stale
+                (folder / name).unlink(missing_ok=True)
+        write_partition(Path(out), beam.id, beam.units.name)
+        manifest = {
+            "beam": beam.id, "input_sha256": beam.input_sha256, "version": engine_version(),
+            "source": shown, "units": beam.units.name, "plots": plots,
+            "files": {name: produced[name][2] for name in sorted(produced)},
+        }
+        data = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
+        write_atomic(folder / MANIFEST, lambda fh: fh.write(data))
+        done = time.perf_counter()
+        return Outcome(shown, beam.id, None, manifest, analysed - start, written - analysed,
+                       done - written)
+    except Exception as exc:
+        return Outcome(shown, beam_id, _message(exc, target, shown), None,
+                       time.perf_counter() - start, 0.0)
+
+
+def run_chunk(tasks: Sequence[Task], out: str, plots: bool) -> list[Outcome]:
+    """One unit of work for a worker: several beams, one after the other."""
+    return [run_beam(task, out, plots) for task in tasks]
+
+
+def worker_engine_version() -> str:
+    """The engine version of the process this runs in (asked of cluster workers)."""
+    return engine_version()
+
+
+def _died(task: Task, how: str) -> Outcome:
+    return Outcome(task[1], task[2] or "", f"{task[1]}: {how}")
