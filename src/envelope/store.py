@@ -240,12 +240,38 @@ def tables(analysis: Analysis, all_cases: bool = False) -> dict[str, pa.Table]:
     }
 
 
+def _values_and_validity(column: pa.ChunkedArray | pa.Array) -> tuple[np.ndarray, np.ndarray]:
+    """A float64 or int32 column's values (as float) and validity, read from the buffers
+    (``to_numpy`` imports pandas when it is installed)."""
+    chunks = column.chunks if isinstance(column, pa.ChunkedArray) else [column]
+    dtype = np.float64 if pa.types.is_floating(column.type) else np.int32
+    values, valid = [np.zeros(0)], [np.zeros(0, dtype=bool)]
+    for a in chunks:
+        n, off = len(a), a.offset
+        if not n:
+            continue
+        bufs = a.buffers()
+        values.append(np.frombuffer(bufs[1], dtype=dtype)[off:off + n].astype(float))
+        if a.null_count:
+            bits = np.unpackbits(np.frombuffer(bufs[0], dtype=np.uint8), bitorder="little")
+            valid.append(bits[off:off + n].astype(bool))
+        else:
+            valid.append(np.ones(n, dtype=bool))
+    return np.concatenate(values), np.concatenate(valid)
+
+
+def numeric_values(column: pa.ChunkedArray | pa.Array) -> np.ndarray:
+    """A float64 or int32 column as a float numpy array, nulls as NaN."""
+    values, valid = _values_and_validity(column)
+    return np.where(valid, values, np.nan)
+
+
 def check_finite(table: pa.Table, name: str) -> None:
     """Refuse NaN or infinity in any float column (nulls are allowed: they mean "none")."""
     for field in table.schema:
         if pa.types.is_floating(field.type):
-            values = table.column(field.name).to_numpy(zero_copy_only=False)
-            values = values[~np.isnan(values)] if table.column(field.name).null_count else values
+            values, valid = _values_and_validity(table.column(field.name))
+            values = values[valid]
             if not np.all(np.isfinite(values)):
                 raise StaticsError(f"{name}: column {field.name} holds a non-finite value; "
                                    "result withheld")
@@ -287,7 +313,7 @@ def result_columns(result_tables: Mapping[str, pa.Table]) -> dict[str, dict[str,
             if pa.types.is_string(col.type):
                 cols[name] = np.array(col.to_pylist(), dtype=object)
             else:
-                cols[name] = col.to_numpy(zero_copy_only=False).astype(float)
+                cols[name] = numeric_values(col)
         out[stem] = cols
         raw = table.schema.metadata or {}
         meta = {k.decode(): v.decode() for k, v in raw.items()}
