@@ -2,10 +2,13 @@
 
 The largest sagging moment and the largest service deflection of each span are
 not limited to stations: every local maximum of the station envelope is
-refined by golden-section search on the envelope itself, evaluated exactly at
-any point, to :data:`envelope.config.GOLDEN_XTOL` of the span length, then moved
-to the root of the governing case's slope (shear for moment, rotation for
-deflection), exact to round-off.  Hogging
+refined.  Where the maximum is smooth, the case governing at the station has a
+root of its slope (shear for moment, rotation for deflection) between the
+neighbouring stations and still governs there: that root is the maximum, exact to
+round-off.  Elsewhere (a kink, a change of governing case) golden-section search
+on the envelope itself, evaluated exactly at any point, brackets the maximum to
+:data:`envelope.config.GOLDEN_XTOL` of the span, and the root of the case governing
+there finishes it where one exists.  Hogging
 moments are taken at the support centrelines and at the support faces (half
 the support width from the centreline; the centreline where no width is given).
 """
@@ -42,7 +45,7 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
         k = int(rows[np.argmax(env_max[rows])])
         best[j], best_x[j] = env_max[k], pts.x_span[k]
 
-    lo, hi, owner = [], [], []
+    lo, hi, at, owner = [], [], [], []
     for j in range(n_spans):
         rows = np.flatnonzero(pts.span == j)
         xs, vals = pts.x_span[rows], env_max[rows]
@@ -51,28 +54,62 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
         for i in range(ux.size):
             left = uv[i - 1] if i > 0 else -np.inf
             right = uv[i + 1] if i + 1 < ux.size else -np.inf
-            if uv[i] >= left and uv[i] >= right:
+            if uv[i] > left and uv[i] >= right:  # a plateau counts once, at its start
                 lo.append(ux[max(i - 1, 0)])
                 hi.append(ux[min(i + 1, ux.size - 1)])
+                at.append(ux[i])
                 owner.append(j)
     if not owner:
         return best, best_x
     a, b = np.array(lo), np.array(hi)
+    x_station = np.array(at)
     span = np.array(owner, dtype=np.int64)
     length = np.array([solved.beam.spans[j].length for j in owner])
 
+    # a smooth maximum: the case governing at the station has a slope root between the
+    # neighbouring stations and still governs there -> exact at once
+    xm, vm, done = _root_of_governing(solved, span, length, x_station, a, b, quantity,
+                                      case_set)
+    if not np.all(done):
+        # a kink, or the governing case changes: golden section on the envelope itself
+        rest = np.flatnonzero(~done)
+        xg, vg = _golden(solved, span[rest], length[rest], a[rest], b[rest], quantity,
+                         case_set)
+        h = config.ROOT_BRACKET * length[rest]
+        xr, vr, _ = _root_of_governing(solved, span[rest], length[rest], xg,
+                                       np.maximum(xg - h, 0.0), np.minimum(xg + h, length[rest]),
+                                       quantity, case_set)
+        better = vr >= vg - config.ZERO_RTOL * np.abs(vg)
+        xm[rest] = np.where(better, xr, xg)
+        vm[rest] = np.where(better, np.maximum(vr, vg), vg)
+    for i, j in enumerate(owner):
+        if vm[i] > best[j]:
+            best[j], best_x[j] = vm[i], xm[i]
+    return best, best_x
+
+
+def _envelope_max(solved: Solved, span: np.ndarray, x: np.ndarray, quantity: str,
+                  case_set: str | None) -> np.ndarray:
+    ext = envelope_at(solved, make_points(solved.beam, span, x), quantity, case_set,
+                      labels=False)
+    assert ext is not None
+    return ext.max
+
+
+def _golden(solved: Solved, span: np.ndarray, length: np.ndarray, a: np.ndarray,
+            b: np.ndarray, quantity: str, case_set: str | None
+            ) -> tuple[np.ndarray, np.ndarray]:
+    """Golden-section search for the envelope maximum in each bracket [a, b], to
+    :data:`envelope.config.GOLDEN_XTOL` of the span; one new point per bracket a step."""
     def f(x: np.ndarray) -> np.ndarray:
         owners = span if x.size == span.size else np.r_[span, span]
-        ext = envelope_at(solved, make_points(solved.beam, owners, x), quantity, case_set,
-                          labels=False)
-        assert ext is not None
-        return ext.max
+        return _envelope_max(solved, owners, x, quantity, case_set)
 
     c = b - _INV_PHI * (b - a)
     d = a + _INV_PHI * (b - a)
     both = f(np.r_[c, d])
     fc, fd = both[: c.size], both[c.size:]
-    for _ in range(200):  # golden section: one new point per bracket per step
+    for _ in range(200):
         if np.all(b - a <= config.GOLDEN_XTOL * length):
             break
         left = fc >= fd  # the maximum is in [a, d]: d becomes the new c
@@ -82,66 +119,68 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
         f_new = f(new_x)
         c, d = np.where(left, new_x, d), np.where(left, c, new_x)
         fc, fd = np.where(left, f_new, fd), np.where(left, fc, f_new)
-    xm = np.where(fc >= fd, c, d)
-    vm = np.maximum(fc, fd)
-    xm, vm = _polish(solved, span, length, xm, vm, quantity, case_set)
-    for i, j in enumerate(owner):
-        if vm[i] > best[j]:
-            best[j], best_x[j] = vm[i], xm[i]
-    return best, best_x
+    return np.where(fc >= fd, c, d), np.maximum(fc, fd)
 
 
-def _polish(solved: Solved, span: np.ndarray, length: np.ndarray, x: np.ndarray,
-            value: np.ndarray, quantity: str, case_set: str | None
-            ) -> tuple[np.ndarray, np.ndarray]:
-    """Move each maximum to the root of the governing case's slope (shear for moment,
-    rotation for deflection) by regula falsi, where the slope changes sign within
-    :data:`envelope.config.ROOT_BRACKET` of the span length; elsewhere (a kink under a
-    point load, an end of the span) the golden-section position stands."""
+def _root_of_governing(solved: Solved, span: np.ndarray, length: np.ndarray, x: np.ndarray,
+                       lo: np.ndarray, hi: np.ndarray, quantity: str, case_set: str | None
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The root in [lo, hi] of the slope (shear for moment, rotation for deflection) of
+    the case governing at ``x``, by Illinois regula falsi, exact to round-off.
+
+    Returns the root, the envelope there, and whether that is a true maximum of the
+    envelope: the slope changed sign from + to - (or, with ``x`` at an end of its
+    bracket, falls away from it) and the same case still governs there.  Elsewhere
+    the root and value are ``x`` and the envelope at ``x``."""
     beam = solved.beam
     cs = solved.case_set(case_set or QUANTITY_SET[quantity])
-    h = config.ROOT_BRACKET * length
-    lo = np.clip(x - h, 0.0, length)
-    hi = np.clip(x + h, 0.0, length)
-    owners = np.r_[span, span]
+    slope_name = _SLOPE[quantity]
 
     def responses(xs: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
-        pts = make_points(beam, owners[: xs.size] if xs.size == span.size else owners, xs)
-        return evaluate_some(solved.mesh, solved.units, solved.solution, pts, names)
+        owners = span if xs.size == span.size else np.r_[span, span]
+        return evaluate_some(solved.mesh, solved.units, solved.solution,
+                             make_points(beam, owners, xs), names)
 
     coef = governing_coefficients(responses(x, (quantity,))[quantity], cs)
-    slope_name = _SLOPE[quantity]
     ends = responses(np.r_[lo, hi], (slope_name,))[slope_name]
-    s_lo = np.einsum("iu,iu->i", ends[: x.size], coef)
-    s_hi = np.einsum("iu,iu->i", ends[x.size:], coef)
-    ok = (s_lo > 0.0) & (s_hi < 0.0)
-    if not ok.any():
-        return x, value
-    # Illinois regula falsi: superlinear, and the root stays bracketed
-    f_lo, f_hi = s_lo, s_hi
+    f_lo = np.einsum("iu,iu->i", ends[: x.size], coef)
+    f_hi = np.einsum("iu,iu->i", ends[x.size:], coef)
+    ok = (f_lo > 0.0) & (f_hi < 0.0)
     root = x.copy()
-    last = np.zeros(x.size)
-    tol = 4.0 * np.finfo(float).eps * np.maximum(length, 1.0)
-    for _ in range(60):
-        denom = np.where(ok, f_hi - f_lo, -1.0)
-        c = np.where(ok, (lo * f_hi - hi * f_lo) / denom, x)
-        c = np.clip(c, lo, hi)
-        f_c = np.einsum("iu,iu->i", responses(c, (slope_name,))[slope_name], coef)
-        done = np.abs(c - root) <= tol
-        root = c
-        if np.all(done | ~ok):
-            break
-        move_lo = f_c > 0.0
-        lo, f_lo = np.where(move_lo, c, lo), np.where(move_lo, f_c, f_lo)
-        hi, f_hi = np.where(move_lo, hi, c), np.where(move_lo, f_hi, f_c)
-        # Illinois: halve the stale end's value when the same end moves twice
-        f_hi = np.where(move_lo & (last > 0), 0.5 * f_hi, f_hi)
-        f_lo = np.where(~move_lo & (last < 0), 0.5 * f_lo, f_lo)
-        last = np.where(move_lo, 1.0, -1.0)
-    ext = envelope_at(solved, make_points(beam, span, root), quantity, case_set, labels=False)
-    assert ext is not None
-    better = ok & (ext.max >= value - config.ZERO_RTOL * np.abs(value))
-    return np.where(better, root, x), np.where(better, np.maximum(ext.max, value), value)
+    if ok.any():
+        last = np.zeros(x.size)
+        tol = 4.0 * np.finfo(float).eps * np.maximum(length, 1.0)
+        for _ in range(60):
+            denom = np.where(ok, f_hi - f_lo, -1.0)
+            c = np.clip(np.where(ok, (lo * f_hi - hi * f_lo) / denom, x), lo, hi)
+            f_c = np.einsum("iu,iu->i", responses(c, (slope_name,))[slope_name], coef)
+            done = np.abs(c - root) <= tol
+            root = np.where(ok, c, x)
+            if np.all(done | ~ok):
+                break
+            move_lo = f_c > 0.0
+            lo, f_lo = np.where(move_lo, c, lo), np.where(move_lo, f_c, f_lo)
+            hi, f_hi = np.where(move_lo, hi, c), np.where(move_lo, f_hi, f_c)
+            # Illinois: halve the stale end's value when the same end moves twice
+            f_hi = np.where(move_lo & (last > 0), 0.5 * f_hi, f_hi)
+            f_lo = np.where(~move_lo & (last < 0), 0.5 * f_lo, f_lo)
+            last = np.where(move_lo, 1.0, -1.0)
+    # a maximum at an end of its bracket (a span end): the case falls away inwards and
+    # the envelope is lower at probes inside the bracket (several cases may tie at a
+    # support, so the governing one alone does not decide)
+    at_end = ~ok & (((x == lo) & (f_lo <= 0.0)) | ((x == hi) & (f_hi >= 0.0)))
+    value = _envelope_max(solved, span, root, quantity, case_set)
+    if at_end.any():
+        ends = np.flatnonzero(at_end)
+        probes = lo[ends, None] + (hi - lo)[ends, None] * np.array([0.01, 0.1, 0.3, 0.6, 0.9,
+                                                                     0.99])
+        inside = _envelope_max(solved, np.repeat(span[ends], probes.shape[1]),
+                               probes.ravel(), quantity, case_set).reshape(probes.shape)
+        at_end[ends] = np.all(inside < value[ends, None], axis=1)
+    own = np.einsum("iu,iu->i", responses(root, (quantity,))[quantity], coef)
+    scale = np.maximum(np.abs(value), np.finfo(float).tiny)
+    governs = value <= own + 1e-12 * scale
+    return root, value, (ok | at_end) & governs
 
 
 def _at_span_ends(pts: Points, n_spans: int) -> tuple[np.ndarray, np.ndarray]:

@@ -41,7 +41,8 @@ class Cells:
 
 @dataclass(frozen=True, slots=True)
 class UnitCases:
-    """Unit cases (one case on one cell) and their element load items."""
+    """Unit cases (one case on one cell) and their element load items, sorted by
+    element."""
 
     case: np.ndarray  # int, n_units: index into beam.cases
     cell: np.ndarray  # int, n_units: index into cells
@@ -53,6 +54,7 @@ class UnitCases:
     item_wa: np.ndarray
     item_wb: np.ndarray
     item_p: np.ndarray  # force or moment of a point item
+    elem_first: np.ndarray  # n_elements + 1: items of element e are elem_first[e]:[e + 1]
 
     @property
     def n_units(self) -> int:
@@ -127,6 +129,7 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
 
     keys = sorted(unit_of, key=unit_of.__getitem__)
     arr = np.array(rows, dtype=float).reshape(-1, 8)
+    arr = arr[np.argsort(arr[:, 1], kind="stable")]  # items grouped by element
     return UnitCases(
         case=np.array([k[0] for k in keys], dtype=np.int64),
         cell=np.array([k[1] for k in keys], dtype=np.int64),
@@ -138,6 +141,7 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
         item_wa=arr[:, 5].copy(),
         item_wb=arr[:, 6].copy(),
         item_p=arr[:, 7].copy(),
+        elem_first=np.searchsorted(arr[:, 1], np.arange(mesh.n_elements + 1)),
     )
 
 

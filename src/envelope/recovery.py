@@ -129,18 +129,15 @@ def _merge(sorted_pts: list[float], keep: set[float], tol: float) -> list[float]
     return out
 
 
-def _pairs(pt_elem: np.ndarray, item_elem: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """All (point, item) index pairs with the point and the item on the same element."""
-    order = np.argsort(item_elem, kind="stable")
-    sorted_elem = item_elem[order]
-    lo = np.searchsorted(sorted_elem, pt_elem, side="left")
-    hi = np.searchsorted(sorted_elem, pt_elem, side="right")
-    count = hi - lo
+def _pairs(pt_elem: np.ndarray, elem_first: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """All (point, item) index pairs with the point and the item on the same element
+    (items are grouped by element: element e holds items elem_first[e]:elem_first[e+1])."""
+    lo = elem_first[pt_elem]
+    count = elem_first[pt_elem + 1] - lo
     total = int(count.sum())
     pt_idx = np.repeat(np.arange(pt_elem.size), count)
     offsets = np.arange(total) - np.repeat(np.cumsum(count) - count, count)
-    item_idx = order[np.repeat(lo, count) + offsets]
-    return pt_idx, item_idx
+    return pt_idx, np.repeat(lo, count) + offsets
 
 
 QUANTITIES = ("shear", "moment", "rotation", "deflection")
@@ -177,15 +174,14 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
         out["deflection"] = (sol.v1[elem] + sol.theta1[elem] * sc
                              + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
 
-    order = np.argsort(units.item_elem, kind="stable")
-    first = np.searchsorted(units.item_elem[order], np.arange(mesh.n_elements + 1))
+    first = units.elem_first
     n_pairs = int((first[elem + 1] - first[elem]).sum())
     if kernel is None:
         kernel = n_pairs > config.KERNEL_MIN_PAIRS
     if n_pairs and kernel:
-        _kernel_terms(mesh, units, points, elem, s, order, first, out)
+        _kernel_terms(mesh, units, points, elem, s, out)
     elif n_pairs:
-        pt, it = _pairs(elem, units.item_elem)
+        pt, it = _pairs(elem, first)
         Q, m, m1, m2 = load_terms(units.item_kind[it], units.item_a[it], units.item_b[it],
                                   units.item_wa[it], units.item_wb[it], units.item_p[it],
                                   s[pt], points.right[pt])
@@ -204,17 +200,16 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
 
 
 def _kernel_terms(mesh: Mesh, units: UnitCases, points: Points, elem: np.ndarray,
-                  s: np.ndarray, order: np.ndarray, first: np.ndarray,
-                  out: dict[str, np.ndarray]) -> None:
+                  s: np.ndarray, out: dict[str, np.ndarray]) -> None:
     """The load terms by the numba kernel, subtracted in place from ``out``."""
     from envelope import _kernels  # numba is imported only here
 
     block = np.zeros((4, points.n, units.n_units))
     gx, gw = _kernels.gauss_rule()
     _kernels.particular_terms(
-        elem, s, points.right, first, units.item_unit[order], units.item_kind[order],
-        units.item_a[order], units.item_b[order], units.item_wa[order],
-        units.item_wb[order], units.item_p[order], mesh.EI[elem], gx, gw, block)
+        elem, s, points.right, units.elem_first, units.item_unit, units.item_kind,
+        units.item_a, units.item_b, units.item_wa, units.item_wb, units.item_p,
+        mesh.EI[elem], gx, gw, block)
     for i, name in enumerate(QUANTITIES):
         if name in out:
             out[name] += block[i]
