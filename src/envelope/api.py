@@ -24,11 +24,12 @@ def tables(result: Analysis) -> dict[str, pa.Table]:
 
 
 def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = False,
-          all_cases: bool | None = None) -> Path:
+          all_cases: bool | None = None, durable: bool = True) -> Path:
     """Write ``OUT/<id>/`` with every result file (envelope.png with ``plots``,
     stations.parquet with ``all_cases``, default the case file's ``[output] all_cases``);
     returns that folder.  All tables are built before the first file is written, so a
-    failure in the analysis or the tables writes nothing."""
+    failure in the analysis or the tables writes nothing.  ``durable=False`` skips the
+    fsync of each file (see :func:`envelope.files.write_atomic`)."""
     from envelope import store
 
     if all_cases is None:
@@ -42,12 +43,12 @@ def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = Fa
     for stem, table in built.items():  # refuse before anything is written
         store.check_finite(table, str(folder / f"{stem}.parquet"))
     if all_cases:
-        store.write_stations(folder / "stations.parquet", result)
-    store.write_tables(folder, built)
+        store.write_stations(folder / "stations.parquet", result, durable)
+    store.write_tables(folder, built, durable)
     if plots:
         from envelope import plots as figures
 
-        figures.draw_results(store.result_columns(built), folder / "envelope.png")
+        figures.draw_results(store.result_columns(built), folder / "envelope.png", durable)
     return folder
 
 

@@ -23,8 +23,12 @@ def _file_mode() -> int:
 _MODE = _file_mode()
 
 
-def write_atomic(path: Path, write: Callable[[BinaryIO], None]) -> None:
-    """Call ``write(fh)`` on a temporary file beside ``path``, fsync it, rename it."""
+def write_atomic(path: Path, write: Callable[[BinaryIO], None], durable: bool = True) -> None:
+    """Call ``write(fh)`` on a temporary file beside ``path``, fsync it, rename it.
+
+    The rename alone makes the file safe against the process being killed; the fsync
+    also makes it safe against the machine losing power.  ``durable=False`` skips the
+    fsync where something else verifies the files later (the batch runner's manifest)."""
     path.parent.mkdir(parents=True, exist_ok=True)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     try:
@@ -32,7 +36,8 @@ def write_atomic(path: Path, write: Callable[[BinaryIO], None]) -> None:
         with os.fdopen(fd, "wb") as fh:
             write(fh)
             fh.flush()
-            os.fsync(fh.fileno())
+            if durable:
+                os.fsync(fh.fileno())
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)

@@ -67,16 +67,18 @@ def _panel(ax, x, hi, lo, unit: str, title: str, flip: bool = False) -> None:  #
         ax.invert_yaxis()
 
 
-def draw_results(results: Mapping[str, Mapping], path: str | Path) -> Path:
+def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool = True) -> Path:
     """Draw from :func:`envelope.store.read_results` output (columns and metadata)."""
     meta = results["meta"]
     return draw(results["envelope"], results["design"], results["reactions"], meta["units"],
                 path, str(meta.get("envelope:moment_plot", "sagging-up")),
-                str(meta.get("envelope:title", "")) or str(meta.get("envelope:beam", "")))
+                str(meta.get("envelope:title", "")) or str(meta.get("envelope:beam", "")),
+                durable)
 
 
 def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[str, str],
-         path: str | Path, moment_plot: str = "sagging-up", title: str = "") -> Path:
+         path: str | Path, moment_plot: str = "sagging-up", title: str = "",
+         durable: bool = True) -> Path:
     """Draw the envelope figure to ``path`` (.png, .svg or .pdf by its suffix)."""
     path = Path(path)
     x = _finite(envelope["x"])
@@ -159,5 +161,5 @@ def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[s
     fig.text(0.99, 0.005, "For checking by a licensed engineer; defer to local codes.",
              ha="right", va="bottom", fontsize=7, color="#777777")
     fmt = path.suffix.lstrip(".").lower() or "png"
-    write_atomic(path, lambda fh: fig.savefig(fh, format=fmt, dpi=DPI))
+    write_atomic(path, lambda fh: fig.savefig(fh, format=fmt, dpi=DPI), durable)
     return path

@@ -208,7 +208,7 @@ STATIONS_SCHEMA = pa.schema([("beam", pa.string()), ("case", pa.int32()),
                              ("deflection", pa.float64())])
 
 
-def write_stations(path: Path, analysis: Analysis) -> None:
+def write_stations(path: Path, analysis: Analysis, durable: bool = True) -> None:
     """stations.parquet: every explicit case at every station, long format, written in
     row groups as the blocks are computed, so the whole table is never in memory."""
     meta = _metadata(analysis)
@@ -226,7 +226,7 @@ def write_stations(path: Path, analysis: Analysis) -> None:
                 check_finite(part, str(path))
                 writer.write_table(part, row_group_size=config.STATIONS_ROW_GROUP)
 
-    write_atomic(path, write)  # type: ignore[arg-type]
+    write_atomic(path, write, durable)  # type: ignore[arg-type]
 
 
 def tables(analysis: Analysis, all_cases: bool = False) -> dict[str, pa.Table]:
@@ -277,13 +277,14 @@ def check_finite(table: pa.Table, name: str) -> None:
                                    "result withheld")
 
 
-def write_parquet(path: Path, table: pa.Table) -> None:
+def write_parquet(path: Path, table: pa.Table, durable: bool = True) -> None:
     """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only."""
     check_finite(table, str(path))
-    write_atomic(path, lambda fh: pq.write_table(table, fh))
+    write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
 
 
-def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> list[Path]:
+def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
+                 durable: bool = True) -> list[Path]:
     """Write each table as ``<stem>.parquet`` in ``out_dir``; returns the paths.  Every
     table is checked before the first file is written, so a refusal writes nothing."""
     for stem, table in result_tables.items():
@@ -291,7 +292,7 @@ def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> list[P
     paths = []
     for stem, table in result_tables.items():
         path = out_dir / f"{stem}.parquet"
-        write_parquet(path, table)
+        write_parquet(path, table, durable)
         paths.append(path)
     return paths
 
