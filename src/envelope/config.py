@@ -16,7 +16,7 @@ REFINE_STEPS = 2
 #: |K d - F| / (|K| |d| + |F|): the backward error of the solve.
 RESIDUAL_RTOL = 1e-9
 
-#: Two positions closer than this fraction of the beam length are one station
+#: Two positions closer than this fraction of the span length are one station
 #: (so that a point load placed at a generated station does not add a third row).
 STATION_MERGE_RTOL = 1e-12
 

@@ -85,7 +85,7 @@ def stations(beam: Beam, mesh: Mesh, units: UnitCases) -> Points:
     spans, xs, rights = [], [], []
     for j, sp in enumerate(beam.spans):
         L = sp.length
-        tol = L * 1e-12
+        tol = L * config.STATION_MERGE_RTOL
         pts = set(np.linspace(0.0, L, n).tolist())
         pts.update(kinks_by_span.get(j, ()))
         w_left, w_right = beam.supports[j].width, beam.supports[j + 1].width

@@ -297,10 +297,6 @@ def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
     return paths
 
 
-def read_table(path: str | os.PathLike) -> pa.Table:
-    return pq.read_table(path)
-
-
 def result_columns(result_tables: Mapping[str, pa.Table]) -> dict[str, dict[str, object]]:
     """The envelope, design and reactions tables as plain columns (numpy arrays; strings
     as object arrays) plus their metadata under ``"meta"`` (``units`` decoded)."""
