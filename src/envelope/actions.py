@@ -71,6 +71,18 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
     xm, vm, done = _root_of_governing(solved, span, length, x_station, a, b, quantity,
                                       case_set)
     if not np.all(done):
+        # a vertex at the station itself (under a point load, at a span end): the
+        # envelope is lower on both sides, near and far
+        rest = np.flatnonzero(~done)
+        steps = np.array([1e-9, 1e-6, 1e-3, 1e-1]) * length[rest, None]
+        probes = np.clip(np.c_[x_station[rest, None] - steps, x_station[rest, None] + steps],
+                         a[rest, None], b[rest, None])
+        inside = _envelope_max(solved, np.repeat(span[rest], probes.shape[1]),
+                               probes.ravel(), quantity, case_set).reshape(probes.shape)
+        own = probes == x_station[rest, None]  # clipped onto the station: no information
+        vertex = np.all(own | (inside <= vm[rest, None]), axis=1)
+        done[rest] = vertex
+    if not np.all(done):
         # a kink, or the governing case changes: golden section on the envelope itself
         rest = np.flatnonzero(~done)
         xg, vg = _golden(solved, span[rest], length[rest], a[rest], b[rest], quantity,
