@@ -75,7 +75,7 @@ class Plan:
 
 FULL = Plan("full", repeats=5, loop_spans=16, loop_sample=400, loop_full_spans=10,
             growth_spans=(4, 8, 16, 32, 64, 128, 256), growth_stations=(21, 101, 501, 2001),
-            growth_combinations=(4, 16, 64), startup_repeats=9, batch_beams=200,
+            growth_combinations=(4, 16, 64), startup_repeats=9, batch_beams=1000,
             memory_spans=50, memory_stations=1000)
 QUICK = Plan("quick", repeats=2, loop_spans=16, loop_sample=120, loop_full_spans=6,
              growth_spans=(8, 32, 128), growth_stations=(21, 501),
