@@ -196,6 +196,18 @@ def _join(base: str, name: str) -> str:
     return f"{base}.{name}" if base else name
 
 
+def _misplaced_hint(document: dict[str, Any], name: str) -> str:
+    """Where a missing top-level key was written after a table header instead (TOML puts
+    every key after ``[table]`` inside that table)."""
+    for header, value in document.items():
+        items = value if isinstance(value, list) else [value]
+        for item in items:
+            if isinstance(item, dict) and name in item:
+                return (f"; a {name!r} was found inside [{header}]: top-level keys must "
+                        "come before the first [table] header")
+    return ""
+
+
 def _item(base: str, index: int) -> str:
     """Key path of the item at 0-based ``index``, shown 1-based."""
     return f"{base}[{index + 1}]"
@@ -259,11 +271,15 @@ class _Reader:
         allowed = tuple(allowed)
         for name in table:
             if name not in allowed:
-                self.fail(_join(key, name), f"unknown key {name!r}{_suggest(name, allowed)}")
+                misplaced = ("; top-level keys must come before the first [table] header"
+                             if key and name in ("id", "title", "units") else "")
+                self.fail(_join(key, name),
+                          f"unknown key {name!r}{_suggest(name, allowed)}{misplaced}")
 
     def required(self, table: dict[str, Any], key: str, name: str) -> Any:
         if name not in table:
-            self.fail(_join(key, name), f"{name!r} is required")
+            hint = _misplaced_hint(table, name) if not key else ""
+            self.fail(_join(key, name), f"{name!r} is required{hint}")
         return table[name]
 
     def string(self, value: object, key: str) -> str:
@@ -379,7 +395,8 @@ class _Reader:
 
     def units(self, data: dict[str, Any]) -> UnitSystem:
         if "units" not in data:
-            self.fail("units", 'required: units = "SI" or units = "US"')
+            self.fail("units", 'required: units = "SI" or units = "US"'
+                               + _misplaced_hint(data, "units"))
         name = self.string(data["units"], "units")
         if name not in SYSTEMS:
             self.fail("units", f'unknown unit system {name!r}; use "SI" or "US"')

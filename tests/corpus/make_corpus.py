@@ -140,10 +140,10 @@ NEW_ROWS: list[Row] = [
      f"{FILE}: title: expected a string, got a table"),
     # a top-level key written after a table header belongs to that table (TOML's rule)
     ("top_level_key_after_a_table", doc(extra='id = "L2-C-1"\n'),
-     f"{FILE}: combinations.custom[1].id: unknown key 'id' (valid: name, set, factors)"),
+     f"{FILE}: combinations.custom[1].id: unknown key 'id' (valid: name, set, factors); top-level keys must come before the first [table] header"),
     ("units_after_the_section_table",
      doc(header='title = "units too late"\n', section=SECTION + 'units = "SI"\n'),
-     f"{FILE}: units: required: units = \"SI\" or units = \"US\""),
+     f"{FILE}: units: required: units = \"SI\" or units = \"US\"; a 'units' was found inside [section]: top-level keys must come before the first [table] header"),
     # -- [section] ----------------------------------------------------------
     ("section_array_of_tables", doc(section="[[section]]\nE = 30000\nI = 8.0e9\n"),
      f"{FILE}: section: expected a table, got an array"),
