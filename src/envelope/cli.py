@@ -77,13 +77,13 @@ def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | 
         for warning in result.solved.solution.warnings:
             click.echo(f"warning: {path}: {warning}", err=True)
         folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
-    if not quiet:
+    click.echo(f"wrote {Path(folder)}")
+    if not quiet:  # each summary ends with its caution line
         click.echo(span_summary(result))
         if result.beam.design is not None:
             from envelope.sizing.table import sizing_summary
 
             click.echo(sizing_summary(result))
-    click.echo(f"wrote {Path(folder)}")
 
 
 @main.command()
