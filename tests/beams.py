@@ -87,22 +87,16 @@ def solve_text(text: str) -> Solved:
     return solve_beam(parse_text(text))
 
 
-def _per_case(solved: Solved) -> np.ndarray:
-    """(n_units, n_cases) 0/1 matrix summing unit cases into their load cases."""
-    m = np.zeros((solved.units.n_units, len(solved.beam.cases)))
-    m[np.arange(solved.units.n_units), solved.units.case] = 1.0
-    return m
-
 
 def case_reactions(solved: Solved) -> np.ndarray:
     """(n_joints, n_cases) upward support reactions of each load case on every span."""
-    return solved.solution.reaction @ _per_case(solved)
+    return solved.solution.reaction @ solved.per_case
 
 
 def case_reaction_moments(solved: Solved) -> np.ndarray:
     """(n_joints, n_cases) support moment reactions on the beam (counter-clockwise positive,
     the solver's convention)."""
-    return solved.solution.reaction_moment @ _per_case(solved)
+    return solved.solution.reaction_moment @ solved.per_case
 
 
 def responses(solved: Solved, span: Sequence[int] | np.ndarray | int,

@@ -38,6 +38,13 @@ class Solved:
     service: CaseSet
     live: CaseSet  # live kinds alone at 1.0, patterned: for deflection_live
 
+    @property
+    def per_case(self) -> np.ndarray:
+        """(n_units, n_cases) 0/1 matrix summing unit cases into their load cases."""
+        m = np.zeros((self.units.n_units, len(self.beam.cases)))
+        m[np.arange(self.units.n_units), self.units.case] = 1.0
+        return m
+
     def case_set(self, name: str) -> CaseSet:
         return {"strength": self.strength, "service": self.service, "live": self.live}[name]
 
@@ -94,8 +101,7 @@ def envelope_at(solved: Solved, points: Points, quantity: str,
 def case_responses(solved: Solved, points: Points) -> Response:
     """Each load case alone on every span at ``points``: (n_points, n_cases) arrays, in
     the order of ``beam.cases`` (consistent units, contract sign conventions)."""
-    per_case = np.zeros((solved.units.n_units, len(solved.beam.cases)))
-    per_case[np.arange(solved.units.n_units), solved.units.case] = 1.0
+    per_case = solved.per_case
     r = evaluate(solved.mesh, solved.units, solved.solution, points)
     return Response(r.shear @ per_case, r.moment @ per_case, r.rotation @ per_case,
                     r.deflection @ per_case)

@@ -48,9 +48,7 @@ def analyse(beam: Beam) -> Analysis:
         "service_reaction": _reduce_rows(sol.reaction[joints], solved.service),
         "support_moment": _reduce_rows(support_moment[joints], solved.strength),
     }
-    per_case = np.zeros((solved.units.n_units, len(beam.cases)))
-    per_case[np.arange(solved.units.n_units), solved.units.case] = 1.0
-    unfactored = sol.reaction[joints] @ per_case
+    unfactored = sol.reaction[joints] @ solved.per_case
     return Analysis(solved, pts, env, joints, reactions, unfactored,
                     design_actions(solved, pts, env))
 

@@ -114,6 +114,17 @@ def _strain(a: np.ndarray, b1: np.ndarray, dt: np.ndarray) -> np.ndarray:
 TRANSITION_SAMPLES = 256
 
 
+def _section_arrays(x: object, b: object, d: object, fc: object, fy: object,
+                    bf: object, hf: object) -> list[np.ndarray]:
+    """The demand (or steel area) and the section as float arrays of one shape; a
+    rectangle (no flange) has bf = b and hf = 0."""
+    b = np.asarray(b, dtype=float)
+    bf_ = b if bf is None else np.asarray(bf, dtype=float)
+    hf_ = np.zeros_like(b) if hf is None else np.asarray(hf, dtype=float)
+    return np.broadcast_arrays(np.asarray(x, dtype=float), b, np.asarray(d, float),
+                               np.asarray(fc, float), np.asarray(fy, float), bf_, hf_)
+
+
 def flexure(mu: np.ndarray | float, b: np.ndarray | float, d: np.ndarray | float,
             fc: np.ndarray | float, fy: np.ndarray | float, system: str,
             bf: np.ndarray | float | None = None,
@@ -133,13 +144,8 @@ def flexure(mu: np.ndarray | float, b: np.ndarray | float, d: np.ndarray | float
     - ``too_small``: Mu > phi_mn_max;
     - ``a``, ``eps_t``, ``phi`` at ``as_required``; ``beta1``.
     """
-    mu = np.abs(np.asarray(mu, dtype=float))
-    b = np.asarray(b, dtype=float)
-    bf_ = b if bf is None else np.asarray(bf, dtype=float)
-    hf_ = np.zeros_like(b) if hf is None else np.asarray(hf, dtype=float)
-    mu, b, d, fc, fy, bf_, hf_ = np.broadcast_arrays(mu, b, np.asarray(d, float),
-                                                     np.asarray(fc, float),
-                                                     np.asarray(fy, float), bf_, hf_)
+    mu, b, d, fc, fy, bf_, hf_ = _section_arrays(np.abs(np.asarray(mu, dtype=float)), b, d,
+                                                 fc, fy, bf, hf)
     k = COEFFICIENTS[system]
     b1 = beta1(fc, system)
     eps_ty = fy / k.Es
@@ -195,13 +201,7 @@ def capacity(As: np.ndarray | float, b: np.ndarray | float, d: np.ndarray | floa
     """Design strength of a section with tension steel ``As`` (yielding): block depth ``a``
     from C = As*fy (inside the flange while As*fy <= 0.85 f'c bf hf), net tensile strain,
     phi (Table 21.2.2) and ``phi_mn`` = phi * Mn (moment units of ``system``)."""
-    As = np.asarray(As, dtype=float)
-    b = np.asarray(b, dtype=float)
-    bf_ = b if bf is None else np.asarray(bf, dtype=float)
-    hf_ = np.zeros_like(b) if hf is None else np.asarray(hf, dtype=float)
-    As, b, d, fc, fy, bf_, hf_ = np.broadcast_arrays(As, b, np.asarray(d, float),
-                                                     np.asarray(fc, float),
-                                                     np.asarray(fy, float), bf_, hf_)
+    As, b, d, fc, fy, bf_, hf_ = _section_arrays(As, b, d, fc, fy, bf, hf)
     k = COEFFICIENTS[system]
     tension = As * fy
     in_flange = tension <= 0.85 * fc * bf_ * hf_
