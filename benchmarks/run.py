@@ -596,17 +596,17 @@ SECTIONS: dict[str, Callable[[Plan, Path, list[Target]], dict[str, Any]]] = {
 
 
 def source_state() -> str:
-    """The engine's commit, and whether src/ has uncommitted changes ("unknown" outside
+    """The engine's commit, and whether envelope/ has uncommitted changes ("unknown" outside
     a git checkout)."""
     root = HERE.parent
     try:
         commit = subprocess.run(["git", "-C", str(root), "rev-parse", "--short", "HEAD"],
                                 capture_output=True, text=True, check=True).stdout.strip()
-        dirty = subprocess.run(["git", "-C", str(root), "status", "--porcelain", "src"],
+        dirty = subprocess.run(["git", "-C", str(root), "status", "--porcelain", "envelope"],
                                capture_output=True, text=True, check=True).stdout.strip()
     except (OSError, subprocess.CalledProcessError):
         return "unknown"
-    return commit + (" with uncommitted changes in src/" if dirty else "")
+    return commit + (" with uncommitted changes in envelope/" if dirty else "")
 
 
 def machine() -> dict[str, Any]:
