@@ -15,17 +15,25 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Literal
+from typing import Literal, get_args
 
 from envelope.units import UnitSystem
 
+# The allowed choices of the case file.  Each Literal is the single list of its
+# choices: the case-file readers derive what they accept (and list in messages,
+# in this order) from these types.
 SupportKind = Literal["pinned", "fixed", "free", "spring"]
 LoadType = Literal["uniform", "linear", "point", "moment", "self_weight"]
 CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind"]
+#: EN 1990 Table A1.1 categories of imposed load (psi factors).
+Category = Literal["A", "B", "C", "D", "E", "F", "G", "H"]
 CombinationSet = Literal["strength", "service"]
+StrengthRuleSet = Literal["asce7-lrfd", "asce7-asd", "en1990-6.10", "en1990-6.10ab", "none"]
+ServiceRuleSet = Literal["characteristic", "none"]
 PatternMethod = Literal["none", "code", "exhaustive", "segments"]
+MomentPlot = Literal["sagging-up", "tension-side"]
 
-CASE_KINDS: tuple[str, ...] = ("dead", "live", "roof_live", "snow", "rain", "wind")
+CASE_KINDS: tuple[CaseKind, ...] = get_args(CaseKind)
 #: Kinds patterned unless the case says ``pattern = false`` (case-format contract).
 PATTERNED_BY_DEFAULT: frozenset[str] = frozenset({"live", "roof_live"})
 #: Kinds whose deflection is reported as ``deflection_live``.
@@ -75,6 +83,16 @@ class Span:
         return self.stretches[0].section
 
 
+#: What each support kind restrains, as (k_vertical, k_rotation) in force/length and
+#: moment/radian; a spring's stiffnesses take these values where the case file omits them.
+RESTRAINTS: dict[str, tuple[float, float]] = {
+    "pinned": (math.inf, 0.0),
+    "fixed": (math.inf, math.inf),
+    "free": (0.0, 0.0),
+    "spring": (math.inf, 0.0),
+}
+
+
 @dataclass(frozen=True, slots=True)
 class Support:
     """A joint's restraint.  Stiffnesses are force/length and moment/radian;
@@ -105,7 +123,7 @@ class LoadCase:
     name: str
     kind: CaseKind
     patterned: bool
-    category: str | None = None
+    category: Category | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -155,8 +173,8 @@ class Combination:
 class CombinationSpec:
     """The ``[combinations]`` table: rule-set names and custom combinations."""
 
-    strength: str = "none"
-    service: str = "none"
+    strength: StrengthRuleSet = "none"
+    service: ServiceRuleSet = "none"
     reduced_companion_live: bool = False
     custom: tuple[Combination, ...] = ()
 
@@ -176,7 +194,7 @@ class OutputOptions:
 
     stations_per_span: int = 21
     all_cases: bool = False
-    moment_plot: Literal["sagging-up", "tension-side"] = "sagging-up"
+    moment_plot: MomentPlot = "sagging-up"
 
 
 @dataclass(frozen=True, slots=True)

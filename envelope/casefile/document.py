@@ -1,0 +1,110 @@
+"""The whole case file: the entry points, the top-level keys and the order of reading.
+
+``units`` is read first, with a reader that knows no unit system; every other
+table is read by a :class:`~envelope.casefile.reader.Reader` made with that
+system.  The tables are then read in file-contract order (geometry, cases,
+loads, options, design) and the beam is checked for stability last.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import re
+import tomllib
+from pathlib import Path
+from typing import Any
+
+from envelope import stability
+from envelope.casefile import design, geometry, loads, options
+from envelope.casefile.reader import Reader, TomlReader, misplaced_hint, one_line
+from envelope.errors import CaseError
+from envelope.model import Beam
+from envelope.units import SYSTEMS, UnitSystem
+
+TOP_KEYS = ("id", "title", "units", "section", "spans", "supports", "cases", "loads",
+            "combinations", "patterning", "output", "design")
+ID_PATTERN = re.compile(r"[A-Za-z0-9._-]{1,64}")
+
+
+def load_case(path: str | os.PathLike[str]) -> Beam:
+    """Read, check and convert the case file at ``path``.
+
+    ``Beam.input_sha256`` is the SHA-256 of the file's raw bytes, so a result
+    can be traced to the exact input it came from.  A UTF-8 byte-order mark is
+    accepted (some editors write one).
+    """
+    source = os.fspath(path)
+    try:
+        raw = Path(source).read_bytes()
+    except OSError as exc:
+        raise CaseError(source, "", f"cannot read the file ({exc.strerror or exc})") from None
+    sha256 = hashlib.sha256(raw).hexdigest()
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise CaseError(
+            source, "",
+            f"the file is not UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
+        ) from None
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise CaseError(source, "", f"not valid TOML: {one_line(str(exc))}") from None
+    if not data:
+        raise CaseError(source, "", "the file is empty (no keys, only blanks or comments)")
+    return parse_case(data, source, sha256)
+
+
+def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
+    """Check and convert an already-parsed case file (the TOML document as a dict).
+
+    ``source`` names the file in every message; the default id is its stem.
+    """
+    toml = TomlReader(source)
+    toml.table(data, "")
+    toml.known_keys(data, "", TOP_KEYS)
+    r = Reader(source, units(toml, data))
+    beam_id = read_id(r, data)
+    title = r.string(data["title"], "title") if "title" in data else ""
+    default = geometry.default_section(r, data)
+    spans = geometry.spans(r, data, default)
+    supports = geometry.supports(r, data, spans)
+    cases = options.cases(r, data)
+    beam_loads = loads.loads(r, data, spans, cases)
+    combinations = options.combinations(r, data, cases)
+    patterning = options.patterning(r, data)
+    output = options.output(r, data)
+    design_table = design.design(r, data)
+    stability.check(spans, supports, source, length_unit=r.length_unit())
+    return Beam(
+        id=beam_id, title=title, units=r.system, spans=spans, supports=supports,
+        cases=cases, loads=beam_loads, combinations=combinations, patterning=patterning,
+        output=output, design=design_table, source=source, input_sha256=sha256,
+    )
+
+
+def units(toml: TomlReader, data: dict[str, Any]) -> UnitSystem:
+    """The unit system named by ``units`` (required): read before any quantity."""
+    if "units" not in data:
+        toml.fail("units", 'required: units = "SI" or units = "US"'
+                           + misplaced_hint(data, "units"))
+    name = toml.string(data["units"], "units")
+    if name not in SYSTEMS:
+        toml.fail("units", f'unknown unit system {name!r}; use "SI" or "US"')
+    return SYSTEMS[name]
+
+
+def read_id(r: TomlReader, data: dict[str, Any]) -> str:
+    """The beam's id: ``id`` if given, else the file's stem; a safe file name either way."""
+    if "id" in data:
+        beam_id = r.string(data["id"], "id")
+        given = "id"
+    else:
+        beam_id = Path(r.source).stem
+        given = "the file name"
+    if not ID_PATTERN.fullmatch(beam_id) or beam_id in (".", ".."):
+        hint = "" if given == "id" else "; give an id in the file"
+        r.fail("id", f"{given} {beam_id!r} is not a valid id: use 1 to 64 letters, "
+                     f"digits, '.', '_' or '-', and not '.' or '..'{hint}")
+    return beam_id

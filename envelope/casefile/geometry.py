@@ -1,0 +1,207 @@
+"""The beam's geometry: ``[section]``, ``[[spans]]`` (with their stretches) and ``[[supports]]``.
+
+Lengths are read into the consistent units of the file's system; E and I of a
+span come from the span, else from ``[section]``; a stretch overrides its
+span's values over part of it.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+from typing import Any, get_args
+
+from envelope.casefile.reader import Reader, item, join, suggest
+from envelope.model import RESTRAINTS, Section, Span, Stretch, Support, SupportKind
+
+SECTION_KEYS = ("E", "I", "A", "unit_weight")
+#: Each section property and the quantity its unit strings are read as.
+SECTION_QUANTITIES = {"E": "modulus", "I": "inertia", "A": "area", "unit_weight": "unit_weight"}
+SPAN_KEYS = ("length", *SECTION_KEYS, "sections")
+STRETCH_KEYS = ("from", "to", *SECTION_KEYS)
+SUPPORT_TYPES: tuple[SupportKind, ...] = get_args(SupportKind)
+SUPPORT_KEYS: dict[str, tuple[str, ...]] = {
+    "pinned": ("type", "width"),
+    "fixed": ("type", "width"),
+    "free": ("type",),
+    "spring": ("type", "k_vertical", "k_rotation", "columns", "width"),
+}
+COLUMN_KEYS = ("E", "I", "height_below", "height_above", "far_end")
+#: Column far-end condition -> coefficient c in k = c*E*I/h (common practice:
+#: 4EI/h with the far end fixed, 3EI/h with it pinned).
+FAR_END_COEFFICIENT = {"fixed": 4.0, "pinned": 3.0}
+
+#: Shortest stretch of constant section, as a fraction of its span.  Shorter elements
+#: are so much stiffer than their neighbours that double precision cannot resolve their
+#: end forces to the statics tolerance (measured: a 12 m span fails below about 8 mm).
+MIN_STRETCH = 2e-3
+
+#: Section properties as read so far (None where not given yet).
+Props = dict[str, float | None]
+
+
+# -- sections and spans -----------------------------------------------------
+
+
+def section_props(r: Reader, table: dict[str, Any], key: str, base: Props) -> Props:
+    """E, I, A, unit_weight from ``table`` over ``base`` (all positive)."""
+    props = dict(base)
+    for name, quantity in SECTION_QUANTITIES.items():
+        if name in table:
+            props[name] = r.positive(table[name], join(key, name), quantity)
+    return props
+
+
+def default_section(r: Reader, data: dict[str, Any]) -> Props:
+    """The ``[section]`` table: the properties every span starts from."""
+    empty: Props = dict.fromkeys(SECTION_KEYS)
+    if "section" not in data:
+        return empty
+    table = r.table(data["section"], "section")
+    r.known_keys(table, "section", SECTION_KEYS)
+    return section_props(r, table, "section", empty)
+
+
+def make_section(r: Reader, props: Props, key: str) -> Section:
+    """A :class:`Section` from the properties read; E and I are required."""
+    for name in ("E", "I"):
+        if props[name] is None:
+            r.fail(key, f"no {name} for this span: give {name} in [section] or here")
+    E, I = props["E"], props["I"]  # noqa: E741 - the engineering names
+    assert E is not None and I is not None
+    return Section(E=E, I=I, A=props["A"], unit_weight=props["unit_weight"])
+
+
+def spans(r: Reader, data: dict[str, Any], default: Props) -> tuple[Span, ...]:
+    """The ``[[spans]]``, left to right."""
+    if "spans" not in data:
+        r.fail("spans", "required: at least one [[spans]] with a length")
+    items = r.array_of_tables(data["spans"], "spans")
+    if not items:
+        r.fail("spans", "at least one span is required")
+    return tuple(span(r, entry, item("spans", i), default) for i, entry in enumerate(items))
+
+
+def span(r: Reader, table: dict[str, Any], key: str, default: Props) -> Span:
+    """One span: its length and its stretches covering [0, length] without gaps."""
+    r.known_keys(table, key, SPAN_KEYS)
+    length = r.positive(r.required(table, key, "length"), join(key, "length"), "length")
+    props = section_props(r, table, key, default)
+    section = make_section(r, props, key)
+    pieces: list[tuple[float, float, Section, str]] = []
+    if "sections" in table:
+        skey = join(key, "sections")
+        for j, entry in enumerate(r.array_of_tables(table["sections"], skey)):
+            pieces.append(stretch(r, entry, item(skey, j), length, props))
+    pieces.sort(key=lambda p: p[0])
+    for (_, prev_end, _, prev_key), (start, _, _, this_key) in itertools.pairwise(pieces):
+        if start < prev_end:
+            r.fail(this_key, f"overlaps {prev_key} (which ends at {r.fmt_len(prev_end)})")
+    stretches: list[Stretch] = []
+    x = 0.0
+    shortest = MIN_STRETCH * length
+    for start, end, sec, skey in pieces:
+        if start > x:
+            long_enough(r, x, start, shortest, skey, "the part of the span before it")
+            stretches.append(Stretch(x, start, section))
+        long_enough(r, start, end, shortest, skey, "this stretch")
+        stretches.append(Stretch(start, end, sec))
+        x = end
+    if x < length:
+        if pieces:
+            long_enough(r, x, length, shortest, pieces[-1][3], "the part of the span after it")
+        stretches.append(Stretch(x, length, section))
+    return Span(length=length, stretches=tuple(stretches))
+
+
+def long_enough(r: Reader, start: float, end: float, shortest: float, key: str,
+                what: str) -> None:
+    """Refuse a stretch too short to analyse in double precision (see MIN_STRETCH)."""
+    if end - start < shortest:
+        r.fail(key, f"{what} is {r.fmt_len(end - start)} long, less than "
+                    f"1/{round(1 / MIN_STRETCH)} of the span ({r.fmt_len(shortest)}):"
+                    " too short to analyse accurately; merge it with its neighbour")
+
+
+def stretch(r: Reader, table: dict[str, Any], key: str, length: float,
+            span_props: Props) -> tuple[float, float, Section, str]:
+    """One ``[[spans.sections]]`` item: (from, to, section, key path)."""
+    r.known_keys(table, key, STRETCH_KEYS)
+    start = r.within_span(r.required(table, key, "from"), join(key, "from"), length, "from")
+    end = r.within_span(r.required(table, key, "to"), join(key, "to"), length, "to")
+    if not start < end:
+        r.fail(key, f"'from' ({r.fmt_len(start)}) must be less than 'to' ({r.fmt_len(end)})")
+    section = make_section(r, section_props(r, table, key, span_props), key)
+    return start, end, section, key
+
+
+# -- supports ---------------------------------------------------------------
+
+
+def supports(r: Reader, data: dict[str, Any], spans: tuple[Span, ...]) -> tuple[Support, ...]:
+    """The ``[[supports]]``, one per joint; the support faces of a span must not meet."""
+    if "supports" not in data:
+        r.fail("supports", f"required: one [[supports]] per joint ({len(spans) + 1} "
+                           f"for {len(spans)} spans)")
+    items = r.array_of_tables(data["supports"], "supports")
+    if len(items) != len(spans) + 1:
+        r.fail("supports", f"expected {len(spans) + 1} supports (one per joint: "
+                           f"{len(spans)} spans + 1), found {len(items)}")
+    out = tuple(support(r, entry, item("supports", j)) for j, entry in enumerate(items))
+    for i, one in enumerate(spans):
+        faces = out[i].width / 2.0 + out[i + 1].width / 2.0
+        if faces >= one.length:
+            wider = i + 1 if out[i + 1].width > 0.0 else i  # 0-based joint
+            r.fail(join(item("supports", wider), "width"),
+                   f"the support faces meet or overlap in span {i + 1} (half-widths "
+                   f"add up to {r.fmt_len(faces)}, span {r.fmt_len(one.length)})")
+    return out
+
+
+def support(r: Reader, table: dict[str, Any], key: str) -> Support:
+    """One joint's restraint (see :data:`envelope.model.RESTRAINTS` for each kind)."""
+    kind = r.choice(r.required(table, key, "type"), join(key, "type"), SUPPORT_TYPES,
+                    "support type")
+    allowed = SUPPORT_KEYS[kind]
+    for name in table:
+        if name in allowed:
+            continue
+        if kind == "free" and name == "width":
+            r.fail(join(key, name), "a free support has no width (it restrains "
+                                    "nothing, so there is no support face)")
+        if name in SUPPORT_KEYS["spring"]:
+            r.fail(join(key, name), f"key {name!r} applies to spring supports only")
+        r.fail(join(key, name), f"unknown key {name!r}{suggest(name, allowed)}")
+    width = r.optional(table, key, "width",
+                       lambda v, k: r.non_negative(v, k, "length"), 0.0)
+    k_vertical, k_rotation = RESTRAINTS[kind]
+    if kind != "spring":
+        return Support(kind, k_vertical, k_rotation, width)
+    k_vertical = r.optional(table, key, "k_vertical",
+                            lambda v, k: r.non_negative(v, k, "k_vertical"), k_vertical)
+    if "k_rotation" in table and "columns" in table:
+        r.fail(join(key, "columns"), "give either k_rotation or columns, not both")
+    k_rotation = r.optional(table, key, "k_rotation",
+                            lambda v, k: r.non_negative(v, k, "k_rotation"), k_rotation)
+    k_rotation = r.optional(table, key, "columns", lambda v, k: columns(r, v, k), k_rotation)
+    if width > 0.0 and k_vertical == 0.0 and k_rotation == 0.0:
+        r.fail(join(key, "width"), "a spring support with no stiffness restrains "
+                                   "nothing, so it has no support face")
+    return Support("spring", k_vertical, k_rotation, width)
+
+
+def columns(r: Reader, value: object, key: str) -> float:
+    """Rotational stiffness of the columns framing in: sum of c*E*I/h over the
+    columns present, c = 4 with the far end fixed, 3 with it pinned (common practice)."""
+    table = r.table(value, key)
+    r.known_keys(table, key, COLUMN_KEYS)
+    E = r.positive(r.required(table, key, "E"), join(key, "E"), "modulus")
+    I = r.positive(r.required(table, key, "I"), join(key, "I"), "inertia")  # noqa: E741
+    far_end = r.choice(r.required(table, key, "far_end"), join(key, "far_end"),
+                       tuple(FAR_END_COEFFICIENT), "far-end condition")
+    heights = [r.positive(table[h], join(key, h), "length")
+               for h in ("height_below", "height_above") if h in table]
+    if not heights:
+        r.fail(key, "give height_below, height_above or both")
+    c = FAR_END_COEFFICIENT[far_end]
+    return math.fsum(c * E * I / h for h in heights)

@@ -1,0 +1,188 @@
+"""The options of a run: ``[cases]``, ``[combinations]``, ``[patterning]`` and ``[output]``.
+
+Where a key is absent its value is the model's default (the dataclass fields of
+:mod:`envelope.model`); the choices allowed are the model's Literal types.
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Any, get_args
+
+from envelope.casefile.reader import Reader, item, join
+from envelope.model import (
+    CASE_KINDS,
+    LIVE_KINDS,
+    PATTERNED_BY_DEFAULT,
+    Category,
+    Combination,
+    CombinationSet,
+    CombinationSpec,
+    LoadCase,
+    MomentPlot,
+    OutputOptions,
+    Patterning,
+    PatternMethod,
+    ServiceRuleSet,
+    StrengthRuleSet,
+)
+
+CASE_NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
+CASE_KEYS = ("kind", "pattern", "category")
+CATEGORIES: tuple[Category, ...] = get_args(Category)
+
+COMBINATION_KEYS = ("strength", "service", "reduced_companion_live", "custom")
+STRENGTH_SETS: tuple[StrengthRuleSet, ...] = get_args(StrengthRuleSet)
+SERVICE_SETS: tuple[ServiceRuleSet, ...] = get_args(ServiceRuleSet)
+CUSTOM_KEYS = ("name", "set", "factors")
+COMBINATION_SETS: tuple[CombinationSet, ...] = get_args(CombinationSet)
+
+PATTERNING_KEYS = ("method", "segments", "favourable_dead")
+PATTERN_METHODS: tuple[PatternMethod, ...] = get_args(PatternMethod)
+#: Upper bound on ``segments``: parts per span, each a separate unit load case.
+MAX_SEGMENTS = 1000
+#: Bounds on favourable_dead: a factor on dead load, 0 (removed) to 2 (doubled).
+FAVOURABLE_DEAD_RANGE = (0.0, 2.0)
+
+OUTPUT_KEYS = ("stations_per_span", "all_cases", "moment_plot")
+STATIONS_RANGE = (2, 100_001)
+MOMENT_PLOTS: tuple[MomentPlot, ...] = get_args(MomentPlot)
+
+
+# -- [cases] ----------------------------------------------------------------
+
+
+def cases(r: Reader, data: dict[str, Any]) -> tuple[LoadCase, ...]:
+    """The ``[cases]`` table: every load case, in file order."""
+    if "cases" not in data:
+        r.fail("cases", "required: declare every load case, e.g. D = { kind = \"dead\" }")
+    table = r.table(data["cases"], "cases")
+    if not table:
+        r.fail("cases", "no load cases declared")
+    return tuple(case(r, name, value) for name, value in table.items())
+
+
+def case(r: Reader, name: str, value: object) -> LoadCase:
+    """One load case: its kind, whether it is patterned, its EN 1990 category."""
+    key = join("cases", name)
+    if not CASE_NAME_PATTERN.fullmatch(name):
+        r.fail(key, f"case name {name!r} must start with a letter and use only "
+                    "letters, digits and '_'")
+    table = r.table(value, key)
+    r.known_keys(table, key, CASE_KEYS)
+    kind = r.choice(r.required(table, key, "kind"), join(key, "kind"), CASE_KINDS, "case kind")
+    patterned = r.optional(table, key, "pattern", r.boolean, kind in PATTERNED_BY_DEFAULT)
+    category = r.optional(table, key, "category",
+                          lambda v, k: r.choice(v, k, CATEGORIES, "category"), None)
+    if category is not None and kind not in LIVE_KINDS:
+        r.fail(join(key, "category"),
+               "categories A to H (EN 1990 Table A1.1) apply to imposed loads: "
+               f"kind 'live' or 'roof_live', not {kind!r}")
+    return LoadCase(name=name, kind=kind, patterned=patterned, category=category)
+
+
+# -- [combinations] ---------------------------------------------------------
+
+
+def combinations(r: Reader, data: dict[str, Any],
+                 cases: tuple[LoadCase, ...]) -> CombinationSpec:
+    """The ``[combinations]`` table: rule sets and custom combinations."""
+    key = "combinations"
+    table = r.optional_table(data, key, COMBINATION_KEYS)
+    default = CombinationSpec()
+    strength = r.optional(table, key, "strength",
+                          lambda v, k: r.choice(v, k, STRENGTH_SETS, "strength rule set"),
+                          default.strength)
+    service = r.optional(table, key, "service",
+                         lambda v, k: r.choice(v, k, SERVICE_SETS, "service rule set"),
+                         default.service)
+    reduced = r.optional(table, key, "reduced_companion_live", r.boolean,
+                         default.reduced_companion_live)
+    custom = r.optional(table, key, "custom", lambda v, k: custom_list(r, v, k, cases),
+                        default.custom)
+    if strength == "none" and service == "none" and not custom:
+        r.fail(key, 'nothing to run: strength and service are both "none" and there '
+                    "are no [[combinations.custom]]")
+    return CombinationSpec(strength=strength, service=service,
+                           reduced_companion_live=reduced, custom=custom)
+
+
+def custom_list(r: Reader, value: object, key: str,
+                cases: tuple[LoadCase, ...]) -> tuple[Combination, ...]:
+    """``[[combinations.custom]]``: each combination, names unique."""
+    out: list[Combination] = []
+    for i, entry in enumerate(r.array_of_tables(value, key)):
+        combo = custom(r, entry, item(key, i), cases)
+        if any(c.name == combo.name for c in out):
+            r.fail(join(item(key, i), "name"), f"combination name {combo.name!r} is used twice")
+        out.append(combo)
+    return tuple(out)
+
+
+def custom(r: Reader, table: dict[str, Any], key: str,
+           cases: tuple[LoadCase, ...]) -> Combination:
+    """One custom combination: a name, a set and factors by declared case."""
+    r.known_keys(table, key, CUSTOM_KEYS)
+    name = r.string(r.required(table, key, "name"), join(key, "name"))
+    if not name.strip():
+        r.fail(join(key, "name"), "the name is empty")
+    combo_set = r.choice(r.required(table, key, "set"), join(key, "set"), COMBINATION_SETS,
+                         "combination set")
+    fkey = join(key, "factors")
+    factors = r.table(r.required(table, key, "factors"), fkey)
+    if not factors:
+        r.fail(fkey, "no factors: give at least one case = factor")
+    names = tuple(c.name for c in cases)
+    read: dict[str, float] = {}
+    for case_name, value in factors.items():
+        if case_name not in names:
+            r.fail(join(fkey, case_name), f"case {case_name!r} is not declared in [cases] "
+                                          f"(declared: {', '.join(names)})")
+        read[case_name] = r.plain_number(value, join(fkey, case_name))
+    ordered = tuple((c, read[c]) for c in names if c in read)
+    return Combination(name=name, set=combo_set, factors=ordered, source="custom")
+
+
+# -- [patterning] and [output] ----------------------------------------------
+
+
+def patterning(r: Reader, data: dict[str, Any]) -> Patterning:
+    """The ``[patterning]`` table."""
+    key = "patterning"
+    table = r.optional_table(data, key, PATTERNING_KEYS)
+    default = Patterning()
+    method = r.optional(table, key, "method",
+                        lambda v, k: r.choice(v, k, PATTERN_METHODS, "patterning method"),
+                        default.method)
+    segments = r.optional(table, key, "segments",
+                          lambda v, k: r.integer(v, k, 1, MAX_SEGMENTS), default.segments)
+    if method == "segments" and segments < 2:
+        r.fail(join(key, "segments"), 'method "segments" needs segments = 2 or more '
+                                      f"(parts per span), got {segments}")
+    favourable = r.optional(table, key, "favourable_dead", lambda v, k: factor_in(
+        r, v, k, FAVOURABLE_DEAD_RANGE), default.favourable_dead)
+    return Patterning(method=method, segments=segments, favourable_dead=favourable)
+
+
+def factor_in(r: Reader, value: object, key: str, bounds: tuple[float, float]) -> float:
+    """A plain number from ``bounds[0]`` to ``bounds[1]``."""
+    out = r.plain_number(value, key)
+    lo, hi = bounds
+    if not lo <= out <= hi:
+        r.fail(key, f"must be from {lo:g} to {hi:g}, got {out:g}")
+    return out
+
+
+def output(r: Reader, data: dict[str, Any]) -> OutputOptions:
+    """The ``[output]`` table."""
+    key = "output"
+    table = r.optional_table(data, key, OUTPUT_KEYS)
+    default = OutputOptions()
+    stations = r.optional(table, key, "stations_per_span",
+                          lambda v, k: r.integer(v, k, *STATIONS_RANGE),
+                          default.stations_per_span)
+    all_cases = r.optional(table, key, "all_cases", r.boolean, default.all_cases)
+    moment_plot = r.optional(table, key, "moment_plot", lambda v, k: r.choice(
+        v, k, MOMENT_PLOTS, "moment plot convention"), default.moment_plot)
+    return OutputOptions(stations_per_span=stations, all_cases=all_cases,
+                         moment_plot=moment_plot)
