@@ -87,6 +87,68 @@ def element_end_forces(length: np.ndarray, EI: np.ndarray, de: np.ndarray) -> np
     return np.stack([shear, m1, -shear, m2], axis=1)
 
 
+def _two_sum(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """a + b = s + e exactly (Knuth's TwoSum), elementwise."""
+    s = a + b
+    bb = s - a
+    return s, (a - (s - bb)) + (b - bb)
+
+
+def _split(a: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """a = hi + lo with 26-bit halves (Veltkamp), so that products of halves are exact."""
+    c = 134217729.0 * a  # 2**27 + 1
+    hi = c - (c - a)
+    return hi, a - hi
+
+
+def _two_prod(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """a * b = p + e exactly (Dekker's TwoProduct), elementwise."""
+    p = a * b
+    ah, al = _split(a)
+    bh, bl = _split(b)
+    return p, ((ah * bh - p) + ah * bl + al * bh) + al * bl
+
+
+def _exact_combination(terms: list[tuple[float, np.ndarray, np.ndarray]]) -> np.ndarray:
+    """sum of c * (hi + lo) over ``terms``, rounded once: error-free products and sums
+    of the leading parts, so that the result is accurate relative to itself however
+    much the terms cancel (to about eps**2 of the largest term)."""
+    total = np.zeros(np.broadcast_shapes(*(h.shape for _, h, _ in terms)))
+    tail = np.zeros_like(total)
+    for c, hi, lo in terms:
+        p, q = _two_prod(np.float64(c), hi)
+        total, e = _two_sum(total, p)
+        tail += e + q + c * lo
+    return total + tail
+
+
+def element_end_forces_exact(length: np.ndarray, EI: np.ndarray,
+                             de: np.ndarray) -> np.ndarray:
+    """:func:`element_end_forces` with the chord algebra carried to twice the working
+    precision: for the float64 deformations ``de`` as they stand, the end forces are
+    accurate relative to themselves.
+
+    Written over the chord Dv = v2 - v1 (exact as a sum of two floats) and the products
+    l*theta (exact as a sum of two floats): M1 = EI/l^2 (4 l th1 + 2 l th2 - 6 Dv),
+    M2 = EI/l^2 (2 l th1 + 4 l th2 - 6 Dv), V = 6 EI/l^3 (l th1 + l th2 - 2 Dv).  On a
+    short, stiff element these brackets are many orders smaller than their terms (the
+    rotations and the deflections of the whole beam), which in plain float64 leaves
+    only the last few digits of the end forces' true value; the shear divides them by
+    l once more."""
+    l = np.broadcast_to(length[:, None], de[:, 0].shape)  # noqa: E741
+    dv, dv_e = _two_sum(de[:, 2], -de[:, 0])
+    a1, a1_e = _two_prod(l, de[:, 1])
+    a2, a2_e = _two_prod(l, de[:, 3])
+    b1 = _exact_combination([(4.0, a1, a1_e), (2.0, a2, a2_e), (-6.0, dv, dv_e)])
+    b2 = _exact_combination([(2.0, a1, a1_e), (4.0, a2, a2_e), (-6.0, dv, dv_e)])
+    bv = _exact_combination([(1.0, a1, a1_e), (1.0, a2, a2_e), (-2.0, dv, dv_e)])
+    k2 = (EI / length**2)[:, None]
+    m1 = k2 * b1
+    m2 = k2 * b2
+    shear = (6.0 * EI / length**3)[:, None] * bv
+    return np.stack([shear, m1, -shear, m2], axis=1)
+
+
 def fixed_end_terms(mesh: Mesh, units: UnitCases) -> tuple[np.ndarray, ...]:
     """(Q, m, m1, m2) at each element's right end, per element and unit: (n_elem, n_units)."""
     n_e, n_u = mesh.n_elements, units.n_units
@@ -142,8 +204,7 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     M0F = -2.0 * m1l / l + 6.0 * m2l / l**2
     fF = np.stack([V0F, -M0F, Ql - V0F, M0F + V0F * l - ml], axis=1)  # (n_e, 4, n_u)
 
-    F = np.zeros((n_dof, n_u))
-    np.add.at(F, base[:, None] + np.arange(4), -fF)
+    F = _node_sums(-fF, n_dof)
     F[rigid] = 0.0
 
     try:
@@ -157,31 +218,34 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     condition = float((pivots.max() / pivots.min()) ** 2)  # a lower bound, cheap
     d[rigid] = 0.0
 
-    def forces(d: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        de = d[base[:, None] + np.arange(4)]  # (n_e, 4, n_u)
-        f = element_end_forces(mesh.length, mesh.EI, de) + fF
-        node_f = np.zeros((n_dof, n_u))
-        np.add.at(node_f, base[:, None] + np.arange(4), f)  # sum of element end forces
-        return de, f, node_f
+    # Iterative refinement with the same factor, the solution kept as d + dd: the end
+    # forces of d (fixed after the first solve) are computed once to twice the working
+    # precision, those of the small correction dd in plain float64, so the residual
+    # stays accurate where a very short, stiff element would otherwise leave only the
+    # last digits of its shear (the chord of two nearly equal deflections over l^3).
+    def gather(x: np.ndarray) -> np.ndarray:
+        return x[base[:, None] + np.arange(4)]  # (n_e, 4, n_u)
 
-    de, f, node_f = forces(d)
-    # iterative refinement with the same factor: the residual, computed from deformations,
-    # is accurate where the solve alone loses digits (very short, stiff elements)
+    f_d = element_end_forces_exact(mesh.length, mesh.EI, gather(d)) + fF
+    dd = np.zeros_like(d)
+    f = f_d
+    node_f = _node_sums(f, n_dof)
     for _ in range(config.REFINE_STEPS):
-        r = -(node_f + spring[:, None] * d)
+        r = -(node_f + spring[:, None] * d + spring[:, None] * dd)
         r[rigid] = 0.0
         if not np.any(np.abs(r) > 0.0):
             break
-        d = d + cho_solve_banded((chol, False), r, check_finite=False)
-        d[rigid] = 0.0
-        de, f, node_f = forces(d)
+        dd += cho_solve_banded((chol, False), r, check_finite=False)
+        dd[rigid] = 0.0
+        f = f_d + element_end_forces(mesh.length, mesh.EI, gather(dd))
+        node_f = _node_sums(f, n_dof)
+    d = d + dd
+    de = gather(d)
     support_dof = np.zeros(n_dof, dtype=bool)
     support_dof[rigid] = True
     support_dof[spring > 0.0] = True
     # the scale of the forces meeting at each dof: |k_e| |d_e| + |fixed-end forces|
-    bound = np.zeros((n_dof, n_u))
-    np.add.at(bound, base[:, None] + np.arange(4),
-              np.einsum("epq,equ->epu", np.abs(ke), np.abs(de)) + np.abs(fF))
+    bound = _node_sums(np.einsum("epq,equ->epu", np.abs(ke), np.abs(de)) + np.abs(fF), n_dof)
     try:
         _check(mesh, node_f, bound, support_dof, Ql, ml, source)
     except StaticsError:
@@ -209,6 +273,17 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
         reaction_moment=reaction_moment,
         condition=condition,
     )
+
+
+def _node_sums(f: np.ndarray, n_dof: int) -> np.ndarray:
+    """(n_dof, n_u) sums of the element end forces ``f`` (n_e, 4, n_u) at each degree
+    of freedom: element e's (v1, th1) act at dofs 2e, 2e+1 and its (v2, th2) at 2e+2,
+    2e+3 (two terms a dof, so the order of the sum does not change the result)."""
+    n_u = f.shape[2]
+    out = np.zeros((n_dof // 2, 2, n_u))
+    out[:-1] += f[:, 0:2]
+    out[1:] += f[:, 2:4]
+    return out.reshape(n_dof, n_u)
 
 
 def _check(mesh: Mesh, node_f: np.ndarray, bound: np.ndarray, support_dof: np.ndarray,

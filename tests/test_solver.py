@@ -1,0 +1,74 @@
+"""The solver's own arithmetic: element end forces carried to twice the working
+precision against exact rational arithmetic (Python's ``fractions``), and the plain
+float64 formula against the same, so that the more accurate path is shown to be needed
+and correct.  The algebra is the Euler-Bernoulli element's slope-deflection equations
+(common practice): M1 = EI/l (4 phi1 + 2 phi2), M2 = EI/l (2 phi1 + 4 phi2),
+V = (M1 + M2)/l, phi = theta - (v2 - v1)/l."""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import numpy as np
+import pytest
+
+from envelope.solver import element_end_forces, element_end_forces_exact
+
+
+def _exact(length: float, EI: float, de: np.ndarray) -> list[float]:
+    """The four end forces of one element, one unit case, in exact arithmetic."""
+    l, k = Fraction(length), Fraction(EI)  # noqa: E741
+    v1, t1, v2, t2 = (Fraction(float(x)) for x in de)
+    psi = (v2 - v1) / l
+    m1 = k / l * (4 * (t1 - psi) + 2 * (t2 - psi))
+    m2 = k / l * (2 * (t1 - psi) + 4 * (t2 - psi))
+    v = (m1 + m2) / l
+    return [float(v), float(m1), float(-v), float(m2)]
+
+
+def _deformations(rng: np.random.Generator, length: float, n: int) -> np.ndarray:
+    """Deformations of a short element inside a bending beam: large rigid-body motion
+    (deflection ~1e-3, rotation ~1e-4) and a small relative part."""
+    v1 = rng.uniform(-1e-3, 1e-3, n)
+    t1 = rng.uniform(-1e-4, 1e-4, n)
+    t2 = t1 + rng.uniform(-1e-9, 1e-9, n)
+    v2 = v1 + length * (t1 + t2) / 2 + rng.uniform(-1e-13, 1e-13, n)
+    return np.stack([v1, t1, v2, t2])[None]  # (1, 4, n)
+
+
+@pytest.mark.parametrize("length", [0.025, 0.005, 0.5, 7.3])
+def test_exact_end_forces_agree_with_rational_arithmetic(length: float) -> None:
+    rng = np.random.default_rng(int(length * 1000))
+    EI = 6.0e4
+    de = _deformations(rng, length, 50)
+    got = element_end_forces_exact(np.array([length]), np.array([EI]), de)[0]
+    for u in range(de.shape[2]):
+        want = _exact(length, EI, de[0, :, u])
+        for i in range(4):
+            # rounded a few times at the end (EI / l^3 and the product): a few ulps
+            assert abs(got[i, u] - want[i]) <= 4e-15 * abs(want[i]), (i, u)
+
+
+def test_plain_end_forces_lose_digits_on_a_short_element() -> None:
+    """The reason for the exact path: on a 5 mm element the plain formula's shear is
+    wrong by more than the engine's 1e-9 tolerance for some of these deformations
+    (float64 keeps the deflections to ~1e-19 absolute; the shear needs their chord to
+    ~1e-22 over l^3)."""
+    rng = np.random.default_rng(5)
+    length, EI = 0.005, 6.0e4
+    de = _deformations(rng, length, 50)
+    plain = element_end_forces(np.array([length]), np.array([EI]), de)[0]
+    worst = max(abs(plain[0, u] - s) / abs(s)
+                for u in range(de.shape[2]) for s in [_exact(length, EI, de[0, :, u])[0]])
+    assert worst > 1e-9
+
+
+def test_exact_and_plain_end_forces_agree_on_ordinary_elements() -> None:
+    rng = np.random.default_rng(3)
+    n = 200
+    length = rng.uniform(1.0, 12.0, 7)
+    EI = rng.uniform(1e3, 1e6, 7)
+    de = rng.uniform(-1e-2, 1e-2, (7, 4, n))
+    a = element_end_forces_exact(length, EI, de)
+    b = element_end_forces(length, EI, de)
+    np.testing.assert_allclose(a, b, rtol=0, atol=1e-12 * np.abs(b).max())
