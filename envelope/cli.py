@@ -16,6 +16,7 @@ from pathlib import Path
 import click
 
 from envelope import __version__
+from envelope.design import SteelDesign
 from envelope.errors import EnvelopeError
 
 
@@ -96,7 +97,7 @@ def check(cases: tuple[str, ...]) -> None:
     for path in cases:
         try:
             beam = load_case(path)
-            if beam.design and "sections" in beam.design:
+            if isinstance(beam.design, SteelDesign) and beam.design.sections is not None:
                 from envelope.sizing.sections import read_sections
 
                 read_sections(beam)  # the sections table is input too

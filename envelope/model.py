@@ -17,6 +17,7 @@ import math
 from dataclasses import dataclass, field
 from typing import Literal, get_args
 
+from envelope.design import Design
 from envelope.units import UnitSystem
 
 # The allowed choices of the case file.  Each Literal is the single list of its
@@ -211,7 +212,7 @@ class Beam:
     combinations: CombinationSpec = field(default_factory=CombinationSpec)
     patterning: Patterning = field(default_factory=Patterning)
     output: OutputOptions = field(default_factory=OutputOptions)
-    design: dict | None = None  # the raw [design] table, read by sizing
+    design: Design | None = None  # the [design] table, for member sizing
     source: str = "<memory>"
     input_sha256: str = ""
 

@@ -25,7 +25,7 @@ class Analysis:
     support_joints: np.ndarray  # 0-based joints that restrain something
     reactions: dict[str, Extremes | None]  # reaction, service_reaction, support_moment
     unfactored: np.ndarray  # (n_support_joints, n_cases): each case alone, every span
-    design: dict[str, np.ndarray]  # per span, see envelope.actions
+    design_actions: dict[str, np.ndarray]  # per span, see envelope.actions
 
     @property
     def beam(self) -> Beam:

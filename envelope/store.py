@@ -160,7 +160,7 @@ def reactions_table(analysis: Analysis) -> pa.Table:
 def design_table(analysis: Analysis) -> pa.Table:
     """design.parquet: one row per span, the design actions for member sizing."""
     beam = analysis.beam
-    d = analysis.design
+    d = analysis.design_actions
     n = beam.n_spans
     defl = beam.units.deflection_factor
 

@@ -16,7 +16,7 @@ def span_summary(analysis: Analysis) -> str:
     """A fixed-width table: one line per span, then the caution line."""
     beam = analysis.beam
     u = beam.units.labels
-    d = analysis.design
+    d = analysis.design_actions
     defl = beam.units.deflection_factor
     head = (f"{'span':>4} {'L':>7} {'M+':>9} {'at':>6} {'M- left':>9} {'M- right':>9} "
             f"{'V left':>8} {'V right':>8} {'defl':>7} {'L/defl':>7}")

@@ -22,6 +22,7 @@ import pytest
 
 from envelope import stability
 from envelope.casefile import load_case, parse_case
+from envelope.design import ConcreteDesign, DeflectionLimits, SteelDesign
 from envelope.model import Section, Span, Stretch, Support
 
 REPO = Path(__file__).resolve().parents[1]
@@ -133,7 +134,8 @@ def test_mezzanine_case_reads_unit_strings_in_us_units() -> None:
     assert len(rack) == 1 and rack[0].span == 2
     assert rack[0].w_start == rack[0].w_end == pytest.approx(1.2, rel=1e-12)
     assert (rack[0].start, rack[0].end) == pytest.approx((3.0, 15.0), rel=1e-12)
-    assert beam.design is not None and beam.design["section"]["Zx"] == 144
+    assert isinstance(beam.design, SteelDesign) and beam.design.section is not None
+    assert beam.design.section.Zx == 144
 
 
 def test_input_sha256_is_the_hash_of_the_raw_bytes(tmp_path: Path) -> None:
@@ -458,11 +460,11 @@ def test_patterning_output_and_design_tables_are_read(tmp_path: Path) -> None:
     assert (beam.output.stations_per_span, beam.output.all_cases,
             beam.output.moment_plot) == (11, True, "tension-side")
     design = beam.design
-    assert design is not None
-    assert design["b"] == pytest.approx(350.0) and design["h"] == 650
-    assert design["cover_to_bar_centre"] == pytest.approx(65.0)
-    assert design["fc"] == pytest.approx(32.0) and design["fy"] == 500
-    assert design["deflection_limits"] == {"live": 360, "total": 250}
+    assert isinstance(design, ConcreteDesign)
+    assert design.b == pytest.approx(350.0) and design.h == 650
+    assert design.cover_to_bar_centre == pytest.approx(65.0)
+    assert design.fc == pytest.approx(32.0) and design.fy == 500
+    assert design.deflection_limits == DeflectionLimits(live=360, total=250)
 
 
 # -- stability --------------------------------------------------------------------

@@ -1,4 +1,4 @@
-"""Design actions per span (``Analysis.design`` and design.parquet) checked
+"""Design actions per span (``Analysis.design_actions`` and design.parquet) checked
 against the envelope itself and against handbook values.
 
 The outputs contract (design.parquet) defines each action from the envelope:
@@ -226,7 +226,7 @@ def check_not_below_nor_above(design: float, dense: float, scale: float, what: s
 @pytest.mark.parametrize("name", list(BEAMS))
 def test_moment_pos_is_the_exact_span_maximum_of_the_envelope(name: str, method: str) -> None:
     a = analysis(name, method)
-    d = a.design
+    d = a.design_actions
     for j, span in enumerate(a.beam.spans):
         L = span.length
         x, m = dense_max(a, j, "moment")
@@ -256,7 +256,7 @@ def test_deflection_max_and_live_are_the_span_maxima_of_their_envelopes(
     name: str, method: str
 ) -> None:
     a = analysis(name, method)
-    d = a.design
+    d = a.design_actions
     for j in range(a.beam.n_spans):
         for key, case_set in (("deflection_max", None), ("deflection_live", "live")):
             _, v = dense_max(a, j, "deflection", case_set)
@@ -287,7 +287,7 @@ def test_support_moments_faces_and_end_shears_come_from_the_envelope(
     name: str, method: str
 ) -> None:
     a = analysis(name, method)
-    d = a.design
+    d = a.design_actions
     beam = a.beam
     moment, shear = a.envelope["moment"], a.envelope["shear"]
     assert moment is not None and shear is not None
@@ -330,9 +330,9 @@ def test_overhang_has_no_sagging_and_a_null_position_in_the_table() -> None:
     # and zero at the free tip (statics).
     for method in METHODS:
         a = analysis("overhang", method)
-        assert a.design["moment_pos"][1] == 0.0
-        assert math.isnan(a.design["moment_pos_x"][1])
-        assert a.design["moment_pos"][0] > 0.0
+        assert a.design_actions["moment_pos"][1] == 0.0
+        assert math.isnan(a.design_actions["moment_pos_x"][1])
+        assert a.design_actions["moment_pos"][0] > 0.0
         row = envelope.tables(a)["design"].to_pylist()[1]
         assert row["moment_pos"] == 0.0
         assert row["moment_pos_x"] is None
@@ -388,7 +388,7 @@ method = "exhaustive"
 stations_per_span = 8
 """
     a = analyse(parse_case(tomllib.loads(text), "three-equal.toml"))
-    d = a.design
+    d = a.design_actions
     assert d["moment_pos"] == pytest.approx([81 / 800, 3 / 40, 81 / 800], rel=1e-12)
     assert d["moment_pos_x"] == pytest.approx([0.45, 0.5, 0.55], abs=1e-6)
     assert d["moment_neg_right"][0] == pytest.approx(-7 / 60, rel=1e-12)
@@ -416,7 +416,7 @@ def test_design_table_has_the_contract_columns_and_deflections_in_mm_or_in(
     units = json.loads(table.schema.metadata[b"envelope:units"])
     assert units["deflection"] == label
     rows = table.to_pylist()
-    d = a.design
+    d = a.design_actions
     for j, row in enumerate(rows):
         assert row["beam"] == a.beam.id
         assert row["span"] == j + 1

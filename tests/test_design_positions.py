@@ -17,7 +17,7 @@ XTOL = 1e-9  # of the span length: the issue's requirement
 
 def _design(text: str) -> dict:
     text = text.replace('strength = "none"\n', "") + STRENGTH_D
-    return analyse(parse_text(text)).design
+    return analyse(parse_text(text)).design_actions
 
 
 @pytest.mark.parametrize(("supports", "x_exact", "m_exact"), [
@@ -65,7 +65,7 @@ def test_exhaustive_envelope_maximum_position_is_the_governing_pattern_root() ->
     text = text.replace('strength = "none"\n', "")
     text += ('[[combinations.custom]]\nname = "L"\nset = "strength"\nfactors = { L = 1.0 }\n'
              '[patterning]\nmethod = "exhaustive"\n')
-    d = analyse(parse_text(text)).design
+    d = analyse(parse_text(text)).design_actions
     assert abs(d["moment_pos_x"][0] - 7 / 16) <= XTOL
     assert abs(d["moment_pos_x"][1] - 9 / 16) <= XTOL
     assert d["moment_pos"][0] == pytest.approx(49 / 512, rel=1e-12)

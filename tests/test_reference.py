@@ -576,7 +576,7 @@ def compared(seed: int, method: str, fav: float) -> Compared:
     dense = slice(n_station, len(points))
     start = len(points)
     for side in (False, True):  # at a jump moment_pos may be either side's limit
-        for j, x in enumerate(a.design["moment_pos_x"]):
+        for j, x in enumerate(a.design_actions["moment_pos_x"]):
             x = float(x) if np.isfinite(x) else beam.spans[j].length / 2
             # a span's own limits only: right of its start, left of its end
             limit = side if 0.0 < x < beam.spans[j].length else x == 0.0
@@ -887,7 +887,7 @@ def test_design_actions_match_brute_force(params: tuple[int, str, float]) -> Non
     within the grid's resolution above (relative 1e-3, the sag of a smooth maximum
     between grid points 1/40 of a span apart)."""
     c = compared(*params)
-    d = c.a.design
+    d = c.a.design_actions
     beam = c.beam
     n = beam.n_spans
     st_rows = slice(0, c.n_station)

@@ -686,7 +686,7 @@ def test_demo_cases_size_end_to_end(name: str, tmp_path: Path) -> None:
     assert beam.design is not None
     a = analyse(beam)
     table = sizing_table(a)
-    contract = CONCRETE_CONTRACT if beam.design["material"] == "concrete" else STEEL_CONTRACT
+    contract = CONCRETE_CONTRACT if beam.design.material == "concrete" else STEEL_CONTRACT
     missing = [c for c in SIZING_COMMON + contract if c not in table.column_names]
     assert not missing
     assert table.num_rows == 3 * beam.n_spans

@@ -1,4 +1,4 @@
-"""The optional ``[design]`` table: what member sizing needs (material, code, section).
+"""The optional ``[design]`` table, read into the frozen values of :mod:`envelope.design`.
 
 Numbers here are in *section units* (mm, MPa in SI; in, ksi in US): plain
 numbers are kept as given, unit strings are converted to the section unit.
@@ -6,9 +6,18 @@ numbers are kept as given, unit strings are converted to the section unit.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import Any, get_args
 
 from envelope.casefile.reader import Reader, join
+from envelope.design import (
+    ConcreteCode,
+    ConcreteDesign,
+    DeflectionLimits,
+    Design,
+    SteelCode,
+    SteelDesign,
+    SteelSection,
+)
 
 DESIGN_KEYS = ("material", "code", "b", "h", "cover_to_bar_centre", "flange_width",
                "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits", "Fy",
@@ -19,8 +28,8 @@ DESIGN_MATERIAL_KEYS: dict[str, tuple[str, ...]] = {
     "steel": ("material", "code", "Fy", "sections", "section", "deflection_limits"),
 }
 DESIGN_CODES: dict[str, tuple[str, ...]] = {
-    "concrete": ("aci318-19", "en1992-1-1"),
-    "steel": ("aisc360-22",),
+    "concrete": get_args(ConcreteCode),
+    "steel": get_args(SteelCode),
 }
 #: [design] numbers and the quantity their unit strings are read as.  Plain
 #: numbers are section units (mm, MPa in SI; in, ksi in US) and are kept as given.
@@ -53,7 +62,7 @@ def design_number(r: Reader, value: object, key: str, quantity: str | None) -> f
     return out
 
 
-def design(r: Reader, data: dict[str, Any]) -> dict[str, Any] | None:
+def design(r: Reader, data: dict[str, Any]) -> Design | None:
     """The ``[design]`` table, or None when the file has none."""
     key = "design"
     if key not in data:
@@ -67,7 +76,7 @@ def design(r: Reader, data: dict[str, Any]) -> dict[str, Any] | None:
             r.fail(join(key, name), f"key {name!r} does not apply to {material} design")
     code = r.choice(r.required(table, key, "code"), join(key, "code"),
                     DESIGN_CODES[material], f"{material} design code")
-    out: dict[str, Any] = {"material": material, "code": code}
+    out: dict[str, Any] = {"code": code}
     for name in DESIGN_LENGTHS:
         if name in table:
             out[name] = design_number(r, table[name], join(key, name), "length")
@@ -78,15 +87,15 @@ def design(r: Reader, data: dict[str, Any]) -> dict[str, Any] | None:
         lkey = join(key, "deflection_limits")
         limits = r.table(table["deflection_limits"], lkey)
         r.known_keys(limits, lkey, DEFLECTION_LIMIT_KEYS)
-        out["deflection_limits"] = {
+        out["deflection_limits"] = DeflectionLimits(**{
             name: design_number(r, value, join(lkey, name), None)
             for name, value in limits.items()
-        }
+        })
     if material == "concrete":
         check_concrete(r, table, out)
-    else:
-        check_steel(r, table, out)
-    return out
+        return ConcreteDesign(**out)
+    check_steel(r, table, out)
+    return SteelDesign(**out)
 
 
 def check_concrete(r: Reader, table: dict[str, Any], out: dict[str, Any]) -> None:
@@ -123,8 +132,6 @@ def check_steel(r: Reader, table: dict[str, Any], out: dict[str, Any]) -> None:
     if not name.strip():
         r.fail(join(skey, "name"), "the name is empty")
     quantities = {"Zx": None, "Ix": "inertia", "Aw": "area"}
-    read: dict[str, Any] = {"name": name}
-    for prop, quantity in quantities.items():
-        read[prop] = design_number(r, r.required(section, skey, prop), join(skey, prop),
-                                   quantity)
-    out["section"] = read
+    read = {prop: design_number(r, r.required(section, skey, prop), join(skey, prop), quantity)
+            for prop, quantity in quantities.items()}
+    out["section"] = SteelSection(name=name, **read)

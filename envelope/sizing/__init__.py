@@ -76,13 +76,13 @@ def size_with_units(analysis: Analysis) -> tuple[dict[str, np.ndarray], dict[str
     if analysis.envelope["moment"] is None:
         raise CaseError(beam.source, "design", "member sizing needs strength combinations, "
                                                "and [combinations] gives none")
-    d = analysis.design
+    d = analysis.design_actions
     limits = deflection.limits(design)
     ell = deflection.ratio_lengths(beam)
     live, total = d["deflection_live"], d["deflection_max"]
     defl = deflection.check(ell, live, total, limits["live"], limits["total"])
     factor = beam.units.deflection_factor
-    if design["material"] == "steel":
+    if design.material == "steel":
         sized = size_steel(analysis, defl)
     else:
         sized = size_concrete(analysis)
@@ -100,7 +100,7 @@ def size_with_units(analysis: Analysis) -> tuple[dict[str, np.ndarray], dict[str
                "deflection_total_allowed": defl["allowed_total"] * factor,
                **extents(analysis)}
     on_span = {k: np.where(mid, np.repeat(v, 3), np.nan) for k, v in by_span.items()}
-    if design["material"] != "steel":
+    if design.material != "steel":
         on_span["utilisation_deflection"] = np.where(mid, np.repeat(defl["utilisation"], 3),
                                                      np.nan)
     joint_x = np.asarray(beam.joint_x)

@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.design import ConcreteDesign
 from envelope.results import Analysis
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
@@ -50,15 +51,14 @@ def size_concrete(analysis: Analysis) -> Sized:
     """Columns, units, notes and failures of every design row of a concrete beam."""
     beam = analysis.beam
     design = beam.design
-    assert design is not None and design["material"] == "concrete"
-    b = float(design["b"])
-    h = float(design["h"])
-    d = h - float(design["cover_to_bar_centre"])
+    assert isinstance(design, ConcreteDesign)
+    b = float(design.b)
+    h = float(design.h)
+    d = float(design.d)
     rows = design_rows(analysis, at_faces=True, shear_shift=d * section_to_consistent(beam))
-    tee = "flange_width" in design
-    sag = rows.is_span & tee
-    bf = np.where(sag, float(design.get("flange_width", b)), b)
-    hf = np.where(sag, float(design.get("flange_depth", 0.0)), 0.0)
+    sag = rows.is_span & design.is_tee
+    bf = np.where(sag, float(design.flange_width if design.flange_width is not None else b), b)
+    hf = np.where(sag, float(design.flange_depth or 0.0), 0.0)
     notes: list[list[str]] = [[] for _ in range(rows.n)]
     failures: list[list[str]] = [[] for _ in range(rows.n)]
     for i in range(rows.n):
@@ -66,7 +66,7 @@ def size_concrete(analysis: Analysis) -> Sized:
             kind = "sagging moment in this span" if rows.is_span[i] else \
                 "hogging moment at this face"
             notes[i].append(f"no {kind}: no tension steel required")
-    if design["code"] == "aci318-19":
+    if design.code == "aci318-19":
         cols, units = _aci(analysis, rows, b, d, bf, hf, notes, failures)
     else:
         cols, units = _en(analysis, rows, b, h, d, bf, hf, notes, failures)
@@ -84,13 +84,13 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: float, bf: np.ndarray,
          ) -> tuple[dict[str, np.ndarray], dict[str, str]]:
     beam = analysis.beam
     design = beam.design
-    assert design is not None
+    assert isinstance(design, ConcreteDesign)
     system = beam.units.name
     s = ACI_SCALES[system]
     u = beam.units.labels
     su = SECTION_UNITS[system]
-    fc, fy = float(design["fc"]) * s.stress, float(design["fy"]) * s.stress
-    fyt = float(design.get("stirrup_fy", design["fy"])) * s.stress
+    fc, fy = float(design.fc) * s.stress, float(design.fy) * s.stress
+    fyt = float(design.stirrup_strength) * s.stress
     mu = np.abs(rows.moment) * s.moment
     fl = aci.flexure(mu, b, d, fc, fy, system, bf, hf)
     as_min = np.where(rows.moment != 0.0, aci.as_min(b, d, fc, fy, system), 0.0)
@@ -168,14 +168,14 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: float, d: float, bf: np.nda
         ) -> tuple[dict[str, np.ndarray], dict[str, str]]:
     beam = analysis.beam
     design = beam.design
-    assert design is not None
+    assert isinstance(design, ConcreteDesign)
     system = beam.units.name
     s = EN_SCALES[system]
     u = beam.units.labels
     su = SECTION_UNITS[system]
     L = s.length
-    fck, fyk = float(design["fc"]) * s.stress, float(design["fy"]) * s.stress
-    fywk = float(design.get("stirrup_fy", design["fy"])) * s.stress
+    fck, fyk = float(design.fc) * s.stress, float(design.fy) * s.stress
+    fywk = float(design.stirrup_strength) * s.stress
     m = np.abs(rows.moment) * s.moment
     bm, dm, hm = b * L, d * L, h * L
     # T-section: the flange width where the block (depth 0.8x) stays in the flange,

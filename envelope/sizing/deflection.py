@@ -12,15 +12,16 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.design import DeflectionLimits, Design
 from envelope.model import Beam
 
-DEFAULT_LIMITS = {"live": 360.0, "total": 240.0}
+DEFAULT_LIMITS = {"live": DeflectionLimits().live, "total": DeflectionLimits().total}
 
 
-def limits(design: dict) -> dict[str, float]:
-    """The live and total span/limit denominators, defaults filled in."""
-    given = design.get("deflection_limits") or {}
-    return {k: float(given.get(k, v)) for k, v in DEFAULT_LIMITS.items()}
+def limits(design: Design) -> dict[str, float]:
+    """The live and total span/limit denominators (defaults filled in when read)."""
+    given = design.deflection_limits
+    return {"live": float(given.live), "total": float(given.total)}
 
 
 def ratio_lengths(beam: Beam) -> np.ndarray:

@@ -127,7 +127,7 @@ def design_rows(analysis: Analysis, at_faces: bool, shear_shift: float | None) -
     the shear at the support centreline.
     """
     beam = analysis.beam
-    d = analysis.design
+    d = analysis.design_actions
     n = beam.n_spans
     lengths = np.array([s.length for s in beam.spans])
     half_l = np.array([beam.supports[j].width / 2 for j in range(n)])

@@ -17,6 +17,7 @@ from pathlib import Path
 
 import numpy as np
 
+from envelope.design import SteelDesign
 from envelope.errors import CaseError
 from envelope.model import Beam
 
@@ -41,9 +42,9 @@ def resolve(beam: Beam, path: str) -> Path:
 
 
 def read_sections(beam: Beam) -> SectionTable:
-    """Read the CSV named by ``beam.design["sections"]``."""
-    assert beam.design is not None and "sections" in beam.design
-    path = resolve(beam, beam.design["sections"])
+    """Read the CSV named by ``beam.design.sections``."""
+    assert isinstance(beam.design, SteelDesign) and beam.design.sections is not None
+    path = resolve(beam, beam.design.sections)
     try:
         text = path.read_text(encoding="utf-8-sig")
     except OSError as exc:

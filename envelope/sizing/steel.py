@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.design import SteelDesign
 from envelope.results import Analysis
 from envelope.sizing import steel_aisc as aisc
 from envelope.sizing.layout import AISC_SCALES, SECTION_UNITS, Sized, design_rows
@@ -36,12 +37,12 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     """
     beam = analysis.beam
     design = beam.design
-    assert design is not None and design["material"] == "steel"
+    assert isinstance(design, SteelDesign)
     system = beam.units.name
     s = AISC_SCALES[system]
     su = SECTION_UNITS[system]
     u = beam.units.labels
-    fy = float(design["Fy"]) * s.stress
+    fy = float(design.Fy) * s.stress
     rows = design_rows(analysis, at_faces=False, shear_shift=None)
     n = rows.n
     ends, mid = rows.is_end, rows.is_span
@@ -59,14 +60,14 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     failures: list[list[str]] = [[] for _ in range(n)]
     wanted = (f"Zx >= {_g(need[0])} {su['modulus']}, Aw >= {_g(need[1])} {su['area']}, "
               f"Ix >= {_g(need[2])} {su['inertia']}")
-    if "section" in design:
-        given = design["section"]
-        name = str(given["name"])
-        Zx, Aw, Ix = float(given["Zx"]), float(given["Aw"]), float(given["Ix"])
+    if design.section is not None:
+        given = design.section
+        name = given.name
+        Zx, Aw, Ix = float(given.Zx), float(given.Aw), float(given.Ix)
         source = "given section"
     else:
         table = read_sections(beam)
-        csv_name = str(design["sections"])
+        csv_name = str(design.sections)
         k = aisc.lightest_passing(table.Zx, table.Aw, table.Ix, table.weight, *need)
         source = f"lightest passing section of {csv_name}"
         if k is None:

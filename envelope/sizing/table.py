@@ -11,6 +11,7 @@ import math
 
 import numpy as np
 
+from envelope.design import SteelDesign
 from envelope.results import Analysis
 from envelope.sizing import size_with_units
 from envelope.sizing.layout import SECTION_UNITS
@@ -41,7 +42,7 @@ def sizing_table(analysis: Analysis):  # type: ignore[no-untyped-def]  # a pyarr
     table = make_table({k: _arrow(k, v) for k, v in cols.items()})
     meta = _metadata(analysis)
     meta[b"envelope:sizing_units"] = json.dumps(units).encode()
-    meta[b"envelope:sizing_code"] = design["code"].encode()
+    meta[b"envelope:sizing_code"] = design.code.encode()
     return table.replace_schema_metadata(meta)
 
 
@@ -66,23 +67,23 @@ def sizing_summary(analysis: Analysis) -> str:
     cols, _ = size_with_units(analysis)
     u = beam.units.labels
     su = SECTION_UNITS[beam.units.name]
-    steel = design["material"] == "steel"
-    code = CODE_TITLES[design["code"]]
-    if steel:
+    code = CODE_TITLES[design.code]
+    steel = isinstance(design, SteelDesign)
+    if isinstance(design, SteelDesign):
         name = cols["steel_section"][0]
-        lines = [f"Sizing, {code} steel, Fy = {design['Fy']:g} {su['stress']}: {name}"]
+        lines = [f"Sizing, {code} steel, Fy = {design.Fy:g} {su['stress']}: {name}"]
         head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'Zx req':>10} {'V':>8} "
                 f"{'Aw req':>8} {'Ix req':>10} {'util M':>6} {'util V':>6} {'util d':>6}  status")
         units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {su['modulus']:>10} "
                  f"{u['force']:>8} {su['area']:>8} {su['inertia']:>10}")
     else:
-        fc_name, fy_name = ("f'c", "fy") if design["code"] == "aci318-19" else ("fck", "fyk")
-        shape = (f"T {design['flange_width']:g}x{design['flange_depth']:g} on "
-                 if "flange_width" in design else "")
-        lines = [f"Sizing, {code} concrete: {shape}{design['b']:g} x {design['h']:g} "
-                 f"{su['length']}, d = {design['h'] - design['cover_to_bar_centre']:g} "
-                 f"{su['length']}, {fc_name} = {design['fc']:g}, {fy_name} = "
-                 f"{design['fy']:g} {su['stress']}"]
+        fc_name, fy_name = ("f'c", "fy") if design.code == "aci318-19" else ("fck", "fyk")
+        shape = (f"T {design.flange_width:g}x{design.flange_depth:g} on "
+                 if design.is_tee else "")
+        lines = [f"Sizing, {code} concrete: {shape}{design.b:g} x {design.h:g} "
+                 f"{su['length']}, d = {design.d:g} "
+                 f"{su['length']}, {fc_name} = {design.fc:g}, {fy_name} = "
+                 f"{design.fy:g} {su['stress']}"]
         head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'As req':>8} {'As':>8} "
                 f"{'V':>8} {'Av/s':>7} {'s max':>6} {'util d':>6}  status")
         units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {su['area']:>8} "
