@@ -61,8 +61,10 @@ def main() -> None:
               help="Draw envelope.png beside the Parquet files.")
 @click.option("--all-cases", is_flag=True, default=None,
               help="Also write stations.parquet: every explicit case at every station.")
+@click.option("--report", is_flag=True, help="Also write report.html and report.pdf.")
 @_guard
-def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | None) -> None:
+def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | None,
+        report: bool) -> None:
     """Analyse CASE (a TOML case file; the bundled demo when omitted)."""
     from envelope import api
     from envelope.summary import span_summary
@@ -79,6 +81,11 @@ def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | 
             click.echo(f"warning: {path}: {warning}", err=True)
         folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
     click.echo(f"wrote {Path(folder)}")
+    if report:
+        from envelope.report.build import write_report
+
+        for written in write_report(folder):
+            click.echo(f"wrote {written}")
     if not quiet:  # each summary ends with its caution line
         click.echo(span_summary(result))
         if result.beam.design is not None:
@@ -126,6 +133,9 @@ def plot(folder: str, output: str | None) -> None:
 from envelope.batch import batch as _batch_command  # noqa: E402
 
 main.add_command(_batch_command)
+from envelope.report import commands as _report_commands  # noqa: E402
+
+_report_commands.register(main)
 
 if __name__ == "__main__":
     main()

@@ -9,6 +9,7 @@ crash never leaves a half-written file under a final name.
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 from collections.abc import Mapping
@@ -22,6 +23,7 @@ from envelope import config, engine_version
 from envelope.enveloper import CaseSet, Extremes
 from envelope.errors import StaticsError
 from envelope.files import write_atomic
+from envelope.model import Beam
 from envelope.results import Analysis, explicit_case_blocks
 
 CAUTION = ("Results are for checking by a licensed engineer and defer to local codes; "
@@ -198,7 +200,28 @@ def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
             rows.append({"set": name, **r, "source": sources[r["combination"]]})
     names = ("set", "combination", "loaded", "factors", "source")
     table = make_table({k: string_column([r[k] for r in rows]) for k in names})
-    return table.replace_schema_metadata(_metadata(analysis))
+    meta = _metadata(analysis)
+    text = input_text(analysis.beam)
+    if text is not None:  # the input itself, for the calculation report's echo
+        meta[b"envelope:input"] = text.encode()
+    return table.replace_schema_metadata(meta)
+
+
+def input_text(beam: Beam) -> str | None:
+    """The case file's text when the file still holds the input the beam was read from
+    (same SHA-256), else None (a beam built in memory, or a file changed since)."""
+    if not beam.input_sha256:
+        return None
+    try:
+        raw = Path(beam.source).read_bytes()
+    except OSError:
+        return None
+    if hashlib.sha256(raw).hexdigest() != beam.input_sha256:
+        return None
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        return None
 
 
 STATIONS_SCHEMA = pa.schema([("beam", pa.string()), ("case", pa.int32()),
@@ -212,7 +235,7 @@ def write_stations(path: Path, analysis: Analysis, durable: bool = True) -> None
     """stations.parquet: every explicit case at every station, long format, written in
     row groups as the blocks are computed, so the whole table is never in memory."""
     meta = _metadata(analysis)
-    schema = STATIONS_SCHEMA.with_metadata(meta)
+    schema = with_field_units(STATIONS_SCHEMA.with_metadata(meta).empty_table()).schema
     beam_id = analysis.beam.id
 
     def write(fh: object) -> None:
@@ -277,9 +300,28 @@ def check_finite(table: pa.Table, name: str) -> None:
                                    "result withheld")
 
 
+def with_field_units(table: pa.Table) -> pa.Table:
+    """The table with each numeric column's unit in its field metadata (key ``unit``),
+    from the file metadata (``envelope:units``, ``envelope:sizing_units``) and the column
+    names (:mod:`envelope.columnunits`); readers that drop file metadata keep these."""
+    from envelope.columnunits import column_units
+
+    meta = table.schema.metadata or {}
+    labels = json.loads(meta.get(b"envelope:units", b"{}"))
+    own = json.loads(meta.get(b"envelope:sizing_units", b"{}"))
+    if labels and all(isinstance(v, dict) for v in labels.values()):
+        return table  # several systems in one table: see the batch's combined files
+    units = column_units(table.column_names, labels, own)
+    fields = [f.with_metadata({b"unit": units[f.name].encode()}) if f.name in units else f
+              for f in table.schema]
+    return table.cast(pa.schema(fields, metadata=meta))
+
+
 def write_parquet(path: Path, table: pa.Table, durable: bool = True) -> None:
-    """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only."""
+    """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only,
+    each numeric column's unit in its field metadata (:func:`with_field_units`)."""
     check_finite(table, str(path))
+    table = with_field_units(table)
     write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
 
 

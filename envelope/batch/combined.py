@@ -42,32 +42,80 @@ def _units_metadata(labels: dict[str, str]) -> bytes:
 
 
 def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem: str,
-                   inputs_sha256: str) -> Any:
+                   inputs_sha256: str, to_system: str | None = None) -> Any:
     """The ``<stem>.parquet`` tables of ``ids`` one after the other, with a ``system``
-    column (SI or US); None when no beam has the file."""
+    column (SI or US, the beam's own); None when no beam has the file.  Each numeric
+    column names its unit in its field metadata: ``unit`` when every row has the same,
+    else ``unit_by_system`` (JSON: system -> unit, read with the ``system`` column).
+    ``to_system`` ("SI" or "US") converts every row to that system first, so that one
+    unit holds for the whole column; nothing mixes kN and kip in a column unnamed."""
     import pyarrow as pa
 
+    from envelope.columnunits import column_units, convert
+
     tables, labels, caution = [], {}, b""
+    units_by_system: dict[str, dict[str, str]] = {}
     for beam_id in ids:
         path = out / beam_id / f"{stem}.parquet"
         if not path.exists():
             continue
         table = _read(path)
         meta = table.schema.metadata or {}
-        labels[systems[beam_id]] = meta.get(b"envelope:units", b"{}").decode()
+        system = systems[beam_id]
+        labels[system] = meta.get(b"envelope:units", b"{}").decode()
         caution = meta.get(b"envelope:caution", caution)
-        system = pa.array([systems[beam_id]] * table.num_rows, pa.string())
-        tables.append(table.replace_schema_metadata(None).append_column("system", system))
+        own = json.loads(meta.get(b"envelope:sizing_units", b"{}"))
+        units = column_units(table.column_names, json.loads(labels[system]), own)
+        units_by_system.setdefault(system, {}).update(units)
+        if to_system is not None and system != to_system:
+            table = _converted(table, units, to_system)
+        column = pa.array([system] * table.num_rows, pa.string())
+        plain = pa.schema([f.remove_metadata() for f in table.schema])
+        tables.append(table.cast(plain).replace_schema_metadata(None)
+                      .append_column("system", column))
     if not tables:
         return None
     combined = pa.concat_tables(tables, promote_options="permissive")
-    return combined.replace_schema_metadata({
+    if to_system is not None:
+        target = {k: convert(u, to_system)[0] for by in units_by_system.values()
+                  for k, u in by.items()}
+        units_by_system = {to_system: target}
+        labels = {to_system: json.dumps({k: convert(u, to_system)[0] for k, u in
+                                         json.loads(next(iter(labels.values()))).items()})}
+    fields = []
+    for f in combined.schema:
+        per = {s: u[f.name] for s, u in sorted(units_by_system.items()) if f.name in u}
+        if len(set(per.values())) == 1:
+            f = f.with_metadata({b"unit": next(iter(per.values())).encode()})
+        elif per:
+            f = f.with_metadata({b"unit_by_system": json.dumps(per).encode()})
+        fields.append(f)
+    meta = {
         b"envelope:units": _units_metadata(labels),
         b"envelope:version": engine_version().encode(),
         b"envelope:input_sha256": inputs_sha256.encode(),
         b"envelope:beams": str(len(tables)).encode(),
         b"envelope:caution": caution,
-    })
+    }
+    if to_system is not None:
+        meta[b"envelope:converted_to"] = to_system.encode()
+    return combined.cast(pa.schema(fields, metadata=meta))
+
+
+def _converted(table: Any, units: dict[str, str], to_system: str) -> Any:
+    """``table`` with every column of ``units`` converted to ``to_system``."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    from envelope.columnunits import convert
+
+    for name, unit in units.items():
+        factor = convert(unit, to_system)[1]
+        if factor != 1.0 and pa.types.is_floating(table.schema.field(name).type):
+            i = table.schema.get_field_index(name)
+            table = table.set_column(i, table.schema.field(name),
+                                     pc.multiply(table.column(name), factor))
+    return table
 
 
 def write_partition(out: Path, beam_id: str, system: str) -> None:
@@ -83,11 +131,12 @@ def write_partition(out: Path, beam_id: str, system: str) -> None:
     _write(out / COMBINED / "envelope" / f"beam={beam_id}" / "part-0.parquet", table)
 
 
-def combine(out: Path, done: dict[str, dict[str, Any]]) -> None:
+def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = None) -> None:
     """Refresh ``OUT/_all/`` for the beams in ``done`` (id -> manifest): each beam's
     partition checked (written again when missing or stamped with another input hash or
     engine version), partitions of other beams removed, design.parquet and sizing.parquet
-    rebuilt.  ``envelope:input_sha256`` of a combined file is the SHA-256 of the sorted
+    rebuilt (converted to ``to_system`` when given, see :func:`_combine_table`).
+    ``envelope:input_sha256`` of a combined file is the SHA-256 of the sorted
     ``<id> <input hash>`` lines of its beams."""
     root = out / COMBINED
     dataset = root / "envelope"
@@ -110,7 +159,7 @@ def combine(out: Path, done: dict[str, dict[str, Any]]) -> None:
     digest = hashlib.sha256(lines.encode()).hexdigest()
     for stem in ("design", "sizing"):
         target = root / f"{stem}.parquet"
-        table = _combine_table(out, ids, systems, stem, digest)
+        table = _combine_table(out, ids, systems, stem, digest, to_system)
         if table is None:
             target.unlink(missing_ok=True)
         else:

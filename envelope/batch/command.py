@@ -24,16 +24,38 @@ from envelope.errors import EnvelopeError
 @click.option("--plots/--no-plots", default=False, show_default=True,
               help="Draw envelope.png for every beam.")
 @click.option("--force", is_flag=True, help="Rerun every beam, even unchanged ones.")
+@click.option("--report", is_flag=True,
+              help="Write each beam's report and the building view OUT/_all/index.html.")
+@click.option("--units", type=click.Choice(["SI", "US"]),
+              help="Convert the combined OUT/_all tables to one unit system  "
+                   "[default: each row in its beam's own, named per row]")
 def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str | None,
-          plots: bool, force: bool) -> None:
+          plots: bool, force: bool, report: bool, units: str | None) -> None:
     """Analyse many case files into OUT/<id>/, combined in OUT/_all/.
 
-    PATHs are case files, folders (every *.toml inside) or glob patterns.  Unchanged
+    PATHs are case files, folders (every *.toml inside), glob patterns or beam schedules
+    (.csv or .xlsx: one row per beam, see `envelope new --schedule`).  Unchanged
     beams are skipped, so an interrupted batch resumes where it stopped; failures are
     listed in OUT/_all/failures.csv (exit status 2)."""
     try:
+        from envelope.report.schedule import expand_schedules
+
+        paths, failures = expand_schedules(paths, out)
+        if not paths and failures:  # every row of the schedules is bad: nothing to run
+            from envelope.batch.combined import write_failures
+
+            Path(out, COMBINED).mkdir(parents=True, exist_ok=True)
+            for o in failures:
+                click.echo(f"error: {o.error}", err=True)
+            write_failures(Path(out), failures, {})
+            sys.exit(2)
         summary = run_batch(paths, out, workers=workers, scheduler=scheduler, plots=plots,
-                            force=force, progress=sys.stderr)
+                            force=force, progress=sys.stderr, units=units,
+                            failures=failures)
+        if report:
+            from envelope.report.index import report_batch
+
+            report_batch(out)
     except DuplicateIdError as exc:
         for line in exc.lines:
             click.echo(f"error: {line}", err=True)

@@ -44,12 +44,15 @@ def _lock(out: Path, shown: str) -> Iterator[None]:
 
 def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int | None = None,
               scheduler: str | None = None, plots: bool = False, force: bool = False,
-              progress: TextIO | None = None, chunk: int | None = None) -> Summary:
+              progress: TextIO | None = None, chunk: int | None = None,
+              units: str | None = None, failures: Sequence[Outcome] = ()) -> Summary:
     """Analyse every case file named by ``paths`` into ``OUT/<id>/`` and refresh
     ``OUT/_all/``.  Beams already done for the same input and engine version are
     skipped unless ``force``.  Raises :class:`BatchError` before anything is written when
     the paths, the ids or the cluster are wrong; failures of single beams are in the
-    summary and in ``OUT/_all/failures.csv``.  Progress goes to ``progress`` if given."""
+    summary and in ``OUT/_all/failures.csv``.  Progress goes to ``progress`` if given.
+    ``units`` ("SI" or "US") converts the combined tables to one system; ``failures``
+    are beams that failed before the batch (bad rows of a beam schedule), listed too."""
     started = time.perf_counter()
     if scheduler is not None and workers is not None:
         raise BatchError("--workers sets the local pool; with --scheduler the cluster's "
@@ -59,7 +62,8 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
     entries = [identify(i, p, absolute=scheduler is not None)
                for i, p in enumerate(discover(paths))]
     check_duplicates(entries)
-    summary = Summary(out=Path(shown_out), total=len(entries))
+    summary = Summary(out=Path(shown_out), total=len(entries) + len(failures))
+    summary.outcomes.extend(failures)
     done: dict[str, dict[str, Any]] = {}
     todo: list[Entry] = []
     for entry in entries:
@@ -95,7 +99,7 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
         ids = {e.beam_id for e in entries} | {o.beam_id for o in summary.outcomes}
         for beam_id in sorted(i for i in ids if i and i != COMBINED):
             _remove_temporaries(out_path / beam_id)
-        combine(out_path, done)
+        combine(out_path, done, units)
         write_failures(out_path, summary.failed, {e.path: e.index for e in entries})
     summary.seconds = time.perf_counter() - started
     return summary

@@ -1,0 +1,177 @@
+"""One beam's result folder (OUT/<id>) read as the data of its calculation report.
+
+Every table is read generically (its columns as they are in the file, with their units
+from :mod:`envelope.columnunits`), so columns added to the result files appear in the
+report without a change here.  Numbers are formatted for display per column: a column
+of large values gets fewer decimals than one of small values.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from envelope.columnunits import column_units
+from envelope.errors import EnvelopeError
+
+#: The result tables a report shows, in order, with their headings.
+TABLES = (("design", "Design actions per span"), ("reactions", "Support reactions"),
+          ("sizing", "Member sizing per design section"),
+          ("cases", "Combinations and patterns"))
+#: Columns never shown in the report's tables (the beam's own id, repeated).
+HIDDEN = frozenset({"beam"})
+
+
+@dataclass(frozen=True)
+class Table:
+    """One result table for display: column names, units, rows of Python values."""
+
+    stem: str
+    heading: str
+    columns: tuple[str, ...]
+    units: dict[str, str]
+    rows: tuple[tuple[Any, ...], ...]
+
+    def column(self, name: str) -> list[Any]:
+        i = self.columns.index(name)
+        return [r[i] for r in self.rows]
+
+    def cells(self) -> list[list[str]]:
+        """Every row as display text, numbers rounded per column (see :func:`decimals`)."""
+        digits = [decimals([r[i] for r in self.rows]) for i in range(len(self.columns))]
+        return [[fmt(v, d) for v, d in zip(r, digits, strict=True)] for r in self.rows]
+
+    def numeric(self) -> list[bool]:
+        return [any(isinstance(r[i], float | int) and not isinstance(r[i], bool)
+                    for r in self.rows) for i in range(len(self.columns))]
+
+
+def decimals(values: list[Any]) -> int:
+    """Decimals that show a column of numbers to about four significant figures at its
+    largest magnitude (common practice for calculation sheets)."""
+    nums = [abs(v) for v in values if isinstance(v, float) and math.isfinite(v)]
+    if not nums:
+        return 0
+    top = max(nums)
+    if top == 0.0:
+        return 1
+    return int(min(max(3 - math.floor(math.log10(top)), 0), 4))
+
+
+def fmt(value: Any, digits: int = 2) -> str:
+    """Display text of one cell: ``-`` for a missing value."""
+    if value is None or (isinstance(value, float) and math.isnan(value)):
+        return "-"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, float):
+        text = f"{value:.{digits}f}"
+        return text.lstrip("-") if float(text) == 0.0 else text
+    return str(value)
+
+
+@dataclass
+class ReportData:
+    """Everything a calculation report shows, read from one result folder."""
+
+    folder: Path
+    beam_id: str
+    title: str
+    system: str
+    units: dict[str, str]
+    version: str
+    input_sha256: str
+    caution: str
+    warnings: list[str]
+    tables: dict[str, Table]
+    input_text: str | None
+    document: dict[str, Any] | None
+    figure_svg: str = ""
+    sketch_svg: str = ""
+    echo: list[dict[str, str]] = field(default_factory=list)
+    checks: list[dict[str, str]] = field(default_factory=list)
+    status: str = "ok"
+    max_utilisation: float | None = None
+
+
+def read_table(path: Path, stem: str, heading: str) -> tuple[Table, dict[str, str]]:
+    """One Parquet file as a :class:`Table` and its decoded file metadata."""
+    import pyarrow.parquet as pq
+
+    table = pq.ParquetFile(path).read()
+    meta = {k.decode(): v.decode() for k, v in (table.schema.metadata or {}).items()}
+    labels = json.loads(meta.get("envelope:units", "{}"))
+    own = json.loads(meta.get("envelope:sizing_units", "{}"))
+    names = [n for n in table.column_names if n not in HIDDEN]
+    units = column_units(names, labels if all(isinstance(v, str) for v in labels.values())
+                         else {}, own)
+    for f in table.schema:  # a unit written in the field itself wins
+        if f.metadata and b"unit" in f.metadata and f.name in names:
+            units[f.name] = f.metadata[b"unit"].decode()
+    cols = [table.column(n).to_pylist() for n in names]
+    rows = tuple(zip(*cols, strict=True)) if cols else ()
+    return Table(stem, heading, tuple(names), units, rows), meta
+
+
+def collect(folder: str | Path) -> ReportData:
+    """Read ``folder`` (OUT/<id>) into a :class:`ReportData`; raises
+    :class:`EnvelopeError` when it is not a complete result folder."""
+    from envelope.report import checks, echo, sketch
+
+    folder = Path(folder)
+    tables: dict[str, Table] = {}
+    meta: dict[str, str] = {}
+    code = ""
+    for stem, heading in (("envelope", "Envelope per station"), *TABLES):
+        path = folder / f"{stem}.parquet"
+        if not path.is_file():
+            if stem == "sizing":
+                continue
+            raise EnvelopeError(f"{folder}: not a result folder ({stem}.parquet is missing)")
+        try:
+            tables[stem], m = read_table(path, stem, heading)
+        except OSError as exc:
+            raise EnvelopeError(f"{path}: cannot be read ({exc})") from None
+        if stem == "cases":
+            meta = m
+        code = m.get("envelope:sizing_code", code)
+    units = json.loads(meta.get("envelope:units", "{}"))
+    text = meta.get("envelope:input")
+    document = None
+    if text is not None:
+        try:
+            document = tomllib.loads(text)
+        except tomllib.TOMLDecodeError:
+            document = None
+    data = ReportData(
+        folder=folder, beam_id=meta.get("envelope:beam", folder.name),
+        title=meta.get("envelope:title", ""), system="US" if units.get("force") == "kip"
+        else "SI", units=units, version=meta.get("envelope:version", ""),
+        input_sha256=meta.get("envelope:input_sha256", ""),
+        caution=meta.get("envelope:caution", ""),
+        warnings=json.loads(meta.get("envelope:warnings", "[]")), tables=tables,
+        input_text=text, document=document)
+    data.echo = echo.echo(document, data.system) if document else []
+    data.checks = checks.checks(tables.get("sizing"), document, code)
+    data.status, data.max_utilisation = checks.overall(data.checks)
+    data.sketch_svg = sketch.sketch(document, folder) if document else ""
+    data.figure_svg = figure_svg(folder)
+    return data
+
+
+def figure_svg(folder: Path) -> str:
+    """The envelope figure of ``folder`` as SVG text, drawn by the plotting module."""
+    import tempfile
+
+    from envelope import plots, store
+
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "envelope.svg"
+        plots.draw_results(store.read_results(folder), path, durable=False)
+        text = path.read_text(encoding="utf-8")
+    start = text.find("<svg")  # drop the XML prolog and doctype: inline SVG
+    return text[start:] if start >= 0 else text
