@@ -43,7 +43,73 @@ def report(folders: tuple[str, ...], pdf: bool) -> None:
     click.echo("Results are for checking by a licensed engineer and defer to local codes.")
 
 
+@click.command("export")
+@click.argument("folder", type=click.Path(file_okay=False, exists=True))
+@click.option("--format", "fmt", type=click.Choice(["xlsx", "csv"]), default="xlsx",
+              show_default=True, help="One workbook (a sheet per table) or CSV files.")
+@click.option("-o", "--output", type=click.Path(),
+              help="Workbook file or CSV folder  [default: FOLDER/results.xlsx, FOLDER/csv]")
+def export(folder: str, fmt: str, output: str | None) -> None:
+    """Export every table of a result folder (OUT/<id>) or a batch (OUT) to xlsx or csv,
+    with each column's unit in its heading."""
+    from envelope.report.export import export as run_export
+
+    try:
+        for p in run_export(folder, fmt, output):
+            click.echo(f"wrote {p}")
+    except EnvelopeError as exc:
+        _fail(exc)
+
+
+@click.command("new")
+@click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--units", type=click.Choice(["SI", "US"]), default="SI", show_default=True)
+@click.option("--schedule", is_flag=True,
+              help="Write a beam schedule (.csv or .xlsx: one row per beam) instead.")
+@click.option("--force", is_flag=True, help="Overwrite an existing file.")
+def new(path: str, units: str, schedule: bool, force: bool) -> None:
+    """Write a commented template case file (or beam schedule) to PATH."""
+    from envelope.files import write_atomic
+    from envelope.report import template
+
+    target = Path(path)
+    if target.exists() and not force:
+        click.echo(f"error: {path}: the file exists (give --force to overwrite it)", err=True)
+        sys.exit(2)
+    if schedule:
+        from envelope.report.schedule import write_schedule
+
+        try:
+            write_schedule(target, [template.SCHEDULE_HEADINGS, template.SCHEDULE_EXAMPLE])
+        except EnvelopeError as exc:
+            _fail(exc)
+    else:
+        text = template.case_template(target.name, units).encode()
+        write_atomic(target, lambda fh: fh.write(text))
+    click.echo(f"wrote {path}")
+
+
+@click.command("schema")
+@click.option("-o", "--output", type=click.Path(dir_okay=False),
+              help="Write the schema to this file instead of standard output.")
+def schema(output: str | None) -> None:
+    """Print the JSON Schema of the case file (for editor completion)."""
+    import json
+
+    from envelope.report.schema import schema as build
+
+    text = json.dumps(build(), indent=2) + "\n"
+    if output is None:
+        click.echo(text, nl=False)
+        return
+    from envelope.files import write_atomic
+
+    data = text.encode()
+    write_atomic(Path(output), lambda fh: fh.write(data))
+    click.echo(f"wrote {output}")
+
+
 def register(group: click.Group) -> None:
     """Add every command of this module to ``group`` (the ``envelope`` command)."""
-    for command in (report,):
+    for command in (report, export, new, schema):
         group.add_command(command)

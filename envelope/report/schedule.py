@@ -495,3 +495,36 @@ def expand_schedules(paths: Sequence[str], out: str | os.PathLike[str]
                 write_atomic(target, lambda fh, text=text: fh.write(text))
             result.append(str(target))
     return result, failures
+
+
+def write_schedule(path: Path, rows: Sequence[Sequence[Any]]) -> Path:
+    """Write ``rows`` (the heading row first) as a schedule: CSV, or an xlsx workbook
+    with one sheet ``beams``, by the suffix of ``path``."""
+    import io
+
+    from envelope.files import write_atomic
+
+    suffix = path.suffix.lower()
+    if suffix == ".csv":
+        buffer = io.StringIO()
+        csv.writer(buffer, lineterminator="\n").writerows(rows)
+        data = buffer.getvalue().encode("utf-8")
+    elif suffix == ".xlsx":
+        import xlsxwriter
+
+        out = io.BytesIO()
+        book = xlsxwriter.Workbook(out, {"in_memory": True})
+        sheet = book.add_worksheet("beams")
+        bold = book.add_format({"bold": True})
+        for i, row in enumerate(rows):
+            for j, v in enumerate(row):
+                if isinstance(v, int | float) and not isinstance(v, bool):
+                    sheet.write_number(i, j, v)
+                else:
+                    sheet.write_string(i, j, str(v), bold if i == 0 else None)
+        book.close()
+        data = out.getvalue()
+    else:
+        raise ScheduleError(f"{path}: a schedule is .csv or .xlsx")
+    write_atomic(path, lambda fh: fh.write(data))
+    return path
