@@ -61,12 +61,12 @@ def column_units(names: Iterable[str], labels: Mapping[str, str],
     return out
 
 
-#: SI output unit -> (US output unit, SI value per US unit), exact by definition
+#: SI output unit -> (US output unit, SI value of one US unit), exact by definition
 #: (1 ft = 0.3048 m, 1 lbf = 4.4482216152605 N, 1 in = 25.4 mm).
 _LBF = 4.4482216152605e-3  # kN
 _FT = 0.3048  # m
 _IN = 25.4  # mm
-SI_TO_US: dict[str, tuple[str, float]] = {
+_PAIRS: dict[str, tuple[str, float]] = {
     "m": ("ft", _FT),
     "kN": ("kip", 1000.0 * _LBF),
     "kN*m": ("kip*ft", 1000.0 * _LBF * _FT),
@@ -81,8 +81,9 @@ SI_TO_US: dict[str, tuple[str, float]] = {
     "1": ("1", 1.0),
     "Hz": ("Hz", 1.0),
 }
-US_TO_SI: dict[str, tuple[str, float]] = {us: (si, 1.0 / f) for si, (us, f) in
-                                          SI_TO_US.items()}
+#: unit -> (unit of the other system, multiplier from the first to the second)
+SI_TO_US: dict[str, tuple[str, float]] = {si: (us, 1.0 / f) for si, (us, f) in _PAIRS.items()}
+US_TO_SI: dict[str, tuple[str, float]] = {us: (si, f) for si, (us, f) in _PAIRS.items()}
 
 
 def convert(unit: str, to_system: str) -> tuple[str, float]:

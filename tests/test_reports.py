@@ -1,0 +1,388 @@
+"""Calculation reports, the building view, exports, beam schedules, units in the data,
+the case-file template and its JSON Schema.
+
+Outside references: unit conversions are exact by the definitions of the foot
+(0.3048 m) and the pound-force (4.4482216152605 N) (NIST SP 811, Appendix B); the
+schedule's line loads are load per area times tributary width (common practice); every
+other value is compared with the engine's own run of the equivalent case file.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import math
+import shutil
+from pathlib import Path
+
+import pyarrow as pa
+import pyarrow.parquet as pq
+import pytest
+from click.testing import CliRunner
+
+from envelope import casefile, engine_version
+from envelope.cli import main
+from envelope.report import checks, collect, schedule, template
+from envelope.report.schema import schema
+
+ROOT = Path(__file__).resolve().parents[1]
+CASES = ROOT / "cases"
+CAUTION = "for checking by a licensed engineer and defer to local codes"
+
+
+def _invoke(*args: str) -> object:
+    return CliRunner().invoke(main, list(args))
+
+
+@pytest.fixture(scope="module")
+def office(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """office-4span-si run with --report (concrete sizing, ACI 318-19)."""
+    out = tmp_path_factory.mktemp("office")
+    run = _invoke("run", str(CASES / "office-4span-si.toml"), "-o", str(out), "--no-plots",
+                  "-q", "--report")
+    assert run.exit_code == 0, run.output
+    return out / "office-4span-si"
+
+
+# -- units in the data ---------------------------------------------------------------------
+
+
+def test_every_numeric_column_names_its_unit_in_its_field_metadata(office: Path) -> None:
+    labels = json.loads(pq.read_schema(office / "design.parquet").metadata[b"envelope:units"])
+    expected = {"x": labels["length"], "moment_max": labels["moment"],
+                "shear_min": labels["force"], "deflection_max": labels["deflection"]}
+    env = pq.read_schema(office / "envelope.parquet")
+    for name, unit in expected.items():
+        assert env.field(name).metadata[b"unit"].decode() == unit
+    sizing = pq.read_schema(office / "sizing.parquet")
+    own = json.loads(sizing.metadata[b"envelope:sizing_units"])
+    for name, unit in own.items():
+        assert sizing.field(name).metadata[b"unit"].decode() == unit, name
+    for stem in ("envelope", "design", "reactions", "sizing"):
+        for f in pq.read_schema(office / f"{stem}.parquet"):
+            if pa.types.is_floating(f.type):
+                assert f.metadata and b"unit" in f.metadata, (stem, f.name)
+
+
+# -- the calculation report -----------------------------------------------------------------
+
+
+def test_report_holds_caution_provenance_input_combinations_and_every_check(
+        office: Path) -> None:
+    page = (office / "report.html").read_text()
+    meta = pq.read_schema(office / "cases.parquet").metadata
+    assert CAUTION in page
+    assert engine_version() in page
+    assert meta[b"envelope:input_sha256"].decode() in page
+    # the input echoed with units: a span length in m, E in MPa, a line load in kN/m
+    data = collect.collect(office)
+    echo = {r["key"]: r for r in data.echo}
+    assert echo["spans[1].length"]["unit"] == "m"
+    assert echo["section.E"]["unit"] == "MPa"
+    assert echo["loads[2].w"]["unit"] == "kN/m"
+    # combinations with their clauses
+    for source in data.tables["cases"].column("source"):
+        assert source in page
+    assert "ASCE 7-22 2.3.1" in page
+    # every sizing column appears (rendered from the table's own columns)
+    for name in data.tables["sizing"].columns:
+        assert f"<th scope=\"col\">{name}</th>" in page
+    # every check with its clause and result: flexure at each section with a moment,
+    # shear at each end section, deflection on each span row
+    sizing = data.tables["sizing"]
+    kinds = [c["check"] for c in data.checks]
+    assert kinds.count("flexure") == sum(1 for m in sizing.column("moment_design") if m)
+    assert kinds.count("shear") == 8
+    assert kinds.count("deflection") == 4
+    assert page.count('<tr class="pass">') + page.count('<tr class="fail">') == len(kinds)
+    assert page.count("ACI 318-19 22.2, 9.5.1.1") == kinds.count("flexure")
+    assert all(c["clause"].startswith("ACI 318-19") for c in data.checks)
+    assert {c["result"] for c in data.checks} <= {"pass", "fail"}
+    assert "<svg" in page and "model sketch" in page
+
+
+def test_a_new_sizing_column_appears_in_the_report_without_a_code_change(
+        office: Path, tmp_path: Path) -> None:
+    folder = tmp_path / office.name
+    shutil.copytree(office, folder)
+    table = pq.read_table(folder / "sizing.parquet")
+    n = table.num_rows
+    table = table.append_column("utilisation_buckling", pa.array([1.25] + [0.5] * (n - 1)))
+    table = table.append_column("bars", pa.array(["4 #8"] * n))
+    pq.write_table(table, folder / "sizing.parquet")
+    data = collect.collect(folder)
+    assert "utilisation_buckling" in data.tables["sizing"].columns
+    buckling = [c for c in data.checks if c["check"] == "buckling"]
+    assert len(buckling) == n
+    assert [c["result"] for c in buckling].count("fail") == 1
+    assert data.status == "fails"
+    assert data.max_utilisation == pytest.approx(1.25)
+
+
+def test_a_failing_section_is_reported_as_failing(tmp_path: Path) -> None:
+    text = (CASES / "office-4span-si.toml").read_text()
+    small = text.replace("h = 700", "h = 300").replace("b = 400", "b = 200")
+    assert small != text
+    case = tmp_path / "small.toml"
+    case.write_text(small)
+    run = _invoke("run", str(case), "-o", str(tmp_path / "out"), "--no-plots", "-q",
+                  "--report")
+    assert run.exit_code == 0, run.output
+    folder = next((tmp_path / "out").iterdir())
+    data = collect.collect(folder)
+    assert data.status == "fails"
+    failed = [c for c in data.checks if c["result"] == "fail"]
+    assert failed and all(c["detail"] for c in failed)
+    assert "fail" in (folder / "report.html").read_text()
+
+
+def test_a_beam_without_design_says_no_check_was_made(tmp_path: Path) -> None:
+    run = _invoke("run", "-o", str(tmp_path), "--no-plots", "-q", "--report")
+    assert run.exit_code == 0, run.output
+    folder = next(p for p in tmp_path.iterdir() if p.is_dir())
+    page = (folder / "report.html").read_text()
+    assert "no design check was made" in page
+    assert collect.collect(folder).status == "not sized"
+
+
+def test_checks_without_values_never_pass_a_failing_status() -> None:
+    table = collect.Table("sizing", "", ("span", "section", "moment_design", "shear_design",
+                                         "as_required", "as_max", "status"),
+                          {}, ((1, "left", -50.0, 90.0, None, 900.0,
+                                "section too small for shear: Vu exceeds"),
+                               (1, "span", 80.0, None, None, 900.0,
+                                "section too small for singly reinforced design")))
+    rows = checks.checks(table, None, "aci318-19")
+    assert [(r["check"], r["result"]) for r in rows] == [
+        ("flexure", "not checked"), ("shear", "fail"), ("flexure", "fail")]
+    assert checks.overall(rows)[0] == "fails"
+
+
+# -- exports -----------------------------------------------------------------------------
+
+
+def test_xlsx_export_has_a_sheet_per_table_units_in_headings_and_numbers(
+        office: Path, tmp_path: Path) -> None:
+    from python_calamine import CalamineWorkbook
+
+    target = tmp_path / "r.xlsx"
+    run = _invoke("export", str(office), "--format", "xlsx", "-o", str(target))
+    assert run.exit_code == 0, run.output
+    book = CalamineWorkbook.from_path(str(target))
+    assert book.sheet_names == ["about", "design", "reactions", "sizing", "envelope", "cases"]
+    assert CAUTION in book.get_sheet_by_name("about").to_python()[1][0]
+    rows = book.get_sheet_by_name("design").to_python()
+    head = rows[0]
+    assert "moment_pos [kN*m]" in head and "deflection_max [mm]" in head
+    design = pq.read_table(office / "design.parquet").to_pylist()
+    k = head.index("moment_pos [kN*m]")
+    for row, ref in zip(rows[1:], design, strict=True):
+        assert isinstance(row[k], float)
+        assert row[k] == pytest.approx(ref["moment_pos"], rel=5e-6)  # 6 figures
+
+
+def test_csv_export_writes_a_file_per_table_with_units_in_the_heading(
+        office: Path, tmp_path: Path) -> None:
+    run = _invoke("export", str(office), "--format", "csv", "-o", str(tmp_path / "csv"))
+    assert run.exit_code == 0, run.output
+    with (tmp_path / "csv" / "reactions.csv").open() as fh:
+        rows = list(csv.reader(fh))
+    assert "reaction_max [kN]" in rows[0]
+    assert CAUTION in (tmp_path / "csv" / "CAUTION.txt").read_text()
+
+
+# -- beam schedules ----------------------------------------------------------------------------
+
+HEAD = ("id", "title", "units", "spans [m]", "supports", "E", "I", "tributary_width",
+        "dead_area", "live_area", "dead_line", "patterning")
+
+
+def _equivalent_case(path: Path, beam_id: str) -> Path:
+    """The case file of the schedule row ``S1`` written by hand: 5.0 kN/m^2 and 3.0 kN/m^2
+    over 4.2 m give 21.0 and 12.6 kN/m (load per area times width, common practice)."""
+    path.write_text(f"""id = "{beam_id}"
+units = "SI"
+[section]
+E = 30000
+I = 8.0e9
+[[spans]]
+length = 6.0
+[[spans]]
+length = 7.5
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "fixed"
+[cases]
+D = {{ kind = "dead" }}
+L = {{ kind = "live" }}
+[[loads]]
+case = "D"
+type = "uniform"
+spans = "all"
+w = 21.0
+[[loads]]
+case = "L"
+type = "uniform"
+spans = "all"
+w = 12.6
+[[loads]]
+case = "D"
+type = "uniform"
+spans = "all"
+w = 2.5
+[combinations]
+strength = "asce7-lrfd"
+service = "characteristic"
+[patterning]
+method = "exhaustive"
+""")
+    return path
+
+
+def test_schedule_rows_run_as_their_case_files_would(tmp_path: Path) -> None:
+    rows = [HEAD, ("S1", "Line 1", "SI", "6 7.5", "pinned pinned fixed", 30000, 8.0e9,
+                   4.2, 5.0, 3.0, 2.5, "exhaustive")]
+    sheet = schedule.write_schedule(tmp_path / "beams.xlsx", rows)
+    out = tmp_path / "out"
+    run = _invoke("batch", str(sheet), "-o", str(out), "--workers", "1")
+    assert run.exit_code == 0, run.output
+    ref = _invoke("run", str(_equivalent_case(tmp_path / "ref.toml", "S1")), "-o",
+                  str(tmp_path / "ref"), "--no-plots", "-q")
+    assert ref.exit_code == 0, ref.output
+    got = pq.read_table(out / "S1" / "design.parquet").to_pylist()
+    want = pq.read_table(tmp_path / "ref" / "S1" / "design.parquet").to_pylist()
+    for g, w in zip(got, want, strict=True):
+        for key in ("moment_pos", "moment_neg_right", "shear_left", "deflection_max"):
+            assert g[key] == pytest.approx(w[key], rel=1e-12), key
+    # the generated case file is kept for the record, and reruns are skipped
+    assert (out / "_all" / "schedule" / "S1.toml").is_file()
+    again = _invoke("batch", str(sheet), "-o", str(out), "--workers", "1")
+    assert "1 skipped" in again.output
+
+
+def test_a_bad_schedule_cell_names_sheet_row_and_column_and_the_rest_runs(
+        tmp_path: Path) -> None:
+    rows = [HEAD,
+            ("G1", "", "SI", "6 7.5", "pinned", 30000, 8.0e9, 4.2, 5.0, 3.0, 0, "code"),
+            ("G2", "", "SI", "6 7.5", "pinned", 30000, 8.0e9, 4.2, "five", 3.0, 0, "code"),
+            ("G3", "", "SI", "6 7.5", "hinged", 30000, 8.0e9, 4.2, 5.0, 3.0, 0, "code")]
+    sheet = schedule.write_schedule(tmp_path / "beams.xlsx", rows)
+    out = tmp_path / "out"
+    run = _invoke("batch", str(sheet), "-o", str(out), "--workers", "1")
+    assert run.exit_code == 2
+    with (out / "_all" / "failures.csv").open() as fh:
+        failures = {r["id"]: r["error"] for r in csv.DictReader(fh)}
+    assert set(failures) == {"G2", "G3"}
+    assert "sheet beams, row 3, column dead_area (I): expected a number, got 'five'" \
+        in failures["G2"]
+    assert "sheet beams, row 4, column supports (E)" in failures["G3"]
+    assert "hinged" in failures["G3"]
+    assert (out / "G1" / "design.parquet").is_file()
+
+
+def test_a_schedule_with_an_unknown_heading_is_refused_with_its_column(tmp_path: Path) -> None:
+    sheet = tmp_path / "beams.csv"
+    sheet.write_text("id,units,spans,spam\nA,SI,6,1\n")
+    run = _invoke("batch", str(sheet), "-o", str(tmp_path / "out"))
+    assert run.exit_code == 2
+    assert "row 1, column D: unknown heading 'spam'" in run.output
+    assert "Traceback" not in run.output
+
+
+# -- the combined tables of a batch keep units per row system or convert ---------------------
+
+LBF_KN = 4.4482216152605e-3   # kN per lbf, exact (NIST SP 811)
+FT_M = 0.3048                 # m per ft, exact
+
+
+def test_combined_tables_name_units_per_system_or_convert_to_one(tmp_path: Path) -> None:
+    paths = [str(CASES / "office-4span-si.toml"), str(CASES / "platform-us.toml")]
+    mixed = tmp_path / "mixed"
+    assert _invoke("batch", *paths, "-o", str(mixed), "--workers", "1").exit_code == 0
+    table = pq.read_table(mixed / "_all" / "design.parquet")
+    field = table.schema.field("moment_pos")
+    assert b"unit" not in field.metadata
+    assert json.loads(field.metadata[b"unit_by_system"]) == {"SI": "kN*m", "US": "kip*ft"}
+    si = tmp_path / "si"
+    assert _invoke("batch", *paths, "-o", str(si), "--workers", "1", "--units", "SI"
+                   ).exit_code == 0
+    conv = pq.read_table(si / "_all" / "design.parquet")
+    assert conv.schema.field("moment_pos").metadata[b"unit"] == b"kN*m"
+    assert conv.schema.field("deflection_max").metadata[b"unit"] == b"mm"
+    before = [r for r in table.to_pylist() if r["system"] == "US"]
+    after = [r for r in conv.to_pylist() if r["system"] == "US"]
+    for b, a in zip(before, after, strict=True):
+        assert a["moment_pos"] == pytest.approx(b["moment_pos"] * 1000 * LBF_KN * FT_M)
+        assert a["length"] == pytest.approx(b["length"] * FT_M)
+        assert a["deflection_max"] == pytest.approx(b["deflection_max"] * 25.4)
+
+
+# -- envelope new and the JSON Schema --------------------------------------------------------
+
+
+@pytest.mark.parametrize("system", ["SI", "US"])
+def test_the_template_case_file_is_a_valid_case_naming_every_top_key(
+        tmp_path: Path, system: str) -> None:
+    import envelope
+
+    path = tmp_path / "beam.toml"
+    run = _invoke("new", str(path), "--units", system)
+    assert run.exit_code == 0, run.output
+    beam = envelope.load_case(path)
+    assert beam.units.name == system
+    envelope.analyse(beam)
+    text = path.read_text()
+    for key in casefile.TOP_KEYS:
+        assert key in text
+    assert CAUTION in text
+    assert _invoke("new", str(path)).exit_code == 2  # never overwritten unasked
+
+
+def test_the_schedule_template_runs(tmp_path: Path) -> None:
+    path = tmp_path / "beams.csv"
+    assert _invoke("new", str(path), "--schedule").exit_code == 0
+    rows = schedule.read_rows(str(path))
+    assert len(rows) == 1
+    assert casefile.parse_case(schedule.check_row(rows[0]), "x").n_spans == 3
+    assert len(template.SCHEDULE_HEADINGS) == len(template.SCHEDULE_EXAMPLE)
+
+
+def _walk(doc: object, node: dict, path: str) -> None:
+    """Every key of ``doc`` is a property the schema names (additionalProperties off)."""
+    if "anyOf" in node or not isinstance(doc, dict | list):
+        return
+    if isinstance(doc, list):
+        for i, item in enumerate(doc):
+            _walk(item, node.get("items", {}), f"{path}[{i}]")
+        return
+    props = node.get("properties")
+    for k, v in doc.items():
+        if props is None:
+            _walk(v, node.get("additionalProperties", {}) or {}, f"{path}.{k}")
+            continue
+        assert k in props, f"{path}.{k} not in the schema"
+        _walk(v, props[k], f"{path}.{k}")
+
+
+def test_the_schema_names_every_key_of_the_reader_and_of_every_example() -> None:
+    import tomllib
+
+    s = schema()
+    assert set(s["properties"]) == set(casefile.TOP_KEYS)
+    assert set(s["properties"]["design"]["properties"]) == set(casefile.DESIGN_KEYS)
+    assert set(s["properties"]["loads"]["items"]["properties"]) == set(casefile.ALL_LOAD_KEYS)
+    examples = [*CASES.glob("*.toml"), ROOT / "envelope" / "data" / "demo.toml"]
+    for path in examples:
+        _walk(tomllib.loads(path.read_text()), s, path.name)
+    json.dumps(s)  # plain JSON
+
+
+def test_display_rounding_keeps_about_four_significant_figures() -> None:
+    assert collect.decimals([1234.5, 2.0]) == 0
+    assert collect.decimals([0.01234]) == 4
+    assert collect.decimals([12.3456]) == 2
+    assert collect.fmt(-0.0001, 2) == "0.00"
+    assert collect.fmt(math.nan) == "-"
