@@ -23,7 +23,7 @@ from click.testing import CliRunner
 from envelope import casefile, engine_version
 from envelope.cli import main
 from envelope.report import checks, collect, schedule, template
-from envelope.report.schema import schema
+from envelope.report.schema import schema, vocabulary
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES = ROOT / "cases"
@@ -371,9 +371,10 @@ def test_the_schema_names_every_key_of_the_reader_and_of_every_example() -> None
     import tomllib
 
     s = schema()
-    assert set(s["properties"]) == set(casefile.TOP_KEYS)
-    assert set(s["properties"]["design"]["properties"]) == set(casefile.DESIGN_KEYS)
-    assert set(s["properties"]["loads"]["items"]["properties"]) == set(casefile.ALL_LOAD_KEYS)
+    keys = vocabulary()
+    assert set(s["properties"]) == set(keys.TOP_KEYS)
+    assert set(s["properties"]["design"]["properties"]) == set(keys.DESIGN_KEYS)
+    assert set(s["properties"]["loads"]["items"]["properties"]) == set(keys.ALL_LOAD_KEYS)
     examples = [*CASES.glob("*.toml"), ROOT / "envelope" / "data" / "demo.toml"]
     for path in examples:
         _walk(tomllib.loads(path.read_text()), s, path.name)

@@ -145,11 +145,11 @@ def read_rows(path: str) -> list[Row]:
                 continue
             m = _HEADING.fullmatch(h)
             if m is None or m.group(1) not in COLUMNS:
-                from envelope.casefile import _suggest
+                from envelope.casefile.reader import suggest
 
                 name = m.group(1) if m else h
                 raise ScheduleError(f"{where}row 1, column {_letter(i)}: unknown heading "
-                                    f"{h!r}{_suggest(name, COLUMNS)}")
+                                    f"{h!r}{suggest(name, COLUMNS)}")
             if m.group(1) in letters:
                 raise ScheduleError(f"{where}row 1, column {_letter(i)}: heading "
                                     f"{m.group(1)!r} appears twice")

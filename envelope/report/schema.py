@@ -8,6 +8,7 @@ reader learns appears here unchanged; the reader remains the judge of a file.
 
 from __future__ import annotations
 
+from types import SimpleNamespace
 from typing import Any
 
 from envelope.report.echo import DESIGN_UNITS, KEY_QUANTITY
@@ -37,10 +38,22 @@ def _object(keys: tuple[str, ...], props: dict[str, Any], required: tuple[str, .
             **({"required": list(required)} if required else {})}
 
 
+def vocabulary() -> SimpleNamespace:
+    """Every name of the case reader's modules (its key lists and choices), merged."""
+    import importlib
+    import pkgutil
+
+    casefile = importlib.import_module("envelope.casefile")
+    names: dict[str, Any] = dict(vars(casefile))
+    for info in pkgutil.walk_packages(getattr(casefile, "__path__", []),
+                                      prefix="envelope.casefile."):
+        names.update(vars(importlib.import_module(info.name)))
+    return SimpleNamespace(**names)
+
+
 def schema() -> dict[str, Any]:
     """The JSON Schema of a case file, as a dict."""
-    from envelope import casefile as cf
-
+    cf = vocabulary()
     get = vars(cf).get
     section = {k: _number(k) for k in cf.SECTION_KEYS}
     spans_of = {"anyOf": [{"const": "all"}, {"type": "integer", "minimum": 1},
