@@ -8,6 +8,8 @@ The public API, for notebooks and for the command line alike::
     result = envelope.analyse(beam)
     tables = envelope.tables(result)      # dict of pyarrow Tables by file stem
     envelope.write(result, "results")     # results/<id>/*.parquet
+    fig = envelope.plot(result)           # a matplotlib Figure
+    print(envelope.summary(result))       # the console summary
 
 Results are for checking by a licensed engineer and defer to local codes.
 """
@@ -18,13 +20,21 @@ from typing import TYPE_CHECKING, Any
 
 __version__ = "0.1.0"
 
-__all__ = ["__version__", "analyse", "engine_version", "load_case", "tables", "write"]
+__all__ = ["__version__", "analyse", "engine_version", "load_case", "plot", "summary", "tables",
+           "write"]
+_API = ("analyse", "load_case", "plot", "summary", "tables", "write")
 
 
 def engine_version() -> str:
-    """The release number plus a fingerprint of the package's own source files, e.g.
-    ``0.1.0+3f2a9c1d04be``: written into every result file, so results of a changed
-    engine never pass for current ones when a batch resumes."""
+    """The engine version written into every result file.
+
+    Returns
+    -------
+    str
+        The release number plus a fingerprint of the package's own source files, e.g.
+        ``0.1.0+3f2a9c1d04be``, so results of a changed engine never pass for current
+        ones when a batch resumes.
+    """
     global _ENGINE_VERSION
     if _ENGINE_VERSION is None:
         import hashlib
@@ -42,13 +52,18 @@ def engine_version() -> str:
 _ENGINE_VERSION: str | None = None
 
 if TYPE_CHECKING:
-    from envelope.api import analyse, load_case, tables, write
+    from envelope.api import analyse, load_case, plot, summary, tables, write
 
 
 def __getattr__(name: str) -> Any:
     # imported on first use, so that `import envelope` stays cheap
-    if name in ("analyse", "load_case", "tables", "write"):
+    if name in _API:
         from envelope import api
 
         return getattr(api, name)
-    raise AttributeError(name)
+    raise AttributeError(f"module 'envelope' has no attribute {name!r}")
+
+
+def __dir__() -> list[str]:
+    # the public names load on first use; completion in a notebook still finds them
+    return sorted({*globals(), *__all__})

@@ -1,59 +1,215 @@
-"""The small public API: load a case, analyse it, get or write the result tables."""
+"""The public API, for notebooks and for the command line alike.
+
+Load a case, analyse it, then take the result tables, write them, draw them or print
+their summary.  Warnings (a nearly singular beam, a check that could not be made) are
+raised through :mod:`warnings` as :class:`envelope.errors.EnvelopeWarning`.
+
+Results are for checking by a licensed engineer and defer to local codes.
+"""
 
 from __future__ import annotations
 
 import os
+import warnings
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from envelope.casefile import load_case
-from envelope.errors import EnvelopeError
-from envelope.results import Analysis, analyse
+from envelope.errors import EnvelopeError, EnvelopeWarning
+from envelope.results import Analysis
+from envelope.results import analyse as _analyse
 
 if TYPE_CHECKING:
     import pyarrow as pa
+    from matplotlib.axes import Axes
+    from matplotlib.figure import Figure
 
-__all__ = ["Analysis", "analyse", "load_case", "redraw", "tables", "write"]
+    from envelope.model import Beam
+
+__all__ = ["Analysis", "analyse", "load_case", "plot", "redraw", "summary", "tables", "write"]
+
+#: Result files a run writes into OUT/<id>/; any of them an earlier run left and this
+#: one did not write is removed, so a folder never mixes two runs.
+_RESULT_SUFFIXES = (".parquet",)
+_FIGURE = "envelope.png"
+
+
+def analyse(beam: Beam) -> Analysis:
+    """Analyse a beam: every unit case once, the envelopes, the design actions.
+
+    Parameters
+    ----------
+    beam : Beam
+        A checked beam, from :func:`load_case`.
+
+    Returns
+    -------
+    Analysis
+        The envelopes at the stations and supports and the design actions, in the
+        output units of the case.
+
+    Warns
+    -----
+    EnvelopeWarning
+        For each warning of the solver (a nearly singular beam, for one).
+    """
+    result = _analyse(beam)
+    for message in result.solved.solution.warnings:
+        warnings.warn(f"{beam.source}: {message}", EnvelopeWarning, stacklevel=2)
+    return result
 
 
 def tables(result: Analysis) -> dict[str, pa.Table]:
-    """The result tables of the outputs contract as Arrow tables, by file stem."""
+    """The result tables of the outputs contract.
+
+    Parameters
+    ----------
+    result : Analysis
+        From :func:`analyse`.
+
+    Returns
+    -------
+    dict of str to pyarrow.Table
+        By file stem: ``envelope``, ``reactions``, ``design``, ``cases`` and, when the
+        case has a ``[design]`` table, ``sizing``.
+    """
+    return _tables(result, False)
+
+
+def _tables(result: Analysis, all_cases: bool) -> dict[str, pa.Table]:
     from envelope import store
 
-    return store.tables(result)
-
-
-def write(result: Analysis, out: str | os.PathLike = "results", plots: bool = False,
-          all_cases: bool | None = None, durable: bool = True) -> Path:
-    """Write ``OUT/<id>/`` with every result file (envelope.png with ``plots``,
-    stations.parquet with ``all_cases``, default the case file's ``[output] all_cases``);
-    returns that folder.  All tables are built before the first file is written, so a
-    failure in the analysis or the tables writes nothing.  ``durable=False`` skips the
-    fsync of each file (see :func:`envelope.files.write_atomic`)."""
-    from envelope import store
-
-    if all_cases is None:
-        all_cases = result.beam.output.all_cases
     built = store.tables(result, all_cases)
     if result.beam.design is not None:
         from envelope.sizing.table import sizing_table
 
         built["sizing"] = sizing_table(result)
+    return built
+
+
+def summary(result: Analysis) -> str:
+    """The console summary: governing values per span, then the sizing when the case
+    has a ``[design]`` table; each part ends with its caution line.
+
+    Parameters
+    ----------
+    result : Analysis
+        From :func:`analyse`.
+
+    Returns
+    -------
+    str
+        Fixed-width text, lines separated by ``\\n``.
+    """
+    from envelope.summary import span_summary
+
+    text = span_summary(result)
+    if result.beam.design is not None:
+        from envelope.sizing.table import sizing_summary
+
+        text += "\n" + sizing_summary(result)
+    return text
+
+
+def plot(result: Analysis, ax: Axes | None = None) -> Figure:
+    """Draw the envelope figure of an analysis.
+
+    Parameters
+    ----------
+    result : Analysis
+        From :func:`analyse`.
+    ax : matplotlib.axes.Axes, optional
+        Draw into the space this Axes takes in its figure (it is replaced by the
+        figure's panels); by default a new figure.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure drawn on (shown inline by a notebook; save it with ``savefig``).
+    """
+    from envelope import plots, store
+
+    return plots.figure(store.result_columns(tables(result)), ax=ax)
+
+
+def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool = False,
+          all_cases: bool | None = None, durable: bool = True) -> Path:
+    """Write every result file of one beam to ``OUT/<id>/``.
+
+    All tables are built and checked before the first file is written, so a failure in
+    the analysis or the tables writes nothing.  Result files an earlier run left in the
+    folder and this one did not write (``stations.parquet``, ``envelope.png``...) are
+    removed afterwards.
+
+    Parameters
+    ----------
+    result : Analysis
+        From :func:`analyse`.
+    out : str or path-like, default "results"
+        The output folder; files go to ``OUT/<id>/``.
+    plots : bool, default False
+        Also draw ``envelope.png``.
+    all_cases : bool, optional
+        Also write ``stations.parquet``; by default the case file's
+        ``[output] all_cases``.
+    durable : bool, default True
+        Fsync each file (see :func:`envelope.files.write_atomic`).
+
+    Returns
+    -------
+    pathlib.Path
+        The folder written, ``OUT/<id>``.
+    """
+    from envelope import store
+
+    if all_cases is None:
+        all_cases = result.beam.output.all_cases
+    built = _tables(result, all_cases)
     folder = Path(out) / result.beam.id
     for stem, table in built.items():  # refuse before anything is written
         store.check_finite(table, str(folder / f"{stem}.parquet"))
+    written = {f"{stem}.parquet" for stem in built}
     if all_cases:
         store.write_stations(folder / "stations.parquet", result, durable)
+        written.add("stations.parquet")
     store.write_tables(folder, built, durable)
     if plots:
         from envelope import plots as figures
 
-        figures.draw_results(store.result_columns(built), folder / "envelope.png", durable)
+        figures.draw_results(store.result_columns(built), folder / _FIGURE, durable)
+        written.add(_FIGURE)
+    _remove_stale(folder, written)
     return folder
 
 
-def redraw(folder: str | os.PathLike, output: str | os.PathLike | None = None) -> Path:
-    """Draw the envelope figure of a result folder from its Parquet files."""
+def _remove_stale(folder: Path, written: set[str]) -> None:
+    """Remove result files of an earlier run that this run did not write."""
+    with os.scandir(folder) as entries:
+        for entry in entries:
+            name = entry.name
+            if name in written or name.startswith(".") or not entry.is_file(
+                    follow_symlinks=False):
+                continue
+            if name.endswith(_RESULT_SUFFIXES) or name == _FIGURE:
+                Path(entry.path).unlink(missing_ok=True)
+
+
+def redraw(folder: str | os.PathLike[str], output: str | os.PathLike[str] | None = None) -> Path:
+    """Draw the envelope figure of a result folder from its Parquet files.
+
+    Parameters
+    ----------
+    folder : str or path-like
+        A beam's result folder, ``OUT/<id>``.
+    output : str or path-like, optional
+        The figure file (``.png``, ``.svg`` or ``.pdf``); default
+        ``FOLDER/envelope.png``.
+
+    Returns
+    -------
+    pathlib.Path
+        The figure written.
+    """
     from envelope import plots, store
 
     folder = Path(folder)
@@ -61,4 +217,4 @@ def redraw(folder: str | os.PathLike, output: str | os.PathLike | None = None) -
         results = store.read_results(folder)
     except (FileNotFoundError, OSError) as exc:
         raise EnvelopeError(f"{folder}: not a result folder ({exc})") from None
-    return plots.draw_results(results, Path(output) if output else folder / "envelope.png")
+    return plots.draw_results(results, Path(output) if output else folder / _FIGURE)

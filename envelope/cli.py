@@ -1,4 +1,11 @@
-"""The command line: reads arguments, calls the API, prints; no engineering here.
+"""The command line: a group of subcommands, each imported only when it runs.
+
+``envelope --help`` and ``envelope run --no-plots`` import nothing beyond click and
+the modules of the command that runs (no matplotlib, no batch machinery).  A new
+subcommand is one line in :data:`COMMANDS`: its name, where its click command lives
+(``"module:attribute"``), and the one-line help that ``envelope -h`` shows without
+importing it.  Every subcommand gets ``-h``, ``-q`` and ``-v`` (see
+:mod:`envelope.commands.common`).
 
 Every deliberate error is one line on standard error with exit status 2 (bad
 input) or 3 (a failed statics check); nothing is written for a case that fails.
@@ -7,44 +14,74 @@ Set ENVELOPE_DEBUG=1 to see a traceback of an unexpected error.
 
 from __future__ import annotations
 
-import os
-import sys
-from contextlib import ExitStack
-from importlib import resources
-from pathlib import Path
+import importlib
 
 import click
 
-from envelope import __version__
-from envelope.design import SteelDesign
-from envelope.errors import EnvelopeError
+from envelope.commands.common import CONTEXT, add_common_options, verbosity_options
+
+#: Subcommands: name -> ("module:attribute" of the click command, one-line help).
+COMMANDS: dict[str, tuple[str, str]] = {
+    "run": ("envelope.commands.run:run",
+            "Analyse a case file (the bundled demo when none is given)."),
+    "check": ("envelope.commands.check:check",
+              "Check case files or folders without analysing them."),
+    "plot": ("envelope.commands.plot:plot",
+             "Redraw the figure of one result folder from its Parquet files."),
+    "batch": ("envelope.batch.command:batch",
+              "Analyse many case files into OUT/<id>/, combined in OUT/_all/."),
+    "report": ("envelope.report.commands:report",
+               "Write the calculation report of result folders OUT/<id>."),
+    "export": ("envelope.report.commands:export",
+               "Export the tables of a result folder or a batch to xlsx or csv."),
+    "new": ("envelope.report.commands:new",
+            "Write a commented template case file (or beam schedule)."),
+    "schema": ("envelope.report.commands:schema",
+               "Write the JSON Schema of the case file."),
+}
 
 
-def _fail(message: str, code: int) -> None:
-    click.echo(f"error: {message}", err=True)
-    sys.exit(code)
+class LazyGroup(click.Group):
+    """A click group whose subcommands are imported on first use from :data:`COMMANDS`."""
+
+    def list_commands(self, ctx: click.Context) -> list[str]:
+        return sorted({*COMMANDS, *self.commands})
+
+    def get_command(self, ctx: click.Context, cmd_name: str) -> click.Command | None:
+        if cmd_name in self.commands:
+            return self.commands[cmd_name]
+        if cmd_name not in COMMANDS:
+            return None
+        target, _ = COMMANDS[cmd_name]
+        module, _, attribute = target.partition(":")
+        command = getattr(importlib.import_module(module), attribute)
+        add_common_options(command)
+        self.commands[cmd_name] = command
+        return command
+
+    def format_commands(self, ctx: click.Context, formatter: click.HelpFormatter) -> None:
+        # the short help from the registry: listing the commands imports none of them
+        rows = [(name, COMMANDS[name][1]) for name in sorted(COMMANDS)]
+        rows += [(name, cmd.get_short_help_str(60)) for name, cmd in sorted(self.commands.items())
+                 if name not in COMMANDS]
+        if rows:
+            with formatter.section("Commands"):
+                formatter.write_dl(rows)
 
 
-def _guard(fn):  # type: ignore[no-untyped-def]
-    """Turn deliberate errors into one line and an exit status, never a traceback."""
+def _version(ctx: click.Context, _param: click.Parameter, value: bool) -> None:
+    if not value or ctx.resilient_parsing:
+        return
+    from envelope import engine_version
 
-    def wrapper(*args, **kwargs):  # type: ignore[no-untyped-def]
-        try:
-            return fn(*args, **kwargs)
-        except EnvelopeError as exc:
-            _fail(str(exc), exc.exit_code)
-        except Exception as exc:  # an unexpected error: still one line
-            if os.environ.get("ENVELOPE_DEBUG"):
-                raise
-            _fail(f"internal error ({type(exc).__name__}): {exc}", 1)
-
-    wrapper.__name__ = fn.__name__
-    wrapper.__doc__ = fn.__doc__
-    return wrapper
+    click.echo(f"envelope {engine_version()}")  # the version every result file carries
+    ctx.exit()
 
 
-@click.group()
-@click.version_option(__version__, prog_name="envelope")
+@click.group(cls=LazyGroup, context_settings=CONTEXT)
+@click.option("--version", is_flag=True, expose_value=False, is_eager=True, callback=_version,
+              help="Show the version (as written into every result file) and exit.")
+@verbosity_options
 def main() -> None:
     """Load-pattern envelopes for continuous floor beams.
 
@@ -52,90 +89,5 @@ def main() -> None:
     """
 
 
-@main.command()
-@click.argument("case", required=False, type=click.Path(dir_okay=False))
-@click.option("-o", "--out", default="results", show_default=True,
-              type=click.Path(file_okay=False), help="Output folder; files go to OUT/<id>/.")
-@click.option("-q", "--quiet", is_flag=True, help="Print only the output folder.")
-@click.option("--plots/--no-plots", default=True, show_default=True,
-              help="Draw envelope.png beside the Parquet files.")
-@click.option("--all-cases", is_flag=True, default=None,
-              help="Also write stations.parquet: every explicit case at every station.")
-@click.option("--report", is_flag=True, help="Also write report.html and report.pdf.")
-@_guard
-def run(case: str | None, out: str, quiet: bool, plots: bool, all_cases: bool | None,
-        report: bool) -> None:
-    """Analyse CASE (a TOML case file; the bundled demo when omitted)."""
-    from envelope import api
-    from envelope.summary import span_summary
-
-    with ExitStack() as stack:
-        if case is None:
-            ref = resources.files("envelope") / "data" / "demo.toml"
-            path = str(stack.enter_context(resources.as_file(ref)))
-        else:
-            path = case
-        beam = api.load_case(path)
-        result = api.analyse(beam)
-        for warning in result.solved.solution.warnings:
-            click.echo(f"warning: {path}: {warning}", err=True)
-        folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
-    click.echo(f"wrote {Path(folder)}")
-    if report:
-        from envelope.report.build import write_report
-
-        for written in write_report(folder):
-            click.echo(f"wrote {written}")
-    if not quiet:  # each summary ends with its caution line
-        click.echo(span_summary(result))
-        if result.beam.design is not None:
-            from envelope.sizing.table import sizing_summary
-
-            click.echo(sizing_summary(result))
-
-
-@main.command()
-@click.argument("cases", nargs=-1, required=True, type=click.Path(dir_okay=False))
-def check(cases: tuple[str, ...]) -> None:
-    """Check case files without analysing them; exit 2 if any is bad."""
-    from envelope.casefile import load_case
-
-    bad = 0
-    for path in cases:
-        try:
-            beam = load_case(path)
-            if isinstance(beam.design, SteelDesign) and beam.design.sections is not None:
-                from envelope.sizing.sections import read_sections
-
-                read_sections(beam)  # the sections table is input too
-        except EnvelopeError as exc:
-            click.echo(f"error: {exc}", err=True)
-            bad += 1
-            continue
-        click.echo(f"ok: {path} ({beam.id}, {beam.n_spans} spans, {len(beam.loads)} load items)")
-    if bad:
-        sys.exit(2)
-
-
-@main.command()
-@click.argument("folder", type=click.Path(file_okay=False, exists=True))
-@click.option("-o", "--output", type=click.Path(dir_okay=False),
-              help="Figure file (.png, .svg, .pdf); default FOLDER/envelope.png.")
-@_guard
-def plot(folder: str, output: str | None) -> None:
-    """Redraw the envelope figure of one result folder (OUT/<id>) from its Parquet files."""
-    from envelope import api
-
-    path = api.redraw(folder, output)
-    click.echo(f"wrote {path}")
-
-
-from envelope.batch import batch as _batch_command  # noqa: E402
-
-main.add_command(_batch_command)
-from envelope.report import commands as _report_commands  # noqa: E402
-
-_report_commands.register(main)
-
 if __name__ == "__main__":
-    main()
+    main(prog_name="envelope")

@@ -32,3 +32,10 @@ class StaticsError(EnvelopeError):
     """A solve failed its equilibrium or residual check: a result that must not be used."""
 
     exit_code = 3
+
+
+class EnvelopeWarning(UserWarning):
+    """Something the engineer should know that does not stop the analysis (a nearly
+    singular beam, a check that could not be made); raised through :mod:`warnings`, so
+    a notebook shows it once and ``warnings.simplefilter("error", EnvelopeWarning)``
+    turns it into an error."""

@@ -76,11 +76,29 @@ def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool
                 durable)
 
 
+def figure(results: Mapping[str, Mapping], ax=None) -> Figure:  # type: ignore[no-untyped-def]
+    """The figure of :func:`envelope.store.result_columns` output, in a new Figure or in
+    the place of ``ax``."""
+    meta = results["meta"]
+    return _build(results["envelope"], results["design"], results["reactions"], meta["units"],
+                  str(meta.get("envelope:moment_plot", "sagging-up")),
+                  str(meta.get("envelope:title", "")) or str(meta.get("envelope:beam", "")),
+                  ax)
+
+
 def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[str, str],
          path: str | Path, moment_plot: str = "sagging-up", title: str = "",
          durable: bool = True) -> Path:
     """Draw the envelope figure to ``path`` (.png, .svg or .pdf by its suffix)."""
     path = Path(path)
+    fig = _build(envelope, design, supports, units, moment_plot, title)
+    fmt = path.suffix.lstrip(".").lower() or "png"
+    write_atomic(path, lambda fh: fig.savefig(fh, format=fmt, dpi=DPI), durable)
+    return path
+
+
+def _build(envelope: Columns, design: Columns, supports: Columns, units: Mapping[str, str],
+           moment_plot: str = "sagging-up", title: str = "", ax=None) -> Figure:  # type: ignore[no-untyped-def]
     x = _finite(envelope["x"])
     span = np.asarray(envelope["span"], dtype=int)
     joint_x = np.asarray(supports["x"], dtype=float)
@@ -90,11 +108,17 @@ def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[s
     has_defl = not np.all(np.isnan(_finite(envelope["deflection_max"])))
     n_panels = 3 if has_defl else 2
     height = 2.7 * n_panels + 0.6
-    fig = Figure(figsize=(11, height))  # fixed margins: a layout engine costs a redraw
-    fig.subplots_adjust(left=0.085, right=0.985, top=1 - 0.62 / height, bottom=0.5 / height,
-                        hspace=0.14)
-    FigureCanvasAgg(fig)
-    axes = fig.subplots(n_panels, 1, sharex=True)
+    if ax is None:
+        fig = Figure(figsize=(11, height))  # fixed margins: a layout engine costs a redraw
+        fig.subplots_adjust(left=0.085, right=0.985, top=1 - 0.62 / height,
+                            bottom=0.5 / height, hspace=0.14)
+        FigureCanvasAgg(fig)
+        axes = fig.subplots(n_panels, 1, sharex=True)
+    else:
+        fig = ax.figure
+        grid = ax.get_subplotspec().subgridspec(n_panels, 1, hspace=0.14)
+        ax.remove()
+        axes = grid.subplots(sharex=True)
     fig.suptitle(title or "Envelopes", fontsize=11, x=0.01, ha="left")
 
     flip = moment_plot == "tension-side"
@@ -160,6 +184,4 @@ def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[s
                bbox_to_anchor=(0.985, 1.0), fontsize=8, frameon=False, ncol=2)
     fig.text(0.99, 0.005, "For checking by a licensed engineer; defer to local codes.",
              ha="right", va="bottom", fontsize=7, color="#777777")
-    fmt = path.suffix.lstrip(".").lower() or "png"
-    write_atomic(path, lambda fh: fig.savefig(fh, format=fmt, dpi=DPI), durable)
-    return path
+    return fig

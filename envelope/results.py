@@ -31,6 +31,16 @@ class Analysis:
     def beam(self) -> Beam:
         return self.solved.beam
 
+    def __repr__(self) -> str:
+        beam = self.beam
+        sets = ", ".join(f"{name} {len(cs.combinations)}" for name, cs in
+                         (("strength", self.solved.strength), ("service", self.solved.service))
+                         if not cs.is_empty)
+        title = beam.title if len(beam.title) <= 40 else beam.title[:39] + "…"
+        return (f"<Analysis {beam.id!r}{f' {title!r}' if title else ''}: "
+                f"{beam.n_spans} spans, {self.stations.n} stations, "
+                f"combinations {sets or 'none'}{', sized' if beam.design else ''}>")
+
 
 def analyse(beam: Beam) -> Analysis:
     """Solve every unit case once, envelope at the stations and supports, find the

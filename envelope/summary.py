@@ -9,7 +9,9 @@ from envelope.store import CAUTION
 
 
 def _num(v: float, digits: int = 1) -> str:
-    return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:.{digits}f}"
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "-"
+    return f"{round(float(v), digits) + 0.0:.{digits}f}"  # + 0.0: never "-0.0"
 
 
 def span_summary(analysis: Analysis) -> str:
@@ -30,7 +32,7 @@ def span_summary(analysis: Analysis) -> str:
             f"{_num(d['moment_pos_x'][j], 2):>6} {_num(d['moment_neg_left_face'][j]):>9} "
             f"{_num(d['moment_neg_right_face'][j]):>9} {_num(d['shear_left'][j]):>8} "
             f"{_num(d['shear_right'][j]):>8} {_num(d['deflection_max'][j] * defl, 2):>7} "
-            f"{'-' if math.isnan(ratio) else f'{ratio:.0f}':>7}")
+            f"{_num(ratio, 0):>7}")
     lines.append("M+ largest sagging moment (strength); M- hogging at the support faces; "
                  "V largest shear at the span ends; defl largest service deflection.")
     lines.append(CAUTION)

@@ -37,34 +37,48 @@ process pool), :mod:`~envelope.batch.cluster` (dask), :mod:`~envelope.batch.comb
 
 from __future__ import annotations
 
-from envelope.batch.cluster import CONNECT_TIMEOUT, connect, run_cluster
-from envelope.batch.combined import combine, write_failures, write_partition
-from envelope.batch.command import batch
-from envelope.batch.discovery import check_duplicates, discover, identify
-from envelope.batch.local import (
-    CHUNKS_PER_SLOT,
-    MAX_CHUNK,
-    THREAD_VARIABLES,
-    Work,
-    chunk_size,
-    default_workers,
-    run_local,
-)
-from envelope.batch.model import (
-    COMBINED,
-    MANIFEST,
-    BatchError,
-    ClusterError,
-    DuplicateIdError,
-    Entry,
-    Outcome,
-    Summary,
-    Task,
-)
-from envelope.batch.progress import BAR_INTERVAL, PLAIN_INTERVAL, Progress
-from envelope.batch.resume import completed
-from envelope.batch.runner import LOCK, run_batch
-from envelope.batch.worker import run_beam, run_chunk, worker_engine_version
+import importlib
+from typing import Any
+
+# Each name is imported from its module on first use, so that importing one module of
+# the package (the discovery, by ``envelope check``) does not import them all.
+_WHERE: dict[str, str] = {
+    "BAR_INTERVAL": "progress",
+    "BatchError": "model",
+    "CHUNKS_PER_SLOT": "local",
+    "COMBINED": "model",
+    "CONNECT_TIMEOUT": "cluster",
+    "ClusterError": "model",
+    "DuplicateIdError": "model",
+    "Entry": "model",
+    "LOCK": "runner",
+    "MANIFEST": "model",
+    "MAX_CHUNK": "local",
+    "Outcome": "model",
+    "PLAIN_INTERVAL": "progress",
+    "Progress": "progress",
+    "Summary": "model",
+    "THREAD_VARIABLES": "local",
+    "Task": "model",
+    "Work": "local",
+    "batch": "command",
+    "check_duplicates": "discovery",
+    "chunk_size": "local",
+    "combine": "combined",
+    "completed": "resume",
+    "connect": "cluster",
+    "default_workers": "local",
+    "discover": "discovery",
+    "identify": "discovery",
+    "run_batch": "runner",
+    "run_beam": "worker",
+    "run_chunk": "worker",
+    "run_cluster": "cluster",
+    "run_local": "local",
+    "worker_engine_version": "worker",
+    "write_failures": "combined",
+    "write_partition": "combined",
+}
 
 __all__ = [
     "BAR_INTERVAL",
@@ -103,3 +117,16 @@ __all__ = [
     "write_failures",
     "write_partition",
 ]
+
+
+def __getattr__(name: str) -> Any:
+    module = _WHERE.get(name)
+    if module is None:
+        raise AttributeError(f"module 'envelope.batch' has no attribute {name!r}")
+    value = getattr(importlib.import_module(f"envelope.batch.{module}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted({*globals(), *__all__})

@@ -10,6 +10,7 @@ import click
 
 from envelope.batch.model import COMBINED, DuplicateIdError
 from envelope.batch.runner import run_batch
+from envelope.commands.common import level, say
 from envelope.errors import EnvelopeError
 
 
@@ -50,7 +51,8 @@ def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str 
             write_failures(Path(out), failures, {})
             sys.exit(2)
         summary = run_batch(paths, out, workers=workers, scheduler=scheduler, plots=plots,
-                            force=force, progress=sys.stderr, units=units,
+                            force=force, progress=sys.stderr if level() >= 0 else None,
+                            units=units,
                             failures=failures)
         if report:
             from envelope.report.index import report_batch
@@ -71,6 +73,8 @@ def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str 
             raise
         click.echo(f"error: internal error ({type(exc).__name__}): {exc}", err=True)
         sys.exit(1)
+    for path, reason in summary.not_cases:
+        say(f"skipped: {path} ({reason})", err=True)
     failed = len(summary.failed)
     line = (f"batch: {summary.total} case files: {len(summary.written)} written, "
             f"{len(summary.skipped)} skipped (unchanged), {failed} failed")

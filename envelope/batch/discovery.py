@@ -17,9 +17,24 @@ def _visible(path: Path, base: Path) -> bool:
     return not any(part.startswith(".") for part in path.relative_to(base).parts[:-1])
 
 
-def discover(paths: Sequence[str]) -> list[str]:
+def is_case_document(path: Path) -> bool:
+    """False for a TOML file that holds none of a case file's top-level keys (a
+    ``pyproject.toml`` beside the cases); a file that cannot be read or parsed counts
+    as a case, so that its problem is reported rather than skipped."""
+    from envelope.casefile import TOP_KEYS
+
+    try:
+        data = tomllib.loads(path.read_bytes().decode("utf-8-sig"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError, RecursionError):
+        return True
+    return not data or any(key in data for key in TOP_KEYS)
+
+
+def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None) -> list[str]:
     """Case files named by ``paths``: files as given, folders searched recursively for
-    ``*.toml``, glob patterns expanded (``**`` allowed).  Each file once, in order."""
+    ``*.toml``, glob patterns expanded (``**`` allowed).  Each file once, in order.  A
+    TOML file found in a folder that is not a case file is left out and, when
+    ``skipped`` is given, listed there with the reason."""
     found: list[str] = []
     seen: set[str] = set()
 
@@ -29,11 +44,18 @@ def discover(paths: Sequence[str]) -> list[str]:
             seen.add(key)
             found.append(name)
 
+    def add_found(p: Path) -> None:
+        """A file found by a folder search or a pattern, not named by the user."""
+        if is_case_document(p):
+            add(str(p))
+        elif skipped is not None:
+            skipped.append((str(p), "not a case file: none of its keys is a case key"))
+
     def add_folder(folder: str) -> None:
         base = Path(folder)
         for p in sorted(base.rglob("*.toml"), key=lambda p: str(p)):
             if p.is_file() and _visible(p, base):
-                add(str(p))
+                add_found(p)
 
     for name in paths:
         if os.path.isdir(name):
@@ -48,7 +70,7 @@ def discover(paths: Sequence[str]) -> list[str]:
                 if os.path.isdir(match):
                     add_folder(match)
                 elif os.path.isfile(match):
-                    add(match)
+                    add_found(Path(match))
         else:
             raise BatchError(f"{name}: no such file or folder")
     if not found:

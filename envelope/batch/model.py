@@ -72,6 +72,7 @@ class Summary:
     out: Path
     total: int = 0
     skipped: list[str] = field(default_factory=list)     # beam ids, unchanged
+    not_cases: list[tuple[str, str]] = field(default_factory=list)  # (path, reason) left out
     outcomes: list[Outcome] = field(default_factory=list)
     seconds: float = 0.0                                 # wall time of the whole batch
     run_seconds: float = 0.0                             # wall time of the analysis part

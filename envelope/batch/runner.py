@@ -59,10 +59,12 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
                          "workers are used (give one or the other)")
     shown_out = os.fspath(out)
     out_path = Path(os.path.abspath(out))
+    not_cases: list[tuple[str, str]] = []
     entries = [identify(i, p, absolute=scheduler is not None)
-               for i, p in enumerate(discover(paths))]
+               for i, p in enumerate(discover(paths, not_cases))]
     check_duplicates(entries)
-    summary = Summary(out=Path(shown_out), total=len(entries) + len(failures))
+    summary = Summary(out=Path(shown_out), total=len(entries) + len(failures),
+                      not_cases=not_cases)
     summary.outcomes.extend(failures)
     done: dict[str, dict[str, Any]] = {}
     todo: list[Entry] = []

@@ -5,13 +5,14 @@ from __future__ import annotations
 import json
 import os
 import time
+import warnings
 from collections.abc import Sequence
 from pathlib import Path
 
 from envelope import engine_version
 from envelope.batch.combined import write_partition
 from envelope.batch.model import COMBINED, MANIFEST, BatchError, Outcome, Task
-from envelope.errors import EnvelopeError
+from envelope.errors import EnvelopeError, EnvelopeWarning
 from envelope.files import write_atomic
 
 
@@ -55,7 +56,9 @@ def run_beam(task: Task, out: str, plots: bool) -> Outcome:
         if beam.id == COMBINED:
             raise BatchError(f"{target}: id: {COMBINED!r} is reserved for the combined "
                              "results of a batch; give the beam another id")
-        result = api.analyse(beam)
+        with warnings.catch_warnings():  # kept in each file's envelope:warnings metadata
+            warnings.simplefilter("ignore", EnvelopeWarning)
+            result = api.analyse(beam)
         analysed = time.perf_counter()
         folder = Path(out) / beam.id
         # From here on the folder is not complete until the new manifest stands.

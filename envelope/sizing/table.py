@@ -49,13 +49,13 @@ def sizing_table(analysis: Analysis):  # type: ignore[no-untyped-def]  # a pyarr
 def _n(v: float, digits: int = 1) -> str:
     if v is None or (isinstance(v, float) and math.isnan(v)):
         return "-"
-    return f"{v:.{digits}f}"
+    return f"{round(float(v), digits) + 0.0:.{digits}f}"  # + 0.0: never "-0.0"
 
 
 def _g(v: float) -> str:
     if v is None or (isinstance(v, float) and math.isnan(v)):
         return "-"
-    return f"{v:.4g}"
+    return f"{float(v) + 0.0:.4g}"  # + 0.0: never "-0"
 
 
 def sizing_summary(analysis: Analysis) -> str:

@@ -1,0 +1,57 @@
+"""``envelope run``: analyse one case file into OUT/<id>/ and print its summary."""
+
+from __future__ import annotations
+
+import warnings
+from contextlib import ExitStack
+from importlib import resources
+from pathlib import Path
+
+import click
+
+from envelope.commands.common import guard, say
+
+
+@click.command()
+@click.argument("case", required=False, type=click.Path(dir_okay=False))
+@click.option("-o", "--out", default="results", show_default=True,
+              type=click.Path(file_okay=False), help="Output folder; files go to OUT/<id>/.")
+@click.option("--plots/--no-plots", default=True, show_default=True,
+              help="Draw envelope.png beside the Parquet files.")
+@click.option("--all-cases", is_flag=True, default=None,
+              help="Also write stations.parquet: every explicit case at every station.")
+@click.option("--report", is_flag=True, help="Also write report.html and report.pdf.")
+@guard
+def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
+        report: bool) -> None:
+    """Analyse CASE (a TOML case file; the bundled demo when omitted).
+
+    Writes the Parquet files (and envelope.png) to OUT/<id>/, then prints a summary per
+    span; with -q only the folder written."""
+    from envelope import api
+    from envelope.errors import EnvelopeWarning
+
+    with ExitStack() as stack:
+        if case is None:
+            ref = resources.files("envelope") / "data" / "demo.toml"
+            path = str(stack.enter_context(resources.as_file(ref)))
+        else:
+            path = case
+        beam = api.load_case(path)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", EnvelopeWarning)
+            result = api.analyse(beam)
+        for warning in caught:
+            if issubclass(warning.category, EnvelopeWarning):
+                click.echo(f"warning: {path}: {warning.message}", err=True)
+            else:
+                warnings.showwarning(warning.message, warning.category, warning.filename,
+                                     warning.lineno)
+        folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
+    click.echo(f"wrote {Path(folder)}")
+    if report:
+        from envelope.report.build import write_report
+
+        for written in write_report(folder):
+            click.echo(f"wrote {written}")
+    say(api.summary(result))  # each summary ends with its caution line

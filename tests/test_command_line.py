@@ -1,0 +1,194 @@
+"""The command line follows the habits of the ecosystem: -h and --help, --version as
+written into the files, -q/-v on every command, ``python -m envelope``, folders for
+``check``, usage errors (exit 2) for a bad figure name, stale files removed, non-case
+TOML files skipped, a quiet exit into a closed pipe, no "-0.0" in tables, and lazy
+subcommands (no matplotlib with --no-plots)."""
+
+from __future__ import annotations
+
+import importlib
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import click
+import pyarrow.parquet as pq
+import pytest
+from click.testing import CliRunner
+
+from envelope.cli import COMMANDS, main
+
+ROOT = Path(__file__).resolve().parents[1]
+CASES = sorted((ROOT / "cases").glob("*.toml"))
+ENV = {**os.environ, "PYTHONPATH": str(ROOT), "MPLBACKEND": "Agg"}
+
+
+def _python(*args: str, **kw: object) -> subprocess.CompletedProcess[str]:
+    return subprocess.run([sys.executable, *args], capture_output=True, text=True,
+                          check=False, env=ENV, cwd=kw.get("cwd", ROOT))  # type: ignore[arg-type]
+
+
+def test_every_registered_command_imports_and_lists_its_registered_help() -> None:
+    result = CliRunner().invoke(main, ["-h"])
+    assert result.exit_code == 0
+    for name, (target, short) in COMMANDS.items():
+        module, _, attribute = target.partition(":")
+        assert isinstance(getattr(importlib.import_module(module), attribute), click.Command)
+        assert name in result.output and short[:40] in " ".join(result.output.split())
+
+
+@pytest.mark.parametrize("name", sorted(COMMANDS))
+def test_every_command_takes_h_q_and_v(name: str) -> None:
+    result = CliRunner().invoke(main, [name, "-h"])
+    assert result.exit_code == 0, result.output
+    for option in ("-h, --help", "-q, --quiet", "-v, --verbose"):
+        assert option in result.output, (name, option)
+
+
+def test_version_is_the_version_written_into_the_files(tmp_path: Path) -> None:
+    shown = CliRunner().invoke(main, ["--version"])
+    assert shown.exit_code == 0
+    assert CliRunner().invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path), "--no-plots",
+                                     "-q"]).exit_code == 0
+    (folder,) = tmp_path.iterdir()
+    version = pq.read_schema(folder / "envelope.parquet").metadata[b"envelope:version"]
+    assert shown.output.strip() == f"envelope {version.decode()}"
+
+
+def test_python_dash_m_envelope_runs_the_command_line() -> None:
+    proc = _python("-m", "envelope", "check", str(CASES[0]))
+    assert proc.returncode == 0, proc.stderr
+    assert proc.stdout.startswith("ok: ")
+
+
+def test_quiet_run_prints_only_the_folder_and_verbose_check_counts(tmp_path: Path) -> None:
+    result = CliRunner().invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path),
+                                       "--no-plots", "-q"])
+    assert result.exit_code == 0
+    assert result.stdout.strip().splitlines() == [f"wrote {next(tmp_path.iterdir())}"]
+    result = CliRunner().invoke(main, ["check", "-v", *map(str, CASES)])
+    assert f"check: {len(CASES)} case files, 0 bad" in result.stdout
+    result = CliRunner().invoke(main, ["check", "-q", *map(str, CASES)])
+    assert result.exit_code == 0 and result.stdout == ""
+
+
+def test_check_takes_folders_and_skips_a_toml_file_that_is_not_a_case(tmp_path: Path) -> None:
+    folder = tmp_path / "cases"
+    folder.mkdir()
+    for case in (ROOT / "cases").iterdir():  # with the sections table a case names
+        (folder / case.name).write_bytes(case.read_bytes())
+    (folder / "pyproject.toml").write_text('[project]\nname = "x"\n')
+    result = CliRunner().invoke(main, ["check", str(folder)])
+    assert result.exit_code == 0, result.output
+    assert result.stdout.count("ok: ") == len(CASES)
+    assert "skipped: " in result.stderr and "pyproject.toml" in result.stderr
+
+
+def test_check_names_a_non_case_file_given_by_name_as_bad(tmp_path: Path) -> None:
+    path = tmp_path / "pyproject.toml"
+    path.write_text('[project]\nname = "x"\n')
+    result = CliRunner().invoke(main, ["check", str(path)])
+    assert result.exit_code == 2
+    assert str(path) in result.stderr
+
+
+def test_batch_of_a_folder_skips_pyproject_with_a_note(tmp_path: Path) -> None:
+    folder = tmp_path / "cases"
+    folder.mkdir()
+    (folder / CASES[0].name).write_bytes(CASES[0].read_bytes())
+    (folder / "pyproject.toml").write_text('[tool.x]\ny = 1\n')
+    result = CliRunner().invoke(main, ["batch", str(folder), "-o", str(tmp_path / "out"),
+                                       "--workers", "1"])
+    assert result.exit_code == 0, result.output
+    assert "1 case files: 1 written" in result.stdout
+    assert "skipped: " in result.stderr and "pyproject.toml" in result.stderr
+
+
+@pytest.mark.parametrize("name", ["fig.bmp", "fig", "fig.PNGX"])
+def test_plot_to_an_unknown_format_is_a_usage_error(name: str, tmp_path: Path) -> None:
+    assert CliRunner().invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path),
+                                     "--no-plots", "-q"]).exit_code == 0
+    (folder,) = tmp_path.iterdir()
+    result = CliRunner().invoke(main, ["plot", str(folder), "-o", str(tmp_path / name)])
+    assert result.exit_code == 2
+    assert "unknown figure format" in result.stderr
+    assert not (tmp_path / name).exists()
+
+
+def test_plot_does_not_create_a_missing_folder(tmp_path: Path) -> None:
+    assert CliRunner().invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path),
+                                     "--no-plots", "-q"]).exit_code == 0
+    (folder,) = tmp_path.iterdir()
+    target = tmp_path / "missing" / "fig.svg"
+    result = CliRunner().invoke(main, ["plot", str(folder), "-o", str(target)])
+    assert result.exit_code == 2
+    assert "does not exist" in result.stderr
+    assert not target.parent.exists()
+
+
+def test_a_rerun_removes_result_files_it_no_longer_writes(tmp_path: Path) -> None:
+    runner = CliRunner()
+    assert runner.invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path), "--all-cases",
+                                "-q"]).exit_code == 0
+    (folder,) = tmp_path.iterdir()
+    assert (folder / "stations.parquet").exists() and (folder / "envelope.png").exists()
+    (folder / "notes.txt").write_text("mine")
+    assert runner.invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path), "--no-plots",
+                                "-q"]).exit_code == 0
+    assert not (folder / "stations.parquet").exists()
+    assert not (folder / "envelope.png").exists()
+    assert (folder / "notes.txt").read_text() == "mine"  # not a result file: kept
+
+
+def test_output_into_a_closed_pipe_exits_without_a_traceback(tmp_path: Path) -> None:
+    proc = subprocess.Popen([sys.executable, "-m", "envelope", "run", str(CASES[0]),
+                             "-o", str(tmp_path), "--no-plots"], stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, env=ENV, cwd=ROOT)
+    assert proc.stdout is not None and proc.stderr is not None
+    proc.stdout.readline()
+    proc.stdout.close()  # as `| head -1` does
+    err = proc.stderr.read().decode()
+    proc.wait(timeout=120)
+    assert "Traceback" not in err and "BrokenPipeError" not in err, err
+    assert "internal error" not in err
+
+
+@pytest.mark.parametrize("case", CASES, ids=[c.stem for c in CASES])
+def test_no_negative_zero_in_the_console_tables(case: Path, tmp_path: Path) -> None:
+    result = CliRunner().invoke(main, ["run", str(case), "-o", str(tmp_path), "--no-plots"])
+    assert result.exit_code == 0
+    assert all(word not in ("-0", "-0.0", "-0.00", "-0.000") for word in result.stdout.split())
+
+
+def test_numbers_that_round_to_zero_print_without_a_sign() -> None:
+    from envelope.sizing.table import _g, _n
+    from envelope.summary import _num
+
+    assert _num(-0.04) == "0.0" and _num(-0.004, 2) == "0.00" and _num(-0.0, 0) == "0"
+    assert _n(-0.049) == "0.0" and _g(-0.0) == "0"
+    assert _num(-0.05 - 1e-12) == "-0.1"
+
+
+def test_run_without_plots_imports_neither_matplotlib_nor_the_batch_machinery(
+        tmp_path: Path) -> None:
+    code = ("import sys\nfrom envelope.cli import main\n"
+            "try:\n"
+            f"    main(['run', {str(CASES[0])!r}, '-o', {str(tmp_path)!r}, '--no-plots', '-q'])\n"
+            "except SystemExit as e:\n    assert not e.code, e.code\n"
+            "bad = [m for m in sys.modules if m.startswith(('matplotlib', 'envelope.batch',"
+            " 'envelope.commands.plot', 'envelope.commands.check'))]\n"
+            "print(bad)\n")
+    proc = _python("-c", code)
+    assert proc.returncode == 0, proc.stderr
+    assert proc.stdout.strip().splitlines()[-1] == "[]"
+
+
+def test_help_imports_no_subcommand() -> None:
+    code = ("import sys\nfrom envelope.cli import main\n"
+            "try:\n    main(['-h'])\nexcept SystemExit:\n    pass\n"
+            "print([m for m in sys.modules if m.startswith(('envelope.commands.run',"
+            " 'envelope.batch', 'matplotlib', 'pyarrow', 'numpy'))])\n")
+    proc = _python("-c", code)
+    assert proc.returncode == 0, proc.stderr
+    assert proc.stdout.strip().splitlines()[-1] == "[]"
