@@ -179,3 +179,112 @@ def test_shapes_derive_rts_ho_aw_and_mark_old_tables() -> None:
     old = shapes.from_columns(["x"], {"Zx": np.array([1.0]), "Ix": np.array([2.0]),
                                       "Aw": np.array([3.0]), "weight": np.array([4.0])})
     assert not old.full and np.isnan(old.rts[0])
+
+
+# ------------------------------------------------- segments and their exact moments
+
+def _beam(spans: tuple[float, ...], supports: tuple[str, ...], loads: str,
+          extra_cases: str = "", strength: str = "{ D = 1.4 }",
+          patterning: str = "none"):  # type: ignore[no-untyped-def]
+    from envelope.analysis import solve_beam
+    from envelope.recovery import stations
+    from tests.beams import parse_text
+
+    text = ['units = "SI"\n[section]\nE = 200000\nI = 4.0e8\n']
+    text += [f"[[spans]]\nlength = {L}\n" for L in spans]
+    text += [f'[[supports]]\ntype = "{s}"\n' for s in supports]
+    text.append(f'[cases]\nD = {{ kind = "dead" }}\n{extra_cases}\n')
+    text.append(loads)
+    text.append(f'[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+                f'[[combinations.custom]]\nname = "s"\nset = "strength"\n'
+                f'factors = {strength}\n[patterning]\nmethod = "{patterning}"\n')
+    beam = parse_text("\n".join(text))
+    solved = solve_beam(beam)
+    return solved, stations(beam, solved.mesh, solved.units)
+
+
+UDL = '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 10.0\n'
+
+
+def test_segments_from_bracing_keys() -> None:
+    from envelope.sizing.bracing import segments
+
+    joints = np.array([0.0, 8.0, 14.0])
+    restrained = np.array([True, True, True])
+    s = segments(joints, restrained, "continuous", "supports")
+    assert list(s.flange) == ["bottom", "bottom"]
+    assert list(s.x0) == [0.0, 8.0] and list(s.x1) == [8.0, 14.0]
+    s = segments(joints, restrained, ((2.0, 6.0), ()), "continuous")
+    assert list(zip(s.x0, s.x1, strict=True)) == [(0, 2), (2, 6), (6, 8), (8, 14)]
+    # a free end: the last piece is a cantilever segment
+    s = segments(joints, np.array([True, True, False]), "supports", "continuous")
+    assert list(s.cantilever) == [False, True]
+    # a free interior joint: one segment runs across it
+    s = segments(joints, np.array([True, False, True]), "supports", "continuous")
+    assert list(zip(s.x0, s.x1, strict=True)) == [(0.0, 14.0)]
+
+
+def test_cb_from_exact_moments_simple_span_braced_at_ends_is_1_14() -> None:
+    from envelope.sizing.bracing import segments
+    from envelope.sizing.unbraced import segment_demands
+
+    solved, st = _beam((9.0,), ("pinned", "pinned"), UDL)
+    segs = segments(np.array([0.0, 9.0]), np.array([True, True]), "supports", "continuous")
+    dem = segment_demands(solved, st, segs)
+    # Mu = 1.4 * 10 * 81 / 8 = 141.75 kN*m (wL^2/8, common practice); Cb = 12.5/11 (F1-1)
+    assert dem.mu[0, 0] == pytest.approx(141.75, rel=1e-9)
+    assert dem.cb[0, 0] == pytest.approx(12.5 / 11.0, rel=1e-9)
+    assert dem.quarter[0, 0] == pytest.approx([0.75 * 141.75, 141.75, 0.75 * 141.75])
+
+
+def test_cb_third_point_bracing_1_46_1_01_1_46() -> None:
+    # uniform load, braced at the third points: Cb = 1.46, 1.01, 1.46 (AISC 360-22
+    # commentary to F1, from memory; by F1-1: 11.111/7.6111 and 12.5/12.333)
+    from envelope.sizing.bracing import segments
+    from envelope.sizing.unbraced import segment_demands
+
+    solved, st = _beam((9.0,), ("pinned", "pinned"), UDL)
+    segs = segments(np.array([0.0, 9.0]), np.array([True, True]), ((3.0, 6.0),),
+                    "continuous")
+    dem = segment_demands(solved, st, segs)
+    assert dem.cb[:, 0] == pytest.approx([1.4599, 1.0135, 1.4599], abs=1e-4)
+    # end segments: the demand is at the brace point, M(L/3) = 8/9 Mmax
+    assert dem.mu[:, 0] == pytest.approx([141.75 * 8 / 9, 141.75, 141.75 * 8 / 9])
+
+
+def test_uniform_moment_segment_has_cb_1() -> None:
+    # equal and opposite end moments on a simple span: uniform moment, Cb = 1.0 (F1-1)
+    from envelope.sizing.bracing import segments
+    from envelope.sizing.unbraced import segment_demands
+
+    loads = ('[[loads]]\ncase = "D"\ntype = "moment"\nspans = 1\nM = 50.0\nat = 0.0\n'
+             '[[loads]]\ncase = "D"\ntype = "moment"\nspans = 1\nM = -50.0\nat = 6.0\n')
+    solved, st = _beam((6.0,), ("pinned", "pinned"), loads, strength="{ D = 1.0 }")
+    segs = segments(np.array([0.0, 6.0]), np.array([True, True]), "supports", "supports")
+    dem = segment_demands(solved, st, segs)
+    top, bottom = dem.mu[0, 0], dem.mu[1, 0]
+    assert max(top, bottom) == pytest.approx(50.0, rel=1e-9)
+    assert min(top, bottom) == 0.0
+    assert dem.cb[:, 0] == pytest.approx([1.0, 1.0])
+
+
+def test_superposed_patterning_gives_the_same_demand_as_the_explicit_cases() -> None:
+    # two spans, dead + patterned live; bottom flange braced at supports only: the
+    # hogging demand at the interior support for "exhaustive" (governing cases found at
+    # each point) equals the worst explicit "code" case (adjacent spans loaded)
+    from envelope.sizing.bracing import segments
+    from envelope.sizing.unbraced import segment_demands
+
+    loads = UDL + '[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = 15.0\n'
+    got = {}
+    for method in ("code", "exhaustive"):
+        solved, st = _beam((8.0, 8.0), ("pinned", "pinned", "pinned"), loads,
+                           extra_cases='L = { kind = "live" }',
+                           strength="{ D = 1.2, L = 1.6 }", patterning=method)
+        segs = segments(np.array([0.0, 8.0, 16.0]), np.ones(3, bool), "continuous",
+                        "supports")
+        dem = segment_demands(solved, st, segs)
+        got[method] = dem.mu.max(axis=1)
+    # w = 1.2*10 + 1.6*15 = 36 kN/m on both spans: M = -wL^2/8 = -288 kN*m
+    assert got["code"] == pytest.approx([288.0, 288.0], rel=1e-9)
+    assert got["exhaustive"] == pytest.approx(got["code"], rel=1e-9)
