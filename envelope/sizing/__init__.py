@@ -28,7 +28,7 @@ from envelope.sizing.extents import EXTENT_KEYS, extents
 from envelope.sizing.layout import Sized
 from envelope.sizing.steel import size_steel
 
-__all__ = ["extents", "size", "size_with_units"]
+__all__ = ["extents", "size", "size_with_candidates", "size_with_units"]
 
 #: Units of the columns that do not depend on the material (by quantity label key).
 COLUMN_UNITS = {"x_span": "length", "x": "length", "moment_design": "moment",
@@ -69,6 +69,14 @@ def size(analysis: Analysis) -> dict[str, np.ndarray]:
 
 def size_with_units(analysis: Analysis) -> tuple[dict[str, np.ndarray], dict[str, str]]:
     """:func:`size`, and the unit of each column that has one (column -> unit text)."""
+    out, units, _ = size_with_candidates(analysis)
+    return out, units
+
+
+def size_with_candidates(analysis: Analysis
+                         ) -> tuple[dict[str, np.ndarray], dict[str, str], tuple[str, ...]]:
+    """:func:`size_with_units`, and for steel with a sections table one line per section
+    (lightest first, up to the one chosen) saying what rejects it."""
     beam = analysis.beam
     design = beam.design
     if design is None:
@@ -122,4 +130,4 @@ def size_with_units(analysis: Analysis) -> tuple[dict[str, np.ndarray], dict[str
     labels = beam.units.labels
     units = {k: labels[q] for k, q in COLUMN_UNITS.items()}
     units.update(sized.units)
-    return out, {k: units[k] for k in out if k in units}
+    return out, {k: units[k] for k in out if k in units}, sized.candidates

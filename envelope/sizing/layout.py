@@ -66,6 +66,7 @@ class Sized:
     units: dict[str, str]
     notes: list[list[str]]
     failures: list[list[str]]
+    candidates: tuple[str, ...] = ()  # steel: what rejects each section of the table
 
 
 @dataclass(frozen=True, slots=True)

@@ -1,8 +1,11 @@
 """The user's own table of steel sections (CSV), read and checked once.
 
-Header ``name,Zx,Ix,Aw,weight`` (any order, each once); one section per row in the case's
-section units: Zx mm^3 / in^3, Ix mm^4 / in^4, Aw mm^2 / in^2, weight in any consistent
-unit (only the order matters).  Blank lines and lines starting with ``#`` are skipped.
+Header ``name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight`` (optional ``rts``, ``ho``, ``k``)
+for every check, or the strength-only ``name,Zx,Ix,Aw,weight`` (see
+:mod:`envelope.sizing.shapes`); columns in any order, each once; one section per row in
+the case's section units (mm, mm^2, mm^3, mm^4, mm^6 / in, ..., in^6), weight in any
+consistent unit (kg/m, lb/ft: only the order matters).  Blank lines and lines starting
+with ``#`` are skipped.
 The path in ``[design] sections`` is relative to the case file.  Bad content raises
 :class:`envelope.errors.CaseError` naming the CSV file, the line and column, and the
 problem.
@@ -12,7 +15,6 @@ from __future__ import annotations
 
 import csv
 import math
-from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -20,20 +22,16 @@ import numpy as np
 from envelope.design import SteelDesign
 from envelope.errors import CaseError
 from envelope.model import Beam
+from envelope.sizing.shapes import (
+    FULL,
+    OPTIONAL,
+    STRENGTH_ONLY,
+    Shapes,
+    check_geometry,
+    from_columns,
+)
 
-COLUMNS = ("name", "Zx", "Ix", "Aw", "weight")
-
-
-@dataclass(frozen=True, slots=True)
-class SectionTable:
-    """Steel sections as arrays, in table order; ``source`` is the CSV path as resolved."""
-
-    name: tuple[str, ...]
-    Zx: np.ndarray
-    Ix: np.ndarray
-    Aw: np.ndarray
-    weight: np.ndarray
-    source: str
+HEADERS = "name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight (or name,Zx,Ix,Aw,weight)"
 
 
 def resolve(beam: Beam, path: str) -> Path:
@@ -41,7 +39,7 @@ def resolve(beam: Beam, path: str) -> Path:
     return Path(beam.source).parent / path
 
 
-def read_sections(beam: Beam) -> SectionTable:
+def read_sections(beam: Beam) -> Shapes:
     """Read the CSV named by ``beam.design.sections``."""
     assert isinstance(beam.design, SteelDesign) and beam.design.sections is not None
     path = resolve(beam, beam.design.sections)
@@ -57,31 +55,35 @@ def read_sections(beam: Beam) -> SectionTable:
     return parse_sections(text, str(path))
 
 
-def parse_sections(text: str, source: str) -> SectionTable:
+def parse_sections(text: str, source: str) -> Shapes:
     """Parse CSV text (``source`` names it in messages)."""
     rows = [(i, r) for i, r in enumerate(csv.reader(text.splitlines()), start=1)
             if any(cell.strip() for cell in r) and not r[0].lstrip().startswith("#")]
     if not rows:
-        raise CaseError(source, "", "the sections table is empty; give a header row "
-                                    "name,Zx,Ix,Aw,weight and one row per section")
+        raise CaseError(source, "", f"the sections table is empty; give a header row "
+                                    f"{HEADERS} and one row per section")
     line, header = rows[0]
     header = [h.strip() for h in header]
+    known = (*FULL, *OPTIONAL, "Aw")
     for h in header:
-        if h not in COLUMNS:
+        if h not in known:
             raise CaseError(source, f"line {line}",
-                            f"unknown column {h!r}; the header is name,Zx,Ix,Aw,weight")
+                            f"unknown column {h!r}; the header is {HEADERS}")
         if header.count(h) > 1:
             raise CaseError(source, f"line {line}", f"column {h!r} appears twice")
-    missing = [c for c in COLUMNS if c not in header]
+    full_only = set(FULL) - set(STRENGTH_ONLY)
+    wanted = FULL if full_only & set(header) or "Aw" not in header else STRENGTH_ONLY
+    missing = [c for c in wanted if c not in header]
     if missing:
         raise CaseError(source, f"line {line}",
                         f"missing column{'s' if len(missing) > 1 else ''} "
-                        f"{', '.join(missing)}; the header is name,Zx,Ix,Aw,weight")
+                        f"{', '.join(missing)}; the header is {HEADERS}")
     if len(rows) == 1:
         raise CaseError(source, "", "the sections table has a header but no sections")
     col = {h: k for k, h in enumerate(header)}
+    numeric = [c for c in header if c != "name"]
     names: list[str] = []
-    values: dict[str, list[float]] = {c: [] for c in COLUMNS[1:]}
+    values: dict[str, list[float]] = {c: [] for c in numeric}
     for line, row in rows[1:]:
         if len(row) != len(header):
             raise CaseError(source, f"line {line}",
@@ -92,7 +94,7 @@ def parse_sections(text: str, source: str) -> SectionTable:
         if name in names:
             raise CaseError(source, f"line {line}.name", f"section {name!r} appears twice")
         names.append(name)
-        for c in COLUMNS[1:]:
+        for c in numeric:
             raw = row[col[c]].strip()
             try:
                 value = float(raw)
@@ -103,5 +105,7 @@ def parse_sections(text: str, source: str) -> SectionTable:
                 raise CaseError(source, f"line {line}.{c}",
                                 f"must be a finite number greater than zero, got {raw!r}")
             values[c].append(value)
-    return SectionTable(tuple(names), *(np.array(values[c]) for c in COLUMNS[1:]),
-                        source=source)
+    shapes = from_columns(names, {c: np.array(v) for c, v in values.items()})
+    for i, c, problem in check_geometry(shapes):
+        raise CaseError(source, f"line {rows[i + 1][0]}.{c}", problem)
+    return shapes

@@ -31,6 +31,8 @@ STRENGTH_ONLY = ("name", "Zx", "Ix", "Aw", "weight")
 #: What a strength-only table cannot check (the status says so).
 NOT_CHECKED = ("lateral-torsional buckling (F2), flange local buckling (F3), web local "
                "yielding and crippling (J10.2, J10.3), floor vibration (DG11)")
+#: Why a strength-only section cannot be checked further.
+MISSING = "no d, bf, tf, tw, Sx, Iy, ry, J, Cw given"
 
 
 @dataclass(frozen=True, slots=True)

@@ -1,23 +1,49 @@
-"""Sizing columns of a steel beam (AISC 360-22): required properties, the section used
-(given, or the lightest passing one of the user's table) and its utilisations.
+"""Sizing columns of a steel beam (AISC 360-22, LRFD): the section used (given, or the
+lightest of the user's table that passes every check) and what governs each row.
 
 One section serves the whole beam (a continuous member): it must pass at every row.
+Checks (:mod:`envelope.sizing.steel_checks`): flexure with lateral-torsional buckling of
+each flange's unbraced segments (F2, Cb by F1-1 from the exact moments of the governing
+cases) and flange local buckling (F3); shear (G2.1); web local yielding and crippling at
+the supports and under point loads (J10.2, J10.3); deflection limits; DG11 walking
+vibration (with ``vibration`` given); a camber suggestion.
+
 Moments are taken at the support centrelines (no face reduction for steel) and shears at
-the span ends.  Required Ix rescales the analysed deflections (made with the
-``[section]`` I of each span) to the deflection limits: exact for a prismatic beam on
-rigid supports, an estimate where spans differ in stiffness or supports are springs.
-The analysis (self weight included) is not repeated with the chosen section.
+the span ends.  Deflections rescale the analysed ones (made with the ``[section]`` I of
+each span) to each section's Ix: exact for a prismatic beam on rigid supports, an
+estimate where spans differ in stiffness or supports are springs.  The analysis (self
+weight included) is not repeated with the chosen section.
+
+A strength-only table (``name,Zx,Ix,Aw,weight``) checks the plastic moment, shear on Aw
+and deflection, and says in every status what it cannot check.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from envelope.design import SteelDesign
 from envelope.results import Analysis
+from envelope.sizing import ltb
 from envelope.sizing import steel_aisc as aisc
-from envelope.sizing.layout import AISC_SCALES, SECTION_UNITS, Sized, design_rows
+from envelope.sizing.bracing import BracingSpec
+from envelope.sizing.layout import AISC_SCALES, SECTION_UNITS, Rows, Sized, design_rows
 from envelope.sizing.sections import read_sections
+from envelope.sizing.shapes import MISSING, NOT_CHECKED, Shapes, from_columns
+from envelope.sizing.steel_checks import (
+    MIN_FREQUENCY,
+    Checks,
+    SteelInput,
+    Vibration,
+    check_all,
+    worst,
+)
+from envelope.sizing.vibration import CAMBER_FRACTION, OFFICE_TOLERANCE
+
+#: The checks a section must pass, in the order rejections name them.
+CHECK_NAMES = {"moment": "moment", "shear": "shear", "bearing": "web bearing (J10)",
+               "deflection": "deflection", "vibration": "vibration"}
+#: DG11 damping ratio when none is given: offices with ceiling and ductwork, from memory.
+DEFAULT_DAMPING = 0.03
 
 
 def _pct(ratio: float) -> str:
@@ -26,6 +52,79 @@ def _pct(ratio: float) -> str:
 
 def _g(v: float) -> str:
     return f"{v:.4g}"
+
+
+def steel_input(analysis: Analysis) -> SteelInput:
+    """The steel design values of the case (section units for Fy and the bearing length;
+    consistent units for positions and the vibration keys)."""
+    beam = analysis.beam
+    design = beam.design
+    assert design is not None
+    bracing = design.get("bracing") or {}
+    top: BracingSpec = bracing.get("top", "supports")
+    bottom: BracingSpec = bracing.get("bottom", "supports")
+    vib = design.get("vibration")
+    vibration = None
+    if vib is not None:
+        spacing = float(vib["spacing"])
+        vibration = Vibration(
+            damping=float(vib.get("damping", DEFAULT_DAMPING)), live=float(vib["live"]),
+            spacing=spacing, effective_width=float(vib.get("effective_width", spacing)),
+            tolerance=float(vib.get("tolerance", OFFICE_TOLERANCE)))
+    bearing = design.get("bearing_length")
+    return SteelInput(
+        Fy=float(design["Fy"]), E=ltb.E_STEEL[beam.units.name], top=top, bottom=bottom,
+        bracing_given="bracing" in design,
+        bearing_length=None if bearing is None else float(bearing),
+        camber_fraction=float(design.get("camber_fraction", CAMBER_FRACTION)),
+        vibration=vibration)
+
+
+def given_shape(design: dict) -> Shapes:
+    """The one section of ``[design] section``: full properties or the strength-only
+    Zx, Ix, Aw."""
+    given = design["section"]
+    cols = {k: np.array([float(v)]) for k, v in given.items() if k != "name"}
+    if "weight" not in cols:
+        cols["weight"] = np.array([1.0])
+    return from_columns([str(given["name"])], cols)
+
+
+def _bracing_text(spec: BracingSpec, flange: str) -> str:
+    if spec == "continuous":
+        return f"{flange} flange braced continuously"
+    if spec == "supports":
+        return f"{flange} flange braced at the supports only"
+    return f"{flange} flange braced at the supports and at listed points"
+
+
+def _selection(shapes: Shapes, checks: Checks, compact_web: np.ndarray
+               ) -> tuple[int, bool, np.ndarray, np.ndarray]:
+    """Index of the chosen section, whether it passes, and per section its worst
+    utilisation and the check that governs it (index into CHECK_NAMES; -1: web)."""
+    w = worst(checks)
+    names = list(CHECK_NAMES)
+    stack = np.array([w[k] for k in names])
+    gov = np.argmax(stack, axis=0)
+    worst_u = stack.max(axis=0)
+    gov = np.where(compact_web, gov, -1)
+    ok = (worst_u <= 1.0) & compact_web
+    if ok.any():
+        rows = np.flatnonzero(ok)
+        return int(rows[np.argmin(shapes.weight[rows])]), True, worst_u, gov
+    score = np.where(compact_web, worst_u, np.inf)
+    if not np.isfinite(score).any():
+        score = worst_u
+    return int(np.argmin(score)), False, worst_u, gov
+
+
+def _where(checks: Checks, name: str, k: int, rows_span: np.ndarray,
+           rows_section: np.ndarray) -> str:
+    a = getattr(checks, name)[:, k]
+    if np.isnan(a).all():
+        return ""
+    r = int(np.nanargmax(a))
+    return f"span {rows_span[r] + 1} {rows_section[r]}"
 
 
 def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
@@ -37,12 +136,13 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     """
     beam = analysis.beam
     design = beam.design
-    assert isinstance(design, SteelDesign)
+    assert design is not None and design["material"] == "steel"
     system = beam.units.name
     s = AISC_SCALES[system]
     su = SECTION_UNITS[system]
     u = beam.units.labels
-    fy = float(design.Fy) * s.stress
+    inp = steel_input(analysis)
+    fy = inp.Fy * s.stress
     rows = design_rows(analysis, at_faces=False, shear_shift=None)
     n = rows.n
     ends, mid = rows.is_end, rows.is_span
@@ -54,65 +154,203 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     ratio = np.repeat(defl["utilisation"], 3)
     ix_req = np.where(mid, aisc.ix_required(np.repeat(i_model, 3), ratio), np.nan)
 
-    need = (float(np.nanmax(zx_req)), float(np.nanmax(np.r_[aw_req, 0.0])),
-            float(np.nanmax(np.r_[ix_req, 0.0])))
+    if "section" in design:
+        shapes = given_shape(design)
+        source = "given section"
+        csv_name = ""
+    else:
+        shapes = read_sections(beam)
+        csv_name = str(design["sections"])
+        source = f"lightest passing section of {csv_name}"
+    checks = check_all(analysis, rows, shapes, inp, defl, i_model, s.moment, s.force)
+    compact_web = (ltb.web_is_compact(shapes.h, shapes.tw, inp.E, inp.Fy) if shapes.full
+                   else np.ones(shapes.n, dtype=bool))
+    k, passes, worst_u, gov = _selection(shapes, checks, compact_web)
     notes: list[list[str]] = [[] for _ in range(n)]
     failures: list[list[str]] = [[] for _ in range(n)]
-    wanted = (f"Zx >= {_g(need[0])} {su['modulus']}, Aw >= {_g(need[1])} {su['area']}, "
-              f"Ix >= {_g(need[2])} {su['inertia']}")
-    if design.section is not None:
-        given = design.section
-        name = given.name
-        Zx, Aw, Ix = float(given.Zx), float(given.Aw), float(given.Ix)
-        source = "given section"
-    else:
-        table = read_sections(beam)
-        csv_name = str(design.sections)
-        k = aisc.lightest_passing(table.Zx, table.Aw, table.Ix, table.weight, *need)
-        source = f"lightest passing section of {csv_name}"
-        if k is None:
-            k = aisc.least_utilised(table.Zx, table.Aw, table.Ix, *need)
-            for i in range(n):
-                failures[i].append(f"no section in {csv_name} passes (needs {wanted}); "
-                                   f"the closest, {table.name[k]}, is checked here")
-            source = f"closest section of {csv_name} (none passes)"
-        name = table.name[k]
-        Zx, Aw, Ix = float(table.Zx[k]), float(table.Aw[k]), float(table.Ix[k])
-
-    u_m = aisc.utilisation(zx_req, Zx)
-    u_v = aisc.utilisation(aw_req, Aw)
-    u_d = np.where(mid, aisc.utilisation(ix_req, Ix), np.nan)
-    phi_mn = aisc.PHI_B * fy * Zx / s.moment
-    phi_vn = aisc.PHI_V * 0.6 * fy * Aw * aisc.CV1 / s.force
+    if csv_name and not passes:
+        for i in range(n):
+            failures[i].append(f"no section in {csv_name} passes every check; the closest, "
+                               f"{shapes.name[k]}, is checked here")
+        source = f"closest section of {csv_name} (none passes)"
+    candidates = _candidate_lines(shapes, checks, worst_u, gov, k, passes, rows)
+    name = shapes.name[k]
+    _row_messages(rows, shapes, checks, inp, k, notes, failures, source,
+                  bool(compact_web[k]), u, su)
+    Zx, Aw, Ix = float(shapes.Zx[k]), float(shapes.Aw[k]), float(shapes.Ix[k])
+    u_d = np.where(mid, checks.deflection[:, k], np.nan)
     u_live = np.repeat(defl["utilisation_live"], 3) * np.repeat(i_model, 3) / Ix
     u_total = np.repeat(defl["utilisation_total"], 3) * np.repeat(i_model, 3) / Ix
-    for i in range(n):
-        notes[i].append(source)
-        if u_m[i] > 1.0:
-            failures[i].append(
-                f"moment: Mu = {abs(rows.moment[i]):.1f} {u['moment']} exceeds phi_b Mp = "
-                f"0.90 Fy Zx = {phi_mn:.1f} {u['moment']} (AISC 360-22 F2.1) by "
-                f"{_pct(u_m[i])}; needs Zx >= {_g(zx_req[i])} {su['modulus']}")
-        if ends[i] and u_v[i] > 1.0:
-            failures[i].append(
-                f"shear: Vu = {rows.shear[i]:.1f} {u['force']} exceeds phi_v Vn = 0.90 * 0.6 "
-                f"Fy Aw = {phi_vn:.1f} {u['force']} (AISC 360-22 G2.1) by {_pct(u_v[i])}; "
-                f"needs Aw >= {_g(aw_req[i])} {su['area']}")
-        if mid[i] and u_d[i] > 1.0:
+    for i in np.flatnonzero(mid):
+        if u_d[i] > 1.0:
             which = "live-load" if u_live[i] >= u_total[i] else "total-load"
             failures[i].append(
                 f"deflection: with Ix = {_g(Ix)} {su['inertia']} the {which} deflection is "
                 f"{_pct(u_d[i])} over its limit; needs Ix >= {_g(ix_req[i])} "
                 f"{su['inertia']}")
+    phi_mp = aisc.PHI_B * fy * Zx / s.moment
+    seg_text = np.full(n, "", dtype=object)
+    lu = u["length"]
+    for i in range(n):
+        g = int(checks.segment[i, k])
+        if g >= 0:
+            seg_text[i] = (f"{checks.segs.flange[g]} flange {checks.segs.x0[g]:.2f}-"
+                           f"{checks.segs.x1[g]:.2f} {lu}")
+    full = shapes.full
     cols = {
         "zx_required": zx_req, "aw_required": aw_req, "ix_required": ix_req,
         "steel_section": np.full(n, name, dtype=object),
         "Zx": np.full(n, Zx), "Aw": np.full(n, Aw), "Ix": np.full(n, Ix),
-        "phiMn": np.full(n, phi_mn), "phiVn": np.where(ends, phi_vn, np.nan),
-        "utilisation_moment": u_m, "utilisation_shear": u_v,
+        "phiMn": np.full(n, phi_mp), "phiVn": checks.phi_vn[:, k],
+        "lb": np.where(full, checks.lb[:, k], np.nan), "cb": checks.cb[:, k],
+        "phi_mn": checks.phi_mn[:, k], "segment": seg_text,
+        "moment_segment": checks.moment_segment[:, k],
+        "utilisation_moment": checks.moment[:, k], "utilisation_shear": checks.shear[:, k],
+        "utilisation_bearing": checks.bearing[:, k],
+        "bearing_force": checks.bearing_force[:, k], "phi_rn": checks.bearing_rn[:, k],
         "utilisation_deflection": u_d,
+        "camber": checks.camber[:, k], "frequency": checks.frequency[:, k],
+        "acceleration": checks.acceleration[:, k],
+        "utilisation_vibration": checks.vibration[:, k],
     }
     units = {"zx_required": su["modulus"], "aw_required": su["area"],
              "ix_required": su["inertia"], "Zx": su["modulus"], "Aw": su["area"],
-             "Ix": su["inertia"], "phiMn": u["moment"], "phiVn": u["force"]}
-    return Sized(rows, cols, units, notes, failures)
+             "Ix": su["inertia"], "phiMn": u["moment"], "phiVn": u["force"],
+             "lb": u["length"], "phi_mn": u["moment"], "moment_segment": u["moment"],
+             "bearing_force": u["force"], "phi_rn": u["force"], "camber": u["deflection"],
+             "frequency": "Hz"}
+    return Sized(rows, cols, units, notes, failures, candidates)
+
+
+def _candidate_lines(shapes: Shapes, checks: Checks, worst_u: np.ndarray, gov: np.ndarray,
+                     chosen: int, passes: bool, rows: Rows) -> tuple[str, ...]:
+    """One line per section of the table in weight order, up to the chosen one (all of
+    them when none passes): what rejects it, by how much and where."""
+    if shapes.n <= 1:
+        return ()
+    order = np.argsort(shapes.weight, kind="stable")
+    names = list(CHECK_NAMES)
+    out = []
+    for k in order:
+        if gov[k] < 0:
+            why = "web noncompact (F4/F5 not covered)"
+        else:
+            name = names[int(gov[k])]
+            where = _where(checks, name, int(k), rows.span, rows.section)
+            why = f"{CHECK_NAMES[name]} {worst_u[k]:.2f} at {where}"
+        if k == chosen:
+            out.append(f"{shapes.name[k]}: {'chosen' if passes else 'closest'} "
+                       f"(worst: {why})")
+            if passes:
+                break
+        else:
+            out.append(f"{shapes.name[k]}: "
+                       f"{'rejected: ' + why if gov[k] < 0 or worst_u[k] > 1.0 else 'passes'}")
+    return tuple(out)
+
+
+def _row_messages(rows: Rows, shapes: Shapes, checks: Checks, inp: SteelInput, k: int,
+                  notes: list[list[str]], failures: list[list[str]], source: str,
+                  compact_web: bool, u: dict[str, str], su: dict[str, str]) -> None:
+    """Notes and failures of every row for the chosen section ``k``."""
+    mu_unit, f_unit, l_unit = u["moment"], u["force"], u["length"]
+    n = rows.n
+    full = shapes.full
+    bracing = (f"{_bracing_text(inp.top, 'top')}, {_bracing_text(inp.bottom, 'bottom')}"
+               + ("" if inp.bracing_given else " (no bracing given: supports only assumed)"))
+    for i in range(n):
+        notes[i].append(source)
+        if not full:
+            failures[i].append(f"not checked: {NOT_CHECKED} ({MISSING})")
+        elif not compact_web:
+            failures[i].append("not checked: the web is noncompact or slender (h/tw > 3.76 "
+                               "sqrt(E/Fy), Table B4.1b): AISC 360-22 F4/F5 are not covered")
+    for i in range(n):
+        side = "sagging, top flange in compression" if rows.section[i] == "span" else \
+            "hogging, bottom flange in compression"
+        if full:
+            notes[i].append(f"{side}; {bracing}")
+        um = checks.moment[i, k]
+        g = int(checks.segment[i, k])
+        phi = checks.phi_mn[i, k]
+        if g >= 0 and full:
+            segs = checks.segs
+            desc = (f"{segs.flange[g]} flange over x = {segs.x0[g]:.2f}-{segs.x1[g]:.2f} "
+                    f"{l_unit} (Lb = {segs.length[g]:.2f} {l_unit}, Cb = "
+                    f"{checks.cb[i, k]:.2f}{', cantilever' if segs.cantilever[g] else ''})")
+            seg_governs = abs(checks.moment_segment[i, k] / phi - um) <= 1e-9 * max(um, 1.0)
+            if seg_governs and checks.moment_segment[i, k] > 0.0:
+                notes[i].append(f"governing segment: {desc}, Mu = "
+                                f"{checks.moment_segment[i, k]:.1f} {mu_unit}, phi_b Mn = "
+                                f"{phi:.1f} {mu_unit} (AISC 360-22 F2)")
+                if um > 1.0:
+                    failures[i].append(
+                        f"moment: lateral-torsional buckling of the {desc}: Mu = "
+                        f"{checks.moment_segment[i, k]:.1f} {mu_unit} exceeds phi_b Mn = "
+                        f"{phi:.1f} {mu_unit} (AISC 360-22 F2) by {_pct(um)}")
+                continue
+        if um > 1.0:
+            limit = ("0.90 Mp (F2.1)" if not full or
+                     ltb.flange_class(shapes.bf[k], shapes.tf[k], inp.E, inp.Fy) == "compact"
+                     else "0.90 Mn for flange local buckling (F3.2)")
+            failures[i].append(
+                f"moment: Mu = {abs(rows.moment[i]):.1f} {mu_unit} exceeds phi_b Mn = "
+                f"{limit} = {phi:.1f} {mu_unit} (AISC 360-22) by {_pct(um)}")
+    for i in np.flatnonzero(rows.is_end):
+        us = checks.shear[i, k]
+        if us > 1.0:
+            failures[i].append(
+                f"shear: Vu = {rows.shear[i]:.1f} {f_unit} exceeds phi_v Vn = 0.90 * 0.6 Fy "
+                f"Aw Cv1 = {checks.phi_vn[i, k]:.1f} {f_unit} (AISC 360-22 G2.1) by "
+                f"{_pct(us)}")
+    lb_unit = su["length"]
+    for i in range(n):
+        ub = checks.bearing[i, k]
+        if np.isnan(ub):
+            continue
+        where = "at the support" if rows.section[i] != "span" else "under a point load"
+        state = ("web crippling (J10.3)" if checks.bearing_kind[i, k] == 1
+                 else "web local yielding (J10.2)")
+        lb = checks.bearing_lb[i, k]
+        if rows.section[i] != "span" and lb == 0.0:
+            notes[i].append("no support width given: bearing length 0 for J10.2 and J10.3")
+        if rows.section[i] == "span" and inp.bearing_length is None:
+            notes[i].append("no bearing_length given: point loads bear on length 0 for "
+                            "J10.2 and J10.3")
+        if ub > 1.0:
+            failures[i].append(
+                f"{state} {where}: Ru = {checks.bearing_force[i, k]:.1f} {f_unit} exceeds "
+                f"phi Rn = {checks.bearing_rn[i, k]:.1f} {f_unit} (lb = {lb:.3g} {lb_unit}) "
+                f"by {_pct(ub)}: bearing stiffeners needed (or a longer bearing)")
+    for i in np.flatnonzero(rows.is_span):
+        c = checks.camber[i, k]
+        dead = checks.dead_deflection[i, k]
+        if np.isfinite(c):
+            if c > 0.0:
+                notes[i].append(f"camber {c:.3g} {u['deflection']} suggested "
+                                f"({inp.camber_fraction:g} of the dead-load deflection "
+                                f"{dead:.3g} {u['deflection']}, common practice)")
+            else:
+                notes[i].append(f"no camber: dead-load deflection {dead:.3g} "
+                                f"{u['deflection']} is small")
+        vib = inp.vibration
+        if vib is None:
+            continue
+        if not full:
+            continue
+        fn, ap = checks.frequency[i, k], checks.acceleration[i, k]
+        if np.isnan(fn):
+            if np.isnan(ap):
+                notes[i].append("vibration not checked here (a cantilever, or no dead "
+                                "load on the span)")
+            continue
+        notes[i].append(f"DG11 walking: fn = {fn:.2f} Hz, ap/g = {100 * ap:.2f}% against "
+                        f"{100 * vib.tolerance:.2f}% (beta = {vib.damping:g}; bare steel "
+                        f"Ix, composite action neglected)")
+        if fn < MIN_FREQUENCY:
+            failures[i].append(f"vibration: fn = {fn:.2f} Hz is below {MIN_FREQUENCY:g} Hz "
+                               f"(AISC Design Guide 11)")
+        if ap > vib.tolerance:
+            failures[i].append(f"vibration: ap/g = {100 * ap:.2f}% exceeds "
+                               f"{100 * vib.tolerance:.2f}% (AISC Design Guide 11 walking, "
+                               f"fn = {fn:.2f} Hz)")

@@ -13,7 +13,7 @@ import numpy as np
 
 from envelope.design import SteelDesign
 from envelope.results import Analysis
-from envelope.sizing import size_with_units
+from envelope.sizing import size_with_candidates, size_with_units
 from envelope.sizing.layout import SECTION_UNITS
 from envelope.store import _metadata, float_column, int_column, make_table, string_column
 
@@ -64,7 +64,7 @@ def sizing_summary(analysis: Analysis) -> str:
     beam = analysis.beam
     design = beam.design
     assert design is not None
-    cols, _ = size_with_units(analysis)
+    cols, _, candidates = size_with_candidates(analysis)
     u = beam.units.labels
     su = SECTION_UNITS[beam.units.name]
     code = CODE_TITLES[design.code]
@@ -72,10 +72,12 @@ def sizing_summary(analysis: Analysis) -> str:
     if isinstance(design, SteelDesign):
         name = cols["steel_section"][0]
         lines = [f"Sizing, {code} steel, Fy = {design.Fy:g} {su['stress']}: {name}"]
-        head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'Zx req':>10} {'V':>8} "
-                f"{'Aw req':>8} {'Ix req':>10} {'util M':>6} {'util V':>6} {'util d':>6}  status")
-        units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {su['modulus']:>10} "
-                 f"{u['force']:>8} {su['area']:>8} {su['inertia']:>10}")
+        head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'Lb':>7} {'Cb':>5} "
+                f"{'phiMn':>9} {'util M':>6} {'V':>8} {'util V':>6} {'util J10':>8} "
+                f"{'util d':>6} {'fn':>5}  status")
+        units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {u['length']:>7} "
+                 f"{'':>5} {u['moment']:>9} {'':>6} {u['force']:>8} {'':>6} {'':>8} "
+                 f"{'':>6} {'Hz':>5}")
     else:
         fc_name, fy_name = ("f'c", "fy") if design.code == "aci318-19" else ("fck", "fyk")
         shape = (f"T {design.flange_width:g}x{design.flange_depth:g} on "
@@ -94,11 +96,14 @@ def sizing_summary(analysis: Analysis) -> str:
         start = (f"{cols['span'][i]:>4} {cols['section'][i]:<7} {_n(cols['x_span'][i], 2):>7} "
                  f"{_n(cols['moment_design'][i]):>9} ")
         if steel:
-            body = (f"{_g(cols['zx_required'][i]):>10} {_n(cols['shear_design'][i]):>8} "
-                    f"{_g(cols['aw_required'][i]):>8} {_g(cols['ix_required'][i]):>10} "
+            body = (f"{_n(cols['lb'][i], 2):>7} {_n(cols['cb'][i], 2):>5} "
+                    f"{_n(cols['phi_mn'][i]):>9} "
                     f"{_n(cols['utilisation_moment'][i], 2):>6} "
+                    f"{_n(cols['shear_design'][i]):>8} "
                     f"{_n(cols['utilisation_shear'][i], 2):>6} "
-                    f"{_n(cols['utilisation_deflection'][i], 2):>6}")
+                    f"{_n(cols['utilisation_bearing'][i], 2):>8} "
+                    f"{_n(cols['utilisation_deflection'][i], 2):>6} "
+                    f"{_n(cols['frequency'][i], 1):>5}")
         else:
             body = (f"{_n(cols['as_required'][i], 0 if su['area'] == 'mm2' else 2):>8} "
                     f"{_n(cols['as_design'][i], 0 if su['area'] == 'mm2' else 2):>8} "
@@ -115,6 +120,13 @@ def sizing_summary(analysis: Analysis) -> str:
                      f" from the left, {_n(cols['hogging_right_extent'][i], 2)} from the right;"
                      f" sagging {_n(cols['sagging_start'][i], 2)} to "
                      f"{_n(cols['sagging_end'][i], 2)}")
+    if candidates:
+        lines.append("Sections of the table, lightest first (what rejects each):")
+        lines += [f"  {c}" for c in candidates]
+    if steel:
+        lines.append("Lb, Cb, phiMn: the governing unbraced segment of the compression flange "
+                     "(AISC 360-22 F2, Cb by F1-1; Lb 0: braced); util J10: web yielding and "
+                     "crippling at the support or under a point load; fn: DG11 beam frequency.")
     lines.append("M: moment at the section (sagging positive); V: shear at the end section; "
                  "util d: deflection over its limit.  Notes on what governs are in "
                  "sizing.parquet.")
