@@ -71,19 +71,69 @@ class ConcreteDesign:
 
 @dataclass(frozen=True, slots=True)
 class SteelSection:
-    """One given steel beam: plastic modulus Zx, moment of inertia Ix, web area Aw
-    (section units)."""
+    """One given doubly symmetric I-shape (section units): the full set (d, bf, tf, tw,
+    Ix, Zx, Sx, Iy, ry, J, Cw) for every check, or the strength-only Zx, Ix, Aw.
+    ``rts``, ``ho``, ``k`` and ``Aw`` are derived or assumed where None (see
+    :mod:`envelope.sizing.shapes`)."""
 
     name: str
     Zx: float
     Ix: float
-    Aw: float
+    Aw: float | None = None
+    d: float | None = None
+    bf: float | None = None
+    tf: float | None = None
+    tw: float | None = None
+    Sx: float | None = None
+    Iy: float | None = None
+    ry: float | None = None
+    J: float | None = None
+    Cw: float | None = None
+    weight: float | None = None
+    rts: float | None = None
+    ho: float | None = None
+    k: float | None = None
+
+    def properties(self) -> dict[str, float]:
+        """The properties given (name excluded)."""
+        return {f: v for f in self.__slots__ if f != "name"  # type: ignore[attr-defined]
+                and (v := getattr(self, f)) is not None}
+
+
+#: How one flange is braced: "continuous" (a slab or deck), "supports" (at the supports
+#: only), or brace positions per span (x from each span's left support, consistent length).
+FlangeBracing = Literal["continuous", "supports"] | tuple[tuple[float, ...], ...]
+
+
+@dataclass(frozen=True, slots=True)
+class Bracing:
+    """Where each flange is braced against lateral-torsional buckling."""
+
+    top: FlangeBracing = "supports"
+    bottom: FlangeBracing = "supports"
+
+
+@dataclass(frozen=True, slots=True)
+class FloorVibration:
+    """AISC Design Guide 11 walking check of a floor beam (consistent units: ``live`` a
+    force per area, ``spacing`` and ``effective_width`` lengths).  The defaults are the
+    damping of an office floor with ceiling and ductwork (0.03, from memory) and the
+    office tolerance ap/g = 0.5 % (DG11, from memory)."""
+
+    live: float
+    spacing: float
+    damping: float = 0.03
+    effective_width: float | None = None   # None: the spacing
+    tolerance: float = 0.005
 
 
 @dataclass(frozen=True, slots=True)
 class SteelDesign:
-    """A rolled steel beam: either ``sections`` (a CSV table, path relative to the case
-    file, the lightest passing section is chosen) or one given ``section``."""
+    """A steel I-beam: either ``sections`` (a CSV table, path relative to the case file,
+    the lightest section passing every check is chosen) or one given ``section``.
+    ``bracing`` None: both flanges braced at the supports only (stated in the notes);
+    ``bearing_length`` (section units) of point loads, None: 0; ``camber_fraction`` of
+    the dead-load deflection (0.8, common practice); ``vibration`` None: not checked."""
 
     material: ClassVar[Material] = "steel"
 
@@ -92,6 +142,10 @@ class SteelDesign:
     sections: str | None = None
     section: SteelSection | None = None
     deflection_limits: DeflectionLimits = DeflectionLimits()
+    bracing: Bracing | None = None
+    bearing_length: float | None = None
+    camber_fraction: float = 0.8
+    vibration: FloorVibration | None = None
 
 
 #: What ``Beam.design`` holds when the case file has a ``[design]`` table.

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from typing import Any, get_args
 
+from envelope.casefile import steel
 from envelope.casefile.reader import Reader, join
 from envelope.design import (
     ConcreteCode,
@@ -16,16 +17,17 @@ from envelope.design import (
     Design,
     SteelCode,
     SteelDesign,
-    SteelSection,
 )
 
 DESIGN_KEYS = ("material", "code", "b", "h", "cover_to_bar_centre", "flange_width",
                "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits", "Fy",
-               "sections", "section")
+               "sections", "section", "bracing", "bearing_length", "camber_fraction",
+               "vibration")
 DESIGN_MATERIAL_KEYS: dict[str, tuple[str, ...]] = {
     "concrete": ("material", "code", "b", "h", "cover_to_bar_centre", "flange_width",
                  "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits"),
-    "steel": ("material", "code", "Fy", "sections", "section", "deflection_limits"),
+    "steel": ("material", "code", "Fy", "sections", "section", "deflection_limits",
+              "bracing", "bearing_length", "camber_fraction", "vibration"),
 }
 DESIGN_CODES: dict[str, tuple[str, ...]] = {
     "concrete": get_args(ConcreteCode),
@@ -35,7 +37,6 @@ DESIGN_CODES: dict[str, tuple[str, ...]] = {
 #: numbers are section units (mm, MPa in SI; in, ksi in US) and are kept as given.
 DESIGN_LENGTHS = ("b", "h", "cover_to_bar_centre", "flange_width", "flange_depth")
 DESIGN_STRESSES = ("fc", "fy", "stirrup_fy", "Fy")
-DESIGN_SECTION_KEYS = ("name", "Zx", "Ix", "Aw")
 DEFLECTION_LIMIT_KEYS = ("live", "total")
 
 
@@ -62,7 +63,8 @@ def design_number(r: Reader, value: object, key: str, quantity: str | None) -> f
     return out
 
 
-def design(r: Reader, data: dict[str, Any]) -> Design | None:
+def design(r: Reader, data: dict[str, Any], span_lengths: tuple[float, ...] = ()
+           ) -> Design | None:
     """The ``[design]`` table, or None when the file has none."""
     key = "design"
     if key not in data:
@@ -94,7 +96,7 @@ def design(r: Reader, data: dict[str, Any]) -> Design | None:
     if material == "concrete":
         check_concrete(r, table, out)
         return ConcreteDesign(**out)
-    check_steel(r, table, out)
+    check_steel(r, table, out, span_lengths)
     return SteelDesign(**out)
 
 
@@ -113,8 +115,10 @@ def check_concrete(r: Reader, table: dict[str, Any], out: dict[str, Any]) -> Non
             r.fail("design.flange_depth", "must be less than h")
 
 
-def check_steel(r: Reader, table: dict[str, Any], out: dict[str, Any]) -> None:
-    """A steel beam: Fy and either a sections table or one given section."""
+def check_steel(r: Reader, table: dict[str, Any], out: dict[str, Any],
+                span_lengths: tuple[float, ...]) -> None:
+    """A steel beam: Fy, either a sections table or one given section, and the steel
+    keys of :mod:`envelope.casefile.steel`."""
     r.required(table, "design", "Fy")
     if ("sections" in table) == ("section" in table):
         r.fail("design", "give either sections (a CSV table) or section (one beam), "
@@ -124,14 +128,5 @@ def check_steel(r: Reader, table: dict[str, Any], out: dict[str, Any]) -> None:
         if not path.strip():
             r.fail("design.sections", "the path is empty")
         out["sections"] = path
-        return
-    skey = "design.section"
-    section = r.table(table["section"], skey)
-    r.known_keys(section, skey, DESIGN_SECTION_KEYS)
-    name = r.string(r.required(section, skey, "name"), join(skey, "name"))
-    if not name.strip():
-        r.fail(join(skey, "name"), "the name is empty")
-    quantities = {"Zx": None, "Ix": "inertia", "Aw": "area"}
-    read = {prop: design_number(r, r.required(section, skey, prop), join(skey, prop), quantity)
-            for prop, quantity in quantities.items()}
-    out["section"] = SteelSection(name=name, **read)
+    steel.steel_keys(r, table, out, span_lengths,
+                     lambda value, key, quantity: design_number(r, value, key, quantity))

@@ -75,7 +75,7 @@ def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
     combinations = options.combinations(r, data, cases)
     patterning = options.patterning(r, data)
     output = options.output(r, data)
-    design_table = design.design(r, data)
+    design_table = design.design(r, data, tuple(sp.length for sp in spans))
     stability.check(spans, supports, source, length_unit=r.length_unit())
     return Beam(
         id=beam_id, title=title, units=r.system, spans=spans, supports=supports,

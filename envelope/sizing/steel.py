@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.design import Bracing, SteelDesign, SteelSection
 from envelope.results import Analysis
 from envelope.sizing import ltb
 from envelope.sizing import steel_aisc as aisc
@@ -37,13 +38,10 @@ from envelope.sizing.steel_checks import (
     check_all,
     worst,
 )
-from envelope.sizing.vibration import CAMBER_FRACTION, OFFICE_TOLERANCE
 
 #: The checks a section must pass, in the order rejections name them.
 CHECK_NAMES = {"moment": "moment", "shear": "shear", "bearing": "web bearing (J10)",
                "deflection": "deflection", "vibration": "vibration"}
-#: DG11 damping ratio when none is given: offices with ceiling and ductwork, from memory.
-DEFAULT_DAMPING = 0.03
 
 
 def _pct(ratio: float) -> str:
@@ -59,35 +57,28 @@ def steel_input(analysis: Analysis) -> SteelInput:
     consistent units for positions and the vibration keys)."""
     beam = analysis.beam
     design = beam.design
-    assert design is not None
-    bracing = design.get("bracing") or {}
-    top: BracingSpec = bracing.get("top", "supports")
-    bottom: BracingSpec = bracing.get("bottom", "supports")
-    vib = design.get("vibration")
+    assert isinstance(design, SteelDesign)
+    bracing = design.bracing or Bracing()
+    vib = design.vibration
     vibration = None
     if vib is not None:
-        spacing = float(vib["spacing"])
         vibration = Vibration(
-            damping=float(vib.get("damping", DEFAULT_DAMPING)), live=float(vib["live"]),
-            spacing=spacing, effective_width=float(vib.get("effective_width", spacing)),
-            tolerance=float(vib.get("tolerance", OFFICE_TOLERANCE)))
-    bearing = design.get("bearing_length")
+            damping=vib.damping, live=vib.live, spacing=vib.spacing,
+            effective_width=vib.spacing if vib.effective_width is None
+            else vib.effective_width, tolerance=vib.tolerance)
     return SteelInput(
-        Fy=float(design["Fy"]), E=ltb.E_STEEL[beam.units.name], top=top, bottom=bottom,
-        bracing_given="bracing" in design,
-        bearing_length=None if bearing is None else float(bearing),
-        camber_fraction=float(design.get("camber_fraction", CAMBER_FRACTION)),
+        Fy=float(design.Fy), E=ltb.E_STEEL[beam.units.name], top=bracing.top,
+        bottom=bracing.bottom, bracing_given=design.bracing is not None,
+        bearing_length=design.bearing_length, camber_fraction=design.camber_fraction,
         vibration=vibration)
 
 
-def given_shape(design: dict) -> Shapes:
-    """The one section of ``[design] section``: full properties or the strength-only
-    Zx, Ix, Aw."""
-    given = design["section"]
-    cols = {k: np.array([float(v)]) for k, v in given.items() if k != "name"}
+def given_shape(section: SteelSection) -> Shapes:
+    """The one given section: full properties or the strength-only Zx, Ix, Aw."""
+    cols = {k: np.array([float(v)]) for k, v in section.properties().items()}
     if "weight" not in cols:
         cols["weight"] = np.array([1.0])
-    return from_columns([str(given["name"])], cols)
+    return from_columns([section.name], cols)
 
 
 def _bracing_text(spec: BracingSpec, flange: str) -> str:
@@ -136,7 +127,7 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     """
     beam = analysis.beam
     design = beam.design
-    assert design is not None and design["material"] == "steel"
+    assert isinstance(design, SteelDesign)
     system = beam.units.name
     s = AISC_SCALES[system]
     su = SECTION_UNITS[system]
@@ -154,13 +145,13 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     ratio = np.repeat(defl["utilisation"], 3)
     ix_req = np.where(mid, aisc.ix_required(np.repeat(i_model, 3), ratio), np.nan)
 
-    if "section" in design:
-        shapes = given_shape(design)
+    if design.section is not None:
+        shapes = given_shape(design.section)
         source = "given section"
         csv_name = ""
     else:
         shapes = read_sections(beam)
-        csv_name = str(design["sections"])
+        csv_name = str(design.sections)
         source = f"lightest passing section of {csv_name}"
     checks = check_all(analysis, rows, shapes, inp, defl, i_model, s.moment, s.force)
     compact_web = (ltb.web_is_compact(shapes.h, shapes.tw, inp.E, inp.Fy) if shapes.full

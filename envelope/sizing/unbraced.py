@@ -23,6 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from envelope import config
 from envelope.analysis import Solved
 from envelope.enveloper import governing_coefficients
 from envelope.recovery import Points, evaluate_some, make_points
@@ -112,6 +113,10 @@ def segment_demands(solved: Solved, stations: Points, segs: Segments) -> Segment
         else:
             cbs = cb_f1_1(m_abs, quarter[:, 0], quarter[:, 1], quarter[:, 2])
         per_segment.append((mu, cbs, m_abs, quarter, x_mu))
+    # round-off where a case puts no moment of that sign on the segment is no demand
+    scale = max((float(np.max(p[2], initial=0.0)) for p in per_segment), default=0.0)
+    for p in per_segment:
+        p[0][p[0] <= config.ZERO_RTOL * scale] = 0.0
     width = max((p[0].size for p in per_segment), default=0)
 
     def pad(k: int, fill: float, extra: tuple[int, ...] = ()) -> np.ndarray:

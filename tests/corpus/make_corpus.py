@@ -526,7 +526,7 @@ NEW_ROWS: list[Row] = [
      f"{FILE}: design.section.name: the name is empty"),
     ("design_steel_section_Zx_missing",
      design(STEEL, section='{ name = "b1", Ix = 4.2e8, Aw = 5400 }'),
-     f"{FILE}: design.section.Zx: 'Zx' is required"),
+     f"{FILE}: design.section.Zx: 'Zx' is required for the strength-only set (Zx, Ix, Aw)"),
     ("design_steel_section_Zx_unit_string",
      design(STEEL, section='{ name = "b1", Zx = "2.1e6 mm^3", Ix = 4.2e8, Aw = 5400 }'),
      f"{FILE}: design.section.Zx: give a plain number here (unit strings are not read for this "
@@ -538,8 +538,9 @@ NEW_ROWS: list[Row] = [
      design(STEEL, section='{ name = "b1", Zx = 2.1e6, Ix = 4.2e8, Aw = "5400 mm" }'),
      f"{FILE}: design.section.Aw: '5400 mm' is not an area (expected units like mm^2)"),
     ("design_steel_section_unknown_key",
-     design(STEEL, section='{ name = "b1", Sx = 2.1e6, Ix = 4.2e8, Aw = 5400 }'),
-     f"{FILE}: design.section.Sx: unknown key 'Sx' (valid: name, Zx, Ix, Aw)"),
+     design(STEEL, section='{ name = "b1", Zy = 2.1e6, Ix = 4.2e8, Aw = 5400 }'),
+     f"{FILE}: design.section.Zy: unknown key 'Zy' (valid: name, d, bf, tf, tw, Ix, Zx, Sx, Iy, "
+     "ry, J, Cw, weight, rts, ho, k, Aw)"),
 ]
 
 
