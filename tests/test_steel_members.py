@@ -253,19 +253,21 @@ def test_cb_third_point_bracing_1_46_1_01_1_46() -> None:
 
 
 def test_uniform_moment_segment_has_cb_1() -> None:
-    # equal and opposite end moments on a simple span: uniform moment, Cb = 1.0 (F1-1)
+    # two equal point loads at the third points (four-point bending): uniform moment
+    # P L / 3 between them; braced at the loads, the middle segment has Cb = 1.0 (F1-1)
+    # and each end segment a linear diagram from 0: Cb = 12.5 / (2.5 + 0.75 + 2 + 2.25)
+    # = 1.667 (F1-1 by hand)
     from envelope.sizing.bracing import segments
     from envelope.sizing.unbraced import segment_demands
 
-    loads = ('[[loads]]\ncase = "D"\ntype = "moment"\nspans = 1\nM = 50.0\nat = 0.0\n'
-             '[[loads]]\ncase = "D"\ntype = "moment"\nspans = 1\nM = -50.0\nat = 6.0\n')
+    loads = ('[[loads]]\ncase = "D"\ntype = "point"\nspans = 1\nP = 30.0\nat = 2.0\n'
+             '[[loads]]\ncase = "D"\ntype = "point"\nspans = 1\nP = 30.0\nat = 4.0\n')
     solved, st = _beam((6.0,), ("pinned", "pinned"), loads, strength="{ D = 1.0 }")
-    segs = segments(np.array([0.0, 6.0]), np.array([True, True]), "supports", "supports")
+    segs = segments(np.array([0.0, 6.0]), np.array([True, True]), ((2.0, 4.0),),
+                    "continuous")
     dem = segment_demands(solved, st, segs)
-    top, bottom = dem.mu[0, 0], dem.mu[1, 0]
-    assert max(top, bottom) == pytest.approx(50.0, rel=1e-9)
-    assert min(top, bottom) == 0.0
-    assert dem.cb[:, 0] == pytest.approx([1.0, 1.0])
+    assert dem.mu[:, 0] == pytest.approx([60.0, 60.0, 60.0], rel=1e-9)
+    assert dem.cb[:, 0] == pytest.approx([12.5 / 7.5, 1.0, 12.5 / 7.5], rel=1e-9)
 
 
 def test_superposed_patterning_gives_the_same_demand_as_the_explicit_cases() -> None:
