@@ -103,4 +103,4 @@ def locate(joint_x: np.ndarray, x: np.ndarray, right: np.ndarray
     span_r = np.clip(np.searchsorted(joint_x, x, side="right") - 1, 0, n - 1)
     span_l = np.clip(np.searchsorted(joint_x, x, side="left") - 1, 0, n - 1)
     span = np.where(right, span_r, span_l)
-    return span, np.clip(x - joint_x[span], 0.0, None)
+    return span, np.clip(x - joint_x[span], 0.0, np.diff(joint_x)[span])
