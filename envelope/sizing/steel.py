@@ -216,19 +216,25 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
 def _candidate_lines(shapes: Shapes, checks: Checks, worst_u: np.ndarray, gov: np.ndarray,
                      chosen: int, passes: bool, rows: Rows) -> tuple[str, ...]:
     """One line per section of the table in weight order, up to the chosen one (all of
-    them when none passes): what rejects it, by how much and where."""
+    them when none passes): every check that rejects it, worst first, by how much and
+    where."""
     if shapes.n <= 1:
         return ()
     order = np.argsort(shapes.weight, kind="stable")
-    names = list(CHECK_NAMES)
+    w = worst(checks)
     out = []
     for k in order:
+        k = int(k)
+        failing = sorted(((w[name][k], name) for name in CHECK_NAMES if w[name][k] > 1.0),
+                         reverse=True)
+        if not failing:   # the worst check, for the chosen section's line
+            failing = [(w[name][k], name) for name in CHECK_NAMES if w[name][k] ==
+                       worst_u[k]][:1]
+        whys = [f"{CHECK_NAMES[name]} {u:.2f} at "
+                f"{_where(checks, name, k, rows.span, rows.section)}" for u, name in failing]
         if gov[k] < 0:
-            why = "web noncompact (F4/F5 not covered)"
-        else:
-            name = names[int(gov[k])]
-            where = _where(checks, name, int(k), rows.span, rows.section)
-            why = f"{CHECK_NAMES[name]} {worst_u[k]:.2f} at {where}"
+            whys.insert(0, "web noncompact (F4/F5 not covered)")
+        why = "; ".join(whys)
         if k == chosen:
             out.append(f"{shapes.name[k]}: {'chosen' if passes else 'closest'} "
                        f"(worst: {why})")
