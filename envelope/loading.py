@@ -21,6 +21,7 @@ import numpy as np
 
 from envelope.mesh import Mesh
 from envelope.model import Beam, Load
+from envelope.reduction import span_factors
 
 DISTRIBUTED, POINT, MOMENT = 0, 1, 2
 
@@ -90,8 +91,14 @@ def _owner(at: float, bounds: list[tuple[float, float]]) -> int:
 
 
 def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
-    """Cut every load item at element and cell boundaries and group it by unit case."""
+    """Cut every load item at element and cell boundaries and group it by unit case.
+
+    A live case with ``reduction`` has its items on each span scaled by that span's
+    live load reduction factor (:func:`envelope.reduction.span_factors`), so every
+    result downstream, reactions and unfactored columns included, is of the reduced
+    load."""
     case_index = {c.name: i for i, c in enumerate(beam.cases)}
+    scale = span_factors(beam)
     unit_of: dict[tuple[int, int], int] = {}
     rows: list[tuple[int, int, int, float, float, float, float, float]] = []
 
@@ -113,7 +120,7 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
             e = elems[_owner(load.at, e_bounds)]
             g = g_list[_owner(load.at, g_bounds)]
             kind = POINT if load.type == "point" else MOMENT
-            value = load.P if load.type == "point" else load.M
+            value = (load.P if load.type == "point" else load.M) * scale[c, j]
             a = load.at - float(mesh.start[e])
             rows.append((unit(c, g), e, kind, a, a, 0.0, 0.0, value))
             continue
@@ -121,7 +128,8 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
         for lo, hi in _pieces(load.start, load.end, cuts):
             e = elems[_owner(lo, e_bounds)]
             g = g_list[_owner(lo, g_bounds)]
-            wa, wb = _intensity(load, beam, j, lo), _intensity(load, beam, j, hi, upper=True)
+            wa = _intensity(load, beam, j, lo) * scale[c, j]
+            wb = _intensity(load, beam, j, hi, upper=True) * scale[c, j]
             e0 = float(mesh.start[e])
             if hi - e0 <= lo - e0:
                 continue  # a sliver that vanishes in element-local coordinates

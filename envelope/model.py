@@ -118,13 +118,33 @@ class Support:
 
 
 @dataclass(frozen=True, slots=True)
+class LiveReduction:
+    """A live case's ``reduction`` table (see :mod:`envelope.reduction`).
+
+    ``tributary_width`` is in consistent length (m, ft); ``kll`` is ASCE 7-22 Table
+    4.7-1's live load element factor (not read by the EN rule); ``floors`` the number of
+    floors the member supports; ``occupancy`` ``general``, ``garage`` (4.7.5) or
+    ``assembly`` (4.7.6); ``standard`` ``asce7-22`` or ``en1991-1-1``, or None for the
+    one that goes with the strength rule set.
+    """
+
+    tributary_width: float
+    kll: float | None = None
+    floors: int = 1
+    occupancy: str = "general"
+    standard: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
 class LoadCase:
-    """A named load case: its kind, whether it is patterned, and its EN 1990 category."""
+    """A named load case: its kind, whether it is patterned, its EN 1990 category, and
+    its live load reduction."""
 
     name: str
     kind: CaseKind
     patterned: bool
     category: Category | None = None
+    reduction: LiveReduction | None = None
 
 
 @dataclass(frozen=True, slots=True)
