@@ -252,3 +252,29 @@ def _run_extremes(lines: InfluenceLines, table: np.ndarray, loads: np.ndarray,
     coef = samples @ _VANDERMONDE_INV.T
     vmax, tmax, vmin, tmin = _cubic_extremes(coef)
     return _best(vmax, tmax, vmin, tmin, lo, hi)
+
+
+def influence_at(beam: Beam, span: int, x_span: float, right: bool = True,
+                 samples: int = 17) -> tuple[np.ndarray, dict[str, np.ndarray]]:
+    """The influence lines at one point, tabulated for a table or a figure.
+
+    ``span`` is 0-based, ``x_span`` from its left support, ``right`` the side taken
+    where the response jumps.  Returns the load positions (global x) and, per quantity
+    (shear, moment, rotation, deflection and ``reaction_<joint>`` for each restrained
+    joint, 1-based), the response to a unit downward load there.  Every piece is
+    sampled at ``samples`` points ends included, so a jump shows as two rows at one x
+    (the left piece's end first).
+    """
+    joint_x = np.asarray(beam.joint_x)
+    points = Points(np.array([span], dtype=np.int64), np.array([float(x_span)]),
+                    np.array([right]), np.array([joint_x[span] + x_span]))
+    lines = influence_lines(beam, points)
+    t = np.linspace(0.0, 1.0, samples)
+    powers = np.stack([np.ones_like(t), t, t * t, t * t * t], axis=-1)  # (samples, 4)
+    lo, hi = lines.bounds[:-1], lines.bounds[1:]
+    xi = (lo[:, None] + t[None, :] * (hi - lo)[:, None]).ravel()
+    out = {q: (lines.coef[q][0] @ powers.T).ravel() for q in QUANTITIES}
+    for j, sup in enumerate(beam.supports):
+        if sup.restrains_vertical:
+            out[f"reaction_{j + 1}"] = (lines.reaction[j] @ powers.T).ravel()
+    return xi, out

@@ -154,3 +154,20 @@ def test_worst_position_bounds_a_fine_sweep(loads: list[float], offsets: list[fl
         scale = max(float(np.abs(worst.max).max()), 1e-300)
         assert np.all(sweep <= worst.max + FIT_RTOL * scale), q
         assert np.all(worst.max - sweep <= 2e-3 * scale), q
+
+
+def test_tabulated_shear_line_jumps_by_the_unit_load_at_the_point() -> None:
+    """Simple span, shear right of a: -xi/L left of a, (L - xi)/L right of it
+    (common practice); the table holds both sides of the jump, left piece first."""
+    from envelope.influence import influence_at
+
+    L, a = 8.0, 2.0
+    beam = _simple(L)
+    xi, lines = influence_at(beam, 0, a)
+    at = np.flatnonzero(xi == a)
+    assert lines["shear"][at].tolist() == pytest.approx([-a / L, (L - a) / L], abs=1e-12)
+    want = np.where(xi < a, -xi / L, (L - xi) / L)
+    off = xi != a
+    assert lines["shear"][off] == pytest.approx(want[off], abs=FIT_RTOL)
+    assert set(lines) == {"shear", "moment", "rotation", "deflection", "reaction_1",
+                          "reaction_2"}
