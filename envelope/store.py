@@ -24,6 +24,7 @@ from envelope.enveloper import CaseSet, Extremes
 from envelope.errors import StaticsError
 from envelope.files import write_atomic
 from envelope.model import Beam
+from envelope.reduction import span_factors
 from envelope.results import Analysis, explicit_case_blocks
 
 CAUTION = ("Results are for checking by a licensed engineer and defer to local codes; "
@@ -185,8 +186,28 @@ def design_table(analysis: Analysis) -> pa.Table:
         "deflection_max": col("deflection_max", defl),
         "deflection_live": col("deflection_live", defl),
         "span_over_deflection": col("span_over_deflection"),
+        "live_reduction": float_column(live_reduction_by_span(beam)),
     }
     return make_table(cols).replace_schema_metadata(_metadata(analysis))
+
+
+def live_reduction_by_span(beam: Beam) -> np.ndarray:
+    """Per span, the live load reduction factor of the reduced live cases (the least
+    where several are reduced differently), 1.0 where none is reduced."""
+    reduced = [i for i, c in enumerate(beam.cases) if c.reduction is not None]
+    if not reduced:
+        return np.ones(beam.n_spans)
+    return span_factors(beam)[reduced].min(axis=0)
+
+
+def _reductions_acting(beam: Beam, factors_json: str,
+                       factors: np.ndarray) -> str:
+    """JSON {case: [factor per span]} of the reduced cases a row of cases.parquet uses."""
+    acting = json.loads(factors_json)
+    out = {c.name: [round(float(f), 12) for f in factors[i]]
+           for i, c in enumerate(beam.cases)
+           if c.reduction is not None and acting.get(c.name, 0.0) != 0.0}
+    return json.dumps(out)
 
 
 def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
@@ -198,7 +219,10 @@ def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
         sources = {c.name: c.source for c in cs.combinations}
         for r in cs.case_rows(explicit=all_cases):
             rows.append({"set": name, **r, "source": sources[r["combination"]]})
-    names = ("set", "combination", "loaded", "factors", "source")
+    reductions = span_factors(analysis.beam)
+    for row in rows:
+        row["live_reduction"] = _reductions_acting(analysis.beam, row["factors"], reductions)
+    names = ("set", "combination", "loaded", "factors", "source", "live_reduction")
     table = make_table({k: string_column([r[k] for r in rows]) for k in names})
     meta = _metadata(analysis)
     text = input_text(analysis.beam)

@@ -73,6 +73,7 @@ def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
     cases = options.cases(r, data)
     beam_loads = loads.loads(r, data, spans, cases)
     combinations = options.combinations(r, data, cases)
+    options.check_reductions(r, cases, combinations)
     patterning = options.patterning(r, data)
     output = options.output(r, data)
     design_table = design.design(r, data, tuple(sp.length for sp in spans))

@@ -18,6 +18,7 @@ from envelope.model import (
     Combination,
     CombinationSet,
     CombinationSpec,
+    LiveReduction,
     LoadCase,
     MomentPlot,
     OutputOptions,
@@ -26,9 +27,15 @@ from envelope.model import (
     ServiceRuleSet,
     StrengthRuleSet,
 )
+from envelope.reduction import OCCUPANCIES, standard_of
 
 CASE_NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
-CASE_KEYS = ("kind", "pattern", "category")
+CASE_KEYS = ("kind", "pattern", "category", "reduction")
+#: ``reduction`` of a live case: live load reduction (see :mod:`envelope.reduction`).
+REDUCTION_KEYS = ("tributary_width", "kll", "floors", "occupancy", "standard")
+REDUCTION_STANDARDS = ("asce7-22", "en1991-1-1")
+#: ASCE 7-22 Table 4.7-1: the live load element factor is 1, 2, 3 or 4.
+KLL_RANGE = (1.0, 4.0)
 CATEGORIES: tuple[Category, ...] = get_args(Category)
 
 COMBINATION_KEYS = ("strength", "service", "reduced_companion_live", "custom")
@@ -78,7 +85,46 @@ def case(r: Reader, name: str, value: object) -> LoadCase:
         r.fail(join(key, "category"),
                "categories A to H (EN 1990 Table A1.1) apply to imposed loads: "
                f"kind 'live' or 'roof_live', not {kind!r}")
-    return LoadCase(name=name, kind=kind, patterned=patterned, category=category)
+    reduction = r.optional(table, key, "reduction",
+                           lambda v, k: live_reduction(r, v, k, kind), None)
+    return LoadCase(name=name, kind=kind, patterned=patterned, category=category,
+                    reduction=reduction)
+
+
+def live_reduction(r: Reader, value: object, key: str, kind: str) -> LiveReduction:
+    """A live case's ``reduction`` table (ASCE 7-22 4.7, EN 1991-1-1 6.3.1.2(10))."""
+    if kind != "live":
+        r.fail(key, f"live load reduction applies to floor live load (kind 'live'), "
+                    f"not {kind!r}")
+    table = r.table(value, key)
+    r.known_keys(table, key, REDUCTION_KEYS)
+    width = r.positive(r.required(table, key, "tributary_width"),
+                       join(key, "tributary_width"), "length")
+    kll = None
+    if "kll" in table:
+        kll = r.plain_number(table["kll"], join(key, "kll"))
+        if not KLL_RANGE[0] <= kll <= KLL_RANGE[1]:
+            r.fail(join(key, "kll"), f"KLL is 1 to 4 (ASCE 7-22 Table 4.7-1), got {kll:g}")
+    floors = r.optional(table, key, "floors", lambda v, k: r.integer(v, k, 1, 200), 1)
+    occupancy = r.optional(table, key, "occupancy",
+                           lambda v, k: r.choice(v, k, OCCUPANCIES, "occupancy"), "general")
+    standard = r.optional(table, key, "standard",
+                          lambda v, k: r.choice(v, k, REDUCTION_STANDARDS, "standard"), None)
+    return LiveReduction(tributary_width=width, kll=kll, floors=floors, occupancy=occupancy,
+                         standard=standard)
+
+
+def check_reductions(r: Reader, cases: tuple[LoadCase, ...],
+                     combinations: CombinationSpec) -> None:
+    """The ASCE 7-22 rule needs KLL (Table 4.7-1): there is no safe default."""
+    for c in cases:
+        red = c.reduction
+        if red is None or red.kll is not None:
+            continue
+        if (red.standard or standard_of(combinations.strength)) == "asce7-22":
+            r.fail(join(join("cases", c.name), "reduction"),
+                   "kll is required for the ASCE 7-22 rule (Table 4.7-1: 2 for interior "
+                   "beams, 1 for edge beams with cantilever slabs and cantilevers)")
 
 
 # -- [combinations] ---------------------------------------------------------

@@ -1,0 +1,107 @@
+"""Live load reduction read from a case file and applied to the analysis: reactions of
+the reduced load, the factor in design.parquet and cases.parquet, refusals."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+import envelope
+from envelope.errors import CaseError
+
+from beams import parse_text
+
+TWO_SPANS = """
+units = "SI"
+[section]
+E = 30000
+I = 8.0e9
+[[spans]]
+length = 8.0
+[[spans]]
+length = 8.0
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[cases]
+D = {{ kind = "dead" }}
+L = {{ kind = "live", reduction = {reduction} }}
+[[loads]]
+case = "D"
+type = "uniform"
+spans = "all"
+w = 10.0
+[[loads]]
+case = "L"
+type = "uniform"
+spans = "all"
+w = 15.0
+[combinations]
+strength = "{strength}"
+service = "characteristic"
+"""
+
+#: ASCE 7-22 Eq. (4.7-1M): 8 m x 6 m per span, KLL = 2: 0.25 + 4.57 / sqrt(96).
+ASCE_FACTOR = 0.25 + 4.57 / 96.0**0.5
+#: EN 1991-1-1 Eq. (6.1), category B (psi0 0.7): 0.5 + 10 / 48.
+EN_FACTOR = 0.5 + 10.0 / 48.0
+
+
+def _beam(reduction: str, strength: str = "asce7-lrfd"):  # type: ignore[no-untyped-def]
+    return parse_text(TWO_SPANS.format(reduction=reduction, strength=strength))
+
+
+@pytest.mark.parametrize(("strength", "reduction", "factor"), [
+    ("asce7-lrfd", "{ tributary_width = 6.0, kll = 2 }", ASCE_FACTOR),
+    ("en1990-6.10", "{ tributary_width = 6.0 }", EN_FACTOR),
+])
+def test_reduced_live_reactions_and_reported_factor(strength: str, reduction: str,
+                                                    factor: float) -> None:
+    """Two equal spans, w on both: end reaction 3/8 wL, middle 10/8 wL (common
+    practice); the live case's reactions scale by the factor, the dead case's not."""
+    result = envelope.analyse(_beam(reduction, strength))
+    tables = envelope.tables(result)
+    reactions = tables["reactions"].to_pydict()
+    assert reactions["unfactored_L"][0] == pytest.approx(3 / 8 * 15.0 * 8.0 * factor,
+                                                         rel=1e-12)
+    assert reactions["unfactored_L"][1] == pytest.approx(10 / 8 * 15.0 * 8.0 * factor,
+                                                         rel=1e-12)
+    assert reactions["unfactored_D"][0] == pytest.approx(3 / 8 * 10.0 * 8.0, rel=1e-12)
+    assert tables["design"].column("live_reduction").to_pylist() == pytest.approx(
+        [factor, factor], rel=1e-12)
+    cases = tables["cases"].to_pydict()
+    for factors, reduced in zip(cases["factors"], cases["live_reduction"], strict=True):
+        uses_live = json.loads(factors).get("L", 0.0) != 0.0
+        assert json.loads(reduced) == ({"L": pytest.approx([factor, factor])}
+                                       if uses_live else {})
+
+
+def test_small_area_is_not_reduced() -> None:
+    """KLL AT = 8 x 2 x 2 = 32 m^2 < 37.16 m^2: no reduction (ASCE 7-22 4.7.3)."""
+    result = envelope.analyse(_beam("{ tributary_width = 2.0, kll = 2 }"))
+    assert envelope.tables(result)["design"].column("live_reduction").to_pylist() == [1.0, 1.0]
+
+
+@pytest.mark.parametrize(("reduction", "message"), [
+    ("{ tributary_width = 6.0 }", "kll is required"),
+    ("{ tributary_width = 6.0, kll = 5 }", "KLL is 1 to 4"),
+    ("{ tributary_width = -1.0, kll = 2 }", "tributary_width"),
+    ("{ tributary_width = 6.0, kll = 2, occupancy = \"stadium\" }", "occupancy"),
+    ("{ width = 6.0, kll = 2 }", "unknown key"),
+])
+def test_bad_reduction_is_refused_at_its_key(reduction: str, message: str) -> None:
+    with pytest.raises(CaseError, match=message) as err:
+        _beam(reduction)
+    assert "cases.L.reduction" in str(err.value)
+
+
+def test_reduction_only_on_live_cases() -> None:
+    text = TWO_SPANS.format(reduction="{ tributary_width = 6.0, kll = 2 }",
+                            strength="asce7-lrfd").replace(
+        'D = { kind = "dead" }', 'D = { kind = "dead", reduction = { tributary_width = 6.0 } }')
+    with pytest.raises(CaseError, match="kind 'live'"):
+        parse_text(text)
