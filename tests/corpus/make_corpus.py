@@ -298,7 +298,7 @@ NEW_ROWS: list[Row] = [
     ("case_kind_missing", cases('D = { pattern = false }\nL = { kind = "live" }\n'),
      f"{FILE}: cases.D.kind: 'kind' is required"),
     ("case_unknown_key", cases('D = { kind = "dead", factor = 1.2 }\nL = { kind = "live" }\n'),
-     f"{FILE}: cases.D.factor: unknown key 'factor' (valid: kind, pattern, category)"),
+     f"{FILE}: cases.D.factor: unknown key 'factor' (valid: kind, pattern, category, reduction)"),
     ("case_category_not_a_string",
      cases('D = { kind = "dead" }\nL = { kind = "live", category = 1 }\n'),
      f"{FILE}: cases.L.category: expected a string, got an integer (1)"),
