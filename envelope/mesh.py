@@ -8,6 +8,7 @@ consistent unit (m or ft) and EI in force*length^2.
 
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass
 
 import numpy as np
@@ -28,6 +29,9 @@ class Mesh:
     joint_node: np.ndarray  # int, n_joints: node index of each joint
     span_first: np.ndarray  # int, n_spans: first element of each span
     span_count: np.ndarray  # int, n_spans: elements in each span
+    #: bool: the element's right end is a hinge (its end moment is released; the node's
+    #: rotation belongs to the element on the right).  None: no hinges in the beam.
+    released: np.ndarray | None = None
 
     @property
     def n_elements(self) -> int:
@@ -43,21 +47,27 @@ class Mesh:
 
 
 def build_mesh(beam: Beam) -> Mesh:
-    """One element per stretch of constant section in every span."""
+    """One element per stretch of constant section in every span, stretches cut at
+    the span's hinges."""
     span, start, end, length, ei, x0 = [], [], [], [], [], []
+    released: list[bool] = []
     joint_node = [0]
     span_first, span_count = [], []
     x_left = 0.0
     for j, sp in enumerate(beam.spans):
         span_first.append(len(span))
+        first = len(span)
         for st in sp.stretches:
-            span.append(j)
-            start.append(st.start)
-            end.append(st.end)
-            length.append(st.end - st.start)
-            ei.append(st.section.EI)
-            x0.append(x_left + st.start)
-        span_count.append(len(sp.stretches))
+            cuts = [st.start, *(h for h in sp.hinges if st.start < h < st.end), st.end]
+            for a, b in itertools.pairwise(cuts):
+                span.append(j)
+                start.append(a)
+                end.append(b)
+                length.append(b - a)
+                ei.append(st.section.EI)
+                x0.append(x_left + a)
+                released.append(b in sp.hinges)
+        span_count.append(len(span) - first)
         joint_node.append(len(span))
         x_left += sp.length
     return Mesh(
@@ -70,6 +80,7 @@ def build_mesh(beam: Beam) -> Mesh:
         joint_node=np.asarray(joint_node, dtype=np.int64),
         span_first=np.asarray(span_first, dtype=np.int64),
         span_count=np.asarray(span_count, dtype=np.int64),
+        released=np.asarray(released, dtype=bool) if any(released) else None,
     )
 
 

@@ -73,10 +73,14 @@ class Stretch:
 
 @dataclass(frozen=True, slots=True)
 class Span:
-    """One span between two joints.  ``stretches`` cover [0, length] without gaps."""
+    """One span between two joints.  ``stretches`` cover [0, length] without gaps;
+    ``hinges`` are the positions of internal moment releases."""
 
     length: float
     stretches: tuple[Stretch, ...]
+    #: Internal moment releases, span-local positions in (0, length]; a hinge at
+    #: ``length`` releases the moment between this span and the joint at its right end.
+    hinges: tuple[float, ...] = ()
 
     @property
     def section(self) -> Section:

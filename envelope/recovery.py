@@ -88,6 +88,7 @@ def stations(beam: Beam, mesh: Mesh, units: UnitCases) -> Points:
         tol = L * config.STATION_MERGE_RTOL
         pts = set(np.linspace(0.0, L, n).tolist())
         pts.update(kinks_by_span.get(j, ()))
+        pts.update(h for h in sp.hinges if 0.0 < h < L)  # zero moment, a kink in deflection
         w_left, w_right = beam.supports[j].width, beam.supports[j + 1].width
         if 0.0 < w_left / 2 < L:
             pts.add(w_left / 2)

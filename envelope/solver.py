@@ -149,6 +149,24 @@ def element_end_forces_exact(length: np.ndarray, EI: np.ndarray,
     return np.stack([shear, m1, -shear, m2], axis=1)
 
 
+def condensed(k: np.ndarray) -> np.ndarray:
+    """(n, 4, 4) stiffness of elements whose right-end rotation is released (a hinge):
+    the right-end rotation condensed out, K - K[:, 3] K[3, :] / K[3, 3]; its row and
+    column are zero, so the node's rotation takes no stiffness from the element."""
+    return k - k[:, :, 3, None] * k[:, None, 3, :] / k[:, 3, 3, None, None]
+
+
+def free_end_rotation(mesh: Mesh, released: np.ndarray, de: np.ndarray) -> np.ndarray:
+    """``de`` with the right-end rotation of each released element replaced by the
+    element's own rotation there: with end moment M2 = EI/l^2 (2 l th1 + 4 l th2 - 6 Dv)
+    from the deformations, M2 = 0 gives th2 = (6 Dv / l - 2 th1) / 4."""
+    out = de.copy()
+    l = mesh.length[released][:, None]  # noqa: E741
+    sub = de[released]
+    out[released, 3] = (6.0 * (sub[:, 2] - sub[:, 0]) / l - 2.0 * sub[:, 1]) / 4.0
+    return out
+
+
 def fixed_end_terms(mesh: Mesh, units: UnitCases) -> tuple[np.ndarray, ...]:
     """(Q, m, m1, m2) at each element's right end, per element and unit: (n_elem, n_units)."""
     n_e, n_u = mesh.n_elements, units.n_units
@@ -180,6 +198,9 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     n_e, n_u = mesh.n_elements, units.n_units
     n_dof = 2 * mesh.n_nodes
     ke = element_stiffness(mesh.length, mesh.EI)
+    released = mesh.released
+    if released is not None:
+        ke[released] = condensed(ke[released])
 
     # upper banded storage: ab[3 + i - j, j] = K[i, j]
     ab = np.zeros((4, n_dof))
@@ -203,6 +224,11 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     V0F = 6.0 * m1l / l**2 - 12.0 * m2l / l**3
     M0F = -2.0 * m1l / l + 6.0 * m2l / l**2
     fF = np.stack([V0F, -M0F, Ql - V0F, M0F + V0F * l - ml], axis=1)  # (n_e, 4, n_u)
+    if released is not None:
+        # a hinge at the right end: the end moment is zero, carried by the other forces
+        # (the fixed-end forces of a propped cantilever)
+        k = element_stiffness(mesh.length[released], mesh.EI[released])
+        fF[released] -= k[:, :, 3, None] / k[:, 3, 3, None, None] * fF[released][:, 3:4, :]
 
     F = _node_sums(-fF, n_dof)
     F[rigid] = 0.0
@@ -226,7 +252,12 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     def gather(x: np.ndarray) -> np.ndarray:
         return x[base[:, None] + np.arange(4)]  # (n_e, 4, n_u)
 
-    f_d = element_end_forces_exact(mesh.length, mesh.EI, gather(d)) + fF
+    def own(de: np.ndarray) -> np.ndarray:
+        """The element's own end rotations: at a hinge, the one that makes the end moment
+        of the deformation zero (the condensed fixed-end forces carry none)."""
+        return de if released is None else free_end_rotation(mesh, released, de)
+
+    f_d = element_end_forces_exact(mesh.length, mesh.EI, own(gather(d))) + fF
     dd = np.zeros_like(d)
     f = f_d
     node_f = _node_sums(f, n_dof)
@@ -237,7 +268,7 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
             break
         dd += cho_solve_banded((chol, False), r, check_finite=False)
         dd[rigid] = 0.0
-        f = f_d + element_end_forces(mesh.length, mesh.EI, gather(dd))
+        f = f_d + element_end_forces(mesh.length, mesh.EI, own(gather(dd)))
         node_f = _node_sums(f, n_dof)
     d = d + dd
     de = gather(d)

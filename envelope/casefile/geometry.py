@@ -17,7 +17,8 @@ from envelope.model import RESTRAINTS, Section, Span, Stretch, Support, SupportK
 SECTION_KEYS = ("E", "I", "A", "unit_weight")
 #: Each section property and the quantity its unit strings are read as.
 SECTION_QUANTITIES = {"E": "modulus", "I": "inertia", "A": "area", "unit_weight": "unit_weight"}
-SPAN_KEYS = ("length", *SECTION_KEYS, "sections")
+SPAN_KEYS = ("length", *SECTION_KEYS, "sections", "hinges")
+HINGE_KEYS = ("at",)
 STRETCH_KEYS = ("from", "to", *SECTION_KEYS)
 SUPPORT_TYPES: tuple[SupportKind, ...] = get_args(SupportKind)
 SUPPORT_KEYS: dict[str, tuple[str, ...]] = {
@@ -79,10 +80,12 @@ def spans(r: Reader, data: dict[str, Any], default: Props) -> tuple[Span, ...]:
     items = r.array_of_tables(data["spans"], "spans")
     if not items:
         r.fail("spans", "at least one span is required")
-    return tuple(span(r, entry, item("spans", i), default) for i, entry in enumerate(items))
+    return tuple(span(r, entry, item("spans", i), default, last=i == len(items) - 1)
+                 for i, entry in enumerate(items))
 
 
-def span(r: Reader, table: dict[str, Any], key: str, default: Props) -> Span:
+def span(r: Reader, table: dict[str, Any], key: str, default: Props,
+         last: bool = False) -> Span:
     """One span: its length and its stretches covering [0, length] without gaps."""
     r.known_keys(table, key, SPAN_KEYS)
     length = r.positive(r.required(table, key, "length"), join(key, "length"), "length")
@@ -111,7 +114,45 @@ def span(r: Reader, table: dict[str, Any], key: str, default: Props) -> Span:
         if pieces:
             long_enough(r, x, length, shortest, pieces[-1][3], "the part of the span after it")
         stretches.append(Stretch(x, length, section))
-    return Span(length=length, stretches=tuple(stretches))
+    hinge_at = hinges(r, table, key, length, stretches, last) if "hinges" in table else ()
+    return Span(length=length, stretches=tuple(stretches), hinges=hinge_at)
+
+
+def hinges(r: Reader, table: dict[str, Any], key: str, length: float,
+           stretches: list[Stretch], last: bool) -> tuple[float, ...]:
+    """The ``[[spans.hinges]]``: internal moment releases at ``at`` in (0, length].
+
+    A hinge at the span's end releases the moment between the span and the joint on
+    its right (not at the beam's right end, which carries no moment to release).  A
+    hinge cuts its stretch in two; each piece must be long enough to analyse (see
+    MIN_STRETCH), unless the hinge sits exactly on a section change.
+    """
+    hkey = join(key, "hinges")
+    out: list[float] = []
+    bounds = sorted({b for st in stretches for b in (st.start, st.end)})
+    shortest = MIN_STRETCH * length
+    for i, entry in enumerate(r.array_of_tables(table["hinges"], hkey)):
+        ikey = item(hkey, i)
+        r.known_keys(entry, ikey, HINGE_KEYS)
+        at = r.within_span(r.required(entry, ikey, "at"), join(ikey, "at"), length, "at")
+        if at == 0.0:
+            r.fail(join(ikey, "at"), "a hinge at the span's start: give it at the end of "
+                                     "the span on the left (at = its length)")
+        if at == length and last:
+            r.fail(join(ikey, "at"), "a hinge at the beam's end releases nothing: the end "
+                                     "carries no moment unless its support is fixed; use "
+                                     "a pinned support instead")
+        if at in out:
+            r.fail(join(ikey, "at"), f"two hinges at {r.fmt_len(at)}")
+        if at not in bounds:
+            near = min(bounds, key=lambda b: abs(b - at))
+            if abs(near - at) < shortest:
+                r.fail(join(ikey, "at"), f"a hinge {r.fmt_len(abs(near - at))} from a "
+                       f"section change or span end leaves a piece shorter than "
+                       f"1/{round(1 / MIN_STRETCH)} of the span: move it onto "
+                       f"{r.fmt_len(near)} or further away")
+        out.append(at)
+    return tuple(sorted(out))
 
 
 def long_enough(r: Reader, start: float, end: float, shortest: float, key: str,
