@@ -56,6 +56,9 @@ class UnitCases:
     item_wb: np.ndarray
     item_p: np.ndarray  # force or moment of a point item
     elem_first: np.ndarray  # n_elements + 1: items of element e are elem_first[e]:[e + 1]
+    #: (n_joints, n_units) downward settlement of each joint's support in each unit case
+    #: (consistent length); None where no case settles a support.
+    settlement: np.ndarray | None = None
 
     @property
     def n_units(self) -> int:
@@ -109,9 +112,13 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
     def unit(case: int, cell: int) -> int:
         return unit_of.setdefault((case, cell), len(unit_of))
 
+    settles: list[tuple[int, int, float]] = []
     for load in beam.loads:
         j = load.span
         c = case_index[load.case]
+        if load.type == "settlement":
+            settles.append((unit(c, span_cells[j][0]), load.support, load.delta))
+            continue
         elems = list(range(mesh.span_first[j], mesh.span_first[j] + mesh.span_count[j]))
         e_bounds = [(float(mesh.start[e]), float(mesh.end[e])) for e in elems]
         g_list = span_cells[j]
@@ -150,7 +157,19 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
         item_wb=arr[:, 6].copy(),
         item_p=arr[:, 7].copy(),
         elem_first=np.searchsorted(arr[:, 1], np.arange(mesh.n_elements + 1)),
+        settlement=_settlement_matrix(settles, beam.n_spans + 1, len(keys)),
     )
+
+
+def _settlement_matrix(settles: list[tuple[int, int, float]], n_joints: int,
+                       n_units: int) -> np.ndarray | None:
+    """(n_joints, n_units) downward support settlements, or None when there are none."""
+    if not settles:
+        return None
+    out = np.zeros((n_joints, n_units))
+    for u, joint, delta in settles:
+        out[joint, u] += delta
+    return out
 
 
 def _intensity(load: Load, beam: Beam, span: int, x: float, upper: bool = False) -> float:

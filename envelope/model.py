@@ -24,7 +24,7 @@ from envelope.units import UnitSystem
 # choices: the case-file readers derive what they accept (and list in messages,
 # in this order) from these types.
 SupportKind = Literal["pinned", "fixed", "free", "spring"]
-LoadType = Literal["uniform", "linear", "point", "moment", "self_weight"]
+LoadType = Literal["uniform", "linear", "point", "moment", "self_weight", "settlement"]
 CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind"]
 #: EN 1990 Table A1.1 categories of imposed load (psi factors).
 Category = Literal["A", "B", "C", "D", "E", "F", "G", "H"]
@@ -157,7 +157,9 @@ class Load:
 
     ``uniform`` and ``linear`` use ``start``, ``end``, ``w_start``, ``w_end``;
     ``point`` uses ``P`` at ``at``; ``moment`` uses ``M`` at ``at``;
-    ``self_weight`` uses ``start`` and ``end`` and the span's sections.
+    ``self_weight`` uses ``start`` and ``end`` and the span's sections;
+    ``settlement`` moves the support of joint ``support`` (0-based) down by ``delta``
+    (its ``span`` is a span beside that joint).
     ``key`` is where the item came from in the case file, e.g. ``loads[3]``.
     """
 
@@ -172,6 +174,8 @@ class Load:
     M: float = 0.0
     at: float = 0.0
     key: str = ""
+    support: int = -1
+    delta: float = 0.0
 
 
 @dataclass(frozen=True, slots=True)

@@ -178,6 +178,19 @@ def fixed_end_terms(mesh: Mesh, units: UnitCases) -> tuple[np.ndarray, ...]:
                  for t in terms)
 
 
+def _settlements(mesh: Mesh, units: UnitCases, rigid: np.ndarray,
+                 spring: np.ndarray) -> tuple[np.ndarray | None, np.ndarray]:
+    """(n_dof, n_units) prescribed displacements of rigid supports and base displacements
+    of springs (upward, as the solver's degrees of freedom), from the unit cases'
+    downward settlements; (None, zeros) without settlement."""
+    n_dof = 2 * mesh.n_nodes
+    if units.settlement is None:
+        return None, np.zeros((1, 1))
+    moved = np.zeros((n_dof, units.n_units))
+    moved[2 * mesh.joint_node] = -units.settlement
+    return np.where(rigid[:, None], moved, 0.0), np.where(spring[:, None] > 0.0, moved, 0.0)
+
+
 def _restraints(mesh: Mesh, supports: tuple[Support, ...]) -> tuple[np.ndarray, np.ndarray]:
     """Per degree of freedom: rigid mask and finite spring stiffness."""
     n_dof = 2 * mesh.n_nodes
@@ -230,7 +243,21 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
         k = element_stiffness(mesh.length[released], mesh.EI[released])
         fF[released] -= k[:, :, 3, None] / k[:, 3, 3, None, None] * fF[released][:, 3:4, :]
 
+    def gather(x: np.ndarray) -> np.ndarray:
+        return x[base[:, None] + np.arange(4)]  # (n_e, 4, n_u)
+
+    def own(de: np.ndarray) -> np.ndarray:
+        """The element's own end rotations: at a hinge, the one that makes the end moment
+        of the deformation zero (the condensed fixed-end forces carry none)."""
+        return de if released is None else free_end_rotation(mesh, released, de)
+
+    # support settlement: a rigid support's displacement is prescribed (dp), a spring's
+    # base moves (base); both enter as loads on the free degrees of freedom
+    dp, spring_base = _settlements(mesh, units, rigid, spring)
     F = _node_sums(-fF, n_dof)
+    if dp is not None:
+        F -= _node_sums(element_end_forces(mesh.length, mesh.EI, own(gather(dp))), n_dof)
+        F += spring[:, None] * spring_base
     F[rigid] = 0.0
 
     try:
@@ -243,26 +270,22 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     pivots = chol[3]
     condition = float((pivots.max() / pivots.min()) ** 2)  # a lower bound, cheap
     d[rigid] = 0.0
+    if dp is not None:
+        d += dp
 
     # Iterative refinement with the same factor, the solution kept as d + dd: the end
     # forces of d (fixed after the first solve) are computed once to twice the working
     # precision, those of the small correction dd in plain float64, so the residual
     # stays accurate where a very short, stiff element would otherwise leave only the
     # last digits of its shear (the chord of two nearly equal deflections over l^3).
-    def gather(x: np.ndarray) -> np.ndarray:
-        return x[base[:, None] + np.arange(4)]  # (n_e, 4, n_u)
-
-    def own(de: np.ndarray) -> np.ndarray:
-        """The element's own end rotations: at a hinge, the one that makes the end moment
-        of the deformation zero (the condensed fixed-end forces carry none)."""
-        return de if released is None else free_end_rotation(mesh, released, de)
-
     f_d = element_end_forces_exact(mesh.length, mesh.EI, own(gather(d))) + fF
     dd = np.zeros_like(d)
     f = f_d
     node_f = _node_sums(f, n_dof)
     for _ in range(config.REFINE_STEPS):
         r = -(node_f + spring[:, None] * d + spring[:, None] * dd)
+        if dp is not None:
+            r += spring[:, None] * spring_base
         r[rigid] = 0.0
         if not np.any(np.abs(r) > 0.0):
             break
