@@ -38,6 +38,8 @@ COMMANDS: dict[str, tuple[str, str]] = {
             "Write a commented template case file (or beam schedule)."),
     "schema": ("envelope.report.commands:schema",
                "Write the JSON Schema of the case file."),
+    "influence": ("envelope.commands.influence:influence",
+                  "Write the influence lines at one point of a beam (table and figure)."),
 }
 
 

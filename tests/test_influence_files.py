@@ -38,3 +38,20 @@ def test_table_and_figure_of_the_demo_beam(tmp_path: Path) -> None:
     r2 = table.column("reaction_2").to_numpy()
     on_support = np.isclose(x, float(beam.joint_x[1]), rtol=0, atol=1e-12)
     assert r2[on_support] == pytest.approx(1.0, abs=1e-9)
+
+
+def test_influence_command_writes_table_and_figure(tmp_path: Path) -> None:
+    from click.testing import CliRunner
+
+    from envelope.cli import main
+
+    case = str(REPO / "cases" / "office-4span-si.toml")
+    runner = CliRunner()
+    done = runner.invoke(main, ["influence", case, "--at", "10.2 m", "-o", str(tmp_path)])
+    assert done.exit_code == 0, done.output
+    folder = tmp_path / "office-4span-si"
+    assert sorted(p.suffix for p in folder.iterdir()) == [".parquet", ".png"]
+    bad = runner.invoke(main, ["influence", case, "--at", "99", "-o", str(tmp_path)])
+    assert bad.exit_code == 2 and "outside the beam" in bad.output
+    bad_span = runner.invoke(main, ["influence", case, "--span", "9", "--at", "1"])
+    assert bad_span.exit_code == 2 and "span 9" in bad_span.output
