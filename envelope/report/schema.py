@@ -108,6 +108,16 @@ def schema() -> dict[str, Any]:
         "section": {"type": "object", "properties": {
             k: ({"type": "string"} if k == "name" else _number(k, design=True))
             for k in cf.DESIGN_SECTION_KEYS}},
+        "bracing": _object(cf.BRACING_KEYS, {k: {"anyOf": [
+            {"enum": list(cf.BRACING_WORDS)},
+            {"type": "array", "description": "brace positions, one list per span",
+             "items": {"type": "array", "items": {"type": ["number", "string"]}}}]}
+            for k in cf.BRACING_KEYS}),
+        "vibration": _object(cf.VIBRATION_KEYS, {
+            k: ({"type": ["number", "string"]} if k in ("spacing", "effective_width")
+                else {"type": "number", "minimum": 0}) for k in cf.VIBRATION_KEYS},
+            ("live", "spacing")),
+        "camber_fraction": {"type": "number", "exclusiveMinimum": 0, "maximum": 1},
         "deflection_limits": _object(cf.DEFLECTION_LIMIT_KEYS,
                                      {k: {"type": "number", "exclusiveMinimum": 0}
                                       for k in cf.DEFLECTION_LIMIT_KEYS}),

@@ -8,7 +8,8 @@ in^2/in); :func:`size_with_units` also names the unit of every column.  Rows: fo
 
 - concrete, ACI 318-19: :mod:`envelope.sizing.concrete_aci`;
 - concrete, EN 1992-1-1: :mod:`envelope.sizing.concrete_en`;
-- steel, AISC 360-22: :mod:`envelope.sizing.steel_aisc`;
+- steel, AISC 360-22: :mod:`envelope.sizing.steel` (checks in
+  :mod:`envelope.sizing.steel_checks`);
 - deflection limits for every material: :mod:`envelope.sizing.deflection` (on span rows);
 - hogging and sagging extents per span: :func:`extents` (on span rows).
 
