@@ -40,12 +40,13 @@ def _tool(name: str, package: str) -> str:
 
 @pytest.fixture(scope="module")
 def batch_out(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    """The example cases and the demo, run as a batch with --report."""
+    """The example cases and the demo, run as a batch with --report (on two worker
+    processes, so that the reports are written by the process pool too)."""
     out = tmp_path_factory.mktemp("batch")
     demo = out.parent / "demo.toml"
     demo.write_bytes((ROOT / "envelope" / "data" / "demo.toml").read_bytes())
     run = CliRunner().invoke(main, ["batch", str(ROOT / "cases"), str(demo), "-o",
-                                    str(out), "--report", "--workers", "1"])
+                                    str(out), "--report", "--workers", "2"])
     assert run.exit_code == 0, run.output
     return out
 

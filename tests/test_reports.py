@@ -191,6 +191,37 @@ def test_csv_export_writes_a_file_per_table_with_units_in_the_heading(
     assert CAUTION in (tmp_path / "csv" / "CAUTION.txt").read_text()
 
 
+def test_a_batch_exports_its_combined_tables_with_each_systems_unit(tmp_path: Path) -> None:
+    from python_calamine import CalamineWorkbook
+
+    paths = [str(CASES / "office-4span-si.toml"), str(CASES / "platform-us.toml")]
+    out = tmp_path / "out"
+    assert _invoke("batch", *paths, "-o", str(out), "--workers", "1").exit_code == 0
+    assert _invoke("export", str(out)).exit_code == 0
+    book = CalamineWorkbook.from_path(str(out / "results.xlsx"))
+    assert book.sheet_names == ["about", "design", "sizing"]
+    head = book.get_sheet_by_name("design").to_python()[0]
+    assert "moment_pos [SI: kN*m; US: kip*ft]" in head and "system" in head
+
+
+def test_a_rerun_without_report_removes_the_report_of_earlier_results(
+        tmp_path: Path) -> None:
+    case = str(CASES / "mezzanine-us.toml")
+    assert _invoke("run", case, "-o", str(tmp_path), "--no-plots", "-q", "--report"
+                   ).exit_code == 0
+    folder = next(p for p in tmp_path.iterdir() if p.is_dir())
+    assert (folder / "report.html").is_file() and (folder / "report.pdf").is_file()
+    assert _invoke("run", case, "-o", str(tmp_path), "--no-plots", "-q").exit_code == 0
+    assert not (folder / "report.html").exists() and not (folder / "report.pdf").exists()
+
+
+def test_report_of_a_folder_that_is_not_a_result_is_one_line_and_status_2(
+        tmp_path: Path) -> None:
+    run = _invoke("report", str(tmp_path))
+    assert run.exit_code == 2
+    assert "not a result folder" in run.output and "Traceback" not in run.output
+
+
 # -- beam schedules ----------------------------------------------------------------------------
 
 HEAD = ("id", "title", "units", "spans [m]", "supports", "E", "I", "tributary_width",

@@ -55,9 +55,10 @@ def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str 
                             units=units,
                             failures=failures)
         if report:
+            from envelope.batch.local import default_workers
             from envelope.report.index import report_batch
 
-            report_batch(out)
+            report_batch(out, workers=workers or (1 if scheduler else default_workers()))
     except DuplicateIdError as exc:
         for line in exc.lines:
             click.echo(f"error: {line}", err=True)

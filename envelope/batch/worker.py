@@ -18,7 +18,8 @@ from envelope.files import write_atomic
 
 def _is_result(name: str) -> bool:
     """A file name that a beam run writes (removed when a rerun no longer writes it)."""
-    return not name.startswith(".") and (name.endswith(".parquet") or name == "envelope.png")
+    return not name.startswith(".") and (name.endswith(".parquet") or name in
+                                         ("envelope.png", "report.html", "report.pdf"))
 
 
 def _snapshot(folder: Path) -> dict[str, tuple[int, int, int]]:

@@ -158,7 +158,10 @@ def collect(folder: str | Path) -> ReportData:
     data.echo = echo.echo(document, data.system) if document else []
     data.checks = checks.checks(tables.get("sizing"), document, code)
     data.status, data.max_utilisation = checks.overall(data.checks)
-    data.sketch_svg = sketch.sketch(document, folder) if document else ""
+    try:  # an illustration: a load the sketch cannot draw never stops the report
+        data.sketch_svg = sketch.sketch(document, folder) if document else ""
+    except Exception:
+        data.sketch_svg = ""
     data.figure_svg = figure_svg(folder)
     return data
 

@@ -155,20 +155,39 @@ def write_index(out: str | Path, pdf: bool = True) -> list[Path]:
     return written
 
 
-def report_batch(out: str | Path, beam_list: list[str] | None = None,
-                 pdf: bool = True) -> list[Path]:
-    """The report of every beam of the batch whose report is missing or older than its
-    results, then the building view; returns the paths written."""
+def _stale(folder: Path, pdf: bool) -> bool:
+    """Is the report of ``folder`` missing, or older than any of its result files?"""
+    page = folder / "report.html"
+    newest = max((p.stat().st_mtime_ns for p in folder.glob("*.parquet")), default=0)
+    return not (page.is_file() and page.stat().st_mtime_ns >= newest
+                and (not pdf or (folder / "report.pdf").is_file()))
+
+
+def _reports(folders: list[str], pdf: bool) -> list[str]:
+    """Write the reports of ``folders`` (run in a worker process)."""
     from envelope.report.build import write_report
 
+    return [str(p) for folder in folders for p in write_report(folder, pdf=pdf)]
+
+
+def report_batch(out: str | Path, beam_list: list[str] | None = None,
+                 pdf: bool = True, workers: int = 1) -> list[Path]:
+    """The report of every beam of the batch whose report is missing or older than its
+    results (on ``workers`` processes), then the building view; returns the paths."""
     out = Path(out)
-    written: list[Path] = []
-    for beam_id in beam_list if beam_list is not None else beam_ids(out):
-        folder = out / beam_id
-        page = folder / "report.html"
-        newest = max((p.stat().st_mtime_ns for p in folder.glob("*.parquet")), default=0)
-        if page.is_file() and page.stat().st_mtime_ns >= newest and \
-                (not pdf or (folder / "report.pdf").is_file()):
-            continue
-        written += write_report(folder, pdf=pdf)
-    return written + write_index(out, pdf=pdf)
+    todo = [str(out / b) for b in (beam_list if beam_list is not None else beam_ids(out))
+            if _stale(out / b, pdf)]
+    written: list[str] = []
+    if workers > 1 and len(todo) > 2:
+        import multiprocessing
+        from concurrent.futures import ProcessPoolExecutor
+
+        size = max(1, min(16, len(todo) // (4 * workers)))
+        chunks = [todo[i:i + size] for i in range(0, len(todo), size)]
+        context = multiprocessing.get_context("spawn")  # no threads of this process
+        with ProcessPoolExecutor(max_workers=workers, mp_context=context) as pool:
+            for paths in pool.map(_reports, chunks, [pdf] * len(chunks)):
+                written += paths
+    else:
+        written = _reports(todo, pdf)
+    return [Path(p) for p in written] + write_index(out, pdf=pdf)
