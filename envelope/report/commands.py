@@ -1,6 +1,6 @@
 """The command-line commands of the presentation layer: ``envelope report``,
-``envelope export``, ``envelope new`` and ``envelope schema``.  Each is registered on
-the main group with one line (see :func:`register`); their libraries load on use."""
+``envelope export``, ``envelope new`` and ``envelope schema``, each one line of the
+command registry (:data:`envelope.cli.COMMANDS`); their libraries load on use."""
 
 from __future__ import annotations
 
@@ -107,9 +107,3 @@ def schema(output: str | None) -> None:
     data = text.encode()
     write_atomic(Path(output), lambda fh: fh.write(data))
     click.echo(f"wrote {output}")
-
-
-def register(group: click.Group) -> None:
-    """Add every command of this module to ``group`` (the ``envelope`` command)."""
-    for command in (report, export, new, schema):
-        group.add_command(command)
