@@ -4,7 +4,7 @@ Euler-Bernoulli elements, two degrees of freedom per node (deflection up,
 rotation counter-clockwise).  All element matrices are assembled in one
 vectorised step into upper banded storage (three super-diagonals), rigid
 restraints become identity rows, springs add to the diagonal, the matrix is
-factorised once by banded Cholesky and every unit case is a column of one
+factorised once by banded Cholesky (:mod:`envelope.banded`) and every unit case is a column of one
 multi-right-hand-side solve.  Each solve is checked: the residual at every free
 degree of freedom, and statics (vertical forces and moments about the left end)
 against :data:`envelope.config.STATICS_RTOL`.  A failed check raises
@@ -17,9 +17,9 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import LinAlgError, cho_solve_banded, cholesky_banded
 
 from envelope import config
+from envelope.banded import NotPositiveDefinite, cholesky_upper, solve_upper
 from envelope.errors import StaticsError, UnstableBeamError
 from envelope.loading import UnitCases
 from envelope.loadterms import load_terms
@@ -208,7 +208,7 @@ def _restraints(mesh: Mesh, supports: tuple[Support, ...]) -> tuple[np.ndarray, 
 def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
           source: str = "") -> Solution:
     """Assemble, factorise once, solve every unit case, recover element start states."""
-    n_e, n_u = mesh.n_elements, units.n_units
+    n_e = mesh.n_elements
     n_dof = 2 * mesh.n_nodes
     ke = element_stiffness(mesh.length, mesh.EI)
     released = mesh.released
@@ -261,12 +261,12 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     F[rigid] = 0.0
 
     try:
-        chol = cholesky_banded(ab, lower=False, check_finite=False)
-    except LinAlgError:
+        chol = cholesky_upper(ab)
+    except NotPositiveDefinite:
         raise UnstableBeamError(source, "supports",
                                 "unstable beam: the stiffness matrix is singular "
                                 "(a part of the beam can move freely)") from None
-    d = cho_solve_banded((chol, False), F, check_finite=False) if n_u else F
+    d = solve_upper(chol, F)
     pivots = chol[3]
     condition = float((pivots.max() / pivots.min()) ** 2)  # a lower bound, cheap
     d[rigid] = 0.0
@@ -289,7 +289,7 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
         r[rigid] = 0.0
         if not np.any(np.abs(r) > 0.0):
             break
-        dd += cho_solve_banded((chol, False), r, check_finite=False)
+        dd += solve_upper(chol, r)
         dd[rigid] = 0.0
         f = f_d + element_end_forces(mesh.length, mesh.EI, own(gather(dd)))
         node_f = _node_sums(f, n_dof)

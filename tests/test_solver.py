@@ -1,9 +1,9 @@
 """The solver's own arithmetic: element end forces carried to twice the working
 precision against exact rational arithmetic (Python's ``fractions``), and the plain
 float64 formula against the same, so that the more accurate path is shown to be needed
-and correct.  The algebra is the Euler-Bernoulli element's slope-deflection equations
-(common practice): M1 = EI/l (4 phi1 + 2 phi2), M2 = EI/l (2 phi1 + 4 phi2),
-V = (M1 + M2)/l, phi = theta - (v2 - v1)/l."""
+and correct; the banded Cholesky against LAPACK's.  The algebra is the Euler-Bernoulli
+element's slope-deflection equations (common practice): M1 = EI/l (4 phi1 + 2 phi2),
+M2 = EI/l (2 phi1 + 4 phi2), V = (M1 + M2)/l, phi = theta - (v2 - v1)/l."""
 
 from __future__ import annotations
 
@@ -12,6 +12,7 @@ from fractions import Fraction
 import numpy as np
 import pytest
 
+from envelope.banded import NotPositiveDefinite, cholesky_upper, solve_upper
 from envelope.solver import element_end_forces, element_end_forces_exact
 
 
@@ -72,3 +73,44 @@ def test_exact_and_plain_end_forces_agree_on_ordinary_elements() -> None:
     a = element_end_forces_exact(length, EI, de)
     b = element_end_forces(length, EI, de)
     np.testing.assert_allclose(a, b, rtol=0, atol=1e-12 * np.abs(b).max())
+
+
+def _random_band(rng: np.random.Generator, n: int, u: int = 3) -> np.ndarray:
+    """An SPD banded matrix in upper band storage (diagonally dominant, random)."""
+    ab = rng.uniform(-1.0, 1.0, (u + 1, n))
+    ab[u] = 2.0 * u + rng.uniform(0.5, 3.0, n)
+    for r in range(u):  # entries above the top row of the matrix are unused
+        ab[r, :u - r] = 0.0
+    return ab
+
+
+@pytest.mark.parametrize("n, m", [(1, 1), (4, 3), (9, 0), (57, 40), (400, 7)])
+def test_banded_cholesky_equals_scipy(n: int, m: int) -> None:
+    """The engine's banded Cholesky against LAPACK's (scipy.linalg.cholesky_banded and
+    cho_solve_banded), factor and solve, to round-off."""
+    scipy_linalg = pytest.importorskip("scipy.linalg")
+    rng = np.random.default_rng(n * 100 + m)
+    ab = _random_band(rng, n)
+    b = rng.standard_normal((n, m))
+    want_c = scipy_linalg.cholesky_banded(ab, lower=False)
+    got_c = cholesky_upper(ab)
+    np.testing.assert_allclose(got_c, want_c, rtol=0, atol=1e-14 * np.abs(want_c).max())
+    want = scipy_linalg.cho_solve_banded((want_c, False), b)
+    got = solve_upper(got_c, b)
+    assert got.shape == want.shape
+    if m:
+        np.testing.assert_allclose(got, want, rtol=0, atol=1e-13 * np.abs(want).max())
+    v = solve_upper(got_c, b[:, 0]) if m else None
+    if v is not None:
+        np.testing.assert_allclose(v, got[:, 0], rtol=0, atol=1e-15 * np.abs(want).max())
+
+
+def test_banded_cholesky_refuses_a_singular_matrix() -> None:
+    """Two free bodies joined by nothing: a zero pivot, reported (as LAPACK does)."""
+    ab = np.zeros((4, 4))
+    ab[3] = [1.0, 1.0, 0.0, 1.0]
+    with pytest.raises(NotPositiveDefinite):
+        cholesky_upper(ab)
+    ab[3, 2] = -1.0
+    with pytest.raises(NotPositiveDefinite):
+        cholesky_upper(ab)
