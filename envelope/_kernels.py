@@ -22,19 +22,54 @@ from numba import njit, prange
 _GX, _GW = np.polynomial.legendre.leggauss(3)
 
 
+#: Rows of the packed point array of :func:`particular_terms`.
+POINT_S, POINT_EI, POINT_RIGHT = 0, 1, 2
+#: Rows of the packed item arrays: floats (a, b, wa, wb, p) and integers (unit, kind).
+ITEM_A, ITEM_B, ITEM_WA, ITEM_WB, ITEM_P = 0, 1, 2, 3, 4
+ITEM_UNIT, ITEM_KIND = 0, 1
+
+
+def pack_points(s: np.ndarray, ei: np.ndarray, right: np.ndarray) -> np.ndarray:
+    """(3, n_points) float64: local position s, EI there, 1.0 where the right-hand
+    value is asked (a point load exactly at s is then included)."""
+    return np.stack([s, ei, right.astype(np.float64)])
+
+
+def pack_items(unit: np.ndarray, kind: np.ndarray, a: np.ndarray, b: np.ndarray,
+               wa: np.ndarray, wb: np.ndarray, p: np.ndarray
+               ) -> tuple[np.ndarray, np.ndarray]:
+    """(2, n_items) int64 (unit case, kind: 0 distributed, 1 point force, 2 moment)
+    and (5, n_items) float64 (a, b, wa, wb, p), items sorted by element."""
+    return (np.stack([unit, kind]).astype(np.int64),
+            np.stack([a, b, wa, wb, p]).astype(np.float64))
+
+
 @njit(cache=True, parallel=True, fastmath=False)
-def particular_terms(pt_elem: np.ndarray, s: np.ndarray, right: np.ndarray,
-                     first_item: np.ndarray, item_unit: np.ndarray, item_kind: np.ndarray,
-                     item_a: np.ndarray, item_b: np.ndarray, item_wa: np.ndarray,
-                     item_wb: np.ndarray, item_p: np.ndarray, point_ei: np.ndarray,
-                     gx: np.ndarray, gw: np.ndarray, out: np.ndarray) -> None:  # pragma: no cover
+def particular_terms(point_elem: np.ndarray, point: np.ndarray, first_item: np.ndarray,
+                     item_int: np.ndarray, item: np.ndarray, gauss: np.ndarray,
+                     out: np.ndarray) -> None:  # pragma: no cover
     """Subtract the load terms from ``out`` (4, n_points, n_units): shear -= Q,
     moment -= m, upward slope -= m1/EI, upward deflection -= m2/EI.
 
-    Items are sorted by element; ``first_item[e]:first_item[e + 1]`` are element e's."""
+    ``point_elem`` (n_points) is each point's element, ``point`` its packed floats
+    (:func:`pack_points`), ``item_int`` and ``item`` the packed load items
+    (:func:`pack_items`), ``first_item[e]:first_item[e + 1]`` element e's items,
+    ``gauss`` (2, 3) the Gauss-Legendre abscissae and weights."""
+    s = point[POINT_S]
+    point_ei = point[POINT_EI]
+    right = point[POINT_RIGHT]
+    item_unit = item_int[ITEM_UNIT]
+    item_kind = item_int[ITEM_KIND]
+    item_a = item[ITEM_A]
+    item_b = item[ITEM_B]
+    item_wa = item[ITEM_WA]
+    item_wb = item[ITEM_WB]
+    item_p = item[ITEM_P]
+    gx = gauss[0]
+    gw = gauss[1]
     n_points = s.size
     for p in prange(n_points):
-        e = pt_elem[p]
+        e = point_elem[p]
         sp = s[p]
         ei = point_ei[p]
         for it in range(first_item[e], first_item[e + 1]):
@@ -61,7 +96,7 @@ def particular_terms(pt_elem: np.ndarray, s: np.ndarray, right: np.ndarray,
                     q3 += wq * r * r * r / 6.0
             else:
                 d = sp - a
-                on = d > 0.0 or (d == 0.0 and right[p])
+                on = d > 0.0 or (d == 0.0 and right[p] != 0.0)
                 if not on:
                     continue
                 pv = item_p[it]
@@ -81,5 +116,6 @@ def particular_terms(pt_elem: np.ndarray, s: np.ndarray, right: np.ndarray,
             out[3, p, u] -= q3 / ei
 
 
-def gauss_rule() -> tuple[np.ndarray, np.ndarray]:
-    return _GX.copy(), _GW.copy()
+def gauss_rule() -> np.ndarray:
+    """(2, 3): the three-point Gauss-Legendre abscissae and weights on [-1, 1]."""
+    return np.stack([_GX, _GW])

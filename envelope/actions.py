@@ -15,19 +15,16 @@ the support width from the centreline; the centreline where no width is given).
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 from envelope import config
 from envelope.analysis import QUANTITY_SET, Solved, envelope_at
 from envelope.enveloper import Extremes, governing_coefficients
 from envelope.recovery import Points, evaluate_some, make_points
+from envelope.search import golden_max, illinois_root
 
 #: The derivative of each quantity along the beam: dM/dx = V, d(deflection)/dx = rotation.
 _SLOPE = {"moment": "shear", "deflection": "rotation"}
-
-_INV_PHI = (math.sqrt(5.0) - 1.0) / 2.0
 
 
 def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
@@ -74,7 +71,7 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
         # a vertex at the station itself (under a point load, at a span end): the
         # envelope is lower on both sides, near and far
         rest = np.flatnonzero(~done)
-        steps = np.array([1e-9, 1e-6, 1e-3, 1e-1]) * length[rest, None]
+        steps = np.array(config.VERTEX_PROBES) * length[rest, None]
         probes = np.clip(np.c_[x_station[rest, None] - steps, x_station[rest, None] + steps],
                          a[rest, None], b[rest, None])
         inside = _envelope_max(solved, np.repeat(span[rest], probes.shape[1]),
@@ -117,21 +114,7 @@ def _golden(solved: Solved, span: np.ndarray, length: np.ndarray, a: np.ndarray,
         owners = span if x.size == span.size else np.r_[span, span]
         return _envelope_max(solved, owners, x, quantity, case_set)
 
-    c = b - _INV_PHI * (b - a)
-    d = a + _INV_PHI * (b - a)
-    both = f(np.r_[c, d])
-    fc, fd = both[: c.size], both[c.size:]
-    for _ in range(200):
-        if np.all(b - a <= config.GOLDEN_XTOL * length):
-            break
-        left = fc >= fd  # the maximum is in [a, d]: d becomes the new c
-        b = np.where(left, d, b)
-        a = np.where(left, a, c)
-        new_x = np.where(left, b - _INV_PHI * (b - a), a + _INV_PHI * (b - a))
-        f_new = f(new_x)
-        c, d = np.where(left, new_x, d), np.where(left, c, new_x)
-        fc, fd = np.where(left, f_new, fd), np.where(left, fc, f_new)
-    return np.where(fc >= fd, c, d), np.maximum(fc, fd)
+    return golden_max(f, a, b, config.GOLDEN_XTOL * length)
 
 
 def _root_of_governing(solved: Solved, span: np.ndarray, length: np.ndarray, x: np.ndarray,
@@ -158,25 +141,12 @@ def _root_of_governing(solved: Solved, span: np.ndarray, length: np.ndarray, x: 
     f_lo = np.einsum("iu,iu->i", ends[: x.size], coef)
     f_hi = np.einsum("iu,iu->i", ends[x.size:], coef)
     ok = (f_lo > 0.0) & (f_hi < 0.0)
-    root = x.copy()
-    if ok.any():
-        last = np.zeros(x.size)
-        tol = 4.0 * np.finfo(float).eps * np.maximum(length, 1.0)
-        for _ in range(60):
-            denom = np.where(ok, f_hi - f_lo, -1.0)
-            c = np.clip(np.where(ok, (lo * f_hi - hi * f_lo) / denom, x), lo, hi)
-            f_c = np.einsum("iu,iu->i", responses(c, (slope_name,))[slope_name], coef)
-            done = np.abs(c - root) <= tol
-            root = np.where(ok, c, x)
-            if np.all(done | ~ok):
-                break
-            move_lo = f_c > 0.0
-            lo, f_lo = np.where(move_lo, c, lo), np.where(move_lo, f_c, f_lo)
-            hi, f_hi = np.where(move_lo, hi, c), np.where(move_lo, f_hi, f_c)
-            # Illinois: halve the stale end's value when the same end moves twice
-            f_hi = np.where(move_lo & (last > 0), 0.5 * f_hi, f_hi)
-            f_lo = np.where(~move_lo & (last < 0), 0.5 * f_lo, f_lo)
-            last = np.where(move_lo, 1.0, -1.0)
+
+    def slope(xs: np.ndarray) -> np.ndarray:
+        return np.einsum("iu,iu->i", responses(xs, (slope_name,))[slope_name], coef)
+
+    tol = config.ROOT_XTOL_EPS * np.finfo(float).eps * np.maximum(length, 1.0)
+    root = illinois_root(slope, lo, hi, f_lo, f_hi, x, ok, tol)
     # a maximum at an end of its bracket (a span end): the case falls away inwards and
     # the envelope is lower at probes inside the bracket (several cases may tie at a
     # support, so the governing one alone does not decide)
@@ -184,14 +154,13 @@ def _root_of_governing(solved: Solved, span: np.ndarray, length: np.ndarray, x: 
     value = _envelope_max(solved, span, root, quantity, case_set)
     if at_end.any():
         ends = np.flatnonzero(at_end)
-        probes = lo[ends, None] + (hi - lo)[ends, None] * np.array([0.01, 0.1, 0.3, 0.6, 0.9,
-                                                                     0.99])
+        probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
         inside = _envelope_max(solved, np.repeat(span[ends], probes.shape[1]),
                                probes.ravel(), quantity, case_set).reshape(probes.shape)
         at_end[ends] = np.all(inside < value[ends, None], axis=1)
     own = np.einsum("iu,iu->i", responses(root, (quantity,))[quantity], coef)
     scale = np.maximum(np.abs(value), np.finfo(float).tiny)
-    governs = value <= own + 1e-12 * scale
+    governs = value <= own + config.GOVERNS_RTOL * scale
     return root, value, (ok | at_end) & governs
 
 

@@ -35,6 +35,30 @@ DESIGN_XTOL = 1e-10
 #: of the span; the root of the governing case's slope then fixes it to round-off.
 GOLDEN_XTOL = 1e-6
 
+#: Most golden-section steps (each keeps 0.618 of the bracket: 200 steps would narrow
+#: any bracket far below round-off, so the width test always ends the search first).
+GOLDEN_MAX_STEPS = 200
+
+#: Most regula-falsi (Illinois) steps for a slope root; it converges superlinearly, in
+#: about ten steps to round-off, so the limit only guards against a pathological case.
+ROOT_MAX_STEPS = 60
+
+#: A slope root is final when a step moves it by at most this many machine epsilons of
+#: the span length (at least of 1 length unit): round-off.
+ROOT_XTOL_EPS = 4.0
+
+#: A design value counts as still governed by the case found at its station when that
+#: case's value there is within this fraction of the envelope (round-off of the sum).
+GOVERNS_RTOL = 1e-12
+
+#: Distances (fractions of the span) either side of a station at which the envelope is
+#: probed to recognise a vertex at the station itself (under a point load, at a span end).
+VERTEX_PROBES = (1e-9, 1e-6, 1e-3, 1e-1)
+
+#: Positions (fractions of the bracket) at which the envelope is probed to confirm a
+#: maximum at an end of its bracket (several cases may tie at a support).
+END_PROBES = (0.01, 0.1, 0.3, 0.6, 0.9, 0.99)
+
 #: Warn when the estimated condition number of the stiffness matrix exceeds this:
 #: with float64 (eps 2.2e-16) about 1e-4 relative accuracy remains at 1e12, and the
 #: residual and statics checks still guard every result.

@@ -206,11 +206,13 @@ def _kernel_terms(mesh: Mesh, units: UnitCases, points: Points, elem: np.ndarray
     from envelope import _kernels  # numba is imported only here
 
     block = np.zeros((4, points.n, units.n_units))
-    gx, gw = _kernels.gauss_rule()
-    _kernels.particular_terms(
-        elem, s, points.right, units.elem_first, units.item_unit, units.item_kind,
-        units.item_a, units.item_b, units.item_wa, units.item_wb, units.item_p,
-        mesh.EI[elem], gx, gw, block)
+    item_int, item = _kernels.pack_items(units.item_unit, units.item_kind, units.item_a,
+                                         units.item_b, units.item_wa, units.item_wb,
+                                         units.item_p)
+    _kernels.particular_terms(elem.astype(np.int64),
+                              _kernels.pack_points(s, mesh.EI[elem], points.right),
+                              units.elem_first.astype(np.int64), item_int, item,
+                              _kernels.gauss_rule(), block)
     for i, name in enumerate(QUANTITIES):
         if name in out:
             out[name] += block[i]

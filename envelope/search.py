@@ -1,0 +1,80 @@
+"""Vectorised one-dimensional searches: many brackets at once, one call of the function
+per step for all of them.
+
+* :func:`golden_max`: golden-section search for the maximum of a function in each
+  bracket (no derivative needed; robust at kinks).
+* :func:`illinois_root`: the root of a function that changes sign over each bracket,
+  by regula falsi with the Illinois modification (superlinear, exact to round-off).
+
+The functions searched take an array of positions, one per bracket (or two per bracket
+for the first golden-section step, ``[c..., d...]``), and return the values there.
+Tolerances and step limits are in :mod:`envelope.config`.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+
+import numpy as np
+
+from envelope import config
+
+#: 1 / golden ratio: each golden-section step keeps this fraction of the bracket.
+INV_PHI = (math.sqrt(5.0) - 1.0) / 2.0
+
+Function = Callable[[np.ndarray], np.ndarray]
+
+
+def golden_max(f: Function, a: np.ndarray, b: np.ndarray, xtol: np.ndarray
+               ) -> tuple[np.ndarray, np.ndarray]:
+    """Position and value of the largest of ``f`` found in each bracket [a, b], searched
+    until every bracket is at most ``xtol`` wide (or
+    :data:`envelope.config.GOLDEN_MAX_STEPS` steps)."""
+    a = np.asarray(a, dtype=float)
+    b = np.asarray(b, dtype=float)
+    c = b - INV_PHI * (b - a)
+    d = a + INV_PHI * (b - a)
+    both = f(np.r_[c, d])
+    fc, fd = both[: c.size], both[c.size:]
+    for _ in range(config.GOLDEN_MAX_STEPS):
+        if np.all(b - a <= xtol):
+            break
+        left = fc >= fd  # the maximum is in [a, d]: d becomes the new c
+        b = np.where(left, d, b)
+        a = np.where(left, a, c)
+        new_x = np.where(left, b - INV_PHI * (b - a), a + INV_PHI * (b - a))
+        f_new = f(new_x)
+        c, d = np.where(left, new_x, d), np.where(left, c, new_x)
+        fc, fd = np.where(left, f_new, fd), np.where(left, fc, f_new)
+    return np.where(fc >= fd, c, d), np.maximum(fc, fd)
+
+
+def illinois_root(f: Function, lo: np.ndarray, hi: np.ndarray, f_lo: np.ndarray,
+                  f_hi: np.ndarray, start: np.ndarray, active: np.ndarray,
+                  xtol: np.ndarray) -> np.ndarray:
+    """The root of ``f`` in each active bracket [lo, hi] where ``f_lo > 0 > f_hi``
+    (the values at its ends), to ``xtol``; ``start`` where a bracket is not active.
+
+    ``f`` is called with one position per bracket (inactive ones at ``start``), at most
+    :data:`envelope.config.ROOT_MAX_STEPS` times."""
+    root = np.array(start, dtype=float)
+    if not np.any(active):
+        return root
+    last = np.zeros(root.size)
+    for _ in range(config.ROOT_MAX_STEPS):
+        denom = np.where(active, f_hi - f_lo, -1.0)
+        c = np.clip(np.where(active, (lo * f_hi - hi * f_lo) / denom, start), lo, hi)
+        f_c = f(c)
+        done = np.abs(c - root) <= xtol
+        root = np.where(active, c, start)
+        if np.all(done | ~active):
+            break
+        move_lo = f_c > 0.0
+        lo, f_lo = np.where(move_lo, c, lo), np.where(move_lo, f_c, f_lo)
+        hi, f_hi = np.where(move_lo, hi, c), np.where(move_lo, f_hi, f_c)
+        # Illinois: halve the stale end's value when the same end moves twice
+        f_hi = np.where(move_lo & (last > 0), 0.5 * f_hi, f_hi)
+        f_lo = np.where(~move_lo & (last < 0), 0.5 * f_lo, f_lo)
+        last = np.where(move_lo, 1.0, -1.0)
+    return root

@@ -1,0 +1,56 @@
+"""The vectorised searches of envelope.search on functions with known answers (common
+practice): the maximum of a parabola and of a kinked function, the roots of cosine
+(pi/2 and 3 pi/2) and of a cubic; several brackets at once, each with its own answer."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from envelope.search import golden_max, illinois_root
+
+
+def test_golden_max_finds_each_brackets_maximum() -> None:
+    peak = np.array([0.3, 1.7, -2.0, 5.0])
+    a, b = peak - np.array([1.0, 0.2, 3.0, 0.5]), peak + np.array([0.5, 2.0, 0.1, 0.5])
+    calls = []
+
+    def f(x: np.ndarray) -> np.ndarray:
+        calls.append(x.size)
+        p = np.resize(peak, x.size)
+        return -np.abs(x - p) ** np.resize([2.0, 2.0, 1.0, 1.0], x.size)  # smooth, kinked
+
+    x, v = golden_max(f, a, b, np.full(4, 1e-9))
+    np.testing.assert_allclose(x, peak, rtol=0, atol=1e-8)
+    assert np.all(v <= 0.0) and np.all(v >= -1e-8)
+    assert calls[0] == 8 and set(calls[1:]) == {4}  # one call per step for all brackets
+
+
+def test_golden_max_at_an_end_of_the_bracket() -> None:
+    x, v = golden_max(lambda x: x, np.array([0.0]), np.array([2.0]), np.array([1e-10]))
+    assert abs(x[0] - 2.0) < 1e-9 and abs(v[0] - 2.0) < 1e-9
+
+
+def test_illinois_root_to_round_off() -> None:
+    lo, hi = np.array([0.5, 4.0, 0.0]), np.array([2.5, 5.0, 3.0])
+
+    def f(x: np.ndarray) -> np.ndarray:
+        return np.array([math.cos(x[0]), -math.cos(x[1]), 2.0 - x[2] ** 3])
+
+    active = np.array([True, True, True])
+    root = illinois_root(f, lo, hi, f(lo), f(hi), (lo + hi) / 2, active, np.full(3, 1e-15))
+    want = [math.pi / 2, 3 * math.pi / 2, 2.0 ** (1 / 3)]
+    np.testing.assert_allclose(root, want, rtol=4e-16, atol=0)
+
+
+def test_illinois_root_leaves_inactive_brackets_at_their_start() -> None:
+    lo, hi = np.array([0.5, 0.0]), np.array([2.5, 1.0])
+    start = np.array([1.0, 0.25])
+
+    def f(x: np.ndarray) -> np.ndarray:
+        return np.cos(x)  # no sign change on [0, 1]
+
+    root = illinois_root(f, lo, hi, f(lo), f(hi), start, np.array([True, False]),
+                         np.full(2, 1e-15))
+    assert abs(root[0] - math.pi / 2) < 1e-15 and root[1] == 0.25
