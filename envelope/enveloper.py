@@ -313,11 +313,14 @@ def _labels(cs: CaseSet, combo: np.ndarray, units: np.ndarray,
     present = [{c: {int(cs.unit_cell[u]) for u in np.flatnonzero(cs.patterned[:, k] != 0.0)
                     if cs.unit_case_name[u] == c} for c in pat_cases[k]}
                for k in range(len(cs.combinations))]
+    case_names = list(dict.fromkeys(cs.unit_case_name))
+    unit_case = np.array([case_names.index(n) for n in cs.unit_case_name], dtype=np.int64)
     for i, row in enumerate(first):
         k = int(combo[row])
         by_case: dict[str, list[bool]] = {c: [False] * n_g for c in pat_cases[k]}
-        for u in np.flatnonzero(units[row]):
-            by_case[cs.unit_case_name[u]][int(cs.unit_cell[u])] = True
+        for name, cells_of in _cells_by_case(case_names, unit_case, cs.unit_cell,
+                                             np.flatnonzero(units[row]), n_g):
+            by_case[name] = cells_of
         if cells is not None:
             # a cell loaded with none of its own patterned units carries a patterned case
             # that has no load there (so its dead load takes the full factor)
@@ -328,6 +331,20 @@ def _labels(cs: CaseSet, combo: np.ndarray, units: np.ndarray,
                         by_case[empty[0]][int(g)] = True
         text[i] = _label_text(cs.cell_labels, by_case)
     return text[inverse.ravel()]
+
+
+def _cells_by_case(case_names: list[str], unit_case: np.ndarray, unit_cell: np.ndarray,
+                   units: np.ndarray, n_g: int) -> list[tuple[str, list[bool]]]:
+    """The cells of the unit cases ``units`` as a loaded-cell mask per case name (only
+    the cases among them); ``unit_case`` indexes ``case_names`` per unit.  One array
+    operation instead of a step per unit."""
+    if not units.size:
+        return []
+    masks = np.zeros((len(case_names), n_g), dtype=bool)
+    masks[unit_case[units], unit_cell[units]] = True
+    present = np.zeros(len(case_names), dtype=bool)
+    present[unit_case[units]] = True
+    return [(case_names[i], masks[i].tolist()) for i in np.flatnonzero(present).tolist()]
 
 
 def _label_text(cell_labels: tuple[str, ...], by_case: dict[str, list[bool]]) -> str:

@@ -7,6 +7,8 @@ cells at once by superposition (see :mod:`envelope.enveloper`).
 
 from __future__ import annotations
 
+from itertools import compress
+
 from envelope.model import Patterning
 
 
@@ -44,5 +46,7 @@ def loaded_label(cells: list[str] | tuple[str, ...], loaded: list[bool], every: 
     """The contract's ``_loaded`` text: ``"all"``, ``"1 3 5"``, ``"2.1 2.3"`` or ``"none"``."""
     if every:
         return "all"
-    chosen = [c for c, on in zip(cells, loaded, strict=True) if on]
-    return " ".join(chosen) if chosen else "none"
+    if len(cells) != len(loaded):
+        raise ValueError(f"{len(loaded)} flags for {len(cells)} cells")
+    text = " ".join(compress(cells, loaded))
+    return text or "none"

@@ -53,24 +53,35 @@ def int_column(values: np.ndarray | list[int]) -> pa.Array:
 
 
 def string_column(values: np.ndarray | list[str], null: np.ndarray | None = None) -> pa.Array:
-    """UTF-8 string column from Python strings; ``null`` marks missing entries."""
-    encoded = [str(v).encode() for v in values]
-    offsets = np.zeros(len(encoded) + 1, dtype=np.int64)
-    np.cumsum([len(e) for e in encoded], out=offsets[1:])
-    data = b"".join(encoded)
-    bufs = [None, pa.py_buffer(offsets), pa.py_buffer(data)]
+    """UTF-8 string column from Python strings; ``null`` marks missing entries.
+
+    Each distinct string is encoded once (a ``_loaded`` text of a long beam is several
+    kilobytes and repeats over many rows; a repeated object hashes once), and the
+    offsets are built straight as int32, so no cast (and no pyarrow.compute) is needed."""
+    index: dict[str, int] = {}
+    codes = np.fromiter((index.setdefault(v, len(index)) for v in map(str, values)),
+                        dtype=np.int64, count=len(values))
+    encoded = [v.encode() for v in index]
+    lengths = np.fromiter(map(len, encoded), dtype=np.int64, count=len(encoded))
+    offsets = np.zeros(codes.size + 1, dtype=np.int64)
+    np.cumsum(lengths[codes], out=offsets[1:])
+    total = int(offsets[-1])
+    # the rows' bytes: one join of references to the distinct encodings
+    data = b"".join(encoded) if codes.size == len(encoded) else b"".join(
+        [encoded[c] for c in codes.tolist()])
+    bufs = [None, pa.py_buffer(offsets.astype(np.int32) if total < 2**31 else offsets),
+            pa.py_buffer(data)]
     count = 0
     if null is not None and np.any(null):
         bufs[0] = pa.py_buffer(np.packbits(~np.asarray(null, dtype=bool), bitorder="little"))
         count = int(np.count_nonzero(null))
-    return pa.Array.from_buffers(pa.large_string(), len(encoded), bufs,
-                                 null_count=count).cast(pa.string())
+    kind = pa.string() if total < 2**31 else pa.large_string()
+    return pa.Array.from_buffers(kind, codes.size, bufs, null_count=count)
 
 
 def repeated_string(value: str, n: int) -> pa.Array:
     """A string column holding one value n times (the beam id)."""
-    return pa.DictionaryArray.from_arrays(int_column(np.zeros(n)), string_column([value])
-                                          ).cast(pa.string())
+    return string_column([value] * n)
 
 
 def make_table(cols: Mapping[str, pa.Array]) -> pa.Table:
