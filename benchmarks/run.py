@@ -11,7 +11,12 @@ c. start-up: a 2-span run with its plot against starting Python and importing th
    libraries it needs;
 d. batch: per-beam cost of ``envelope batch`` with two workers against the time to
    write that beam's Parquet files;
-e. memory: peak resident memory of an all-cases run with about 10^7 station rows.
+e. memory: peak resident memory of an all-cases run with about 10^7 station rows;
+f. start-up to the floor: ``envelope run --no-plots`` of a 2-span beam with unit strings
+   and ``envelope check`` against ``python -c "import numpy, pyarrow.parquet"``, with the
+   costliest imports that remain;
+g. a long segmented beam (4 segments a span, 41 stations a span): time and peak memory
+   as the spans grow, and the growth of each doubling against the inherent n^2.
 
 The machine may be shared and noisy: each timing is the best of several repeats, and
 the two sides of each ratio are interleaved (A B B A A B ...), so that a slow spell
@@ -71,6 +76,7 @@ class Plan:
     batch_beams: int
     memory_spans: int
     memory_stations: int
+    long_spans: tuple[int, ...] = (32, 64, 128, 256, 512)
 
 
 FULL = Plan("full", repeats=5, loop_spans=16, loop_sample=400, loop_full_spans=10,
@@ -80,7 +86,7 @@ FULL = Plan("full", repeats=5, loop_spans=16, loop_sample=400, loop_full_spans=1
 QUICK = Plan("quick", repeats=2, loop_spans=16, loop_sample=120, loop_full_spans=6,
              growth_spans=(8, 32, 128), growth_stations=(21, 501),
              growth_combinations=(4, 16), startup_repeats=3, batch_beams=16,
-             memory_spans=50, memory_stations=1000)
+             memory_spans=50, memory_stations=1000, long_spans=(32, 64, 128))
 
 
 # -- running and timing ------------------------------------------------------------
@@ -552,6 +558,9 @@ def bench_batch(plan: Plan, work: Path, targets: list[Target]) -> dict[str, Any]
     targets.append(Target("(d) batch per-beam cost / Parquet write", ratio, "<= 3",
                           ratio <= 3, f"two workers; {per_beam / plain_per_beam:.3g} against "
                           "a plain write_table"))
+    targets.append(Target("(d) batch per-beam cost / plain write_table",
+                          per_beam / plain_per_beam, "<= 2", per_beam / plain_per_beam <= 2,
+                          "wall time over all beams, pool start included"))
     return {"available": True, "beams": len(paths), "beams_ok": n_ok, "source": source,
             "batch_s": min(t["batch"]), "per_beam_s": per_beam,
             "write_per_beam_s": write_per_beam, "ratio": ratio,
@@ -588,11 +597,116 @@ def bench_memory(plan: Plan, work: Path, targets: list[Target]) -> dict[str, Any
             "file_bytes": size}
 
 
+# -- (f) start-up to the floor -------------------------------------------------------
+
+#: The floor of (f): a Python process that imports what every run needs at least.
+FLOOR_MIN = "import numpy, pyarrow.parquet"
+
+
+def unit_string_beam(n_spans: int) -> str:
+    """The benchmark beam with its loads given as unit strings (as every demo case is)."""
+    text = beam_toml(n_spans, 21, "exhaustive")
+    out = []
+    for line in text.splitlines():
+        key, _, value = line.partition(" = ")
+        if key in ("w", "P"):
+            unit = "kN/m" if key == "w" else "kN"
+            line = f'{key} = "{value} {unit}"'
+        out.append(line)
+    return "\n".join(out) + "\n"
+
+
+def slow_imports(args: Sequence[str], top: int = 6) -> list[tuple[str, float]]:
+    """The top-level imports that cost most in one run of ``args`` (``-X importtime``):
+    (module, seconds), the engine's own modules left out."""
+    proc = subprocess.run([args[0], "-X", "importtime", *args[1:]], capture_output=True,
+                          text=True)
+    costs: dict[str, float] = {}
+    for line in proc.stderr.splitlines():
+        if not line.startswith("import time:") or "|" not in line:
+            continue
+        _, cumulative, name = line.split("|")
+        if not cumulative.strip().isdigit():
+            continue  # the header line
+        if name.startswith(" ") and not name.startswith("  "):  # imported at top level
+            mod = name.strip()
+            if not mod.startswith("envelope"):
+                costs[mod] = costs.get(mod, 0.0) + int(cumulative) / 1e6
+    return sorted(costs.items(), key=lambda kv: -kv[1])[:top]
+
+
+def bench_floor(plan: Plan, work: Path, targets: list[Target]) -> dict[str, Any]:
+    say(f"(f) start-up: 2-span run without plots and check, against `{FLOOR_MIN}`")
+    case = work / "floor-2span.toml"
+    case.write_text(unit_string_beam(2))
+    out = work / "out-f"
+    floor_args = [sys.executable, "-c", FLOOR_MIN]
+    run_args = engine_args(case, out)
+    check_args = [sys.executable, "-m", "envelope.cli", "check", str(case)]
+    for args in (run_args, floor_args, check_args):
+        run_child(args)
+    t = interleaved({"run": lambda: run_child(run_args).seconds,
+                     "check": lambda: run_child(check_args).seconds,
+                     "floor": lambda: run_child(floor_args).seconds}, plan.startup_repeats)
+    floor = min(t["floor"])
+    run_ratio, check_ratio = min(t["run"]) / floor, min(t["check"]) / floor
+    say(row("", "seconds", "floor s", "ratio"))
+    say(row("  run --no-plots, unit strings", min(t["run"]), floor, run_ratio))
+    say(row("  check", min(t["check"]), floor, check_ratio))
+    heavy = {"run": slow_imports(run_args), "check": slow_imports(check_args)}
+    for name, items in heavy.items():
+        say(f"    costliest imports of {name}: "
+            + ", ".join(f"{m} {sec:.2f} s" for m, sec in items))
+    targets.append(Target("(f) run --no-plots / import floor", run_ratio, "<= 1.3",
+                          run_ratio <= 1.3, f"floor {floor:.3g} s"))
+    targets.append(Target("(f) check / import floor", check_ratio, "<= 1.5",
+                          check_ratio <= 1.5))
+    return {"floor": FLOOR_MIN, "floor_s": floor, "run_s": min(t["run"]),
+            "check_s": min(t["check"]), "run_ratio": run_ratio, "check_ratio": check_ratio,
+            "slow_imports": heavy, "samples": t}
+
+
+# -- (g) a long segmented beam -------------------------------------------------------
+
+
+def segmented_beam(n_spans: int) -> str:
+    """The benchmark beam with 41 stations a span and 4 segments a span."""
+    return beam_toml(n_spans, 41, "segments").replace(
+        'method = "segments"', 'method = "segments"\nsegments = 4')
+
+
+def bench_long(plan: Plan, work: Path, targets: list[Target]) -> dict[str, Any]:
+    say("(g) long segmented beam: 4 segments and 41 stations a span, run --no-plots")
+    say(row("  spans", "run s", "peak MiB", "x time", "x n^2"))
+    rows: list[dict[str, Any]] = []
+    for n in plan.long_spans:
+        case = work / f"long-{n}.toml"
+        case.write_text(segmented_beam(n))
+        out = work / "out-g"
+        r = run_child(engine_args(case, out))
+        shutil.rmtree(out, ignore_errors=True)
+        step = rows[-1]["seconds"] if rows else None
+        growth = r.seconds / step if step else float("nan")
+        n2 = (n / rows[-1]["spans"]) ** 2 if rows else float("nan")
+        rows.append({"spans": n, "seconds": r.seconds, "peak_mib": r.maxrss_kib / 1024,
+                     "growth": growth, "n2": n2})
+        say(row(f"  {n}", r.seconds, r.maxrss_kib / 1024, growth, n2))
+    last = rows[-1]
+    judged = last["spans"] >= 512
+    targets.append(Target(f"(g) peak MiB, {last['spans']} spans segmented", last["peak_mib"],
+                          "<= 512", last["peak_mib"] <= 512 if judged else None,
+                          "" if judged else "target is for 512 spans"))
+    worst = max((r["growth"] / r["n2"] for r in rows[1:]), default=float("nan"))
+    targets.append(Target("(g) worst doubling: time growth / n^2", worst, "<= 1",
+                          worst <= 1.0, "whole process, start-up included"))
+    return {"rows": rows}
+
+
 # -- main --------------------------------------------------------------------------
 
 SECTIONS: dict[str, Callable[[Plan, Path, list[Target]], dict[str, Any]]] = {
     "a": bench_loop, "b": bench_growth, "c": bench_startup, "d": bench_batch,
-    "e": bench_memory}
+    "e": bench_memory, "f": bench_floor, "g": bench_long}
 
 
 def source_state() -> str:
@@ -619,14 +733,14 @@ def main(argv: Sequence[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--quick", action="store_true", help="a reduced run (about 2 minutes)")
     parser.add_argument("--json", type=Path, help="write every figure to this JSON file")
-    parser.add_argument("--only", default="abcde", help="sections to run, e.g. a,c")
+    parser.add_argument("--only", default="abcdefg", help="sections to run, e.g. a,c")
     parser.add_argument("--work", type=Path, help="scratch folder (default: a temporary one)")
     opts = parser.parse_args(argv)
     plan = QUICK if opts.quick else FULL
     chosen = [s for s in opts.only.replace(",", "") if s.strip()]
     unknown = sorted(set(chosen) - set(SECTIONS))
     if unknown:
-        parser.error(f"--only: no section {', '.join(unknown)} (sections: a, b, c, d, e)")
+        parser.error(f"--only: no section {', '.join(unknown)} (sections: a to g)")
 
     work = opts.work or Path(tempfile.mkdtemp(prefix="envelope-bench-"))
     work.mkdir(parents=True, exist_ok=True)

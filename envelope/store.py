@@ -349,13 +349,18 @@ def with_field_units(table: pa.Table) -> pa.Table:
     units = column_units(table.column_names, labels, own)
     fields = [f.with_metadata({b"unit": units[f.name].encode()}) if f.name in units else f
               for f in table.schema]
-    return table.cast(pa.schema(fields, metadata=meta))
+    # the same columns under the new schema (only field metadata differs): no cast, so no
+    # pyarrow.compute import
+    return pa.Table.from_arrays(table.columns, schema=pa.schema(fields, metadata=meta))
 
 
-def write_parquet(path: Path, table: pa.Table, durable: bool = True) -> None:
-    """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only,
-    each numeric column's unit in its field metadata (:func:`with_field_units`)."""
-    check_finite(table, str(path))
+def write_parquet(path: Path, table: pa.Table, durable: bool = True,
+                  checked: bool = False) -> None:
+    """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only
+    (``checked``: the caller has checked already), each numeric column's unit in its
+    field metadata (:func:`with_field_units`)."""
+    if not checked:
+        check_finite(table, str(path))
     table = with_field_units(table)
     write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
 
@@ -369,7 +374,7 @@ def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
     paths = []
     for stem, table in result_tables.items():
         path = out_dir / f"{stem}.parquet"
-        write_parquet(path, table, durable)
+        write_parquet(path, table, durable, checked=True)
         paths.append(path)
     return paths
 
