@@ -145,6 +145,19 @@ def test_a_beam_without_design_says_no_check_was_made(tmp_path: Path) -> None:
     assert collect.collect(folder).status == "not sized"
 
 
+def test_every_steel_check_names_its_clause(tmp_path: Path) -> None:
+    run = _invoke("run", str(CASES / "floor-beam-si.toml"), "-o", str(tmp_path),
+                  "--no-plots", "-q")
+    assert run.exit_code == 0, run.output
+    folder = next(p for p in tmp_path.iterdir() if p.is_dir())
+    rows = collect.collect(folder).checks
+    kinds = {r["check"] for r in rows}
+    assert {"moment", "shear", "bearing", "deflection"} <= kinds
+    for r in rows:
+        assert r["clause"] != checks.OTHER_CLAUSE, r
+        assert r["clause"].startswith("AISC"), r
+
+
 def test_checks_without_values_never_pass_a_failing_status() -> None:
     table = collect.Table("sizing", "", ("span", "section", "moment_design", "shear_design",
                                          "as_required", "as_max", "status"),

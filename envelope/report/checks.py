@@ -31,13 +31,15 @@ CLAUSES: dict[str, dict[str, str]] = {
     "aisc360-22": {
         "moment": "AISC 360-22 F2.1 (F2.2 where lateral-torsional buckling is checked)",
         "shear": "AISC 360-22 G2.1",
+        "bearing": "AISC 360-22 J10.2 (web local yielding), J10.3 (web crippling)",
         "deflection": "AISC 360-22 L3, limits span/N from the case file",
+        "vibration": "AISC Design Guide 11, walking excitation",
     },
 }
 #: Words of a failing ``status`` that belong to each check.
 STATUS_WORDS = {"flexure": ("singly reinforced", "0.04 Ac", "tension steel"),
                 "shear": ("for shear",), "deflection": ("deflection",),
-                "moment": ("no section",)}
+                "bearing": ("bearing", "J10", "crippling", "web local yielding")}
 OTHER_CLAUSE = "see the note and status of sizing.parquet"
 
 
