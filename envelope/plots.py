@@ -1,187 +1,860 @@
-"""envelope.png: moment, shear and service-deflection envelopes of one beam.
+"""envelope.png: the beam and its loads, then moment, shear and service deflection.
 
-Drawn from the result columns alone (so ``envelope plot`` can redraw from the
-Parquet files), with matplotlib's object API on the Agg canvas: no pyplot,
-no window.  Supports are drawn under every panel, spans are numbered, and the
-governing peaks are labelled with their value and combination.
-``moment_plot = "tension-side"`` draws sagging moments below the axis.
+Drawn from the result columns alone (so ``envelope plot`` redraws from the Parquet
+files; the beam strip from the ``envelope:sketch`` metadata), with matplotlib's object
+API on the Agg canvas: no pyplot, no window, no layout engine (fixed margins).
+
+* the strip: spans, supports by type (pinned, fixed, vertical and rotational springs
+  drawn as springs, free ends), support faces, hinges, and every load drawn to scale,
+  one lane per load case, each lane with its own scale;
+* moment: the envelope, the largest sagging moment of each span and the hogging moment
+  at each support, at the support face where the design takes it there (concrete with
+  a support width) and at the centreline otherwise, each saying which;
+* shear: the envelope, both end shears of every span;
+* deflection: the service envelope, the largest of each span, springs drawn where they
+  settle; the deflection of the section sizing chose where sizing reports one;
+* sizing, where sizing.parquet exists: steel area required and provided along the
+  beam (concrete) or utilisation along the beam (steel), read generically from the
+  columns there are;
+* every label carries the governing combination and the loaded spans, is placed by a
+  pass that keeps it inside its panel and clear of every other label, and is drawn
+  literally (no markup);
+* a key to the symbols and the caution that results are for checking by a licensed
+  engineer and defer to local codes.
+
+Text stays text in SVG (``svg.fonttype: none``) and PDF (TrueType, ``pdf.fonttype: 42``).
 """
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
+import matplotlib as mpl
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
+from matplotlib.lines import Line2D
+from matplotlib.patches import Polygon, Rectangle
+from matplotlib.path import Path as MPath
+from matplotlib.ticker import MaxNLocator
+from matplotlib.transforms import Bbox
 
 from envelope.files import write_atomic
+from envelope.sketch import decode
 
-Columns = Mapping[str, np.ndarray]
+Columns = Mapping[str, Any]
 
-_MAX_COLOUR = "#b2182b"  # sagging / positive
-_MIN_COLOUR = "#2166ac"  # hogging / negative
-_FILL = "#d9d9d9"
+CAUTION = ("Results are for checking by a licensed engineer and defer to local codes; "
+           "they are not a design.")
 #: Raster resolution: legible when printed at A4 width, and quick to encode.
 DPI = 110
+#: Figure width (in) and the fixed margins (in).
+WIDTH = 11.0
+_LEFT, _RIGHT = 1.0, 0.2
+#: The longest title, combination name and loaded text drawn (characters).
+TITLE_CHARS = 100
+NAME_CHARS = 22
+LOADED_CHARS = 18
+#: At most this many load lanes in the strip; further cases share the last.
+MAX_LANES = 6
+#: Curves are thinned to about this many points per pixel column of the panel.
+_POINTS_PER_PIXEL = 2
+
+# A palette of its own: ink and paper, a warm red for the maximum, a slate blue for the
+# minimum, pale fills, and muted colours for the load cases.
+INK = "#23262b"
+SOFT = "#6b7079"
+PAPER = "#fbfaf7"
+MAX_COLOUR = "#c0392b"
+MIN_COLOUR = "#2f5d8a"
+FILL = "#ece6da"
+FACE_COLOUR = "#9a7b4f"
+SIZED_COLOUR = "#3f7f4f"
+CASE_COLOURS = ("#7a6a58", "#b5651d", "#4f7a8a", "#8a4f7a", "#5f7a3a", "#8a7a2f")
+STYLE = {"svg.fonttype": "none", "pdf.fonttype": 42, "ps.fonttype": 42,
+         "font.size": 8, "axes.linewidth": 0.7, "text.usetex": False}
+
+_CONTROL = {c: "?" for c in range(32)} | {0x7f: "?"}
 
 
-def _finite(a: np.ndarray) -> np.ndarray:
+def literal(text: object, limit: int) -> str:
+    """``text`` as drawn: control characters replaced, cut to ``limit`` characters (with
+    an ellipsis), so a huge title costs nothing and a NUL never reaches the font code."""
+    s = str(text)
+    s = s[: limit + 1].translate(_CONTROL)
+    return s if len(s) <= limit else s[: limit - 1] + "…"
+
+
+def _num(v: float, digits: int = 1) -> str:
+    return f"{round(float(v), digits) + 0.0:.{digits}f}"  # never "-0.0"
+
+
+# --------------------------------------------------------------------------- symbols
+
+
+def _spring_path() -> MPath:
+    """A coil spring standing on a base plate, top at the origin (marker units)."""
+    ys = np.linspace(0.0, -0.8, 9)
+    xs = np.r_[0.0, np.tile([0.35, -0.35], 3), 0.35, 0.0][: ys.size]
+    verts = [(0.0, 0.2), (0.0, 0.0), *zip(xs, ys, strict=True), (0.0, -1.0), (-0.45, -1.0),
+             (0.45, -1.0)]
+    codes = [MPath.MOVETO] + [MPath.LINETO] * (len(verts) - 3) + [MPath.MOVETO, MPath.LINETO]
+    return MPath(verts, codes)
+
+
+def _coil_path() -> MPath:
+    """A rotational spring: a spiral round the joint."""
+    t = np.linspace(0.0, 3.2 * np.pi, 40)
+    r = 0.15 + 0.28 * t / t[-1]
+    return MPath(np.c_[r * np.cos(t), r * np.sin(t)])
+
+
+def _fixed_path() -> MPath:
+    """A clamp: a plate under the beam with hatching below."""
+    verts: list[tuple[float, float]] = [(-0.6, 0.0), (0.6, 0.0)]
+    codes = [MPath.MOVETO, MPath.LINETO]
+    for x in np.linspace(-0.6, 0.4, 5):
+        verts += [(x + 0.2, 0.0), (x, -0.45)]
+        codes += [MPath.MOVETO, MPath.LINETO]
+    return MPath(verts, codes)
+
+
+def _pin_path() -> MPath:
+    """A pin: a triangle with its apex at the beam and a ground line."""
+    verts = [(0.0, 0.0), (-0.45, -0.7), (0.45, -0.7), (0.0, 0.0), (-0.6, -0.85), (0.6, -0.85)]
+    codes = [MPath.MOVETO, MPath.LINETO, MPath.LINETO, MPath.LINETO, MPath.MOVETO,
+             MPath.LINETO]
+    return MPath(verts, codes)
+
+
+SPRING, COIL, FIXED, PIN = _spring_path(), _coil_path(), _fixed_path(), _pin_path()
+
+
+def _support_marker(support: Mapping[str, Any]) -> tuple[MPath | str, str] | None:
+    """(marker, key label) of one support, or None for a free end."""
+    kind = support.get("type")
+    kv, kr = support.get("k_vertical", None), support.get("k_rotation", 0.0)
+    if kind == "free" or (kv == 0.0 and kr == 0.0):
+        return None
+    if kv is not None and kv > 0.0:
+        return SPRING, "vertical spring"
+    if kv == 0.0:
+        return COIL, "rotational spring"
+    if kr is None:
+        return FIXED, "fixed"
+    if kr and kr > 0.0:
+        return COIL, "rotational spring"
+    return PIN, "pinned"
+
+
+# --------------------------------------------------------------------------- labels
+
+
+@dataclass
+class Label:
+    """A value label: its anchor (data), text, the side it prefers and its rank."""
+
+    ax: Any
+    x: float
+    y: float
+    text: str
+    above: bool
+    rank: int = 0      # lower is placed first
+    colour: str = INK
+
+
+def _overlaps(box: Bbox, boxes: Sequence[Bbox]) -> bool:
+    return any(box.x0 < b.x1 and b.x0 < box.x1 and box.y0 < b.y1 and b.y0 < box.y1
+               for b in boxes)
+
+
+def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
+    """Place each label beside its anchor where it stays inside its axes and clear of
+    every label placed before it (candidates near to far, preferred side first); a
+    label with no free place is left out.  Offsets are in points from the anchor, so the
+    layout is the same at any resolution and in every format.  Returns (placed, left
+    out)."""
+    renderer = fig.canvas.get_renderer() if hasattr(fig.canvas, "get_renderer") else \
+        fig._get_renderer()  # type: ignore[attr-defined]
+    px_per_pt = fig.dpi / 72.0
+    placed: list[Bbox] = []
+    frames: dict[Any, Bbox] = {}
+    dropped = 0
+    for lab in sorted(labels, key=lambda lb: lb.rank):
+        ax = lab.ax
+        if ax not in frames:
+            b = ax.get_window_extent(renderer)
+            frames[ax] = Bbox.from_extents(b.x0 + 3, b.y0 + 3, b.x1 - 3, b.y1 - 3)
+        frame = frames[ax]
+        ax_x, ax_y = ax.transData.transform((lab.x, lab.y))
+        if not (np.isfinite(ax_x) and np.isfinite(ax_y)):
+            dropped += 1
+            continue
+        text = ax.annotate(lab.text, (lab.x, lab.y), xytext=(0.0, 0.0),
+                           textcoords="offset points", fontsize=7, color=lab.colour,
+                           ha="left", va="bottom", linespacing=1.05, parse_math=False,
+                           zorder=8, gid="value-label", annotation_clip=False)
+        size = text.get_window_extent(renderer)
+        w, h = size.width, size.height
+        best = None
+        up = 1.0 if lab.above else -1.0
+        for dy in (4, 12, 22, 34, 48, 64, 84, 108):
+            for side in (up, -up):
+                y0 = ax_y + side * dy * px_per_pt - (0.0 if side > 0 else h)
+                for dx in (-0.5 * w, -0.1 * w, -0.9 * w, 0.3 * w, -1.3 * w, 0.8 * w,
+                           -1.8 * w):
+                    box = Bbox.from_bounds(ax_x + dx, y0, w, h)
+                    if (box.x0 >= frame.x0 and box.x1 <= frame.x1 and box.y0 >= frame.y0
+                            and box.y1 <= frame.y1 and not _overlaps(box, placed)):
+                        best = box
+                        break
+                if best is not None:
+                    break
+            if best is not None:
+                break
+        text.remove()
+        if best is None:
+            dropped += 1
+            continue
+        placed.append(Bbox.from_extents(best.x0 - 1, best.y0 - 1, best.x1 + 1, best.y1 + 1))
+        # offset by the pixels between where the text was measured and where it goes
+        offset = ((best.x0 - size.x0) / px_per_pt, (best.y0 - size.y0) / px_per_pt)
+        far = min(abs(best.y0 - ax_y), abs(best.y1 - ax_y)) > 6 * px_per_pt
+        arrow = {"arrowstyle": "-", "color": SOFT, "lw": 0.5, "shrinkA": 0, "shrinkB": 0,
+                 "relpos": (0.5, 0.0 if best.y0 > ax_y else 1.0)} if far else None
+        ax.annotate(lab.text, (lab.x, lab.y), xytext=offset, textcoords="offset points",
+                    fontsize=7, color=lab.colour, ha="left", va="bottom", linespacing=1.05,
+                    parse_math=False, zorder=8, gid="value-label", annotation_clip=False,
+                    arrowprops=arrow, bbox={"boxstyle": "square,pad=0.08", "fc": PAPER,
+                                            "ec": "none", "alpha": 0.8})
+    return len(labels) - dropped, dropped
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+def _thin(x: np.ndarray, hi: np.ndarray, lo: np.ndarray, pixels: int
+          ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Draw only what is seen: beyond a few points per pixel column, keep the highest
+    and lowest value of each column (the envelope's peaks survive)."""
+    n = x.size
+    limit = max(64, _POINTS_PER_PIXEL * pixels)
+    if n <= 2 * limit:
+        return x, hi, lo
+    edges = np.linspace(0, n, limit + 1).astype(int)
+    starts = edges[:-1]
+    with np.errstate(invalid="ignore"):
+        h = np.fmax.reduceat(np.nan_to_num(hi, nan=-np.inf), starts)
+        low = np.fmin.reduceat(np.nan_to_num(lo, nan=np.inf), starts)
+    xm = x[starts]
+    h[~np.isfinite(h)] = np.nan
+    low[~np.isfinite(low)] = np.nan
+    return xm, h, low
+
+
+def _short_loaded(text: object) -> str:
+    s = str(text) if text is not None else ""
+    if not s or s == "None":
+        return ""
+    return "loaded " + literal(s, LOADED_CHARS)
+
+
+def _tag(combo: object, loaded: object) -> str:
+    name = literal(combo, NAME_CHARS) if combo not in (None, "") else ""
+    parts = [p for p in (name, _short_loaded(loaded)) if p]
+    return "\n" + ", ".join(parts) if parts else ""
+
+
+def _rows_of(span: np.ndarray, j: int) -> np.ndarray:
+    return np.flatnonzero(span == j)
+
+
+def _finite(a: Any) -> np.ndarray:
     return np.asarray(a, dtype=float)
 
 
-def _span_start(x: np.ndarray, span: np.ndarray, j: int) -> float:
-    """Global x of span j's left support (its first station)."""
-    return float(x[np.flatnonzero(span == j)].min())
+# --------------------------------------------------------------------------- panels
 
 
-def _supports(ax, joint_x: np.ndarray, kinds: list[str], y: float, size: float) -> None:  # type: ignore[no-untyped-def]
-    """Support symbols on the zero line: triangle pinned, bar fixed, circle spring."""
-    for x, kind in zip(joint_x, kinds, strict=True):
-        if kind == "free":
-            continue
-        marker = {"pinned": "^", "fixed": "s", "spring": "o"}.get(kind, "^")
-        ax.plot([x], [y], marker=marker, color="black", markersize=size, zorder=5,
-                markerfacecolor="white" if kind == "spring" else "black", clip_on=False)
+def _panel_axes(fig: Figure, heights: Sequence[float], top: float, bottom: float,
+                region: tuple[float, float, float, float] | None = None) -> list[Any]:
+    """Axes stacked top to bottom with the given heights (in), fixed margins."""
+    fw, fh = fig.get_size_inches()
+    x0, y0, w, h = region or (0.0, 0.0, 1.0, 1.0)
+    gap = 0.12
+    usable = h * fh - top - bottom - gap * (len(heights) - 1)
+    scale = usable / sum(heights)
+    axes = []
+    y = y0 * fh + h * fh - top
+    for height in heights:
+        hh = height * scale
+        y -= hh
+        rect = (x0 + _LEFT / fw * w, y / fh, w - (_LEFT + _RIGHT) / fw * w, hh / fh)
+        ax = fig.add_axes(rect, sharex=axes[0] if axes else None)
+        ax.set_facecolor(PAPER)
+        axes.append(ax)
+        y -= gap
+    return axes
 
 
-def _label_peak(ax, x: float, y: float, text: str, above: bool) -> None:  # type: ignore[no-untyped-def]
-    lo, hi = ax.get_xlim()
-    where = (x - lo) / (hi - lo) if hi > lo else 0.5
-    ha = "left" if where < 0.06 else "right" if where > 0.94 else "center"  # keep inside
-    ax.annotate(text, (x, y), xytext=(0, 9 if above else -9), textcoords="offset points",
-                ha=ha, va="bottom" if above else "top", fontsize=7.5,
-                bbox={"boxstyle": "round,pad=0.2", "fc": "white", "ec": "none", "alpha": 0.8})
+#: Figures kept for reuse by :func:`draw_results`, by panel heights: creating the axes
+#: is a third of the cost of a figure, and a batch worker draws many of one layout.
+_KEPT: dict[tuple[float, ...], tuple[Figure, list[Any]]] = {}
+_KEEP_AT_MOST = 4
 
 
-def _panel(ax, x, hi, lo, unit: str, title: str, flip: bool = False) -> None:  # type: ignore[no-untyped-def]
-    ax.fill_between(x, lo, hi, color=_FILL, lw=0, zorder=1)
-    ax.plot(x, hi, color=_MAX_COLOUR, lw=1.4, zorder=3, label="max")
-    ax.plot(x, lo, color=_MIN_COLOUR, lw=1.4, zorder=3, label="min")
-    ax.axhline(0.0, color="black", lw=0.8, zorder=2)
-    ax.set_ylabel(f"{title} [{unit}]")
-    ax.grid(True, color="#eeeeee", lw=0.6, zorder=0)
+def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
+                   reuse: bool) -> tuple[Figure, list[Any]]:
+    """A figure with its panel axes: a kept one emptied of the last beam's artists when
+    ``reuse`` (the caller saves it and lets it go), else a new one."""
+    key = tuple(round(h, 6) for h in heights)
+    if reuse and key in _KEPT:
+        fig, axes = _KEPT[key]
+        for text in list(fig.texts):
+            text.remove()
+        for legend in list(fig.legends):
+            legend.remove()
+        for a in axes:
+            for artist in [*a.lines, *a.patches, *a.texts, *a.collections, *a.artists]:
+                artist.remove()
+            if a.get_legend() is not None:
+                a.get_legend().remove()
+            a.set_ylabel("")
+            a.set_xlabel("")
+        return fig, axes
+    fig = Figure(figsize=(WIDTH, sum(heights) + top + bottom + 0.12 * len(heights)),
+                 facecolor="white")
+    FigureCanvasAgg(fig)
+    axes = _panel_axes(fig, heights, top, bottom)
+    if reuse:
+        if len(_KEPT) >= _KEEP_AT_MOST:
+            _KEPT.pop(next(iter(_KEPT)))
+        _KEPT[key] = (fig, axes)
+    return fig, axes
+
+
+def _style_panel(ax: Any, ylabel: str) -> None:
+    ax.set_ylabel(ylabel, fontsize=7.5, color=INK, labelpad=3)
+    ax.tick_params(labelsize=7, colors=SOFT, length=2.5)
+    # no tick label at the very top or bottom, where it would meet the next panel's
+    ax.yaxis.set_major_locator(MaxNLocator(nbins=5, prune="both"))
     ax.spines[["top", "right"]].set_visible(False)
-    if flip:
-        ax.invert_yaxis()
+    for side in ("left", "bottom"):
+        ax.spines[side].set_color(SOFT)
+
+
+def _envelope(ax: Any, x: np.ndarray, hi: np.ndarray, lo: np.ndarray, pixels: int) -> None:
+    xt, ht, lt = _thin(x, hi, lo, pixels)
+    ax.fill_between(xt, lt, ht, color=FILL, lw=0, zorder=1)
+    ax.plot(xt, ht, color=MAX_COLOUR, lw=1.2, zorder=3)
+    ax.plot(xt, lt, color=MIN_COLOUR, lw=1.2, zorder=3)
+    ax.axhline(0.0, color=INK, lw=0.6, zorder=2)
+
+
+def _limits(ax: Any, values: Sequence[np.ndarray], flip: bool = False,
+            room: float = 0.45) -> None:
+    """y limits with room for labels above and below the curves."""
+    finite = np.concatenate([v[np.isfinite(v)] for v in values] + [np.zeros(1)])
+    lo, hi = float(finite.min()), float(finite.max())
+    span = hi - lo or max(abs(hi), 1.0)
+    bottom, top = lo - room * span, hi + room * span
+    ax.set_ylim((top, bottom) if flip else (bottom, top))  # flipped: positive down
+
+
+def _support_lines(ax: Any, joint_x: Sequence[float]) -> None:
+    for xj in joint_x:
+        ax.axvline(xj, color="#d8d2c6", lw=0.6, ls=(0, (2, 2)), zorder=0)
+
+
+def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Sequence[str],
+           units: Mapping[str, str], n_lanes: int) -> list[str]:
+    """The beam strip; returns the symbols it used (for the key)."""
+    used: list[str] = []
+    ax.set_facecolor("none")
+    ax.axis("off")
+    total = float(joint_x[-1]) if joint_x.size else 1.0
+    ax.plot([0.0, total], [0.0, 0.0], color=INK, lw=2.6, solid_capstyle="butt", zorder=4)
+    ax.set_ylim(-1.3, 0.45 + max(n_lanes, 1) * 1.0)
+    supports = (sk or {}).get("supports") or [{"type": k, "width": 0.0} for k in kinds]
+    for j, (xj, sup) in enumerate(zip(joint_x, supports, strict=False)):
+        width = float(sup.get("width") or 0.0)
+        if width > 0.0:
+            ax.add_patch(Rectangle((xj - width / 2, -0.22), width, 0.44, fc="#e9dfcc",
+                                   ec=FACE_COLOUR, lw=0.6, zorder=3))
+            if "support face" not in used:
+                used.append("support face")
+        marker = _support_marker(sup)
+        if marker is not None:
+            path, name = marker
+            ax.plot([xj], [-0.16], marker=path, markersize=20, color=INK, mew=1.1,
+                    mfc="white", ls="none", zorder=5, clip_on=False)
+            if name not in used:
+                used.append(name)
+        elif "free end" not in used:
+            used.append("free end")
+        ax.text(xj, -1.25, str(j + 1), ha="center", va="bottom", fontsize=6.5, color=SOFT,
+                parse_math=False)
+    for j in range(len(joint_x) - 1):
+        ax.text(0.5 * (joint_x[j] + joint_x[j + 1]), -0.55, f"span {j + 1}", ha="center",
+                va="center", fontsize=7, color=SOFT, parse_math=False)
+    for xh in (sk or {}).get("hinges", []) or []:
+        ax.plot([xh], [0.0], marker="o", markersize=5, mfc="white", mec=INK, mew=1.0,
+                ls="none", zorder=6)
+        if "hinge" not in used:
+            used.append("hinge")
+    if sk:
+        used += _loads(ax, sk, joint_x, units, n_lanes)
+    return used
+
+
+def _lanes(sk: Mapping[str, Any]) -> list[str]:
+    cases: list[str] = []
+    for item in sk.get("loads", []):
+        if item.get("case") not in cases:
+            cases.append(str(item.get("case")))
+    return cases
+
+
+def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[str, str],
+           n_lanes: int) -> list[str]:
+    """Every load, one lane per case, each lane to its own scale."""
+    used: list[str] = []
+    cases = _lanes(sk)
+    lane_of = {c: min(i, n_lanes - 1) for i, c in enumerate(cases)}
+    kinds = sk.get("cases", {})
+    for c in cases:
+        items = [it for it in sk["loads"] if it.get("case") == c]
+        lane = lane_of[c]
+        base = 0.45 + lane * 1.0
+        colour = CASE_COLOURS[lane % len(CASE_COLOURS)]
+        w_max = max([abs(it.get(k, 0.0)) for it in items if it["type"] in ("uniform", "linear")
+                     for k in ("w_start", "w_end")] + [0.0])
+        p_max = max([abs(it.get("P", 0.0)) for it in items if it["type"] == "point"] + [0.0])
+        other = 0
+        for it in items:
+            span = int(it.get("span", 0)) - 1
+            x0 = float(joint_x[span]) if 0 <= span < joint_x.size - 1 else None
+            kind = it["type"]
+            if kind in ("uniform", "linear") and x0 is not None and w_max > 0:
+                a, b = x0 + it.get("start", 0.0), x0 + it.get("end", 0.0)
+                h0 = 0.75 * it.get("w_start", 0.0) / w_max
+                h1 = 0.75 * it.get("w_end", 0.0) / w_max
+                ax.add_patch(Polygon([(a, base), (a, base + h0), (b, base + h1), (b, base)],
+                                     closed=True, fc=colour, alpha=0.28, ec=colour, lw=0.7,
+                                     zorder=2))
+            elif kind == "point" and x0 is not None and p_max > 0:
+                at = x0 + it.get("at", 0.0)
+                length = 0.8 * abs(it.get("P", 0.0)) / p_max
+                down = it.get("P", 0.0) >= 0
+                tip, tail = (base, base + length) if down else (base + length, base)
+                ax.annotate("", (at, tip), (at, tail), arrowprops={
+                    "arrowstyle": "-|>", "color": colour, "lw": 1.0, "shrinkA": 0,
+                    "shrinkB": 0, "mutation_scale": 7}, annotation_clip=False)
+            elif kind == "moment" and x0 is not None:
+                at = x0 + it.get("at", 0.0)
+                ax.plot([at], [base + 0.35], marker=COIL, markersize=11, color=colour,
+                        mew=1.0, mfc="none", ls="none", zorder=5)
+                if "applied moment" not in used:
+                    used.append("applied moment")
+            elif kind == "settlement":
+                sup = int(it.get("support", 0)) - 1
+                if 0 <= sup < joint_x.size:
+                    xs = float(joint_x[sup])
+                    ax.annotate("", (xs, -1.0), (xs, -0.45), arrowprops={
+                        "arrowstyle": "-|>", "color": colour, "lw": 1.0, "ls": "--",
+                        "mutation_scale": 7}, annotation_clip=False)
+                    if "settlement" not in used:
+                        used.append("settlement")
+            else:
+                other += 1
+        name = literal(c, 10)
+        scale = []
+        if w_max > 0:
+            scale.append(f"{w_max:.3g} {units.get('line_load', '')}")
+        if p_max > 0:
+            scale.append(f"{p_max:.3g} {units.get('force', '')}")
+        if other:
+            scale.append(f"+{other} other")
+        if cases.index(c) < n_lanes:
+            label = f"{name} {literal(kinds.get(c, ''), 9)}".strip()
+            if scale:
+                label += "\n" + "\n".join(scale[:2])
+            ax.text(-0.012, (base + 0.35 - ax.get_ylim()[0]) /
+                    (ax.get_ylim()[1] - ax.get_ylim()[0]), label, ha="right", va="center",
+                    fontsize=6, color=colour, parse_math=False, clip_on=False,
+                    transform=ax.transAxes, linespacing=1.0)
+    if sk.get("loads_omitted"):
+        ax.text(0.0, 0.45 + n_lanes, f"{sk['loads_omitted']} more load items not drawn",
+                fontsize=6, color=SOFT, parse_math=False, va="bottom")
+    return used
+
+
+# --------------------------------------------------------------------------- the figure
+
+
+def figure(results: Mapping[str, Mapping], ax: Any = None) -> Figure:
+    """The figure of :func:`envelope.store.result_columns` output: a new Figure, or the
+    panels in the place of ``ax`` in its figure."""
+    with mpl.rc_context(STYLE):
+        return _build(results, ax)
 
 
 def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool = True) -> Path:
-    """Draw from :func:`envelope.store.read_results` output (columns and metadata)."""
-    meta = results["meta"]
-    return draw(results["envelope"], results["design"], results["reactions"], meta["units"],
-                path, str(meta.get("envelope:moment_plot", "sagging-up")),
-                str(meta.get("envelope:title", "")) or str(meta.get("envelope:beam", "")),
-                durable)
-
-
-def figure(results: Mapping[str, Mapping], ax=None) -> Figure:  # type: ignore[no-untyped-def]
-    """The figure of :func:`envelope.store.result_columns` output, in a new Figure or in
-    the place of ``ax``."""
-    meta = results["meta"]
-    return _build(results["envelope"], results["design"], results["reactions"], meta["units"],
-                  str(meta.get("envelope:moment_plot", "sagging-up")),
-                  str(meta.get("envelope:title", "")) or str(meta.get("envelope:beam", "")),
-                  ax)
-
-
-def draw(envelope: Columns, design: Columns, supports: Columns, units: Mapping[str, str],
-         path: str | Path, moment_plot: str = "sagging-up", title: str = "",
-         durable: bool = True) -> Path:
-    """Draw the envelope figure to ``path`` (.png, .svg or .pdf by its suffix)."""
+    """Draw from :func:`envelope.store.read_results` output to ``path`` (.png, .svg or
+    .pdf by its suffix, with editable text)."""
     path = Path(path)
-    fig = _build(envelope, design, supports, units, moment_plot, title)
     fmt = path.suffix.lstrip(".").lower() or "png"
-    write_atomic(path, lambda fh: fig.savefig(fh, format=fmt, dpi=DPI), durable)
+    with mpl.rc_context(STYLE):
+        fig = _build(results, None, reuse=True)
+        kwargs: dict[str, Any] = {"format": fmt, "dpi": DPI, "facecolor": "white"}
+        if fmt == "png":  # fast deflate: a quarter of the encoding time, a larger file
+            kwargs["pil_kwargs"] = {"compress_level": 1}
+        write_atomic(path, lambda fh: fig.savefig(fh, **kwargs), durable)
     return path
 
 
-def _build(envelope: Columns, design: Columns, supports: Columns, units: Mapping[str, str],
-           moment_plot: str = "sagging-up", title: str = "", ax=None) -> Figure:  # type: ignore[no-untyped-def]
-    x = _finite(envelope["x"])
-    span = np.asarray(envelope["span"], dtype=int)
-    joint_x = np.asarray(supports["x"], dtype=float)
-    kinds = list(supports["type"])
-    n_spans = int(span.max()) if span.size else 0
+def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False) -> Figure:
+    env, design, reac = results["envelope"], results["design"], results["reactions"]
+    sizing = results.get("sizing")
+    meta = results["meta"]
+    units: Mapping[str, str] = meta["units"]  # type: ignore[assignment]
+    sk = decode(meta.get("envelope:sketch"))  # type: ignore[arg-type]
+    flip = str(meta.get("envelope:moment_plot", "sagging-up")) == "tension-side"
+    title = str(meta.get("envelope:title", "")) or str(meta.get("envelope:beam", ""))
+    code = str(meta.get("envelope:sizing_code", ""))
 
-    has_defl = not np.all(np.isnan(_finite(envelope["deflection_max"])))
-    n_panels = 3 if has_defl else 2
-    height = 2.7 * n_panels + 0.6
+    x = _finite(env["x"])
+    span = np.asarray(env["span"], dtype=int)
+    n_spans = int(span.max()) if span.size else 0
+    if sk:
+        joint_x = np.r_[0.0, np.cumsum(sk["spans"])]
+    else:
+        joint_x = np.array(sorted({float(x[_rows_of(span, j)].min()) for j in
+                                   range(1, n_spans + 1)} | {float(x.max())}))
+    kinds = list(reac.get("type", [])) if not sk else [s["type"] for s in sk["supports"]]
+    dmax, dmin = _finite(env["deflection_max"]), _finite(env["deflection_min"])
+    has_defl = bool(np.any(np.isfinite(dmax)))
+    size_panel = _sizing_kind(sizing)
+    n_lanes = min(len(_lanes(sk)) if sk else 0, MAX_LANES)
+
+    heights = [0.55 + 0.3 * max(n_lanes, 1), 2.5, 1.8]
+    if has_defl:
+        heights.append(1.6)
+    if size_panel:
+        heights.append(1.6)
+    top, bottom = 0.6, 1.3
     if ax is None:
-        fig = Figure(figsize=(11, height))  # fixed margins: a layout engine costs a redraw
-        fig.subplots_adjust(left=0.085, right=0.985, top=1 - 0.62 / height,
-                            bottom=0.5 / height, hspace=0.14)
-        FigureCanvasAgg(fig)
-        axes = fig.subplots(n_panels, 1, sharex=True)
+        fig, axes = _new_or_reused(heights, top, bottom, reuse)
     else:
         fig = ax.figure
-        grid = ax.get_subplotspec().subgridspec(n_panels, 1, hspace=0.14)
+        region = ax.get_position().bounds
         ax.remove()
-        axes = grid.subplots(sharex=True)
-    fig.suptitle(title or "Envelopes", fontsize=11, x=0.01, ha="left")
+        axes = _panel_axes(fig, heights, 0.45, 0.75, region)
+    strip, m_ax, v_ax = axes[0], axes[1], axes[2]
+    d_ax = axes[3] if has_defl else None
+    s_ax = axes[-1] if size_panel else None
+    total = float(joint_x[-1]) if joint_x.size > 1 else float(x.max() or 1.0)
+    pad = 0.02 * total
+    m_ax.set_xlim(-pad, total + pad)
+    for a in axes[1:-1]:
+        a.tick_params(labelbottom=False)
+    pixels = int(m_ax.get_position().width * fig.get_figwidth() * fig.dpi)
 
-    flip = moment_plot == "tension-side"
-    mmax, mmin = _finite(envelope["moment_max"]), _finite(envelope["moment_min"])
-    _panel(axes[0], x, mmax, mmin, units["moment"],
-           "Moment" + (" (drawn on the tension side)" if flip else ""), flip)
-    vmax, vmin = _finite(envelope["shear_max"]), _finite(envelope["shear_min"])
-    _panel(axes[1], x, vmax, vmin, units["force"], "Shear")
-    if has_defl:
-        dmax, dmin = _finite(envelope["deflection_max"]), _finite(envelope["deflection_min"])
-        _panel(axes[2], x, dmax, dmin, units["deflection"], "Deflection (service)",
-               flip=True)
-        axes[2].set_ylabel(f"Deflection, down [{units['deflection']}]")
-    axes[-1].set_xlabel(f"x [{units['length']}]")
+    # the title, the caution, the key
+    fx0 = axes[1].get_position().x0
+    fig.text(fx0, axes[0].get_position().y1 + 0.28 / fig.get_figheight(),
+             literal(title or "Envelopes", TITLE_CHARS), fontsize=10.5, color=INK,
+             weight="bold", ha="left", va="bottom", parse_math=False)
+    fig.text(fx0, 0.1 / fig.get_figheight(), CAUTION, fontsize=7, color=MAX_COLOUR,
+             ha="left", va="bottom", parse_math=False)
 
-    # peaks: largest sagging per span, most hogging at each support, largest |V| per span
-    combo_max = np.asarray(envelope["moment_max_combo"], dtype=object)
-    combo_min = np.asarray(envelope["moment_min_combo"], dtype=object)
-    m_pos = _finite(design["moment_pos"])
-    m_pos_x = _finite(design["moment_pos_x"])
-    for j in range(1, n_spans + 1):
-        rows = np.flatnonzero(span == j)
-        if not rows.size or np.all(np.isnan(mmax[rows])):
-            continue
-        k = rows[np.nanargmax(mmax[rows])]
-        if m_pos[j - 1] > 0 and not np.isnan(m_pos_x[j - 1]):
-            # the exact design value, at its exact position; combination of the peak station
-            xp = _span_start(x, span, j) + m_pos_x[j - 1]
-            _label_peak(axes[0], xp, m_pos[j - 1], f"{m_pos[j - 1]:.1f}\n{combo_max[k]}",
-                        not flip)
-        kv = rows[np.nanargmax(np.abs(np.r_[vmax[rows], vmin[rows]])) % rows.size]
-        v = vmax[kv] if abs(vmax[kv]) >= abs(vmin[kv]) else vmin[kv]
-        _label_peak(axes[1], x[kv], v, f"{v:.1f}", v >= 0)
-        if has_defl:
-            kd = rows[np.nanargmax(dmax[rows])]
-            if dmax[kd] > 0:
-                _label_peak(axes[2], x[kd], dmax[kd], f"{dmax[kd]:.2f}", False)
-    for xj in joint_x:
-        near = np.flatnonzero(np.isclose(x, xj, rtol=0, atol=1e-9 * max(x.max(), 1.0)))
-        scale = float(np.nanmax(np.abs(np.r_[mmax, mmin]))) if mmin.size else 0.0
-        if near.size and np.nanmin(mmin[near]) < -1e-6 * scale:
-            k = near[np.nanargmin(mmin[near])]
-            _label_peak(axes[0], x[k], mmin[k], f"{mmin[k]:.1f}\n{combo_min[k]}", flip)
+    used = _strip(strip, sk, joint_x, kinds, units, n_lanes)
+    strip.set_xlim(m_ax.get_xlim())
 
-    for ax in axes:
-        lo, hi = ax.get_ylim()
-        pad = 0.18 * (hi - lo) if hi != lo else 1.0
-        ax.set_ylim(lo - pad, hi + pad)
-        y0 = 0.0
-        _supports(ax, joint_x, kinds, y0, 7)
-        for xj in joint_x:
-            ax.axvline(xj, color="#bbbbbb", lw=0.6, ls=":", zorder=0)
-    # span numbers along the top panel
-    top = axes[0]
-    for j in range(1, n_spans + 1):
-        rows = np.flatnonzero(span == j)
-        if rows.size:
-            mid = 0.5 * (x[rows].min() + x[rows].max())
-            top.text(mid, 1.02, f"span {j}", transform=top.get_xaxis_transform(),
-                     ha="center", va="bottom", fontsize=8.5, color="#444444")
-    handles, _ = axes[0].get_legend_handles_labels()
-    fig.legend(handles, ["envelope maximum", "envelope minimum"], loc="upper right",
-               bbox_to_anchor=(0.985, 1.0), fontsize=8, frameon=False, ncol=2)
-    fig.text(0.99, 0.005, "For checking by a licensed engineer; defer to local codes.",
-             ha="right", va="bottom", fontsize=7, color="#777777")
+    labels: list[Label] = []
+    # moment
+    mmax, mmin = _finite(env["moment_max"]), _finite(env["moment_min"])
+    _envelope(m_ax, x, mmax, mmin, pixels)
+    _style_panel(m_ax, f"Moment [{units.get('moment', '')}]" +
+                 ("\ndrawn on tension side" if flip else "\nsagging up"))
+    faces_used = _moment_labels(m_ax, labels, env, design, sk, joint_x, code, flip)
+    _limits(m_ax, [mmax, mmin], flip)
+    if faces_used:
+        used.append("value at support face")
+    # shear
+    vmax, vmin = _finite(env["shear_max"]), _finite(env["shear_min"])
+    _envelope(v_ax, x, vmax, vmin, pixels)
+    _style_panel(v_ax, f"Shear [{units.get('force', '')}]")
+    _shear_labels(v_ax, labels, env, n_spans)
+    _limits(v_ax, [vmax, vmin])
+    # deflection
+    if d_ax is not None:
+        _envelope(d_ax, x, dmax, dmin, pixels)
+        _style_panel(d_ax, f"Deflection [{units.get('deflection', '')}]\ndown, service")
+        springs = _deflection_labels(d_ax, labels, env, design, sizing, sk, joint_x, n_spans)
+        _limits(d_ax, [dmax, dmin], flip=True)
+        used += springs
+    if s_ax is not None:
+        _sizing_panel(s_ax, labels, sizing, size_panel, units)  # type: ignore[arg-type]
+        used.append("sized")
+    for a in axes[1:]:
+        _support_lines(a, joint_x)
+    axes[-1].set_xlabel(f"x [{units.get('length', '')}]", fontsize=7.5, color=INK)
+    axes[-1].tick_params(labelbottom=True)
+
+    _, dropped = place_labels(fig, labels)
+    _key(fig, used, dropped, units)
     return fig
+
+
+# --------------------------------------------------------------------------- labels per panel
+
+
+def _face_values(sk: Mapping[str, Any] | None, code: str) -> bool:
+    """Whether the design takes hogging at the support faces: concrete built with its
+    supports (ACI 318-19 9.4.2.1, EN 1992-1-1 5.3.2.2(3)), not steel over its bearing."""
+    if code.startswith("aisc") or code.startswith("en1993"):
+        return False
+    return bool(sk) and any(float(s.get("width") or 0.0) > 0.0 for s in sk["supports"])
+
+
+def _moment_labels(ax: Any, labels: list[Label], env: Columns, design: Columns,
+                   sk: Mapping[str, Any] | None, joint_x: np.ndarray, code: str,
+                   flip: bool) -> bool:
+    x = _finite(env["x"])
+    span = np.asarray(env["span"], dtype=int)
+    mmax, mmin = _finite(env["moment_max"]), _finite(env["moment_min"])
+    cmax, cmin = env["moment_max_combo"], env["moment_min_combo"]
+    lmax, lmin = env["moment_max_loaded"], env["moment_min_loaded"]
+    pos, pos_x = _finite(design["moment_pos"]), _finite(design["moment_pos_x"])
+    faces = _face_values(sk, code)
+    n = pos.size
+    scale = float(np.nanmax(np.abs(np.r_[mmax, mmin, 0.0])))
+    faces_drawn = False
+    for j in range(n):
+        rows = _rows_of(span, j + 1)
+        if not rows.size:
+            continue
+        if pos[j] > 0 and np.isfinite(pos_x[j]):
+            xp = joint_x[j] + pos_x[j]
+            k = rows[np.argmin(np.abs(x[rows] - xp))]
+            labels.append(Label(ax, xp, pos[j], f"+{_num(pos[j])}" + _tag(cmax[k], lmax[k]),
+                                not flip, rank=0, colour=MAX_COLOUR))
+    for end in ("left", "right"):
+        col = f"moment_neg_{end}"
+        values = _finite(design[col]) if col in design else np.full(n, np.nan)
+        face_values = _finite(design.get(f"{col}_face", values))
+        for j in range(n):
+            rows = _rows_of(span, j + 1)
+            if not rows.size:
+                continue
+            k = rows[0] if end == "left" else rows[-1]
+            if end == "left" and j > 0:
+                continue  # the support between two spans is labelled once, from the right
+            xj = joint_x[j] if end == "left" else joint_x[j + 1]
+            # every station at the support, on both sides (a fixed support's moment jumps)
+            here = np.flatnonzero(np.isclose(x, xj, atol=1e-9 * max(total_of(joint_x), 1.0)))
+            if here.size:
+                k = here[np.argmin(mmin[here])]
+            m_cl = float(np.nanmin(mmin[here])) if here.size else values[j]
+            # the hogging side of an interior support: the worse of its two spans' faces
+            if end == "right" and j + 1 < n:
+                candidates = [(face_values[j], -1), (_finite(design.get(
+                    "moment_neg_left_face", values))[j + 1], 1)]
+            else:
+                candidates = [(face_values[j], -1 if end == "right" else 1)]
+            if not np.isfinite(m_cl) or m_cl >= -1e-9 * max(scale, 1.0):
+                continue
+            width = float(sk["supports"][j + (end == "right")].get("width") or 0.0) if sk \
+                else 0.0
+            if faces and width > 0.0:
+                value, direction = min(candidates, key=lambda c: c[0])
+                xf = xj + direction * width / 2
+                ax.plot([xf], [value], marker="|", markersize=7, color=FACE_COLOUR, mew=1.2,
+                        ls="none", zorder=6)
+                faces_drawn = True
+                labels.append(Label(ax, xf, value, f"{_num(value)} at face" +
+                                    _tag(cmin[k], lmin[k]), flip, rank=1,
+                                    colour=MIN_COLOUR))
+            else:
+                labels.append(Label(ax, xj, m_cl, f"{_num(m_cl)} at CL" +
+                                    _tag(cmin[k], lmin[k]), flip, rank=1, colour=MIN_COLOUR))
+    return faces_drawn
+
+
+def total_of(joint_x: np.ndarray) -> float:
+    return float(joint_x[-1]) if joint_x.size else 1.0
+
+
+def _shear_labels(ax: Any, labels: list[Label], env: Columns, n_spans: int) -> None:
+    """Both end shears of every span, signed, with the governing combination."""
+    x = _finite(env["x"])
+    span = np.asarray(env["span"], dtype=int)
+    vmax, vmin = _finite(env["shear_max"]), _finite(env["shear_min"])
+    scale = float(np.nanmax(np.abs(np.r_[vmax, vmin, 0.0])))
+    for j in range(1, n_spans + 1):
+        rows = _rows_of(span, j)
+        if not rows.size:
+            continue
+        for k, rank in ((rows[0], 2), (rows[-1], 2)):
+            hi, lo = vmax[k], vmin[k]
+            if not (np.isfinite(hi) and np.isfinite(lo)):
+                continue
+            v, combo, loaded = (hi, env["shear_max_combo"][k], env["shear_max_loaded"][k]) \
+                if abs(hi) >= abs(lo) else (lo, env["shear_min_combo"][k],
+                                            env["shear_min_loaded"][k])
+            if abs(v) <= 1e-9 * max(scale, 1.0):
+                continue
+            labels.append(Label(ax, x[k], v, _num(v) + _tag(combo, loaded), v >= 0, rank,
+                                MAX_COLOUR if v >= 0 else MIN_COLOUR))
+
+
+def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Columns,
+                       sizing: Columns | None, sk: Mapping[str, Any] | None,
+                       joint_x: np.ndarray, n_spans: int) -> list[str]:
+    used: list[str] = []
+    x = _finite(env["x"])
+    span = np.asarray(env["span"], dtype=int)
+    dmax = _finite(env["deflection_max"])
+    d_scale = float(np.nanmax(np.r_[np.abs(dmax), 0.0]))
+    for j in range(1, n_spans + 1):
+        rows = _rows_of(span, j)
+        if not rows.size or not np.any(np.isfinite(dmax[rows])):
+            continue
+        k = rows[np.nanargmax(dmax[rows])]
+        if dmax[k] > 0.02 * d_scale:
+            labels.append(Label(ax, x[k], dmax[k], _num(dmax[k], 2) +
+                                _tag(env["deflection_max_combo"][k],
+                                     env["deflection_max_loaded"][k]), False, rank=3,
+                                colour=MAX_COLOUR))
+    # springs where they settle: the support drawn at its largest deflection
+    for j, sup in enumerate((sk or {}).get("supports", [])):
+        kv = sup.get("k_vertical", None)
+        if kv is None or kv <= 0.0 or j >= joint_x.size:
+            continue
+        near = np.flatnonzero(np.isclose(x, joint_x[j], atol=1e-9 * max(total_of(joint_x), 1)))
+        if not near.size:
+            continue
+        d = float(np.nanmax(dmax[near]))
+        if not np.isfinite(d):
+            continue
+        ax.plot([joint_x[j], joint_x[j]], [0.0, d], color=INK, lw=0.7, ls=":", zorder=5)
+        ax.plot([joint_x[j]], [d], marker=SPRING, markersize=18, color=INK, mew=1.0,
+                mfc="white", ls="none", zorder=6)
+        labels.append(Label(ax, joint_x[j], d, f"spring settles {_num(d, 2)}", False, rank=3))
+        if "spring settlement" not in used:
+            used.append("spring settlement")
+    # the deflection of the section sizing chose, where it reports one
+    if sizing is not None and "deflection_total" in sizing and "x" in sizing:
+        sx, sd = _finite(sizing["x"]), _finite(sizing["deflection_total"])
+        ok = np.isfinite(sx) & np.isfinite(sd)
+        if np.any(ok):
+            ax.plot(sx[ok], sd[ok], marker="D", markersize=4, color=SIZED_COLOUR, ls="none",
+                    zorder=6)
+            used.append("deflection, sized section")
+    return used
+
+
+# --------------------------------------------------------------------------- sizing
+
+
+def _sizing_kind(sizing: Columns | None) -> str:
+    """"steel area" (required and provided steel), "utilisation", or "" (no panel)."""
+    if not sizing or "x" not in sizing:
+        return ""
+    if "as_required" in sizing:
+        return "steel area"
+    if any(str(k).startswith("utilisation_") for k in sizing):
+        return "utilisation"
+    return ""
+
+
+def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
+                  units: Mapping[str, str]) -> None:
+    x = _finite(sizing["x"])
+    section = np.asarray(sizing.get("section", np.array([""] * x.size)), dtype=object)
+    order = np.argsort(x, kind="stable")
+    if kind == "steel area":
+        req = _finite(sizing["as_required"])
+        provided_col = "as_provided" if "as_provided" in sizing else "as_design"
+        prov = _finite(sizing.get(provided_col, req))
+        top = section != "span"
+        for mask, name, colour in ((top, "top (hogging)", MIN_COLOUR),
+                                   (~top, "bottom (sagging)", MAX_COLOUR)):
+            idx = order[mask[order]]
+            ax.plot(x[idx], req[idx], marker="o", mfc="white", color=colour, lw=0.9,
+                    markersize=4, ls="-", zorder=4, label=f"required, {name}")
+            ax.plot(x[idx], prov[idx], marker="s", color=colour, lw=0, markersize=4,
+                    zorder=5, label=f"provided, {name}")
+        if "bars" in sizing:
+            bars = sizing["bars"]
+            for i in order:
+                if bars[i] and np.isfinite(prov[i]):
+                    labels.append(Label(ax, x[i], prov[i], literal(bars[i], 14), True, 4))
+        area = "mm2" if units.get("length") == "m" else "in2"
+        _style_panel(ax, f"Steel area\n[{area}]")
+        top_value = float(np.nanmax(np.r_[req, prov, 0.0]))
+        ax.set_ylim(0.0, 1.45 * top_value if top_value > 0 else 1.0)
+        ax.legend(fontsize=6, frameon=False, loc="upper right", ncol=4)
+    else:
+        names = [k for k in sizing if str(k).startswith("utilisation_")]
+        colours = (MAX_COLOUR, MIN_COLOUR, SIZED_COLOUR, FACE_COLOUR, SOFT)
+        for i, name in enumerate(names):
+            u = _finite(sizing[name])
+            ok = order[np.isfinite(u[order])]
+            ax.plot(x[ok], u[ok], marker="o", markersize=3.5, lw=0.8,
+                    color=colours[i % len(colours)], label=literal(name[12:], 16), zorder=4)
+        ax.axhline(1.0, color=MAX_COLOUR, lw=0.8, ls="--", zorder=3)
+        ax.set_ylim(0.0, max(1.3, float(np.nanmax([np.nanmax(_finite(sizing[n]))
+                                                   for n in names] + [0.0])) * 1.3))
+        _style_panel(ax, "Utilisation\n(1.0 = capacity)")
+        ax.legend(fontsize=6, frameon=False, loc="upper right", ncol=len(names))
+
+
+# --------------------------------------------------------------------------- the key
+
+
+def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str]) -> None:
+    """A key to the symbols drawn, in one row under the panels."""
+    handles = [Line2D([], [], color=MAX_COLOUR, lw=1.4), Line2D([], [], color=MIN_COLOUR,
+                                                                lw=1.4)]
+    names = ["envelope maximum", "envelope minimum"]
+    symbols = {
+        "pinned": {"marker": PIN, "mfc": "white"},
+        "fixed": {"marker": FIXED},
+        "vertical spring": {"marker": SPRING, "mfc": "white"},
+        "rotational spring": {"marker": COIL, "mfc": "none"},
+        "hinge": {"marker": "o", "mfc": "white", "markersize": 5},
+        "support face": {"marker": "s", "mfc": "#e9dfcc", "mec": FACE_COLOUR},
+        "value at support face": {"marker": "|", "color": FACE_COLOUR},
+        "applied moment": {"marker": COIL, "mfc": "none", "color": CASE_COLOURS[0]},
+        "settlement": {"marker": "v", "color": CASE_COLOURS[0]},
+        "spring settlement": {"marker": SPRING, "mfc": "white"},
+        "deflection, sized section": {"marker": "D", "color": SIZED_COLOUR,
+                                      "markersize": 4},
+    }
+    seen = set()
+    for name in used:
+        if name in symbols and name not in seen:
+            seen.add(name)
+            style = {"color": INK, "markersize": 9, "ls": "none", "mew": 1.0,
+                     **symbols[name]}
+            handles.append(Line2D([], [], **style))
+            names.append(name)
+    if "free end" in used:
+        names.append("free end: no symbol")
+        handles.append(Line2D([], [], ls="none"))
+    fig.legend(handles, names, loc="lower left", ncol=min(len(names), 7), fontsize=6.5,
+               frameon=False, bbox_to_anchor=(_LEFT / fig.get_figwidth() - 0.01,
+                                              0.45 / fig.get_figheight()),
+               handlelength=1.6, columnspacing=1.2, borderaxespad=0.0)
+    note = (f"Units {units.get('length', '')}, {units.get('force', '')}, "
+            f"{units.get('moment', '')}, deflection {units.get('deflection', '')}.  "
+            "Labels: value, governing combination, loaded spans; CL at the centreline.")
+    if dropped:
+        note += f" {dropped} labels left out for want of room (see design.parquet)."
+    fig.text(_LEFT / fig.get_figwidth(), 0.27 / fig.get_figheight(), note, fontsize=6.5,
+             color=SOFT, ha="left", va="bottom", parse_math=False)

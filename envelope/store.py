@@ -144,7 +144,11 @@ def envelope_table(analysis: Analysis) -> pa.Table:
         cs = solved.strength if q != "deflection" else solved.service
         factor = scale if scale is not None else beam.units.deflection_factor
         cols.update(_extreme_columns(q, analysis.envelope[q], cs, pts.n, factor))
-    return make_table(cols).replace_schema_metadata(_metadata(analysis))
+    from envelope.sketch import encode
+
+    meta = _metadata(analysis)
+    meta[b"envelope:sketch"] = encode(beam)  # the beam strip of the figure
+    return make_table(cols).replace_schema_metadata(meta)
 
 
 def reactions_table(analysis: Analysis) -> pa.Table:
@@ -380,29 +384,38 @@ def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
 
 
 def result_columns(result_tables: Mapping[str, pa.Table]) -> dict[str, dict[str, object]]:
-    """The envelope, design and reactions tables as plain columns (numpy arrays; strings
-    as object arrays) plus their metadata under ``"meta"`` (``units`` decoded)."""
+    """The envelope, design and reactions tables (and sizing, where present) as plain
+    columns (numpy arrays; strings as object arrays) plus the metadata of all of them
+    under ``"meta"`` (``units`` decoded)."""
     out: dict[str, dict[str, object]] = {}
     meta: dict[str, object] = {}
-    for stem in ("envelope", "design", "reactions"):
-        table = result_tables[stem]
+    for stem in ("envelope", "design", "reactions", "sizing"):
+        table = result_tables.get(stem)
+        if table is None:
+            continue
         cols: dict[str, object] = {}
         for name in table.column_names:
             col = table.column(name)
             if pa.types.is_string(col.type):
                 cols[name] = np.array(col.to_pylist(), dtype=object)
+            elif pa.types.is_floating(col.type) or pa.types.is_integer(col.type):
+                cols[name] = numeric_values(col.cast(pa.float64()) if not (
+                    pa.types.is_float64(col.type) or pa.types.is_int32(col.type)) else col)
             else:
-                cols[name] = numeric_values(col)
+                cols[name] = np.array(col.to_pylist(), dtype=object)
         out[stem] = cols
         raw = table.schema.metadata or {}
-        meta = {k.decode(): v.decode() for k, v in raw.items()}
+        meta.update({k.decode(): v.decode() for k, v in raw.items()})
     meta["units"] = json.loads(str(meta.get("envelope:units", "{}")))
     out["meta"] = meta
     return out
 
 
 def read_results(folder: str | os.PathLike) -> dict[str, dict[str, object]]:
-    """:func:`result_columns` of the Parquet files in one beam's result folder."""
+    """:func:`result_columns` of the Parquet files in one beam's result folder
+    (sizing.parquet where the folder has one)."""
     folder = Path(folder)
-    return result_columns({stem: pq.read_table(folder / f"{stem}.parquet")
-                           for stem in ("envelope", "design", "reactions")})
+    stems = ["envelope", "design", "reactions"]
+    if (folder / "sizing.parquet").is_file():
+        stems.append("sizing")
+    return result_columns({stem: pq.read_table(folder / f"{stem}.parquet") for stem in stems})

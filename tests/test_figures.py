@@ -1,0 +1,350 @@
+"""The envelope figure: it renders for every demo case, the bundled demo and a ten-span
+beam; its labels stay inside their panels and clear of one another (measured from the
+drawn text extents); it shows what an engineer reads at a glance (supports by type,
+loads to scale, face values saying so, end shears, loaded spans, spring settlement, a
+key, sizing) with the caution; its text is literal and editable."""
+
+from __future__ import annotations
+
+import itertools
+import tracemalloc
+import warnings
+from importlib.resources import files
+from pathlib import Path
+
+import numpy as np
+import pytest
+from matplotlib.figure import Figure
+from matplotlib.text import Text
+
+import envelope
+from envelope import plots, store
+from envelope.sketch import MAX_LOADS
+
+ROOT = Path(__file__).resolve().parents[1]
+CASES = sorted((ROOT / "cases").glob("*.toml"))
+DEMO = Path(str(files("envelope") / "data" / "demo.toml"))
+
+TEN_SPANS = """
+title = "Ten bays, unequal spans"
+units = "SI"
+[section]
+E = 30000
+I = 2.0e10
+A = 400000
+unit_weight = 25.0
+""" + "".join(f"[[spans]]\nlength = {L}\n" for L in (6.0, 5.0, 3.5, 7.0, 2.5, 6.5, 4.0, 3.0,
+                                                     5.5, 4.5)) + "".join(
+    f"[[supports]]\n{s}\n" for s in (
+        'type = "pinned"\nwidth = 0.4', 'type = "pinned"\nwidth = 0.4',
+        'type = "spring"\nk_vertical = 80000', 'type = "pinned"\nwidth = 0.4',
+        'type = "pinned"\nwidth = 0.4', 'type = "fixed"', 'type = "pinned"\nwidth = 0.4',
+        'type = "pinned"', 'type = "pinned"\nwidth = 0.3', 'type = "pinned"\nwidth = 0.4',
+        'type = "pinned"')) + """
+[cases]
+D = { kind = "dead" }
+L = { kind = "live" }
+[[loads]]
+case = "D"
+type = "self_weight"
+spans = "all"
+[[loads]]
+case = "D"
+type = "uniform"
+spans = "all"
+w = 20.0
+[[loads]]
+case = "L"
+type = "uniform"
+spans = "all"
+w = 15.0
+[[loads]]
+case = "L"
+type = "point"
+spans = 4
+P = 60.0
+at = 3.0
+[[loads]]
+case = "D"
+type = "moment"
+spans = 6
+M = 40.0
+at = 2.0
+[combinations]
+strength = "asce7-lrfd"
+service = "characteristic"
+[patterning]
+method = "exhaustive"
+"""
+
+
+def _analysis(path: Path) -> envelope.api.Analysis:
+    return envelope.analyse(envelope.load_case(str(path)))
+
+
+@pytest.fixture(scope="module")
+def ten_spans(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    path = tmp_path_factory.mktemp("ten") / "ten-spans.toml"
+    path.write_text(TEN_SPANS, encoding="utf-8")
+    return path
+
+
+def _columns(result: envelope.api.Analysis) -> dict:
+    return store.result_columns(envelope.tables(result))
+
+
+def _texts(fig: Figure) -> list[tuple[Text, object]]:
+    """Every visible, non-empty text of the figure with its drawn extent (pixels)."""
+    fig.canvas.draw()
+    renderer = fig.canvas.get_renderer()
+    out = []
+    for t in fig.findobj(Text):
+        if t.get_visible() and t.get_text().strip() and t.figure is not None:
+            # the text itself (an annotation's own extent also covers its leader line)
+            out.append((t, Text.get_window_extent(t, renderer)))
+    return out
+
+
+def assert_labels_clear(fig: Figure) -> int:
+    """No two drawn texts overlap; every value label lies inside its own axes, clear of
+    the spines.  Returns the number of value labels."""
+    texts = _texts(fig)
+    for (a, ba), (b, bb) in itertools.combinations(texts, 2):
+        overlap_x = min(ba.x1, bb.x1) - max(ba.x0, bb.x0)
+        overlap_y = min(ba.y1, bb.y1) - max(ba.y0, bb.y0)
+        assert overlap_x <= 0.5 or overlap_y <= 0.5, \
+            f"{a.get_text()!r} overlaps {b.get_text()!r}"
+    labels = [(t, box) for t, box in texts if t.get_gid() == "value-label"]
+    renderer = fig.canvas.get_renderer()
+    for t, box in labels:
+        frame = t.axes.get_window_extent(renderer)
+        assert frame.x0 + 1 <= box.x0 and box.x1 <= frame.x1 - 1, t.get_text()
+        assert frame.y0 + 1 <= box.y0 and box.y1 <= frame.y1 - 1, t.get_text()
+    return len(labels)
+
+
+def _figure_cases() -> list[Path]:
+    return [*CASES, DEMO]
+
+
+@pytest.mark.parametrize("case", _figure_cases(), ids=[c.stem for c in _figure_cases()])
+def test_every_demo_figure_renders_with_labels_clear_of_each_other_and_the_axes(
+        case: Path) -> None:
+    fig = envelope.plot(_analysis(case))
+    assert assert_labels_clear(fig) >= 4
+
+
+def test_ten_span_figure_labels_are_clear(ten_spans: Path) -> None:
+    fig = envelope.plot(_analysis(ten_spans))
+    assert assert_labels_clear(fig) >= 20
+
+
+def test_tension_side_moments_keep_the_labels_clear() -> None:
+    text = CASES[0].read_text(encoding="utf-8")
+    result = _analysis(CASES[0])
+    cols = _columns(result)
+    cols["meta"]["envelope:moment_plot"] = "tension-side"
+    fig = plots.figure(cols)
+    assert assert_labels_clear(fig) >= 4
+    assert text  # the case itself is unchanged
+
+
+def test_every_figure_carries_the_caution_and_a_key() -> None:
+    fig = envelope.plot(_analysis(CASES[0]))
+    words = " ".join(t.get_text() for t, _ in _texts(fig))
+    assert "checking by a licensed engineer" in words and "local codes" in words
+    assert fig.legends, "a key to the symbols"
+
+
+def _label_texts(fig: Figure) -> list[str]:
+    return [t.get_text() for t, _ in _texts(fig) if t.get_gid() == "value-label"]
+
+
+def test_hogging_is_labelled_at_the_face_with_the_console_value() -> None:
+    """Concrete with support widths: the design takes hogging at the faces (ACI 318-19
+    9.4.2.1), so the figure labels the face value the console prints, saying so."""
+    office = next(c for c in CASES if c.stem.startswith("office"))
+    result = _analysis(office)
+    labels = _label_texts(envelope.plot(result))
+    faces = [t for t in labels if " at face" in t]
+    assert faces
+    summary = envelope.summary(result)
+    d = result.design_actions
+    for t in faces:
+        value = t.split(" at face")[0]
+        assert value in summary, value
+        assert any(f"{v:.1f}" == value for v in np.r_[d["moment_neg_left_face"],
+                                                     d["moment_neg_right_face"]])
+
+
+def test_steel_hogging_is_labelled_at_the_centreline() -> None:
+    """Steel over its bearing: no face reduction, the centreline value, said so."""
+    mezz = next(c for c in CASES if c.stem.startswith("mezz"))
+    labels = _label_texts(envelope.plot(_analysis(mezz)))
+    assert any(" at CL" in t for t in labels)
+    assert not any(" at face" in t for t in labels)
+
+
+def test_both_end_shears_of_every_span_are_labelled() -> None:
+    office = next(c for c in CASES if c.stem.startswith("office"))
+    result = _analysis(office)
+    cols = _columns(result)
+    fig = plots.figure(cols)
+    shear_ax = fig.axes[2]
+    values = {t.get_text().split("\n")[0] for t in shear_ax.texts if t.get_gid() == "value-label"}
+    env = cols["envelope"]
+    for j in range(1, result.beam.n_spans + 1):
+        rows = np.flatnonzero(env["span"] == j)
+        for k in (rows[0], rows[-1]):
+            v = max(env["shear_max"][k], env["shear_min"][k], key=abs)
+            assert f"{v:.1f}" in values, (j, v, values)
+
+
+def test_labels_name_the_governing_combination_and_loaded_spans() -> None:
+    office = next(c for c in CASES if c.stem.startswith("office"))
+    labels = _label_texts(envelope.plot(_analysis(office)))
+    assert sum("loaded " in t for t in labels) >= 8
+    assert all("\n" in t for t in labels)
+
+
+def test_spring_support_is_drawn_where_it_settles() -> None:
+    """The car-park spring settles about 1.8 mm: the deflection panel draws it there."""
+    carpark = next(c for c in CASES if c.stem.startswith("carpark"))
+    result = _analysis(carpark)
+    cols = _columns(result)
+    fig = plots.figure(cols)
+    texts = [t for t in _label_texts(fig) if t.startswith("spring settles")]
+    assert len(texts) == 1
+    env = cols["envelope"]
+    x_spring = result.beam.joint_x[1]
+    d = float(np.nanmax(env["deflection_max"][np.isclose(env["x"], x_spring)]))
+    assert texts[0] == f"spring settles {d:.2f}" and d > 1.0
+    d_ax = fig.axes[3]
+    assert any(line.get_marker() is plots.SPRING and np.isclose(line.get_ydata()[0], d)
+               for line in d_ax.lines)
+
+
+def test_supports_are_drawn_by_type_and_keyed() -> None:
+    carpark = next(c for c in CASES if c.stem.startswith("carpark"))
+    fig = envelope.plot(_analysis(carpark))
+    strip = fig.axes[0]
+    markers = [line.get_marker() for line in strip.lines]
+    assert sum(m is plots.PIN for m in markers) == 3
+    assert sum(m is plots.SPRING for m in markers) == 1
+    key = [t.get_text() for t in fig.legends[0].get_texts()]
+    for name in ("pinned", "vertical spring", "support face", "spring settlement"):
+        assert name in key
+
+
+def test_loads_are_drawn_to_scale_within_their_case(ten_spans: Path) -> None:
+    """Two uniform loads of one case, 20 and 10: drawn heights 2 to 1."""
+    text = TEN_SPANS.replace('w = 15.0', 'w = 10.0\n[[loads]]\ncase = "L"\ntype = "uniform"\n'
+                             'spans = [2]\nw = 20.0', 1)
+    path = ten_spans.with_name("scale.toml")
+    path.write_text(text, encoding="utf-8")
+    fig = envelope.plot(_analysis(path))
+    from matplotlib.patches import Polygon
+
+    heights = sorted({round(float(np.ptp(p.get_xy()[:, 1])), 9)
+                      for p in fig.axes[0].patches if isinstance(p, Polygon)})
+    assert any(np.isclose(a * 2, b) for a in heights for b in heights)
+
+
+def test_hinges_in_the_sketch_are_drawn_and_keyed() -> None:
+    cols = _columns(_analysis(CASES[0]))
+    import json
+
+    sk = json.loads(cols["meta"]["envelope:sketch"])
+    sk["hinges"] = [2.0]
+    cols["meta"]["envelope:sketch"] = json.dumps(sk)
+    fig = plots.figure(cols)
+    assert any(line.get_marker() == "o" and line.get_xdata()[0] == 2.0
+               for line in fig.axes[0].lines)
+    assert "hinge" in [t.get_text() for t in fig.legends[0].get_texts()]
+
+
+def test_a_figure_without_a_sketch_still_draws() -> None:
+    """Result files of an earlier engine carry no sketch: supports from reactions."""
+    cols = _columns(_analysis(CASES[0]))
+    del cols["meta"]["envelope:sketch"]
+    assert assert_labels_clear(plots.figure(cols)) >= 4
+
+
+def test_concrete_sizing_draws_required_and_provided_steel() -> None:
+    office = next(c for c in CASES if c.stem.startswith("office"))
+    fig = envelope.plot(_analysis(office))
+    assert fig.axes[-1].get_ylabel().startswith("Steel area")
+    names = [line.get_label() for line in fig.axes[-1].lines]
+    assert any(n.startswith("required") for n in names)
+    assert any(n.startswith("provided") for n in names)
+
+
+def test_steel_sizing_draws_utilisation_along_the_beam() -> None:
+    mezz = next(c for c in CASES if c.stem.startswith("mezz"))
+    fig = envelope.plot(_analysis(mezz))
+    assert fig.axes[-1].get_ylabel().startswith("Utilisation")
+
+
+def test_sizing_panel_reads_columns_generically() -> None:
+    """Bars as text label the provided steel; a table with neither steel areas nor
+    utilisations gives no panel; an extra utilisation column is drawn too."""
+    office = next(c for c in CASES if c.stem.startswith("office"))
+    cols = _columns(_analysis(office))
+    n = cols["sizing"]["x"].size
+    cols["sizing"]["bars"] = np.array(["3 H20"] * n, dtype=object)
+    fig = plots.figure(cols)
+    assert "3 H20" in _label_texts(fig)
+    assert_labels_clear(fig)
+    cols["sizing"] = {"x": cols["sizing"]["x"], "note": cols["sizing"]["note"]}
+    assert plots.figure(cols).axes[-1].get_ylabel().startswith("Deflection")
+    mezz = next(c for c in CASES if c.stem.startswith("mezz"))
+    cols = _columns(_analysis(mezz))
+    cols["sizing"]["utilisation_ltb"] = np.full(cols["sizing"]["x"].size, 0.5)
+    fig = plots.figure(cols)
+    assert "ltb" in [t.get_text() for t in fig.axes[-1].get_legend().get_texts()]
+
+
+def test_text_is_literal_and_editable_in_svg_and_pdf(tmp_path: Path) -> None:
+    """A title with markup characters is drawn as written; SVG keeps text as text
+    (svg.fonttype none), PDF embeds TrueType (pdf.fonttype 42), never Type 3."""
+    cols = _columns(_analysis(CASES[0]))
+    cols["meta"]["envelope:title"] = "Beam $\\sqrt{$ 50% & <b>"
+    svg = plots.draw_results(cols, tmp_path / "f.svg").read_text(encoding="utf-8")
+    assert "<text" in svg and "$\\sqrt{$ 50% &amp; &lt;b&gt;" in svg
+    pdf = plots.draw_results(cols, tmp_path / "f.pdf").read_bytes()
+    assert b"/FontFile2" in pdf and b"/Type3" not in pdf
+
+
+def test_a_huge_title_is_cut_and_costs_little_memory() -> None:
+    cols = _columns(_analysis(CASES[0]))
+    cols["meta"]["envelope:title"] = "T" * 10_000_000
+    tracemalloc.start()
+    fig = plots.figure(cols)
+    fig.canvas.draw()
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    assert peak < 200 * 2**20, peak
+    (title,) = [t.get_text() for t in fig.findobj(Text) if t.get_text().startswith("TT")]
+    assert len(title) <= plots.TITLE_CHARS
+
+
+def test_control_characters_in_names_raise_no_warning() -> None:
+    cols = _columns(_analysis(CASES[0]))
+    cols["meta"]["envelope:title"] = "Beam\x00with\x07controls"
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        fig = plots.figure(cols)
+        fig.canvas.draw()
+    assert any(t.get_text() == "Beam?with?controls" for t in fig.findobj(Text))
+
+
+def test_the_sketch_keeps_at_most_its_limit_of_load_items() -> None:
+    from envelope.sketch import sketch
+
+    beam = envelope.load_case(str(CASES[0]))
+    many = beam.loads * (MAX_LOADS // len(beam.loads) + 2)
+    import dataclasses
+
+    sk = sketch(dataclasses.replace(beam, loads=many))
+    assert len(sk["loads"]) <= MAX_LOADS + len(beam.spans) * 4
+    assert sk["loads_omitted"] > 0
