@@ -1,0 +1,93 @@
+"""The notebook API follows the habits of the scientific Python ecosystem: ``plot``
+returns a Figure (or draws in the place of a given Axes), ``tables`` includes the
+sizing, results have a short repr, warnings come through :mod:`warnings`, ``dir()``
+finds the lazily loaded names, the public functions have numpydoc docstrings, and the
+package ships ``py.typed``."""
+
+from __future__ import annotations
+
+import inspect
+from pathlib import Path
+
+import pytest
+from matplotlib.figure import Figure
+
+import envelope
+from envelope import api
+from envelope.errors import EnvelopeWarning
+
+ROOT = Path(__file__).resolve().parents[1]
+CASES = sorted((ROOT / "cases").glob("*.toml"))
+
+
+@pytest.fixture(scope="module")
+def office() -> api.Analysis:
+    case = next(c for c in CASES if c.stem.startswith("office"))
+    return envelope.analyse(envelope.load_case(str(case)))
+
+
+def test_plot_returns_a_new_figure(office: api.Analysis) -> None:
+    fig = envelope.plot(office)
+    assert isinstance(fig, Figure)
+    assert len(fig.axes) >= 4
+
+
+def test_plot_draws_in_the_place_of_a_given_axes(office: api.Analysis) -> None:
+    fig = Figure(figsize=(12, 14))
+    left, right = fig.subplots(1, 2)
+    box = right.get_position()
+    out = envelope.plot(office, ax=right)
+    assert out is fig
+    assert right not in fig.axes and left in fig.axes
+    for ax in fig.axes[1:]:
+        p = ax.get_position()
+        assert p.x0 >= box.x0 - 1e-9 and p.x1 <= box.x1 + 1e-9
+        assert p.y0 >= box.y0 - 1e-9 and p.y1 <= box.y1 + 1e-9
+
+
+def test_tables_include_the_sizing_of_a_sized_case(office: api.Analysis) -> None:
+    tables = envelope.tables(office)
+    assert set(tables) == {"envelope", "reactions", "design", "cases", "sizing"}
+    assert tables["sizing"].num_rows == 3 * office.beam.n_spans
+
+
+def test_results_have_a_short_repr(office: api.Analysis) -> None:
+    text = repr(office)
+    assert len(text) < 200 and "\n" not in text
+    assert office.beam.id in text and f"{office.beam.n_spans} spans" in text
+
+
+def test_solver_warnings_come_through_the_warnings_module() -> None:
+    """A near-rigid spring (1e18 kN/m) makes the stiffness matrix badly conditioned."""
+    beam = envelope.load_case(str(next(c for c in CASES if c.stem.startswith("carpark"))))
+    import dataclasses
+    import math
+
+    supports = list(beam.supports)
+    supports[1] = dataclasses.replace(supports[1], k_vertical=1e18, k_rotation=math.inf)
+    stiff = dataclasses.replace(beam, supports=tuple(supports))
+    with pytest.warns(EnvelopeWarning, match="badly conditioned"):
+        envelope.analyse(stiff)
+
+
+def test_completion_finds_the_public_names() -> None:
+    names = dir(envelope)
+    for name in ("analyse", "load_case", "plot", "summary", "tables", "write",
+                 "engine_version"):
+        assert name in names
+
+
+def test_public_functions_have_numpydoc_sections() -> None:
+    for name in ("analyse", "tables", "summary", "plot", "write", "redraw"):
+        doc = inspect.getdoc(getattr(api, name)) or ""
+        assert "Parameters\n----------" in doc, name
+        assert "Returns\n-------" in doc, name
+        params = [p for p in inspect.signature(getattr(api, name)).parameters]
+        for p in params:
+            assert f"\n{p} :" in doc, (name, p)
+
+
+def test_the_package_ships_py_typed() -> None:
+    assert (Path(envelope.__file__).parent / "py.typed").is_file()
+    text = (ROOT / "pyproject.toml").read_text(encoding="utf-8")
+    assert '"py.typed"' in text
