@@ -67,6 +67,9 @@ def test_quiet_run_prints_only_the_folder_and_verbose_check_counts(tmp_path: Pat
                                        "--no-plots", "-q"])
     assert result.exit_code == 0
     assert result.stdout.strip().splitlines() == [f"wrote {next(tmp_path.iterdir())}"]
+    result = CliRunner().invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path),
+                                       "--no-plots", "-v"])
+    assert "spans, " in result.stdout and "envelope.parquet" in result.stdout
     result = CliRunner().invoke(main, ["check", "-v", *map(str, CASES)])
     assert f"check: {len(CASES)} case files, 0 bad" in result.stdout
     result = CliRunner().invoke(main, ["check", "-q", *map(str, CASES)])

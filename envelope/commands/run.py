@@ -49,6 +49,9 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
                                      warning.lineno)
         folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
     click.echo(f"wrote {Path(folder)}")
+    files = sorted(p.name for p in Path(folder).iterdir() if not p.name.startswith("."))
+    say(f"{beam.id}: {beam.n_spans} spans, {result.stations.n} stations, "
+        f"{len(beam.loads)} load items; files: {', '.join(files)}", at=1)
     if report:
         from envelope.report.build import write_report
 
