@@ -2,7 +2,8 @@
 
 Written into envelope.parquet as the ``envelope:sketch`` metadata, so that ``envelope
 plot`` redraws the beam strip from the result files alone.  Values are in the consistent
-units of the case (length m or ft, force kN or kip); a rigid restraint is ``null``.
+units of the case (length m or ft, force kN or kip); a rigid restraint is ``null``;
+supports and spans are numbered from 1, as in the case file.
 Load types this module does not know are kept with their type only (the figure counts
 them).  At most :data:`MAX_LOADS` load items are kept; ``loads_omitted`` counts the rest.
 """
@@ -58,10 +59,12 @@ def _load(beam: Beam, load: Any) -> list[dict[str, Any]]:
         value = getattr(load, name, None)
         if isinstance(value, int | float) and math.isfinite(value):
             item[name] = float(value)
-    for name in ("support", "delta"):  # settlement of a support, where the model has it
-        value = getattr(load, name, None)
-        if isinstance(value, int | float) and math.isfinite(value):
-            item[name] = value
+    if kind == "settlement":  # the support as numbered in the case file (from 1)
+        support, delta = getattr(load, "support", None), getattr(load, "delta", None)
+        if isinstance(support, int) and support >= 0:
+            item["support"] = support + 1
+        if isinstance(delta, int | float) and math.isfinite(delta):
+            item["delta"] = float(delta)
     return [item]
 
 

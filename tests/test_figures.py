@@ -347,3 +347,57 @@ def test_the_sketch_keeps_at_most_its_limit_of_load_items() -> None:
     sk = sketch(dataclasses.replace(beam, loads=many))
     assert len(sk["loads"]) <= MAX_LOADS + len(beam.spans) * 4
     assert sk["loads_omitted"] > 0
+
+
+HINGED = """
+title = "Two spans, a hinge in the first, the middle support settling"
+units = "SI"
+[section]
+E = 30000
+I = 1.0e10
+[[spans]]
+length = 6.0
+[[spans.hinges]]
+at = 4.5
+[[spans]]
+length = 6.0
+[[supports]]
+type = "fixed"
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[cases]
+D = { kind = "dead" }
+S = { kind = "dead" }
+[[loads]]
+case = "D"
+type = "uniform"
+spans = "all"
+w = 10.0
+[combinations]
+strength = "asce7-lrfd"
+service = "characteristic"
+"""
+
+
+def test_hinges_and_settlement_of_a_case_are_drawn(tmp_path: Path) -> None:
+    import dataclasses
+
+    from envelope.model import Load
+
+    path = tmp_path / "hinged.toml"
+    path.write_text(HINGED, encoding="utf-8")
+    beam = envelope.load_case(str(path))
+    settle = Load(case="S", type="settlement", span=0, support=1, delta=0.01)
+    beam = dataclasses.replace(beam, loads=(*beam.loads, settle))
+    fig = envelope.plot(envelope.analyse(beam))
+    strip = fig.axes[0]
+    assert any(line.get_marker() == "o" and np.isclose(line.get_xdata()[0], 4.5)
+               for line in strip.lines)
+    key = [t.get_text() for t in fig.legends[0].get_texts()]
+    assert "hinge" in key and "settlement" in key and "fixed" in key
+    arrows = [a for a in strip.texts if getattr(a, "xy", None) is not None
+              and np.isclose(a.xy[0], 6.0) and a.xy[1] < 0]
+    assert arrows, "the settlement arrow under support 2"
+    assert_labels_clear(fig)
