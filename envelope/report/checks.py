@@ -29,7 +29,8 @@ CLAUSES: dict[str, dict[str, str]] = {
         "deflection": "EN 1992-1-1 7.4.1, limits span/N from the case file",
     },
     "aisc360-22": {
-        "moment": "AISC 360-22 F2.1 (F2.2 where lateral-torsional buckling is checked)",
+        "moment": "AISC 360-22 F2.1, F2.2 (yielding, lateral-torsional buckling; Cb by "
+                  "F1-1), F3 (flange local buckling)",
         "shear": "AISC 360-22 G2.1",
         "bearing": "AISC 360-22 J10.2 (web local yielding), J10.3 (web crippling)",
         "deflection": "AISC 360-22 L3, limits span/N from the case file",
