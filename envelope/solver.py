@@ -219,7 +219,10 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     ab = np.zeros((4, n_dof))
     p, q = np.triu_indices(4)
     base = 2 * np.arange(n_e)
-    np.add.at(ab, (3 + p - q, base[:, None] + q), ke[:, p, q])
+    for pi, qi in zip(p.tolist(), q.tolist(), strict=True):
+        # one band entry per element for each (p, q): no repeated index within a step,
+        # and at most two terms meet in an entry (so the order does not matter)
+        ab[3 + pi - qi, base + qi] += ke[:, pi, qi]
     rigid, spring = _restraints(mesh, supports)
     ab[3] += spring
     scale = float(ab[3].max())
