@@ -734,10 +734,15 @@ def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Colum
                                      env["deflection_max_loaded"][k]), False, rank=3,
                                 colour=MAX_COLOUR))
     # springs where they settle: the support drawn at its largest deflection
+    settling = {int(it.get("support", 0)) - 1 for it in (sk or {}).get("loads", [])
+                if it.get("type") == "settlement"}
     for j, sup in enumerate((sk or {}).get("supports", [])):
         kv = sup.get("k_vertical", None)
-        if kv is None or kv <= 0.0 or j >= joint_x.size:
+        spring = kv is not None and kv > 0.0
+        if not (spring or j in settling) or j >= joint_x.size:
             continue
+        marker = _support_marker(sup)
+        symbol = SPRING if spring or marker is None else marker[0]
         near = np.flatnonzero(np.isclose(x, joint_x[j], atol=1e-9 * max(total_of(joint_x), 1)))
         if not near.size:
             continue
@@ -745,10 +750,11 @@ def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Colum
         if not np.isfinite(d):
             continue
         ax.plot([joint_x[j], joint_x[j]], [0.0, d], color=INK, lw=0.7, ls=":", zorder=5)
-        ax.plot([joint_x[j]], [d], marker=SPRING, markersize=18, color=INK, mew=1.0,
-                mfc="white", ls="none", zorder=6)
-        labels.append(Label(ax, joint_x[j], d, f"spring settles {_num(d, 2)}", False, rank=3))
-        if "spring settlement" not in used:
+        ax.plot([joint_x[j]], [d], marker=symbol, markersize=18 if spring else 12, color=INK,
+                mew=1.0, mfc="white", ls="none", zorder=6)
+        what = "spring settles" if spring else "support settles"
+        labels.append(Label(ax, joint_x[j], d, f"{what} {_num(d, 2)}", False, rank=3))
+        if "spring settlement" not in used and spring:
             used.append("spring settlement")
     # the deflection of the section sizing chose, where it reports one
     if sizing is not None and "deflection_total" in sizing and "x" in sizing:

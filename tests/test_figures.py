@@ -400,4 +400,5 @@ def test_hinges_and_settlement_of_a_case_are_drawn(tmp_path: Path) -> None:
     arrows = [a for a in strip.texts if getattr(a, "xy", None) is not None
               and np.isclose(a.xy[0], 6.0) and a.xy[1] < 0]
     assert arrows, "the settlement arrow under support 2"
+    assert "support settles 10.00" in _label_texts(fig)  # 0.01 m, drawn in mm
     assert_labels_clear(fig)
