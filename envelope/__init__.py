@@ -9,7 +9,7 @@ The public API, for notebooks and for the command line alike::
     tables = envelope.tables(result)      # dict of pyarrow Tables by file stem
     envelope.write(result, "results")     # results/<id>/*.parquet
     fig = envelope.plot(result)           # a matplotlib Figure
-    print(envelope.summary(result))       # the console summary
+    print(envelope.summary_text(result))  # the console summary
 
 Results are for checking by a licensed engineer and defer to local codes.
 """
@@ -20,9 +20,10 @@ from typing import TYPE_CHECKING, Any
 
 __version__ = "0.1.0"
 
-__all__ = ["__version__", "analyse", "engine_version", "load_case", "plot", "summary", "tables",
-           "write"]
-_API = ("analyse", "load_case", "plot", "summary", "tables", "write")
+__all__ = ["__version__", "analyse", "engine_version", "load_case", "plot", "summary_text",
+           "tables", "write"]
+# (not "summary": that name is the module envelope.summary)
+_API = ("analyse", "load_case", "plot", "summary_text", "tables", "write")
 
 
 def engine_version() -> str:
@@ -52,7 +53,7 @@ def engine_version() -> str:
 _ENGINE_VERSION: str | None = None
 
 if TYPE_CHECKING:
-    from envelope.api import analyse, load_case, plot, summary, tables, write
+    from envelope.api import analyse, load_case, plot, summary_text, tables, write
 
 
 def __getattr__(name: str) -> Any:

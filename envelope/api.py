@@ -26,7 +26,8 @@ if TYPE_CHECKING:
 
     from envelope.model import Beam
 
-__all__ = ["Analysis", "analyse", "load_case", "plot", "redraw", "summary", "tables", "write"]
+__all__ = ["Analysis", "analyse", "load_case", "plot", "redraw", "summary_text", "tables",
+           "write"]
 
 #: Result files a run writes into OUT/<id>/; any of them an earlier run left and this
 #: one did not write is removed, so a folder never mixes two runs.
@@ -87,7 +88,7 @@ def _tables(result: Analysis, all_cases: bool) -> dict[str, pa.Table]:
     return built
 
 
-def summary(result: Analysis) -> str:
+def summary_text(result: Analysis) -> str:
     """The console summary: governing values per span, then the sizing when the case
     has a ``[design]`` table; each part ends with its caution line.
 

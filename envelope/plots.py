@@ -817,8 +817,8 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
             ax.plot(x[ok], u[ok], marker="o", markersize=3.5, lw=0.8,
                     color=colours[i % len(colours)], label=literal(name[12:], 16), zorder=4)
         ax.axhline(1.0, color=MAX_COLOUR, lw=0.8, ls="--", zorder=3)
-        ax.set_ylim(0.0, max(1.3, float(np.nanmax([np.nanmax(_finite(sizing[n]))
-                                                   for n in names] + [0.0])) * 1.3))
+        values = np.concatenate([_finite(sizing[n]) for n in names] + [np.zeros(1)])
+        ax.set_ylim(0.0, max(1.3, float(values[np.isfinite(values)].max()) * 1.3))
         _style_panel(ax, "Utilisation\n(1.0 = capacity)")
         ax.legend(fontsize=6, frameon=False, loc="upper right", ncol=len(names))
 

@@ -167,7 +167,7 @@ def test_hogging_is_labelled_at_the_face_with_the_console_value() -> None:
     labels = _label_texts(envelope.plot(result))
     faces = [t for t in labels if " at face" in t]
     assert faces
-    summary = envelope.summary(result)
+    summary = envelope.summary_text(result)
     d = result.design_actions
     for t in faces:
         value = t.split(" at face")[0]

@@ -72,13 +72,13 @@ def test_solver_warnings_come_through_the_warnings_module() -> None:
 
 def test_completion_finds_the_public_names() -> None:
     names = dir(envelope)
-    for name in ("analyse", "load_case", "plot", "summary", "tables", "write",
+    for name in ("analyse", "load_case", "plot", "summary_text", "tables", "write",
                  "engine_version"):
         assert name in names
 
 
 def test_public_functions_have_numpydoc_sections() -> None:
-    for name in ("analyse", "tables", "summary", "plot", "write", "redraw"):
+    for name in ("analyse", "tables", "summary_text", "plot", "write", "redraw"):
         doc = inspect.getdoc(getattr(api, name)) or ""
         assert "Parameters\n----------" in doc, name
         assert "Returns\n-------" in doc, name
@@ -91,3 +91,12 @@ def test_the_package_ships_py_typed() -> None:
     assert (Path(envelope.__file__).parent / "py.typed").is_file()
     text = (ROOT / "pyproject.toml").read_text(encoding="utf-8")
     assert '"py.typed"' in text
+
+
+def test_the_summary_text_is_a_function_even_after_the_summary_module_loads(
+        office: api.Analysis) -> None:
+    import envelope.summary  # the module of the same stem
+
+    text = envelope.summary_text(office)
+    assert text.splitlines()[-1].startswith("Sizing is a first check") or \
+        "licensed engineer" in text

@@ -60,4 +60,4 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
     else:  # a report of earlier results must not stand beside these
         for name in ("report.html", "report.pdf"):
             (Path(folder) / name).unlink(missing_ok=True)
-    say(api.summary(result))  # each summary ends with its caution line
+    say(api.summary_text(result))  # each summary ends with its caution line
