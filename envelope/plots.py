@@ -75,6 +75,7 @@ FACE_COLOUR = "#9a7b4f"
 SIZED_COLOUR = "#3f7f4f"
 CASE_COLOURS = ("#7a6a58", "#b5651d", "#4f7a8a", "#8a4f7a", "#5f7a3a", "#8a7a2f")
 STYLE = {"svg.fonttype": "none", "pdf.fonttype": 42, "ps.fonttype": 42,
+         "svg.hashsalt": "envelope",  # the same ids on every run: reproducible files
          "font.size": 8, "axes.linewidth": 0.7, "text.usetex": False}
 
 _CONTROL = {c: "?" for c in range(32)} | {0x7f: "?"}
@@ -515,6 +516,10 @@ def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool
         kwargs: dict[str, Any] = {"format": fmt, "dpi": DPI, "facecolor": "white"}
         if fmt == "png":  # fast deflate: a quarter of the encoding time, a larger file
             kwargs["pil_kwargs"] = {"compress_level": 1}
+        elif fmt == "svg":  # no date: the same results give the same file
+            kwargs["metadata"] = {"Date": None}
+        elif fmt == "pdf":
+            kwargs["metadata"] = {"CreationDate": None}
         write_atomic(path, lambda fh: fig.savefig(fh, **kwargs), durable)
     return path
 

@@ -402,3 +402,29 @@ def test_hinges_and_settlement_of_a_case_are_drawn(tmp_path: Path) -> None:
     assert arrows, "the settlement arrow under support 2"
     assert "support settles 10.00" in _label_texts(fig)  # 0.01 m, drawn in mm
     assert_labels_clear(fig)
+
+
+def test_curves_are_thinned_to_what_the_pixels_show_keeping_the_peaks() -> None:
+    x = np.linspace(0.0, 10.0, 100_001)
+    hi = np.sin(x)
+    hi[54_321] = 5.0  # a one-station spike must survive
+    lo = -hi
+    xt, ht, lt = plots._thin(x, hi, lo, pixels=800)
+    assert xt.size <= 2 * 800 + 1
+    assert ht.max() == 5.0 and lt.min() == -5.0
+    assert np.all(np.diff(xt) > 0)
+
+
+def test_a_reused_figure_draws_the_same_file_as_a_new_one(tmp_path: Path) -> None:
+    """Batch workers reuse one figure across beams: nothing of the last beam remains."""
+    office, carpark = (next(c for c in CASES if c.stem.startswith(s))
+                       for s in ("office", "carpark"))
+    plots._KEPT.clear()
+    a = _columns(_analysis(office))
+    b = _columns(_analysis(carpark))
+    plots.draw_results(a, tmp_path / "first.svg")
+    plots.draw_results(b, tmp_path / "other.svg")
+    plots.draw_results(a, tmp_path / "again.svg")
+    first = (tmp_path / "first.svg").read_text(encoding="utf-8")
+    assert first == (tmp_path / "again.svg").read_text(encoding="utf-8")
+    assert len(plots._KEPT) >= 1
