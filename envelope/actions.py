@@ -221,9 +221,16 @@ def design_actions(solved: Solved, pts: Points,
     else:
         out["deflection_max"] = nan
     live = envelope_at(solved, pts, "deflection", "live", labels=False)
+    out["deflection_live_combo"] = np.full(n, "", dtype=object)
     if live is not None:
-        lmax, _ = refine_max(solved, pts, live.max, "deflection", "live")
+        lmax, lx = refine_max(solved, pts, live.max, "deflection", "live")
         out["deflection_live"] = np.maximum(lmax, 0.0)
+        # which variable action alone governs, at the span's largest deflection
+        at = envelope_at(solved, make_points(beam, np.arange(n), lx), "deflection", "live",
+                         labels=False)
+        assert at is not None
+        names = np.array([c.name for c in solved.live.combinations], dtype=object)
+        out["deflection_live_combo"] = np.where(lmax > 0.0, names[at.max_combo], "")
     else:
         out["deflection_live"] = np.zeros(n)
     with np.errstate(divide="ignore", invalid="ignore"):

@@ -13,10 +13,11 @@ import numpy as np
 
 from envelope import config
 from envelope.combinations import build as build_combinations
+from envelope.combinations import variable_alone
 from envelope.enveloper import CaseSet, Extremes, build_case_set, reduce
 from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
 from envelope.mesh import Mesh, build_mesh
-from envelope.model import LIVE_KINDS, Beam, Combination
+from envelope.model import Beam, Combination
 from envelope.recovery import Points, Response, evaluate, evaluate_some
 from envelope.solver import Solution, solve
 
@@ -35,8 +36,9 @@ class Solved:
     units: UnitCases
     solution: Solution
     strength: CaseSet
-    service: CaseSet
-    live: CaseSet  # live kinds alone at 1.0, patterned: for deflection_live
+    service: CaseSet  # every service set together
+    live: CaseSet  # each variable kind alone at 1.0: for deflection_live
+    service_sets: tuple[tuple[str, CaseSet], ...] = ()  # each service rule set alone
 
     @property
     def per_case(self) -> np.ndarray:
@@ -46,13 +48,17 @@ class Solved:
         return m
 
     def case_set(self, name: str) -> CaseSet:
-        return {"strength": self.strength, "service": self.service, "live": self.live}[name]
+        """``strength``, ``service`` (every service set), ``live`` (each variable kind
+        alone), or one service rule set by name (``characteristic``, ``frequent``,
+        ``quasi-permanent``, ``custom``); KeyError for a set the beam does not have."""
+        named = {"strength": self.strength, "service": self.service, "live": self.live}
+        return named[name] if name in named else dict(self.service_sets)[name]
 
 
 def live_combination(beam: Beam) -> tuple[Combination, ...]:
-    """The live kinds alone at 1.0 (for ``deflection_live``); empty with no live case."""
-    live = tuple((c.name, 1.0) for c in beam.cases if c.kind in LIVE_KINDS)
-    return (Combination("live kinds", "service", live, "live kinds alone"),) if live else ()
+    """Each variable kind alone at 1.0, every case acting only where it deflects the beam
+    more (for ``deflection_live``); empty with no variable case."""
+    return variable_alone(beam.cases)
 
 
 def solve_beam(beam: Beam) -> Solved:
@@ -63,11 +69,16 @@ def solve_beam(beam: Beam) -> Solved:
     combos = build_combinations(beam.cases, beam.combinations)
     strength = tuple(c for c in combos if c.set == "strength")
     service = tuple(c for c in combos if c.set == "service")
+    rules = tuple(dict.fromkeys(c.rule for c in service))
+    # favourable_dead is a strength-set option: service sets take every dead load at 1.0
     return Solved(
         beam, mesh, cells, units, solution,
         strength=build_case_set(beam, strength, units, cells),
-        service=build_case_set(beam, service, units, cells),
-        live=build_case_set(beam, live_combination(beam), units, cells),
+        service=build_case_set(beam, service, units, cells, favourable_dead=1.0),
+        live=build_case_set(beam, live_combination(beam), units, cells, favourable_dead=1.0),
+        service_sets=tuple((r, build_case_set(beam, tuple(c for c in service if c.rule == r),
+                                              units, cells, favourable_dead=1.0))
+                           for r in rules),
     )
 
 

@@ -2,47 +2,66 @@
 
 :func:`build` reads the validated load cases and the ``[combinations]`` table and
 returns every strength combination (the named rule set, then the custom ones of
-set ``strength``), then every service combination (the named rule set, then the
-custom ones of set ``service``).  Factors are dimensionless, so nothing here
-depends on the unit system.
+set ``strength``), then every service combination (each named service set in the
+order given, then the custom ones of set ``service``).  Factors are
+dimensionless, so nothing here depends on the unit system.
+
+Every variable action of a generated row acts only where it makes the effect
+worse: its case is listed in :attr:`Combination.optional`, and the enveloper
+takes it or leaves it out cell by cell (a patterned case) or over the whole beam
+(a case that is not patterned).  That is EN 1990 Table A1.2(B) (gamma_Q = 0
+where favourable) and ASCE 7-22 2.3.1 and 2.4.1 ("effects of one or more loads
+not acting shall be investigated").  The leading action of an EN row always
+acts (a patterned one on the cells its patterning chooses); each variable case
+leads in turn, so the row with another leader, or the permanent-only row,
+covers it where it helps.  Custom rows act as given.
 
 The rule sets are data, one table per set:
 
 * ``asce7-lrfd``: ASCE/SEI 7-22 section 2.3.1, combinations 1 to 5 (no seismic);
 * ``asce7-asd``: ASCE/SEI 7-22 section 2.4.1 (no seismic);
-* ``en1990-6.10``: EN 1990:2002+A1 section 6.4.3.2, expression (6.10), with the
-  recommended partial factors of Table A1.2(B) and psi_0 of Table A1.1;
+* ``en1990-6.10``: EN 1990:2002+A1 6.4.3.2, expression (6.10), every row with the
+  whole permanent load at gamma_G,sup and again at gamma_G,inf (Table A1.2(B)),
+  psi_0 of Table A1.1;
 * ``en1990-6.10ab``: the same clause, expressions (6.10a) and (6.10b);
-* ``characteristic`` (service): every case at 1.0, and the live kinds alone at
-  1.0 (the case-format contract; common practice for deflection checks).
+* ``en1990-6.10ab-uk``: (6.10a) and (6.10b) with xi = 0.925 (the UK choice);
+* service (EN 1990 6.5.3): ``characteristic`` (6.14b), ``frequent`` (6.15b, psi_1
+  on the leading action, psi_2 on the others), ``quasi-permanent`` (6.16b, psi_2).
 
-A row refers to case *kinds*; every case of that kind takes the row's factor
-("1.2D + 1.2SDL + 1.6L").  A row is generated only when every variable kind it
-names has at least one case, and two rows of one set that end with identical
-factors are kept once (the first).  Tags in comments follow the project's
-reference list: [C] confirmed in a named source, [M] from memory, [D] derived,
-[P] common practice.
+:func:`variable_alone` gives each variable kind alone at 1.0, for the deflection
+checks by kind.  An ASCE row refers to case *kinds*; every case of that kind
+takes the row's factor ("1.2D + 1.2SDL + 1.6L").  Two generated rows of one rule
+set that end with identical factors and optional cases are kept once (the
+first).  Tags in comments follow the project's reference list: [C] confirmed in
+a named source, [M] from memory, [D] derived, [P] common practice.
 """
 
 from __future__ import annotations
 
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
+from typing import get_args
 
-from envelope.model import Combination, CombinationSet, CombinationSpec, LoadCase
-
-STRENGTH_SETS: tuple[str, ...] = (
-    "asce7-lrfd",
-    "asce7-asd",
-    "en1990-6.10",
-    "en1990-6.10ab",
-    "none",
+from envelope.model import (
+    Combination,
+    CombinationSet,
+    CombinationSpec,
+    LoadCase,
+    ServiceRuleSet,
+    StrengthRuleSet,
 )
-SERVICE_SETS: tuple[str, ...] = ("characteristic", "none")
+
+STRENGTH_SETS: tuple[str, ...] = get_args(StrengthRuleSet)
+SERVICE_SETS: tuple[str, ...] = get_args(ServiceRuleSet)
+#: Rule sets that read the national partial factors of ``[combinations].factors``.
+EN_STRENGTH_SETS: frozenset[str] = frozenset({"en1990-6.10", "en1990-6.10ab",
+                                              "en1990-6.10ab-uk"})
 
 #: Kinds that are permanent actions; every other kind is a variable action.
 PERMANENT_KINDS: frozenset[str] = frozenset({"dead"})
-#: Kinds taken by the service set's "live alone" combination.
+#: Variable kinds, in the order the deflection-by-kind rows are listed.
+VARIABLE_KINDS: tuple[str, ...] = ("live", "roof_live", "snow", "rain", "wind")
+#: Kinds taken by the service set's "live alone" combination (kept for readers).
 LIVE_KINDS: tuple[str, ...] = ("live", "roof_live")
 
 #: Factors by case name, in case declaration order.
@@ -61,21 +80,25 @@ _FACTOR_DIGITS = 10
 class Row:
     """One explicit combination of a rule table: factors by kind, and the equation it is.
 
-    ``equation`` is the equation number within the clause ``clause`` (e.g. "2"
-    of "ASCE 7-22 2.3.1").  The "or" alternatives of an equation are separate
-    rows, and so is each form with a companion load not acting (see below).
+    ``equation`` is the equation number within the clause (e.g. "2" of "ASCE 7-22
+    2.3.1").  The "or" alternatives of an equation are separate rows.  The row is
+    generated when every kind of ``needs`` has a case and, where ``needs_one`` is
+    given, one of its kinds has; every variable case of the row may then act or not.
     """
 
     equation: str
     terms: tuple[tuple[str, float], ...]
+    needs: frozenset[str] = frozenset()
+    needs_one: frozenset[str] = frozenset()
 
     @property
     def kinds(self) -> frozenset[str]:
         return frozenset(kind for kind, _ in self.terms)
 
 
-def _row(equation: str, **factors: float) -> Row:
-    return Row(equation, tuple(factors.items()))
+def _row(equation: str, needs: Iterable[str] = (), needs_one: Iterable[str] = (),
+         **factors: float) -> Row:
+    return Row(equation, tuple(factors.items()), frozenset(needs), frozenset(needs_one))
 
 
 # ASCE 7-22 section 2.3.1 (strength design, LRFD), combinations 1 to 5.
@@ -88,37 +111,28 @@ def _row(equation: str, **factors: float) -> Row:
 # Snow is strength-level in 7-22 with a load factor of 1.0 [C] (STRUCTURE
 # magazine, "Ground Snow Loads for ASCE 7-22"); the L-principal equation with
 # 0.3S is [C]; the exact layout and numbering of the 7-22 equations is [M].
-# Each equation's principal load is required; its companion loads (the bracketed
-# terms, and L in combination 4) may also be absent, because the effects of one
-# or more loads not acting are to be investigated (stated for ASCE 7-05 in a
-# masonry design text [C]; kept in 7-22 [M]).  Wind is the case as given
-# (downward positive); 0.9D + 1.0W is the uplift check.  Seismic (2.3.6),
-# tornado W_T, flood, ice and self-straining loads are not covered.
+# "Effects of one or more loads not acting shall be investigated" (2.3.1 [M] for
+# the wording in 7-22): every variable case of a row may act or not, so
+# 0.9D + 1.0W also gives 0.9D where the wind helps.  A row needs its principal
+# load (the kind outside the brackets).  Wind is the case as given (downward
+# positive).  Seismic (2.3.6), tornado W_T, flood, ice and self-straining loads
+# are not covered.
 ASCE7_LRFD_CLAUSE = "ASCE 7-22 2.3.1"
 ASCE7_LRFD: tuple[Row, ...] = (
     _row("1", dead=1.4),
-    _row("2", dead=1.2, live=1.6),
-    _row("2", dead=1.2, live=1.6, roof_live=0.5),
-    _row("2", dead=1.2, live=1.6, snow=0.3),
-    _row("2", dead=1.2, live=1.6, rain=0.5),
-    _row("3", dead=1.2, roof_live=1.6),
-    _row("3", dead=1.2, roof_live=1.6, live=1.0),
-    _row("3", dead=1.2, roof_live=1.6, wind=0.5),
-    _row("3", dead=1.2, rain=1.6),
-    _row("3", dead=1.2, rain=1.6, live=1.0),
-    _row("3", dead=1.2, rain=1.6, wind=0.5),
-    _row("3", dead=1.2, snow=1.0),
-    _row("3", dead=1.2, snow=1.0, live=1.0),
-    _row("3", dead=1.2, snow=1.0, wind=0.5),
-    _row("4", dead=1.2, wind=1.0),
-    _row("4", dead=1.2, wind=1.0, live=1.0),
-    _row("4", dead=1.2, wind=1.0, live=1.0, roof_live=0.5),
-    _row("4", dead=1.2, wind=1.0, live=1.0, snow=0.3),
-    _row("4", dead=1.2, wind=1.0, live=1.0, rain=0.5),
-    _row("4", dead=1.2, wind=1.0, roof_live=0.5),
-    _row("4", dead=1.2, wind=1.0, snow=0.3),
-    _row("4", dead=1.2, wind=1.0, rain=0.5),
-    _row("5", dead=0.9, wind=1.0),
+    _row("2", ["live"], dead=1.2, live=1.6, roof_live=0.5),
+    _row("2", ["live"], dead=1.2, live=1.6, snow=0.3),
+    _row("2", ["live"], dead=1.2, live=1.6, rain=0.5),
+    _row("3", ["roof_live"], dead=1.2, roof_live=1.6, live=1.0),
+    _row("3", ["roof_live"], dead=1.2, roof_live=1.6, wind=0.5),
+    _row("3", ["rain"], dead=1.2, rain=1.6, live=1.0),
+    _row("3", ["rain"], dead=1.2, rain=1.6, wind=0.5),
+    _row("3", ["snow"], dead=1.2, snow=1.0, live=1.0),
+    _row("3", ["snow"], dead=1.2, snow=1.0, wind=0.5),
+    _row("4", ["wind"], dead=1.2, wind=1.0, live=1.0, roof_live=0.5),
+    _row("4", ["wind"], dead=1.2, wind=1.0, live=1.0, snow=0.3),
+    _row("4", ["wind"], dead=1.2, wind=1.0, live=1.0, rain=0.5),
+    _row("5", ["wind"], dead=0.9, wind=1.0),
 )
 
 # ASCE 7-22 2.3.1 Exception 1: the load factor on L in combinations 3 and 4 may
@@ -133,28 +147,28 @@ ASCE7_LRFD_REDUCED_LIVE = 0.5
 #   5. D + 0.6W   6a. D + 0.75L + 0.75(0.6W) + 0.75(Lr or 0.7S or R)   7. 0.6D + 0.6W
 # The 0.7S and the labels 3a, 4a, 6a are [C] (STRUCTURE magazine, "ASCE 7-22
 # Flat Roof Snow Load versus Minimum Snow Load"); the rest of the list and the
-# other numbers are [M].  In 4a every term is required (with L or the roof load
-# absent it is weaker than 2 or 3a); in 6a L and the roof load are companions
-# that may be absent, but not both (D + 0.45W is weaker than 5 or 7).
+# other numbers are [M].  Every variable case may act or not ("loads not
+# acting", 2.4.1 [M]).  4a needs L and its roof load (with either absent it is
+# weaker than 2 or 3a); 6a needs W and L or its roof load (D + 0.45W alone is
+# weaker than 5).
 ASCE7_ASD_CLAUSE = "ASCE 7-22 2.4.1"
 ASCE7_ASD: tuple[Row, ...] = (
     _row("1", dead=1.0),
-    _row("2", dead=1.0, live=1.0),
-    _row("3a", dead=1.0, roof_live=1.0),
-    _row("3a", dead=1.0, snow=0.7),
-    _row("3a", dead=1.0, rain=1.0),
-    _row("4a", dead=1.0, live=0.75, roof_live=0.75),
-    _row("4a", dead=1.0, live=0.75, snow=0.75 * 0.7),
-    _row("4a", dead=1.0, live=0.75, rain=0.75),
-    _row("5", dead=1.0, wind=0.6),
-    _row("6a", dead=1.0, live=0.75, wind=0.75 * 0.6, roof_live=0.75),
-    _row("6a", dead=1.0, live=0.75, wind=0.75 * 0.6, snow=0.75 * 0.7),
-    _row("6a", dead=1.0, live=0.75, wind=0.75 * 0.6, rain=0.75),
-    _row("6a", dead=1.0, live=0.75, wind=0.75 * 0.6),
-    _row("6a", dead=1.0, wind=0.75 * 0.6, roof_live=0.75),
-    _row("6a", dead=1.0, wind=0.75 * 0.6, snow=0.75 * 0.7),
-    _row("6a", dead=1.0, wind=0.75 * 0.6, rain=0.75),
-    _row("7", dead=0.6, wind=0.6),
+    _row("2", ["live"], dead=1.0, live=1.0),
+    _row("3a", ["roof_live"], dead=1.0, roof_live=1.0),
+    _row("3a", ["snow"], dead=1.0, snow=0.7),
+    _row("3a", ["rain"], dead=1.0, rain=1.0),
+    _row("4a", ["live", "roof_live"], dead=1.0, live=0.75, roof_live=0.75),
+    _row("4a", ["live", "snow"], dead=1.0, live=0.75, snow=0.75 * 0.7),
+    _row("4a", ["live", "rain"], dead=1.0, live=0.75, rain=0.75),
+    _row("5", ["wind"], dead=1.0, wind=0.6),
+    _row("6a", ["wind"], ["live", "roof_live"], dead=1.0, live=0.75, wind=0.75 * 0.6,
+         roof_live=0.75),
+    _row("6a", ["wind"], ["live", "snow"], dead=1.0, live=0.75, wind=0.75 * 0.6,
+         snow=0.75 * 0.7),
+    _row("6a", ["wind"], ["live", "rain"], dead=1.0, live=0.75, wind=0.75 * 0.6,
+         rain=0.75),
+    _row("7", ["wind"], dead=0.6, wind=0.6),
 )
 
 
@@ -165,29 +179,38 @@ ASCE7_ASD: tuple[Row, ...] = (
 #: EN 1990 Table A1.2(B), recommended values [C] (SCI "Steel Buildings in
 #: Europe" Part 3, Table 3.1).  National Annexes differ (UK: xi = 0.925 [M]).
 GAMMA_G_SUP = 1.35
+GAMMA_G_INF = 1.0
 GAMMA_Q = 1.5
 XI = 0.85
+XI_UK = 0.925
 
-#: psi_0 of EN 1990 Table A1.1 (recommended values) [C]: imposed-load
-#: categories A..H of EN 1991-1-1, snow and wind.  Snow is the value for sites
-#: at or below 1000 m outside FI, IS, NO and SE (0.5; above 1000 m or in those
-#: states it is 0.7); the case file has no key for the site, so the lower value
-#: is used.  Rain has no row in Table A1.1: ponding water on a roof is taken
-#: like the roof imposed load of category H, psi_0 = 0 (this engine's choice),
-#: so rain may lead but never accompanies.  National Annexes vary.
-PSI_0: dict[str, float] = {
-    "A": 0.7,  # domestic, residential
-    "B": 0.7,  # office
-    "C": 0.7,  # congregation
-    "D": 0.7,  # shopping
-    "E": 1.0,  # storage
-    "F": 0.7,  # traffic, vehicle weight <= 30 kN
-    "G": 0.7,  # traffic, 30 kN < vehicle weight <= 160 kN
-    "H": 0.0,  # roofs
-    "snow": 0.5,  # sites at or below 1000 m a.s.l. (see above)
-    "wind": 0.6,
-    "rain": 0.0,  # no row in Table A1.1: this engine's choice (see above)
+#: The keys of ``[combinations].factors`` and their recommended values.
+FACTOR_KEYS: tuple[str, ...] = ("G_sup", "G_inf", "Q", "xi")
+RECOMMENDED_FACTORS: dict[str, float] = {"G_sup": GAMMA_G_SUP, "G_inf": GAMMA_G_INF,
+                                         "Q": GAMMA_Q, "xi": XI}
+
+#: psi_0, psi_1, psi_2 of EN 1990 Table A1.1 (recommended values) [C]: imposed-load
+#: categories A..H of EN 1991-1-1, snow and wind.  Snow is the row for sites at
+#: or below 1000 m outside FI, IS, NO and SE (0.5, 0.2, 0; above 1000 m or in
+#: those states 0.7, 0.5, 0.2: give psi0/psi1/psi2 on the case).  Rain has no row
+#: in Table A1.1: ponding water on a roof is taken like the roof imposed load of
+#: category H, all zero (this engine's choice), so rain may lead but never
+#: accompanies.  National Annexes vary.
+PSI: dict[str, tuple[float, float, float]] = {
+    "A": (0.7, 0.5, 0.3),  # domestic, residential
+    "B": (0.7, 0.5, 0.3),  # office
+    "C": (0.7, 0.7, 0.6),  # congregation
+    "D": (0.7, 0.7, 0.6),  # shopping
+    "E": (1.0, 0.9, 0.8),  # storage
+    "F": (0.7, 0.7, 0.6),  # traffic, vehicle weight <= 30 kN
+    "G": (0.7, 0.5, 0.3),  # traffic, 30 kN < vehicle weight <= 160 kN
+    "H": (0.0, 0.0, 0.0),  # roofs
+    "snow": (0.5, 0.2, 0.0),  # sites at or below 1000 m a.s.l. (see above)
+    "wind": (0.6, 0.2, 0.0),
+    "rain": (0.0, 0.0, 0.0),  # no row in Table A1.1: this engine's choice (see above)
 }
+#: psi_0 alone, by category or kind (kept for readers of the former table).
+PSI_0: dict[str, float] = {k: v[0] for k, v in PSI.items()}
 
 #: The imposed-load categories of EN 1991-1-1 that Table A1.1 lists.
 CATEGORIES: tuple[str, ...] = ("A", "B", "C", "D", "E", "F", "G", "H")
@@ -195,67 +218,65 @@ CATEGORIES: tuple[str, ...] = ("A", "B", "C", "D", "E", "F", "G", "H")
 DEFAULT_CATEGORY: dict[str, str] = {"live": "B", "roof_live": "H"}
 
 
-def psi0(case: LoadCase) -> float:
-    """psi_0 of a variable load case (EN 1990 Table A1.1), dimensionless.
+def psi(case: LoadCase, which: int) -> float:
+    """psi_0, psi_1 or psi_2 (``which`` = 0, 1, 2) of a variable load case, dimensionless:
+    the case's own value where given (a national choice), else EN 1990 Table A1.1.
 
     Live and roof-live cases use their ``category`` ("A".."H"; by default B,
     office, for live and H, roofs, for roof live); snow, wind and rain use the
-    kind's value in :data:`PSI_0`, and any category they carry is not read.
-    A permanent action has no psi_0: ValueError.
+    kind's row.  A permanent action has no psi: ValueError.
     """
+    own = (case.psi0, case.psi1, case.psi2)[which]
+    if case.kind in PERMANENT_KINDS:
+        raise ValueError(f"load case {case.name!r}: a permanent action has no psi_{which}")
+    if own is not None:
+        return own
     if case.kind in DEFAULT_CATEGORY:
         category = case.category if case.category is not None else DEFAULT_CATEGORY[case.kind]
         if category not in CATEGORIES:
             raise ValueError(
                 f"load case {case.name!r}: unknown category {category!r} (expected A..H)"
             )
-        return PSI_0[category]
-    if case.kind in PERMANENT_KINDS:
-        raise ValueError(f"load case {case.name!r}: a permanent action has no psi_0")
-    if case.kind not in PSI_0:
-        raise ValueError(f"load case {case.name!r}: no psi_0 for kind {case.kind!r}")
-    return PSI_0[case.kind]
+        return PSI[category][which]
+    if case.kind not in PSI:
+        raise ValueError(f"load case {case.name!r}: no psi_{which} for kind {case.kind!r}")
+    return PSI[case.kind][which]
 
 
-@dataclass(frozen=True, slots=True)
-class EnRow:
-    """One EN 1990 expression: gamma_G on every permanent action, and the variable terms.
-
-    ``leading`` is gamma_Q of the leading variable action (None: permanent actions
-    only); ``leading_psi0`` multiplies it by that action's psi_0, as (6.10a) does;
-    ``accompanying`` is gamma_Q of every other variable action, multiplied by its
-    psi_0.  Each variable case leads in turn.
-    """
-
-    equation: str
-    gamma_g: float
-    leading: float | None = None
-    leading_psi0: bool = False
-    accompanying: float = 0.0
+def psi0(case: LoadCase) -> float:
+    """psi_0 of a variable load case (see :func:`psi`)."""
+    return psi(case, 0)
 
 
-# EN 1990 6.4.3.2: (6.10) sum gamma_G Gk + gamma_Q,1 Qk,1 + sum gamma_Q,i psi_0,i Qk,i,
-# with gamma_G,sup and gamma_Q of Table A1.2(B).  The permanent-only row covers
-# the case of no variable action acting.  gamma_G,inf on unloaded spans is the
-# patterning's business (``favourable_dead``), not a combination of its own.
-EN1990_CLAUSE = "EN 1990 6.4.3.2"
-EN1990_610: tuple[EnRow, ...] = (
-    EnRow("(6.10)", GAMMA_G_SUP),
-    EnRow("(6.10)", GAMMA_G_SUP, leading=GAMMA_Q, accompanying=GAMMA_Q),
-)
-# (6.10a): (6.10) with the leading action also at psi_0 (so every variable at
-# gamma_Q psi_0); (6.10b): (6.10) with the permanent term times xi.  The less
-# favourable of the two governs, which the envelope finds.
-EN1990_610AB: tuple[EnRow, ...] = (
-    EnRow("(6.10a)", GAMMA_G_SUP),
-    EnRow("(6.10a)", GAMMA_G_SUP, leading=GAMMA_Q, leading_psi0=True, accompanying=GAMMA_Q),
-    EnRow("(6.10b)", XI * GAMMA_G_SUP, leading=GAMMA_Q, accompanying=GAMMA_Q),
-)
+def partial_factors(spec: CombinationSpec, rule: str | None = None) -> dict[str, float]:
+    """gamma_G,sup, gamma_G,inf, gamma_Q and xi in force for an EN rule set: the
+    recommended values of Table A1.2(B) (xi = 0.925 for ``en1990-6.10ab-uk``), each
+    replaced by ``spec.factors`` where given.  ValueError for an unknown key."""
+    out = dict(RECOMMENDED_FACTORS)
+    if (rule or spec.strength) == "en1990-6.10ab-uk":
+        out["xi"] = XI_UK
+    for key, value in spec.factors:
+        if key not in out:
+            raise ValueError(f"combinations.factors: unknown key {key!r} "
+                             f"(expected one of {', '.join(FACTOR_KEYS)})")
+        out[key] = float(value)
+    return out
 
 
 # --------------------------------------------------------------------------
 # Generation
 # --------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class _Generated:
+    """One generated row before naming: factors and their derivation by case name."""
+
+    factors: dict[str, float]
+    optional: frozenset[str]
+    source: str
+    leading: str = ""
+    why: tuple[tuple[str, str], ...] = ()
 
 
 def _clean(factor: float) -> float:
@@ -265,6 +286,10 @@ def _clean(factor: float) -> float:
 
 def _format_factor(factor: float) -> str:
     return "" if factor == 1.0 else f"{factor:.10g}"
+
+
+def _g(x: float) -> str:
+    return f"{x:.10g}"
 
 
 def combination_name(factors: Iterable[tuple[str, float]]) -> str:
@@ -277,115 +302,179 @@ def _ordered(cases: tuple[LoadCase, ...], factors: Mapping[str, float]) -> Facto
     return tuple((c.name, factors[c.name]) for c in cases if factors.get(c.name, 0.0) != 0.0)
 
 
-def _asce(
-    cases: tuple[LoadCase, ...], table: tuple[Row, ...], clause: str, reduced_live: bool
-) -> list[tuple[Factors, str]]:
+def _asce(cases: tuple[LoadCase, ...], table: tuple[Row, ...], clause: str,
+          reduced_live: bool) -> list[_Generated]:
     present = {c.kind for c in cases}
-    out: list[tuple[Factors, str]] = []
+    variable = frozenset(c.name for c in cases if c.kind not in PERMANENT_KINDS)
+    out: list[_Generated] = []
     for row in table:
-        if not (row.kinds - PERMANENT_KINDS) <= present:
+        if not row.needs <= present or (row.needs_one and not row.needs_one & present):
             continue
         by_kind = dict(row.terms)
         source = f"{clause} ({row.equation})"
-        if (
-            reduced_live
-            and clause == ASCE7_LRFD_CLAUSE
-            and row.equation in ASCE7_LRFD_EXCEPTION_1_EQUATIONS
-            and "live" in by_kind
-        ):
+        if (reduced_live and clause == ASCE7_LRFD_CLAUSE
+                and row.equation in ASCE7_LRFD_EXCEPTION_1_EQUATIONS and "live" in by_kind):
             by_kind["live"] = ASCE7_LRFD_REDUCED_LIVE
             source += ", Exception 1"
         factors = {c.name: _clean(by_kind.get(c.kind, 0.0)) for c in cases}
-        out.append((_ordered(cases, factors), source))
+        why = tuple((c.name, f"{_g(factors[c.name])} on {c.kind}")
+                    for c in cases if factors[c.name])
+        out.append(_Generated(factors, variable, source, why=why))
     return out
 
 
-def _en1990(cases: tuple[LoadCase, ...], table: tuple[EnRow, ...]) -> list[tuple[Factors, str]]:
+@dataclass(frozen=True, slots=True)
+class EnRow:
+    """One EN 1990 expression: the factor on the permanent actions and the variable terms.
+
+    ``permanent`` names the factor on every permanent action: "sup" (gamma_G,sup),
+    "xi sup" (xi gamma_G,sup, (6.10b)), "inf" (gamma_G,inf) or "one" (1.0, service).
+    ``leading`` is the leading action's factor: "Q" (gamma_Q), "Q psi0" (gamma_Q psi_0,
+    (6.10a)), "1", "psi1", or None for no leading action.  ``accompanying`` is the
+    factor of every other variable action: "Q psi0", "psi0", "psi2", or "" (none: the
+    permanent-only rows).
+    """
+
+    equation: str
+    permanent: str
+    leading: str | None
+    accompanying: str
+
+
+# EN 1990 6.4.3.2 (6.10): sum gamma_G Gk + gamma_Q,1 Qk,1 + sum gamma_Q,i psi_0,i Qk,i.
+# Table A1.2(B): the whole permanent load at gamma_G,sup where unfavourable and at
+# gamma_G,inf where favourable [C]; both are rows of their own, and the envelope
+# takes the worse.  The permanent-only rows are the case of no variable action.
+EN1990_CLAUSE = "EN 1990 6.4.3.2"
+EN1990_610: tuple[EnRow, ...] = (
+    EnRow("(6.10)", "sup", None, ""),
+    EnRow("(6.10)", "inf", None, ""),
+    EnRow("(6.10)", "sup", "Q", "Q psi0"),
+    EnRow("(6.10)", "inf", "Q", "Q psi0"),
+)
+# (6.10a): (6.10) with the leading action also at psi_0; (6.10b): (6.10) with the
+# unfavourable permanent term times xi (xi applies to gamma_G,sup only).  The less
+# favourable of the two governs, which the envelope finds.
+EN1990_610AB: tuple[EnRow, ...] = (
+    EnRow("(6.10a)", "sup", None, ""),
+    EnRow("(6.10a)", "inf", None, ""),
+    EnRow("(6.10a)", "sup", "Q psi0", "Q psi0"),
+    EnRow("(6.10a)", "inf", "Q psi0", "Q psi0"),
+    EnRow("(6.10b)", "xi sup", "Q", "Q psi0"),
+    EnRow("(6.10b)", "inf", "Q", "Q psi0"),
+)
+# EN 1990 6.5.3 (serviceability) [M for the layout, references 1.3]:
+# (6.14b) characteristic G + Qk,1 + sum psi_0,i Qk,i; (6.15b) frequent
+# G + psi_1,1 Qk,1 + sum psi_2,i Qk,i; (6.16b) quasi-permanent G + sum psi_2,i Qk,i.
+EN1990_SLS_CLAUSE = "EN 1990 6.5.3"
+EN1990_SERVICE: dict[str, tuple[EnRow, ...]] = {
+    "characteristic": (EnRow("(6.14b)", "one", None, ""),
+                       EnRow("(6.14b)", "one", "1", "psi0")),
+    "frequent": (EnRow("(6.15b)", "one", None, ""),
+                 EnRow("(6.15b)", "one", "psi1", "psi2")),
+    "quasi-permanent": (EnRow("(6.16b)", "one", None, "psi2"),),
+}
+
+
+def _term(case: LoadCase, what: str, pf: Mapping[str, float]) -> tuple[float, str]:
+    """A factor by its recipe ("Q psi0", "psi1", ...) and the text saying how it is made."""
+    q = pf["Q"]
+    if not what:
+        return 0.0, ""
+    if what == "Q":
+        return q, f"gamma_Q {_g(q)}"
+    if what == "1":
+        return 1.0, "1.0"
+    index = {"psi0": 0, "psi1": 1, "psi2": 2}
+    if what == "Q psi0":
+        p = psi(case, 0)
+        return q * p, f"gamma_Q {_g(q)} x psi_0 {_g(p)}"
+    p = psi(case, index[what])
+    return p, f"psi_{index[what]} {_g(p)}"
+
+
+def _permanent(what: str, pf: Mapping[str, float]) -> tuple[float, str]:
+    if what == "sup":
+        return pf["G_sup"], f"gamma_G,sup {_g(pf['G_sup'])}"
+    if what == "xi sup":
+        return pf["xi"] * pf["G_sup"], f"xi {_g(pf['xi'])} x gamma_G,sup {_g(pf['G_sup'])}"
+    if what == "inf":
+        return pf["G_inf"], f"gamma_G,inf {_g(pf['G_inf'])}"
+    return 1.0, "1.0"
+
+
+def _en1990(cases: tuple[LoadCase, ...], table: tuple[EnRow, ...], clause: str,
+            pf: Mapping[str, float], tables: str) -> list[_Generated]:
     permanent = [c for c in cases if c.kind in PERMANENT_KINDS]
     variable = [c for c in cases if c.kind not in PERMANENT_KINDS]
-    out: list[tuple[Factors, str]] = []
+    out: list[_Generated] = []
     for row in table:
-        source = f"{EN1990_CLAUSE} {row.equation}, Table A1.2(B)"
-        base = {c.name: _clean(row.gamma_g) for c in permanent}
-        if row.leading is None:
-            out.append((_ordered(cases, base), source))
-            continue
-        source += ", Table A1.1"
-        for lead in variable:
-            factors = dict(base)
+        source = f"{clause} {row.equation}, {tables}"
+        g, g_why = _permanent(row.permanent, pf)
+        leads: list[LoadCase | None] = [None] if row.leading is None else list(variable)
+        for lead in leads:
+            factors: dict[str, float] = {}
+            why: dict[str, str] = {}
+            for c in permanent:
+                factors[c.name], why[c.name] = _clean(g), g_why
             for c in variable:
                 if c is lead:
-                    f = row.leading * (psi0(c) if row.leading_psi0 else 1.0)
+                    assert row.leading is not None
+                    f, text = _term(c, row.leading, pf)
+                    text += " (leading)"
                 else:
-                    f = row.accompanying * psi0(c)
-                factors[c.name] = _clean(f)
-            out.append((_ordered(cases, factors), source))
+                    f, text = _term(c, row.accompanying, pf)
+                factors[c.name], why[c.name] = _clean(f), text
+            optional = frozenset(c.name for c in variable if c is not lead)
+            out.append(_Generated(
+                factors, optional, source, lead.name if lead is not None else "",
+                tuple((c.name, f"{_g(factors[c.name])} = {why[c.name]}") for c in cases
+                      if factors[c.name])))
     return out
 
 
-def _characteristic(
-    cases: tuple[LoadCase, ...],
-) -> list[tuple[Factors, str]]:
-    everything = {c.name: 1.0 for c in cases}
-    live = {c.name: 1.0 for c in cases if c.kind in LIVE_KINDS}
-    return [
-        (_ordered(cases, everything), "characteristic: every case at 1.0 (common practice)"),
-        (_ordered(cases, live), "characteristic: live kinds alone at 1.0 (common practice)"),
-    ]
-
-
-def _generate(
-    cases: tuple[LoadCase, ...], set_name: str, spec: CombinationSpec
-) -> list[tuple[Factors, str]]:
-    if set_name == "asce7-lrfd":
+def _generate(cases: tuple[LoadCase, ...], rule: str, spec: CombinationSpec
+              ) -> list[_Generated]:
+    if rule == "asce7-lrfd":
         return _asce(cases, ASCE7_LRFD, ASCE7_LRFD_CLAUSE, spec.reduced_companion_live)
-    if set_name == "asce7-asd":
+    if rule == "asce7-asd":
         return _asce(cases, ASCE7_ASD, ASCE7_ASD_CLAUSE, False)
-    if set_name == "en1990-6.10":
-        return _en1990(cases, EN1990_610)
-    if set_name == "en1990-6.10ab":
-        return _en1990(cases, EN1990_610AB)
-    if set_name == "characteristic":
-        return _characteristic(cases)
+    if rule in EN_STRENGTH_SETS:
+        table = EN1990_610 if rule == "en1990-6.10" else EN1990_610AB
+        return _en1990(cases, table, EN1990_CLAUSE, partial_factors(spec, rule),
+                       "Table A1.2(B), Table A1.1")
+    if rule in EN1990_SERVICE:
+        return _en1990(cases, EN1990_SERVICE[rule], EN1990_SLS_CLAUSE, RECOMMENDED_FACTORS,
+                       "Table A1.1")
     return []  # "none"
 
 
-def _unique(name: str, set_name: str, taken: set[str]) -> str:
-    """``name``, or with the set and then a number appended where it is already taken."""
+def _unique(name: str, rule: str, taken: set[str]) -> str:
+    """``name``, or with the rule set and then a number appended where it is taken."""
     if name not in taken:
         return name
-    candidate = f"{name} ({set_name})"
+    candidate = f"{name} ({rule})"
     number = 2
     while candidate in taken:
-        candidate = f"{name} ({set_name} {number})"
+        candidate = f"{name} ({rule} {number})"
         number += 1
     return candidate
 
 
-def build(cases: tuple[LoadCase, ...], spec: CombinationSpec) -> tuple[Combination, ...]:
-    """Every combination of ``spec`` for ``cases``: strength first, then service.
-
-    Within a set: the rule set's rows in table order, each variable case
-    leading in turn for EN 1990, then the custom combinations of that set in
-    the order given.  Factors are in case declaration order with zeros left
-    out.  Generated rows that end with the same factors as an earlier row of
-    the same set are dropped; custom combinations are kept as given.  Names
-    are unique over the result: a custom name is never changed, and a
-    generated name already taken gets its set appended ("D + L (service)").
-    ValueError for a set name not in :data:`STRENGTH_SETS` or
-    :data:`SERVICE_SETS`, a custom combination naming an unknown case, or two
-    custom combinations of one name.
-    """
+def _check(spec: CombinationSpec, cases: tuple[LoadCase, ...]) -> set[str]:
+    """Validate the spec; returns the custom names."""
     if spec.strength not in STRENGTH_SETS:
         raise ValueError(
             f"combinations.strength: unknown rule set {spec.strength!r} "
             f"(expected one of {', '.join(STRENGTH_SETS)})"
         )
-    if spec.service not in SERVICE_SETS:
-        raise ValueError(
-            f"combinations.service: unknown rule set {spec.service!r} "
-            f"(expected one of {', '.join(SERVICE_SETS)})"
-        )
+    for name in spec.service_sets:
+        if name not in SERVICE_SETS:
+            raise ValueError(
+                f"combinations.service: unknown rule set {name!r} "
+                f"(expected one of {', '.join(SERVICE_SETS)})"
+            )
+    partial_factors(spec)
     known = {c.name for c in cases}
     custom_names: set[str] = set()
     for combo in spec.custom:
@@ -397,26 +486,68 @@ def build(cases: tuple[LoadCase, ...], spec: CombinationSpec) -> tuple[Combinati
             raise ValueError(
                 f"combinations.custom {combo.name!r}: unknown load case {unknown[0]!r}"
             )
+    return custom_names
 
+
+def build(cases: tuple[LoadCase, ...], spec: CombinationSpec) -> tuple[Combination, ...]:
+    """Every combination of ``spec`` for ``cases``: strength first, then service.
+
+    Within a rule set: its rows in table order, each variable case leading in turn
+    for EN 1990; after the strength set, the custom strength combinations, and after
+    the service sets (in the order given), the custom service ones.  Factors are in
+    case declaration order with zeros left out; a generated row's ``optional`` names
+    its variable cases that act only where unfavourable (those with a factor).  Rows
+    of one rule set that end with the same factors and optional cases as an earlier
+    one are dropped; custom combinations are kept as given.  Names are unique over
+    the result: a custom name is never changed, and a generated name already taken
+    gets its rule set appended ("D + L (characteristic)").  ValueError for a set
+    name not in :data:`STRENGTH_SETS` or :data:`SERVICE_SETS`, an unknown partial
+    factor key, a custom combination naming an unknown case, or two custom
+    combinations of one name.
+    """
+    custom_names = _check(spec, cases)
     taken = set(custom_names)
     result: list[Combination] = []
-    plan: tuple[tuple[CombinationSet, str], ...] = (
-        ("strength", spec.strength),
-        ("service", spec.service),
+    plan: tuple[tuple[CombinationSet, tuple[str, ...]], ...] = (
+        ("strength", (spec.strength,) if spec.strength != "none" else ()),
+        ("service", spec.service_sets),
     )
-    for set_kind, set_name in plan:
-        seen: set[Factors] = set()
-        for factors, source in _generate(cases, set_name, spec):
-            if not factors or factors in seen:
-                continue
-            seen.add(factors)
-            name = _unique(combination_name(factors), set_kind, taken)
-            taken.add(name)
-            result.append(Combination(name, set_kind, factors, source))
+    for set_kind, rules in plan:
+        for rule in rules:
+            seen: set[tuple[Factors, frozenset[str]]] = set()
+            for gen in _generate(cases, rule, spec):
+                factors = _ordered(cases, gen.factors)
+                optional = frozenset(n for n, _ in factors if n in gen.optional)
+                if not factors or (factors, optional) in seen:
+                    continue
+                seen.add((factors, optional))
+                name = _unique(combination_name(factors), rule, taken)
+                taken.add(name)
+                result.append(Combination(
+                    name, set_kind, factors, gen.source, optional=optional, rule=rule,
+                    leading=gen.leading, derivation="; ".join(f"{n}: {t}" for n, t in gen.why)))
         for combo in spec.custom:
             if combo.set != set_kind:
                 continue
-            result.append(
-                Combination(combo.name, set_kind, _ordered(cases, combo.factor_map), combo.source)
-            )
+            result.append(Combination(combo.name, set_kind, _ordered(cases, combo.factor_map),
+                                      combo.source, rule="custom"))
     return tuple(result)
+
+
+#: Where the deflection-by-kind rows come from.
+ALONE_SOURCE = ("one variable action alone at 1.0 (IBC Table 1604.3: L, or for roofs "
+                "Lr, S or W, from memory)")
+
+
+def variable_alone(cases: tuple[LoadCase, ...]) -> tuple[Combination, ...]:
+    """Each variable kind alone at 1.0 (every case of that kind, each acting only where
+    it deflects the beam more), in the order of :data:`VARIABLE_KINDS`: the rows of
+    the deflection check by kind (``deflection_live``).  Empty with no variable case."""
+    out = []
+    for kind in VARIABLE_KINDS:
+        names = tuple(c.name for c in cases if c.kind == kind)
+        if names:
+            factors = tuple((n, 1.0) for n in names)
+            out.append(Combination(combination_name(factors), "service", factors,
+                                   ALONE_SOURCE, optional=frozenset(names), rule="alone"))
+    return tuple(out)

@@ -1,22 +1,30 @@
 """Envelopes as reductions over unit-case responses.
 
-A combination set (strength or service) becomes coefficients over unit cases:
+A combination set (strength or service) becomes *columns* of coefficients over unit
+cases.  A column is one combination under one arrangement of its patterned cases:
 
-* explicit cases (patterning ``none`` and ``code``): a matrix ``coef``
-  (units x cases); the envelope is max / min over ``R @ coef``;
-* superposition (``exhaustive`` and ``segments``): per combination, ``fixed``
-  coefficients always applied and ``patterned`` factors of the patterned unit
-  cases.  Over every subset of cells, the largest value is
-  ``R @ fixed + sum(max(R * patterned, 0))``, the smallest the same with
-  ``min``: exact, with no subset ever enumerated.  With ``favourable_dead`` not
-  1, a cell carrying no patterned load takes its dead load at ``favourable_dead``
-  times the factor; the choice still separates cell by cell, so each cell takes
-  the better of "unloaded" and "loaded by the best non-empty choice of its
-  patterned unit cases".
+* explicit arrangements (patterning ``none`` and ``code``): one column per
+  combination and loaded span set;
+* superposition (``exhaustive`` and ``segments``): one column per combination,
+  whose ``patterned`` factors put each patterned unit case (one case on one
+  cell) on or off independently.
+
+Every column holds ``fixed`` coefficients, always applied, and on/off parts that
+act only where they make the value worse: the patterned unit cases (superposition)
+and *groups*, each a variable case that is not patterned, acting or not as one
+over the whole beam.  Under explicit patterning the patterned cases follow the
+column's spans; a combination whose patterned cases may all be left out also has a
+column with none of them acting (no span loaded).  Over every subset of those parts the
+largest value of a column is ``R @ fixed + sum(max(R @ part, 0))`` and the
+smallest the same with ``min``: exact, with no subset ever enumerated.  With
+``favourable_dead`` not 1 (strength sets), a cell carrying no patterned load
+takes its dead load at ``favourable_dead`` times the factor; the choice still
+separates cell by cell, so each cell takes the better of "unloaded" and "loaded
+by the best non-empty choice of its patterned unit cases".
 
 ``R`` is (rows x units) for one quantity: stations, support reactions, or any
-points.  Every reduction returns the governing combination and the loaded
-cells at each row.
+points.  Every reduction returns the governing combination and, as ``_loaded``
+text, which switchable cases act and where.
 """
 
 from __future__ import annotations
@@ -30,23 +38,33 @@ from envelope.loading import Cells, UnitCases
 from envelope.model import Beam, Combination, Patterning
 from envelope.patterns import arrangements, loaded_label
 
+#: A case's loaded cells, by case name.
+Masks = tuple[tuple[str, tuple[bool, ...]], ...]
+
 
 @dataclass(frozen=True, slots=True)
 class CaseSet:
-    """One combination set as coefficients over unit cases (see the module docstring)."""
+    """One combination set as columns of coefficients over unit cases (see the module
+    docstring).  Shapes: units x columns for ``fixed``, ``patterned``, ``dead_var``;
+    units x groups for ``groups``."""
 
     combinations: tuple[Combination, ...]
     cell_labels: tuple[str, ...]
     unit_case_name: tuple[str, ...]  # per unit
     unit_cell: np.ndarray  # per unit
-    # explicit method
-    coef: np.ndarray | None  # (units, cases)
-    case_combo: np.ndarray | None  # (cases,)
-    case_loaded: tuple[str, ...]
-    # superposition method
-    fixed: np.ndarray | None  # (units, combos)
-    patterned: np.ndarray | None
-    dead_var: np.ndarray | None
+    superposed: bool
+    col_combo: np.ndarray  # (columns,) combination index
+    col_cells: np.ndarray  # (columns, cells) bool: the arrangement's loaded cells
+    col_masks: tuple[Masks, ...]  # per column: cells of its patterned cases always acting
+    fixed: np.ndarray
+    patterned: np.ndarray  # per-unit on/off factors (superposition), else zeros
+    dead_var: np.ndarray  # dead factors that depend on the pattern (superposition)
+    groups: np.ndarray  # whole-case on/off factors
+    group_col: np.ndarray  # (groups,) column of each group
+    group_case: tuple[str, ...]  # case name of each group
+    group_mask: np.ndarray  # (groups, cells) bool: where the group's case acts when on
+    switchable: tuple[tuple[str, ...], ...]  # per combination: cases named in _loaded
+    all_patterned: tuple[bool, ...]  # per combination: every switchable case patterned
     favourable_dead: float
 
     @property
@@ -54,13 +72,24 @@ class CaseSet:
         return not self.combinations
 
     @property
-    def superposed(self) -> bool:
-        return self.coef is None
+    def n_columns(self) -> int:
+        return int(self.col_combo.size)
+
+    def membership(self) -> np.ndarray:
+        """(groups, columns) 0/1 matrix: which column each group belongs to."""
+        m = np.zeros((self.group_col.size, self.n_columns))
+        m[np.arange(self.group_col.size), self.group_col] = 1.0
+        return m
+
+    def _column_text(self, c: int) -> str:
+        cells = self.col_cells[c]
+        return loaded_label(self.cell_labels, list(cells), bool(cells.all()))
 
     def case_rows(self, explicit: bool = False) -> list[dict[str, str]]:
         """What was run: one row per explicit case, or per combination ("any") for the
         superposition methods.  With ``explicit``, a superposed set also lists each
-        combination with every span loaded ("all"), the cases of :meth:`explicit_cases`."""
+        combination with every span loaded ("all"), the cases of :meth:`explicit_cases`.
+        Each row gives the combination, the loaded text and the factors (JSON)."""
         rows = []
         if self.superposed:
             rows = [{"combination": c.name, "loaded": "any",
@@ -76,16 +105,13 @@ class CaseSet:
 
     def explicit_cases(self) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
         """Coefficients (units x cases), combination index and ``loaded`` text of the
-        explicit cases: those run for ``none`` and ``code``; for the superposition
-        methods, each combination with every cell loaded."""
-        if not self.superposed:
-            assert self.coef is not None and self.case_combo is not None
-            return self.coef, self.case_combo, self.case_loaded
-        assert self.fixed is not None and self.patterned is not None
-        assert self.dead_var is not None
-        coef = self.fixed + self.patterned + self.dead_var
-        n_k = len(self.combinations)
-        return coef, np.arange(n_k), ("all",) * n_k
+        explicit cases, every case of the combination acting: the arrangements run for
+        ``none`` and ``code``; for the superposition methods, each combination with
+        every cell loaded."""
+        coef = self.fixed + self.patterned + self.dead_var + self.groups @ self.membership()
+        if self.superposed:
+            return coef, self.col_combo, ("all",) * self.n_columns
+        return coef, self.col_combo, tuple(self._column_text(c) for c in range(self.n_columns))
 
 
 @dataclass(frozen=True, slots=True)
@@ -106,61 +132,112 @@ class Extremes:
                                     "min_loaded")))
 
 
+
+def _switchable(combo: Combination, units_case: list[str], patterned: dict[str, bool],
+                ) -> tuple[str, ...]:
+    """Cases of a combination named in ``_loaded``: its patterned cases and the cases
+    that act only where unfavourable, each with load and a factor, in the order of
+    their first unit case (the order of their first load item)."""
+    out: list[str] = []
+    for name in units_case:
+        if name in out or combo.factor(name) == 0.0:
+            continue
+        if patterned[name] or name in combo.optional:
+            out.append(name)
+    return tuple(out)
+
+
 def build_case_set(beam: Beam, combos: tuple[Combination, ...], units: UnitCases,
-                   cells: Cells) -> CaseSet:
-    """Coefficient data of ``combos`` over the unit cases, for the beam's patterning."""
+                   cells: Cells, favourable_dead: float | None = None) -> CaseSet:
+    """Coefficient data of ``combos`` over the unit cases, for the beam's patterning.
+    ``favourable_dead`` defaults to the patterning's (give 1.0 for service sets)."""
     pat: Patterning = beam.patterning
+    fav = pat.favourable_dead if favourable_dead is None else favourable_dead
     cases = beam.cases
-    n_u, n_k = units.n_units, len(combos)
-    factor = np.array([[c.factor(cases[i].name) for c in combos] for i in units.case]
-                      ).reshape(n_u, n_k)
+    n_u, n_k, n_g = units.n_units, len(combos), cells.n
+    names = [cases[i].name for i in units.case]
+    factor = np.array([[c.factor(n) for c in combos] for n in names]).reshape(n_u, n_k)
     is_patterned = np.array([cases[i].patterned for i in units.case], dtype=bool)
     is_dead = np.array([cases[i].kind == "dead" for i in units.case], dtype=bool)
+    optional = np.array([[n in c.optional for c in combos] for n in names],
+                        dtype=bool).reshape(n_u, n_k)
     has_pattern = (np.abs(factor) * is_patterned[:, None]).sum(axis=0) > 0  # per combo
     unit_span = cells.span[units.cell]
-    common = dict(combinations=combos, cell_labels=cells.label,
-                  unit_case_name=tuple(cases[i].name for i in units.case),
-                  unit_cell=units.cell, favourable_dead=pat.favourable_dead)
+    pattern_of = {c.name: c.patterned for c in cases}
+    switchable = tuple(_switchable(c, names, pattern_of) for c in combos)
+    all_patterned = tuple(all(pattern_of[n] for n in sw) for sw in switchable)
 
+    cols: dict[str, list[np.ndarray]] = {"fixed": [], "patterned": [], "dead": [],
+                                         "cells": []}
+    col_combo: list[int] = []
+    col_masks: list[Masks] = []
+    groups: list[np.ndarray] = []
+    group_col: list[int] = []
+    group_case: list[str] = []
+    group_mask: list[np.ndarray] = []
+
+    def add_groups(k: int, col: int, select: np.ndarray, mask: np.ndarray) -> None:
+        """One group per case among the units ``select``: that case's factors there."""
+        for name in switchable[k]:
+            part = np.where(select & (np.array(names) == name), factor[:, k], 0.0)
+            if np.any(part != 0.0):
+                groups.append(part)
+                group_col.append(col)
+                group_case.append(name)
+                group_mask.append(mask)
+
+    every_cell = np.ones(n_g, dtype=bool)
     sets = arrangements(pat, beam.n_spans)
-    if sets is not None:
-        every = frozenset(range(beam.n_spans))
-        columns, combo_of, labels = [], [], []
+    superposed = sets is None
+    whole = ~is_patterned[:, None] & optional  # non-patterned cases acting or not
+    if superposed:
         for k in range(n_k):
-            for s in (sets if has_pattern[k] else (every,)):
+            variable_dead = is_dead & has_pattern[k] & (fav != 1.0)
+            cols["patterned"].append(np.where(is_patterned, factor[:, k], 0.0))
+            cols["dead"].append(np.where(variable_dead, factor[:, k], 0.0))
+            cols["fixed"].append(np.where(is_patterned | variable_dead | whole[:, k], 0.0,
+                                          factor[:, k]))
+            cols["cells"].append(every_cell)
+            col_combo.append(k)
+            col_masks.append(())
+            add_groups(k, k, whole[:, k], every_cell)
+    else:
+        every = frozenset(range(beam.n_spans))
+        for k in range(n_k):
+            spans = sets if has_pattern[k] else (every,)
+            pat_k = is_patterned & (factor[:, k] != 0.0)
+            if has_pattern[k] and np.all(optional[pat_k, k]):
+                spans = (*spans, frozenset())  # no patterned case acting at all
+            for s in spans:
+                col = len(col_combo)
                 on = np.isin(unit_span, list(s))
-                col = np.where(is_patterned, np.where(on, factor[:, k], 0.0), factor[:, k])
-                col = np.where(is_dead & ~on, factor[:, k] * pat.favourable_dead, col)
-                columns.append(col)
-                combo_of.append(k)
-                labels.append(loaded_label([str(j + 1) for j in sorted(s)],
-                                           [True] * len(s), s == every))
-        coef = np.array(columns).T.reshape(n_u, len(columns))
-        return CaseSet(coef=coef, case_combo=np.array(combo_of, dtype=np.int64),
-                       case_loaded=tuple(labels), fixed=None, patterned=None, dead_var=None,
-                       **common)
+                cell_on = np.isin(cells.span, list(s))
+                f = np.where(is_patterned, np.where(on, factor[:, k], 0.0), factor[:, k])
+                f = np.where(is_dead & ~on, factor[:, k] * fav, f)
+                f = np.where(whole[:, k], 0.0, f)
+                cols["fixed"].append(f)
+                cols["patterned"].append(np.zeros(n_u))
+                cols["dead"].append(np.zeros(n_u))
+                cols["cells"].append(cell_on)
+                col_combo.append(k)
+                col_masks.append(tuple((n, tuple(bool(b) for b in cell_on))
+                                       for n in switchable[k] if pattern_of[n]))
+                add_groups(k, col, whole[:, k], every_cell)
 
-    patterned = np.where(is_patterned[:, None], factor, 0.0)
-    variable_dead = is_dead[:, None] & has_pattern[None, :] & (pat.favourable_dead != 1.0)
-    dead_var = np.where(variable_dead, factor, 0.0)
-    fixed = np.where(is_patterned[:, None] | variable_dead, 0.0, factor)
-    return CaseSet(coef=None, case_combo=None, case_loaded=(), fixed=fixed,
-                   patterned=patterned, dead_var=dead_var, **common)
+    def stack(parts: list[np.ndarray], rows: int) -> np.ndarray:
+        return np.array(parts).T.reshape(rows, len(parts)) if parts else np.zeros((rows, 0))
 
-
-def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True) -> Extremes:
-    """Envelope of the responses ``R`` (rows x units) over the case set; with
-    ``labels=False`` the ``_loaded`` texts are left empty."""
-    if cs.superposed:
-        return _reduce_superposed(R, cs, labels)
-    assert cs.coef is not None and cs.case_combo is not None
-    values = R @ cs.coef
-    i_max = np.argmax(values, axis=1)
-    i_min = np.argmin(values, axis=1)
-    rows = np.arange(R.shape[0])
-    texts = np.array(cs.case_loaded, dtype=object)
-    return Extremes(values[rows, i_max], values[rows, i_min], cs.case_combo[i_max],
-                    cs.case_combo[i_min], texts[i_max], texts[i_min])
+    return CaseSet(
+        combinations=combos, cell_labels=cells.label, unit_case_name=tuple(names),
+        unit_cell=units.cell, superposed=superposed,
+        col_combo=np.array(col_combo, dtype=np.int64),
+        col_cells=np.array(cols["cells"], dtype=bool).reshape(len(col_combo), n_g),
+        col_masks=tuple(col_masks),
+        fixed=stack(cols["fixed"], n_u), patterned=stack(cols["patterned"], n_u),
+        dead_var=stack(cols["dead"], n_u), groups=stack(groups, n_u),
+        group_col=np.array(group_col, dtype=np.int64), group_case=tuple(group_case),
+        group_mask=np.array(group_mask, dtype=bool).reshape(len(group_col), n_g),
+        switchable=switchable, all_patterned=all_patterned, favourable_dead=fav)
 
 
 def _cell_onehot(cs: CaseSet) -> np.ndarray:
@@ -172,12 +249,11 @@ def _cell_onehot(cs: CaseSet) -> np.ndarray:
 
 def _superposed_values(R: np.ndarray, cs: CaseSet, k: int, sign: float,
                        onehot: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Extreme (sign=+1: max, -1: min) of combination k over all subsets of cells, with
-    the cell-by-cell choice that ``favourable_dead`` needs.
+    """Extreme (sign=+1: max, -1: min) of column k over all subsets of cells, fixed and
+    patterned parts, with the cell-by-cell choice that ``favourable_dead`` needs.
 
     Returns the value per row, the chosen patterned units (rows x units, bool) and
     the loaded cells (rows x cells, bool)."""
-    assert cs.fixed is not None and cs.patterned is not None and cs.dead_var is not None
     X = sign * (R * cs.patterned[:, k])  # the worse direction made positive
     take = X > 0.0
     base = R @ cs.fixed[:, k]
@@ -209,127 +285,150 @@ def _superposed_values(R: np.ndarray, cs: CaseSet, k: int, sign: float,
     return value, chosen, loaded
 
 
-def superposed_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]:
-    """Largest and smallest value of every combination over all subsets of cells:
-    two (rows x combinations) arrays.
+def column_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]:
+    """Largest and smallest value of every column over all subsets of its on/off parts:
+    two (rows x columns) arrays.
 
-    Where dead load does not depend on the pattern, the sum of positive parts is
-    sum(max(R_u p_u, 0)) = (R @ P + |R| @ |P|) / 2, since max(a, 0) = (a + |a|) / 2
-    term by term: two matrix products, no loop over unit cases or combinations.
-    Combinations with a pattern-dependent (favourable) dead load take the cell-by-cell
-    choice of :func:`_superposed_values`."""
-    assert cs.fixed is not None and cs.patterned is not None and cs.dead_var is not None
+    For the per-unit parts, where dead load does not depend on the pattern, the sum of
+    positive parts is sum(max(R_u p_u, 0)) = (R @ P + |R| @ |P|) / 2, since
+    max(a, 0) = (a + |a|) / 2 term by term: two matrix products.  Groups add
+    max(R @ G, 0) summed by column (one more product).  Columns with a
+    pattern-dependent (favourable) dead load take the cell-by-cell choice of
+    :func:`_superposed_values`."""
     base = R @ cs.fixed
-    signed = R @ cs.patterned
-    spread = np.abs(R) @ np.abs(cs.patterned)
-    vmax = base + 0.5 * (signed + spread)
-    vmin = base + 0.5 * (signed - spread)
-    fav = np.flatnonzero(cs.dead_var.any(axis=0))
-    if fav.size:
-        onehot = _cell_onehot(cs)
-        for k in fav:
-            vmax[:, k] = _superposed_values(R, cs, int(k), 1.0, onehot)[0]
-            vmin[:, k] = _superposed_values(R, cs, int(k), -1.0, onehot)[0]
+    if cs.superposed:
+        signed = R @ cs.patterned
+        spread = np.abs(R) @ np.abs(cs.patterned)
+        vmax = base + 0.5 * (signed + spread)
+        vmin = base + 0.5 * (signed - spread)
+        fav = np.flatnonzero(cs.dead_var.any(axis=0))
+        if fav.size:
+            onehot = _cell_onehot(cs)
+            for k in fav:
+                vmax[:, k] = _superposed_values(R, cs, int(k), 1.0, onehot)[0]
+                vmin[:, k] = _superposed_values(R, cs, int(k), -1.0, onehot)[0]
+    else:
+        vmax, vmin = base, base.copy()
+    if cs.group_col.size:
+        gv = R @ cs.groups
+        m = cs.membership()
+        vmax = vmax + np.maximum(gv, 0.0) @ m
+        vmin = vmin + np.minimum(gv, 0.0) @ m
     return vmax, vmin
 
 
-def _choices(R: np.ndarray, cs: CaseSet, combo: np.ndarray,
-             sign: float) -> tuple[np.ndarray, np.ndarray | None]:
-    """The governing choice at each row for its own combination: chosen patterned
-    units (rows x units) and, where dead load is pattern-dependent, loaded cells."""
-    assert cs.patterned is not None and cs.dead_var is not None
-    P = cs.patterned.T[combo]  # rows x units: each row's own combination
+def superposed_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]:
+    """Largest and smallest value of every combination (rows x combinations): the
+    extreme over its columns (its arrangements) of :func:`column_extremes`."""
+    vmax, vmin = column_extremes(R, cs)
+    n_k = len(cs.combinations)
+    out_max = np.full((R.shape[0], n_k), -np.inf)
+    out_min = np.full((R.shape[0], n_k), np.inf)
+    for c in range(cs.n_columns):
+        k = int(cs.col_combo[c])
+        out_max[:, k] = np.maximum(out_max[:, k], vmax[:, c])
+        out_min[:, k] = np.minimum(out_min[:, k], vmin[:, c])
+    return out_max, out_min
+
+
+def _choices(R: np.ndarray, cs: CaseSet, col: np.ndarray, sign: float
+             ) -> tuple[np.ndarray, np.ndarray | None, np.ndarray]:
+    """The governing choice at each row for its own column: chosen patterned units
+    (rows x units), where dead load is pattern-dependent the loaded cells, and the
+    groups acting (rows x groups)."""
+    P = cs.patterned.T[col]  # rows x units: each row's own column
     units = (sign * R * P) > 0.0
-    fav = np.flatnonzero(cs.dead_var.any(axis=0))
+    groups = np.zeros((R.shape[0], cs.group_col.size), dtype=bool)
+    if cs.group_col.size:
+        groups = ((sign * (R @ cs.groups)) > 0.0) & (cs.group_col[None, :] == col[:, None])
+    fav = np.flatnonzero(cs.dead_var.any(axis=0)) if cs.superposed else np.zeros(0, int)
     if not fav.size:
-        return units, None
+        return units, None, groups
     onehot = _cell_onehot(cs)
     cells = (units.astype(float) @ onehot) > 0
     for k in fav:
-        rows = np.flatnonzero(combo == k)
+        rows = np.flatnonzero(col == k)
         if rows.size:
             _, u_k, c_k = _superposed_values(R[rows], cs, int(k), sign, onehot)
             units[rows], cells[rows] = u_k, c_k
-    return units, cells
+    return units, cells, groups
 
 
 def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
     """Coefficients over unit cases (rows x units) of the case that governs the maximum
-    at each row: the explicit case, or the combination with its chosen subset of cells.
-    The response of that one fixed case is smooth where the envelope is, so its
-    derivative locates the envelope's extreme exactly."""
-    if not cs.superposed:
-        assert cs.coef is not None
-        return cs.coef.T[np.argmax(R @ cs.coef, axis=1)]
-    assert cs.fixed is not None and cs.patterned is not None and cs.dead_var is not None
-    vmax, _ = superposed_extremes(R, cs)
-    k = np.argmax(vmax, axis=1)
-    units, cells = _choices(R, cs, k, 1.0)
-    coef = cs.fixed.T[k] + cs.patterned.T[k] * units
-    dead = cs.dead_var.T[k]
+    at each row: the column with its chosen subset of on/off parts.  The response of
+    that one fixed case is smooth where the envelope is, so its derivative locates the
+    envelope's extreme exactly."""
+    vmax, _ = column_extremes(R, cs)
+    col = np.argmax(vmax, axis=1)
+    units, cells, groups = _choices(R, cs, col, 1.0)
+    coef = cs.fixed.T[col] + cs.patterned.T[col] * units + groups.astype(float) @ cs.groups.T
+    dead = cs.dead_var.T[col]
     if cells is not None:
         on = cells[:, cs.unit_cell]
         coef += np.where(on, dead, dead * cs.favourable_dead)
     return coef
 
 
-def _reduce_superposed(R: np.ndarray, cs: CaseSet, labels: bool) -> Extremes:
-    vmax, vmin = superposed_extremes(R, cs)
+def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True) -> Extremes:
+    """Envelope of the responses ``R`` (rows x units) over the case set; with
+    ``labels=False`` the ``_loaded`` texts are left empty."""
+    vmax, vmin = column_extremes(R, cs)
     rows = np.arange(R.shape[0])
-    k_max, k_min = np.argmax(vmax, axis=1), np.argmin(vmin, axis=1)
+    c_max, c_min = np.argmax(vmax, axis=1), np.argmin(vmin, axis=1)
     if labels:
-        t_max = _labels(cs, k_max, *_choices(R, cs, k_max, 1.0))
-        t_min = _labels(cs, k_min, *_choices(R, cs, k_min, -1.0))
+        t_max = _labels(cs, c_max, *_choices(R, cs, c_max, 1.0))
+        t_min = _labels(cs, c_min, *_choices(R, cs, c_min, -1.0))
     else:
         t_max = t_min = np.full(R.shape[0], "", dtype=object)
-    return Extremes(vmax[rows, k_max], vmin[rows, k_min], k_max, k_min, t_max, t_min)
+    return Extremes(vmax[rows, c_max], vmin[rows, c_min], cs.col_combo[c_max],
+                    cs.col_combo[c_min], t_max, t_min)
 
 
-def _patterned_cases(cs: CaseSet) -> list[list[str]]:
-    """Per combination, the names of its patterned cases (in declaration order)."""
-    assert cs.patterned is not None
-    out = []
-    for k in range(len(cs.combinations)):
-        names = [cs.unit_case_name[u] for u in np.flatnonzero(cs.patterned[:, k] != 0.0)]
-        out.append(list(dict.fromkeys(names)))
-    return out
-
-
-def _labels(cs: CaseSet, combo: np.ndarray, units: np.ndarray,
-            cells: np.ndarray | None) -> np.ndarray:
-    """``_loaded`` text per row from the chosen units (and loaded cells, where dead load
-    depends on the pattern)."""
-    parts = [combo[:, None].astype(np.uint16).view(np.uint8), np.packbits(units, axis=1)]
+def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray | None,
+            groups: np.ndarray) -> np.ndarray:
+    """``_loaded`` text per row from its column, the chosen units and groups (and the
+    loaded cells, where dead load depends on the pattern)."""
+    parts = [col[:, None].astype(np.int64).view(np.uint8), np.packbits(units, axis=1),
+             np.packbits(groups, axis=1)]
     if cells is not None:
         parts.append(np.packbits(cells, axis=1))
     key = np.ascontiguousarray(np.concatenate(parts, axis=1))
-    # one text per distinct (combination, choice): rows as opaque byte strings
+    # one text per distinct (column, choice): rows as opaque byte strings
     raw = key.view(np.dtype((np.void, key.shape[1]))).ravel()
     _, first, inverse = np.unique(raw, return_index=True, return_inverse=True)
     text = np.empty(first.size, dtype=object)
     n_g = len(cs.cell_labels)
-    pat_cases = _patterned_cases(cs)
-    assert cs.patterned is not None
-    present = [{c: {int(cs.unit_cell[u]) for u in np.flatnonzero(cs.patterned[:, k] != 0.0)
-                    if cs.unit_case_name[u] == c} for c in pat_cases[k]}
-               for k in range(len(cs.combinations))]
+    present: dict[int, dict[str, set[int]]] = {}
     case_names = list(dict.fromkeys(cs.unit_case_name))
     unit_case = np.array([case_names.index(n) for n in cs.unit_case_name], dtype=np.int64)
     for i, row in enumerate(first):
-        k = int(combo[row])
-        by_case: dict[str, list[bool]] = {c: [False] * n_g for c in pat_cases[k]}
+        c = int(col[row])
+        k = int(cs.col_combo[c])
+        by_case: dict[str, list[bool]] = {n: [False] * n_g for n in cs.switchable[k]}
+        for name, mask in cs.col_masks[c]:
+            by_case[name] = list(mask)
         for name, cells_of in _cells_by_case(case_names, unit_case, cs.unit_cell,
                                              np.flatnonzero(units[row]), n_g):
             by_case[name] = cells_of
+        for g in np.flatnonzero(groups[row]):
+            by_case[cs.group_case[g]] = [bool(b) for b in cs.group_mask[g]]
         if cells is not None:
+            if c not in present:
+                is_pat = cs.patterned[:, c] != 0.0
+                present[c] = {}
+                for u in np.flatnonzero(is_pat):
+                    present[c].setdefault(cs.unit_case_name[u], set()).add(
+                        int(cs.unit_cell[u]))
+            pat = [n for n in by_case if n in present[c]]
             # a cell loaded with none of its own patterned units carries a patterned case
             # that has no load there (so its dead load takes the full factor)
             for g in np.flatnonzero(cells[row]):
-                if not any(mask[g] for mask in by_case.values()):
-                    empty = [c for c in by_case if int(g) not in present[k][c]]
+                if not any(by_case[n][g] for n in pat):
+                    empty = [n for n in pat if int(g) not in present[c][n]]
                     if empty:
                         by_case[empty[0]][int(g)] = True
-        text[i] = _label_text(cs.cell_labels, by_case)
+        text[i] = _label_text(cs.cell_labels, by_case, cs.all_patterned[k])
     return text[inverse.ravel()]
 
 
@@ -347,10 +446,13 @@ def _cells_by_case(case_names: list[str], unit_case: np.ndarray, unit_cell: np.n
     return [(case_names[i], masks[i].tolist()) for i in np.flatnonzero(present).tolist()]
 
 
-def _label_text(cell_labels: tuple[str, ...], by_case: dict[str, list[bool]]) -> str:
+def _label_text(cell_labels: tuple[str, ...], by_case: dict[str, list[bool]],
+                all_patterned: bool = True) -> str:
+    """``"all"`` with nothing switchable; one mask text where every switchable case is
+    patterned and all share it; else each case with its own ("L: 1 3; W: none")."""
     if not by_case:
         return "all"
     masks = list(by_case.values())
-    if all(m == masks[0] for m in masks):
+    if all_patterned and all(m == masks[0] for m in masks):
         return loaded_label(cell_labels, masks[0], all(masks[0]))
     return "; ".join(f"{c}: {loaded_label(cell_labels, m, all(m))}" for c, m in by_case.items())

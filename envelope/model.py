@@ -29,8 +29,9 @@ CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind"]
 #: EN 1990 Table A1.1 categories of imposed load (psi factors).
 Category = Literal["A", "B", "C", "D", "E", "F", "G", "H"]
 CombinationSet = Literal["strength", "service"]
-StrengthRuleSet = Literal["asce7-lrfd", "asce7-asd", "en1990-6.10", "en1990-6.10ab", "none"]
-ServiceRuleSet = Literal["characteristic", "none"]
+StrengthRuleSet = Literal["asce7-lrfd", "asce7-asd", "en1990-6.10", "en1990-6.10ab",
+                          "en1990-6.10ab-uk", "none"]
+ServiceRuleSet = Literal["characteristic", "frequent", "quasi-permanent", "none"]
 PatternMethod = Literal["none", "code", "exhaustive", "segments"]
 MomentPlot = Literal["sagging-up", "tension-side"]
 
@@ -142,13 +143,18 @@ class LiveReduction:
 @dataclass(frozen=True, slots=True)
 class LoadCase:
     """A named load case: its kind, whether it is patterned, its EN 1990 category, and
-    its live load reduction."""
+    its live load reduction, and optional national values of its combination factors
+    psi_0, psi_1, psi_2 (None: the recommended value of EN 1990 Table A1.1 for its kind
+    and category)."""
 
     name: str
     kind: CaseKind
     patterned: bool
     category: Category | None = None
     reduction: LiveReduction | None = None
+    psi0: float | None = None
+    psi1: float | None = None
+    psi2: float | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -180,12 +186,26 @@ class Load:
 
 @dataclass(frozen=True, slots=True)
 class Combination:
-    """A load combination: factors by case name.  ``source`` cites the clause or says "custom"."""
+    """A load combination: factors by case name.  ``source`` cites the clause or says "custom".
+
+    ``optional`` names the cases that act only where they make the effect worse (a
+    variable action is left out where it helps, EN 1990 Table A1.2(B) gamma_Q = 0,
+    ASCE 7-22 2.3.1 and 2.4.1 "loads not acting"); every other case always acts (a
+    patterned one on the cells its patterning chooses).  ``rule`` is the rule set that
+    generated the row ("en1990-6.10", "quasi-permanent", ...; "custom" for custom
+    rows); ``leading`` the leading variable case of an EN row ("" where none);
+    ``derivation`` says how each factor was made ("S: 1.5 = gamma_Q; W: 0.9 = gamma_Q
+    1.5 x psi_0 0.6").
+    """
 
     name: str
     set: CombinationSet
     factors: tuple[tuple[str, float], ...]
     source: str = "custom"
+    optional: frozenset[str] = frozenset()
+    rule: str = "custom"
+    leading: str = ""
+    derivation: str = ""
 
     def factor(self, case: str) -> float:
         for name, value in self.factors:
@@ -200,12 +220,26 @@ class Combination:
 
 @dataclass(frozen=True, slots=True)
 class CombinationSpec:
-    """The ``[combinations]`` table: rule-set names and custom combinations."""
+    """The ``[combinations]`` table: rule-set names, national partial factors and custom
+    combinations.
+
+    ``service`` is one service set name or several.  ``factors`` holds the national
+    choices of the EN sets by key (``G_sup``, ``G_inf``, ``Q``, ``xi``); a key not given
+    takes the recommended value of EN 1990 Table A1.2(B) (or the rule set's own, such
+    as xi = 0.925 of ``en1990-6.10ab-uk``).
+    """
 
     strength: StrengthRuleSet = "none"
-    service: ServiceRuleSet = "none"
+    service: ServiceRuleSet | tuple[ServiceRuleSet, ...] = "none"
     reduced_companion_live: bool = False
     custom: tuple[Combination, ...] = ()
+    factors: tuple[tuple[str, float], ...] = ()
+
+    @property
+    def service_sets(self) -> tuple[str, ...]:
+        """The service set names as a tuple, "none" left out."""
+        names = (self.service,) if isinstance(self.service, str) else tuple(self.service)
+        return tuple(n for n in names if n != "none")
 
 
 @dataclass(frozen=True, slots=True)

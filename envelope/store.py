@@ -200,6 +200,9 @@ def design_table(analysis: Analysis) -> pa.Table:
         "shear_right": col("shear_right"),
         "deflection_max": col("deflection_max", defl),
         "deflection_live": col("deflection_live", defl),
+        "deflection_live_combo": string_column(
+            list(d["deflection_live_combo"]),
+            np.array([not v for v in d["deflection_live_combo"]], dtype=bool)),
         "span_over_deflection": col("span_over_deflection"),
         "live_reduction": float_column(live_reduction_by_span(beam)),
     }
@@ -231,13 +234,18 @@ def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
     rows = []
     solved = analysis.solved
     for name, cs in (("strength", solved.strength), ("service", solved.service)):
-        sources = {c.name: c.source for c in cs.combinations}
+        by_name = {c.name: c for c in cs.combinations}
         for r in cs.case_rows(explicit=all_cases):
-            rows.append({"set": name, **r, "source": sources[r["combination"]]})
+            c = by_name[r["combination"]]
+            rows.append({"set": name, **r, "source": c.source, "rule": c.rule,
+                         "leading": c.leading,
+                         "optional": json.dumps([n for n, _ in c.factors if n in c.optional]),
+                         "derivation": c.derivation})
     reductions = span_factors(analysis.beam)
     for row in rows:
         row["live_reduction"] = _reductions_acting(analysis.beam, row["factors"], reductions)
-    names = ("set", "combination", "loaded", "factors", "source", "live_reduction")
+    names = ("set", "combination", "loaded", "factors", "source", "live_reduction", "rule",
+             "leading", "optional", "derivation")
     table = make_table({k: string_column([r[k] for r in rows]) for k in names})
     meta = _metadata(analysis)
     text = input_text(analysis.beam)

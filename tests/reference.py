@@ -554,13 +554,15 @@ def _mask_text(cells: list[Cell], mask: Sequence[bool]) -> str:
     return " ".join(chosen) if chosen else "none"
 
 
-def _label(cells: list[Cell], masks: dict[str, tuple[bool, ...]]) -> str:
-    """The ``_loaded`` text: "all", "1 3", "2.1 2.3", "none"; with patterned cases on
-    different cells, "L: 1 3; Lr: 2" (cases in order of their first load item)."""
+def _label(cells: list[Cell], masks: dict[str, tuple[bool, ...]],
+           all_patterned: bool = True) -> str:
+    """The ``_loaded`` text: "all", "1 3", "2.1 2.3", "none" where every case named is
+    patterned and all share one arrangement; else each case with its own, "L: 1 3;
+    Lr: 2; W: none" (cases in order of their first load item)."""
     if not masks:
         return "all"
     values = list(masks.values())
-    if all(m == values[0] for m in values):
+    if all_patterned and all(m == values[0] for m in values):
         return _mask_text(cells, values[0])
     return "; ".join(f"{name}: {_mask_text(cells, m)}" for name, m in masks.items())
 
@@ -580,31 +582,48 @@ class Envelope:
     min_unique: np.ndarray
 
 
-def patterned_cases(beam: Beam, combo: Combination) -> list[int]:
-    """Indices of the patterned cases of a combination that carry load, in the order of
-    their first load item."""
+def switchable_cases(beam: Beam, combo: Combination) -> list[int]:
+    """Indices of the cases of a combination that may be placed or left off: its
+    patterned cases and the cases it lets act only where unfavourable
+    (``combo.optional``), each carrying load and a factor, in the order of their first
+    load item."""
     order: list[int] = []
     names = [case.name for case in beam.cases]
     for load in beam.loads:
         c = names.index(load.case)
-        if beam.cases[c].patterned and combo.factor(load.case) != 0.0 and c not in order:
+        case = beam.cases[c]
+        if ((case.patterned or case.name in combo.optional)
+                and combo.factor(load.case) != 0.0 and c not in order):
             order.append(c)
     return order
 
 
+def patterned_cases(beam: Beam, combo: Combination) -> list[int]:
+    """The patterned ones of :func:`switchable_cases`."""
+    return [c for c in switchable_cases(beam, combo) if beam.cases[c].patterned]
+
+
+def favourable_factor(beam: Beam, combo: Combination) -> float:
+    """The dead-load factor on cells carrying no patterned load: ``favourable_dead`` for
+    strength combinations, 1.0 for service ones (a strength-set option)."""
+    return beam.patterning.favourable_dead if combo.set == "strength" else 1.0
+
+
 def coefficients(beam: Beam, combo: Combination, table: UnitTable,
                  on: dict[int, Sequence[bool]], loaded: Sequence[bool]) -> np.ndarray:
-    """Coefficients over the units of one arrangement: patterned case c carries its load
-    on the cells where ``on[c]`` is true; dead cases take favourable_dead times their
-    factor on cells not ``loaded`` (when the combination has patterned load)."""
-    f_dead = beam.patterning.favourable_dead
+    """Coefficients over the units of one arrangement: a switchable case c (patterned or
+    optional) carries its load on the cells where ``on[c]`` is true; dead cases take the
+    favourable factor times their factor on cells not ``loaded`` (when the combination
+    has patterned load)."""
+    f_dead = favourable_factor(beam, combo)
+    has_pattern = any(beam.cases[c].patterned for c in on)
     col = np.zeros(len(table.units))
     for u, (c, g) in enumerate(table.units):
         case = beam.cases[c]
         factor = combo.factor(case.name)
-        if case.patterned:
+        if case.patterned or case.name in combo.optional:
             col[u] = factor if (c in on and on[c][g]) else 0.0
-        elif case.kind == "dead" and on and not loaded[g]:
+        elif case.kind == "dead" and has_pattern and not loaded[g]:
             col[u] = f_dead * factor
         else:
             col[u] = factor
@@ -613,9 +632,10 @@ def coefficients(beam: Beam, combo: Combination, table: UnitTable,
 
 def parse_label(beam: Beam, combo: Combination, cells: list[Cell],
                 text: str) -> dict[int, list[bool]]:
-    """The arrangement a ``_loaded`` text names: patterned case -> cells it is placed on.
-    Texts: "all", "none", "1 3", "2.1 2.3", or per case "L: 1 3; Lr: all"."""
-    order = patterned_cases(beam, combo)
+    """The arrangement a ``_loaded`` text names: switchable case -> cells it is placed
+    on.  Texts: "all", "none", "1 3", "2.1 2.3", or per case "L: 1 3; Lr: all; W: none"
+    (a switchable case not named is off)."""
+    order = switchable_cases(beam, combo)
     names = [case.name for case in beam.cases]
     labels = [cell.label for cell in cells]
 
@@ -637,7 +657,10 @@ def parse_label(beam: Beam, combo: Combination, cells: list[Cell],
     out = {c: [False] * len(cells) for c in order}
     for part in text.split(";"):
         name, _, rest = part.partition(":")
-        out[names.index(name.strip())] = mask(rest)
+        c = names.index(name.strip())
+        if c not in out:
+            raise ValueError(f"case {name.strip()!r} of {text!r} is not switchable")
+        out[c] = mask(rest)
     return out
 
 
@@ -646,7 +669,8 @@ def label_value(beam: Beam, combo: Combination, table: UnitTable, R: np.ndarray,
     """Value of R (rows x units) under the arrangement a ``_loaded`` text names; a cell
     is loaded when some patterned case is placed on it."""
     on = parse_label(beam, combo, table.cells, text)
-    loaded = [any(m[g] for m in on.values()) for g in range(len(table.cells))]
+    loaded = [any(m[g] for c, m in on.items() if beam.cases[c].patterned)
+              for g in range(len(table.cells))]
     return R @ coefficients(beam, combo, table, on, loaded)
 
 
@@ -655,50 +679,66 @@ def arrangements(beam: Beam, combo: Combination, table: UnitTable
     """Every load arrangement of one combination as coefficients over the units
     (n_units, n_arrangements), with its ``_loaded`` text.
 
-    * A combination with no patterned case carrying load: one arrangement, every
-      factor as given ("all").
-    * ``none``: every patterned case on every span ("all").
-    * ``code``: the :func:`code_span_sets`, every patterned case on the same spans.
+    Patterned cases first:
+
+    * ``none``: every patterned case on every span;
+    * ``code``: the :func:`code_span_sets`, every patterned case on the same spans;
+    * for both, where the combination names every patterned case as optional, also
+      none of them anywhere (no span loaded);
     * ``exhaustive`` / ``segments``: every subset of cells, for each patterned case
       independently.  Placing a case on a cell where it has no load changes nothing
       but the dead load there, so such placements are listed once, as "the cell is
       loaded" (labelled with the first patterned case that has no load there), and
-      only when favourable_dead is not 1.
-    A cell is loaded when some patterned case of the combination is placed on it;
-    dead cases take ``favourable_dead`` times their factor on cells not loaded.
-    Results are kept on the table, by combination.
+      only when the favourable dead factor is not 1.
+
+    Then each of those with every optional case that is not patterned on (over the
+    whole beam) and off, in every combination.  A cell is loaded when some patterned
+    case of the combination is placed on it (for ``code``: the cells of the span
+    set); dead cases take the favourable factor on cells not loaded.  Results are kept
+    on the table, by combination.
     """
-    key = (combo.name, combo.factors)
+    key = (combo.name, combo.set, combo.factors, combo.optional)
     if key in table.cache:
         return table.cache[key]
     cases = beam.cases
     cells = table.cells
     n_g = len(cells)
-    order = patterned_cases(beam, combo)
+    order = switchable_cases(beam, combo)
+    pat = [c for c in order if cases[c].patterned]
+    whole = [c for c in order if not cases[c].patterned]
+    all_patterned = not whole
     method = beam.patterning.method
-    f_dead = beam.patterning.favourable_dead
+    f_dead = favourable_factor(beam, combo)
 
     # (case -> cells carrying it, loaded cells, case -> cells named in the label)
     Placement = tuple[dict[int, list[bool]], list[bool], dict[int, list[bool]]]
     placements: list[Placement] = []
-    if not order or method == "none":
-        every = {c: [True] * n_g for c in order}
-        placements.append((every, [True] * n_g, every))
+
+    def on_spans(mask: list[bool]) -> None:
+        on = {c: list(mask) for c in pat}
+        placements.append((on, list(mask), on))
+
+    # with every patterned case optional, also none of them acting (no span loaded)
+    nothing = bool(pat) and all(cases[c].name in combo.optional for c in pat)
+    if not pat or method == "none":
+        on_spans([True] * n_g)
+        if nothing:
+            on_spans([False] * n_g)
     elif method == "code":
         for span_set in code_span_sets(beam.n_spans):
-            mask = [cell.span in span_set for cell in cells]
-            on = {c: mask for c in order}
-            placements.append((on, mask, on))
+            on_spans([cell.span in span_set for cell in cells])
+        if nothing:
+            on_spans([False] * n_g)
     else:
-        own = {c: {g for cc, g in table.units if cc == c} for c in order}
-        bits = [(c, g) for c in order for g in sorted(own[c])]
-        phantom = ([g for g in range(n_g) if any(g not in own[c] for c in order)]
+        own = {c: {g for cc, g in table.units if cc == c} for c in pat}
+        bits = [(c, g) for c in pat for g in sorted(own[c])]
+        phantom = ([g for g in range(n_g) if any(g not in own[c] for c in pat)]
                    if f_dead != 1.0 else [])
         for real in itertools.product((False, True), repeat=len(bits)):
-            on = {c: [False] * n_g for c in order}
+            on = {c: [False] * n_g for c in pat}
             for (c, g), chosen in zip(bits, real, strict=True):
                 on[c][g] = chosen
-            real_loaded = [any(on[c][g] for c in order) for g in range(n_g)]
+            real_loaded = [any(on[c][g] for c in pat) for g in range(n_g)]
             empty = [g for g in phantom if not real_loaded[g]]
             for extra in itertools.product((False, True), repeat=len(empty)):
                 loaded = list(real_loaded)
@@ -706,14 +746,24 @@ def arrangements(beam: Beam, combo: Combination, table: UnitTable
                 for g, chosen in zip(empty, extra, strict=True):
                     if chosen:
                         loaded[g] = True
-                        named[next(c for c in order if g not in own[c])][g] = True
+                        named[next(c for c in pat if g not in own[c])][g] = True
                 placements.append((on, loaded, named))
 
-    coef = np.zeros((len(table.units), len(placements)))
+    # every optional case that is not patterned: on over the whole beam, or off
+    full: list[Placement] = []
+    for on, loaded, named in placements:
+        for bits in itertools.product((True, False), repeat=len(whole)):
+            on2, named2 = dict(on), dict(named)
+            for c, chosen in zip(whole, bits, strict=True):
+                on2[c] = named2[c] = [chosen] * n_g
+            full.append((on2, loaded, named2))
+
+    coef = np.zeros((len(table.units), len(full)))
     labels = []
-    for a, (on, loaded, named) in enumerate(placements):
+    for a, (on, loaded, named) in enumerate(full):
         coef[:, a] = coefficients(beam, combo, table, on, loaded)
-        labels.append(_label(cells, {cases[c].name: tuple(named[c]) for c in order}))
+        labels.append(_label(cells, {cases[c].name: tuple(named[c]) for c in order},
+                             all_patterned))
     table.cache[key] = (coef, labels)
     return coef, labels
 

@@ -39,6 +39,7 @@ import pytest
 from envelope.analysis import case_responses
 from envelope.casefile import parse_case
 from envelope.combinations import build as build_combinations
+from envelope.combinations import variable_alone
 from envelope.errors import CaseError
 from envelope.model import Beam, Combination
 from envelope.recovery import make_points
@@ -917,8 +918,7 @@ def test_design_actions_match_brute_force(params: tuple[int, str, float]) -> Non
     _close(d["shear_left"], mag[left], _scale(shear), "shear_left")
     _close(d["shear_right"], mag[right], _scale(shear), "shear_right")
 
-    live = (Combination("live", "service", tuple(
-        (k.name, 1.0) for k in beam.cases if k.kind in ("live", "roof_live"))),)
+    live = variable_alone(beam.cases)
     for key, combos in (("deflection_max", None), ("deflection_live", live)):
         env = _ref_env(c, "deflection", dense_rows, combos)
         dscale = _scale(env)
