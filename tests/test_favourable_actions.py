@@ -167,7 +167,7 @@ def test_least_hogging_at_the_middle_support_is_1_0g_alone(method: str) -> None:
     at = np.flatnonzero((st.span == 0) & (st.x_span == 6.0))
     assert m.max[at] == pytest.approx(-90.0, rel=1e-12)
     assert m.min[at] == pytest.approx(-202.5, rel=1e-12)
-    assert a.design["moment_neg_right"][0] == pytest.approx(-202.5, rel=1e-12)
+    assert a.design_actions["moment_neg_right"][0] == pytest.approx(-202.5, rel=1e-12)
 
 
 def test_cases_table_records_every_factor_and_what_may_be_left_out() -> None:
@@ -190,7 +190,7 @@ def test_deflection_live_is_the_worst_variable_action_alone_and_says_which() -> 
     # Simple span, downward deflection 5wL^4/384EI (common practice): snow 3 kN/m
     # deflects; wind -3 kN/m lifts, so alone it never governs a downward deflection.
     a = run(ONE_SPAN)
-    d = a.design
+    d = a.design_actions
     L, EI = 6.0, 1.0
     assert d["deflection_live"][0] == pytest.approx(5 * 3.0 * L**4 / (384 * EI), rel=1e-9)
     assert d["deflection_live_combo"][0] == "S"
@@ -198,3 +198,29 @@ def test_deflection_live_is_the_worst_variable_action_alone_and_says_which() -> 
     assert d["deflection_max"][0] == pytest.approx(5 * 5.0 * L**4 / 384, rel=1e-9)
     table = design_table(a).to_pylist()
     assert table[0]["deflection_live_combo"] == "S"
+
+
+def test_national_factors_psi_and_service_lists_are_read_and_used() -> None:
+    # The one-span beam with national choices: gamma_G,sup 1.25, gamma_Q 1.6, and the
+    # wind's own psi_0 0.5.  Snow leading: (1.25 x 2 + 1.6 x 3) x 36 / 8 = 32.85; wind
+    # leading with G at gamma_G,inf 0.9: (0.9 x 2 - 1.6 x 3) x 36 / 8 = -13.50.
+    text = (ONE_SPAN
+            .replace('W = { kind = "wind" }', 'W = { kind = "wind", psi0 = 0.5, psi2 = 0.1 }')
+            .replace('service = "characteristic"',
+                     'service = ["characteristic", "quasi-permanent"]\n'
+                     'factors = { G_sup = 1.25, G_inf = 0.9, Q = 1.6 }'))
+    beam = parse_case(tomllib.loads(text), "national.toml")
+    assert beam.combinations.service_sets == ("characteristic", "quasi-permanent")
+    assert dict(beam.combinations.factors) == {"G_sup": 1.25, "G_inf": 0.9, "Q": 1.6}
+    assert (beam.case("W").psi0, beam.case("W").psi1, beam.case("W").psi2) == (0.5, None, 0.1)
+    a = analyse(beam)
+    m = a.envelope["moment"]
+    assert m is not None
+    assert m.max[1] == pytest.approx(32.85, rel=1e-12)
+    assert m.min[1] == pytest.approx(-13.50, rel=1e-12)
+    assert names(a)[m.max_combo[1]] == "1.25G + 1.6S + 0.8W"
+    rules = {c.rule for c in a.solved.service.combinations}
+    assert rules == {"characteristic", "quasi-permanent"}
+    # quasi-permanent (6.16b): G + psi_2 W with the case's own psi_2 = 0.1
+    qp = a.solved.case_set("quasi-permanent")
+    assert [c.name for c in qp.combinations] == ["G + 0.1W"]

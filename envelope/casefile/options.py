@@ -30,15 +30,23 @@ from envelope.model import (
 from envelope.reduction import OCCUPANCIES, standard_of
 
 CASE_NAME_PATTERN = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
-CASE_KEYS = ("kind", "pattern", "category", "reduction")
+CASE_KEYS = ("kind", "pattern", "category", "reduction", "psi0", "psi1", "psi2")
 #: ``reduction`` of a live case: live load reduction (see :mod:`envelope.reduction`).
 REDUCTION_KEYS = ("tributary_width", "kll", "floors", "occupancy", "standard")
 REDUCTION_STANDARDS = ("asce7-22", "en1991-1-1")
 #: ASCE 7-22 Table 4.7-1: the live load element factor is 1, 2, 3 or 4.
 KLL_RANGE = (1.0, 4.0)
 CATEGORIES: tuple[Category, ...] = get_args(Category)
+#: Bounds on a case's own psi_0, psi_1, psi_2 (EN 1990 combination factors).
+PSI_RANGE = (0.0, 1.0)
 
-COMBINATION_KEYS = ("strength", "service", "reduced_companion_live", "custom")
+COMBINATION_KEYS = ("strength", "service", "reduced_companion_live", "custom", "factors")
+#: ``[combinations].factors``: national partial factors of the EN strength sets.
+FACTOR_KEYS = ("G_sup", "G_inf", "Q", "xi")
+#: Bounds on each national factor (gamma_G,sup, gamma_G,inf, gamma_Q up to 3; xi to 1).
+FACTOR_RANGES = {"G_sup": (0.0, 3.0), "G_inf": (0.0, 3.0), "Q": (0.0, 3.0), "xi": (0.0, 1.0)}
+#: Strength rule sets that read ``factors``.
+EN_STRENGTH_SETS = ("en1990-6.10", "en1990-6.10ab", "en1990-6.10ab-uk")
 STRENGTH_SETS: tuple[StrengthRuleSet, ...] = get_args(StrengthRuleSet)
 SERVICE_SETS: tuple[ServiceRuleSet, ...] = get_args(ServiceRuleSet)
 CUSTOM_KEYS = ("name", "set", "factors")
@@ -85,10 +93,17 @@ def case(r: Reader, name: str, value: object) -> LoadCase:
         r.fail(join(key, "category"),
                "categories A to H (EN 1990 Table A1.1) apply to imposed loads: "
                f"kind 'live' or 'roof_live', not {kind!r}")
+    psis = {}
+    for name_psi in ("psi0", "psi1", "psi2"):
+        psis[name_psi] = r.optional(table, key, name_psi,
+                                    lambda v, k: factor_in(r, v, k, PSI_RANGE), None)
+        if psis[name_psi] is not None and kind == "dead":
+            r.fail(join(key, name_psi), "psi factors (EN 1990 Table A1.1) apply to variable "
+                                        "actions, not to a dead case")
     reduction = r.optional(table, key, "reduction",
                            lambda v, k: live_reduction(r, v, k, kind), None)
     return LoadCase(name=name, kind=kind, patterned=patterned, category=category,
-                    reduction=reduction)
+                    reduction=reduction, **psis)
 
 
 def live_reduction(r: Reader, value: object, key: str, kind: str) -> LiveReduction:
@@ -139,18 +154,55 @@ def combinations(r: Reader, data: dict[str, Any],
     strength = r.optional(table, key, "strength",
                           lambda v, k: r.choice(v, k, STRENGTH_SETS, "strength rule set"),
                           default.strength)
-    service = r.optional(table, key, "service",
-                         lambda v, k: r.choice(v, k, SERVICE_SETS, "service rule set"),
+    service = r.optional(table, key, "service", lambda v, k: service_sets(r, v, k),
                          default.service)
     reduced = r.optional(table, key, "reduced_companion_live", r.boolean,
                          default.reduced_companion_live)
     custom = r.optional(table, key, "custom", lambda v, k: custom_list(r, v, k, cases),
                         default.custom)
-    if strength == "none" and service == "none" and not custom:
+    factors = r.optional(table, key, "factors", lambda v, k: national_factors(r, v, k),
+                         default.factors)
+    if factors and strength not in EN_STRENGTH_SETS:
+        r.fail(join(key, "factors"), "national partial factors apply to the EN 1990 strength "
+                                     f"sets ({', '.join(EN_STRENGTH_SETS)}), not to "
+                                     f"{strength!r}")
+    spec = CombinationSpec(strength=strength, service=service,
+                           reduced_companion_live=reduced, custom=custom, factors=factors)
+    if strength == "none" and not spec.service_sets and not custom:
         r.fail(key, 'nothing to run: strength and service are both "none" and there '
                     "are no [[combinations.custom]]")
-    return CombinationSpec(strength=strength, service=service,
-                           reduced_companion_live=reduced, custom=custom)
+    return spec
+
+
+def service_sets(r: Reader, value: object, key: str
+                 ) -> ServiceRuleSet | tuple[ServiceRuleSet, ...]:
+    """``service``: one service rule set, or a list of them (each once)."""
+    if not isinstance(value, list):
+        return r.choice(value, key, SERVICE_SETS, "service rule set")
+    if not value:
+        r.fail(key, 'the list is empty: name a service set, or "none"')
+    out: list[ServiceRuleSet] = []
+    for i, entry in enumerate(value):
+        name = r.choice(entry, item(key, i), SERVICE_SETS, "service rule set")
+        if name in out:
+            r.fail(item(key, i), f"service set {name!r} is listed twice")
+        out.append(name)
+    return tuple(out)
+
+
+def national_factors(r: Reader, value: object, key: str) -> tuple[tuple[str, float], ...]:
+    """``factors``: national gamma_G,sup, gamma_G,inf, gamma_Q and xi (EN 1990 Table
+    A1.2(B)); gamma_G,inf may not exceed gamma_G,sup."""
+    table = r.table(value, key, what="an inline table such as { G_sup = 1.35, xi = 0.925 }")
+    r.known_keys(table, key, FACTOR_KEYS)
+    read = {name: factor_in(r, table[name], join(key, name), FACTOR_RANGES[name])
+            for name in FACTOR_KEYS if name in table}
+    if read.get("xi") == 0.0:
+        r.fail(join(key, "xi"), "must be above 0")
+    sup, inf = read.get("G_sup", 1.35), read.get("G_inf", 1.0)
+    if inf > sup:
+        r.fail(join(key, "G_inf"), f"gamma_G,inf {inf:g} exceeds gamma_G,sup {sup:g}")
+    return tuple(read.items())
 
 
 def custom_list(r: Reader, value: object, key: str,

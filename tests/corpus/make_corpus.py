@@ -298,7 +298,8 @@ NEW_ROWS: list[Row] = [
     ("case_kind_missing", cases('D = { pattern = false }\nL = { kind = "live" }\n'),
      f"{FILE}: cases.D.kind: 'kind' is required"),
     ("case_unknown_key", cases('D = { kind = "dead", factor = 1.2 }\nL = { kind = "live" }\n'),
-     f"{FILE}: cases.D.factor: unknown key 'factor' (valid: kind, pattern, category, reduction)"),
+     f"{FILE}: cases.D.factor: unknown key 'factor' (valid: kind, pattern, category, "
+     "reduction, psi0, psi1, psi2)"),
     ("case_category_not_a_string",
      cases('D = { kind = "dead" }\nL = { kind = "live", category = 1 }\n'),
      f"{FILE}: cases.L.category: expected a string, got an integer (1)"),
@@ -390,9 +391,27 @@ NEW_ROWS: list[Row] = [
      f"{FILE}: combinations.strenght: unknown key 'strenght'; did you mean 'strength'?"),
     ("strength_not_a_string", doc(combinations="[combinations]\nstrength = 1.2\n"),
      f"{FILE}: combinations.strength: expected a string, got a number (1.2)"),
-    ("unknown_service_set", doc(combinations='[combinations]\nservice = "frequent"\n'),
-     f"{FILE}: combinations.service: unknown service rule set 'frequent' (valid: "
-     "characteristic, none)"),
+    ("unknown_service_set", doc(combinations='[combinations]\nservice = "rare"\n'),
+     f"{FILE}: combinations.service: unknown service rule set 'rare' (valid: "
+     "characteristic, frequent, quasi-permanent, none)"),
+    ("service_set_listed_twice",
+     doc(combinations='[combinations]\nservice = ["frequent", "frequent"]\n'),
+     f"{FILE}: combinations.service[2]: service set 'frequent' is listed twice"),
+    ("national_factors_with_an_asce_set",
+     doc(combinations='[combinations]\nstrength = "asce7-lrfd"\nfactors = { G_sup = 1.35 }\n'),
+     f"{FILE}: combinations.factors: national partial factors apply to the EN 1990 "
+     "strength sets (en1990-6.10, en1990-6.10ab, en1990-6.10ab-uk), not to 'asce7-lrfd'"),
+    ("gamma_g_inf_above_gamma_g_sup",
+     doc(combinations='[combinations]\nstrength = "en1990-6.10"\n'
+                      'factors = { G_sup = 1.1, G_inf = 1.2 }\n'),
+     f"{FILE}: combinations.factors.G_inf: gamma_G,inf 1.2 exceeds gamma_G,sup 1.1"),
+    ("psi0_above_one",
+     doc(cases='[cases]\nD = { kind = "dead" }\nL = { kind = "live", psi0 = 1.2 }\n'),
+     f"{FILE}: cases.L.psi0: must be from 0 to 1, got 1.2"),
+    ("psi2_on_a_dead_case",
+     doc(cases='[cases]\nD = { kind = "dead", psi2 = 0.3 }\nL = { kind = "live" }\n'),
+     f"{FILE}: cases.D.psi2: psi factors (EN 1990 Table A1.1) apply to variable actions, "
+     "not to a dead case"),
     ("reduced_companion_live_a_string",
      doc(combinations=COMBINATIONS + 'reduced_companion_live = "no"\n'),
      f"{FILE}: combinations.custom[1].reduced_companion_live: unknown key "
