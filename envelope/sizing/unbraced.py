@@ -73,12 +73,12 @@ def segment_demands(solved: Solved, stations: Points, segs: Segments) -> Segment
         pts = _points(solved, stations, float(segs.x0[s]), float(segs.x1[s]))
         r = evaluate_some(solved.mesh, solved.units, solved.solution, pts,
                           ("moment", "shear"))
-        if cs.superposed:
-            g = governing_coefficients(sign * r["moment"], cs)
-            coef = np.unique(g, axis=0).T
-        else:
-            assert cs.coef is not None
-            coef = cs.coef
+        # the cases governing at some point of the segment (each combination with the
+        # arrangement and the variable actions it takes there); with explicit
+        # arrangements also every one of them with all its cases acting
+        coef = np.unique(governing_coefficients(sign * r["moment"], cs), axis=0).T
+        if not cs.superposed:
+            coef = np.hstack([cs.explicit_cases()[0], coef])
         m = r["moment"] @ coef          # points x cases
         v = r["shear"] @ coef
         quarter = m[list(QUARTERS)].T   # cases x 3
