@@ -59,8 +59,9 @@ class CaseSet:
     fixed: np.ndarray
     patterned: np.ndarray  # per-unit on/off factors (superposition), else zeros
     dead_var: np.ndarray  # dead factors that depend on the pattern (superposition)
-    groups: np.ndarray  # whole-case on/off factors
-    group_col: np.ndarray  # (groups,) column of each group
+    groups: np.ndarray  # whole-case on/off factors, each distinct vector once
+    group_src: np.ndarray  # (groups,) column of ``groups`` holding each group's factors
+    group_col: np.ndarray  # (groups,) column of each group, ascending
     group_case: tuple[str, ...]  # case name of each group
     group_mask: np.ndarray  # (groups, cells) bool: where the group's case acts when on
     switchable: tuple[tuple[str, ...], ...]  # per combination: cases named in _loaded
@@ -108,7 +109,8 @@ class CaseSet:
         explicit cases, every case of the combination acting: the arrangements run for
         ``none`` and ``code``; for the superposition methods, each combination with
         every cell loaded."""
-        coef = self.fixed + self.patterned + self.dead_var + self.groups @ self.membership()
+        coef = (self.fixed + self.patterned + self.dead_var
+                + self.groups[:, self.group_src] @ self.membership())
         if self.superposed:
             return coef, self.col_combo, ("all",) * self.n_columns
         return coef, self.col_combo, tuple(self._column_text(c) for c in range(self.n_columns))
@@ -171,17 +173,24 @@ def build_case_set(beam: Beam, combos: tuple[Combination, ...], units: UnitCases
                                          "cells": []}
     col_combo: list[int] = []
     col_masks: list[Masks] = []
-    groups: list[np.ndarray] = []
+    distinct: list[np.ndarray] = []  # each distinct group vector once
+    known: dict[bytes, int] = {}
+    group_src: list[int] = []
     group_col: list[int] = []
     group_case: list[str] = []
     group_mask: list[np.ndarray] = []
 
+    of_case = {n: np.array([m == n for m in names], dtype=bool) for n in set(names)}
+
     def add_groups(k: int, col: int, select: np.ndarray, mask: np.ndarray) -> None:
         """One group per case among the units ``select``: that case's factors there."""
         for name in switchable[k]:
-            part = np.where(select & (np.array(names) == name), factor[:, k], 0.0)
+            part = np.where(select & of_case[name], factor[:, k], 0.0)
             if np.any(part != 0.0):
-                groups.append(part)
+                src = known.setdefault(part.tobytes(), len(distinct))
+                if src == len(distinct):
+                    distinct.append(part)
+                group_src.append(src)
                 group_col.append(col)
                 group_case.append(name)
                 group_mask.append(mask)
@@ -210,8 +219,9 @@ def build_case_set(beam: Beam, combos: tuple[Combination, ...], units: UnitCases
                 spans = (*spans, frozenset())  # no patterned case acting at all
             for s in spans:
                 col = len(col_combo)
-                on = np.isin(unit_span, list(s))
-                cell_on = np.isin(cells.span, list(s))
+                span_on = np.zeros(beam.n_spans, dtype=bool)
+                span_on[list(s)] = True
+                on, cell_on = span_on[unit_span], span_on[cells.span]
                 f = np.where(is_patterned, np.where(on, factor[:, k], 0.0), factor[:, k])
                 f = np.where(is_dead & ~on, factor[:, k] * fav, f)
                 f = np.where(whole[:, k], 0.0, f)
@@ -234,7 +244,8 @@ def build_case_set(beam: Beam, combos: tuple[Combination, ...], units: UnitCases
         col_cells=np.array(cols["cells"], dtype=bool).reshape(len(col_combo), n_g),
         col_masks=tuple(col_masks),
         fixed=stack(cols["fixed"], n_u), patterned=stack(cols["patterned"], n_u),
-        dead_var=stack(cols["dead"], n_u), groups=stack(groups, n_u),
+        dead_var=stack(cols["dead"], n_u), groups=stack(distinct, n_u),
+        group_src=np.array(group_src, dtype=np.int64),
         group_col=np.array(group_col, dtype=np.int64), group_case=tuple(group_case),
         group_mask=np.array(group_mask, dtype=bool).reshape(len(group_col), n_g),
         switchable=switchable, all_patterned=all_patterned, favourable_dead=fav)
@@ -310,10 +321,11 @@ def column_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]
     else:
         vmax, vmin = base, base.copy()
     if cs.group_col.size:
-        gv = R @ cs.groups
-        m = cs.membership()
-        vmax = vmax + np.maximum(gv, 0.0) @ m
-        vmin = vmin + np.minimum(gv, 0.0) @ m
+        gv = (R @ cs.groups)[:, cs.group_src]
+        # groups are stored column by column: sum each column's run of groups
+        cols, starts = np.unique(cs.group_col, return_index=True)
+        vmax[:, cols] += np.add.reduceat(np.maximum(gv, 0.0), starts, axis=1)
+        vmin[:, cols] += np.add.reduceat(np.minimum(gv, 0.0), starts, axis=1)
     return vmax, vmin
 
 
@@ -340,7 +352,8 @@ def _choices(R: np.ndarray, cs: CaseSet, col: np.ndarray, sign: float
     units = (sign * R * P) > 0.0
     groups = np.zeros((R.shape[0], cs.group_col.size), dtype=bool)
     if cs.group_col.size:
-        groups = ((sign * (R @ cs.groups)) > 0.0) & (cs.group_col[None, :] == col[:, None])
+        gv = (R @ cs.groups)[:, cs.group_src]
+        groups = ((sign * gv) > 0.0) & (cs.group_col[None, :] == col[:, None])
     fav = np.flatnonzero(cs.dead_var.any(axis=0)) if cs.superposed else np.zeros(0, int)
     if not fav.size:
         return units, None, groups
@@ -362,7 +375,8 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
     vmax, _ = column_extremes(R, cs)
     col = np.argmax(vmax, axis=1)
     units, cells, groups = _choices(R, cs, col, 1.0)
-    coef = cs.fixed.T[col] + cs.patterned.T[col] * units + groups.astype(float) @ cs.groups.T
+    coef = (cs.fixed.T[col] + cs.patterned.T[col] * units
+            + groups.astype(float) @ cs.groups[:, cs.group_src].T)
     dead = cs.dead_var.T[col]
     if cells is not None:
         on = cells[:, cs.unit_cell]
