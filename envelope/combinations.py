@@ -38,6 +38,7 @@ a named source, [M] from memory, [D] derived, [P] common practice.
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
 from typing import get_args
@@ -489,6 +490,36 @@ def _check(spec: CombinationSpec, cases: tuple[LoadCase, ...]) -> set[str]:
     return custom_names
 
 
+#: Factor on a support settlement (kind ``settlement``) in each generated row, by rule
+#: set; it acts only where it makes the effect worse.  EN 1990:2002 Table A1.2(B)
+#: NOTE 3: gamma_G,set = 1.20 for a linear elastic analysis (0 where favourable, as a
+#: settlement is left out where it helps); ASCE 7-22 2.3.4 (self-straining effects):
+#: a load factor of at least 1.0 (and 1.0 with the ASD set, 2.4.4, from memory); the
+#: service sets at 1.0.
+SETTLEMENT_FACTOR: dict[str, float] = {"asce7-lrfd": 1.0, "asce7-asd": 1.0,
+                                       "en1990-6.10": 1.2, "en1990-6.10ab": 1.2,
+                                       "en1990-6.10ab-uk": 1.2}
+SETTLEMENT_SERVICE_FACTOR = 1.0
+SETTLEMENT_WHY = {1.2: "gamma_G,set 1.20 (EN 1990 Table A1.2(B) note 3)",
+                  1.0: "1.0 (ASCE 7-22 2.3.4 / 2.4.4; service 1.0)"}
+
+
+def _with_settlements(gen: _Generated, cases: tuple[LoadCase, ...], rule: str,
+                      set_kind: str) -> _Generated:
+    """A generated row with every settlement case added at its factor, each acting
+    only where unfavourable."""
+    settling = [c.name for c in cases if c.kind == "settlement"]
+    if not settling:
+        return gen
+    f = (SETTLEMENT_SERVICE_FACTOR if set_kind == "service"
+         else SETTLEMENT_FACTOR.get(rule, 1.0))
+    factors = dict(gen.factors)
+    factors.update(dict.fromkeys(settling, f))
+    why = (*gen.why, *((n, SETTLEMENT_WHY.get(f, f"{f:g}")) for n in settling))
+    return dataclasses.replace(gen, factors=factors, optional=frozenset(gen.optional)
+                               | frozenset(settling), why=why)
+
+
 def build(cases: tuple[LoadCase, ...], spec: CombinationSpec) -> tuple[Combination, ...]:
     """Every combination of ``spec`` for ``cases``: strength first, then service.
 
@@ -515,7 +546,8 @@ def build(cases: tuple[LoadCase, ...], spec: CombinationSpec) -> tuple[Combinati
     for set_kind, rules in plan:
         for rule in rules:
             seen: set[tuple[Factors, frozenset[str]]] = set()
-            for gen in _generate(cases, rule, spec):
+            for raw in _generate(cases, rule, spec):
+                gen = _with_settlements(raw, cases, rule, set_kind)
                 factors = _ordered(cases, gen.factors)
                 optional = frozenset(n for n, _ in factors if n in gen.optional)
                 if not factors or (factors, optional) in seen:

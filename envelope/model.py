@@ -25,7 +25,7 @@ from envelope.units import UnitSystem
 # in this order) from these types.
 SupportKind = Literal["pinned", "fixed", "free", "spring"]
 LoadType = Literal["uniform", "linear", "point", "moment", "self_weight", "settlement"]
-CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind"]
+CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind", "settlement"]
 #: EN 1990 Table A1.1 categories of imposed load (psi factors).
 Category = Literal["A", "B", "C", "D", "E", "F", "G", "H"]
 CombinationSet = Literal["strength", "service"]

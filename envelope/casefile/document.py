@@ -72,6 +72,7 @@ def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
     supports = geometry.supports(r, data, spans)
     cases = options.cases(r, data)
     beam_loads = loads.loads(r, data, spans, cases)
+    loads.check_settled_supports(r, beam_loads, supports)
     combinations = options.combinations(r, data, cases)
     options.check_reductions(r, cases, combinations)
     patterning = options.patterning(r, data)

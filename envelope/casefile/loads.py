@@ -10,7 +10,7 @@ import difflib
 from typing import Any, get_args
 
 from envelope.casefile.reader import Reader, describe, item, join, suggest
-from envelope.model import Load, LoadCase, LoadType, Span
+from envelope.model import Load, LoadCase, LoadType, Span, Support
 
 LOAD_TYPES: tuple[LoadType, ...] = get_args(LoadType)
 LOAD_KEYS: dict[str, tuple[str, ...]] = {
@@ -19,6 +19,7 @@ LOAD_KEYS: dict[str, tuple[str, ...]] = {
     "point": ("case", "type", "spans", "P", "at"),
     "moment": ("case", "type", "spans", "M", "at"),
     "self_weight": ("case", "type", "spans", "start", "end"),
+    "settlement": ("case", "type", "support", "delta"),
 }
 ALL_LOAD_KEYS = tuple(sorted({k for keys in LOAD_KEYS.values() for k in keys}))
 #: Each load magnitude and the quantity its unit strings are read as.
@@ -38,7 +39,29 @@ def loads(r: Reader, data: dict[str, Any], spans: tuple[Span, ...],
     out: list[Load] = []
     for i, entry in enumerate(items):
         out.extend(load(r, entry, item("loads", i), spans, names))
+    check_case_contents(r, out, cases)
     return tuple(out)
+
+
+def check_settled_supports(r: Reader, items: tuple[Load, ...],
+                           supports: tuple[Support, ...]) -> None:
+    """A settlement moves a support that holds the beam up: a rigid one (its position is
+    prescribed) or a vertical spring (its base moves); a free joint has nothing to move."""
+    for ld in items:
+        if ld.type == "settlement" and not supports[ld.support].restrains_vertical:
+            r.fail(join(ld.key, "support"), f"support {ld.support + 1} does not restrain "
+                   "vertical movement (free, or a spring with no k_vertical): nothing settles")
+
+
+def check_case_contents(r: Reader, items: list[Load], cases: tuple[LoadCase, ...]) -> None:
+    """Settlements stand in cases of kind ``settlement``, and only there."""
+    kinds = {c.name: c.kind for c in cases}
+    for ld in items:
+        if (ld.type == "settlement") != (kinds[ld.case] == "settlement"):
+            what = ("a settlement needs a case of kind 'settlement'"
+                    if ld.type == "settlement" else
+                    f"a case of kind 'settlement' holds settlements only, not {ld.type}")
+            r.fail(join(ld.key, "case"), f"{what} (case {ld.case!r})")
 
 
 def load_spans(r: Reader, value: object, key: str, n_spans: int) -> list[int]:
@@ -96,6 +119,8 @@ def load(r: Reader, table: dict[str, Any], key: str, spans: tuple[Span, ...],
     check_keys(r, table, key, load_type)
     allowed = LOAD_KEYS[load_type]
     case = load_case_name(r, table, key, case_names)
+    if load_type == "settlement":
+        return [settlement(r, table, key, spans, case)]
     indices = load_spans(r, r.required(table, key, "spans"), join(key, "spans"), len(spans))
     values: dict[str, float] = {}
     for name, quantity in MAGNITUDES:
@@ -123,6 +148,20 @@ def load(r: Reader, table: dict[str, Any], key: str, spans: tuple[Span, ...],
         out.append(Load(case=case, type=load_type, span=index, key=key, start=start, end=end,
                         w_start=w_start, w_end=w_end))
     return out
+
+
+def settlement(r: Reader, table: dict[str, Any], key: str, spans: tuple[Span, ...],
+               case: str) -> Load:
+    """A support settlement: the joint (1-based in the file) moves down by ``delta``."""
+    n_joints = len(spans) + 1
+    number = r.integer(r.required(table, key, "support"), join(key, "support"), 1, n_joints)
+    delta = r.number(r.required(table, key, "delta"), join(key, "delta"), "length")
+    if delta == 0.0:
+        r.fail(join(key, "delta"), "a settlement of zero does nothing: give its size "
+                                   "(downward positive)")
+    joint = number - 1
+    return Load(case=case, type="settlement", span=min(joint, len(spans) - 1), key=key,
+                support=joint, delta=delta)
 
 
 def extent(r: Reader, table: dict[str, Any], key: str, span: Span,

@@ -87,6 +87,9 @@ def case(r: Reader, name: str, value: object) -> LoadCase:
     r.known_keys(table, key, CASE_KEYS)
     kind = r.choice(r.required(table, key, "kind"), join(key, "kind"), CASE_KINDS, "case kind")
     patterned = r.optional(table, key, "pattern", r.boolean, kind in PATTERNED_BY_DEFAULT)
+    if patterned and kind == "settlement":
+        r.fail(join(key, "pattern"), "a settlement moves a support, not a span: it is not "
+                                     "patterned (it acts only where it makes things worse)")
     category = r.optional(table, key, "category",
                           lambda v, k: r.choice(v, k, CATEGORIES, "category"), None)
     if category is not None and kind not in LIVE_KINDS:
