@@ -9,13 +9,17 @@ Results are for checking by a licensed engineer and defer to local codes.
 
 from __future__ import annotations
 
+import contextlib
 import os
+import shutil
+import tempfile
 import warnings
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from envelope.casefile import load_case
-from envelope.errors import EnvelopeError, EnvelopeWarning
+from envelope.errors import EnvelopeError, EnvelopeWarning, OutputError
+from envelope.files import real_folder
 from envelope.results import Analysis
 from envelope.results import analyse as _analyse
 
@@ -24,6 +28,7 @@ if TYPE_CHECKING:
     from matplotlib.axes import Axes
     from matplotlib.figure import Figure
 
+    from envelope.limits import WorkLimits
     from envelope.model import Beam
 
 __all__ = ["Analysis", "analyse", "load_case", "plot", "redraw", "summary_text", "tables",
@@ -35,13 +40,17 @@ _RESULT_SUFFIXES = (".parquet",)
 _FIGURE = "envelope.png"
 
 
-def analyse(beam: Beam) -> Analysis:
+def analyse(beam: Beam, limits: WorkLimits | None = None) -> Analysis:
     """Analyse a beam: every unit case once, the envelopes, the design actions.
 
     Parameters
     ----------
     beam : Beam
         A checked beam, from :func:`load_case`.
+    limits : envelope.limits.WorkLimits, optional
+        The most memory and CPU time the analysis may be estimated to take (default:
+        half the machine's memory, ``config.WORK_MAX_SECONDS``); a beam over them is
+        refused with :class:`~envelope.errors.CaseError` before any work.
 
     Returns
     -------
@@ -54,7 +63,7 @@ def analyse(beam: Beam) -> Analysis:
     EnvelopeWarning
         For each warning of the solver (a nearly singular beam, for one).
     """
-    result = _analyse(beam)
+    result = _analyse(beam, limits)
     for message in result.solved.solution.warnings:
         warnings.warn(f"{beam.source}: {message}", EnvelopeWarning, stacklevel=2)
     return result
@@ -166,19 +175,44 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
     if all_cases is None:
         all_cases = result.beam.output.all_cases
     built = _tables(result, all_cases)
-    folder = Path(out) / result.beam.id
+    root = Path(out)
+    folder = root / result.beam.id
     for stem, table in built.items():  # refuse before anything is written
         store.check_finite(table, str(folder / f"{stem}.parquet"))
+    made = [p for p in (root, folder) if not os.path.lexists(p)]
+    root.mkdir(parents=True, exist_ok=True)
+    real_folder(root, folder)  # no link at OUT/<id>: nothing written outside OUT
+    # Every file is written into a staging folder first and moved into place only when
+    # all are written, so a failure (a full disk, a figure that cannot be drawn, an
+    # interrupt) leaves the folder as it was; a staging folder a kill leaves behind is
+    # removed by the next write of the beam or batch run over OUT (its name ends in .tmp).
+    for old in folder.glob(".staging-*.tmp"):  # left by a killed write (one writer a folder)
+        if old.is_dir() and not old.is_symlink():
+            shutil.rmtree(old, ignore_errors=True)
+    stage = Path(tempfile.mkdtemp(prefix=".staging-", suffix=".tmp", dir=folder))
     written = {f"{stem}.parquet" for stem in built}
-    if all_cases:
-        store.write_stations(folder / "stations.parquet", result, durable)
-        written.add("stations.parquet")
-    store.write_tables(folder, built, durable)
-    if plots:
-        from envelope import plots as figures
+    try:
+        if all_cases:
+            store.write_stations(stage / "stations.parquet", result, durable)
+            written.add("stations.parquet")
+        store.write_tables(stage, built, durable)
+        if plots:
+            from envelope import plots as figures
 
-        figures.draw_results(store.result_columns(built), folder / _FIGURE, durable)
-        written.add(_FIGURE)
+            figures.draw_results(store.result_columns(built), stage / _FIGURE, durable)
+            written.add(_FIGURE)
+        for item in sorted(stage.iterdir()):
+            os.replace(item, folder / item.name)
+        stage.rmdir()
+    except BaseException as exc:
+        shutil.rmtree(stage, ignore_errors=True)
+        for path in reversed(made):  # folders this call created, when left empty
+            with contextlib.suppress(OSError):
+                path.rmdir()
+        if isinstance(exc, OSError):
+            raise OutputError(f"{folder}: cannot write the results ({exc.strerror or exc}); "
+                              "nothing was written", exit_code=1) from None
+        raise
     _remove_stale(folder, written)
     return folder
 

@@ -82,3 +82,29 @@ ROOT_BRACKET = 1e-5
 #: are summed by the numba kernel instead of numpy pair arrays (24 bytes a pair, times
 #: several temporaries); below it numpy is quicker than importing numba.
 KERNEL_MIN_PAIRS = 2_000_000
+
+#: Largest case file read, in bytes: a beam of a thousand spans with a dozen load items
+#: each is under 1 MB; anything larger is refused before it is parsed.
+CASE_FILE_MAX_BYTES = 4 * 1024 * 1024
+
+#: Deepest nesting of arrays and tables in a case file (the document is level 1, a
+#: ``[[spans.sections]]`` item level 5): deeper is refused while parsing.
+CASE_NESTING_MAX = 16
+
+#: Longest text value in a case file, in characters (a title, a name, a path).
+TEXT_MAX_CHARS = 4096
+
+#: Largest sections table (CSV) read, in bytes: a full catalogue of rolled shapes with
+#: every column is well under 1 MB.
+SECTIONS_MAX_BYTES = 4 * 1024 * 1024
+
+#: Longest text shown from an input file in a message (a field of a sections table, a
+#: key): the rest is cut and marked, so that no message echoes a file's content.
+ECHO_CHARS = 40
+
+#: Share of the machine's physical memory one analysis may be estimated to take
+#: (envelope.limits); a batch runs one analysis per worker process.
+WORK_MEMORY_SHARE = 0.5
+
+#: Most CPU seconds one analysis may be estimated to take (envelope.limits).
+WORK_MAX_SECONDS = 600.0

@@ -39,3 +39,13 @@ class EnvelopeWarning(UserWarning):
     singular beam, a check that could not be made); raised through :mod:`warnings`, so
     a notebook shows it once and ``warnings.simplefilter("error", EnvelopeWarning)``
     turns it into an error."""
+
+
+class OutputError(EnvelopeError):
+    """The results cannot be written safely or at all: a symbolic link where the output
+    folder holds its own files (exit 2), or a write that failed, such as a full disk
+    (exit 1).  Nothing is left half-written."""
+
+    def __init__(self, message: str, exit_code: int = 2) -> None:
+        self.exit_code = exit_code
+        super().__init__(message)

@@ -6,7 +6,10 @@ file under the final name, never a half-written one.
 
 from __future__ import annotations
 
+import contextlib
+import errno
 import os
+import stat
 import tempfile
 from collections.abc import Callable
 from pathlib import Path
@@ -42,3 +45,100 @@ def write_atomic(path: Path, write: Callable[[BinaryIO], None], durable: bool = 
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
         raise
+
+
+def real_folder(root: Path, folder: Path, create: bool = True) -> Path:
+    """``folder`` (inside ``root``) made sure to hold no symbolic link below ``root``, so
+    that nothing written or deleted there lands outside it; created when missing and
+    ``create``.  ``root`` itself may be a link (the user named it)."""
+    from envelope.errors import OutputError
+
+    parts = folder.relative_to(root).parts
+    if create:
+        root.mkdir(parents=True, exist_ok=True)
+    current = root
+    for part in parts:
+        current = current / part
+        try:
+            st = os.lstat(current)
+        except FileNotFoundError:
+            if not create:
+                return folder
+            with contextlib.suppress(FileExistsError):
+                os.mkdir(current)
+            st = os.lstat(current)
+        if stat.S_ISLNK(st.st_mode):
+            raise OutputError(f"{current}: is a symbolic link; results are never written "
+                              "or deleted through a link inside the output folder (remove "
+                              "the link or choose another output folder)")
+        if not stat.S_ISDIR(st.st_mode):
+            raise OutputError(f"{current}: is not a folder; cannot write results into it")
+    return folder
+
+
+def is_link(path: Path) -> bool:
+    """True when ``path`` itself is a symbolic link (never follows it)."""
+    try:
+        return stat.S_ISLNK(os.lstat(path).st_mode)
+    except OSError:
+        return False
+
+
+class UnreadableFile(Exception):
+    """An input file that is not read: not a regular file, too large, or an OS error.
+    ``str()`` is the reason, fit for a message after the file name."""
+
+
+#: Names of the file types that are never read as input.
+_KINDS = ((stat.S_ISFIFO, "a FIFO (named pipe)"), (stat.S_ISCHR, "a character device"),
+          (stat.S_ISBLK, "a block device"), (stat.S_ISSOCK, "a socket"),
+          (stat.S_ISDIR, "a folder"))
+
+
+def file_kind(mode: int) -> str:
+    """What a non-regular file is, for messages."""
+    for test, name in _KINDS:
+        if test(mode):
+            return name
+    return "not a regular file"
+
+
+def read_regular(path: str | os.PathLike[str], limit: int) -> bytes:
+    """The bytes of the regular file at ``path``, at most ``limit`` of them.
+
+    Opened without blocking (a FIFO or a device never stalls the read), checked to be a
+    regular file before anything is read, and read no further than ``limit + 1`` bytes,
+    so neither ``/dev/zero`` nor a huge file costs memory.  Raises
+    :class:`UnreadableFile` with the reason."""
+    try:
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0)
+                     | getattr(os, "O_NOCTTY", 0))
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            raise UnreadableFile("a symbolic link loop") from None
+        if exc.errno == errno.ENOENT and os.path.islink(path):
+            raise UnreadableFile("a dangling symbolic link (its target does not exist)"
+                                 ) from None
+        raise UnreadableFile(f"cannot read the file ({exc.strerror or exc})") from None
+    try:
+        st = os.fstat(fd)
+        if not stat.S_ISREG(st.st_mode):
+            raise UnreadableFile(f"not a regular file: {file_kind(st.st_mode)}")
+        if st.st_size > limit:
+            raise UnreadableFile(f"the file is {st.st_size} bytes, more than the limit of "
+                                 f"{limit} bytes")
+        chunks = []
+        size = 0
+        while size <= limit:
+            chunk = os.read(fd, min(1 << 20, limit + 1 - size))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            size += len(chunk)
+        if size > limit:
+            raise UnreadableFile(f"the file is more than the limit of {limit} bytes")
+        return b"".join(chunks)
+    except OSError as exc:
+        raise UnreadableFile(f"cannot read the file ({exc.strerror or exc})") from None
+    finally:
+        os.close(fd)

@@ -11,6 +11,8 @@ from envelope import config
 from envelope.actions import design_actions
 from envelope.analysis import Solved, envelopes_at, solve_beam
 from envelope.enveloper import CaseSet, Extremes, reduce
+from envelope.limits import WorkLimits
+from envelope.limits import check as check_work
 from envelope.model import Beam
 from envelope.recovery import Points, evaluate, stations
 
@@ -42,9 +44,12 @@ class Analysis:
                 f"combinations {sets or 'none'}{', sized' if beam.design else ''}>")
 
 
-def analyse(beam: Beam) -> Analysis:
+def analyse(beam: Beam, limits: WorkLimits | None = None) -> Analysis:
     """Solve every unit case once, envelope at the stations and supports, find the
-    design actions."""
+    design actions.  A beam whose estimated memory or time exceeds ``limits`` (default:
+    half the machine's memory, ``config.WORK_MAX_SECONDS``) is refused before any work
+    (:mod:`envelope.limits`)."""
+    check_work(beam, limits)
     solved = solve_beam(beam)
     pts = stations(beam, solved.mesh, solved.units)
     env = envelopes_at(solved, pts, {"moment": "strength", "shear": "strength",

@@ -434,7 +434,7 @@ def test_discovery_of_files_folders_and_globs(tmp_path: Path) -> None:
 def _work_that_crashes(tasks: Sequence[Task], out: str, plots: bool) -> list[Outcome]:
     """Stands in for run_chunk: the task named "crash" kills its worker process."""
     results = []
-    for target, shown, beam_id in tasks:
+    for target, shown, beam_id, *_ in tasks:
         if target == "crash":
             os._exit(13)
         time.sleep(0.01)
@@ -443,8 +443,8 @@ def _work_that_crashes(tasks: Sequence[Task], out: str, plots: bool) -> list[Out
 
 
 def test_a_beam_that_kills_its_worker_is_a_failure_and_the_rest_go_on() -> None:
-    tasks: list[Task] = [(f"t{i}", f"case-{i}.toml", f"b{i}") for i in range(14)]
-    tasks[5] = ("crash", "case-5.toml", "b5")
+    tasks: list[Task] = [(f"t{i}", f"case-{i}.toml", f"b{i}", None, None) for i in range(14)]
+    tasks[5] = ("crash", "case-5.toml", "b5", None, None)
     seen: list[Outcome] = []
     run_local(tasks, "unused", False, 2, seen.extend, chunk=3, work=_work_that_crashes)
     assert sorted(o.path for o in seen) == sorted(t[1] for t in tasks)  # each once

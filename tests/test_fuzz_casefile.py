@@ -15,6 +15,11 @@ key; random unit strings), truncated files and random bytes.
 Settings are derandomized with no example database, so a run in CI is the same as a
 run here, and bounded by ``max_examples`` (no deadlines: no timed asserts).
 
+Also fuzzed: nesting of any depth, beams of any size (read and estimated, never
+solved), files at the size limit, titles of any characters, odd file types (FIFOs,
+sockets, folders, devices, link loops, dangling links), chains of symbolic links, and
+unit strings of any shape.
+
 Known bugs are kept out of the main tests only where a dedicated test, marked
 ``xfail(strict=True)``, fuzzes that class of input on its own: key names with line
 breaks (:data:`LINE_BREAKS`), integer arithmetic in unit strings (:data:`ARITHMETIC`)
@@ -28,6 +33,7 @@ from __future__ import annotations
 import copy
 import datetime as dt
 import math
+import os
 import re
 import sys
 import tempfile
@@ -44,10 +50,13 @@ from click.testing import CliRunner
 from hypothesis import HealthCheck, Phase, given, settings
 from hypothesis import strategies as st
 
+from envelope import config
 from envelope.casefile import load_case
 from envelope.cli import main
 from envelope.errors import CaseError
+from envelope.limits import check as check_work
 from envelope.model import Beam
+from envelope.units import SI, UnitError, parse_quantity
 
 # ---------------------------------------------------------------------------
 # TOML writing (no TOML writer is a dependency; tomllib only reads)
@@ -843,3 +852,152 @@ def test_run_with_extreme_magnitudes_answers_exit_0_or_2(data: st.DataObject) ->
     for path in data.draw(st.lists(st.sampled_from(numeric), min_size=1, max_size=2)):
         get(doc, path[:-1])[path[-1]] = data.draw(st.sampled_from(EXTREME_NUMBERS))
     check_cli(doc)
+
+
+# ---------------------------------------------------------------------------
+# Nesting, sizes, odd file types and symbolic links
+# ---------------------------------------------------------------------------
+
+def nested(openers: list[str]) -> str:
+    """A TOML value nested as ``openers`` says: "[" an array, "{" an inline table."""
+    closers = {"[": "]", "{": "}"}
+    head = "".join("[" if o == "[" else "{a = " for o in openers)
+    return head + "1" + "".join(closers[o] for o in reversed(openers))
+
+
+@fuzz(120)
+@given(st.sampled_from([SI_CASE, US_CASE]),
+       st.lists(st.sampled_from(["[", "{"]), min_size=1, max_size=3000),
+       st.sampled_from(["tags", "nested"]))
+def test_nesting_of_any_depth_gives_a_beam_or_a_one_line_case_error(
+        text: str, openers: list[str], key: str) -> None:
+    """Arrays and inline tables nested up to 3000 deep, mixed, at the top of a valid file:
+    refused at the nesting limit (or at the key), never a RecursionError."""
+    outcome = check_bytes(f"{key} = {nested(openers)}\n{text}".encode())
+    if len(openers) + 1 > config.CASE_NESTING_MAX:
+        assert isinstance(outcome, CaseError) and "nested more than" in str(outcome)
+
+
+@fuzz(60)
+@given(st.integers(1, 20_000), st.integers(1, 1000), st.integers(2, 100_001))
+def test_beams_of_any_size_are_read_and_estimated_or_refused(n: int, segments: int,
+                                                             stations: int) -> None:
+    """Many spans, many segments, many stations: the reader and the work estimate answer
+    with a Beam within the limits or a one-line CaseError, never by doing the work."""
+    method = "segments" if segments > 1 else "code"
+    text = (SI_CASE.split("[[spans]]")[0].replace('id = "fuzz-si"', 'id = "big"')
+            + "[[spans]]\nlength = 4.0\n" * n
+            + '[[supports]]\ntype = "pinned"\n' * (n + 1)
+            + '[cases]\nD = { kind = "dead" }\nL = { kind = "live" }\n'
+            '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 3.0\n'
+            '[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = 2.0\n'
+            '[combinations]\nstrength = "asce7-lrfd"\n'
+            f'[patterning]\nmethod = "{method}"\nsegments = {segments}\n'
+            f"[output]\nstations_per_span = {stations}\n")
+    outcome = check_bytes(text.encode())
+    if isinstance(outcome, Beam):
+        try:
+            check_work(outcome)
+        except CaseError as exc:
+            assert str(exc).startswith(f"{outcome.source}: ") and "\n" not in str(exc)
+            assert "raise the limit with --max-" in str(exc)
+
+
+@pytest.mark.parametrize("extra", [-1, 0, 1, 1000])
+def test_files_at_the_size_limit_are_read_and_above_it_refused(extra: int) -> None:
+    base = SI_BYTES + b"#"
+    pad = config.CASE_FILE_MAX_BYTES - len(base) - 1 + extra
+    outcome = check_bytes(base + b"#" * pad + b"\n")
+    if extra <= 0:
+        assert isinstance(outcome, Beam)
+    else:
+        assert isinstance(outcome, CaseError) and "more than the limit" in str(outcome)
+
+
+@fuzz(80)
+@given(st.text(st.characters(exclude_categories=("Cs",)), max_size=6000))
+def test_any_title_gives_a_beam_or_a_one_line_case_error(title: str) -> None:
+    """Titles of any characters (controls included) and length up to past the limit."""
+    outcome = check_bytes(f"title = {toml_string(title)}\n{SI_CASE.replace('title =', '#')}"
+                          .encode())
+    bad = any(ord(c) < 0x20 or 0x7F <= ord(c) <= 0x9F or c in "\u2028\u2029" for c in title)
+    if bad or len(title) > config.TEXT_MAX_CHARS:
+        assert isinstance(outcome, CaseError)
+
+
+ODD_KINDS = ["fifo", "folder", "socket", "loop", "dangling", "devnull", "devzero"]
+
+
+def make_odd(path: Path, kind: str) -> None:
+    if kind == "fifo":
+        os.mkfifo(path)
+    elif kind == "folder":
+        path.mkdir()
+    elif kind == "socket":
+        import socket
+
+        sock = socket.socket(socket.AF_UNIX)
+        sock.bind(str(path))
+        sock.close()
+    elif kind == "loop":
+        os.symlink(path.name + ".b", path)
+        os.symlink(path.name, str(path) + ".b")
+    elif kind == "dangling":
+        os.symlink("nowhere.toml", path)
+    elif kind == "devnull":
+        os.symlink(os.devnull, path)
+    else:
+        os.symlink("/dev/zero", path)
+
+
+@pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="needs POSIX file types")
+@pytest.mark.parametrize("kind", ODD_KINDS)
+def test_odd_file_types_give_a_one_line_case_error_at_once(kind: str) -> None:
+    """A FIFO is opened without blocking, /dev/zero is never read to the end: each odd
+    file is refused with one line naming it (tmp paths are short enough for a socket)."""
+    with tempfile.TemporaryDirectory(dir="/tmp") as tmp:
+        path = Path(tmp) / "odd.toml"
+        make_odd(path, kind)
+        outcome = read_outcome(path)
+        assert isinstance(outcome, CaseError)
+        runner = CliRunner().invoke(main, ["check", str(path)])
+        assert runner.exit_code == 2  # a folder is refused by the argument check itself
+        assert runner.stderr.count("\n") == 1 or kind == "folder"
+
+
+@pytest.mark.skipif(not hasattr(os, "symlink"), reason="needs symbolic links")
+@fuzz(40)
+@given(st.integers(0, 8), st.booleans(), st.sampled_from([*ODD_KINDS[3:], "valid"]))
+def test_chains_of_symbolic_links_are_followed_or_refused(length: int, loop: bool,
+                                                          end: str) -> None:
+    """A chain of links to a valid case, to an odd file, or closed into a loop."""
+    with tempfile.TemporaryDirectory(dir="/tmp") as tmp:
+        folder = Path(tmp)
+        last = folder / "end.toml"
+        if end == "valid":
+            last.write_bytes(SI_BYTES)
+        else:
+            make_odd(last, end)
+        target = last
+        for i in range(length):
+            link = folder / f"link{i}.toml"
+            os.symlink(target.name, link)
+            target = link
+        if loop and length:
+            (folder / "link0.toml").unlink()
+            os.symlink(target.name, folder / "link0.toml")
+        outcome = read_outcome(target)
+        assert isinstance(outcome, Beam) == (end == "valid" and not (loop and length))
+
+
+@fuzz(300)
+@given(st.text(st.sampled_from("mkNftinpsa*/^·- .e0123456789!(?"), max_size=200),
+       st.sampled_from(["length", "force", "line_load", "modulus", "k_rotation"]))
+def test_unit_strings_of_any_shape_are_read_or_refused(text: str, quantity: str) -> None:
+    """Runs of letters, operators and powers (the shapes that once backtracked for ever):
+    a float or a UnitError, nothing else."""
+    try:
+        value = parse_quantity(text, SI, quantity)
+    except UnitError:
+        return
+    assert isinstance(value, float)

@@ -1,6 +1,7 @@
 """Nothing in a case file is executed or evaluated as code.  Unit strings are read by
-pint's quantity parser, never by Python's eval, so strings that would run code if
-evaluated are refused as unreadable quantities and leave no trace; text keys (title,
+the one-pass grammar of envelope.units (a number and unit names; pint only looks up a
+name the built-in table lacks), never by Python's eval, so strings that would run code
+if evaluated are refused as unreadable quantities and leave no trace; text keys (title,
 id, names) are kept as text.
 """
 

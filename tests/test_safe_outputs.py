@@ -32,6 +32,8 @@ from bad_inputs import doc
 
 RESULTS = {"envelope.parquet", "reactions.parquet", "design.parquet", "cases.parquet"}
 TEMP = re.compile(r"^\.(?P<final>[^/]+)\.[^/]+\.tmp$")
+#: The staging folder a beam's files are written in before they are moved into place.
+STAGING = re.compile(r"^\.staging-[^/.]+\.tmp$")
 
 
 def tree(root: Path) -> set[Path]:
@@ -103,9 +105,13 @@ def test_each_file_is_complete_under_a_temporary_name_before_the_rename(
 
     def replace(src: str | os.PathLike[str], dst: str | os.PathLike[str]) -> None:
         src, dst = Path(src), Path(dst)
-        match = TEMP.match(src.name)
-        assert match and match["final"] == dst.name, (src, dst)
-        assert src.parent == dst.parent
+        if STAGING.match(src.parent.name) and dst.parent != src.parent:
+            # a complete file moved out of the staging folder into place
+            assert src.name == dst.name and src.parent.parent == dst.parent, (src, dst)
+        else:
+            match = TEMP.match(src.name)
+            assert match and match["final"] == dst.name, (src, dst)
+            assert src.parent == dst.parent
         assert synced, "renamed before the data was flushed to disk"
         if dst.suffix == ".parquet":
             pq.read_table(src)  # complete and readable before it gets its final name
@@ -313,9 +319,14 @@ def test_sigkill_at_random_moments_leaves_only_complete_files(tmp_path: Path) ->
         proc.wait()
         killed += proc.returncode == -signal.SIGKILL
         names = {p.name for p in folder.iterdir()} if folder.exists() else set()
-        temps = {n for n in names if TEMP.match(n)}
+        staging = {n for n in names if STAGING.match(n)}
+        for n in staging:  # a killed write's staging folder: only temporaries and finals
+            inner = {p.name for p in (folder / n).iterdir()}
+            assert all(TEMP.match(i) or i in FINALS | {"envelope.png"} for i in inner), inner
+        temps = {n for n in names if TEMP.match(n)} - staging
         for n in temps:
             assert TEMP.match(n)["final"] in FINALS  # type: ignore[index]
+        temps |= staging
         assert names - temps <= FINALS, names
         if target == out:
             assert names - temps == FINALS  # each file old or new, none missing

@@ -7,7 +7,9 @@ import csv
 import hashlib
 import io
 import json
+import os
 import shutil
+import stat
 from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
@@ -15,7 +17,7 @@ from typing import Any
 from envelope import engine_version
 from envelope.batch.model import COMBINED, Outcome
 from envelope.batch.resume import _remove_temporaries, _stamped
-from envelope.files import write_atomic
+from envelope.files import real_folder, write_atomic
 
 
 def _read(path: Path) -> Any:
@@ -128,7 +130,8 @@ def write_partition(out: Path, beam_id: str, system: str) -> None:
     table = _read(out / beam_id / "envelope.parquet")
     column = pa.array([system] * table.num_rows, pa.string())
     table = table.drop_columns(["beam"]).append_column("system", column)
-    _write(out / COMBINED / "envelope" / f"beam={beam_id}" / "part-0.parquet", table)
+    folder = real_folder(out, out / COMBINED / "envelope" / f"beam={beam_id}")
+    _write(folder / "part-0.parquet", table)
 
 
 def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = None) -> None:
@@ -138,19 +141,22 @@ def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = 
     rebuilt (converted to ``to_system`` when given, see :func:`_combine_table`).
     ``envelope:input_sha256`` of a combined file is the SHA-256 of the sorted
     ``<id> <input hash>`` lines of its beams."""
-    root = out / COMBINED
-    dataset = root / "envelope"
-    root.mkdir(parents=True, exist_ok=True)
+    root = real_folder(out, out / COMBINED)
+    dataset = real_folder(out, root / "envelope", create=False)
     _remove_temporaries(root)
     ids = sorted(done)
     systems = {beam_id: str(done[beam_id].get("units", "")) for beam_id in ids}
     keep = {f"beam={beam_id}" for beam_id in ids}
     if dataset.is_dir():
         for child in dataset.iterdir():
+            # lstat: a link is removed as a link, never followed
+            is_dir = stat.S_ISDIR(os.lstat(child).st_mode)
             if child.name not in keep:
-                shutil.rmtree(child) if child.is_dir() else child.unlink()
-            elif child.is_dir():
+                shutil.rmtree(child) if is_dir else child.unlink()
+            elif is_dir:
                 _remove_temporaries(child)
+            else:  # a file or a link where a partition folder belongs
+                child.unlink()
     for beam_id in ids:
         part = dataset / f"beam={beam_id}" / "part-0.parquet"
         if not _stamped(part, done[beam_id]["input_sha256"]):
@@ -175,6 +181,6 @@ def write_failures(out: Path, failures: Sequence[Outcome], order: dict[str, int]
     for o in sorted(failures, key=lambda o: order.get(o.path, -1)):
         writer.writerow([o.path, o.beam_id, o.error])
     data = buffer.getvalue().encode()
-    path = out / COMBINED / "failures.csv"
+    path = real_folder(out, out / COMBINED) / "failures.csv"
     write_atomic(path, lambda fh: fh.write(data))
     return path

@@ -14,6 +14,13 @@ from envelope.commands.common import level, say
 from envelope.errors import EnvelopeError
 
 
+def _limits(max_memory: float | None, max_seconds: float | None) -> object:
+    """envelope.limits.WorkLimits of the options (imported here: it loads the model)."""
+    from envelope.limits import from_options
+
+    return from_options(max_memory, max_seconds)
+
+
 @click.command("batch")
 @click.argument("paths", nargs=-1, required=True, metavar="PATH...")
 @click.option("-o", "--out", required=True, type=click.Path(file_okay=False),
@@ -30,8 +37,18 @@ from envelope.errors import EnvelopeError
 @click.option("--units", type=click.Choice(["SI", "US"]),
               help="Convert the combined OUT/_all tables to one unit system  "
                    "[default: each row in its beam's own, named per row]")
+@click.option("--time-limit", type=click.FloatRange(min=0, min_open=True), metavar="SECONDS",
+              help="Stop a beam that runs longer and record it as failed (local pool). "
+                   " [default: no limit]")
+@click.option("--max-memory", type=click.FloatRange(min=0, min_open=True), metavar="GIB",
+              help="Refuse a beam estimated to need more memory  [default: half of the "
+                   "machine's]")
+@click.option("--max-seconds", type=click.FloatRange(min=0, min_open=True), metavar="S",
+              help="Refuse a beam estimated to take more CPU time  [default: 600]")
 def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str | None,
-          plots: bool, force: bool, report: bool, units: str | None) -> None:
+          plots: bool, force: bool, report: bool, units: str | None,
+          time_limit: float | None, max_memory: float | None,
+          max_seconds: float | None) -> None:
     """Analyse many case files into OUT/<id>/, combined in OUT/_all/.
 
     PATHs are case files, folders (every *.toml inside), glob patterns or beam schedules
@@ -52,8 +69,8 @@ def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str 
             sys.exit(2)
         summary = run_batch(paths, out, workers=workers, scheduler=scheduler, plots=plots,
                             force=force, progress=sys.stderr if level() >= 0 else None,
-                            units=units,
-                            failures=failures)
+                            units=units, failures=failures, time_limit=time_limit,
+                            work_limits=_limits(max_memory, max_seconds))
         if report:
             from envelope.batch.local import default_workers
             from envelope.report.index import report_batch

@@ -2,14 +2,18 @@
 
 from __future__ import annotations
 
+import errno
 import glob
 import hashlib
 import os
+import stat
 import tomllib
 from collections.abc import Sequence
 from pathlib import Path
 
+from envelope import config
 from envelope.batch.model import BatchError, DuplicateIdError, Entry
+from envelope.files import UnreadableFile, file_kind, read_regular
 
 
 def _visible(path: Path, base: Path) -> bool:
@@ -17,50 +21,82 @@ def _visible(path: Path, base: Path) -> bool:
     return not any(part.startswith(".") for part in path.relative_to(base).parts[:-1])
 
 
+def unreadable(path: str) -> str | None:
+    """Why the case file at ``path`` cannot be read as one (a FIFO, a device, a socket,
+    a symbolic link loop, a dangling link), or None for a regular file (or a link to
+    one).  Only file metadata is looked at: nothing is opened."""
+    try:
+        st = os.stat(path)
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            return "a symbolic link loop"
+        if os.path.islink(path):
+            return "a dangling symbolic link (its target does not exist)"
+        return f"cannot read the file ({exc.strerror or exc})"
+    if stat.S_ISREG(st.st_mode):
+        return None
+    return f"not a regular file: {file_kind(st.st_mode)}"
+
+
 def is_case_document(path: Path) -> bool:
     """False for a TOML file that holds none of a case file's top-level keys (a
-    ``pyproject.toml`` beside the cases); a file that cannot be read or parsed counts
-    as a case, so that its problem is reported rather than skipped."""
+    ``pyproject.toml`` beside the cases); a file that cannot be read or parsed (a FIFO,
+    a file over the size limit, nesting too deep...) counts as a case, so that its
+    problem is reported rather than skipped.  Never blocks on a FIFO or a device."""
     from envelope.casefile import TOP_KEYS
 
     try:
-        data = tomllib.loads(path.read_bytes().decode("utf-8-sig"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError, RecursionError):
+        data = tomllib.loads(read_regular(path, config.CASE_FILE_MAX_BYTES)
+                             .decode("utf-8-sig"))
+    except Exception:  # unreadable, not UTF-8, not TOML, nested too deeply...
         return True
     return not data or any(key in data for key in TOP_KEYS)
 
 
 def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None) -> list[str]:
     """Case files named by ``paths``: files as given, folders searched recursively for
-    ``*.toml``, glob patterns expanded (``**`` allowed).  Each file once, in order.  A
+    ``*.toml`` (links to folders are not followed, so a link loop cannot trap the
+    search), glob patterns expanded (``**`` allowed).  Each file once, in order.  A
     TOML file found in a folder that is not a case file is left out and, when
-    ``skipped`` is given, listed there with the reason."""
+    ``skipped`` is given, listed there with the reason.  A path that is not a regular
+    file (a FIFO, a device, a link loop or a dangling link) is listed: the batch
+    reports it as that file's failure (see :func:`unreadable`)."""
     found: list[str] = []
     seen: set[str] = set()
 
     def add(name: str) -> None:
-        key = os.path.realpath(name)
+        try:
+            key = os.path.realpath(name)
+        except (OSError, RuntimeError):  # a link loop (RuntimeError before Python 3.13)
+            key = os.path.abspath(name)
         if key not in seen:
             seen.add(key)
             found.append(name)
 
     def add_found(p: Path) -> None:
         """A file found by a folder search or a pattern, not named by the user."""
-        if is_case_document(p):
+        if unreadable(str(p)) is not None or is_case_document(p):
             add(str(p))
         elif skipped is not None:
             skipped.append((str(p), "not a case file: none of its keys is a case key"))
 
     def add_folder(folder: str) -> None:
         base = Path(folder)
-        for p in sorted(base.rglob("*.toml"), key=lambda p: str(p)):
-            if p.is_file() and _visible(p, base):
+        names = []
+        for root, dirs, files in os.walk(folder, followlinks=False):
+            dirs[:] = [d for d in dirs if not d.startswith(".")]
+            names.extend(Path(root) / f for f in files if f.endswith(".toml"))
+            # links to folders named *.toml are listed by os.walk among the folders
+            names.extend(Path(root) / d for d in dirs
+                         if d.endswith(".toml") and os.path.islink(Path(root) / d))
+        for p in sorted(names, key=str):
+            if _visible(p, base) and not os.path.isdir(p):
                 add_found(p)
 
     for name in paths:
         if os.path.isdir(name):
             add_folder(name)
-        elif os.path.isfile(name):
+        elif os.path.lexists(name):
             add(name)
         elif glob.has_magic(name):
             matches = sorted(glob.glob(name, recursive=True))
@@ -69,7 +105,7 @@ def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None)
             for match in matches:
                 if os.path.isdir(match):
                     add_folder(match)
-                elif os.path.isfile(match):
+                else:
                     add_found(Path(match))
         else:
             raise BatchError(f"{name}: no such file or folder")
@@ -80,18 +116,20 @@ def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None)
 
 def identify(index: int, path: str, absolute: bool = False) -> Entry:
     """Hash the file and read its id the way the case reader does (the ``id`` key, else
-    the file stem), without checking the rest: the worker reports any problem."""
+    the file stem), without checking the rest: the worker reports any problem.  Any
+    failure of this quick read (a file that is not regular, too large, not TOML, nested
+    too deeply) leaves the id unknown; it never stops the batch."""
     from envelope.casefile import ID_PATTERN
 
     target = os.path.abspath(path) if absolute else path
     try:
-        raw = Path(path).read_bytes()
-    except OSError:
+        raw = read_regular(path, config.CASE_FILE_MAX_BYTES)
+    except UnreadableFile:
         return Entry(index, path, target, None, None)
     sha256 = hashlib.sha256(raw).hexdigest()
     try:
         data = tomllib.loads(raw.decode("utf-8-sig"))
-    except (UnicodeDecodeError, tomllib.TOMLDecodeError):
+    except Exception:  # not UTF-8, not TOML, nested too deeply for the parser...
         return Entry(index, path, target, None, sha256)
     beam_id = data.get("id", Path(path).stem) if data else None
     if not isinstance(beam_id, str) or not ID_PATTERN.fullmatch(beam_id) \

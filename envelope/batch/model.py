@@ -14,8 +14,9 @@ MANIFEST = ".complete.json"
 #: The folder of the combined results under OUT; no beam may take this id.
 COMBINED = "_all"
 
-#: A task: (path the worker opens, path shown to the user, id from a quick read or None).
-Task = tuple[str, str, str | None]
+#: A task: (path the worker opens, path shown to the user, id from a quick read or None,
+#: time limit in seconds or None, work limits (envelope.limits.WorkLimits) or None).
+Task = tuple[str, str, str | None, float | None, Any]
 
 
 class BatchError(EnvelopeError):
@@ -47,9 +48,8 @@ class Entry:
     beam_id: str | None   # from a quick read of the file; None when it cannot be told
     sha256: str | None    # of the raw bytes; None when the file cannot be read
 
-    @property
-    def task(self) -> Task:
-        return (self.target, self.path, self.beam_id)
+    def task(self, time_limit: float | None = None, work_limits: Any = None) -> Task:
+        return (self.target, self.path, self.beam_id, time_limit, work_limits)
 
 
 @dataclass(frozen=True, slots=True)

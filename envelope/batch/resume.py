@@ -3,11 +3,15 @@
 from __future__ import annotations
 
 import json
+import os
+import shutil
+import stat
 from pathlib import Path
 from typing import Any
 
 from envelope import engine_version
 from envelope.batch.model import MANIFEST, Entry
+from envelope.files import is_link
 
 
 def _stamped(path: Path, sha256: str) -> bool:
@@ -29,6 +33,8 @@ def completed(out: Path, entry: Entry, plots: bool) -> dict[str, Any] | None:
     if entry.beam_id is None or entry.sha256 is None:
         return None
     folder = out / entry.beam_id
+    if is_link(folder):  # refused by the worker: never counts as done
+        return None
     try:
         manifest = json.loads((folder / MANIFEST).read_bytes())
     except (OSError, ValueError):
@@ -54,6 +60,17 @@ def completed(out: Path, entry: Entry, plots: bool) -> dict[str, Any] | None:
 
 
 def _remove_temporaries(folder: Path) -> None:
-    """Remove the temporary files a killed atomic write leaves (``.<name>.*.tmp``)."""
+    """Remove the temporary files a killed atomic write leaves (``.<name>.*.tmp``) and
+    the staging folders of a killed write of a beam (``.staging-*.tmp``).  Nothing is
+    done in a folder that is a symbolic link, and no link is followed."""
+    if is_link(folder):
+        return
     for tmp in folder.glob(".*.tmp"):
-        tmp.unlink(missing_ok=True)
+        try:
+            mode = os.lstat(tmp).st_mode
+        except FileNotFoundError:
+            continue
+        if stat.S_ISDIR(mode):
+            shutil.rmtree(tmp, ignore_errors=True)
+        else:
+            tmp.unlink(missing_ok=True)

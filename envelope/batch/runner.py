@@ -12,11 +12,12 @@ from typing import Any, TextIO
 
 from envelope.batch.cluster import _check_cluster, connect, run_cluster
 from envelope.batch.combined import combine, write_failures
-from envelope.batch.discovery import check_duplicates, discover, identify
+from envelope.batch.discovery import check_duplicates, discover, identify, unreadable
 from envelope.batch.local import default_workers, run_local
 from envelope.batch.model import COMBINED, BatchError, Entry, Outcome, Summary
 from envelope.batch.progress import Progress, _Silent
 from envelope.batch.resume import _remove_temporaries, completed
+from envelope.files import is_link, real_folder
 
 #: The advisory lock file of a batch in OUT.
 LOCK = ".envelope-batch.lock"
@@ -26,7 +27,14 @@ LOCK = ".envelope-batch.lock"
 def _lock(out: Path, shown: str) -> Iterator[None]:
     """One batch at a time per OUT (an advisory lock the kernel drops with the process)."""
     path = out / LOCK
-    fd = os.open(path, os.O_RDWR | os.O_CREAT, 0o666)
+    try:  # never through a link: the lock file is created inside OUT or not at all
+        fd = os.open(path, os.O_RDWR | os.O_CREAT | getattr(os, "O_NOFOLLOW", 0), 0o666)
+    except OSError as exc:
+        if is_link(path):
+            raise BatchError(f"{path}: the lock file is a symbolic link; remove it (a "
+                             "batch writes nothing outside the output folder)") from None
+        raise BatchError(f"{path}: cannot create the lock file ({exc.strerror or exc})"
+                         ) from None
     try:
         try:
             import fcntl
@@ -45,20 +53,29 @@ def _lock(out: Path, shown: str) -> Iterator[None]:
 def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int | None = None,
               scheduler: str | None = None, plots: bool = False, force: bool = False,
               progress: TextIO | None = None, chunk: int | None = None,
-              units: str | None = None, failures: Sequence[Outcome] = ()) -> Summary:
+              units: str | None = None, failures: Sequence[Outcome] = (),
+              time_limit: float | None = None, work_limits: Any = None) -> Summary:
     """Analyse every case file named by ``paths`` into ``OUT/<id>/`` and refresh
     ``OUT/_all/``.  Beams already done for the same input and engine version are
     skipped unless ``force``.  Raises :class:`BatchError` before anything is written when
     the paths, the ids or the cluster are wrong; failures of single beams are in the
-    summary and in ``OUT/_all/failures.csv``.  Progress goes to ``progress`` if given.
-    ``units`` ("SI" or "US") converts the combined tables to one system; ``failures``
-    are beams that failed before the batch (bad rows of a beam schedule), listed too."""
+    summary and in ``OUT/_all/failures.csv``, among them the paths that are not regular
+    files (FIFOs, devices, link loops, dangling links).  A beam that runs longer than
+    ``time_limit`` seconds is stopped and recorded as failed (local pool only); one whose
+    estimated work exceeds ``work_limits`` (:class:`envelope.limits.WorkLimits`) is
+    refused.  Nothing
+    is written or deleted through a symbolic link inside OUT.  Progress goes to
+    ``progress`` if given.  ``units`` ("SI" or "US") converts the combined tables to one
+    system; ``failures`` are beams that failed before the batch (bad rows of a beam
+    schedule), listed too."""
     started = time.perf_counter()
     if scheduler is not None and workers is not None:
         raise BatchError("--workers sets the local pool; with --scheduler the cluster's "
                          "workers are used (give one or the other)")
     shown_out = os.fspath(out)
     out_path = Path(os.path.abspath(out))
+    if time_limit is not None and time_limit <= 0:
+        raise BatchError(f"--time-limit must be greater than zero, got {time_limit:g}")
     not_cases: list[tuple[str, str]] = []
     entries = [identify(i, p, absolute=scheduler is not None)
                for i, p in enumerate(discover(paths, not_cases))]
@@ -68,7 +85,12 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
     summary.outcomes.extend(failures)
     done: dict[str, dict[str, Any]] = {}
     todo: list[Entry] = []
+    refused: list[Outcome] = []
     for entry in entries:
+        reason = unreadable(entry.path)
+        if reason is not None:  # never opened by a worker (a FIFO would block it)
+            refused.append(Outcome(entry.path, "", f"{entry.path}: {reason}; skipped"))
+            continue
         manifest = None if force else completed(out_path, entry, plots)
         if manifest is None:
             todo.append(entry)
@@ -84,6 +106,8 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
         created = not out_path.exists()
         out_path.mkdir(parents=True, exist_ok=True)
         stack.enter_context(_lock(out_path, shown_out))
+        # refuse links where the batch deletes and writes its own files, before either
+        real_folder(out_path, out_path / COMBINED / "envelope", create=False)
         if client is not None:
             try:
                 slots = _check_cluster(client, os.fspath(out_path), todo[0].target)
@@ -94,7 +118,12 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
                 raise
         else:
             slots = workers or default_workers()
-        _run(todo, out_path, summary, done, client, slots, plots, progress, chunk)
+        summary.outcomes.extend(refused)
+        if progress is not None:
+            for outcome in refused:
+                progress.write(f"error: {outcome.error}\n")
+        _run(todo, out_path, summary, done, client, slots, plots, progress, chunk, time_limit,
+             work_limits)
         # Temporaries of writes killed with a worker or a batch, in every folder of the
         # batch (a beam completed by a later run may hold one of an earlier kill); the
         # batch's own workers are done by now.
@@ -109,7 +138,8 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
 
 def _run(todo: Sequence[Entry], out: Path, summary: Summary, done: dict[str, dict[str, Any]],
          client: Any, slots: int, plots: bool, progress: TextIO | None,
-         chunk: int | None) -> None:
+         chunk: int | None, time_limit: float | None = None,
+         work_limits: Any = None) -> None:
     """Run the beams of ``todo`` on the cluster of ``client`` (or a local pool of ``slots``
     processes), recording each outcome in ``summary`` and ``done`` as it arrives."""
     order = {e.path: e.index for e in todo}
@@ -134,7 +164,7 @@ def _run(todo: Sequence[Entry], out: Path, summary: Summary, done: dict[str, dic
         bar.advance(len(outcomes), failed)
 
     run_started = time.perf_counter()
-    tasks = [e.task for e in todo]
+    tasks = [e.task(time_limit, work_limits) for e in todo]
     if tasks and client is not None:
         run_cluster(tasks, os.fspath(out), plots, client, slots, report, chunk)
     elif tasks:

@@ -4,16 +4,19 @@ from __future__ import annotations
 
 import json
 import os
+import signal
+import threading
 import time
 import warnings
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
+from contextlib import contextmanager
 from pathlib import Path
 
 from envelope import engine_version
 from envelope.batch.combined import write_partition
 from envelope.batch.model import COMBINED, MANIFEST, BatchError, Outcome, Task
 from envelope.errors import EnvelopeError, EnvelopeWarning
-from envelope.files import write_atomic
+from envelope.files import is_link, real_folder, write_atomic
 
 
 def _is_result(name: str) -> bool:
@@ -28,7 +31,7 @@ def _snapshot(folder: Path) -> dict[str, tuple[int, int, int]]:
     try:
         with os.scandir(folder) as it:
             for item in it:
-                if item.is_file() and not item.name.startswith("."):
+                if item.is_file(follow_symlinks=False) and not item.name.startswith("."):
                     st = item.stat()
                     out[item.name] = (st.st_ino, st.st_mtime_ns, st.st_size)
     except FileNotFoundError:
@@ -43,52 +46,101 @@ def _message(exc: BaseException, target: str, shown: str) -> str:
     return text.replace(target, shown) if target != shown else text
 
 
+class TimeLimitExceeded(Exception):
+    """Raised in a worker when a beam runs past the batch's time limit."""
+
+
+@contextmanager
+def _time_limit(seconds: float | None) -> Iterator[None]:
+    """Raise :class:`TimeLimitExceeded` in this thread after ``seconds`` (an interval
+    timer; only in a process's main thread, as in the local pool's workers: a cluster
+    runs beams in threads, where its own limits apply)."""
+    if not seconds or threading.current_thread() is not threading.main_thread() \
+            or not hasattr(signal, "setitimer"):
+        yield
+        return
+
+    def expired(signum: int, frame: object) -> None:
+        raise TimeLimitExceeded
+
+    previous = signal.signal(signal.SIGALRM, expired)
+    signal.setitimer(signal.ITIMER_REAL, seconds)
+    try:
+        yield
+    finally:
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        signal.signal(signal.SIGALRM, previous)
+
+
+def _clear_results(folder: Path) -> None:
+    """Remove the result files of a beam folder whose run failed after it began writing,
+    so that no folder holds results without their manifest (never through a link)."""
+    if is_link(folder) or not folder.is_dir():
+        return
+    for item in folder.iterdir():
+        if _is_result(item.name) and not item.is_symlink() and item.is_file():
+            item.unlink(missing_ok=True)
+
+
 def run_beam(task: Task, out: str, plots: bool) -> Outcome:
     """Analyse one case file and write ``OUT/<id>/`` as ``envelope run`` does, then the
-    manifest; any error becomes the outcome's message (nothing raised)."""
+    manifest; any error becomes the outcome's message (nothing raised).  A failure after
+    writing began removes the beam's result files, so the folder is either complete with
+    its manifest or holds no results."""
     from envelope import api
 
-    target, shown, quick_id = task
+    target, shown, quick_id, limit, work_limits = task
     start = time.perf_counter()
     beam_id = quick_id or ""
+    folder: Path | None = None
     try:
-        beam = api.load_case(target)
-        beam_id = beam.id
-        if beam.id == COMBINED:
-            raise BatchError(f"{target}: id: {COMBINED!r} is reserved for the combined "
-                             "results of a batch; give the beam another id")
-        with warnings.catch_warnings():  # kept in each file's envelope:warnings metadata
-            warnings.simplefilter("ignore", EnvelopeWarning)
-            result = api.analyse(beam)
-        analysed = time.perf_counter()
-        folder = Path(out) / beam.id
-        # From here on the folder is not complete until the new manifest stands.
-        (folder / MANIFEST).unlink(missing_ok=True)
-        before = _snapshot(folder)
-        # no fsync per file: the manifest, written last, is checked against every file
-        # (size and input hash) before a beam counts as done, so a file lost to a power
-        # failure is found and the beam rerun
-        api.write(result, out, plots=plots, durable=False)
-        written = time.perf_counter()
-        after = _snapshot(folder)
-        produced = {name: ident for name, ident in after.items() if before.get(name) != ident}
-        for name in before.keys() - produced.keys():
-            if _is_result(name):  # written by an earlier run, not by this one: stale
-                (folder / name).unlink(missing_ok=True)
-        write_partition(Path(out), beam.id, beam.units.name)
-        manifest = {
-            "beam": beam.id, "input_sha256": beam.input_sha256, "version": engine_version(),
-            "source": shown, "units": beam.units.name, "plots": plots,
-            "files": {name: produced[name][2] for name in sorted(produced)},
-        }
-        data = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
-        write_atomic(folder / MANIFEST, lambda fh: fh.write(data))
+        with _time_limit(limit):
+            beam = api.load_case(target)
+            beam_id = beam.id
+            if beam.id == COMBINED:
+                raise BatchError(f"{target}: id: {COMBINED!r} is reserved for the combined "
+                                 "results of a batch; give the beam another id")
+            with warnings.catch_warnings():  # kept in each file's envelope:warnings
+                warnings.simplefilter("ignore", EnvelopeWarning)
+                result = api.analyse(beam, work_limits)
+            analysed = time.perf_counter()
+            # no link anywhere below OUT on the way to the beam's folder
+            real_folder(Path(out), Path(out) / beam.id)
+            folder = Path(out) / beam.id
+            # From here on the folder is not complete until the new manifest stands.
+            (folder / MANIFEST).unlink(missing_ok=True)
+            before = _snapshot(folder)
+            # no fsync per file: the manifest, written last, is checked against every
+            # file (size and input hash) before a beam counts as done, so a file lost to
+            # a power failure is found and the beam rerun
+            api.write(result, out, plots=plots, durable=False)
+            written = time.perf_counter()
+            after = _snapshot(folder)
+            produced = {name: ident for name, ident in after.items()
+                        if before.get(name) != ident}
+            for name in before.keys() - produced.keys():
+                if _is_result(name):  # written by an earlier run, not by this one: stale
+                    (folder / name).unlink(missing_ok=True)
+            write_partition(Path(out), beam.id, beam.units.name)
+            manifest = {
+                "beam": beam.id, "input_sha256": beam.input_sha256,
+                "version": engine_version(), "source": shown, "units": beam.units.name,
+                "plots": plots, "files": {name: produced[name][2] for name in sorted(produced)},
+            }
+            data = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
+            write_atomic(folder / MANIFEST, lambda fh: fh.write(data))
         done = time.perf_counter()
         return Outcome(shown, beam.id, None, manifest, analysed - start, written - analysed,
                        done - written)
     except Exception as exc:
-        return Outcome(shown, beam_id, _message(exc, target, shown), None,
-                       time.perf_counter() - start, 0.0)
+        if folder is not None:
+            _clear_results(folder)
+        if isinstance(exc, TimeLimitExceeded):
+            message = (f"{shown}: stopped after the time limit of {limit:g} s per beam "
+                       "(--time-limit)")
+        else:
+            message = _message(exc, target, shown)
+        return Outcome(shown, beam_id, message, None, time.perf_counter() - start, 0.0)
 
 
 def run_chunk(tasks: Sequence[Task], out: str, plots: bool) -> list[Outcome]:

@@ -9,7 +9,7 @@ from __future__ import annotations
 from typing import Any, get_args
 
 from envelope.casefile import steel
-from envelope.casefile.reader import Reader, join
+from envelope.casefile.reader import MAX_MAGNITUDE, MIN_MAGNITUDE, Reader, join
 from envelope.design import (
     ConcreteCode,
     ConcreteDesign,
@@ -44,7 +44,9 @@ def design_number(r: Reader, value: object, key: str, quantity: str | None) -> f
     """A positive [design] number in section units (mm, MPa / in, ksi).
 
     Plain numbers are kept as given; a unit string is converted to the section
-    unit of ``quantity``.  ``quantity=None`` allows plain numbers only.
+    unit of ``quantity``.  ``quantity=None`` allows plain numbers only.  The value
+    is under the magnitude rule of every other number (MIN_MAGNITUDE to
+    MAX_MAGNITUDE in section units), so no product in sizing leaves float64.
     """
     out: float | int
     if isinstance(value, str) and quantity is not None:
@@ -60,6 +62,9 @@ def design_number(r: Reader, value: object, key: str, quantity: str | None) -> f
         out = value if isinstance(value, int) else number
     if out <= 0:
         r.fail(key, f"must be greater than zero, got {out:g}")
+    if not MIN_MAGNITUDE <= out <= MAX_MAGNITUDE:
+        r.fail(key, f"{out:.3g} is outside the range sizing can carry ({MIN_MAGNITUDE:g} "
+                    f"to {MAX_MAGNITUDE:g}); check the value and its unit")
     return out
 
 

@@ -15,10 +15,11 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from envelope import stability
+from envelope import config, stability
 from envelope.casefile import design, geometry, loads, options
 from envelope.casefile.reader import Reader, TomlReader, misplaced_hint, one_line
 from envelope.errors import CaseError
+from envelope.files import UnreadableFile, read_regular
 from envelope.model import Beam
 from envelope.units import SYSTEMS, UnitSystem
 
@@ -32,13 +33,16 @@ def load_case(path: str | os.PathLike[str]) -> Beam:
 
     ``Beam.input_sha256`` is the SHA-256 of the file's raw bytes, so a result
     can be traced to the exact input it came from.  A UTF-8 byte-order mark is
-    accepted (some editors write one).
+    accepted (some editors write one).  Only a regular file of at most
+    ``config.CASE_FILE_MAX_BYTES`` is read (a FIFO or a device is refused without
+    waiting on it), and values nested more than ``config.CASE_NESTING_MAX`` deep are
+    refused.
     """
     source = os.fspath(path)
     try:
-        raw = Path(source).read_bytes()
-    except OSError as exc:
-        raise CaseError(source, "", f"cannot read the file ({exc.strerror or exc})") from None
+        raw = read_regular(source, config.CASE_FILE_MAX_BYTES)
+    except UnreadableFile as exc:
+        raise CaseError(source, "", str(exc)) from None
     sha256 = hashlib.sha256(raw).hexdigest()
     try:
         text = raw.decode("utf-8-sig")
@@ -51,9 +55,28 @@ def load_case(path: str | os.PathLike[str]) -> Beam:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise CaseError(source, "", f"not valid TOML: {one_line(str(exc))}") from None
+    except RecursionError:  # the parser recurses once per level of nesting
+        data = None
+    if data is None or nesting(data) > config.CASE_NESTING_MAX:
+        raise CaseError(source, "", f"values nested more than {config.CASE_NESTING_MAX} "
+                                    "levels deep (arrays or tables inside each other); "
+                                    "a case file needs a few")
     if not data:
         raise CaseError(source, "", "the file is empty (no keys, only blanks or comments)")
     return parse_case(data, source, sha256)
+
+
+def nesting(data: Any) -> int:
+    """How deep arrays and tables are nested in ``data`` (the document itself is 1, a
+    ``[[spans.sections]]`` item 5), counted without recursion."""
+    deepest = 0
+    stack: list[tuple[Any, int]] = [(data, 1)]
+    while stack:
+        value, depth = stack.pop()
+        deepest = max(deepest, depth)
+        children = value.values() if isinstance(value, dict) else value
+        stack.extend((v, depth + 1) for v in children if isinstance(v, dict | list))
+    return deepest
 
 
 def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
@@ -100,7 +123,9 @@ def units(toml: TomlReader, data: dict[str, Any]) -> UnitSystem:
 def read_id(r: TomlReader, data: dict[str, Any]) -> str:
     """The beam's id: ``id`` if given, else the file's stem; a safe file name either way."""
     if "id" in data:
-        beam_id = r.string(data["id"], "id")
+        beam_id = data["id"]  # its own pattern below, which refuses control characters
+        if not isinstance(beam_id, str):
+            r.string(beam_id, "id")
         given = "id"
     else:
         beam_id = Path(r.source).stem

@@ -19,6 +19,7 @@ import re
 from collections.abc import Callable, Iterable
 from typing import Any, NoReturn, TypeVar
 
+from envelope import config
 from envelope.errors import CaseError
 from envelope.units import UnitError, UnitSystem, parse_quantity
 
@@ -32,6 +33,10 @@ MAX_MAGNITUDE = 1e30
 #: length are taken as the end (a unit string like "24 ft" and the plain
 #: number 7.3152 differ in the last bit).
 END_RTOL = 1e-12
+
+#: Control characters (Unicode category Cc: C0, DEL and C1) and the Unicode line and
+#: paragraph separators, refused in every text.
+CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u2028\u2029]")
 
 #: Top-level keys that belong before the first ``[table]`` header.
 LEADING_KEYS = ("id", "title", "units")
@@ -157,9 +162,18 @@ class TomlReader:
         return default
 
     def string(self, value: object, key: str) -> str:
-        """``value`` as a string."""
+        """``value`` as a string: of at most ``config.TEXT_MAX_CHARS`` characters and
+        without control characters (a line break, a NUL...), which no title, name or
+        path needs and which would reach messages, tables and figures."""
         if not isinstance(value, str):
             self.fail(key, f"expected a string, got {describe(value)}")
+        if len(value) > config.TEXT_MAX_CHARS:
+            self.fail(key, f"a text of {len(value)} characters is too long (at most "
+                           f"{config.TEXT_MAX_CHARS})")
+        bad = CONTROL.search(value)
+        if bad is not None:
+            self.fail(key, f"control character U+{ord(bad.group()):04X} at position "
+                           f"{bad.start() + 1}; write the text without it")
         return value
 
     def choice(self, value: object, key: str, choices: tuple[S, ...], what: str) -> S:

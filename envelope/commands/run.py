@@ -21,15 +21,25 @@ from envelope.commands.common import guard, say
 @click.option("--all-cases", is_flag=True, default=None,
               help="Also write stations.parquet: every explicit case at every station.")
 @click.option("--report", is_flag=True, help="Also write report.html and report.pdf.")
+@click.option("--sections", "sections", type=click.Path(dir_okay=False), metavar="CSV",
+              help="Steel sections table to use instead of [design] sections (may be "
+                   "outside the case file's folder).")
+@click.option("--max-memory", type=click.FloatRange(min=0, min_open=True), metavar="GIB",
+              help="Refuse a beam estimated to need more memory  [default: half of this "
+                   "machine's]")
+@click.option("--max-seconds", type=click.FloatRange(min=0, min_open=True), metavar="S",
+              help="Refuse a beam estimated to take more CPU time  [default: 600]")
 @guard
 def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
-        report: bool) -> None:
+        report: bool, sections: str | None, max_memory: float | None,
+        max_seconds: float | None) -> None:
     """Analyse CASE (a TOML case file; the bundled demo when omitted).
 
     Writes the Parquet files (and envelope.png) to OUT/<id>/, then prints a summary per
     span; with -q only the folder written."""
     from envelope import api
     from envelope.errors import EnvelopeWarning
+    from envelope.limits import from_options
 
     with ExitStack() as stack:
         if case is None:
@@ -38,9 +48,13 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
         else:
             path = case
         beam = api.load_case(path)
+        if sections is not None:
+            from envelope.sizing.sections import given
+
+            beam = given(beam, sections)
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", EnvelopeWarning)
-            result = api.analyse(beam)
+            result = api.analyse(beam, from_options(max_memory, max_seconds))
         for warning in caught:
             if issubclass(warning.category, EnvelopeWarning):
                 click.echo(f"warning: {path}: {warning.message}", err=True)

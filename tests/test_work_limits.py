@@ -1,0 +1,142 @@
+"""Work limits: a beam whose estimated memory or time exceeds the machine is refused
+before any work, naming the key that drives the size and the limit; options raise it.
+
+Regressions (small files that exhausted the machine with no refusal): 300 spans with
+``segments = 1000`` (6.4 GB, then MemoryError), 3000 spans (102 s, 5.7 GB), 10000 spans
+(MemoryError).  The estimate is checked against the peak memory of a real run (it must
+not be below it: the limit is only safe if the estimate is an upper bound).
+"""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from envelope import config
+from envelope.casefile import load_case
+from envelope.cli import main
+from envelope.limits import WorkLimits, check, estimate
+
+REPO = Path(__file__).resolve().parent.parent
+
+
+def beam_text(n: int, segments: int = 1, stations: int = 21) -> str:
+    """An invented beam of ``n`` equal 6 m spans, dead and live uniform loads."""
+    spans = "".join("[[spans]]\nlength = 6.0\n" for _ in range(n))
+    supports = "".join('[[supports]]\ntype = "pinned"\n' for _ in range(n + 1))
+    method = "segments" if segments > 1 else "code"
+    return (f'units = "SI"\n[section]\nE = 30000\nI = 8.0e9\n{spans}{supports}'
+            '[cases]\nD = { kind = "dead" }\nL = { kind = "live" }\n'
+            '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 8.0\n'
+            '[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = 5.0\n'
+            '[combinations]\nstrength = "asce7-lrfd"\nservice = "characteristic"\n'
+            f'[patterning]\nmethod = "{method}"\nsegments = {max(segments, 1)}\n'
+            f"[output]\nstations_per_span = {stations}\n")
+
+
+def write(tmp_path: Path, text: str, name: str = "big.toml") -> Path:
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def run(*args: str) -> tuple[int, str]:
+    result = CliRunner().invoke(main, list(args))
+    assert "Traceback" not in result.output
+    return result.exit_code, result.stderr
+
+
+@pytest.mark.parametrize(("n", "segments", "key"), [
+    (300, 1000, "patterning.segments"), (3000, 1, "spans"), (10000, 1, "spans")])
+def test_machine_sized_beams_are_refused_before_any_work(tmp_path: Path, n: int,
+                                                         segments: int, key: str) -> None:
+    case = write(tmp_path, beam_text(n, segments))
+    out = tmp_path / "out"
+    code, stderr = run("run", str(case), "-o", str(out))
+    assert code == 2
+    assert stderr.count("\n") == 1
+    assert stderr.startswith(f"error: {case}: {key}: the analysis would ")
+    assert "more than the limit of" in stderr and "raise the limit with --max-" in stderr
+    assert not out.exists()
+    code, stderr = run("check", str(case))
+    assert code == 2 and f"{key}: the analysis would" in stderr
+
+
+def test_many_stations_are_refused_under_a_time_limit_naming_the_key(tmp_path: Path) -> None:
+    case = write(tmp_path, beam_text(4, stations=100_001))
+    code, stderr = run("check", str(case), "--max-seconds", "10")
+    assert code == 2
+    assert stderr.startswith(f"error: {case}: output.stations_per_span: the analysis would "
+                             "take about ")
+    assert "more than the limit of 10 s" in stderr and "--max-seconds" in stderr
+
+
+def test_the_options_lower_and_raise_the_limits(tmp_path: Path) -> None:
+    case = write(tmp_path, beam_text(2))
+    assert run("check", str(case))[0] == 0
+    code, stderr = run("check", str(case), "--max-memory", "0.0001")
+    assert code == 2 and "more than the limit of 0.0001 GiB" in stderr
+    beam = load_case(case)
+    big = load_case(write(tmp_path, beam_text(300, 1000), "huge.toml"))
+    est = estimate(big)
+    with pytest.raises(Exception, match="--max-memory"):
+        check(big)
+    raised = WorkLimits(max_memory=2 * est.memory, max_seconds=2 * est.seconds)
+    assert check(big, raised) == est  # refused only by the limits, not by anything else
+    assert check(beam).memory < WorkLimits().memory()
+
+
+def test_a_refused_beam_in_a_batch_is_that_beams_failure(tmp_path: Path) -> None:
+    big = write(tmp_path, beam_text(300, 1000), "huge.toml")
+    small = write(tmp_path, beam_text(2), "small.toml")
+    out = tmp_path / "out"
+    code, _ = run("batch", str(big), str(small), "-o", str(out), "--workers", "1")
+    assert code == 2
+    assert (out / "small" / ".complete.json").is_file()
+    failures = (out / "_all" / "failures.csv").read_text(encoding="utf-8")
+    assert "patterning.segments: the analysis would need about" in failures
+    code, _ = run("batch", str(small), "-o", str(out), "--max-memory", "0.0001", "--force")
+    assert code == 2
+
+
+def test_the_counts_follow_the_case_file() -> None:
+    """Unit cases: each (case, span) pair that carries load, times the cells per span."""
+    import tomllib
+
+    from envelope.casefile import parse_case
+
+    beam = parse_case(tomllib.loads(beam_text(7, segments=3, stations=11)), "x.toml")
+    est = estimate(beam)
+    assert (est.spans, est.parts, est.units) == (7, 3, 2 * 7 * 3)
+    assert est.stations >= 7 * 11
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="reads /proc/self/status")
+@pytest.mark.parametrize(("n", "segments", "stations"), [(40, 20, 21), (120, 1, 41)])
+def test_the_memory_estimate_is_above_the_measured_peak(tmp_path: Path, n: int, segments: int,
+                                                         stations: int) -> None:
+    """The limit is only safe if the estimate bounds the real peak: measured here as the
+    peak resident memory of a process that reads, analyses and writes the beam."""
+    case = write(tmp_path, beam_text(n, segments, stations))
+    # VmHWM (peak resident set of this process image): ru_maxrss would carry the peak of
+    # the forking test process across the exec
+    code = ("import re\nfrom envelope import api\n"
+            f"b = api.load_case({str(case)!r})\n"
+            f"api.write(api.analyse(b), {str(tmp_path / 'out')!r})\n"
+            "text = open('/proc/self/status').read()\n"
+            "print(int(re.search(r'VmHWM:\\s+(\\d+) kB', text).group(1)) * 1024)")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          check=True, env={**os.environ, "PYTHONPATH": str(REPO)})
+    peak = int(proc.stdout.strip().splitlines()[-1])
+    assert estimate(load_case(case)).memory >= peak
+
+
+def test_the_default_memory_limit_is_a_share_of_the_machine() -> None:
+    from envelope.limits import machine_memory
+
+    assert WorkLimits().memory() == pytest.approx(config.WORK_MEMORY_SHARE * machine_memory())
