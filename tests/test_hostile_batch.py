@@ -261,11 +261,11 @@ def test_run_removes_its_files_when_the_disk_is_full(tmp_path: Path,
     real = store.write_parquet
     calls = []
 
-    def filling(path: Path, table: object, durable: bool = True) -> None:
+    def filling(path: Path, table: object, *args: object, **kwargs: object) -> None:
         calls.append(path)
         if len(calls) == 2:
             raise OSError(errno.ENOSPC, "No space left on device")
-        real(path, table, durable)
+        real(path, table, *args, **kwargs)
 
     monkeypatch.setattr(store, "write_parquet", filling)
     with pytest.raises(OutputError, match="No space left on device") as info:
