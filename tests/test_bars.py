@@ -62,13 +62,15 @@ def test_one_layer_least_area_at_least_the_required() -> None:
     assert out["fits"].all()
     assert (out["area"] >= need - 1e-9).all()
     # 1200 mm^2: one layer (5 H16 at most, 11 H12 in two layers is refused while one
-    # layer works); 4 H20 = 1257 scores 1257 * 1.10 = 1383 against 3 H25 = 1473 * 1.05
+    # layer works); 4 H20 = 1257 scores 1257 * 1.2 = 1508 against 3 H25 = 1473 * 1.1
+    # = 1620 and 2 H32 = 1608
     assert out["label"][0] == "4 H20" and out["layers"][0] == 1
     assert out["area"][0] == pytest.approx(4 * math.pi * 100)
     assert out["d"][0] == 540.0
     assert out["label"][1] == "" and out["area"][1] == 0.0
-    # 300 mm^2: 6 H8 = 302 scores 362, 4 H10 = 314 scores 346, 3 H12 = 339 scores 356
-    assert out["label"][2] == "4 H10"
+    # 300 mm^2: 6 H8 = 302 scores 422, 4 H10 = 314 scores 377, 3 H12 = 339 scores 373,
+    # 2 H16 = 402
+    assert out["label"][2] == "3 H12"
 
 
 def test_two_layers_reduce_d_and_recompute_the_steel() -> None:

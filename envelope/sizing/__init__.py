@@ -10,7 +10,10 @@ in^2/in); :func:`size_with_units` also names the unit of every column.  Rows: fo
 - concrete, EN 1992-1-1: :mod:`envelope.sizing.concrete_en`;
 - steel, AISC 360-22: :mod:`envelope.sizing.steel` (checks in
   :mod:`envelope.sizing.steel_checks`);
-- deflection limits for every material: :mod:`envelope.sizing.deflection` (on span rows);
+- concrete bars, stirrups, crack control and cracked, long-term and incremental
+  deflections with their code limits: :mod:`envelope.sizing.detailing`;
+- deflection limits of the analysed (gross) deflections: :mod:`envelope.sizing.deflection`
+  (on span rows; for steel they are the check);
 - hogging and sagging extents per span: :func:`extents` (on span rows).
 
 ``status`` is ``ok`` or every reason the row fails, each with the amount; ``note`` says
@@ -25,8 +28,8 @@ from envelope.errors import CaseError
 from envelope.results import Analysis
 from envelope.sizing import deflection
 from envelope.sizing.concrete import size_concrete
+from envelope.sizing.detailing import detail
 from envelope.sizing.extents import EXTENT_KEYS, extents
-from envelope.sizing.layout import Sized
 from envelope.sizing.steel import size_steel
 
 __all__ = ["extents", "size", "size_with_candidates", "size_with_units"]
@@ -38,28 +41,6 @@ COLUMN_UNITS = {"x_span": "length", "x": "length", "moment_design": "moment",
                 "deflection_live_allowed": "deflection",
                 "deflection_total_allowed": "deflection",
                 **{k: "length" for k in EXTENT_KEYS}}
-
-DEFLECTION_NOTE = ("deflections of the gross section as analysed (no cracking, creep or "
-                   "shrinkage)")
-
-
-def _deflection_failures(sized: Sized, defl: dict[str, np.ndarray], live: np.ndarray,
-                         total: np.ndarray, limits: dict[str, float], unit: str,
-                         factor: float) -> None:
-    """Concrete: the analysed deflections against their limits, on span rows."""
-    for i in np.flatnonzero(sized.rows.is_span):
-        j = int(sized.rows.span[i])
-        sized.notes[i].append(DEFLECTION_NOTE)
-        for kind, value, allowed, util in (
-                ("live-load", live[j], defl["allowed_live"][j], defl["utilisation_live"][j]),
-                ("total-load", total[j], defl["allowed_total"][j],
-                 defl["utilisation_total"][j])):
-            if util > 1.0:
-                limit = limits["live" if kind == "live-load" else "total"]
-                sized.failures[i].append(
-                    f"{kind} deflection {value * factor:.2f} {unit} exceeds span/{limit:g} = "
-                    f"{allowed * factor:.2f} {unit} by {100.0 * (util - 1.0):.1f}%")
-
 
 def size(analysis: Analysis) -> dict[str, np.ndarray]:
     """The sizing.parquet columns (see the module docstring); the beam must have a
@@ -94,9 +75,7 @@ def size_with_candidates(analysis: Analysis
     if design.material == "steel":
         sized = size_steel(analysis, defl)
     else:
-        sized = size_concrete(analysis)
-        _deflection_failures(sized, defl, live, total, limits, beam.units.labels["deflection"],
-                             factor)
+        sized = detail(analysis, size_concrete(analysis))
     rows = sized.rows
     n = rows.n
     mid = rows.is_span
@@ -109,9 +88,6 @@ def size_with_candidates(analysis: Analysis
                "deflection_total_allowed": defl["allowed_total"] * factor,
                **extents(analysis)}
     on_span = {k: np.where(mid, np.repeat(v, 3), np.nan) for k, v in by_span.items()}
-    if design.material != "steel":
-        on_span["utilisation_deflection"] = np.where(mid, np.repeat(defl["utilisation"], 3),
-                                                     np.nan)
     joint_x = np.asarray(beam.joint_x)
     out: dict[str, np.ndarray] = {
         "beam": np.full(n, beam.id, dtype=object),

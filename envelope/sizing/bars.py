@@ -45,7 +45,7 @@ METRIC_STIRRUPS = (8, 10, 12)
 MIN_BARS = 2
 #: Each bar beyond the fewest adds this share to an arrangement's area when arrangements
 #: are compared: fewer, larger bars where the areas are close (common practice).
-BAR_WEIGHT = 0.05
+BAR_WEIGHT = 0.10
 #: Largest number of bars tried per layer.
 MAX_PER_LAYER = 12
 #: Stirrup spacing is rounded down to this step (section units), SI mm and US in.
@@ -144,14 +144,21 @@ def per_layer(width: np.ndarray | float, side: np.ndarray | float, db: np.ndarra
     return np.minimum(n, MAX_PER_LAYER).astype(int)
 
 
+Acceptable = Callable[[float, np.ndarray, np.ndarray, np.ndarray], np.ndarray]
+
+
 def choose(required: Callable[[np.ndarray], np.ndarray], d: np.ndarray, width: np.ndarray,
            side: np.ndarray | float, as_max: np.ndarray, bars: BarSet, code: str,
-           aggregate: float, system: str) -> dict[str, np.ndarray]:
+           aggregate: float, system: str,
+           acceptable: Acceptable | None = None) -> dict[str, np.ndarray]:
     """Bars for each section: of the arrangements that give at least the steel required
     (``required(d)``, section units, recomputed at the depth the bars give) and at most
     ``as_max``, one layer where any fits, else two; then the least area, each bar beyond
     two weighing :data:`BAR_WEIGHT` more.  Sections needing no steel (required 0 or NaN)
-    get none.
+    get none.  ``acceptable(db, spacing, area, d)`` (optional) keeps only the
+    arrangements it accepts (crack control): bar diameter, centre-to-centre spacing of
+    the layer nearest the tension face, area provided and d, per section; where it
+    accepts none, the arrangement is chosen without it (and the check reports it).
 
     Returns ``index`` (bar size, -1 for none), ``count``, ``layers`` (0, 1 or 2),
     ``area`` (provided), ``d`` (to the centroid of the bars), ``label`` (``"4 #8"``,
@@ -166,6 +173,9 @@ def choose(required: Callable[[np.ndarray], np.ndarray], d: np.ndarray, width: n
     wanted = np.isfinite(need0) & (need0 > 0)
     best_area = np.full(n_sec, np.inf)
     best_score = np.full(n_sec, np.inf)
+    fb = {"score": np.full(n_sec, np.inf), "area": np.full(n_sec, np.inf),
+          "index": np.full(n_sec, -1), "count": np.zeros(n_sec, int),
+          "layers": np.zeros(n_sec, int), "d": d.copy()}
     best = {"index": np.full(n_sec, -1), "count": np.zeros(n_sec, int),
             "layers": np.zeros(n_sec, int), "d": d.copy()}
     for k in range(len(bars.names)):
@@ -192,6 +202,20 @@ def choose(required: Callable[[np.ndarray], np.ndarray], d: np.ndarray, width: n
         area = count * ab
         ok = (one | two) & (area <= as_max * (1 + 1e-12))
         layers = np.where(one, 1, 2)
+        if acceptable is not None:
+            first = np.minimum(count, fit1)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                pitch = np.where(first > 1, (width - 2.0 * side) / (first - 1), 0.0)
+            good = np.asarray(acceptable(float(db), pitch, area, np.where(one, d, d2)))
+            fallback = ok & ~good
+            ok = ok & good
+            fb_score = area * (1.0 + BAR_WEIGHT * (count - MIN_BARS))
+            fb_better = fallback & ((fb["layers"] == 0) | (layers < fb["layers"])
+                                    | ((layers == fb["layers"]) & (fb_score < fb["score"])))
+            for key, value in (("score", fb_score), ("area", area), ("index", k),
+                               ("count", count), ("layers", layers),
+                               ("d", np.where(one, d, d2))):
+                fb[key] = np.where(fb_better, value, fb[key])
         score = area * (1.0 + BAR_WEIGHT * (count - MIN_BARS))
         better = ok & ((best["layers"] == 0) | (layers < best["layers"])
                        | ((layers == best["layers"]) & (score < best_score)))
@@ -201,6 +225,10 @@ def choose(required: Callable[[np.ndarray], np.ndarray], d: np.ndarray, width: n
         best["count"] = np.where(better, count, best["count"])
         best["layers"] = np.where(better, layers, best["layers"])
         best["d"] = np.where(better, np.where(one, d, d2), best["d"])
+    use_fb = (best["index"] < 0) & (fb["index"] >= 0)
+    for key in ("index", "count", "layers", "d"):
+        best[key] = np.where(use_fb, fb[key], best[key])
+    best_area = np.where(use_fb, fb["area"], best_area)
     fits = ~wanted | (best["index"] >= 0)
     area = np.where(best["index"] >= 0, best_area, 0.0)
     label = np.array([f"{c} {bars.names[i]}" if i >= 0 else ""

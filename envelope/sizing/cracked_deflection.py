@@ -1,0 +1,366 @@
+"""Cracked, long-term and incremental deflection of each span of a concrete beam, from
+the service moment diagrams of the analysis (ACI 318-19 24.2; EN 1992-1-1 7.4.3).
+
+For each span the service arrangement that gives the span's largest analysed deflection
+is taken (its coefficients over the unit cases, as the envelope found it), and from it
+three moment diagrams along the span: the whole arrangement (``total``), its permanent
+part (``permanent``) and its sustained part (``sustained``: permanent cases at their
+factor, each variable case at its sustained fraction, ``[design] long_term.sustained``;
+for EN 1992-1-1 the default fraction is psi_2 of EN 1990 Table A1.1, so the sustained
+diagram is the quasi-permanent combination; for ACI 318-19 the default is 0).  Each
+diagram's curvature, M / (E I) with the cracked stiffness of the steel provided, is
+integrated along the span (:mod:`envelope.sizing.curvature`) between the analysed
+support deflections; a cantilever starts from the slope of its neighbouring span (0 at
+a support fixed against rotation).  The moments are those of the elastic analysis
+(common practice: the redistribution of moments by cracking is not followed).
+
+ACI 318-19: each diagram has its own Ie (Table 24.2.3.5) per region: the sagging part
+of the span with Ma its largest sagging moment and the bottom steel, each hogging end
+with Ma its largest hogging moment and the top steel at that face (Mcr = fr Ig / yt,
+19.2.3.1; Ig of the gross section; Icr of the cracked transformed section, n = Es/Ec).
+Immediate live = total - permanent; long-term = total + lambda_Delta x sustained
+(24.2.4.1.1, rho' = 0 taken: compression steel not counted, on the safe side);
+incremental = lambda_Delta x sustained + immediate live (the deflection after the
+nonstructural elements are attached, Table 24.2.2 note, common practice).
+
+EN 1992-1-1: at every point the curvature interpolates between the uncracked and the
+cracked section with zeta of eq. 7.19 (Mcr = fctm Ig / yt): immediate = the total
+diagram at Ecm with beta = 1; long-term = the sustained (quasi-permanent) diagram at
+Ec,eff = Ecm / (1 + phi) with beta = 0.5 (7.4.3(5)); incremental = long-term - the
+permanent diagram at Ecm with beta = 1 (the part after construction, 7.4.1(5)).
+Shrinkage curvature (7.4.3(6)) is not included; the uncracked section is the gross
+concrete section.
+
+Everything here is in the design base units of :mod:`envelope.sizing.layout` (N, mm,
+MPa; lb, in, psi for ACI in US units); results come back in section units (mm / in).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from envelope import config
+from envelope.analysis import Solved
+from envelope.combinations import PERMANENT_KINDS
+from envelope.enveloper import governing_coefficients, reduce
+from envelope.recovery import evaluate_some, make_points
+from envelope.sizing import cracked, curvature
+
+#: psi_2 of EN 1990 Table A1.1 (recommended values, from memory): the quasi-permanent
+#: share of each variable action (by imposed-load category, snow below 1000 m, wind).
+PSI_2: dict[str, float] = {"A": 0.3, "B": 0.3, "C": 0.6, "D": 0.6, "E": 0.8, "F": 0.6,
+                           "G": 0.3, "H": 0.0, "snow": 0.0, "wind": 0.0, "rain": 0.0}
+DEFAULT_CATEGORY = {"live": "B", "roof_live": "H"}
+
+
+@dataclass(frozen=True, slots=True)
+class Inputs:
+    """What the deflection needs from ``[design]`` and the sizing, in base units.
+
+    Steel per span (arrays of n_spans): tension steel provided and its depth at the
+    sagging section (bottom) and at each face (top); 0 where none is provided."""
+
+    code: str
+    system: str           # unit system of the ACI base units ("SI" or "US")
+    bw: float
+    h: float
+    bf: float             # flange width (= bw for a rectangle)
+    hf: float             # flange depth (0 for a rectangle)
+    fc: float             # f'c or fck
+    as_bottom: np.ndarray
+    d_bottom: np.ndarray
+    as_top_left: np.ndarray
+    d_top_left: np.ndarray
+    as_top_right: np.ndarray
+    d_top_right: np.ndarray
+    sustained: dict[str, float]  # case name -> sustained fraction (given ones)
+    months: float
+    creep: float
+    to_base_length: float     # consistent length (m, ft) -> base length (mm, in)
+    to_base_moment: float     # consistent moment -> base moment (N*mm, lb*in)
+    to_section: float         # base length -> section length (mm / in) for the results
+
+
+def sustained_fractions(solved: Solved, code: str, sustained: dict[str, float]
+                        ) -> np.ndarray:
+    """Per load case of the beam: 1 for permanent kinds, else the given fraction or the
+    code default (psi_2 for EN 1992-1-1, 0 for ACI 318-19)."""
+    out = []
+    for case in solved.beam.cases:
+        if case.kind in PERMANENT_KINDS:
+            out.append(1.0)
+        elif case.name in sustained:
+            out.append(float(sustained[case.name]))
+        elif code == "en1992-1-1":
+            key = case.category or DEFAULT_CATEGORY.get(case.kind, case.kind)
+            out.append(PSI_2.get(key, PSI_2.get(case.kind, 0.0)))
+        else:
+            out.append(0.0)
+    return np.array(out)
+
+
+def _grid(solved: Solved, span: int) -> np.ndarray:
+    beam = solved.beam
+    length = beam.spans[span].length
+    xs = [np.linspace(0.0, length, config.DEFLECTION_GRID + 1)]
+    xs.append(np.array([ld.at for ld in beam.loads
+                        if getattr(ld, "type", "") == "point" and ld.span == span
+                        and ld.at is not None], dtype=float))
+    x = np.unique(np.clip(np.concatenate(xs), 0.0, length))
+    return x
+
+
+def _diagrams(solved: Solved, span: int, x: np.ndarray, coef: np.ndarray
+              ) -> tuple[np.ndarray, np.ndarray]:
+    """Moments at ``x`` (n_x, n_diagrams) and deflections at the two span ends (2,
+    n_diagrams), consistent units, for unit-case coefficients ``coef`` (units, diag)."""
+    beam = solved.beam
+    n = x.size
+    pts = make_points(beam, np.full(n + 2, span),
+                      np.r_[x, 0.0, beam.spans[span].length],
+                      np.r_[np.ones(n, bool), True, False])
+    r = evaluate_some(solved.mesh, solved.units, solved.solution, pts,
+                      ("moment", "deflection"))
+    return r["moment"][:n] @ coef, r["deflection"][n:] @ coef
+
+
+def _section(inputs: Inputs, n_modular: float | np.ndarray) -> dict[str, np.ndarray]:
+    """Gross and cracked properties per span: sagging (bottom steel, flange in
+    compression) and hogging at each end (top steel, web in compression)."""
+    g = cracked.gross(inputs.bw, inputs.h, inputs.bf, inputs.hf)
+    sag = cracked.cracked(inputs.bw, inputs.bf, inputs.hf, inputs.as_bottom,
+                          inputs.d_bottom, n_modular)
+    left = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_left,
+                           inputs.d_top_left, n_modular)
+    right = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_right,
+                            inputs.d_top_right, n_modular)
+    return {"ig": g["ig"], "yt_sag": g["yt"], "yt_hog": g["y_comp"],
+            "icr_sag": sag["icr"], "icr_left": left["icr"], "icr_right": right["icr"]}
+
+
+def _regions(x: np.ndarray, length: float, m: np.ndarray) -> tuple[np.ndarray, ...]:
+    """Masks (n_x, n_diag): sagging, hogging nearer the left end, nearer the right."""
+    sag = m >= 0.0
+    near_left = (x < length / 2.0)[:, None]
+    return sag, ~sag & near_left, ~sag & ~near_left
+
+
+def _flex_aci(inputs: Inputs, props: dict[str, np.ndarray], j: int, x: np.ndarray,
+              length: float, m: np.ndarray, ec: float, fr: float
+              ) -> tuple[np.ndarray, np.ndarray]:
+    """1/(Ec Ie) at every point of every diagram (Table 24.2.3.5 per region), and
+    whether a cracked region has no steel to compute Icr with."""
+    ig = float(props["ig"])
+    out = np.full(m.shape, 1.0 / (ec * ig))
+    missing = np.zeros(m.shape[1], dtype=bool)
+    masks = _regions(x, length, m)
+    for mask, yt, icr in zip(masks, (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
+                             (props["icr_sag"][j], props["icr_left"][j],
+                              props["icr_right"][j]), strict=True):
+        ma = np.max(np.where(mask, np.abs(m), 0.0), axis=0)
+        mcr = fr * ig / float(yt)
+        cracks = ma > 2.0 / 3.0 * mcr
+        if not np.isfinite(icr):
+            missing |= cracks & mask.any(axis=0)
+            ie = np.where(cracks, np.nan, ig)
+        else:
+            ie = cracked.ie_aci(ma, mcr, ig, float(icr))
+        out = np.where(mask, 1.0 / (ec * ie)[None, :], out)
+    return out, missing
+
+
+def _flex_en(inputs: Inputs, j: int, x: np.ndarray, length: float, m: np.ndarray,
+             e: float, beta: float, fctm: float) -> tuple[np.ndarray, np.ndarray]:
+    """Curvature per unit moment by eq. 7.18/7.19 at every point (modular ratio
+    Es / E), and whether a cracked point has no steel."""
+    props = _section(inputs, cracked.ES["SI"] / e)
+    ig = float(props["ig"])
+    out = np.empty(m.shape)
+    missing = np.zeros(m.shape[1], dtype=bool)
+    for mask, yt, icr in zip(_regions(x, length, m),
+                             (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
+                             (props["icr_sag"][j], props["icr_left"][j],
+                              props["icr_right"][j]), strict=True):
+        mcr = fctm * ig / float(yt)
+        zeta = cracked.zeta_en(m, mcr, beta)
+        if not np.isfinite(icr):
+            missing |= np.any(mask & (zeta > 0), axis=0)
+            flex = np.where(zeta > 0, np.nan, 1.0 / (e * ig))
+        else:
+            flex = cracked.flexibility_en(zeta, e, ig, float(icr))
+        out = np.where(mask, flex, out)
+    return out, missing
+
+
+def _kind(solved: Solved, j: int) -> str:
+    """"span" (supported at both ends), "cantilever-left" / "cantilever-right" (free at
+    that end), or "other" (not handled: a hinge inside, or no support at either end)."""
+    beam = solved.beam
+    if getattr(beam.spans[j], "hinges", ()):
+        return "other"
+    left = beam.supports[j].restrains_vertical
+    right = beam.supports[j + 1].restrains_vertical
+    if left and right:
+        return "span"
+    if right and not left and j == 0:
+        return "cantilever-left"
+    if left and not right and j == beam.n_spans - 1:
+        return "cantilever-right"
+    return "other"
+
+
+class _Spans:
+    """Deflections of the diagrams of one arrangement on any span of the beam."""
+
+    def __init__(self, solved: Solved, inputs: Inputs, coef: np.ndarray) -> None:
+        self.solved, self.inputs, self.coef = solved, inputs, coef
+        code = inputs.code
+        if code == "aci318-19":
+            self.ec = float(cracked.ec_aci(inputs.fc, inputs.system))
+            self.fr = float(cracked.fr_aci(inputs.fc, inputs.system))
+            self.props = _section(inputs, cracked.ES[inputs.system] / self.ec)
+        else:
+            from envelope.sizing.concrete_en import fctm
+            self.ecm = float(cracked.ecm_en(inputs.fc))
+            self.fctm = float(fctm(inputs.fc))
+
+    def deflect(self, j: int, stages: list[tuple[int, float, float]],
+                slope_end: str | None = None
+                ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """Deflections (base units) on span ``j`` of the diagrams ``stages`` (diagram
+        column, E factor (EN: creep coefficient; ACI unused), beta), the grid, the end
+        slopes (2, n_stages) and a mask of stages that could not be computed."""
+        solved, inputs = self.solved, self.inputs
+        length_c = solved.beam.spans[j].length
+        x_c = _grid(solved, j)
+        cols = [s[0] for s in stages]
+        m_c, w_ends = _diagrams(solved, j, x_c, self.coef[:, cols])
+        x = x_c * inputs.to_base_length
+        length = length_c * inputs.to_base_length
+        m = m_c * inputs.to_base_moment
+        if inputs.code == "aci318-19":
+            flex, missing = _flex_aci(inputs, self.props, j, x, length, m, self.ec, self.fr)
+        else:
+            flex = np.empty(m.shape)
+            missing = np.zeros(len(stages), dtype=bool)
+            for k, (_, phi, beta) in enumerate(stages):
+                f, miss = _flex_en(inputs, j, x, length, m[:, k:k + 1],
+                                   float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm)
+                flex[:, k:k + 1], missing[k] = f, miss[0]
+        kappa = m * flex
+        w_ends = w_ends * inputs.to_base_length
+        out = curvature.simple_span(x, kappa, w_ends[0], w_ends[1])
+        slopes = np.vstack([out["slope_left"], out["slope_right"]])
+        return out["w"], x, slopes, missing
+
+    def cantilever(self, j: int, stages: list[tuple[int, float, float]], root_left: bool
+                   ) -> tuple[np.ndarray, np.ndarray | None]:
+        """Cantilever ``j`` with its root at the left (``root_left``) or right end."""
+        solved, inputs = self.solved, self.inputs
+        beam = solved.beam
+        x_c = _grid(solved, j)
+        cols = [s[0] for s in stages]
+        m_c, w_ends = _diagrams(solved, j, x_c, self.coef[:, cols])
+        x = x_c * inputs.to_base_length
+        length = beam.spans[j].length * inputs.to_base_length
+        m = m_c * inputs.to_base_moment
+        if inputs.code == "aci318-19":
+            flex, missing = _flex_aci(inputs, self.props, j, x, length, m, self.ec, self.fr)
+        else:
+            flex = np.empty(m.shape)
+            missing = np.zeros(len(stages), dtype=bool)
+            for k, (_, phi, beta) in enumerate(stages):
+                f, miss = _flex_en(inputs, j, x, length, m[:, k:k + 1],
+                                   float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm)
+                flex[:, k:k + 1], missing[k] = f, miss[0]
+        root = beam.supports[j if root_left else j + 1]
+        # the neighbour shares the root: its right end when the root is the
+        # cantilever's left end, and the reverse
+        neighbour = j - 1 if root_left else j + 1
+        if np.isinf(root.k_rotation):
+            slope = np.zeros(len(stages))
+        elif 0 <= neighbour < beam.n_spans and _kind(solved, neighbour) == "span":
+            _, _, slopes, miss = self.deflect(neighbour, stages)
+            missing |= miss
+            slope = slopes[1] if root_left else slopes[0]
+        else:
+            return np.full((x.size, len(stages)), np.nan), None
+        w_root = w_ends[0 if root_left else 1] * inputs.to_base_length
+        w = curvature.cantilever(x, m * flex, root_left, w_root, slope)
+        return np.where(missing[None, :], np.nan, w), missing
+
+
+def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
+    """Per span (arrays of n_spans, section units): ``immediate``, ``immediate_live``
+    (ACI; NaN for EN), ``long_term``, ``incremental``, ``lambda_delta`` (ACI), and per
+    span lists of ``notes`` and ``failures``."""
+    beam = solved.beam
+    n = beam.n_spans
+    nan = np.full(n, np.nan)
+    res = {k: nan.copy() for k in ("immediate", "immediate_live", "long_term",
+                                   "incremental", "lambda_delta")}
+    notes: list[list[str]] = [[] for _ in range(n)]
+    failures: list[list[str]] = [[] for _ in range(n)]
+    cs = solved.service
+    if cs.is_empty:
+        for j in range(n):
+            failures[j].append("cracked deflection not checked: no service combinations")
+        return {**res, "notes": notes, "failures": failures}
+    frac = sustained_fractions(solved, inputs.code, inputs.sustained)
+    unit_case = solved.units.case
+    permanent = np.array([c.kind in PERMANENT_KINDS for c in beam.cases])[unit_case]
+    aci = inputs.code == "aci318-19"
+    lam = float(cracked.lambda_delta(inputs.months, 0.0)) if aci else np.nan
+    for j in range(n):
+        kind = _kind(solved, j)
+        if kind == "other":
+            failures[j].append("cracked deflection not computed for this span (an internal "
+                               "hinge, or no support at an end that is not a cantilever "
+                               "tip): check it by other means")
+            continue
+        x_c = _grid(solved, j)
+        pts = make_points(beam, np.full(x_c.size, j), x_c)
+        r_def = evaluate_some(solved.mesh, solved.units, solved.solution, pts,
+                              ("deflection",))["deflection"]
+        env = reduce(r_def, cs, labels=False)
+        k = int(np.argmax(env.max))
+        coef_t = governing_coefficients(r_def[k:k + 1], cs)[0]
+        loaded = coef_t != 0.0
+        coef_p = np.where(permanent, coef_t, 0.0)
+        coef_s = np.where(permanent, coef_t, np.where(loaded, frac[unit_case], 0.0))
+        coef = np.c_[coef_t, coef_p, coef_s]
+        spans = _Spans(solved, inputs, coef)
+        if aci:
+            stages = [(0, 0.0, 1.0), (1, 0.0, 1.0), (2, 0.0, 1.0)]
+        else:
+            stages = [(0, 0.0, cracked.BETA_SHORT), (1, 0.0, cracked.BETA_SHORT),
+                      (2, inputs.creep, cracked.BETA_SUSTAINED)]
+        if kind == "span":
+            w, _, _, missing = spans.deflect(j, stages)
+        else:
+            w, missing = spans.cantilever(j, stages, root_left=(kind == "cantilever-right"))
+            if missing is None:
+                failures[j].append("cracked deflection not computed for this cantilever: "
+                                   "its root slope is unknown (no neighbouring span "
+                                   "supported at both ends)")
+                continue
+        if missing.any():
+            failures[j].append("cracked deflection not computed: the service moment cracks "
+                               "a section where no tension steel is provided")
+            continue
+        w = w * inputs.to_section
+        if aci:
+            t, p, s = w[:, 0], w[:, 1], w[:, 2]
+            res["immediate"][j] = np.max(t)
+            res["immediate_live"][j] = np.max(t - p)
+            res["long_term"][j] = np.max(t + lam * s)
+            res["incremental"][j] = np.max(lam * s + t - p)
+            res["lambda_delta"][j] = lam
+        else:
+            t, p, s = w[:, 0], w[:, 1], w[:, 2]
+            res["immediate"][j] = np.max(t)
+            res["long_term"][j] = np.max(s)
+            res["incremental"][j] = np.max(s - p)
+    return {**res, "notes": notes, "failures": failures}

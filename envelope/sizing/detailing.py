@@ -1,0 +1,378 @@
+"""From steel areas to a concrete design: bars, stirrups, crack control and the cracked,
+long-term and incremental deflections, added to the sizing of
+:mod:`envelope.sizing.concrete`.
+
+- bars at every design section (:mod:`envelope.sizing.bars`): the steel required is
+  recomputed at the depth the bars give (one or two layers) and the bars provide it;
+  ``d`` becomes the depth to the centroid of the bars provided;
+- stirrups at the ends from the Av/s required (ACI 318-19 9.7.6.2.3 / EN 1992-1-1
+  9.2.2(8) for the lateral spacing of the legs);
+- crack control (:mod:`envelope.sizing.crack_control`): ACI 318-19 24.3.2 with
+  fs = (2/3) fy; EN 1992-1-1 7.3.3 with the steel stress of the cracked section under
+  the largest sustained (quasi-permanent) moment at the section, every subset of the
+  variable cells considered;
+- deflections per span (:mod:`envelope.sizing.cracked_deflection`) and their limits:
+  ACI 318-19 Table 24.2.2 (immediate live span/360 for a floor, span/180 for a roof;
+  after attachment of nonstructural elements span/480 where they are likely to be
+  damaged, span/240 where not); EN 1992-1-1 7.4.1(4) span/250 long-term under the
+  quasi-permanent load and 7.4.1(5) span/500 after construction.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from envelope.combinations import PERMANENT_KINDS
+from envelope.recovery import evaluate_some, make_points
+from envelope.results import Analysis
+from envelope.sizing import bars as bar_mod
+from envelope.sizing import concrete_aci as aci
+from envelope.sizing import concrete_en as en
+from envelope.sizing import crack_control, cracked
+from envelope.sizing import cracked_deflection as cdefl
+from envelope.sizing.deflection import ratio_lengths
+from envelope.sizing.layout import ACI_SCALES, EN_SCALES, SECTION_UNITS, Rows, Sized
+
+#: Table 24.2.2 denominators by ``member`` and by ``nonstructural``.
+ACI_LIVE = {"floor": 360.0, "roof": 180.0}
+ACI_INCREMENTAL = {"damage-likely": 480.0, "damage-unlikely": 240.0}
+#: EN 1992-1-1 7.4.1(4) and (5), recommended.
+EN_LONG_TERM = 250.0
+EN_INCREMENTAL = 500.0
+#: Defaults of ``[design]``: aggregate size (mm), load duration, creep coefficient,
+#: crack width (EN, Table 7.1N XC2-XC4, mm).
+AGGREGATE_MM = 20.0
+MONTHS = 60.0
+CREEP = 2.0
+CRACK_WIDTH_MM = 0.3
+
+
+@dataclass(frozen=True, slots=True)
+class Params:
+    """The ``[design]`` values detailing reads, defaults filled in (section units)."""
+
+    code: str
+    bars: Any
+    aggregate: float
+    sustained: dict[str, float] = field(default_factory=dict)
+    months: float = MONTHS
+    creep: float = CREEP
+    crack_width: float = CRACK_WIDTH_MM
+    member: str = "floor"
+    nonstructural: str = "damage-likely"
+    limits: dict[str, float] = field(default_factory=dict)
+    given: frozenset[str] = frozenset()
+
+
+def params(design: Any, system: str) -> Params:
+    """:class:`Params` from the ``[design]`` table (a mapping of the reader's values)."""
+    get = design.get if hasattr(design, "get") else (lambda k, v=None: getattr(design, k, v))
+    code = get("code")
+    bars = get("bars") or ("US" if code == "aci318-19" else "metric")
+    mm = 1.0 if system == "SI" else 1.0 / bar_mod.IN_MM
+    long_term = get("long_term") or {}
+    limits = dict(get("deflection_limits") or {})
+    given = frozenset(k for k in ("long_term", "bars", "aggregate") if get(k) is not None)
+    return Params(code=code, bars=bars, aggregate=float(get("aggregate") or AGGREGATE_MM * mm),
+                  sustained=dict(long_term.get("sustained", {})),
+                  months=float(long_term.get("months", MONTHS)),
+                  creep=float(long_term.get("creep", CREEP)),
+                  crack_width=float(get("crack_width") or CRACK_WIDTH_MM),
+                  member=get("member") or "floor",
+                  nonstructural=get("nonstructural") or "damage-likely",
+                  limits=limits, given=given)
+
+
+def _required(analysis: Analysis, p: Params, moment: np.ndarray, bw: float,
+              bf: np.ndarray, hf: np.ndarray) -> Any:
+    """required(d): tension steel to provide (section units) at depths d (section
+    units), by the same sequence as :mod:`envelope.sizing.concrete`."""
+    design = analysis.beam.design
+    system = analysis.beam.units.name
+    fc_s, fy_s = float(design["fc"]), float(design["fy"])
+    if p.code == "aci318-19":
+        s = ACI_SCALES[system]
+        fc, fy = fc_s * s.stress, fy_s * s.stress
+        mu = np.abs(moment) * s.moment
+
+        def need(d: np.ndarray) -> np.ndarray:
+            fl = aci.flexure(mu, bw, d, fc, fy, system, bf, hf)
+            as_min = np.where(moment != 0.0, aci.as_min(bw, d, fc, fy, system), 0.0)
+            return aci.as_design(fl["as_required"], as_min)
+        return need
+    s = EN_SCALES[system]
+    L = s.length
+    fck, fyk = fc_s * s.stress, fy_s * s.stress
+    m = np.abs(moment) * s.moment
+
+    def need_en(d: np.ndarray) -> np.ndarray:
+        dm = d * L
+        width = bf * L
+        fl = en.flexure(m, width, dm, fck, fyk)
+        inside = 0.8 * fl["x"] <= hf * L
+        width = np.where((bf > bw) & ~inside, bw * L, width)
+        fl = en.flexure(m, width, dm, fck, fyk)
+        as_min = np.where(moment != 0.0, en.as_min(bw * L, dm, fck, fyk), 0.0)
+        req = fl["as_required"]
+        out = np.where(req > 0, np.maximum(req, as_min), np.where(req == 0, 0.0, np.nan))
+        return out * s.area
+    return need_en
+
+
+def _sustained_moment(analysis: Analysis, rows: Rows, p: Params) -> np.ndarray:
+    """Largest sustained moment magnitude at each design row of the sign of its design
+    moment (consistent units): permanent cases, then every variable unit case at its
+    sustained fraction where it adds (every subset of cells)."""
+    solved = analysis.solved
+    pts = make_points(solved.beam, rows.span, np.nan_to_num(rows.x_span),
+                      rows.section != "right")
+    r = evaluate_some(solved.mesh, solved.units, solved.solution, pts, ("moment",))["moment"]
+    frac = cdefl.sustained_fractions(solved, p.code, p.sustained)
+    unit_case = solved.units.case
+    permanent = np.array([c.kind in PERMANENT_KINDS for c in solved.beam.cases])[unit_case]
+    sign = np.where(rows.moment >= 0.0, 1.0, -1.0)[:, None]
+    fixed = (r * permanent).sum(axis=1)
+    var = np.where(permanent, 0.0, r * frac[unit_case])
+    total = sign[:, 0] * fixed + np.maximum(sign * var, 0.0).sum(axis=1)
+    return np.maximum(total, 0.0)
+
+
+def detail(analysis: Analysis, sized: Sized) -> Sized:
+    """The sizing with bars, stirrups, crack control and deflections added (see the
+    module docstring)."""
+    beam = analysis.beam
+    design = beam.design
+    assert design is not None
+    system = beam.units.name
+    p = params(design, system)
+    rows = sized.rows
+    cols = dict(sized.columns)
+    units = dict(sized.units)
+    notes, failures = sized.notes, sized.failures
+    su = SECTION_UNITS[system]
+    bw, h = float(design["b"]), float(design["h"])
+    side = float(design["cover_to_bar_centre"])
+    tee = "flange_width" in design
+    sag = rows.is_span & tee
+    bf = np.where(sag, float(design.get("flange_width", bw)), bw)
+    hf = np.where(sag, float(design.get("flange_depth", 0.0)), 0.0)
+    d0 = np.asarray(cols["d"], dtype=float)
+    try:
+        bar_set = bar_mod.bar_set(p.bars, system)
+    except ValueError as exc:  # the reader checks the key; this is a last guard
+        raise ValueError(f"design.bars: {exc}") from None
+    need = _required(analysis, p, rows.moment, bw, bf, hf)
+    as_max = np.asarray(cols["as_max"], dtype=float)
+    crack = _crack_rule(analysis, rows, p, bw, h, bf, hf, side)
+    chosen = bar_mod.choose(need, d0, np.full(rows.n, bw), side, as_max, bar_set, p.code,
+                            p.aggregate, system, lambda *a: crack(*a)["ok"])
+    for i in range(rows.n):
+        if not chosen["fits"][i]:
+            failures[i].append(
+                f"no arrangement of the bar set ({', '.join(bar_set.names)}) gives the "
+                f"steel required in one or two layers of a {bw:g} {su['length']} web "
+                f"within the maximum (clear spacing {_spacing_clause(p.code)}, aggregate "
+                f"{p.aggregate:g} {su['length']}); widen the section or allow larger bars")
+        elif chosen["layers"][i] == 2:
+            notes[i].append(f"two layers of bars: d = {chosen['d'][i]:.4g} {su['length']} "
+                            f"to their centroid")
+    cols["bars"] = chosen["label"]
+    cols["as_provided"] = chosen["area"]
+    cols["bar_layers"] = chosen["layers"]
+    cols["d"] = np.where(chosen["index"] >= 0, chosen["d"], d0)
+    units["as_provided"] = su["area"]
+
+    # stirrups on the end rows
+    ends = rows.is_end
+    av_s = np.where(ends, np.asarray(cols["av_over_s_required"], float), np.nan)
+    s_max = np.asarray(cols["s_max"], float)
+    mm = 1.0 if system == "SI" else 1.0 / bar_mod.IN_MM
+    d_now = np.asarray(cols["d"], float)
+    if p.code == "aci318-19":
+        legs_max = np.minimum(d_now, 600.0 * mm if system == "SI" else 24.0)
+    else:
+        legs_max = np.minimum(0.75 * d_now, 600.0 * mm)
+    st = bar_mod.stirrups(av_s, np.where(np.isfinite(s_max), s_max, 0.75 * d_now),
+                          np.full(rows.n, bw), d_now, side, legs_max,
+                          bar_mod.stirrup_set(bar_set, system), system)
+    cols["stirrups"] = np.where(ends, st["label"], "").astype(object)
+    for i in np.flatnonzero(ends & ~st["fits"]):
+        failures[i].append("no stirrup arrangement of the set gives the Av/s required "
+                           "at 75 mm / 3 in spacing or more; widen the section")
+
+    # deflections per span
+    inputs = _inputs(analysis, p, cols, bw, h, bf, hf)
+    defl = cdefl.span_deflections(analysis.solved, inputs)
+    _crack(analysis, rows, p, cols, units, failures, chosen, side, crack)
+    _deflection_columns(analysis, p, defl, cols, units, notes, failures)
+    if p.code == "aci318-19" and "long_term" not in p.given:
+        for i in np.flatnonzero(rows.is_span):
+            notes[i].append("no live load taken as sustained (give long_term.sustained)")
+    return Sized(rows, cols, units, notes, failures)
+
+
+def _spacing_clause(code: str) -> str:
+    return "ACI 318-19 25.2.1" if code == "aci318-19" else "EN 1992-1-1 8.2(2)"
+
+
+def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: float,
+            h: float, bf: np.ndarray, hf: np.ndarray) -> cdefl.Inputs:
+    beam = analysis.beam
+    system = beam.units.name
+    s = ACI_SCALES[system] if p.code == "aci318-19" else EN_SCALES[system]
+    L = s.length
+    area = np.asarray(cols["as_provided"], float) / s.area  # -> base area
+    d = np.asarray(cols["d"], float) * L
+    n = beam.n_spans
+    left, mid, right = np.arange(n) * 3, np.arange(n) * 3 + 1, np.arange(n) * 3 + 2
+    flange_w = float(np.max(bf))
+    flange_d = float(np.max(hf))
+    to_base_length = 1.0 / beam.units.to_consistent("deflection") * L
+    return cdefl.Inputs(
+        code=p.code, system=system, bw=bw * L, h=h * L, bf=flange_w * L, hf=flange_d * L,
+        fc=float(beam.design["fc"]) * s.stress,
+        as_bottom=area[mid], d_bottom=d[mid], as_top_left=area[left], d_top_left=d[left],
+        as_top_right=area[right], d_top_right=d[right], sustained=p.sustained,
+        months=p.months, creep=p.creep, to_base_length=to_base_length,
+        to_base_moment=s.moment, to_section=1.0 / L)
+
+
+def _crack_rule(analysis: Analysis, rows: Rows, p: Params, bw: float, h: float,
+                bf: np.ndarray, hf: np.ndarray, side: float) -> Any:
+    """rule(db, spacing, area, d) -> ``ok`` per section and the limits, in section units:
+    ACI 318-19 24.3.2 (fs = 2/3 fy) or EN 1992-1-1 7.3.3 (the steel stress of the
+    cracked section under the sustained moment at the section)."""
+    system = analysis.beam.units.name
+    design = analysis.beam.design
+    if p.code == "aci318-19":
+        s = ACI_SCALES[system]
+        fs = 2.0 / 3.0 * float(design["fy"]) * s.stress
+
+        def rule_aci(db: float | np.ndarray, spacing: np.ndarray, area: np.ndarray,
+                     d: np.ndarray) -> dict[str, np.ndarray]:
+            limit = crack_control.aci_spacing_limit(fs, side - np.asarray(db) / 2.0, system)
+            with np.errstate(invalid="ignore"):
+                return {"ok": ~(spacing > limit), "max_spacing": limit + 0.0 * spacing}
+        return rule_aci
+    s = EN_SCALES[system]
+    L = s.length
+    fck = float(design["fc"]) * s.stress
+    m_s = _sustained_moment(analysis, rows, p) * s.moment
+    n_mod = cracked.ES["SI"] / float(cracked.ecm_en(fck))
+    sag = rows.is_span
+    g = cracked.gross(bw * L, h * L, float(np.max(bf)) * L, float(np.max(hf)) * L)
+    hcr = np.where(sag, g["yt"], g["y_comp"])  # depth in tension before cracking
+    fct = float(en.fctm(fck))
+
+    def rule_en(db: float | np.ndarray, spacing: np.ndarray, area: np.ndarray,
+                d: np.ndarray) -> dict[str, np.ndarray]:
+        d_b = np.asarray(d, float) * L
+        cr = cracked.cracked(bw * L, bf * L, hf * L, np.asarray(area) / s.area, d_b, n_mod)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            sigma = n_mod * m_s * (d_b - cr["c"]) / cr["icr"]
+        out = crack_control.en_check(sigma, np.asarray(db) * L, np.asarray(spacing) * L,
+                                     p.crack_width, fct, hcr, h * L, d_b)
+        return {**out, "ok": out["ok"] | ~(m_s > 0), "sigma": sigma}
+    return rule_en
+
+
+def _crack(analysis: Analysis, rows: Rows, p: Params, cols: dict[str, np.ndarray],
+           units: dict[str, str], failures: list[list[str]], chosen: dict[str, np.ndarray],
+           side: float, rule: Any) -> None:
+    """Crack-control columns (bar spacing and its limit; EN: the steel stress) and the
+    failures of the bars chosen."""
+    system = analysis.beam.units.name
+    su = SECTION_UNITS[system]
+    bw = float(analysis.beam.design["b"])
+    has = chosen["index"] >= 0
+    db = np.where(has, chosen["diameter"], np.nan)
+    clear = bar_mod.min_clear_spacing(p.code, np.nan_to_num(db), p.aggregate, system)
+    fit1 = bar_mod.per_layer(bw, side, np.nan_to_num(db), clear)
+    n1 = np.minimum(chosen["count"], np.maximum(fit1, 1))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        spacing = np.where(has & (n1 > 1), (bw - 2.0 * side) / (n1 - 1), np.nan)
+    cols["bar_spacing"] = spacing
+    units["bar_spacing"] = su["length"]
+    out = rule(db, np.nan_to_num(spacing), chosen["area"], chosen["d"])
+    limit = np.where(has, out["max_spacing"], np.nan)
+    cols["bar_spacing_max"] = limit
+    units["bar_spacing_max"] = su["length"]
+    bad = np.flatnonzero(has & ~out["ok"])
+    if p.code == "aci318-19":
+        for i in bad:
+            failures[i].append(
+                f"bar spacing {spacing[i]:.4g} {su['length']} exceeds the crack-control "
+                f"limit {limit[i]:.4g} {su['length']} (ACI 318-19 24.3.2, fs = 2/3 fy) by "
+                f"{100 * (spacing[i] / limit[i] - 1):.1f}%; no bar of the set meets it")
+        return
+    s = EN_SCALES[system]
+    L = s.length
+    sigma = out["sigma"]
+    cols["steel_stress"] = np.where(has, sigma, np.nan) / s.stress
+    units["steel_stress"] = su["stress"]
+    cols["bar_spacing_max"] = limit / L
+    for i in bad:
+        failures[i].append(
+            f"crack control (EN 1992-1-1 7.3.3, wk = {p.crack_width:g} mm): at "
+            f"sigma_s = {sigma[i]:.0f} MPa neither the bar diameter "
+            f"({db[i] * L:.0f} mm, Table 7.2N limit {out['max_diameter'][i]:.0f} mm) nor "
+            f"the spacing ({spacing[i] * L:.0f} mm, Table 7.3N limit "
+            f"{out['max_spacing'][i]:.0f} mm) is within the tables; no bar of the set "
+            f"meets them")
+
+
+def _deflection_columns(analysis: Analysis, p: Params, defl: dict[str, Any],
+                        cols: dict[str, np.ndarray], units: dict[str, str],
+                        notes: list[list[str]], failures: list[list[str]]) -> None:
+    beam = analysis.beam
+    n = beam.n_spans
+    ell = ratio_lengths(beam) / beam.units.to_consistent("deflection")  # section units
+    lab = SECTION_UNITS[beam.units.name]["length"]
+    if p.code == "aci318-19":
+        live_lim = float(p.limits.get("live", ACI_LIVE[p.member]))
+        inc_lim = float(p.limits.get("incremental",
+                                     ACI_INCREMENTAL.get(p.nonstructural, np.nan)))
+        checks = [("immediate_live", "immediate live-load", live_lim,
+                   "ACI 318-19 Table 24.2.2")]
+        if p.nonstructural != "none":
+            checks.append(("incremental", "after attachment of nonstructural elements",
+                           inc_lim, "ACI 318-19 Table 24.2.2"))
+    else:
+        lt_lim = float(p.limits.get("long_term", EN_LONG_TERM))
+        inc_lim = float(p.limits.get("incremental", EN_INCREMENTAL))
+        checks = [("long_term", "long-term quasi-permanent", lt_lim,
+                   "EN 1992-1-1 7.4.1(4)")]
+        if p.nonstructural != "none":
+            checks.append(("incremental", "after construction", inc_lim,
+                           "EN 1992-1-1 7.4.1(5)"))
+    util = np.full(n, np.nan)
+    span_rows = np.arange(n) * 3 + 1
+    for j in range(n):
+        i = int(span_rows[j])
+        notes[i].extend(defl["notes"][j])
+        failures[i].extend(defl["failures"][j])
+        for key, text, limit, clause in checks:
+            value = defl[key][j]
+            if not np.isfinite(value):
+                continue
+            allowed = ell[j] / limit
+            u = value / allowed
+            util[j] = np.fmax(util[j], u)
+            if u > 1.0:
+                failures[i].append(
+                    f"{text} deflection {value:.2f} {lab} (cracked) exceeds span/{limit:g} "
+                    f"= {allowed:.2f} {lab} ({clause}) by {100 * (u - 1):.1f}%")
+    mid = np.zeros(3 * n, dtype=bool)
+    mid[span_rows] = True
+    for key, col in (("immediate", "deflection_immediate"),
+                     ("immediate_live", "deflection_immediate_live"),
+                     ("long_term", "deflection_long_term"),
+                     ("incremental", "deflection_incremental"),
+                     ("lambda_delta", "lambda_delta")):
+        cols[col] = np.where(mid, np.repeat(defl[key], 3), np.nan)
+        if col != "lambda_delta":
+            units[col] = lab
+    cols["utilisation_deflection"] = np.where(mid, np.repeat(util, 3), np.nan)
