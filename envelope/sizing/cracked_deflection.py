@@ -140,22 +140,28 @@ def _section(inputs: Inputs, n_modular: float | np.ndarray) -> dict[str, np.ndar
             "icr_sag": sag["icr"], "icr_left": left["icr"], "icr_right": right["icr"]}
 
 
-def _regions(x: np.ndarray, length: float, m: np.ndarray) -> tuple[np.ndarray, ...]:
-    """Masks (n_x, n_diag): sagging, hogging nearer the left end, nearer the right."""
+def _regions(x: np.ndarray, length: float, m: np.ndarray, root: str | None
+             ) -> tuple[np.ndarray, ...]:
+    """Masks (n_x, n_diag): sagging, hogging nearer the left end, nearer the right.  On
+    a cantilever (``root`` "left" or "right") all hogging belongs to the root, whose top
+    bars run to the tip (Ie at the support, ACI 318-19 24.2.3.7)."""
     sag = m >= 0.0
-    near_left = (x < length / 2.0)[:, None]
+    if root is None:
+        near_left = (x < length / 2.0)[:, None]
+    else:
+        near_left = np.full((x.size, 1), root == "left")
     return sag, ~sag & near_left, ~sag & ~near_left
 
 
 def _flex_aci(inputs: Inputs, props: dict[str, np.ndarray], j: int, x: np.ndarray,
-              length: float, m: np.ndarray, ec: float, fr: float
+              length: float, m: np.ndarray, ec: float, fr: float, root: str | None = None
               ) -> tuple[np.ndarray, np.ndarray]:
     """1/(Ec Ie) at every point of every diagram (Table 24.2.3.5 per region), and
     whether a cracked region has no steel to compute Icr with."""
     ig = float(props["ig"])
     out = np.full(m.shape, 1.0 / (ec * ig))
     missing = np.zeros(m.shape[1], dtype=bool)
-    masks = _regions(x, length, m)
+    masks = _regions(x, length, m, root)
     for mask, yt, icr in zip(masks, (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
                              (props["icr_sag"][j], props["icr_left"][j],
                               props["icr_right"][j]), strict=True):
@@ -172,14 +178,15 @@ def _flex_aci(inputs: Inputs, props: dict[str, np.ndarray], j: int, x: np.ndarra
 
 
 def _flex_en(inputs: Inputs, j: int, x: np.ndarray, length: float, m: np.ndarray,
-             e: float, beta: float, fctm: float) -> tuple[np.ndarray, np.ndarray]:
+             e: float, beta: float, fctm: float, root: str | None = None
+             ) -> tuple[np.ndarray, np.ndarray]:
     """Curvature per unit moment by eq. 7.18/7.19 at every point (modular ratio
     Es / E), and whether a cracked point has no steel."""
     props = _section(inputs, cracked.ES["SI"] / e)
     ig = float(props["ig"])
     out = np.empty(m.shape)
     missing = np.zeros(m.shape[1], dtype=bool)
-    for mask, yt, icr in zip(_regions(x, length, m),
+    for mask, yt, icr in zip(_regions(x, length, m, root),
                              (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
                              (props["icr_sag"][j], props["icr_left"][j],
                               props["icr_right"][j]), strict=True):
@@ -266,14 +273,17 @@ class _Spans:
         x = x_c * inputs.to_base_length
         length = beam.spans[j].length * inputs.to_base_length
         m = m_c * inputs.to_base_moment
+        root = "left" if root_left else "right"
         if inputs.code == "aci318-19":
-            flex, missing = _flex_aci(inputs, self.props, j, x, length, m, self.ec, self.fr)
+            flex, missing = _flex_aci(inputs, self.props, j, x, length, m, self.ec, self.fr,
+                                      root)
         else:
             flex = np.empty(m.shape)
             missing = np.zeros(len(stages), dtype=bool)
             for k, (_, phi, beta) in enumerate(stages):
                 f, miss = _flex_en(inputs, j, x, length, m[:, k:k + 1],
-                                   float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm)
+                                   float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm,
+                                   root)
                 flex[:, k:k + 1], missing[k] = f, miss[0]
         root = beam.supports[j if root_left else j + 1]
         # the neighbour shares the root: its right end when the root is the
