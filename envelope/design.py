@@ -29,6 +29,26 @@ class DeflectionLimits:
 
     live: float = 360.0
     total: float = 240.0
+    #: concrete: long-term (EN 1992-1-1 7.4.1(4)) and after-attachment limits; None:
+    #: the code's default (see envelope.sizing.detailing)
+    long_term: float | None = None
+    incremental: float | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class LongTerm:
+    """The sustained part of the service load and its duration (concrete deflection):
+    ``sustained`` pairs a load case name with the fraction of it that is sustained
+    (cases not named take the code's default), ``months`` is the load duration for
+    ACI 318-19 Table 24.2.4.1.3, ``creep`` the creep coefficient of EN 1992-1-1."""
+
+    sustained: tuple[tuple[str, float], ...] = ()
+    months: float = 60.0
+    creep: float = 2.0
+
+
+Member = Literal["floor", "roof"]
+Nonstructural = Literal["damage-likely", "damage-unlikely", "none"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -52,6 +72,14 @@ class ConcreteDesign:
     flange_width: float | None = None
     flange_depth: float | None = None
     deflection_limits: DeflectionLimits = DeflectionLimits()
+    #: bar set: "US", "metric" or sizes ("#8" or diameters in mm); None: US for ACI,
+    #: metric for EN
+    bars: str | tuple[str | float, ...] | None = None
+    aggregate: float | None = None  # largest aggregate size; None: 20 mm
+    long_term: LongTerm = LongTerm()
+    crack_width: float = 0.3  # mm, EN 1992-1-1 Tables 7.2N / 7.3N
+    member: Member = "floor"
+    nonstructural: Nonstructural = "damage-likely"
 
     @property
     def d(self) -> float:

@@ -253,3 +253,50 @@ def test_en_metric_bars_and_crack_control_tables() -> None:
     has = cols["as_provided"] > 0
     assert np.all(cols["steel_stress"][has] > 0)
     assert np.all(cols["steel_stress"][has] < 500 / 1.15)
+
+
+def _design_text(extra: str, code: str = "aci318-19") -> str:
+    return ('units = "SI"\n[section]\nE = 30000\nI = 5.4e9\n[[spans]]\nlength = 6.0\n'
+            '[[supports]]\ntype = "pinned"\n[[supports]]\ntype = "pinned"\n'
+            '[cases]\nD = { kind = "dead" }\nL = { kind = "live" }\n'
+            '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 10.0\n'
+            '[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+            '[[combinations.custom]]\nname = "U"\nset = "strength"\nfactors = { D = 1.4 }\n'
+            f'[design]\nmaterial = "concrete"\ncode = "{code}"\nb = 300\nh = 600\n'
+            f'cover_to_bar_centre = 60\nfc = 30\nfy = 420\n{extra}\n')
+
+
+@pytest.mark.parametrize(("extra", "code", "key", "words"), [
+    ('bars = ["#14"]', "aci318-19", "design.bars", "unknown US bar size"),
+    ('bars = [18]', "en1992-1-1", "design.bars", "unknown metric bar diameter"),
+    ('bars = 12', "aci318-19", "design.bars", "a list of bar sizes"),
+    ('crack_width = 0.3', "aci318-19", "design.crack_width", "applies to en1992-1-1"),
+    ('crack_width = 0.25', "en1992-1-1", "design.crack_width", "one of 0.2, 0.3, 0.4"),
+    ('long_term = { sustained = { Q = 0.3 } }', "aci318-19", "design.long_term.sustained.Q",
+     "no load case named"),
+    ('long_term = { sustained = { L = 1.5 } }', "aci318-19", "design.long_term.sustained.L",
+     "from 0 to 1"),
+    ('long_term = { months = 0 }', "aci318-19", "design.long_term.months", "greater than 0"),
+    ('long_term = { creep = -1 }', "en1992-1-1", "design.long_term.creep", "from 0"),
+    ('long_term = { years = 5 }', "aci318-19", "design.long_term.years", "unknown key"),
+    ('member = "wall"', "aci318-19", "design.member", "unknown member kind"),
+    ('nonstructural = "glass"', "aci318-19", "design.nonstructural", "unknown"),
+    ('aggregate = -20', "aci318-19", "design.aggregate", "greater than zero"),
+])
+def test_concrete_design_keys_refuse_bad_values(extra: str, code: str, key: str,
+                                                words: str) -> None:
+    from envelope.errors import CaseError
+    with pytest.raises(CaseError) as err:
+        parse_case(tomllib.loads(_design_text(extra, code)), "t.toml")
+    assert key in str(err.value) and words in str(err.value)
+
+
+def test_concrete_design_keys_are_read() -> None:
+    beam = parse_case(tomllib.loads(_design_text(
+        'bars = ["#5", "#8"]\naggregate = "0.75 in"\nmember = "roof"\n'
+        'nonstructural = "none"\nlong_term = { sustained = { L = 0.3 }, months = 12 }')),
+        "t.toml")
+    d = beam.design
+    assert d["bars"] == ["#5", "#8"] and d["aggregate"] == pytest.approx(19.05)
+    assert d["long_term"] == {"sustained": {"L": 0.3}, "months": 12.0}
+    assert d["member"] == "roof" and d["nonstructural"] == "none"

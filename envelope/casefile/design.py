@@ -9,6 +9,7 @@ from __future__ import annotations
 from typing import Any, get_args
 
 from envelope.casefile import steel
+from envelope.casefile.concrete_design import CONCRETE_DETAIL_KEYS, concrete_detailing
 from envelope.casefile.reader import MAX_MAGNITUDE, MIN_MAGNITUDE, Reader, join
 from envelope.design import (
     ConcreteCode,
@@ -22,10 +23,11 @@ from envelope.design import (
 DESIGN_KEYS = ("material", "code", "b", "h", "cover_to_bar_centre", "flange_width",
                "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits", "Fy",
                "sections", "section", "bracing", "bearing_length", "camber_fraction",
-               "vibration")
+               "vibration", *CONCRETE_DETAIL_KEYS)
 DESIGN_MATERIAL_KEYS: dict[str, tuple[str, ...]] = {
     "concrete": ("material", "code", "b", "h", "cover_to_bar_centre", "flange_width",
-                 "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits"),
+                 "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits",
+                 *CONCRETE_DETAIL_KEYS),
     "steel": ("material", "code", "Fy", "sections", "section", "deflection_limits",
               "bracing", "bearing_length", "camber_fraction", "vibration"),
 }
@@ -37,7 +39,7 @@ DESIGN_CODES: dict[str, tuple[str, ...]] = {
 #: numbers are section units (mm, MPa in SI; in, ksi in US) and are kept as given.
 DESIGN_LENGTHS = ("b", "h", "cover_to_bar_centre", "flange_width", "flange_depth")
 DESIGN_STRESSES = ("fc", "fy", "stirrup_fy", "Fy")
-DEFLECTION_LIMIT_KEYS = ("live", "total")
+DEFLECTION_LIMIT_KEYS = ("live", "total", "long_term", "incremental")
 
 
 def design_number(r: Reader, value: object, key: str, quantity: str | None) -> float | int:
@@ -100,6 +102,7 @@ def design(r: Reader, data: dict[str, Any], span_lengths: tuple[float, ...] = ()
         })
     if material == "concrete":
         check_concrete(r, table, out)
+        concrete_detailing(r, table, out, data.get("cases") or {})
         return ConcreteDesign(**out)
     check_steel(r, table, out, span_lengths)
     return SteelDesign(**out)
