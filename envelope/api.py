@@ -81,7 +81,7 @@ def tables(result: Analysis) -> dict[str, pa.Table]:
     -------
     dict of str to pyarrow.Table
         By file stem: ``envelope``, ``reactions``, ``design``, ``cases`` and, when the
-        case has a ``[design]`` table, ``sizing``.
+        case has a ``[design]`` table, ``sizing`` (and ``bars`` for concrete).
     """
     return _tables(result, False)
 
@@ -91,9 +91,9 @@ def _tables(result: Analysis, all_cases: bool) -> dict[str, pa.Table]:
 
     built = store.tables(result, all_cases)
     if result.beam.design is not None:
-        from envelope.sizing.table import sizing_table
+        from envelope.sizing.table import sizing_tables
 
-        built["sizing"] = sizing_table(result)
+        built.update(sizing_tables(result))
     return built
 
 

@@ -300,3 +300,70 @@ def test_concrete_design_keys_are_read() -> None:
     assert d["bars"] == ["#5", "#8"] and d["aggregate"] == pytest.approx(19.05)
     assert d["long_term"] == {"sustained": {"L": 0.3}, "months": 12.0}
     assert d["member"] == "roof" and d["nonstructural"] == "none"
+
+
+def test_bottom_cut_off_of_a_simple_span_from_the_envelope() -> None:
+    # 9 m simple span, wu = 1.4 x 20 + 1.7 x 15 = 53.5 kN/m: Mu(x) = wu x (L - x) / 2.
+    # The continuing bars (a third, at least 2) resist phiMn; the others stop where
+    # Mu = phiMn (the quadratic's roots), extended by max(d, 12 db) (ACI 318-19 9.7.3.3)
+    # and at least ld of Table 25.4.2.3 each side of midspan (9.7.3.2).
+    from envelope.sizing import concrete_aci, cutoffs
+    from envelope.sizing.bar_marks import bar_marks
+    L, wd, wl = 9.0, 20.0, 15.0
+    text_design = {**ACI, "b": 350, "h": 700}
+    beam_cols = case(text_design, (L,), wd, wl)
+    parts = ['units = "SI"', "[section]\nE = 30000\nI = 5.4e9", f"[[spans]]\nlength = {L!r}",
+             '[[supports]]\ntype = "pinned"', '[[supports]]\ntype = "pinned"',
+             '[cases]\nD = { kind = "dead" }\nL = { kind = "live" }',
+             f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {wd!r}',
+             f'[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = {wl!r}',
+             '[patterning]\nmethod = "code"',
+             '[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+             '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
+             'factors = { D = 1.4, L = 1.7 }',
+             "[design]\n" + "\n".join(f"{k} = {_value(v)}" for k, v in text_design.items())]
+    a = analyse(parse_case(tomllib.loads("\n\n".join(parts) + "\n"), "t.toml"))
+    cols = size(a)
+    np.testing.assert_array_equal(cols["bars"], beam_cols["bars"])
+    marks = bar_marks(a, cols)
+    i = row(cols, 1, "span")
+    count, size_ = cols["bars"][i].split()
+    count = int(count)
+    keep = max(2, math.ceil(count / 3))
+    assert marks["mark"].tolist()[:2] == ["B1-1", "B1-2"]
+    assert marks["bars"][0] == f"{keep} {size_}"
+    assert (marks["start"][0], marks["end"][0]) == (0.0, L)
+    assert count > keep  # the case is chosen so that some bars are cut
+    assert marks["bars"][1] == f"{count - keep} {size_}"
+    ab = cols["as_provided"][i] / count
+    d = cols["d"][i]
+    phi_mn = float(concrete_aci.capacity(np.array([keep * ab]), 350, d, 30, 420, "SI")
+                   ["phi_mn"][0]) / 1e6
+    wu = 1.4 * wd + 1.7 * wl
+    root = math.sqrt(L * L / 4 - 2 * phi_mn / wu)
+    x1, x2 = L / 2 - root, L / 2 + root
+    db = math.sqrt(4 * ab / math.pi)
+    ext = max(d, 12 * db) / 1000
+    ld = float(cutoffs.development_length_aci(db, 420, 30, "SI", False,
+                                              60 - db / 2 >= db)) / 1000
+    assert marks["start"][1] == pytest.approx(max(0.0, min(x1 - ext, L / 2 - ld)), abs=1e-6)
+    assert marks["end"][1] == pytest.approx(min(L, max(x2 + ext, L / 2 + ld)), abs=1e-6)
+    assert marks["length"][1] == pytest.approx(marks["end"][1] - marks["start"][1])
+
+
+def test_bars_parquet_is_written_for_concrete(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from pathlib import Path
+
+    import pyarrow.parquet as pq
+
+    from envelope.api import write
+    from envelope.casefile import load_case
+    repo = Path(__file__).resolve().parents[1]
+    folder = write(analyse(load_case(repo / "cases" / "office-4span-si.toml")), tmp_path)
+    table = pq.read_table(folder / "bars.parquet")
+    assert table.column_names == ["beam", "span", "mark", "position", "bars", "start",
+                                  "end", "length"]
+    marks = table.column("mark").to_pylist()
+    assert "B1-1" in marks and "T2-1" in marks
+    starts, ends = table.column("start").to_pylist(), table.column("end").to_pylist()
+    assert all(e > s for s, e in zip(starts, ends, strict=True))

@@ -163,7 +163,7 @@ def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = 
             write_partition(out, beam_id, systems[beam_id])
     lines = "".join(f"{i} {done[i]['input_sha256']}\n" for i in ids)
     digest = hashlib.sha256(lines.encode()).hexdigest()
-    for stem in ("design", "sizing"):
+    for stem in ("design", "sizing", "bars"):
         target = root / f"{stem}.parquet"
         table = _combine_table(out, ids, systems, stem, digest, to_system)
         if table is None:

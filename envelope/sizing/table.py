@@ -36,6 +36,12 @@ def _arrow(name: str, values: np.ndarray):  # type: ignore[no-untyped-def]
 def sizing_table(analysis: Analysis):  # type: ignore[no-untyped-def]  # a pyarrow Table
     """sizing.parquet: one row per design section (see :mod:`envelope.sizing`); NaN
     values (a quantity that does not apply to the row) are nulls."""
+    return sizing_tables(analysis)["sizing"]
+
+
+def sizing_tables(analysis: Analysis) -> dict:  # type: ignore[type-arg]
+    """sizing.parquet, and for concrete bars.parquet (one row per bar mark, see
+    :mod:`envelope.sizing.bar_marks`), as Arrow tables by file stem."""
     cols, units = size_with_units(analysis)
     design = analysis.beam.design
     assert design is not None
@@ -43,7 +49,16 @@ def sizing_table(analysis: Analysis):  # type: ignore[no-untyped-def]  # a pyarr
     meta = _metadata(analysis)
     meta[b"envelope:sizing_units"] = json.dumps(units).encode()
     meta[b"envelope:sizing_code"] = design.code.encode()
-    return table.replace_schema_metadata(meta)
+    out = {"sizing": table.replace_schema_metadata(meta)}
+    if design.material == "concrete":
+        from envelope.sizing.bar_marks import bar_marks
+
+        marks = bar_marks(analysis, cols)
+        bars = make_table({k: _arrow(k, v) for k, v in marks.items()})
+        bmeta = _metadata(analysis)
+        bmeta[b"envelope:sizing_code"] = design.code.encode()
+        out["bars"] = bars.replace_schema_metadata(bmeta)
+    return out
 
 
 def _n(v: float, digits: int = 1) -> str:

@@ -1,0 +1,66 @@
+"""Development and anchorage lengths and cut-off points (envelope.sizing.cutoffs).
+
+Sources: ACI 318-19 Table 25.4.2.3 and 25.4.2.1, EN 1992-1-1:2004 8.4.2-8.4.4 (eq. 8.2,
+8.3); the rounded "47 db" (Grade 60, 4000 psi, No. 7 and larger, bottom bars) and
+"about 36 phi" (C30/37, fyk 500, good bond) are common practice.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from envelope.sizing import cutoffs
+
+
+def test_aci_development_length_table_25_4_2_3() -> None:
+    # Grade 60, 4000 psi: No. 7 and larger ld = 60000 / (20 sqrt(4000)) db = 47.4 db
+    assert cutoffs.development_length_aci(1.0, 60_000, 4_000, "US", False) == \
+        pytest.approx(60_000 / (20 * math.sqrt(4000)))
+    # No. 6 and smaller: / 25 -> 37.9 db; top bars x 1.3 (psi_t, Table 25.4.2.5)
+    assert cutoffs.development_length_aci(0.75, 60_000, 4_000, "US", False) == \
+        pytest.approx(60_000 / (25 * math.sqrt(4000)) * 0.75)
+    assert cutoffs.development_length_aci(1.0, 60_000, 4_000, "US", True) == \
+        pytest.approx(1.3 * 47.434, rel=1e-4)
+    # clear spacing or cover below db: the "other cases" row, 1.5 times
+    assert cutoffs.development_length_aci(1.0, 60_000, 4_000, "US", False, False) == \
+        pytest.approx(1.5 * 47.434, rel=1e-4)
+    # SI: 420 MPa, 30 MPa, 16 mm: 420 / (2.1 sqrt(30)) 16 = 584 mm; at least 300 mm
+    assert cutoffs.development_length_aci(16.0, 420, 30, "SI", False) == \
+        pytest.approx(420 / (2.1 * math.sqrt(30)) * 16)
+    assert cutoffs.development_length_aci(6.0, 420, 30, "SI", False) == 300.0
+    # Grade 80 takes psi_g = 1.15
+    assert cutoffs.development_length_aci(1.0, 80_000, 5_000, "US", False) == \
+        pytest.approx(80_000 * 1.15 / (20 * math.sqrt(5000)))
+
+
+def test_en_anchorage_length_8_4() -> None:
+    # C30/37, fyk 500, H16, good bond: fctd = 0.7 * 2.896 / 1.5, fbd = 2.25 fctd,
+    # lb,rqd = (16/4) (434.8 / fbd) = 572 mm, about 36 phi
+    fctm = 0.30 * 30 ** (2 / 3)
+    fbd = 2.25 * 0.7 * fctm / 1.5
+    lb = 16 / 4 * (500 / 1.15) / fbd
+    assert cutoffs.anchorage_length_en(16.0, 500, 30, True) == pytest.approx(lb)
+    assert lb / 16 == pytest.approx(36, abs=0.5)
+    # poor bond: eta1 = 0.7; above 32 mm eta2 = (132 - phi)/100
+    assert cutoffs.anchorage_length_en(16.0, 500, 30, False) == pytest.approx(lb / 0.7)
+    assert cutoffs.anchorage_length_en(40.0, 500, 30, True) == pytest.approx(
+        40 / 4 * (500 / 1.15) / (fbd * 0.92))
+
+
+def test_run_around_a_parabola_is_exact_with_refinement() -> None:
+    # M(x) = 4 x (8 - x) on an 8 m span, capacity 48: 4x(8-x) = 48 -> x = 2 and 6
+    def m(x: np.ndarray) -> np.ndarray:
+        return 4 * x * (8 - x)
+    x = np.linspace(0, 8, 11)
+    a, b = cutoffs.run_around(x, m(x), 48.0, 5, m, 1e-12)
+    assert (a, b) == pytest.approx((2.0, 6.0), abs=1e-10)
+    # without refinement: linear interpolation between the samples
+    a, b = cutoffs.run_around(x, m(x), 48.0, 5)
+    assert 1.9 < a < 2.1 and 5.9 < b < 6.1
+    # the seed below the capacity: no stretch
+    assert all(np.isnan(cutoffs.run_around(x, m(x), 48.0, 0)))
+    # a run reaching the end of the samples ends there
+    assert cutoffs.run_around(x, -m(x) + 100, 90.0, 0, None)[0] == 0.0
