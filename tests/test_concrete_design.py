@@ -367,3 +367,19 @@ def test_bars_parquet_is_written_for_concrete(tmp_path) -> None:  # type: ignore
     assert "B1-1" in marks and "T2-1" in marks
     starts, ends = table.column("start").to_pylist(), table.column("end").to_pylist()
     assert all(e > s for s, e in zip(starts, ends, strict=True))
+
+
+def test_deep_beam_and_uplift_are_flagged_in_the_status() -> None:
+    # ACI 318-19 9.9.1.1(a): a 2.2 m clear span of a 600 mm deep beam (<= 4h = 2.4 m)
+    cols = case(ACI, (2.2,), 20.0, 15.0)
+    i = row(cols, 1, "span")
+    assert "deep beam (ACI 318-19 9.9.1.1(a))" in cols["status"][i]
+    # EN 1992-1-1 5.3.1(3): span < 3h
+    cols = case(EN, (1.7,), 20.0, 15.0)
+    assert "deep beam (EN 1992-1-1 5.3.1(3))" in cols["status"][row(cols, 1, "span")]
+    # a 1.5 m span beside a 9 m span: the end support lifts (three-moment equation:
+    # R3 = wd L2 / 2 + M_B / L2 < 0 already under dead load)
+    cols = case(ACI, (9.0, 1.5), 20.0, 15.0)
+    j = row(cols, 2, "right")
+    assert "support 3 can lift off" in cols["status"][j]
+    assert "can lift off" not in cols["status"][row(cols, 1, "left")]

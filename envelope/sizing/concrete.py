@@ -47,6 +47,35 @@ def _end_steel(rows: Rows, as_des: np.ndarray) -> np.ndarray:
     return np.where(rows.is_end, np.nan_to_num(steel), np.nan)
 
 
+def min_steel_width(analysis: Analysis, rows: Rows) -> np.ndarray:
+    """Width for the minimum tension steel at each row (section units): the web, except
+    where a T-beam's flange is in tension (hogging rows): ACI 318-19 9.6.1.2 takes the
+    lesser of bf and 2 bw in a statically determinate member (a cantilever), the web in
+    a continuous one; EN 1992-1-1 9.2.1.1(1) takes bt, the mean width of the tension
+    zone, here of the gross section above its centroid."""
+    design = analysis.beam.design
+    assert design is not None
+    b = float(design["b"])
+    out = np.full(rows.n, b)
+    if "flange_width" not in design:
+        return out
+    bf, hf, h = (float(design[k]) for k in ("flange_width", "flange_depth", "h"))
+    hog = rows.is_end
+    if design["code"] == "aci318-19":
+        beam = analysis.beam
+        n = beam.n_spans
+        cantilever = np.zeros(n, dtype=bool)
+        if n and not beam.supports[0].restrains_vertical:
+            cantilever[0] = True
+        if n and not beam.supports[-1].restrains_vertical:
+            cantilever[-1] = True
+        return np.where(hog & cantilever[rows.span], min(bf, 2.0 * b), out)
+    area = b * h + (bf - b) * hf
+    y_top = (b * h * h / 2.0 + (bf - b) * hf * hf / 2.0) / area
+    mean = (bf * hf + b * max(y_top - hf, 0.0)) / y_top if y_top > hf else bf
+    return np.where(hog, mean, out)
+
+
 def size_concrete(analysis: Analysis) -> Sized:
     """Columns, units, notes and failures of every design row of a concrete beam."""
     beam = analysis.beam
@@ -93,7 +122,8 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: float, bf: np.ndarray,
     fyt = float(design.stirrup_strength) * s.stress
     mu = np.abs(rows.moment) * s.moment
     fl = aci.flexure(mu, b, d, fc, fy, system, bf, hf)
-    as_min = np.where(rows.moment != 0.0, aci.as_min(b, d, fc, fy, system), 0.0)
+    bt = min_steel_width(analysis, rows)
+    as_min = np.where(rows.moment != 0.0, aci.as_min(bt, d, fc, fy, system), 0.0)
     as_des = aci.as_design(fl["as_required"], as_min)
     cap = aci.capacity(np.nan_to_num(as_des), b, d, fc, fy, system, bf, hf)
     too_small = fl["too_small"]
@@ -186,7 +216,8 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: float, d: float, bf: np.nda
     use_web = (bf > b) & ~inside
     width = np.where(use_web, bm, width)
     fl = en.flexure(m, width, dm, fck, fyk)
-    as_min = np.where(rows.moment != 0.0, en.as_min(bm, dm, fck, fyk), 0.0)
+    bt = min_steel_width(analysis, rows) * L
+    as_min = np.where(rows.moment != 0.0, en.as_min(bt, dm, fck, fyk), 0.0)
     as_req = fl["as_required"]
     as_des = np.where(as_req > 0, np.maximum(as_req, as_min),
                       np.where(as_req == 0, 0.0, np.nan))

@@ -33,6 +33,7 @@ from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
 from envelope.sizing import crack_control, cracked
 from envelope.sizing import cracked_deflection as cdefl
+from envelope.sizing.concrete import min_steel_width
 from envelope.sizing.deflection import ratio_lengths
 from envelope.sizing.layout import ACI_SCALES, EN_SCALES, SECTION_UNITS, Rows, Sized
 
@@ -86,13 +87,15 @@ def params(design: Any, system: str) -> Params:
                   limits=limits, given=given)
 
 
-def _required(analysis: Analysis, p: Params, moment: np.ndarray, bw: float,
+def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
               bf: np.ndarray, hf: np.ndarray) -> Any:
     """required(d): tension steel to provide (section units) at depths d (section
     units), by the same sequence as :mod:`envelope.sizing.concrete`."""
     design = analysis.beam.design
     system = analysis.beam.units.name
     fc_s, fy_s = float(design["fc"]), float(design["fy"])
+    moment = rows.moment
+    bt = min_steel_width(analysis, rows)
     if p.code == "aci318-19":
         s = ACI_SCALES[system]
         fc, fy = fc_s * s.stress, fy_s * s.stress
@@ -100,7 +103,7 @@ def _required(analysis: Analysis, p: Params, moment: np.ndarray, bw: float,
 
         def need(d: np.ndarray) -> np.ndarray:
             fl = aci.flexure(mu, bw, d, fc, fy, system, bf, hf)
-            as_min = np.where(moment != 0.0, aci.as_min(bw, d, fc, fy, system), 0.0)
+            as_min = np.where(moment != 0.0, aci.as_min(bt, d, fc, fy, system), 0.0)
             return aci.as_design(fl["as_required"], as_min)
         return need
     s = EN_SCALES[system]
@@ -115,7 +118,7 @@ def _required(analysis: Analysis, p: Params, moment: np.ndarray, bw: float,
         inside = 0.8 * fl["x"] <= hf * L
         width = np.where((bf > bw) & ~inside, bw * L, width)
         fl = en.flexure(m, width, dm, fck, fyk)
-        as_min = np.where(moment != 0.0, en.as_min(bw * L, dm, fck, fyk), 0.0)
+        as_min = np.where(moment != 0.0, en.as_min(bt * L, dm, fck, fyk), 0.0)
         req = fl["as_required"]
         out = np.where(req > 0, np.maximum(req, as_min), np.where(req == 0, 0.0, np.nan))
         return out * s.area
@@ -164,7 +167,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
         bar_set = bar_mod.bar_set(p.bars, system)
     except ValueError as exc:  # the reader checks the key; this is a last guard
         raise ValueError(f"design.bars: {exc}") from None
-    need = _required(analysis, p, rows.moment, bw, bf, hf)
+    need = _required(analysis, p, rows, bw, bf, hf)
     as_max = np.asarray(cols["as_max"], dtype=float)
     crack = _crack_rule(analysis, rows, p, bw, h, bf, hf, side)
     chosen = bar_mod.choose(need, d0, np.full(rows.n, bw), side, as_max, bar_set, p.code,
@@ -208,10 +211,67 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     defl = cdefl.span_deflections(analysis.solved, inputs)
     _crack(analysis, rows, p, cols, units, failures, chosen, side, crack)
     _deflection_columns(analysis, p, defl, cols, units, notes, failures)
+    _flags(analysis, rows, p, failures)
     if p.code == "aci318-19" and "long_term" not in p.given:
         for i in np.flatnonzero(rows.is_span):
             notes[i].append("no live load taken as sustained (give long_term.sustained)")
     return Sized(rows, cols, units, notes, failures)
+
+
+def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]]) -> None:
+    """What this sizing does not design, put in the status: a support that can lift
+    off, and deep-beam regions (ACI 318-19 9.9.1.1: clear span at most 4h, or a point
+    load within 2h of a support face; EN 1992-1-1 5.3.1(3): span less than 3h)."""
+    beam = analysis.beam
+    design = beam.design
+    to_c = beam.units.to_consistent("deflection")
+    h = float(design["h"]) * to_c  # consistent length
+    lab = beam.units.labels
+    env = analysis.reactions["reaction"]
+    if env is not None:
+        scale = max(float(np.max(np.abs(env.max))), float(np.max(np.abs(env.min))), 1e-300)
+        for k, joint in enumerate(analysis.support_joints):
+            low = float(env.min[k])
+            if low < -1e-9 * scale:
+                text = (f"support {joint + 1} can lift off: its reaction falls to "
+                        f"{low:.1f} {lab['force']} under a strength combination; hold it "
+                        f"down and check the support (not designed here)")
+                for i in np.flatnonzero(((rows.span == joint - 1) & (rows.section == "right"))
+                                        | ((rows.span == joint) & (rows.section == "left"))):
+                    failures[i].append(text)
+    n = beam.n_spans
+    for j in range(n):
+        left, right = beam.supports[j], beam.supports[j + 1]
+        if not (left.restrains_vertical and right.restrains_vertical):
+            continue
+        length = beam.spans[j].length
+        clear = length - left.width / 2.0 - right.width / 2.0
+        mid = 3 * j + 1
+        if p.code == "aci318-19" and clear <= 4.0 * h:
+            failures[mid].append(
+                f"deep beam (ACI 318-19 9.9.1.1(a)): clear span {clear:.3g} {lab['length']}"
+                f" <= 4h = {4 * h:.3g} {lab['length']}; design it by 9.9 (strut-and-tie), "
+                f"which this sizing does not do")
+        elif p.code == "en1992-1-1" and length < 3.0 * h:
+            failures[mid].append(
+                f"deep beam (EN 1992-1-1 5.3.1(3)): span {length:.3g} {lab['length']} < "
+                f"3h = {3 * h:.3g} {lab['length']}; design it by strut-and-tie (6.5), "
+                f"which this sizing does not do")
+        if p.code != "aci318-19":
+            continue
+        face_l, face_r = left.width / 2.0, length - right.width / 2.0
+        for ld in beam.loads:
+            if ld.type != "point" or ld.span != j:
+                continue
+            for end, near in (("left", face_l <= ld.at <= face_l + 2 * h),
+                              ("right", face_r - 2 * h <= ld.at <= face_r)):
+                if near:
+                    i = 3 * j + (0 if end == "left" else 2)
+                    msg = (f"deep-beam region (ACI 318-19 9.9.1.1(b)): a point load at "
+                           f"{ld.at:.3g} {lab['length']} lies within 2h of the {end} face; "
+                           f"design that region by 9.9 (strut-and-tie)")
+                    if msg not in failures[i]:
+                        failures[i].append(msg)
 
 
 def _spacing_clause(code: str) -> str:
