@@ -27,6 +27,7 @@ import numpy as np
 
 from envelope import config
 from envelope.analysis import envelope_at
+from envelope.design import ConcreteDesign
 from envelope.recovery import make_points
 from envelope.results import Analysis
 from envelope.sizing import concrete_aci as aci
@@ -57,18 +58,18 @@ def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np
     """The bars.parquet columns from the sizing columns of a concrete beam."""
     beam = analysis.beam
     design = beam.design
-    assert design is not None
-    code = design["code"]
+    assert isinstance(design, ConcreteDesign)
+    code = design.code
     system = beam.units.name
     s = ACI_SCALES[system] if code == "aci318-19" else EN_SCALES[system]
     to_c = beam.units.to_consistent("deflection")  # section length -> consistent
     joint_x = np.asarray(beam.joint_x)
     n = beam.n_spans
     lengths = np.array([sp.length for sp in beam.spans])
-    bw = float(design["b"])
-    tee = "flange_width" in design
-    fc, fy = float(design["fc"]), float(design["fy"])
-    side = float(design["cover_to_bar_centre"])
+    bw = float(design.b)
+    tee = design.is_tee
+    fc, fy = float(design.fc), float(design.fy)
+    side = float(design.cover_to_bar_centre)
     rows: list[dict[str, Any]] = []
 
     def group(i: int) -> tuple[int, str, float, float, float]:
@@ -82,13 +83,13 @@ def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np
     def strength(area: float, d: float, sagging: bool) -> float:
         """Design strength of ``area`` (section units) at depth d, consistent moment."""
         if code == "aci318-19":
-            bf = float(design.get("flange_width", bw)) if (sagging and tee) else bw
-            hf = float(design.get("flange_depth", 0.0)) if (sagging and tee) else 0.0
+            bf = float(design.flange_width or bw) if (sagging and tee) else bw
+            hf = float(design.flange_depth or 0.0) if (sagging and tee) else 0.0
             cap = aci.capacity(np.array([area]), bw, d, fc * s.stress, fy * s.stress,
                                system, bf, hf)
             return float(cap["phi_mn"][0]) / s.moment
         L = s.length
-        width = float(design.get("flange_width", bw)) if (sagging and tee) else bw
+        width = float(design.flange_width or bw) if (sagging and tee) else bw
         res = en.resistance(np.array([area / s.area]), width * L, d * L, fc * s.stress,
                             fy * s.stress)
         return float(res["m_rd"][0]) / s.moment
@@ -102,7 +103,7 @@ def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np
                                                       system, top, clear_ok))
             return max(d, 12.0 * db), ld
         L = s.length
-        good = not (top and design["h"] * L > 250.0)
+        good = not (top and design.h * L > 250.0)
         lbd = float(cutoffs.anchorage_length_en(db * L, fy * s.stress, fc * s.stress,
                                                 good)) / L
         cot = [sizing["cot_theta"][3 * j + k] for k in (0, 2)] if "cot_theta" in sizing \

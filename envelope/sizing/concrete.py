@@ -55,13 +55,13 @@ def min_steel_width(analysis: Analysis, rows: Rows) -> np.ndarray:
     zone, here of the gross section above its centroid."""
     design = analysis.beam.design
     assert design is not None
-    b = float(design["b"])
+    b = float(design.b)
     out = np.full(rows.n, b)
-    if "flange_width" not in design:
+    if design.flange_width is None or design.flange_depth is None:
         return out
-    bf, hf, h = (float(design[k]) for k in ("flange_width", "flange_depth", "h"))
+    bf, hf, h = float(design.flange_width), float(design.flange_depth), float(design.h)
     hog = rows.is_end
-    if design["code"] == "aci318-19":
+    if design.code == "aci318-19":
         beam = analysis.beam
         n = beam.n_spans
         cantilever = np.zeros(n, dtype=bool)

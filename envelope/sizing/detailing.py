@@ -26,6 +26,7 @@ from typing import Any
 import numpy as np
 
 from envelope.combinations import PERMANENT_KINDS
+from envelope.design import ConcreteDesign
 from envelope.recovery import evaluate_some, make_points
 from envelope.results import Analysis
 from envelope.sizing import bars as bar_mod
@@ -37,8 +38,8 @@ from envelope.sizing.concrete import min_steel_width
 from envelope.sizing.deflection import ratio_lengths
 from envelope.sizing.layout import ACI_SCALES, EN_SCALES, SECTION_UNITS, Rows, Sized
 
-#: Table 24.2.2 denominators by ``member`` and by ``nonstructural``.
-ACI_LIVE = {"floor": 360.0, "roof": 180.0}
+#: Table 24.2.2 denominators by ``nonstructural`` (the live-load row by ``member`` is
+#: set by the reader: span/360 for a floor, span/180 for a roof).
 ACI_INCREMENTAL = {"damage-likely": 480.0, "damage-unlikely": 240.0}
 #: EN 1992-1-1 7.4.1(4) and (5), recommended.
 EN_LONG_TERM = 250.0
@@ -68,22 +69,23 @@ class Params:
     given: frozenset[str] = frozenset()
 
 
-def params(design: Any, system: str) -> Params:
-    """:class:`Params` from the ``[design]`` table (a mapping of the reader's values)."""
-    get = design.get if hasattr(design, "get") else (lambda k, v=None: getattr(design, k, v))
-    code = get("code")
-    bars = get("bars") or ("US" if code == "aci318-19" else "metric")
+def params(design: ConcreteDesign, system: str) -> Params:
+    """:class:`Params` from the typed ``[design]`` values, defaults filled in."""
+    code = design.code
+    bars = design.bars or ("US" if code == "aci318-19" else "metric")
     mm = 1.0 if system == "SI" else 1.0 / bar_mod.IN_MM
-    long_term = get("long_term") or {}
-    limits = dict(get("deflection_limits") or {})
-    given = frozenset(k for k in ("long_term", "bars", "aggregate") if get(k) is not None)
-    return Params(code=code, bars=bars, aggregate=float(get("aggregate") or AGGREGATE_MM * mm),
-                  sustained=dict(long_term.get("sustained", {})),
-                  months=float(long_term.get("months", MONTHS)),
-                  creep=float(long_term.get("creep", CREEP)),
-                  crack_width=float(get("crack_width") or CRACK_WIDTH_MM),
-                  member=get("member") or "floor",
-                  nonstructural=get("nonstructural") or "damage-likely",
+    lt = design.long_term
+    dl = design.deflection_limits
+    limits = {"live": dl.live}
+    if dl.long_term is not None:
+        limits["long_term"] = dl.long_term
+    if dl.incremental is not None:
+        limits["incremental"] = dl.incremental
+    given = frozenset({"long_term"} if lt.sustained else ())
+    return Params(code=code, bars=bars, aggregate=float(design.aggregate or AGGREGATE_MM * mm),
+                  sustained=dict(lt.sustained), months=float(lt.months),
+                  creep=float(lt.creep), crack_width=float(design.crack_width),
+                  member=design.member, nonstructural=design.nonstructural,
                   limits=limits, given=given)
 
 
@@ -93,7 +95,7 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
     units), by the same sequence as :mod:`envelope.sizing.concrete`."""
     design = analysis.beam.design
     system = analysis.beam.units.name
-    fc_s, fy_s = float(design["fc"]), float(design["fy"])
+    fc_s, fy_s = float(design.fc), float(design.fy)
     moment = rows.moment
     bt = min_steel_width(analysis, rows)
     if p.code == "aci318-19":
@@ -148,7 +150,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     module docstring)."""
     beam = analysis.beam
     design = beam.design
-    assert design is not None
+    assert isinstance(design, ConcreteDesign)
     system = beam.units.name
     p = params(design, system)
     rows = sized.rows
@@ -156,12 +158,12 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     units = dict(sized.units)
     notes, failures = sized.notes, sized.failures
     su = SECTION_UNITS[system]
-    bw, h = float(design["b"]), float(design["h"])
-    side = float(design["cover_to_bar_centre"])
-    tee = "flange_width" in design
+    bw, h = float(design.b), float(design.h)
+    side = float(design.cover_to_bar_centre)
+    tee = design.is_tee
     sag = rows.is_span & tee
-    bf = np.where(sag, float(design.get("flange_width", bw)), bw)
-    hf = np.where(sag, float(design.get("flange_depth", 0.0)), 0.0)
+    bf = np.where(sag, float(design.flange_width or bw), bw)
+    hf = np.where(sag, float(design.flange_depth or 0.0), 0.0)
     d0 = np.asarray(cols["d"], dtype=float)
     try:
         bar_set = bar_mod.bar_set(p.bars, system)
@@ -214,7 +216,8 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     _flags(analysis, rows, p, failures)
     if p.code == "aci318-19" and "long_term" not in p.given:
         for i in np.flatnonzero(rows.is_span):
-            notes[i].append("no live load taken as sustained (give long_term.sustained)")
+            notes[i].append("no live load taken as sustained (long_term.sustained not "
+                            "given)")
     return Sized(rows, cols, units, notes, failures)
 
 
@@ -225,7 +228,7 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
     beam = analysis.beam
     design = beam.design
     to_c = beam.units.to_consistent("deflection")
-    h = float(design["h"]) * to_c  # consistent length
+    h = float(design.h) * to_c  # consistent length
     lab = beam.units.labels
     env = analysis.reactions["reaction"]
     if env is not None:
@@ -293,7 +296,7 @@ def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: floa
     to_base_length = 1.0 / beam.units.to_consistent("deflection") * L
     return cdefl.Inputs(
         code=p.code, system=system, bw=bw * L, h=h * L, bf=flange_w * L, hf=flange_d * L,
-        fc=float(beam.design["fc"]) * s.stress,
+        fc=float(beam.design.fc) * s.stress,
         as_bottom=area[mid], d_bottom=d[mid], as_top_left=area[left], d_top_left=d[left],
         as_top_right=area[right], d_top_right=d[right], sustained=p.sustained,
         months=p.months, creep=p.creep, to_base_length=to_base_length,
@@ -309,7 +312,7 @@ def _crack_rule(analysis: Analysis, rows: Rows, p: Params, bw: float, h: float,
     design = analysis.beam.design
     if p.code == "aci318-19":
         s = ACI_SCALES[system]
-        fs = 2.0 / 3.0 * float(design["fy"]) * s.stress
+        fs = 2.0 / 3.0 * float(design.fy) * s.stress
 
         def rule_aci(db: float | np.ndarray, spacing: np.ndarray, area: np.ndarray,
                      d: np.ndarray) -> dict[str, np.ndarray]:
@@ -319,7 +322,7 @@ def _crack_rule(analysis: Analysis, rows: Rows, p: Params, bw: float, h: float,
         return rule_aci
     s = EN_SCALES[system]
     L = s.length
-    fck = float(design["fc"]) * s.stress
+    fck = float(design.fc) * s.stress
     m_s = _sustained_moment(analysis, rows, p) * s.moment
     n_mod = cracked.ES["SI"] / float(cracked.ecm_en(fck))
     sag = rows.is_span
@@ -346,7 +349,7 @@ def _crack(analysis: Analysis, rows: Rows, p: Params, cols: dict[str, np.ndarray
     failures of the bars chosen."""
     system = analysis.beam.units.name
     su = SECTION_UNITS[system]
-    bw = float(analysis.beam.design["b"])
+    bw = float(analysis.beam.design.b)
     has = chosen["index"] >= 0
     db = np.where(has, chosen["diameter"], np.nan)
     clear = bar_mod.min_clear_spacing(p.code, np.nan_to_num(db), p.aggregate, system)
@@ -392,7 +395,7 @@ def _deflection_columns(analysis: Analysis, p: Params, defl: dict[str, Any],
     ell = ratio_lengths(beam) / beam.units.to_consistent("deflection")  # section units
     lab = SECTION_UNITS[beam.units.name]["length"]
     if p.code == "aci318-19":
-        live_lim = float(p.limits.get("live", ACI_LIVE[p.member]))
+        live_lim = float(p.limits["live"])
         inc_lim = float(p.limits.get("incremental",
                                      ACI_INCREMENTAL.get(p.nonstructural, np.nan)))
         checks = [("immediate_live", "immediate live-load", live_lim,
