@@ -187,6 +187,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     cols["bars"] = chosen["label"]
     cols["as_provided"] = chosen["area"]
     cols["bar_layers"] = chosen["layers"]
+    units["bar_layers"] = "1"
     cols["d"] = np.where(chosen["index"] >= 0, chosen["d"], d0)
     units["as_provided"] = su["area"]
 
@@ -436,6 +437,5 @@ def _deflection_columns(analysis: Analysis, p: Params, defl: dict[str, Any],
                      ("incremental", "deflection_incremental"),
                      ("lambda_delta", "lambda_delta")):
         cols[col] = np.where(mid, np.repeat(defl[key], 3), np.nan)
-        if col != "lambda_delta":
-            units[col] = lab
+        units[col] = lab if col != "lambda_delta" else "1"
     cols["utilisation_deflection"] = np.where(mid, np.repeat(util, 3), np.nan)
