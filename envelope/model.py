@@ -24,6 +24,7 @@ from envelope.units import UnitSystem
 # choices: the case-file readers derive what they accept (and list in messages,
 # in this order) from these types.
 SupportKind = Literal["pinned", "fixed", "free", "spring"]
+Seat = Literal["monolithic", "bearing"]
 LoadType = Literal["uniform", "linear", "point", "moment", "self_weight", "settlement"]
 CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind", "settlement"]
 #: EN 1990 Table A1.1 categories of imposed load (psi factors).
@@ -108,6 +109,10 @@ class Support:
     k_vertical: float
     k_rotation: float
     width: float = 0.0
+    #: how the beam sits on it: built in ("monolithic": face moments apply) or on a
+    #: bearing or wall ("bearing": EN 1992-1-1 5.3.2.2(4), the centreline moment less
+    #: F t / 8; ACI 318-19 takes the centreline moment)
+    seat: Seat = "monolithic"
 
     @property
     def restrains_vertical(self) -> bool:

@@ -389,3 +389,36 @@ def test_deep_beam_and_uplift_are_flagged_in_the_status() -> None:
     j = row(cols, 2, "right")
     assert "support 3 can lift off" in cols["status"][j]
     assert "can lift off" not in cols["status"][row(cols, 1, "left")]
+
+
+@pytest.mark.parametrize("code", ["en1992-1-1", "aci318-19"])
+def test_bearing_seat_takes_the_centreline_moment_less_f_t_over_8(code: str) -> None:
+    # two equal 6 m spans under 1.4 x 20 kN/m on a 0.3 m wide middle support: M_B =
+    # -w L^2 / 8, R_B = 1.25 w L (continuous beam, closed form).  EN 1992-1-1
+    # 5.3.2.2(4): M_B + R_B t / 8 on a bearing; ACI 318-19: the centreline moment
+    # (9.4.2.1 allows the face only for integral supports).  Monolithic: the face.
+    def run(seat: str) -> dict:
+        text = ('units = "SI"\n[section]\nE = 30000\nI = 5.4e9\n'
+                '[[spans]]\nlength = 6.0\n[[spans]]\nlength = 6.0\n'
+                '[[supports]]\ntype = "pinned"\n'
+                f'[[supports]]\ntype = "pinned"\nwidth = 0.3\nseat = "{seat}"\n'
+                '[[supports]]\ntype = "pinned"\n'
+                '[cases]\nD = { kind = "dead" }\n'
+                '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 20.0\n'
+                '[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+                '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
+                'factors = { D = 1.4 }\n'
+                f'[design]\nmaterial = "concrete"\ncode = "{code}"\nb = 300\nh = 600\n'
+                'cover_to_bar_centre = 60\nfc = 30\nfy = 500\n')
+        return size(analyse(parse_case(tomllib.loads(text), "t.toml")))
+    w, L, t = 28.0, 6.0, 0.3
+    mb, rb = -w * L * L / 8, 1.25 * w * L
+    bearing, monolithic = run("bearing"), run("monolithic")
+    i, k = row(bearing, 1, "right"), row(bearing, 2, "left")
+    expected = mb + rb * t / 8 if code == "en1992-1-1" else mb
+    assert bearing["moment_design"][i] == pytest.approx(expected, rel=1e-9)
+    assert bearing["moment_design"][k] == pytest.approx(expected, rel=1e-9)
+    assert bearing["x_span"][i] == L and "bearing support" in bearing["note"][i]
+    # the face moment, 0.15 m in: M_B + (R_B / 2) 0.15 - w 0.15^2 / 2 (statics)
+    face = mb + rb / 2 * 0.15 - w * 0.15**2 / 2
+    assert monolithic["moment_design"][i] == pytest.approx(face, rel=1e-9)

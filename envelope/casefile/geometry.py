@@ -12,7 +12,7 @@ import math
 from typing import Any, get_args
 
 from envelope.casefile.reader import Reader, item, join, suggest
-from envelope.model import RESTRAINTS, Section, Span, Stretch, Support, SupportKind
+from envelope.model import RESTRAINTS, Seat, Section, Span, Stretch, Support, SupportKind
 
 SECTION_KEYS = ("E", "I", "A", "unit_weight")
 #: Each section property and the quantity its unit strings are read as.
@@ -22,10 +22,10 @@ HINGE_KEYS = ("at",)
 STRETCH_KEYS = ("from", "to", *SECTION_KEYS)
 SUPPORT_TYPES: tuple[SupportKind, ...] = get_args(SupportKind)
 SUPPORT_KEYS: dict[str, tuple[str, ...]] = {
-    "pinned": ("type", "width"),
-    "fixed": ("type", "width"),
+    "pinned": ("type", "width", "seat"),
+    "fixed": ("type", "width", "seat"),
     "free": ("type",),
-    "spring": ("type", "k_vertical", "k_rotation", "columns", "width"),
+    "spring": ("type", "k_vertical", "k_rotation", "columns", "width", "seat"),
 }
 COLUMN_KEYS = ("E", "I", "height_below", "height_above", "far_end")
 #: Column far-end condition -> coefficient c in k = c*E*I/h (common practice:
@@ -207,17 +207,19 @@ def support(r: Reader, table: dict[str, Any], key: str) -> Support:
     for name in table:
         if name in allowed:
             continue
-        if kind == "free" and name == "width":
-            r.fail(join(key, name), "a free support has no width (it restrains "
+        if kind == "free" and name in ("width", "seat"):
+            r.fail(join(key, name), f"a free support has no {name} (it restrains "
                                     "nothing, so there is no support face)")
         if name in SUPPORT_KEYS["spring"]:
             r.fail(join(key, name), f"key {name!r} applies to spring supports only")
         r.fail(join(key, name), f"unknown key {name!r}{suggest(name, allowed)}")
     width = r.optional(table, key, "width",
                        lambda v, k: r.non_negative(v, k, "length"), 0.0)
+    seat = r.optional(table, key, "seat",
+                      lambda v, k: r.choice(v, k, get_args(Seat), "seat"), "monolithic")
     k_vertical, k_rotation = RESTRAINTS[kind]
     if kind != "spring":
-        return Support(kind, k_vertical, k_rotation, width)
+        return Support(kind, k_vertical, k_rotation, width, seat)
     k_vertical = r.optional(table, key, "k_vertical",
                             lambda v, k: r.non_negative(v, k, "k_vertical"), k_vertical)
     if "k_rotation" in table and "columns" in table:
@@ -228,7 +230,7 @@ def support(r: Reader, table: dict[str, Any], key: str) -> Support:
     if width > 0.0 and k_vertical == 0.0 and k_rotation == 0.0:
         r.fail(join(key, "width"), "a spring support with no stiffness restrains "
                                    "nothing, so it has no support face")
-    return Support("spring", k_vertical, k_rotation, width)
+    return Support("spring", k_vertical, k_rotation, width, seat)
 
 
 def columns(r: Reader, value: object, key: str) -> float:

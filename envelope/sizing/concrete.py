@@ -30,6 +30,7 @@ from envelope.sizing.layout import (
     design_rows,
     section_to_consistent,
 )
+from envelope.sizing.seats import seat_rows
 
 
 def _pct(demand: float, capacity: float) -> str:
@@ -85,10 +86,13 @@ def size_concrete(analysis: Analysis) -> Sized:
     h = float(design.h)
     d = float(design.d)
     rows = design_rows(analysis, at_faces=True, shear_shift=d * section_to_consistent(beam))
+    rows, seat_notes = seat_rows(analysis, rows)
     sag = rows.is_span & design.is_tee
     bf = np.where(sag, float(design.flange_width if design.flange_width is not None else b), b)
     hf = np.where(sag, float(design.flange_depth or 0.0), 0.0)
     notes: list[list[str]] = [[] for _ in range(rows.n)]
+    for i, text in seat_notes:
+        notes[i].append(text)
     failures: list[list[str]] = [[] for _ in range(rows.n)]
     for i in range(rows.n):
         if rows.moment[i] == 0.0:
