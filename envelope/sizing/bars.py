@@ -185,19 +185,23 @@ def choose(required: Callable[[np.ndarray], np.ndarray], d: np.ndarray, width: n
         n1 = np.maximum(np.ceil(need0 / ab - 1e-9), MIN_BARS)
         one = wanted & (n1 <= fit1) & (fit1 >= MIN_BARS)
         # two layers: centroid raised by (db + clear) * n2 / n; required at that depth
+        # (only computed where one layer does not hold the bars)
         n = np.maximum(n1, fit1 + 1)
         d2 = d.copy()
-        for _ in range(3):
+        # candidates: two layers can hold the bars needed at the full depth
+        maybe = wanted & ~one & (fit1 >= MIN_BARS) & (n1 <= 2 * fit1)
+        two = np.zeros(n_sec, dtype=bool)
+        for _ in range(3 if maybe.any() else 0):
             n2 = np.maximum(n - fit1, 0)
             d2 = d - (db + clear) * n2 / np.maximum(n, 1)
             with np.errstate(invalid="ignore"):
                 n = np.maximum(np.ceil(np.asarray(required(d2), float) / ab - 1e-9),
                                fit1 + 1)
-        n2 = np.maximum(n - fit1, 0)
-        d2 = d - (db + clear) * n2 / np.maximum(n, 1)
-        need2 = np.asarray(required(d2), dtype=float)
-        two = wanted & ~one & (fit1 >= MIN_BARS) & (n <= 2 * fit1) \
-            & np.isfinite(need2) & (n * ab >= need2)
+        if maybe.any():
+            n2 = np.maximum(n - fit1, 0)
+            d2 = d - (db + clear) * n2 / np.maximum(n, 1)
+            need2 = np.asarray(required(d2), dtype=float)
+            two = maybe & (n <= 2 * fit1) & np.isfinite(need2) & (n * ab >= need2)
         count = np.where(one, n1, np.where(two, n, 0)).astype(int)
         area = count * ab
         ok = (one | two) & (area <= as_max * (1 + 1e-12))

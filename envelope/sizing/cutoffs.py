@@ -90,18 +90,33 @@ def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
     span = float(x[-1] - x[0]) or 1.0
 
     def cross(inside: float, outside: float, v_in: float, v_out: float) -> float:
+        """Regula falsi (Illinois) on demand - capacity, which changes sign between
+        the samples: a few evaluations of a piecewise smooth envelope."""
         if refine is None:
             return inside + (capacity - v_in) / (v_out - v_in) * (outside - inside)
         a, b = inside, outside
+        fa, fb = v_in - capacity, v_out - capacity
+        side = 0
         for _ in range(100):
             if abs(b - a) <= tol * span:
                 break
-            mid = 0.5 * (a + b)
-            if refine(np.array([mid]))[0] > capacity:
-                a = mid
+            c = b - fb * (b - a) / (fb - fa) if fb != fa else 0.5 * (a + b)
+            if not min(a, b) < c < max(a, b):
+                c = 0.5 * (a + b)
+            fc = float(refine(np.array([c]))[0]) - capacity
+            if fc == 0.0:
+                return c
+            if (fc > 0.0) == (fa > 0.0):
+                a, fa = c, fc
+                if side == -1:
+                    fb *= 0.5
+                side = -1
             else:
-                b = mid
-        return 0.5 * (a + b)
+                b, fb = c, fc
+                if side == 1:
+                    fa *= 0.5
+                side = 1
+        return a if abs(fa) <= abs(fb) else b
 
     start = float(x[i0]) if i0 == 0 else cross(x[i0], x[i0 - 1], demand[i0], demand[i0 - 1])
     end = float(x[i1]) if i1 == x.size - 1 else cross(x[i1], x[i1 + 1], demand[i1],
