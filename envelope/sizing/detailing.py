@@ -409,7 +409,7 @@ def _deflection_columns(analysis: Analysis, p: Params, defl: dict[str, Any],
         inc_lim = float(p.limits.get("incremental", EN_INCREMENTAL))
         checks = [("long_term", "long-term quasi-permanent", lt_lim,
                    "EN 1992-1-1 7.4.1(4)")]
-        if p.nonstructural != "none":
+        if p.nonstructural == "damage-likely":  # 7.4.1(5): parts liable to damage
             checks.append(("incremental", "after construction", inc_lim,
                            "EN 1992-1-1 7.4.1(5)"))
     util = np.full(n, np.nan)
