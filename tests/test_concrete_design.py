@@ -422,3 +422,15 @@ def test_bearing_seat_takes_the_centreline_moment_less_f_t_over_8(code: str) -> 
     # the face moment, 0.15 m in: M_B + (R_B / 2) 0.15 - w 0.15^2 / 2 (statics)
     face = mb + rb / 2 * 0.15 - w * 0.15**2 / 2
     assert monolithic["moment_design"][i] == pytest.approx(face, rel=1e-9)
+
+
+def test_en_after_construction_limit_only_where_parts_can_be_damaged() -> None:
+    # EN 1992-1-1 7.4.1(4) span/250 always; 7.4.1(5) span/500 only with parts liable
+    # to damage (nonstructural = "damage-likely", the default)
+    base = case(EN, (8.0,), 20.0, 15.0)
+    free = case(EN, (8.0,), 20.0, 15.0, extra={"nonstructural": "damage-unlikely"})
+    i = row(base, 1, "span")
+    lt, inc = base["deflection_long_term"][i], base["deflection_incremental"][i]
+    assert base["utilisation_deflection"][i] == pytest.approx(
+        max(lt / (8000 / 250), inc / (8000 / 500)))
+    assert free["utilisation_deflection"][i] == pytest.approx(lt / (8000 / 250))
