@@ -240,7 +240,7 @@ NEW_ROWS: list[Row] = [
      f"{FILE}: supports[2].type: unknown support type 'pined'; did you mean 'pinned'?"),
     ("support_unknown_key", doc(supports='[[supports]]\ntype = "pinned"\nstiffness = 5\n'
                                          + supports("pinned", "pinned")),
-     f"{FILE}: supports[1].stiffness: unknown key 'stiffness' (valid: type, width)"),
+     f"{FILE}: supports[1].stiffness: unknown key 'stiffness' (valid: type, width, seat)"),
     ("k_rotation_on_fixed", doc(supports='[[supports]]\ntype = "fixed"\nk_rotation = 5e4\n'
                                          + supports("pinned", "pinned")),
      f"{FILE}: supports[1].k_rotation: key 'k_rotation' applies to spring supports only"),
@@ -514,9 +514,9 @@ NEW_ROWS: list[Row] = [
     ("design_deflection_limits_a_number", design(CONCRETE, deflection_limits="360"),
      f"{FILE}: design.deflection_limits: expected a table, got an integer (360)"),
     ("design_deflection_limit_unknown_key",
-     design(CONCRETE, deflection_limits="{ live = 360, long_term = 480 }"),
-     f"{FILE}: design.deflection_limits.long_term: unknown key 'long_term' (valid: live, "
-     "total)"),
+     design(CONCRETE, deflection_limits="{ live = 360, creep = 480 }"),
+     f"{FILE}: design.deflection_limits.creep: unknown key 'creep' (valid: live, total, "
+     "long_term, incremental)"),
     ("design_deflection_limit_a_string", design(CONCRETE, deflection_limits='{ live = "360" }'),
      f"{FILE}: design.deflection_limits.live: give a plain number here (unit strings are not "
      "read for this key), got '360'"),
