@@ -108,7 +108,7 @@ def test_a_new_sizing_column_appears_in_the_report_without_a_code_change(
     table = pq.read_table(folder / "sizing.parquet")
     n = table.num_rows
     table = table.append_column("utilisation_buckling", pa.array([1.25] + [0.5] * (n - 1)))
-    table = table.append_column("bars", pa.array(["4 #8"] * n))
+    table = table.append_column("lap_note", pa.array(["lap 40 db"] * n))
     pq.write_table(table, folder / "sizing.parquet")
     data = collect.collect(folder)
     assert "utilisation_buckling" in data.tables["sizing"].columns

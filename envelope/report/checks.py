@@ -11,6 +11,7 @@ gets a check of its own, so a failure is never hidden; a check that cannot be do
 from __future__ import annotations
 
 import math
+import re
 from typing import Any
 
 from envelope.report.collect import Table
@@ -42,6 +43,9 @@ STATUS_WORDS = {"flexure": ("singly reinforced", "0.04 Ac", "tension steel"),
                 "shear": ("for shear",), "deflection": ("deflection",),
                 "bearing": ("bearing", "J10", "crippling", "web local yielding")}
 OTHER_CLAUSE = "see the note and status of sizing.parquet"
+#: A clause a failing status cites in brackets, e.g. "(ACI 318-19 9.9.1.1(b))": the
+#: clause of a failure no check names.
+CITED = re.compile(r"\(((?:ACI 318-19|EN 1992-1-1|AISC 360-22) [^;]*?)\)(?:[:;,.]|$| )")
 
 
 def _missing(v: Any) -> bool:
@@ -105,10 +109,11 @@ def checks(sizing: Table | None, document: dict[str, Any] | None,
                 add(c.removeprefix("utilisation_"), r[c])
         for i, text in enumerate(failing):
             if i not in named:
+                cited = CITED.search(text)
                 out.append({"span": str(r.get("span", "")),
                             "section": str(r.get("section", "")), "check": "other",
-                            "clause": OTHER_CLAUSE, "value": "-", "result": "fail",
-                            "detail": text})
+                            "clause": cited.group(1) if cited else OTHER_CLAUSE,
+                            "value": "-", "result": "fail", "detail": text})
     return out
 
 

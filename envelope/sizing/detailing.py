@@ -180,7 +180,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
                 f"no arrangement of the bar set ({', '.join(bar_set.names)}) gives the "
                 f"steel required in one or two layers of a {bw:g} {su['length']} web "
                 f"within the maximum (clear spacing {_spacing_clause(p.code)}, aggregate "
-                f"{p.aggregate:g} {su['length']}); widen the section or allow larger bars")
+                f"{p.aggregate:g} {su['length']}): widen the section or allow larger bars")
         elif chosen["layers"][i] == 2:
             notes[i].append(f"two layers of bars: d = {chosen['d'][i]:.4g} {su['length']} "
                             f"to their centroid")
@@ -207,7 +207,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     cols["stirrups"] = np.where(ends, st["label"], "").astype(object)
     for i in np.flatnonzero(ends & ~st["fits"]):
         failures[i].append("no stirrup arrangement of the set gives the Av/s required "
-                           "at 75 mm / 3 in spacing or more; widen the section")
+                           "at 75 mm / 3 in spacing or more: widen the section")
 
     # deflections per span
     inputs = _inputs(analysis, p, cols, bw, h, bf, hf)
@@ -238,7 +238,7 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
             low = float(env.min[k])
             if low < -1e-9 * scale:
                 text = (f"support {joint + 1} can lift off: its reaction falls to "
-                        f"{low:.1f} {lab['force']} under a strength combination; hold it "
+                        f"{low:.1f} {lab['force']} under a strength combination: hold it "
                         f"down and check the support (not designed here)")
                 for i in np.flatnonzero(((rows.span == joint - 1) & (rows.section == "right"))
                                         | ((rows.span == joint) & (rows.section == "left"))):
@@ -254,12 +254,12 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
         if p.code == "aci318-19" and clear <= 4.0 * h:
             failures[mid].append(
                 f"deep beam (ACI 318-19 9.9.1.1(a)): clear span {clear:.3g} {lab['length']}"
-                f" <= 4h = {4 * h:.3g} {lab['length']}; design it by 9.9 (strut-and-tie), "
+                f" <= 4h = {4 * h:.3g} {lab['length']}: design it by 9.9 (strut-and-tie), "
                 f"which this sizing does not do")
         elif p.code == "en1992-1-1" and length < 3.0 * h:
             failures[mid].append(
                 f"deep beam (EN 1992-1-1 5.3.1(3)): span {length:.3g} {lab['length']} < "
-                f"3h = {3 * h:.3g} {lab['length']}; design it by strut-and-tie (6.5), "
+                f"3h = {3 * h:.3g} {lab['length']}: design it by strut-and-tie (6.5), "
                 f"which this sizing does not do")
         if p.code != "aci318-19":
             continue
@@ -272,7 +272,7 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
                 if near:
                     i = 3 * j + (0 if end == "left" else 2)
                     msg = (f"deep-beam region (ACI 318-19 9.9.1.1(b)): a point load at "
-                           f"{ld.at:.3g} {lab['length']} lies within 2h of the {end} face; "
+                           f"{ld.at:.3g} {lab['length']} lies within 2h of the {end} face, "
                            f"design that region by 9.9 (strut-and-tie)")
                     if msg not in failures[i]:
                         failures[i].append(msg)
@@ -370,7 +370,7 @@ def _crack(analysis: Analysis, rows: Rows, p: Params, cols: dict[str, np.ndarray
             failures[i].append(
                 f"bar spacing {spacing[i]:.4g} {su['length']} exceeds the crack-control "
                 f"limit {limit[i]:.4g} {su['length']} (ACI 318-19 24.3.2, fs = 2/3 fy) by "
-                f"{100 * (spacing[i] / limit[i] - 1):.1f}%; no bar of the set meets it")
+                f"{100 * (spacing[i] / limit[i] - 1):.1f}%: no bar of the set meets it")
         return
     s = EN_SCALES[system]
     L = s.length
@@ -384,7 +384,7 @@ def _crack(analysis: Analysis, rows: Rows, p: Params, cols: dict[str, np.ndarray
             f"sigma_s = {sigma[i]:.0f} MPa neither the bar diameter "
             f"({db[i] * L:.0f} mm, Table 7.2N limit {out['max_diameter'][i]:.0f} mm) nor "
             f"the spacing ({spacing[i] * L:.0f} mm, Table 7.3N limit "
-            f"{out['max_spacing'][i]:.0f} mm) is within the tables; no bar of the set "
+            f"{out['max_spacing'][i]:.0f} mm) is within the tables: no bar of the set "
             f"meets them")
 
 
