@@ -47,7 +47,7 @@ def test_plot_draws_in_the_place_of_a_given_axes(office: api.Analysis) -> None:
 
 def test_tables_include_the_sizing_of_a_sized_case(office: api.Analysis) -> None:
     tables = envelope.tables(office)
-    assert set(tables) == {"envelope", "reactions", "design", "cases", "sizing"}
+    assert set(tables) == {"envelope", "reactions", "design", "cases", "sizing", "bars"}
     assert tables["sizing"].num_rows == 3 * office.beam.n_spans
 
 
