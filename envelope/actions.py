@@ -18,10 +18,10 @@ from __future__ import annotations
 import numpy as np
 
 from envelope import config
-from envelope.analysis import QUANTITY_SET, Solved, envelope_at
 from envelope.enveloper import Extremes, governing_coefficients
 from envelope.recovery import Points, evaluate_some, make_points
 from envelope.search import golden_max, illinois_root
+from envelope.solved import QUANTITY_SET, Solved, envelope_at
 
 #: The derivative of each quantity along the beam: dM/dx = V, d(deflection)/dx = rotation.
 _SLOPE = {"moment": "shear", "deflection": "rotation"}
@@ -134,7 +134,7 @@ def _root_of_governing(solved: Solved, span: np.ndarray, length: np.ndarray, x: 
 
     def responses(xs: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
         owners = span if xs.size == span.size else np.r_[span, span]
-        return evaluate_some(solved.mesh, solved.units, solved.solution,
+        return evaluate_some(solved.mesh, solved.unit_cases, solved.solution,
                              make_points(beam, owners, xs), names)
 
     coef = governing_coefficients(responses(x, (quantity,))[quantity], cs)
@@ -180,7 +180,8 @@ def design_actions(solved: Solved, pts: Points,
     """Per-span design actions in consistent units (the design.parquet columns)."""
     beam = solved.beam
     n = beam.n_spans
-    length = np.array([s.length for s in beam.spans])
+    geometry = beam.geometry
+    length = np.array(geometry.span_length)
     nan = np.full(n, np.nan)
     left, right = _at_span_ends(pts, n)
     out: dict[str, np.ndarray] = {"span": np.arange(1, n + 1), "length": length}
@@ -195,10 +196,8 @@ def design_actions(solved: Solved, pts: Points,
         out["moment_pos_x"] = np.where(pos > zero, pos_x, np.nan)
         out["moment_neg_left"] = np.minimum(moment.min[left], 0.0)
         out["moment_neg_right"] = np.minimum(moment.min[right], 0.0)
-        half_l = np.array([beam.supports[j].width / 2 for j in range(n)])
-        half_r = np.array([beam.supports[j + 1].width / 2 for j in range(n)])
         faces = make_points(beam, np.r_[np.arange(n), np.arange(n)],
-                            np.r_[np.minimum(half_l, length), np.maximum(length - half_r, 0)],
+                            np.r_[geometry.face_left, geometry.face_right],
                             np.r_[np.ones(n, bool), np.zeros(n, bool)])
         face = envelope_at(solved, faces, "moment", labels=False)
         assert face is not None

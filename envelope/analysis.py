@@ -1,118 +1,123 @@
-"""A beam solved once, and its envelopes at any points.
-
-:func:`solve_beam` builds the elements, the unit cases and the combination
-sets and solves every unit case at once.  :func:`envelope_at` envelopes one
-quantity at any points, in chunks of rows so that memory stays bounded.
-"""
+"""The whole analysis of one beam as frozen arrays: what every output is made of."""
 
 from __future__ import annotations
 
+from collections.abc import Iterator
 from dataclasses import dataclass
 
 import numpy as np
 
 from envelope import config
-from envelope.combinations import build as build_combinations
-from envelope.combinations import variable_alone
-from envelope.enveloper import CaseSet, Extremes, build_case_set, reduce
-from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
-from envelope.mesh import Mesh, build_mesh
-from envelope.model import Beam, Combination
-from envelope.recovery import Points, Response, evaluate, evaluate_some
-from envelope.solver import Solution, solve
-
-#: Which combination set envelopes which quantity (outputs contract).
-QUANTITY_SET = {"moment": "strength", "shear": "strength", "deflection": "service",
-                "rotation": "service"}
+from envelope.actions import design_actions
+from envelope.solved import Solved, envelopes_at, solve_beam
+from envelope.enveloper import CaseSet, Extremes, reduce
+from envelope.limits import WorkLimits
+from envelope.limits import check as check_work
+from envelope.model import Beam
+from envelope.recovery import Points, evaluate, stations
 
 
 @dataclass(frozen=True, slots=True)
-class Solved:
-    """A beam with every unit case solved and its combination sets as coefficients."""
+class Analysis:
+    """Envelopes at stations and supports and the design actions (consistent units)."""
 
-    beam: Beam
-    mesh: Mesh
-    cells: Cells
-    units: UnitCases
-    solution: Solution
-    strength: CaseSet
-    service: CaseSet  # every service set together
-    live: CaseSet  # each variable kind alone at 1.0: for deflection_live
-    service_sets: tuple[tuple[str, CaseSet], ...] = ()  # each service rule set alone
+    solved: Solved
+    stations: Points
+    station_envelopes: dict[str, Extremes | None]  # moment, shear (strength); deflection (service)
+    support_joints: np.ndarray  # 0-based joints that restrain something
+    reaction_envelopes: dict[str, Extremes | None]  # reaction, service_reaction, support_moment
+    unfactored_reactions: np.ndarray  # (n_support_joints, n_cases): each case alone, every span
+    design_actions: dict[str, np.ndarray]  # per span, see envelope.actions
 
     @property
-    def per_case(self) -> np.ndarray:
-        """(n_units, n_cases) 0/1 matrix summing unit cases into their load cases."""
-        m = np.zeros((self.units.n_units, len(self.beam.cases)))
-        m[np.arange(self.units.n_units), self.units.case] = 1.0
-        return m
+    def beam(self) -> Beam:
+        return self.solved.beam
 
-    def case_set(self, name: str) -> CaseSet:
-        """``strength``, ``service`` (every service set), ``live`` (each variable kind
-        alone), or one service rule set by name (``characteristic``, ``frequent``,
-        ``quasi-permanent``, ``custom``); KeyError for a set the beam does not have."""
-        named = {"strength": self.strength, "service": self.service, "live": self.live}
-        return named[name] if name in named else dict(self.service_sets)[name]
-
-
-def live_combination(beam: Beam) -> tuple[Combination, ...]:
-    """Each variable kind alone at 1.0, every case acting only where it deflects the beam
-    more (for ``deflection_live``); empty with no variable case."""
-    return variable_alone(beam.cases)
+    def __repr__(self) -> str:
+        beam = self.beam
+        sets = ", ".join(f"{name} {len(cs.combinations)}" for name, cs in
+                         (("strength", self.solved.strength), ("service", self.solved.service))
+                         if not cs.is_empty)
+        title = beam.title if len(beam.title) <= 40 else beam.title[:39] + "…"
+        return (f"<Analysis {beam.id!r}{f' {title!r}' if title else ''}: "
+                f"{beam.n_spans} spans, {self.stations.n} stations, "
+                f"combinations {sets or 'none'}{', sized' if beam.design else ''}>")
 
 
-def solve_beam(beam: Beam) -> Solved:
-    mesh = build_mesh(beam)
-    cells = build_cells(beam)
-    units = build_unit_cases(beam, mesh, cells)
-    solution = solve(mesh, beam.supports, units, beam.source)
-    combos = build_combinations(beam.cases, beam.combinations)
-    strength = tuple(c for c in combos if c.set == "strength")
-    service = tuple(c for c in combos if c.set == "service")
-    rules = tuple(dict.fromkeys(c.rule for c in service))
-    # favourable_dead is a strength-set option: service sets take every dead load at 1.0
-    return Solved(
-        beam, mesh, cells, units, solution,
-        strength=build_case_set(beam, strength, units, cells),
-        service=build_case_set(beam, service, units, cells, favourable_dead=1.0),
-        live=build_case_set(beam, live_combination(beam), units, cells, favourable_dead=1.0),
-        service_sets=tuple((r, build_case_set(beam, tuple(c for c in service if c.rule == r),
-                                              units, cells, favourable_dead=1.0))
-                           for r in rules),
-    )
+def analyse(beam: Beam, limits: WorkLimits | None = None) -> Analysis:
+    """Solve every unit case once, envelope at the stations and supports, find the
+    design actions.  A beam whose estimated memory or time exceeds ``limits`` (default:
+    half the machine's memory, ``config.WORK_MAX_SECONDS``) is refused before any work
+    (:mod:`envelope.limits`)."""
+    check_work(beam, limits)
+    solved = solve_beam(beam)
+    pts = stations(beam, solved.mesh, solved.unit_cases)
+    env = envelopes_at(solved, pts, {"moment": "strength", "shear": "strength",
+                                     "deflection": "service"})
+
+    sol = solved.solution
+    joints = np.array([j for j, s in enumerate(beam.supports) if s.is_restrained], dtype=int)
+    support_moment = support_moments(sol.reaction_moment)
+    reactions: dict[str, Extremes | None] = {
+        "reaction": _reduce_rows(sol.reaction[joints], solved.strength),
+        "service_reaction": _reduce_rows(sol.reaction[joints], solved.service),
+        "support_moment": _reduce_rows(support_moment[joints], solved.strength),
+    }
+    unfactored = sol.reaction[joints] @ solved.per_case
+    return Analysis(solved, pts, env, joints, reactions, unfactored,
+                    design_actions(solved, pts, env))
 
 
-def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
-                 labels: bool = True) -> dict[str, Extremes | None]:
-    """Envelopes at ``points`` for each ``quantity -> case set`` of ``requests``, in
-    chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows, each chunk's response
-    computed once for all quantities; None for an empty case set.  ``labels=False``
-    skips the ``_loaded`` texts (for searches that need values only)."""
-    sets = {q: solved.case_set(name) for q, name in requests.items()}
-    wanted = tuple(q for q, cs in sets.items() if not cs.is_empty)
-    parts: dict[str, list[Extremes]] = {q: [] for q in wanted}
-    step = config.STATION_CHUNK_ROWS
-    if wanted:
-        for lo in range(0, max(points.n, 1), step):
-            chunk = points.take(slice(lo, lo + step))
-            resp = evaluate_some(solved.mesh, solved.units, solved.solution, chunk, wanted)
-            for q in wanted:
-                parts[q].append(reduce(resp[q], sets[q], labels))
-    return {q: Extremes.concat(parts[q]) if q in parts else None for q in requests}
+def support_moments(reaction_moment: np.ndarray) -> np.ndarray:
+    """Support moment in the beam's sign convention (sagging positive): the beam's end
+    moment at an end support, the jump M(right) - M(left) at an interior one.
+
+    ``reaction_moment`` (joints x units) is the counter-clockwise moment on the beam
+    from each support: M(x+) - M(x-) = -reaction, and at the right end M(L-) = +reaction.
+    """
+    out = -reaction_moment.copy()
+    out[-1] *= -1.0
+    return out
 
 
-def envelope_at(solved: Solved, points: Points, quantity: str,
-                case_set: str | None = None, labels: bool = True) -> Extremes | None:
-    """Envelope of one ``quantity`` (shear, moment, rotation, deflection) at ``points``
-    over ``case_set`` (default: strength for moment and shear, service otherwise)."""
-    name = case_set or QUANTITY_SET[quantity]
-    return envelopes_at(solved, points, {quantity: name}, labels)[quantity]
+def _reduce_rows(R: np.ndarray, cs: CaseSet) -> Extremes | None:
+    return None if cs.is_empty else reduce(R, cs)
 
 
-def case_responses(solved: Solved, points: Points) -> Response:
-    """Each load case alone on every span at ``points``: (n_points, n_cases) arrays, in
-    the order of ``beam.cases`` (consistent units, contract sign conventions)."""
-    per_case = solved.per_case
-    r = evaluate(solved.mesh, solved.units, solved.solution, points)
-    return Response(r.shear @ per_case, r.moment @ per_case, r.rotation @ per_case,
-                    r.deflection @ per_case)
+def explicit_case_blocks(analysis: Analysis) -> Iterator[dict[str, np.ndarray]]:
+    """Every explicit case (strength, then service; see ``CaseSet.explicit_cases``) at
+    every station, in blocks of stations, long format: case index (rows of
+    cases.parquet with ``all_cases``), span (1-based), x, x_span, shear, moment,
+    rotation and deflection in output units.  One block is in memory at a time."""
+    solved = analysis.solved
+    beam = solved.beam
+    sets = [s for s in (solved.strength, solved.service)]
+    coefs, offsets = [], []
+    offset = 0
+    for cs in sets:
+        if cs.superposed:
+            offset += len(cs.combinations)  # the "any" rows come first in cases.parquet
+        coef, _, _ = cs.explicit_cases()
+        coefs.append(coef)
+        offsets.append(offset)
+        offset += coef.shape[1]
+    coef = np.concatenate(coefs, axis=1)
+    case_index = np.concatenate([np.arange(c.shape[1]) + o
+                                 for c, o in zip(coefs, offsets, strict=True)])
+    n_c = coef.shape[1]
+    pts = analysis.stations
+    defl = beam.units.deflection_factor
+    step = max(1, config.STATION_CHUNK_ROWS)
+    for lo in range(0, pts.n, step):
+        chunk = pts.take(slice(lo, lo + step))
+        r = evaluate(solved.mesh, solved.unit_cases, solved.solution, chunk)
+        yield {
+            "case": np.tile(case_index, chunk.n).astype(np.int32),
+            "span": np.repeat(chunk.span + 1, n_c).astype(np.int32),
+            "x": np.repeat(chunk.x, n_c),
+            "x_span": np.repeat(chunk.x_span, n_c),
+            "shear": (r.shear @ coef).ravel(),
+            "moment": (r.moment @ coef).ravel(),
+            "rotation": (r.rotation @ coef).ravel(),
+            "deflection": (r.deflection @ coef).ravel() * defl,
+        }

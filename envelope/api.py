@@ -17,11 +17,13 @@ import warnings
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from envelope.analysis import Analysis
+from envelope.analysis import analyse as _analyse
 from envelope.casefile import load_case
 from envelope.errors import EnvelopeError, EnvelopeWarning, OutputError
 from envelope.files import real_folder
-from envelope.results import Analysis
-from envelope.results import analyse as _analyse
+from envelope.analysis import Analysis
+from envelope.analysis import analyse as _analyse
 
 if TYPE_CHECKING:
     import pyarrow as pa
@@ -177,8 +179,7 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
     built = _tables(result, all_cases)
     root = Path(out)
     folder = root / result.beam.id
-    for stem, table in built.items():  # refuse before anything is written
-        store.check_finite(table, str(folder / f"{stem}.parquet"))
+    store.check_tables(folder, built)  # refuse before anything is written
     made = [p for p in (root, folder) if not os.path.lexists(p)]
     root.mkdir(parents=True, exist_ok=True)
     real_folder(root, folder)  # no link at OUT/<id>: nothing written outside OUT
@@ -195,7 +196,7 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
         if all_cases:
             store.write_stations(stage / "stations.parquet", result, durable)
             written.add("stations.parquet")
-        store.write_tables(stage, built, durable)
+        store.write_tables(stage, built, durable, checked=True)
         if plots:
             from envelope import plots as figures
 

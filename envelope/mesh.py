@@ -53,7 +53,7 @@ def build_mesh(beam: Beam) -> Mesh:
     released: list[bool] = []
     joint_node = [0]
     span_first, span_count = [], []
-    x_left = 0.0
+    joint_x = beam.geometry.joint_x
     for j, sp in enumerate(beam.spans):
         span_first.append(len(span))
         first = len(span)
@@ -65,11 +65,10 @@ def build_mesh(beam: Beam) -> Mesh:
                 end.append(b)
                 length.append(b - a)
                 ei.append(st.section.EI)
-                x0.append(x_left + a)
+                x0.append(joint_x[j] + a)
                 released.append(b in sp.hinges)
         span_count.append(len(span) - first)
         joint_node.append(len(span))
-        x_left += sp.length
     return Mesh(
         span=np.asarray(span, dtype=np.int64),
         start=np.asarray(start, dtype=float),

@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 from typing import Literal, get_args
 
 from envelope.design import Design
+from envelope.geometry import Geometry, geometry_of
 from envelope.units import UnitSystem
 
 # The allowed choices of the case file.  Each Literal is the single list of its
@@ -282,6 +283,11 @@ class Beam:
     design: Design | None = None  # the [design] table, for member sizing
     source: str = "<memory>"
     input_sha256: str = ""
+    #: Joint positions, span lengths and support faces, worked out once from the above.
+    geometry: Geometry = field(init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "geometry", geometry_of(self.spans, self.supports))
 
     @property
     def n_spans(self) -> int:
@@ -290,10 +296,7 @@ class Beam:
     @property
     def joint_x(self) -> tuple[float, ...]:
         """Global position of every joint, from the left end of span 1."""
-        xs = [0.0]
-        for span in self.spans:
-            xs.append(xs[-1] + span.length)
-        return tuple(xs)
+        return tuple(self.geometry.joint_x.tolist())
 
     @property
     def length(self) -> float:

@@ -58,8 +58,8 @@ def make_points(beam: Beam, span: np.ndarray, x_span: np.ndarray,
     x_span = np.asarray(x_span, dtype=float)
     if right is None:
         right = np.ones(span.shape, dtype=bool)
-    joint_x = np.asarray(beam.joint_x)
-    return Points(span, x_span, np.asarray(right, dtype=bool), joint_x[span] + x_span)
+    return Points(span, x_span, np.asarray(right, dtype=bool),
+                  beam.geometry.joint_x[span] + x_span)
 
 
 def stations(beam: Beam, mesh: Mesh, units: UnitCases) -> Points:
@@ -83,17 +83,18 @@ def stations(beam: Beam, mesh: Mesh, units: UnitCases) -> Points:
         kinks_by_span.setdefault(int(j), set()).update((float(a), float(b)))
 
     spans, xs, rights = [], [], []
+    geometry = beam.geometry
     for j, sp in enumerate(beam.spans):
-        L = sp.length
+        L = float(geometry.span_length[j])
         tol = L * config.STATION_MERGE_RTOL
         pts = set(np.linspace(0.0, L, n).tolist())
         pts.update(kinks_by_span.get(j, ()))
         pts.update(h for h in sp.hinges if 0.0 < h < L)  # zero moment, a kink in deflection
-        w_left, w_right = beam.supports[j].width, beam.supports[j + 1].width
-        if 0.0 < w_left / 2 < L:
-            pts.add(w_left / 2)
-        if 0.0 < w_right / 2 < L:
-            pts.add(L - w_right / 2)
+        face_left, face_right = float(geometry.face_left[j]), float(geometry.face_right[j])
+        if face_left > 0.0:
+            pts.add(face_left)
+        if face_right < L:
+            pts.add(face_right)
         jumps = {a for a in jumps_by_span.get(j, ()) if 0.0 < a < L}
         merged = _merge(sorted(pts | jumps), jumps, tol)
         for x in merged:

@@ -28,18 +28,8 @@ from collections.abc import Sequence
 import numpy as np
 
 from envelope.errors import UnstableBeamError
+from envelope.geometry import joint_positions
 from envelope.model import Span, Support
-
-
-def joint_positions(spans: Sequence[Span]) -> tuple[float, ...]:
-    """Global position of every joint (len(spans) + 1 values), from the left end of span 1.
-
-    Summed left to right, the same way as :attr:`envelope.model.Beam.joint_x`.
-    """
-    xs = [0.0]
-    for span in spans:
-        xs.append(xs[-1] + span.length)
-    return tuple(xs)
 
 
 def check(spans: Sequence[Span], supports: Sequence[Support], source: str,

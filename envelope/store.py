@@ -20,12 +20,12 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 
 from envelope import config, engine_version
+from envelope.analysis import Analysis, explicit_case_blocks
 from envelope.enveloper import CaseSet, Extremes
 from envelope.errors import StaticsError
 from envelope.files import write_atomic
 from envelope.model import Beam
 from envelope.reduction import span_factors
-from envelope.results import Analysis, explicit_case_blocks
 
 CAUTION = ("Results are for checking by a licensed engineer and defer to local codes; "
            "they are not a design.")
@@ -143,7 +143,7 @@ def envelope_table(analysis: Analysis) -> pa.Table:
     for q, scale in _ENVELOPE_QUANTITIES:
         cs = solved.strength if q != "deflection" else solved.service
         factor = scale if scale is not None else beam.units.deflection_factor
-        cols.update(_extreme_columns(q, analysis.envelope[q], cs, pts.n, factor))
+        cols.update(_extreme_columns(q, analysis.station_envelopes[q], cs, pts.n, factor))
     from envelope.sketch import encode
 
     meta = _metadata(analysis)
@@ -161,17 +161,18 @@ def reactions_table(analysis: Analysis) -> pa.Table:
     cols: dict[str, pa.Array] = {
         "beam": repeated_string(beam.id, n),
         "support": int_column(joints + 1),
-        "x": float_column(np.asarray(beam.joint_x)[joints]),
+        "x": float_column(beam.geometry.joint_x[joints]),
         "type": string_column([beam.supports[j].kind for j in joints]),
     }
-    cols.update(_extreme_columns("reaction", analysis.reactions["reaction"],
+    cols.update(_extreme_columns("reaction", analysis.reaction_envelopes["reaction"],
                                  solved.strength, n, 1.0))
-    cols.update(_extreme_columns("service_reaction", analysis.reactions["service_reaction"],
+    reactions = analysis.reaction_envelopes
+    cols.update(_extreme_columns("service_reaction", reactions["service_reaction"],
                                  solved.service, n, 1.0))
-    cols.update(_extreme_columns("support_moment", analysis.reactions["support_moment"],
+    cols.update(_extreme_columns("support_moment", reactions["support_moment"],
                                  solved.strength, n, 1.0, mask=rot))
     for i, case in enumerate(beam.cases):
-        cols[f"unfactored_{case.name}"] = float_column(analysis.unfactored[:, i])
+        cols[f"unfactored_{case.name}"] = float_column(analysis.unfactored_reactions[:, i])
     return make_table(cols).replace_schema_metadata(_metadata(analysis))
 
 
@@ -377,12 +378,19 @@ def write_parquet(path: Path, table: pa.Table, durable: bool = True,
     write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
 
 
-def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
-                 durable: bool = True) -> list[Path]:
-    """Write each table as ``<stem>.parquet`` in ``out_dir``; returns the paths.  Every
-    table is checked before the first file is written, so a refusal writes nothing."""
+def check_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> None:
+    """:func:`check_finite` on each table, named as ``<stem>.parquet`` in ``out_dir``."""
     for stem, table in result_tables.items():
         check_finite(table, str(out_dir / f"{stem}.parquet"))
+
+
+def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
+                 durable: bool = True, checked: bool = False) -> list[Path]:
+    """Write each table as ``<stem>.parquet`` in ``out_dir``; returns the paths.  Every
+    table is checked before the first file is written, so a refusal writes nothing
+    (``checked=True``: the caller has already run :func:`check_tables`)."""
+    if not checked:
+        check_tables(out_dir, result_tables)
     paths = []
     for stem, table in result_tables.items():
         path = out_dir / f"{stem}.parquet"

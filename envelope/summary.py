@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 
-from envelope.results import Analysis
+from envelope.analysis import Analysis
 from envelope.store import CAUTION
 
 

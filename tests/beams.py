@@ -18,10 +18,10 @@ from typing import Any
 
 import numpy as np
 
-from envelope.analysis import Solved, case_responses, solve_beam
 from envelope.casefile import parse_case
 from envelope.model import Beam
 from envelope.recovery import Response, make_points
+from envelope.solved import Solved, case_responses, solve_beam
 
 #: Section giving EI = 1 kN*m^2 (E and I as unit strings, so no MPa / mm^4 scaling).
 UNIT_EI = {"E": "1 kN/m^2", "I": "1 m^4"}

@@ -11,10 +11,10 @@ import pyarrow.parquet as pq
 import pytest
 from click.testing import CliRunner
 
-from envelope.analysis import case_responses
+from envelope.analysis import analyse
 from envelope.casefile import load_case
 from envelope.cli import main
-from envelope.results import analyse
+from envelope.solved import case_responses
 
 REPO = Path(__file__).resolve().parents[1]
 

@@ -28,10 +28,10 @@ import numpy as np
 import pytest
 
 import envelope
-from envelope.analysis import envelope_at
+from envelope.analysis import Analysis, analyse
 from envelope.casefile import parse_case
 from envelope.recovery import make_points
-from envelope.results import Analysis, analyse
+from envelope.solved import envelope_at
 
 DENSE = 100_001
 FINE = 4001
@@ -296,7 +296,7 @@ def test_support_moments_faces_and_end_shears_come_from_the_envelope(
     a = analysis(name, method)
     d = a.design_actions
     beam = a.beam
-    moment, shear = a.envelope["moment"], a.envelope["shear"]
+    moment, shear = a.station_envelopes["moment"], a.station_envelopes["shear"]
     assert moment is not None and shear is not None
     scale = float(np.max(np.abs(moment.min)))
     for j, span in enumerate(beam.spans):

@@ -7,7 +7,7 @@ import math
 
 import pytest
 
-from envelope.results import analyse
+from envelope.analysis import analyse
 
 from beams import beam_text, parse_text
 

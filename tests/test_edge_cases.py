@@ -27,9 +27,9 @@ import pyarrow.parquet as pq
 import pytest
 from click.testing import CliRunner
 
-from envelope.analysis import Solved
 from envelope.cli import main
 from envelope.errors import UnstableBeamError
+from envelope.solved import Solved
 
 from beams import case_reaction_moments, case_reactions, responses, solve_text, toml_value
 

@@ -11,9 +11,9 @@ import numpy as np
 import pytest
 from test_reference import beam_of, random_spec
 
-from envelope.analysis import solve_beam
 from envelope.casefile import load_case
 from envelope.recovery import QUANTITIES, evaluate_some, make_points, stations
+from envelope.solved import solve_beam
 
 REPO = Path(__file__).resolve().parents[1]
 CASES = sorted((REPO / "cases").glob("*.toml"))
@@ -21,9 +21,9 @@ CASES = sorted((REPO / "cases").glob("*.toml"))
 
 def _compare(beam, points=None) -> None:  # type: ignore[no-untyped-def]
     s = solve_beam(beam)
-    pts = points if points is not None else stations(beam, s.mesh, s.units)
-    fast = evaluate_some(s.mesh, s.units, s.solution, pts, QUANTITIES, kernel=True)
-    plain = evaluate_some(s.mesh, s.units, s.solution, pts, QUANTITIES, kernel=False)
+    pts = points if points is not None else stations(beam, s.mesh, s.unit_cases)
+    fast = evaluate_some(s.mesh, s.unit_cases, s.solution, pts, QUANTITIES, kernel=True)
+    plain = evaluate_some(s.mesh, s.unit_cases, s.solution, pts, QUANTITIES, kernel=False)
     for q in QUANTITIES:
         scale = max(float(np.abs(plain[q]).max()), 1e-300)
         np.testing.assert_allclose(fast[q], plain[q], rtol=0, atol=1e-13 * scale, err_msg=q)
@@ -41,9 +41,9 @@ def test_kernel_equals_numpy_on_random_beams(seed: int, method: str) -> None:
     _compare(beam)
     # both sides of every load position, where the step functions switch
     s = solve_beam(beam)
-    e0 = s.mesh.start[s.units.item_elem]
-    span = s.mesh.span[s.units.item_elem]
-    x = np.clip(s.units.item_a + e0, 0.0, None)
+    e0 = s.mesh.start[s.unit_cases.item_elem]
+    span = s.mesh.span[s.unit_cases.item_elem]
+    x = np.clip(s.unit_cases.item_a + e0, 0.0, None)
     n = x.size
     _compare(beam, make_points(beam, np.r_[span, span], np.r_[x, x],
                                np.r_[np.zeros(n, bool), np.ones(n, bool)]))

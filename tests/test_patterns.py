@@ -35,11 +35,11 @@ import numpy as np
 import pytest
 
 import envelope
-from envelope.analysis import Solved, case_responses, envelope_at, solve_beam
+from envelope.analysis import Analysis, analyse
 from envelope.casefile import parse_case
 from envelope.model import Beam
 from envelope.recovery import Points, make_points
-from envelope.results import Analysis, analyse
+from envelope.solved import Solved, case_responses, envelope_at, solve_beam
 
 Num = F | str
 DENSE = 100_001  # points per span for maxima and their positions (spacing 1e-5 L)
@@ -228,8 +228,8 @@ def test_single_case_on_listed_spans_matches_handbook_pattern(
         assert_ref(end_of_left, value, f"support moment at joint {joint}")
         assert_ref(start_of_right, value, f"support moment at joint {joint} (right side)")
 
-    per_case = np.zeros((solved.units.n_units, 1))
-    per_case[np.arange(solved.units.n_units), solved.units.case] = 1.0
+    per_case = np.zeros((solved.unit_cases.n_units, 1))
+    per_case[np.arange(solved.unit_cases.n_units), solved.unit_cases.case] = 1.0
     reaction = (solved.solution.reaction @ per_case)[:, 0] / v_scale
     for joint, value in pat.reaction.items():
         assert_ref(reaction[joint - 1], value, f"reaction at joint {joint}")
@@ -319,7 +319,7 @@ def station_row(a: Analysis, span: int, x: float) -> int:
 @pytest.mark.parametrize("chk", CODE_CHECKS, ids=[c.name for c in CODE_CHECKS])
 def test_code_patterning_reproduces_pattern_value_and_label_at_station(chk: CodeCheck) -> None:
     a = live_analysis(chk.n, "code", chk.stations)
-    ext = a.envelope[chk.quantity]
+    ext = a.station_envelopes[chk.quantity]
     assert ext is not None
     row = station_row(a, chk.span, float(chk.x))
     got = float(getattr(ext, chk.extreme)[row])
@@ -342,7 +342,7 @@ def test_code_patterning_reproduces_pattern_value_and_label_at_station(chk: Code
 def test_code_patterning_reactions_match_pattern_rows(n: int, joint: int, extreme: str,
                                                       value: F, loaded: str) -> None:
     a = live_analysis(n, "code")
-    ext = a.reactions["reaction"]
+    ext = a.reaction_envelopes["reaction"]
     assert ext is not None
     i = int(np.flatnonzero(a.support_joints == joint - 1)[0])
     assert_ref(float(getattr(ext, extreme)[i]), value, f"reaction {extreme} at joint {joint}")
@@ -429,7 +429,7 @@ def test_exhaustive_live_envelope_matches_coefficients_and_influence_rules(n: in
         assert m_mid.min_loaded[i - 1] == rule_span_hogging(i, n), f"midspan of span {i}"
 
     # reactions: interior as max -M at that support; ends from spans 1, 3, 5 ...
-    r = a.reactions["reaction"]
+    r = a.reaction_envelopes["reaction"]
     assert r is not None
     first, last = rule_end_reaction(n)
     assert r.max_loaded[0] == first and r.max_loaded[n] == last
@@ -442,11 +442,11 @@ def test_exhaustive_reproduces_the_1_2_4_pattern_of_four_spans() -> None:
     # at B and max reaction at B load spans 1, 2 and 4.
     a = live_analysis(4, "exhaustive")
     row = station_row(a, 1, 1.0)
-    moment = a.envelope["moment"]
+    moment = a.station_envelopes["moment"]
     assert moment is not None
     assert_ref(float(moment.min[row]), F(-27, 224), "M_B")
     assert moment.min_loaded[row] == "1 2 4"
-    r = a.reactions["reaction"]
+    r = a.reaction_envelopes["reaction"]
     assert r is not None
     assert_ref(float(r.max[1]), F(137, 112), "R_B")
     assert r.max_loaded[1] == "1 2 4"
@@ -475,7 +475,7 @@ def test_adjacent_spans_rule_falls_short_of_the_exact_envelope(
     for method, value, loaded in (("code", code_value, code_loaded),
                                   ("exhaustive", exhaustive_value, exh_loaded)):
         a = live_analysis(n, method)
-        ext = a.envelope[quantity]
+        ext = a.station_envelopes[quantity]
         assert ext is not None
         row = station_row(a, span, 1.0)  # right end of `span`: left side of the support
         got[method] = float(ext.min[row])
@@ -501,7 +501,7 @@ def assert_at_least_as_severe(strong: Analysis, weak: Analysis, what: str) -> No
             assert s is not None and w is not None
             assert np.all(s.max >= w.max - 1e-12), f"{what}: {q} max"
             assert np.all(s.min <= w.min + 1e-12), f"{what}: {q} min"
-    rs, rw = strong.reactions["reaction"], weak.reactions["reaction"]
+    rs, rw = strong.reaction_envelopes["reaction"], weak.reaction_envelopes["reaction"]
     assert rs is not None and rw is not None
     assert np.all(rs.max >= rw.max - 1e-12) and np.all(rs.min <= rw.min + 1e-12)
 

@@ -37,9 +37,9 @@ from test_reference import (
     mirror,
 )
 
-from envelope.analysis import case_responses, envelope_at, solve_beam
 from envelope.model import Beam
 from envelope.recovery import Points, make_points
+from envelope.solved import case_responses, envelope_at, solve_beam
 
 import reference as ref
 
@@ -162,9 +162,9 @@ def test_every_unit_case_is_in_equilibrium(data: st.DataObject, segments: int) -
     assert list(solved.cells.label) == [c.label for c in cells]
     xj = np.asarray(beam.joint_x)
     R, Rm = solved.solution.reaction, solved.solution.reaction_moment
-    for u in range(solved.units.n_units):
-        case = beam.cases[int(solved.units.case[u])].name
-        items = ref.case_items(beam, case, cells[int(solved.units.cell[u])])
+    for u in range(solved.unit_cases.n_units):
+        case = beam.cases[int(solved.unit_cases.case[u])].name
+        items = ref.case_items(beam, case, cells[int(solved.unit_cases.cell[u])])
         force = moment = size = 0.0
         for it in items:
             x0 = xj[it.span]
@@ -246,7 +246,7 @@ def test_superposition_and_linearity(data: st.DataObject, k: float) -> None:
     r = case_responses(solved, _points(beam))
     R = solved.solution.reaction
     per_case = np.zeros((R.shape[1], 4))
-    per_case[np.arange(R.shape[1]), solved.units.case] = 1.0
+    per_case[np.arange(R.shape[1]), solved.unit_cases.case] = 1.0
     Rc = R @ per_case
     # relative to the largest value of the quantity over the four cases (a case may be
     # zero everywhere, e.g. a point load on a support)

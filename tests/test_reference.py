@@ -36,14 +36,14 @@ from typing import Any
 import numpy as np
 import pytest
 
-from envelope.analysis import case_responses
+from envelope.analysis import Analysis, analyse
 from envelope.casefile import parse_case
 from envelope.combinations import build as build_combinations
 from envelope.combinations import variable_alone
 from envelope.errors import CaseError
 from envelope.model import Beam, Combination
 from envelope.recovery import make_points
-from envelope.results import Analysis, analyse
+from envelope.solved import case_responses
 
 import reference as ref
 
@@ -639,7 +639,7 @@ def test_single_cases_match_reference(seed: int) -> None:
             _close(getattr(got, q)[:, c], w[:, c], scale, f"{q} of case {case.name}")
     R = a.solved.solution.reaction
     per_case = np.zeros((R.shape[1], len(beam.cases)))
-    per_case[np.arange(R.shape[1]), a.solved.units.case] = 1.0
+    per_case[np.arange(R.shape[1]), a.solved.unit_cases.case] = 1.0
     got_R = R @ per_case
     for c, case in enumerate(beam.cases):
         scale = max(float(np.abs(want["reaction"][:, c]).max()), 1e-300)
@@ -800,7 +800,7 @@ def test_station_envelopes_match_brute_force(params: tuple[int, str, float]) -> 
     rows = slice(0, c.n_station)
     for q in ("moment", "shear", "deflection"):
         want = _ref_env(c, q, rows)
-        got = c.a.envelope[q]
+        got = c.a.station_envelopes[q]
         assert got is not None
         scale = _scale(want)
         _close(got.max, want.max, scale, f"{q} max")
@@ -846,7 +846,7 @@ def test_governing_combination_and_pattern(params: tuple[int, str, float]) -> No
     problems = []
     for q in ("moment", "shear", "deflection"):
         combos = c.service if q == "deflection" else c.strength
-        got = c.a.envelope[q]
+        got = c.a.station_envelopes[q]
         assert got is not None
         problems += _check_governing(c, got, _ref_env(c, q, rows), c.table.values[q][rows],
                                      combos, q)
@@ -871,7 +871,7 @@ def test_reactions_match_brute_force(params: tuple[int, str, float]) -> None:
         rows = R[joints]
         scale_r = max(float(np.abs(rows).max(initial=0.0)), 1e-300) * 1.6
         want = ref.envelope(c.beam, combos, c.table, rows, TIE_RTOL * scale_r)
-        got = c.a.reactions[name]
+        got = c.a.reaction_envelopes[name]
         assert got is not None
         scale = _scale(want)
         _close(got.max, want.max, scale, f"{name} max")
@@ -930,7 +930,7 @@ def test_design_actions_match_brute_force(params: tuple[int, str, float]) -> Non
 
 def test_points_on_demand_match_reference() -> None:
     """envelope_at at arbitrary points (not stations) agrees with the reference."""
-    from envelope.analysis import envelope_at
+    from envelope.solved import envelope_at
 
     c = compared(1, "exhaustive", 0.9)
     rows = c.dense
@@ -960,7 +960,7 @@ def test_exhaustive_matches_every_subset_up_to_eight_spans(n_spans: int, fav: fl
     for q in ("moment", "shear"):
         R = table.values[q]
         want = ref.envelope(beam, combos, table, R, 0.0)
-        got = a.envelope[q]
+        got = a.station_envelopes[q]
         assert got is not None
         scale = _scale(want)
         _close(got.max, want.max, scale, f"{q} max")

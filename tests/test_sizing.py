@@ -20,10 +20,10 @@ import numpy as np
 import pyarrow.parquet as pq
 import pytest
 
+from envelope.analysis import Analysis, analyse
 from envelope.casefile import load_case, parse_case
 from envelope.errors import CaseError
 from envelope.model import Beam
-from envelope.results import Analysis, analyse
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
 from envelope.sizing import deflection, shapes, size, steel_aisc

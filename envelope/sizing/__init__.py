@@ -24,8 +24,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.analysis import Analysis
 from envelope.errors import CaseError
-from envelope.results import Analysis
 from envelope.sizing import deflection
 from envelope.sizing.concrete import size_concrete
 from envelope.sizing.detailing import detail
@@ -63,7 +63,7 @@ def size_with_candidates(analysis: Analysis
     design = beam.design
     if design is None:
         raise ValueError(f"{beam.source}: no [design] table, nothing to size")
-    if analysis.envelope["moment"] is None:
+    if analysis.station_envelopes["moment"] is None:
         raise CaseError(beam.source, "design", "member sizing needs strength combinations, "
                                                "and [combinations] gives none")
     d = analysis.design_actions
@@ -94,7 +94,7 @@ def size_with_candidates(analysis: Analysis
         "span": rows.span + 1,
         "section": rows.section,
         "x_span": rows.x_span,
-        "x": joint_x[rows.span] + rows.x_span,
+        "x": beam.geometry.joint_x[rows.span] + rows.x_span,
         "moment_design": rows.moment,
         "shear_design": rows.shear,
         "shear_x_span": rows.shear_x_span,

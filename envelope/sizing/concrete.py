@@ -16,8 +16,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.analysis import Analysis
 from envelope.design import ConcreteDesign
-from envelope.results import Analysis
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
 from envelope.sizing.layout import (

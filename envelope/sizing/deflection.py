@@ -27,7 +27,7 @@ def limits(design: Design) -> dict[str, float]:
 def ratio_lengths(beam: Beam) -> np.ndarray:
     """The length each span's ratio is taken over (consistent units): the span, or twice
     it for a cantilever (an end span whose outer joint is free)."""
-    out = np.array([s.length for s in beam.spans])
+    out = np.array(beam.geometry.span_length)
     n = beam.n_spans
     if n and not beam.supports[0].is_restrained:
         out[0] *= 2.0

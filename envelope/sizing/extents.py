@@ -24,9 +24,9 @@ from __future__ import annotations
 import numpy as np
 
 from envelope import config
-from envelope.analysis import envelope_at
+from envelope.analysis import Analysis
 from envelope.recovery import make_points
-from envelope.results import Analysis
+from envelope.solved import envelope_at
 
 EXTENT_KEYS = ("hogging_left_extent", "hogging_right_extent", "sagging_start", "sagging_end")
 
@@ -46,12 +46,12 @@ def extents(analysis: Analysis, samples: int = 200) -> dict[str, np.ndarray]:
     beam = analysis.beam
     n = beam.n_spans
     out = {k: np.full(n, np.nan) for k in EXTENT_KEYS}
-    env = analysis.envelope["moment"]
+    env = analysis.station_envelopes["moment"]
     if env is None:
         return out
     tol = config.ZERO_RTOL * max(float(np.abs(env.max).max()), float(np.abs(env.min).max()),
                                  np.finfo(float).tiny)
-    lengths = np.array([s.length for s in beam.spans])
+    lengths = beam.geometry.span_length
     pts = analysis.stations
     grids = []
     for j, L in enumerate(lengths):

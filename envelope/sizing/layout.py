@@ -16,10 +16,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope import config
-from envelope.analysis import envelope_at
+from envelope.analysis import Analysis
 from envelope.model import Beam
 from envelope.recovery import make_points
-from envelope.results import Analysis
+from envelope.solved import envelope_at
 
 SECTIONS = ("left", "span", "right")
 
@@ -130,11 +130,8 @@ def design_rows(analysis: Analysis, at_faces: bool, shear_shift: float | None) -
     beam = analysis.beam
     d = analysis.design_actions
     n = beam.n_spans
-    lengths = np.array([s.length for s in beam.spans])
-    half_l = np.array([beam.supports[j].width / 2 for j in range(n)])
-    half_r = np.array([beam.supports[j + 1].width / 2 for j in range(n)])
-    face_l = np.minimum(half_l, lengths)
-    face_r = np.maximum(lengths - half_r, 0.0)
+    lengths = beam.geometry.span_length
+    face_l, face_r = beam.geometry.face_left, beam.geometry.face_right
 
     span = np.repeat(np.arange(n), 3)
     section = np.tile(np.array(SECTIONS, dtype=object), n)
@@ -162,7 +159,7 @@ def design_rows(analysis: Analysis, at_faces: bool, shear_shift: float | None) -
         shear_x[left], shear_x[right] = 0.0, lengths
     else:
         pulls = np.zeros(n + 1, dtype=bool)
-        env = analysis.reactions["reaction"]
+        env = analysis.reaction_envelopes["reaction"]
         if env is not None:
             pulls[analysis.support_joints] = env.min < 0.0
         xs, rights = [], []

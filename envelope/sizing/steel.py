@@ -22,8 +22,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.analysis import Analysis
 from envelope.design import Bracing, SteelDesign, SteelSection
-from envelope.results import Analysis
 from envelope.sizing import ltb
 from envelope.sizing import steel_aisc as aisc
 from envelope.sizing.bracing import BracingSpec

@@ -11,8 +11,8 @@ import math
 
 import numpy as np
 
+from envelope.analysis import Analysis
 from envelope.design import SteelDesign
-from envelope.results import Analysis
 from envelope.sizing import size_with_candidates, size_with_units
 from envelope.sizing.layout import SECTION_UNITS
 from envelope.store import _metadata, float_column, int_column, make_table, string_column

@@ -1,0 +1,124 @@
+"""A beam solved once, and its envelopes at any points.
+
+:func:`solve_beam` builds the elements, the unit cases and the combination
+sets and solves every unit case at once.  :func:`envelope_at` envelopes one
+quantity at any points, in chunks of rows so that memory stays bounded.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from envelope import config
+from envelope.combinations import build as build_combinations
+from envelope.combinations import variable_alone
+from envelope.geometry import Geometry
+from envelope.enveloper import CaseSet, Extremes, build_case_set, reduce
+from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
+from envelope.mesh import Mesh, build_mesh
+from envelope.model import Beam, Combination
+from envelope.recovery import Points, Response, evaluate, evaluate_some
+from envelope.solver import Solution, solve
+
+#: Which combination set envelopes which quantity (outputs contract).
+QUANTITY_SET = {"moment": "strength", "shear": "strength", "deflection": "service",
+                "rotation": "service"}
+
+
+@dataclass(frozen=True, slots=True)
+class Solved:
+    """A beam with every unit case solved and its combination sets as coefficients."""
+
+    beam: Beam
+    mesh: Mesh
+    cells: Cells
+    unit_cases: UnitCases
+    solution: Solution
+    strength: CaseSet
+    service: CaseSet  # every service set together
+    live: CaseSet  # each variable kind alone at 1.0: for deflection_live
+    service_sets: tuple[tuple[str, CaseSet], ...] = ()  # each service rule set alone
+
+    @property
+    def per_case(self) -> np.ndarray:
+        """(n_units, n_cases) 0/1 matrix summing unit cases into their load cases."""
+        m = np.zeros((self.unit_cases.n_units, len(self.beam.cases)))
+        m[np.arange(self.unit_cases.n_units), self.unit_cases.case] = 1.0
+        return m
+
+    @property
+    def geometry(self) -> Geometry:
+        """Joint positions, span lengths and support faces (those of the beam)."""
+        return self.beam.geometry
+
+    def case_set(self, name: str) -> CaseSet:
+        """``strength``, ``service`` (every service set), ``live`` (each variable kind
+        alone), or one service rule set by name (``characteristic``, ``frequent``,
+        ``quasi-permanent``, ``custom``); KeyError for a set the beam does not have."""
+        named = {"strength": self.strength, "service": self.service, "live": self.live}
+        return named[name] if name in named else dict(self.service_sets)[name]
+
+
+def live_combination(beam: Beam) -> tuple[Combination, ...]:
+    """Each variable kind alone at 1.0, every case acting only where it deflects the beam
+    more (for ``deflection_live``); empty with no variable case."""
+    return variable_alone(beam.cases)
+
+
+def solve_beam(beam: Beam) -> Solved:
+    mesh = build_mesh(beam)
+    cells = build_cells(beam)
+    units = build_unit_cases(beam, mesh, cells)
+    solution = solve(mesh, beam.supports, units, beam.source)
+    combos = build_combinations(beam.cases, beam.combinations)
+    strength = tuple(c for c in combos if c.set == "strength")
+    service = tuple(c for c in combos if c.set == "service")
+    rules = tuple(dict.fromkeys(c.rule for c in service))
+    # favourable_dead is a strength-set option: service sets take every dead load at 1.0
+    return Solved(
+        beam, mesh, cells, units, solution,
+        strength=build_case_set(beam, strength, units, cells),
+        service=build_case_set(beam, service, units, cells, favourable_dead=1.0),
+        live=build_case_set(beam, live_combination(beam), units, cells, favourable_dead=1.0),
+        service_sets=tuple((r, build_case_set(beam, tuple(c for c in service if c.rule == r),
+                                              units, cells, favourable_dead=1.0))
+                           for r in rules),
+    )
+
+
+def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
+                 labels: bool = True) -> dict[str, Extremes | None]:
+    """Envelopes at ``points`` for each ``quantity -> case set`` of ``requests``, in
+    chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows, each chunk's response
+    computed once for all quantities; None for an empty case set.  ``labels=False``
+    skips the ``_loaded`` texts (for searches that need values only)."""
+    sets = {q: solved.case_set(name) for q, name in requests.items()}
+    wanted = tuple(q for q, cs in sets.items() if not cs.is_empty)
+    parts: dict[str, list[Extremes]] = {q: [] for q in wanted}
+    step = config.STATION_CHUNK_ROWS
+    if wanted:
+        for lo in range(0, max(points.n, 1), step):
+            chunk = points.take(slice(lo, lo + step))
+            resp = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, chunk, wanted)
+            for q in wanted:
+                parts[q].append(reduce(resp[q], sets[q], labels))
+    return {q: Extremes.concat(parts[q]) if q in parts else None for q in requests}
+
+
+def envelope_at(solved: Solved, points: Points, quantity: str,
+                case_set: str | None = None, labels: bool = True) -> Extremes | None:
+    """Envelope of one ``quantity`` (shear, moment, rotation, deflection) at ``points``
+    over ``case_set`` (default: strength for moment and shear, service otherwise)."""
+    name = case_set or QUANTITY_SET[quantity]
+    return envelopes_at(solved, points, {quantity: name}, labels)[quantity]
+
+
+def case_responses(solved: Solved, points: Points) -> Response:
+    """Each load case alone on every span at ``points``: (n_points, n_cases) arrays, in
+    the order of ``beam.cases`` (consistent units, contract sign conventions)."""
+    per_case = solved.per_case
+    r = evaluate(solved.mesh, solved.unit_cases, solved.solution, points)
+    return Response(r.shear @ per_case, r.moment @ per_case, r.rotation @ per_case,
+                    r.deflection @ per_case)
