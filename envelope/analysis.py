@@ -31,6 +31,7 @@ class Analysis:
 
     @property
     def beam(self) -> Beam:
+        """The beam analysed."""
         return self.solved.beam
 
     def __repr__(self) -> str:

@@ -26,7 +26,8 @@ def _file_mode() -> int:
 _MODE = _file_mode()
 
 
-def write_atomic(path: Path, write: Callable[[BinaryIO], None], durable: bool = True) -> None:
+def write_atomic(path: Path, write: Callable[[BinaryIO], object],
+                 durable: bool = True) -> None:
     """Call ``write(fh)`` on a temporary file beside ``path``, fsync it, rename it.
 
     The rename alone makes the file safe against the process being killed; the fsync

@@ -30,7 +30,7 @@ def joint_positions(spans: Sequence[Span]) -> tuple[float, ...]:
     return tuple(xs)
 
 
-def _frozen(values: Sequence[float]) -> np.ndarray:
+def _frozen(values: Sequence[float] | np.ndarray) -> np.ndarray:
     out = np.array(values, dtype=float)
     out.setflags(write=False)
     return out

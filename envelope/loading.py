@@ -37,6 +37,7 @@ class Cells:
 
     @property
     def n(self) -> int:
+        """Number of cells."""
         return int(self.span.size)
 
 
@@ -62,6 +63,7 @@ class UnitCases:
 
     @property
     def n_units(self) -> int:
+        """Number of unit load cases."""
         return int(self.case.size)
 
 

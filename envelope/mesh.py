@@ -35,24 +35,33 @@ class Mesh:
 
     @property
     def n_elements(self) -> int:
+        """Number of elements."""
         return int(self.length.size)
 
     @property
     def n_nodes(self) -> int:
+        """Number of nodes (elements + 1)."""
         return self.n_elements + 1
 
     @property
     def node_x(self) -> np.ndarray:
+        """Global position of every node."""
         return np.append(self.x0, self.x0[-1] + self.length[-1])
 
 
 def build_mesh(beam: Beam) -> Mesh:
     """One element per stretch of constant section in every span, stretches cut at
     the span's hinges."""
-    span, start, end, length, ei, x0 = [], [], [], [], [], []
+    span: list[int] = []
+    start: list[float] = []
+    end: list[float] = []
+    length: list[float] = []
+    ei: list[float] = []
+    x0: list[float] = []
     released: list[bool] = []
     joint_node = [0]
-    span_first, span_count = [], []
+    span_first: list[int] = []
+    span_count: list[int] = []
     joint_x = beam.geometry.joint_x
     for j, sp in enumerate(beam.spans):
         span_first.append(len(span))
@@ -65,7 +74,7 @@ def build_mesh(beam: Beam) -> Mesh:
                 end.append(b)
                 length.append(b - a)
                 ei.append(st.section.EI)
-                x0.append(joint_x[j] + a)
+                x0.append(float(joint_x[j]) + a)
                 released.append(b in sp.hinges)
         span_count.append(len(span) - first)
         joint_node.append(len(span))

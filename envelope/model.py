@@ -55,6 +55,7 @@ class Section:
 
     @property
     def EI(self) -> float:
+        """Flexural stiffness E*I (force*length^2)."""
         return self.E * self.I
 
     @property
@@ -117,14 +118,17 @@ class Support:
 
     @property
     def restrains_vertical(self) -> bool:
+        """True where the joint cannot move vertically freely."""
         return self.k_vertical > 0.0
 
     @property
     def restrains_rotation(self) -> bool:
+        """True where the joint cannot rotate freely."""
         return self.k_rotation > 0.0
 
     @property
     def is_restrained(self) -> bool:
+        """True where the joint restrains anything."""
         return self.restrains_vertical or self.restrains_rotation
 
 
@@ -214,6 +218,7 @@ class Combination:
     derivation: str = ""
 
     def factor(self, case: str) -> float:
+        """The factor on ``case`` (0 where the combination leaves it out)."""
         for name, value in self.factors:
             if name == case:
                 return value
@@ -221,6 +226,7 @@ class Combination:
 
     @property
     def factor_map(self) -> dict[str, float]:
+        """The factors as a dict by case name."""
         return dict(self.factors)
 
 
@@ -291,6 +297,7 @@ class Beam:
 
     @property
     def n_spans(self) -> int:
+        """Number of spans."""
         return len(self.spans)
 
     @property
@@ -300,9 +307,11 @@ class Beam:
 
     @property
     def length(self) -> float:
+        """Total length of the beam."""
         return math.fsum(s.length for s in self.spans)
 
     def case(self, name: str) -> LoadCase:
+        """The load case named ``name`` (KeyError if there is none)."""
         for c in self.cases:
             if c.name == name:
                 return c

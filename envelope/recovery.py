@@ -36,9 +36,11 @@ class Points:
 
     @property
     def n(self) -> int:
+        """Number of points."""
         return int(self.span.size)
 
     def take(self, idx: np.ndarray | slice) -> Points:
+        """The points at ``idx``."""
         return Points(self.span[idx], self.x_span[idx], self.right[idx], self.x[idx])
 
 
@@ -54,6 +56,7 @@ class Response:
 
 def make_points(beam: Beam, span: np.ndarray, x_span: np.ndarray,
                 right: np.ndarray | None = None) -> Points:
+    """Points at span-local positions; ``right`` defaults to the right-side limit."""
     span = np.asarray(span, dtype=np.int64)
     x_span = np.asarray(x_span, dtype=float)
     if right is None:

@@ -68,6 +68,7 @@ def live_combination(beam: Beam) -> tuple[Combination, ...]:
 
 
 def solve_beam(beam: Beam) -> Solved:
+    """Mesh, cells, unit cases, one solve for all of them, and the combination sets."""
     mesh = build_mesh(beam)
     cells = build_cells(beam)
     units = build_unit_cases(beam, mesh, cells)

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -48,6 +49,7 @@ class Solution:
 
     @property
     def warnings(self) -> tuple[str, ...]:
+        """Warnings about the solve (a badly conditioned stiffness matrix)."""
         if self.condition > config.CONDITION_WARN:
             return (f"the stiffness matrix is badly conditioned (condition estimate "
                     f"{self.condition:.2g}): a near-mechanism, or stiffnesses of very "
@@ -88,21 +90,21 @@ def element_end_forces(length: np.ndarray, EI: np.ndarray, de: np.ndarray) -> np
 
 
 def _two_sum(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """a + b = s + e exactly (Knuth's TwoSum), elementwise."""
+    """Knuth's TwoSum: a + b = s + e exactly, elementwise."""
     s = a + b
     bb = s - a
     return s, (a - (s - bb)) + (b - bb)
 
 
-def _split(a: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """a = hi + lo with 26-bit halves (Veltkamp), so that products of halves are exact."""
+def _split(a: np.ndarray | np.float64) -> tuple[Any, Any]:
+    """Veltkamp's split: a = hi + lo with 26-bit halves, so products of halves are exact."""
     c = 134217729.0 * a  # 2**27 + 1
     hi = c - (c - a)
     return hi, a - hi
 
 
-def _two_prod(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """a * b = p + e exactly (Dekker's TwoProduct), elementwise."""
+def _two_prod(a: np.ndarray | np.float64, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Dekker's TwoProduct: a * b = p + e exactly, elementwise."""
     p = a * b
     ah, al = _split(a)
     bh, bl = _split(b)
@@ -110,7 +112,7 @@ def _two_prod(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _exact_combination(terms: list[tuple[float, np.ndarray, np.ndarray]]) -> np.ndarray:
-    """sum of c * (hi + lo) over ``terms``, rounded once: error-free products and sums
+    """Sum of c * (hi + lo) over ``terms``, rounded once: error-free products and sums
     of the leading parts, so that the result is accurate relative to itself however
     much the terms cancel (to about eps**2 of the largest term)."""
     total = np.zeros(np.broadcast_shapes(*(h.shape for _, h, _ in terms)))
@@ -226,13 +228,13 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     rigid, spring = _restraints(mesh, supports)
     ab[3] += spring
     scale = float(ab[3].max())
-    for d in np.flatnonzero(rigid):
+    for dof in np.flatnonzero(rigid).tolist():
         for off in range(4):
-            if d + off < n_dof:
-                ab[3 - off, d + off] = 0.0  # row d, columns d+off
-            if off and d - off >= 0:
-                ab[3 - off, d] = 0.0  # column d, rows d-off
-        ab[3, d] = scale
+            if dof + off < n_dof:
+                ab[3 - off, dof + off] = 0.0  # row dof, columns dof+off
+            if off and dof - off >= 0:
+                ab[3 - off, dof] = 0.0  # column dof, rows dof-off
+        ab[3, dof] = scale
 
     # fixed-end forces on each element from its nodes (up, ccw)
     Ql, ml, m1l, m2l = fixed_end_terms(mesh, units)

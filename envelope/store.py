@@ -48,6 +48,7 @@ def float_column(values: np.ndarray | list[float], null: np.ndarray | None = Non
 
 
 def int_column(values: np.ndarray | list[int]) -> pa.Array:
+    """An int32 Arrow column from the values' buffer."""
     data = np.ascontiguousarray(values, dtype=np.int32)
     return pa.Array.from_buffers(pa.int32(), data.size, [None, pa.py_buffer(data)])
 
@@ -85,6 +86,7 @@ def repeated_string(value: str, n: int) -> pa.Array:
 
 
 def make_table(cols: Mapping[str, pa.Array]) -> pa.Table:
+    """An Arrow table of the columns, in order."""
     return pa.Table.from_arrays(list(cols.values()), names=list(cols.keys()))
 
 
@@ -297,7 +299,7 @@ def write_stations(path: Path, analysis: Analysis, durable: bool = True) -> None
                 check_finite(part, str(path))
                 writer.write_table(part, row_group_size=config.STATIONS_ROW_GROUP)
 
-    write_atomic(path, write, durable)  # type: ignore[arg-type]
+    write_atomic(path, write, durable)
 
 
 def tables(analysis: Analysis, all_cases: bool = False) -> dict[str, pa.Table]:

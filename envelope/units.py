@@ -66,9 +66,11 @@ class UnitSystem:
         return _SI if self.name == "SI" else _US
 
     def customary(self, quantity: str) -> str:
+        """The customary unit of ``quantity`` (what plain numbers are read in)."""
         return self._table[quantity][0]
 
     def consistent(self, quantity: str) -> str:
+        """The consistent unit of ``quantity`` (what the engine computes in)."""
         return self._table[quantity][1]
 
     def to_consistent(self, quantity: str) -> float:
@@ -165,7 +167,7 @@ def _consistent_factor(system: UnitSystem, quantity: str) -> Fraction:
 def _registry() -> Any:
     import pint  # deferred: only spellings outside the built-in table need it
 
-    reg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    reg: Any = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
     # the trade's abbreviations for US loads (common practice)
     for line in ("psf = lbf / ft ** 2", "ksf = kip / ft ** 2", "plf = lbf / ft",
                  "klf = kip / ft", "pcf = lbf / ft ** 3", "kcf = kip / ft ** 3"):

@@ -49,6 +49,7 @@ class Entry:
     sha256: str | None    # of the raw bytes; None when the file cannot be read
 
     def task(self, time_limit: float | None = None, work_limits: Any = None) -> Task:
+        """The task this file is run as: target, path, id and the limits of its run."""
         return (self.target, self.path, self.beam_id, time_limit, work_limits)
 
 
@@ -79,8 +80,10 @@ class Summary:
 
     @property
     def written(self) -> list[Outcome]:
+        """Files that were analysed and written."""
         return [o for o in self.outcomes if o.error is None]
 
     @property
     def failed(self) -> list[Outcome]:
+        """Files that were refused or failed."""
         return [o for o in self.outcomes if o.error is not None]

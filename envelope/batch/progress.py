@@ -37,6 +37,7 @@ class Progress:
         self._drawn = 0  # characters on the bar line (terminal)
 
     def text(self) -> str:
+        """The progress line: done of total, rate and time left."""
         elapsed = max(self.clock() - self.start, 1e-9)
         rate = self.done / elapsed
         left = (self.total - self.done) / rate if rate > 0 else math.nan
@@ -73,6 +74,7 @@ class Progress:
             self._drawn = 0
 
     def advance(self, n: int = 1, failed: int = 0) -> None:
+        """Count ``n`` more files done (``failed`` of them failed) and show it."""
         self.done += n
         self.failed += failed
         self._emit()
@@ -85,6 +87,7 @@ class Progress:
         self._emit()
 
     def close(self) -> None:
+        """Show the final line."""
         if not self.total:
             return
         self._emit(force=True)

@@ -15,7 +15,7 @@ from envelope.files import is_link
 
 
 def _stamped(path: Path, sha256: str) -> bool:
-    """Does the Parquet file at ``path`` carry this input hash and this engine version?"""
+    """Whether the Parquet file at ``path`` carries this input hash and engine version."""
     import pyarrow.parquet as pq
 
     try:

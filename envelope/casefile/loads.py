@@ -74,6 +74,7 @@ def load_spans(r: Reader, value: object, key: str, n_spans: int) -> list[int]:
     if not numbers:
         r.fail(key, "the list of spans is empty")
     seen: set[int] = set()
+    out: list[int] = []
     for number in numbers:
         if isinstance(number, bool) or not isinstance(number, int):
             r.fail(key, f'expected "all", a span number or a list of span numbers, '
@@ -84,7 +85,8 @@ def load_spans(r: Reader, value: object, key: str, n_spans: int) -> list[int]:
         if number in seen:
             r.fail(key, f"span {number} is listed twice")
         seen.add(number)
-    return [n - 1 for n in numbers]
+        out.append(number - 1)
+    return out
 
 
 def check_keys(r: Reader, table: dict[str, Any], key: str, load_type: str) -> None:

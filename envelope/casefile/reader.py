@@ -181,7 +181,7 @@ class TomlReader:
         text = self.string(value, key)
         if text not in choices:
             self.fail(key, f"unknown {what} {text!r}{suggest(text, choices)}")
-        return text  # type: ignore[return-value]  # checked against the choices above
+        return text  # checked against the choices above
 
     def boolean(self, value: object, key: str) -> bool:
         """``value`` as true or false (never a number)."""

@@ -161,7 +161,7 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: float, bf: np.ndarray,
     steel = _end_steel(rows, np.nan_to_num(as_des))
     vu = np.where(ends, rows.shear, 0.0) * s.force
     sh = aci.shear(vu, b, d, fc, fyt, steel / (b * d), system)
-    for i in np.flatnonzero(ends):
+    for i in np.flatnonzero(ends).tolist():
         if sh["too_small"][i]:
             limit = aci.PHI_SHEAR * (sh["vc"][i] + sh["vs_limit"][i]) / s.force
             failures[i].append(
@@ -254,7 +254,7 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: float, d: float, bf: np.nda
     steel = _end_steel(rows, np.nan_to_num(as_des))
     ved = np.where(ends, rows.shear, 0.0) * s.force
     sh = en.shear(ved, bm, dm, fck, fywk, steel / (bm * dm))
-    for i in np.flatnonzero(ends):
+    for i in np.flatnonzero(ends).tolist():
         if sh["too_small"][i]:
             limit = sh["vrd_max"][i] / s.force
             failures[i].append(

@@ -115,7 +115,7 @@ TRANSITION_SAMPLES = 256
 
 
 def _section_arrays(x: object, b: object, d: object, fc: object, fy: object,
-                    bf: object, hf: object) -> list[np.ndarray]:
+                    bf: object, hf: object) -> tuple[np.ndarray, ...]:
     """The demand (or steel area) and the section as float arrays of one shape; a
     rectangle (no flange) has bf = b and hf = 0."""
     b = np.asarray(b, dtype=float)

@@ -45,14 +45,17 @@ class Rows:
 
     @property
     def n(self) -> int:
+        """Number of design rows."""
         return int(self.span.size)
 
     @property
     def is_span(self) -> np.ndarray:
+        """True on the mid-span rows."""
         return self.section == "span"
 
     @property
     def is_end(self) -> np.ndarray:
+        """True on the rows at span ends."""
         return self.section != "span"
 
 

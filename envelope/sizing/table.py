@@ -130,7 +130,7 @@ def sizing_summary(analysis: Analysis) -> str:
     lines.append(f"Zero-moment extents ({u['length']}): hogging measured from each support, "
                  f"sagging as x_span from the left support.")
     mid = np.flatnonzero(cols["section"] == "span")
-    for i in mid:
+    for i in mid.tolist():
         lines.append(f"  span {cols['span'][i]}: hogging {_n(cols['hogging_left_extent'][i], 2)}"
                      f" from the left, {_n(cols['hogging_right_extent'][i], 2)} from the right;"
                      f" sagging {_n(cols['sagging_start'][i], 2)} to "
