@@ -26,6 +26,11 @@ def _file_mode() -> int:
 _MODE = _file_mode()
 
 
+def write_bytes(path: Path, data: bytes, durable: bool = True) -> None:
+    """Write ``data`` to ``path`` atomically (see :func:`write_atomic`)."""
+    write_atomic(path, lambda fh: fh.write(data), durable)
+
+
 def write_atomic(path: Path, write: Callable[[BinaryIO], object],
                  durable: bool = True) -> None:
     """Call ``write(fh)`` on a temporary file beside ``path``, fsync it, rename it.

@@ -58,8 +58,8 @@ def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str 
     try:
         from envelope.report.schedule import expand_schedules
 
-        paths, failures = expand_schedules(paths, out)
-        if not paths and failures:  # every row of the schedules is bad: nothing to run
+        case_files, failures = expand_schedules(paths, out)
+        if not case_files and failures:  # every row of the schedules is bad: nothing to run
             from envelope.batch.combined import write_failures
 
             Path(out, COMBINED).mkdir(parents=True, exist_ok=True)
@@ -67,7 +67,7 @@ def batch(paths: tuple[str, ...], out: str, workers: int | None, scheduler: str 
                 click.echo(f"error: {o.error}", err=True)
             write_failures(Path(out), failures, {})
             sys.exit(2)
-        summary = run_batch(paths, out, workers=workers, scheduler=scheduler, plots=plots,
+        summary = run_batch(case_files, out, workers=workers, scheduler=scheduler, plots=plots,
                             force=force, progress=sys.stderr if level() >= 0 else None,
                             units=units, failures=failures, time_limit=time_limit,
                             work_limits=_limits(max_memory, max_seconds))

@@ -37,6 +37,7 @@ class Table:
     rows: tuple[tuple[Any, ...], ...]
 
     def column(self, name: str) -> list[Any]:
+        """The values of column ``name``, row by row."""
         i = self.columns.index(name)
         return [r[i] for r in self.rows]
 
@@ -46,6 +47,7 @@ class Table:
         return [[fmt(v, d) for v, d in zip(r, digits, strict=True)] for r in self.rows]
 
     def numeric(self) -> list[bool]:
+        """Per column: True where any value is a number (right-aligned)."""
         return [any(isinstance(r[i], float | int) and not isinstance(r[i], bool)
                     for r in self.rows) for i in range(len(self.columns))]
 

@@ -50,6 +50,7 @@ def _tables(folder: Path) -> dict[str, Any]:
     import pyarrow.parquet as pq
 
     combined = folder / "_all"
+    stems: tuple[str, ...]
     if combined.is_dir() and (combined / "design.parquet").is_file():
         source, stems = combined, BATCH_TABLES
     elif (folder / "design.parquet").is_file():
@@ -74,7 +75,7 @@ def _columns(table: Any) -> tuple[list[str], list[list[Any]]]:
 
 def write_csv(folder: Path, target: Path) -> list[Path]:
     """One ``<table>.csv`` per table in the folder ``target``, plus CAUTION.txt."""
-    from envelope.files import write_atomic
+    from envelope.files import write_atomic, write_bytes
 
     written = []
     for stem, table in _tables(folder).items():
@@ -86,7 +87,7 @@ def write_csv(folder: Path, target: Path) -> list[Path]:
             writer.writerow(["" if v is None else v for v in row])
         data = buffer.getvalue().encode("utf-8")
         path = target / f"{stem}.csv"
-        write_atomic(path, lambda fh, data=data: fh.write(data))
+        write_bytes(path, data)
         written.append(path)
     note = (CAUTION + "\n").encode()
     write_atomic(target / "CAUTION.txt", lambda fh: fh.write(note))

@@ -28,6 +28,7 @@ PATTERNING = {
 
 
 def patterning_text(document: dict[str, Any] | None) -> str:
+    """One sentence on the patterning used, from the case file as read."""
     if document is None:
         return "Patterning: not recorded (see cases.parquet)."
     table = document.get("patterning", {})
@@ -37,6 +38,7 @@ def patterning_text(document: dict[str, Any] | None) -> str:
 
 
 def environment():  # type: ignore[no-untyped-def]
+    """The jinja2 environment of the report templates (autoescaped)."""
     import jinja2
 
     return jinja2.Environment(
@@ -46,6 +48,7 @@ def environment():  # type: ignore[no-untyped-def]
 
 
 def css() -> str:
+    """The report's style sheet."""
     return (resources.files("envelope.report") / "templates" / "report.css").read_text(
         encoding="utf-8")
 

@@ -95,6 +95,7 @@ def beam_ids(out: Path) -> list[str]:
 
 
 def index_rows(out: Path) -> list[dict[str, Any]]:
+    """One row per beam of the batch in ``out``, then one per failed file."""
     rows = [beam_row(out / beam_id) for beam_id in beam_ids(out)]
     return rows + _failures(out)
 
@@ -110,6 +111,7 @@ def _cell(value: float | None, key: str) -> str:
 
 
 def render_html(rows: list[dict[str, Any]], title: str) -> str:
+    """The building view as one HTML page."""
     from envelope.report.html import CAUTION, css, environment
 
     for r in rows:
@@ -124,6 +126,7 @@ def render_html(rows: list[dict[str, Any]], title: str) -> str:
 
 
 def render_pdf(rows: list[dict[str, Any]], title: str) -> bytes:
+    """The building view as a PDF (typst)."""
     from envelope.report.html import CAUTION
     from envelope.report.pdf import compile_typst
 

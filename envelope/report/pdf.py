@@ -38,6 +38,7 @@ def table_parts(t: Table, width: int = PART_COLUMNS) -> dict[str, Any]:
 
 
 def report_json(data: ReportData) -> dict[str, Any]:
+    """The report's data as the JSON the typst template reads."""
     status = data.status + (f" (largest utilisation {data.max_utilisation:.3f})"
                             if data.max_utilisation is not None else "")
     return {

@@ -75,6 +75,7 @@ class Row:
     header_units: dict[str, str]
 
     def where(self, column: str | None = None) -> str:
+        """Where this row (and ``column``) is, for messages: file, sheet, row, cell."""
         sheet = f"sheet {self.sheet}, " if self.sheet is not None else ""
         text = f"{self.file}: {sheet}row {self.number}"
         if column is not None:
@@ -88,6 +89,7 @@ class ScheduleError(EnvelopeError):
 
 
 def is_schedule(path: str) -> bool:
+    """True for a beam schedule (.csv or .xlsx) that exists."""
     return os.path.isfile(path) and path.lower().endswith(SUFFIXES)
 
 
@@ -322,11 +324,11 @@ def document(row: Row) -> tuple[dict[str, Any], dict[str, str]]:
         loads.append({"case": case, "type": "uniform", "spans": "all", "w": w})
         load_origin.append(column)
     for column, (case, kind) in LINE_LOADS.items():
-        w = _number(row, column)
-        if w is None:
+        line = _number(row, column)
+        if line is None:
             continue
         cases.setdefault(case, {"kind": kind})
-        loads.append({"case": case, "type": "uniform", "spans": "all", "w": w})
+        loads.append({"case": case, "type": "uniform", "spans": "all", "w": line})
         load_origin.append(column)
     category = _text(row, "live_category")
     if category is not None:
@@ -465,7 +467,7 @@ def expand_schedules(paths: Sequence[str], out: str | os.PathLike[str]
     if not any(is_schedule(p) for p in paths):
         return list(paths), []
     from envelope.batch.model import COMBINED, Outcome
-    from envelope.files import write_atomic
+    from envelope.files import write_bytes
 
     folder = Path(out) / COMBINED / "schedule"
     result: list[str] = []
@@ -496,7 +498,7 @@ def expand_schedules(paths: Sequence[str], out: str | os.PathLike[str]
                                 "Edit the schedule, not this file.").encode()
             target = folder / f"{beam_id}.toml"
             if not target.is_file() or target.read_bytes() != text:
-                write_atomic(target, lambda fh, text=text: fh.write(text))
+                write_bytes(target, text)
             result.append(str(target))
     return result, failures
 
