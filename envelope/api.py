@@ -111,7 +111,7 @@ def summary_text(result: Analysis) -> str:
     Returns
     -------
     str
-        Fixed-width text, lines separated by ``\\n``.
+        Fixed-width text, one line per row (newline-separated).
     """
     from envelope.summary import span_summary
 

@@ -47,9 +47,11 @@ class LazyGroup(click.Group):
     """A click group whose subcommands are imported on first use from :data:`COMMANDS`."""
 
     def list_commands(self, ctx: click.Context) -> list[str]:
+        """Every subcommand's name, without importing any."""
         return sorted({*COMMANDS, *self.commands})
 
     def get_command(self, ctx: click.Context, cmd_name: str) -> click.Command | None:
+        """The subcommand ``cmd_name``, imported now (None for an unknown name)."""
         if cmd_name in self.commands:
             return self.commands[cmd_name]
         if cmd_name not in COMMANDS:
@@ -62,6 +64,7 @@ class LazyGroup(click.Group):
         return command
 
     def format_commands(self, ctx: click.Context, formatter: click.HelpFormatter) -> None:
+        """The Commands section of --help, from the registry's short help."""
         # the short help from the registry: listing the commands imports none of them
         rows = [(name, COMMANDS[name][1]) for name in sorted(COMMANDS)]
         rows += [(name, cmd.get_short_help_str(60)) for name, cmd in sorted(self.commands.items())
