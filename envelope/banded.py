@@ -47,7 +47,7 @@ def cholesky_upper(ab: np.ndarray) -> np.ndarray:
 
 
 def solve_upper(cb: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """x with U^T U x = b for the factor ``cb`` of :func:`cholesky_upper`; ``b`` is
+    """The solution x of U^T U x = b for the factor ``cb`` of :func:`cholesky_upper`; ``b`` is
     (n,) or (n, m) and is not changed."""
     u, n = cb.shape[0] - 1, cb.shape[1]
     x = np.array(b, dtype=float, order="C", copy=True)

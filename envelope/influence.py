@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import itertools
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -60,6 +61,7 @@ class InfluenceLines:
 
     @property
     def n_pieces(self) -> int:
+        """Number of pieces."""
         return int(self.span.size)
 
     def values(self, quantity: str, xi: np.ndarray) -> np.ndarray:
@@ -209,7 +211,7 @@ def train_worst(lines: InfluenceLines, quantity: str, loads: np.ndarray,
     runs = [(offsets, False)]
     if both_ways and loads.size > 1:
         runs.append((-offsets, True))
-    best: list[tuple[np.ndarray, ...]] = []
+    best: list[tuple[Any, ...]] = []  # (max, min, x_max, x_min, reversed)
     for off, rev in runs:
         best.append((*_run_extremes(lines, table, loads, off), rev))
     mx, mn, xmx, xmn, rev0 = best[0]

@@ -186,8 +186,8 @@ def test_shapes_derive_rts_ho_aw_and_mark_old_tables() -> None:
 def _beam(spans: tuple[float, ...], supports: tuple[str, ...], loads: str,
           extra_cases: str = "", strength: str = "{ D = 1.4 }",
           patterning: str = "none"):  # type: ignore[no-untyped-def]
-    from envelope.analysis import solve_beam
     from envelope.recovery import stations
+    from envelope.solved import solve_beam
     from tests.beams import parse_text
 
     text = ['units = "SI"\n[section]\nE = 200000\nI = 4.0e8\n']
@@ -200,7 +200,7 @@ def _beam(spans: tuple[float, ...], supports: tuple[str, ...], loads: str,
                 f'factors = {strength}\n[patterning]\nmethod = "{patterning}"\n')
     beam = parse_text("\n".join(text))
     solved = solve_beam(beam)
-    return solved, stations(beam, solved.mesh, solved.units)
+    return solved, stations(beam, solved.mesh, solved.unit_cases)
 
 
 UDL = '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 10.0\n'

@@ -15,9 +15,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from envelope.analysis import analyse
 from envelope.casefile import load_case, parse_case
 from envelope.errors import CaseError
-from envelope.results import analyse
 from envelope.sizing import ltb, size, vibration
 from envelope.sizing.table import sizing_summary
 

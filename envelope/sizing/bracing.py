@@ -41,10 +41,12 @@ class Segments:
 
     @property
     def n(self) -> int:
+        """Number of unbraced segments."""
         return int(self.x0.size)
 
     @property
     def length(self) -> np.ndarray:
+        """Length of each segment."""
         return self.x1 - self.x0
 
     @property

@@ -62,6 +62,7 @@ class Shapes:
 
     @property
     def n(self) -> int:
+        """Number of shapes."""
         return len(self.name)
 
     def take(self, i: int) -> Shapes:

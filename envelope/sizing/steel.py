@@ -172,7 +172,7 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     u_d = np.where(mid, checks.deflection[:, k], np.nan)
     u_live = np.repeat(defl["utilisation_live"], 3) * np.repeat(i_model, 3) / Ix
     u_total = np.repeat(defl["utilisation_total"], 3) * np.repeat(i_model, 3) / Ix
-    for i in np.flatnonzero(mid):
+    for i in np.flatnonzero(mid).tolist():
         if u_d[i] > 1.0:
             which = "live-load" if u_live[i] >= u_total[i] else "total-load"
             failures[i].append(
@@ -293,7 +293,7 @@ def _row_messages(rows: Rows, shapes: Shapes, checks: Checks, inp: SteelInput, k
             failures[i].append(
                 f"moment: Mu = {abs(rows.moment[i]):.1f} {mu_unit} exceeds phi_b Mn = "
                 f"{limit} = {phi:.1f} {mu_unit} (AISC 360-22) by {_pct(um)}")
-    for i in np.flatnonzero(rows.is_end):
+    for i in np.flatnonzero(rows.is_end).tolist():
         us = checks.shear[i, k]
         if us > 1.0:
             failures[i].append(
@@ -319,7 +319,7 @@ def _row_messages(rows: Rows, shapes: Shapes, checks: Checks, inp: SteelInput, k
                 f"{state} {where}: Ru = {checks.bearing_force[i, k]:.1f} {f_unit} exceeds "
                 f"phi Rn = {checks.bearing_rn[i, k]:.1f} {f_unit} (lb = {lb:.3g} {lb_unit}) "
                 f"by {_pct(ub)}: bearing stiffeners needed (or a longer bearing)")
-    for i in np.flatnonzero(rows.is_span):
+    for i in np.flatnonzero(rows.is_span).tolist():
         c = checks.camber[i, k]
         dead = checks.dead_deflection[i, k]
         if np.isfinite(c):

@@ -20,15 +20,15 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope import config
-from envelope.analysis import case_responses
+from envelope.analysis import Analysis
 from envelope.enveloper import reduce
 from envelope.recovery import evaluate_some, make_points
-from envelope.results import Analysis
 from envelope.sizing import ltb, vibration, web
 from envelope.sizing.bracing import BracingSpec, Segments, segments
 from envelope.sizing.layout import Rows, section_to_consistent
 from envelope.sizing.shapes import Shapes
 from envelope.sizing.unbraced import SegmentDemand, segment_demands
+from envelope.solved import case_responses
 
 #: DG11: walking is checked only where fn >= 3 Hz is met as well (from memory).
 MIN_FREQUENCY = 3.0
@@ -193,7 +193,7 @@ def _bearing(analysis: Analysis, rows: Rows, shapes: Shapes, inp: SteelInput,
         out["force"][r] = np.where(better, ru, out["force"][r])
         out["lb"][r] = np.where(better, lb_sec, out["lb"][r])
 
-    env = analysis.reactions["reaction"]
+    env = analysis.reaction_envelopes["reaction"]
     if env is not None:
         for k, joint in enumerate(analysis.support_joints):
             ru = max(float(env.max[k]), 0.0)
@@ -214,7 +214,7 @@ def _bearing(analysis: Analysis, rows: Rows, shapes: Shapes, inp: SteelInput,
         side = np.r_[np.zeros(len(points), bool), np.ones(len(points), bool)]
         pts = make_points(beam, span, xs, side)
         solved = analysis.solved
-        v = evaluate_some(solved.mesh, solved.units, solved.solution, pts, ("shear",))
+        v = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts, ("shear",))
         jump = v["shear"][:len(points)] - v["shear"][len(points):]  # downward force
         if not solved.strength.is_empty:
             ext = reduce(jump, solved.strength, labels=False)

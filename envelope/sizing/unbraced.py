@@ -24,11 +24,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope import config
-from envelope.analysis import Solved
 from envelope.enveloper import governing_coefficients
 from envelope.recovery import Points, evaluate_some, make_points
 from envelope.sizing.bracing import Segments, locate
 from envelope.sizing.ltb import cb as cb_f1_1
+from envelope.solved import Solved
 
 #: Equally spaced points per segment, ends included; 33 puts points on the quarter points
 #: (indices 8, 16, 24).
@@ -71,7 +71,7 @@ def segment_demands(solved: Solved, stations: Points, segs: Segments) -> Segment
     for s in range(segs.n):
         sign = float(segs.sign[s])
         pts = _points(solved, stations, float(segs.x0[s]), float(segs.x1[s]))
-        r = evaluate_some(solved.mesh, solved.units, solved.solution, pts,
+        r = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
                           ("moment", "shear"))
         # the cases governing at some point of the segment (each combination with the
         # arrangement and the variable actions it takes there); with explicit
@@ -99,7 +99,7 @@ def segment_demands(solved: Solved, stations: Points, segs: Segments) -> Segment
             t = va[ii, cc] / (va[ii, cc] - vb[ii, cc])
             xr = x[ii] + t * dx[ii]
             span, xs = locate(np.asarray(solved.beam.joint_x), xr, np.ones(xr.size, bool))
-            rr = evaluate_some(solved.mesh, solved.units, solved.solution,
+            rr = evaluate_some(solved.mesh, solved.unit_cases, solved.solution,
                                make_points(solved.beam, span, xs), ("moment",))["moment"]
             m_root = np.einsum("ij,ji->i", rr, coef[:, cc])
             for k in range(ii.size):
