@@ -357,7 +357,7 @@ def _envelope(ax: Any, x: np.ndarray, hi: np.ndarray, lo: np.ndarray, pixels: in
 
 def _limits(ax: Any, values: Sequence[np.ndarray], flip: bool = False,
             room: float = 0.45) -> None:
-    """y limits with room for labels above and below the curves."""
+    """The y limits, with room for labels above and below the curves."""
     finite = np.concatenate([v[np.isfinite(v)] for v in values] + [np.zeros(1)])
     lo, hi = float(finite.min()), float(finite.max())
     span = hi - lo or max(abs(hi), 1.0)
@@ -694,6 +694,7 @@ def _moment_labels(ax: Any, labels: list[Label], env: Columns, design: Columns,
 
 
 def total_of(joint_x: np.ndarray) -> float:
+    """Length of the beam from its joint positions (1 for an empty beam)."""
     return float(joint_x[-1]) if joint_x.size else 1.0
 
 

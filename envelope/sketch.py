@@ -90,6 +90,7 @@ def sketch(beam: Beam) -> dict[str, Any]:
 
 
 def encode(beam: Beam) -> bytes:
+    """The beam strip as compact JSON (stored in the envelope table's metadata)."""
     return json.dumps(sketch(beam), separators=(",", ":")).encode()
 
 
