@@ -9,12 +9,12 @@ import numpy as np
 
 from envelope import config
 from envelope.actions import design_actions
-from envelope.solved import Solved, envelopes_at, solve_beam
 from envelope.enveloper import CaseSet, Extremes, reduce
 from envelope.limits import WorkLimits
 from envelope.limits import check as check_work
 from envelope.model import Beam
 from envelope.recovery import Points, evaluate, stations
+from envelope.solved import Solved, envelopes_at, solve_beam
 
 
 @dataclass(frozen=True, slots=True)

@@ -31,7 +31,6 @@ from __future__ import annotations
 
 import json
 from dataclasses import dataclass
-from typing import Any
 
 import numpy as np
 
@@ -213,6 +212,7 @@ def build_case_set(beam: Beam, combos: tuple[Combination, ...], units: UnitCases
             add_groups(k, k, whole[:, k], every_cell)
     else:
         every = frozenset(range(beam.n_spans))
+        assert sets is not None  # explicit arrangements: not superposed
         for k in range(n_k):
             spans = sets if has_pattern[k] else (every,)
             pat_k = is_patterned & (factor[:, k] != 0.0)

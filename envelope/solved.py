@@ -14,8 +14,8 @@ import numpy as np
 from envelope import config
 from envelope.combinations import build as build_combinations
 from envelope.combinations import variable_alone
-from envelope.geometry import Geometry
 from envelope.enveloper import CaseSet, Extremes, build_case_set, reduce
+from envelope.geometry import Geometry
 from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
 from envelope.mesh import Mesh, build_mesh
 from envelope.model import Beam, Combination

@@ -18,8 +18,8 @@ import tomllib
 import numpy as np
 import pytest
 
+from envelope.analysis import Analysis, analyse
 from envelope.casefile import parse_case
-from envelope.results import Analysis, analyse
 from envelope.store import cases_table, design_table
 
 ONE_SPAN = """
@@ -110,7 +110,7 @@ def test_favourable_wind_is_left_out_of_the_sagging_maximum() -> None:
     # max M = (1.35 x 2 + 1.5 x 3) x 6^2 / 8 = 32.40: snow leads, wind (favourable,
     # psi_0 0.6) is left out, gamma_Q = 0 where favourable (Table A1.2(B)).
     a = run(ONE_SPAN)
-    m = a.envelope["moment"]
+    m = a.station_envelopes["moment"]
     assert m is not None
     mid = 1  # stations 0, 3, 6 m
     assert m.max[mid] == pytest.approx(32.40, rel=1e-12)
@@ -122,7 +122,7 @@ def test_wind_suction_reverses_the_moment_with_permanent_load_at_gamma_g_inf() -
     # min M = (1.0 x 2 - 1.5 x 3) x 6^2 / 8 = -11.25: G at gamma_G,inf 1.00, wind
     # leading, snow (unfavourable here) left out.
     a = run(ONE_SPAN)
-    m = a.envelope["moment"]
+    m = a.station_envelopes["moment"]
     assert m is not None
     assert m.min[1] == pytest.approx(-11.25, rel=1e-12)
     assert names(a)[m.min_combo[1]] == "G + 0.75S + 1.5W"
@@ -132,7 +132,7 @@ def test_wind_suction_reverses_the_moment_with_permanent_load_at_gamma_g_inf() -
 def test_least_reaction_is_the_uplift_of_1_0g_plus_1_5w() -> None:
     # R = (1.0 x 2 - 1.5 x 3) x 6 / 2 = -7.50 at each support (uplift).
     a = run(ONE_SPAN)
-    r = a.reactions["reaction"]
+    r = a.reaction_envelopes["reaction"]
     assert r is not None
     assert r.min == pytest.approx([-7.50, -7.50], rel=1e-12)
     assert r.max == pytest.approx([(1.35 * 2 + 1.5 * 3) * 3] * 2, rel=1e-12)
@@ -147,7 +147,7 @@ def test_least_end_reaction_has_live_load_on_the_far_span_only(method: str) -> N
     if method == "segments":
         text = text.replace('method = "segments"', 'method = "segments"\nsegments = 2')
     a = run(text)
-    r = a.reactions["reaction"]
+    r = a.reaction_envelopes["reaction"]
     assert r is not None
     assert r.min[0] == pytest.approx(38.25, rel=1e-12)
     assert r.min[2] == pytest.approx(38.25, rel=1e-12)
@@ -161,7 +161,7 @@ def test_least_hogging_at_the_middle_support_is_1_0g_alone(method: str) -> None:
     # -1/8 x 20 x 6^2 = -90.0 with G at gamma_G,inf and no live load anywhere; the most
     # hogging is 1.35 x -90 + 1.5 x -1/8 x 12 x 36 = -202.5 (Q on both spans).
     a = run(TWO_SPANS.format(method=method))
-    m = a.envelope["moment"]
+    m = a.station_envelopes["moment"]
     assert m is not None
     st = a.stations
     at = np.flatnonzero((st.span == 0) & (st.x_span == 6.0))
@@ -214,7 +214,7 @@ def test_national_factors_psi_and_service_lists_are_read_and_used() -> None:
     assert dict(beam.combinations.factors) == {"G_sup": 1.25, "G_inf": 0.9, "Q": 1.6}
     assert (beam.case("W").psi0, beam.case("W").psi1, beam.case("W").psi2) == (0.5, None, 0.1)
     a = analyse(beam)
-    m = a.envelope["moment"]
+    m = a.station_envelopes["moment"]
     assert m is not None
     assert m.max[1] == pytest.approx(32.85, rel=1e-12)
     assert m.min[1] == pytest.approx(-13.50, rel=1e-12)

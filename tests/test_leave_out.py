@@ -29,9 +29,9 @@ from test_reference import (
     random_spec,
 )
 
+from envelope.analysis import Analysis, analyse
 from envelope.combinations import build as build_combinations
 from envelope.model import Beam, Combination, CombinationSpec
-from envelope.results import Analysis, analyse
 
 import reference as ref
 
@@ -110,7 +110,7 @@ def test_superposed_envelope_equals_every_on_off_choice(
         R = table.values[q]
         scale_r = max(float(np.abs(R).max(initial=0.0)), 1e-300) * 1.6
         want = ref.envelope(beam, combos, table, R, TIE_RTOL * scale_r)
-        got = a.envelope[q]
+        got = a.station_envelopes[q]
         assert got is not None
         scale = _scale(want)
         _close(got.max, want.max, scale, f"{q} max")
@@ -120,7 +120,7 @@ def test_superposed_envelope_equals_every_on_off_choice(
     R = table.reaction[joints]
     scale_r = max(float(np.abs(R).max(initial=0.0)), 1e-300) * 1.6
     want = ref.envelope(beam, strength, table, R, TIE_RTOL * scale_r)
-    got = a.reactions["reaction"]
+    got = a.reaction_envelopes["reaction"]
     assert got is not None
     _close(got.max, want.max, _scale(want), "reaction max")
     _close(got.min, want.min, _scale(want), "reaction min")
