@@ -22,8 +22,6 @@ from envelope.analysis import analyse as _analyse
 from envelope.casefile import load_case
 from envelope.errors import EnvelopeError, EnvelopeWarning, OutputError
 from envelope.files import real_folder
-from envelope.analysis import Analysis
-from envelope.analysis import analyse as _analyse
 
 if TYPE_CHECKING:
     import pyarrow as pa

@@ -49,6 +49,7 @@ class WorkLimits:
     max_seconds: float = config.WORK_MAX_SECONDS
 
     def memory(self) -> float:
+        """The memory a beam may use, in bytes (given, or half the machine's)."""
         if self.max_memory is not None:
             return self.max_memory
         return config.WORK_MEMORY_SHARE * machine_memory()
