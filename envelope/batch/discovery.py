@@ -82,7 +82,7 @@ def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None)
 
     def add_folder(folder: str) -> None:
         base = Path(folder)
-        names: list[str] = []
+        names: list[Path] = []
         for root, dirs, files in os.walk(folder, followlinks=False):
             dirs[:] = [d for d in dirs if not d.startswith(".")]
             names.extend(Path(root) / f for f in files if f.endswith(".toml"))
