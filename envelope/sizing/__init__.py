@@ -88,7 +88,6 @@ def size_with_candidates(analysis: Analysis
                "deflection_total_allowed": defl["allowed_total"] * factor,
                **extents(analysis)}
     on_span = {k: np.where(mid, np.repeat(v, 3), np.nan) for k, v in by_span.items()}
-    joint_x = np.asarray(beam.joint_x)
     out: dict[str, np.ndarray] = {
         "beam": np.full(n, beam.id, dtype=object),
         "span": rows.span + 1,

@@ -44,7 +44,7 @@ PSI_TOP = 1.3
 def development_length_aci(db: np.ndarray | float, fy: float, fc: float, system: str,
                            top: np.ndarray | bool, spacing_ok: np.ndarray | bool = True,
                            lam: float = 1.0) -> np.ndarray:
-    """ld of ACI 318-19 Table 25.4.2.3 (in or mm; fy, f'c in psi or MPa)."""
+    """Ld of ACI 318-19 Table 25.4.2.3 (in or mm; fy, f'c in psi or MPa)."""
     db = np.asarray(db, dtype=float)
     small, large, limit = ACI_LD[system]
     psi_g = next(f for cap, f in PSI_G[system] if fy <= cap)
@@ -58,7 +58,7 @@ def development_length_aci(db: np.ndarray | float, fy: float, fc: float, system:
 
 def anchorage_length_en(db: np.ndarray | float, fyk: float, fck: float,
                         good_bond: np.ndarray | bool) -> np.ndarray:
-    """lbd of EN 1992-1-1 8.4 with the alpha factors 1 (mm; MPa), see the module
+    """Lbd of EN 1992-1-1 8.4 with the alpha factors 1 (mm; MPa), see the module
     docstring."""
     from envelope.sizing.concrete_en import GAMMA_C, GAMMA_S, fctm
 
