@@ -20,9 +20,9 @@ import numpy as np
 import pytest
 from scipy.integrate import quad
 
+from envelope.analysis import analyse
 from envelope.casefile import parse_case
 from envelope.design import LongTerm
-from envelope.results import analyse
 from envelope.sizing import size
 
 ACI = {"material": "concrete", "code": "aci318-19", "b": 300, "h": 600,

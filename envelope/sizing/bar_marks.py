@@ -26,14 +26,14 @@ from typing import Any
 import numpy as np
 
 from envelope import config
-from envelope.analysis import envelope_at
+from envelope.analysis import Analysis
 from envelope.design import ConcreteDesign
 from envelope.recovery import make_points
-from envelope.results import Analysis
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
 from envelope.sizing import cutoffs
 from envelope.sizing.layout import ACI_SCALES, EN_SCALES
+from envelope.solved import envelope_at
 
 #: Samples per span of the envelope before the cut-off points are bisected.
 SAMPLES = 200

@@ -64,6 +64,7 @@ class BarSet:
     standard: str
 
     def label(self, i: int) -> str:
+        """The name of bar size ``i``."""
         return self.names[i]
 
 

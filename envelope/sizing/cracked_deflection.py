@@ -42,11 +42,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope import config
-from envelope.analysis import Solved
 from envelope.combinations import PERMANENT_KINDS
 from envelope.enveloper import governing_coefficients, reduce
 from envelope.recovery import evaluate_some, make_points
 from envelope.sizing import cracked, curvature
+from envelope.solved import Solved
 
 #: psi_2 of EN 1990 Table A1.1 (recommended values, from memory): the quasi-permanent
 #: share of each variable action (by imposed-load category, snow below 1000 m, wind).
@@ -121,7 +121,7 @@ def _diagrams(solved: Solved, span: int, x: np.ndarray, coef: np.ndarray
     pts = make_points(beam, np.full(n + 2, span),
                       np.r_[x, 0.0, beam.spans[span].length],
                       np.r_[np.ones(n, bool), True, False])
-    r = evaluate_some(solved.mesh, solved.units, solved.solution, pts,
+    r = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
                       ("moment", "deflection"))
     return r["moment"][:n] @ coef, r["deflection"][n:] @ coef
 
@@ -319,7 +319,7 @@ def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
             failures[j].append("cracked deflection not checked: no service combinations")
         return {**res, "notes": notes, "failures": failures}
     frac = sustained_fractions(solved, inputs.code, inputs.sustained)
-    unit_case = solved.units.case
+    unit_case = solved.unit_cases.case
     permanent = np.array([c.kind in PERMANENT_KINDS for c in beam.cases])[unit_case]
     aci = inputs.code == "aci318-19"
     lam = float(cracked.lambda_delta(inputs.months, 0.0)) if aci else np.nan
@@ -332,7 +332,7 @@ def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
             continue
         x_c = _grid(solved, j)
         pts = make_points(beam, np.full(x_c.size, j), x_c)
-        r_def = evaluate_some(solved.mesh, solved.units, solved.solution, pts,
+        r_def = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
                               ("deflection",))["deflection"]
         env = reduce(r_def, cs, labels=False)
         k = int(np.argmax(env.max))

@@ -25,10 +25,10 @@ from typing import Any
 
 import numpy as np
 
+from envelope.analysis import Analysis
 from envelope.combinations import PERMANENT_KINDS
 from envelope.design import ConcreteDesign
 from envelope.recovery import evaluate_some, make_points
-from envelope.results import Analysis
 from envelope.sizing import bars as bar_mod
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
@@ -134,9 +134,9 @@ def _sustained_moment(analysis: Analysis, rows: Rows, p: Params) -> np.ndarray:
     solved = analysis.solved
     pts = make_points(solved.beam, rows.span, np.nan_to_num(rows.x_span),
                       rows.section != "right")
-    r = evaluate_some(solved.mesh, solved.units, solved.solution, pts, ("moment",))["moment"]
+    r = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts, ("moment",))["moment"]
     frac = cdefl.sustained_fractions(solved, p.code, p.sustained)
-    unit_case = solved.units.case
+    unit_case = solved.unit_cases.case
     permanent = np.array([c.kind in PERMANENT_KINDS for c in solved.beam.cases])[unit_case]
     sign = np.where(rows.moment >= 0.0, 1.0, -1.0)[:, None]
     fixed = (r * permanent).sum(axis=1)
@@ -231,7 +231,7 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
     to_c = beam.units.to_consistent("deflection")
     h = float(design.h) * to_c  # consistent length
     lab = beam.units.labels
-    env = analysis.reactions["reaction"]
+    env = analysis.reaction_envelopes["reaction"]
     if env is not None:
         scale = max(float(np.max(np.abs(env.max))), float(np.max(np.abs(env.min))), 1e-300)
         for k, joint in enumerate(analysis.support_joints):

@@ -16,9 +16,9 @@ import dataclasses
 
 import numpy as np
 
+from envelope.analysis import Analysis
 from envelope.enveloper import reduce
 from envelope.recovery import evaluate_some, make_points
-from envelope.results import Analysis
 from envelope.sizing.layout import Rows
 
 
@@ -44,7 +44,7 @@ def seat_rows(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[int, str
             x = 0.0 if end == "left" else beam.spans[j].length
             pts = make_points(beam, np.array([j]), np.array([x]),
                               np.array([end == "left"]))
-            m_u = evaluate_some(solved.mesh, solved.units, solved.solution, pts,
+            m_u = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
                                 ("moment",))["moment"]
             if design.code == "en1992-1-1":
                 r_u = solved.solution.reaction[joint][None, :]
