@@ -109,7 +109,9 @@ def _screenshot(url: str, tmp: Path, name: str) -> np.ndarray:
 def _not_blank(pixels: np.ndarray) -> None:
     grey = pixels[..., :3].mean(axis=2)
     assert grey.std() > 0.05, "the page rendered blank"
-    assert (grey < 0.5).mean() > 0.002, "no dark text or lines on the page"
+    # a page of small tables (the run's combinations) inks about 0.1 % of its pixels at
+    # 50 dpi; a blank page none
+    assert (grey < 0.5).mean() > 0.0003, "no dark text or lines on the page"
 
 
 def test_beam_report_renders_in_chromium_with_tables_and_figures(batch_out: Path,
