@@ -9,7 +9,7 @@ import numpy as np
 
 from envelope import config
 from envelope.actions import design_actions
-from envelope.enveloper import CaseSet, Extremes, reduce
+from envelope.enveloper import CaseSet, Extremes, SuperposedCaseSet, reduce
 from envelope.limits import WorkLimits
 from envelope.limits import check as check_work
 from envelope.model import Beam
@@ -86,7 +86,7 @@ def _reduce_rows(R: np.ndarray, cs: CaseSet) -> Extremes | None:
 
 
 def explicit_case_blocks(analysis: Analysis) -> Iterator[dict[str, np.ndarray]]:
-    """Every explicit case (strength, then service; see ``CaseSet.explicit_cases``) at
+    """Every explicit case (strength, then service; see ``explicit_cases`` of the case sets) at
     every station, in blocks of stations, long format: case index (rows of
     cases.parquet with ``all_cases``), span (1-based), x, x_span, shear, moment,
     rotation and deflection in output units.  One block is in memory at a time."""
@@ -96,7 +96,7 @@ def explicit_case_blocks(analysis: Analysis) -> Iterator[dict[str, np.ndarray]]:
     coefs, offsets = [], []
     offset = 0
     for cs in sets:
-        if cs.superposed:
+        if isinstance(cs, SuperposedCaseSet):
             offset += len(cs.combinations)  # the "any" rows come first in cases.parquet
         coef, _, _ = cs.explicit_cases()
         coefs.append(coef)

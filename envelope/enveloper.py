@@ -31,6 +31,7 @@ from __future__ import annotations
 
 import json
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -43,22 +44,20 @@ Masks = tuple[tuple[str, tuple[bool, ...]], ...]
 
 
 @dataclass(frozen=True, slots=True)
-class CaseSet:
-    """One combination set as columns of coefficients over unit cases (see the module
-    docstring).  Shapes: units x columns for ``fixed``, ``patterned``, ``dead_var``;
-    units x groups for ``groups``."""
+class _Columns:
+    """What every case set holds: its combinations as columns of coefficients over
+    the unit cases, and the whole-case on/off groups of each column.
+
+    Coefficients are dimensionless factors on unit-case responses.  Shapes: units x
+    columns for ``fixed``; units x distinct groups for ``groups``.
+    """
 
     combinations: tuple[Combination, ...]
     cell_labels: tuple[str, ...]
     unit_case_name: tuple[str, ...]  # per unit
     unit_cell: np.ndarray  # per unit
-    superposed: bool
     col_combo: np.ndarray  # (columns,) combination index
-    col_cells: np.ndarray  # (columns, cells) bool: the arrangement's loaded cells
-    col_masks: tuple[Masks, ...]  # per column: cells of its patterned cases always acting
-    fixed: np.ndarray
-    patterned: np.ndarray  # per-unit on/off factors (superposition), else zeros
-    dead_var: np.ndarray  # dead factors that depend on the pattern (superposition)
+    fixed: np.ndarray  # factors always applied
     groups: np.ndarray  # whole-case on/off factors, each distinct vector once
     group_src: np.ndarray  # (groups,) column of ``groups`` holding each group's factors
     group_col: np.ndarray  # (groups,) column of each group, ascending
@@ -66,14 +65,15 @@ class CaseSet:
     group_mask: np.ndarray  # (groups, cells) bool: where the group's case acts when on
     switchable: tuple[tuple[str, ...], ...]  # per combination: cases named in _loaded
     all_patterned: tuple[bool, ...]  # per combination: every switchable case patterned
-    favourable_dead: float
 
     @property
     def is_empty(self) -> bool:
+        """True for a set with no combination (nothing to envelope)."""
         return not self.combinations
 
     @property
     def n_columns(self) -> int:
+        """Number of columns (combination and arrangement pairs)."""
         return int(self.col_combo.size)
 
     def membership(self) -> np.ndarray:
@@ -82,38 +82,78 @@ class CaseSet:
         m[np.arange(self.group_col.size), self.group_col] = 1.0
         return m
 
+    def _group_coefficients(self) -> np.ndarray:
+        """(units x columns) every group of each column acting."""
+        return self.groups[:, self.group_src] @ self.membership()
+
+    def _row(self, k: int, loaded: str) -> dict[str, str]:
+        c = self.combinations[k]
+        return {"combination": c.name, "loaded": loaded, "factors": json.dumps(dict(c.factors))}
+
+
+@dataclass(frozen=True, slots=True)
+class ExplicitCaseSet(_Columns):
+    """A combination set under explicit arrangements (patterning ``none`` or
+    ``code``): one column per combination and loaded span set, its patterned cases
+    on the arrangement's spans and, with ``favourable_dead`` below 1, the dead load of
+    the other spans at that factor, all folded into ``fixed``."""
+
+    col_cells: np.ndarray  # (columns, cells) bool: the arrangement's loaded cells
+    col_masks: tuple[Masks, ...]  # per column: cells of its patterned cases always acting
+
     def _column_text(self, c: int) -> str:
         cells = self.col_cells[c]
         return loaded_label(self.cell_labels, list(cells), bool(cells.all()))
 
     def case_rows(self, explicit: bool = False) -> list[dict[str, str]]:
-        """What was run: one row per explicit case, or per combination ("any") for the
-        superposition methods.  With ``explicit``, a superposed set also lists each
-        combination with every span loaded ("all"), the cases of :meth:`explicit_cases`.
-        Each row gives the combination, the loaded text and the factors (JSON)."""
-        rows = []
-        if self.superposed:
-            rows = [{"combination": c.name, "loaded": "any",
-                     "factors": json.dumps(dict(c.factors))} for c in self.combinations]
-            if not explicit:
-                return rows
+        """What was run: one row per arrangement of each combination, giving the
+        combination, the ``loaded`` text and the factors (JSON).  ``explicit`` is
+        accepted for symmetry with :meth:`SuperposedCaseSet.case_rows`: every row
+        already is an explicit case."""
         _, combo, loaded = self.explicit_cases()
-        for k, text in zip(combo, loaded, strict=True):
-            c = self.combinations[int(k)]
-            rows.append({"combination": c.name, "loaded": text,
-                         "factors": json.dumps(dict(c.factors))})
+        return [self._row(int(k), text) for k, text in zip(combo, loaded, strict=True)]
+
+    def explicit_cases(self) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
+        """Coefficients (units x cases), combination index and ``loaded`` text of each
+        arrangement run, every case of its combination acting."""
+        coef = self.fixed + self._group_coefficients()
+        return coef, self.col_combo, tuple(self._column_text(c) for c in range(self.n_columns))
+
+
+@dataclass(frozen=True, slots=True)
+class SuperposedCaseSet(_Columns):
+    """A combination set under superposition (patterning ``exhaustive`` or
+    ``segments``): one column per combination whose ``patterned`` factors put each
+    patterned unit case (one case on one cell) on or off independently.
+
+    ``dead_var`` holds the dead factors whose value depends on the pattern: with
+    ``favourable_dead`` below 1, a cell without patterned load takes its dead load at
+    ``favourable_dead`` times the factor.  Shapes: units x columns.
+    """
+
+    patterned: np.ndarray  # per-unit on/off factors
+    dead_var: np.ndarray  # dead factors that depend on the pattern
+    favourable_dead: float  # dead-load factor multiplier on cells left unloaded
+
+    def case_rows(self, explicit: bool = False) -> list[dict[str, str]]:
+        """What was run: one row per combination (``loaded`` ``"any"``); with
+        ``explicit`` also each combination with every cell loaded (``"all"``), the
+        cases of :meth:`explicit_cases`.  Each row gives the combination, the loaded
+        text and the factors (JSON)."""
+        rows = [self._row(k, "any") for k in range(len(self.combinations))]
+        if explicit:
+            rows += [self._row(int(k), "all") for k in self.col_combo]
         return rows
 
     def explicit_cases(self) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
-        """Coefficients (units x cases), combination index and ``loaded`` text of the
-        explicit cases, every case of the combination acting: the arrangements run for
-        ``none`` and ``code``; for the superposition methods, each combination with
-        every cell loaded."""
-        coef = (self.fixed + self.patterned + self.dead_var
-                + self.groups[:, self.group_src] @ self.membership())
-        if self.superposed:
-            return coef, self.col_combo, ("all",) * self.n_columns
-        return coef, self.col_combo, tuple(self._column_text(c) for c in range(self.n_columns))
+        """Coefficients (units x cases), combination index and ``loaded`` text
+        (``"all"``) of each combination with every case acting on every cell."""
+        coef = self.fixed + self.patterned + self.dead_var + self._group_coefficients()
+        return coef, self.col_combo, ("all",) * self.n_columns
+
+
+#: A combination set as coefficients over unit cases, either kind.
+CaseSet = ExplicitCaseSet | SuperposedCaseSet
 
 
 @dataclass(frozen=True, slots=True)
@@ -149,117 +189,199 @@ def _switchable(combo: Combination, units_case: list[str], patterned: dict[str, 
     return tuple(out)
 
 
-def build_case_set(beam: Beam, combos: tuple[Combination, ...], units: UnitCases,
-                   cells: Cells, favourable_dead: float | None = None) -> CaseSet:
-    """Coefficient data of ``combos`` over the unit cases, for the beam's patterning.
-    ``favourable_dead`` defaults to the patterning's (give 1.0 for service sets)."""
-    pat: Patterning = beam.patterning
-    fav = pat.favourable_dead if favourable_dead is None else favourable_dead
+@dataclass(frozen=True, slots=True)
+class _Inputs:
+    """Per unit case and per combination, what both builders need (units x
+    combinations for ``factor`` and ``optional``)."""
+
+    names: list[str]  # case name per unit
+    factor: np.ndarray  # the combination's factor on each unit's case
+    is_patterned: np.ndarray  # per unit: its case is patterned
+    is_dead: np.ndarray  # per unit: its case is dead load
+    optional: np.ndarray  # the case acts only where unfavourable
+    has_pattern: np.ndarray  # per combination: some patterned case has a factor
+    whole: np.ndarray  # non-patterned cases acting or not, over the whole beam
+    switchable: tuple[tuple[str, ...], ...]
+    all_patterned: tuple[bool, ...]
+    pattern_of: dict[str, bool]
+
+
+def _inputs(beam: Beam, combos: tuple[Combination, ...], units: UnitCases) -> _Inputs:
     cases = beam.cases
-    n_u, n_k, n_g = units.n_units, len(combos), cells.n
+    n_u, n_k = units.n_units, len(combos)
     names = [cases[i].name for i in units.case]
     factor = np.array([[c.factor(n) for c in combos] for n in names]).reshape(n_u, n_k)
     is_patterned = np.array([cases[i].patterned for i in units.case], dtype=bool)
     is_dead = np.array([cases[i].kind == "dead" for i in units.case], dtype=bool)
     optional = np.array([[n in c.optional for c in combos] for n in names],
                         dtype=bool).reshape(n_u, n_k)
-    has_pattern = (np.abs(factor) * is_patterned[:, None]).sum(axis=0) > 0  # per combo
-    unit_span = cells.span[units.cell]
+    has_pattern = (np.abs(factor) * is_patterned[:, None]).sum(axis=0) > 0
     pattern_of = {c.name: c.patterned for c in cases}
     switchable = tuple(_switchable(c, names, pattern_of) for c in combos)
-    all_patterned = tuple(all(pattern_of[n] for n in sw) for sw in switchable)
+    return _Inputs(
+        names=names, factor=factor, is_patterned=is_patterned, is_dead=is_dead,
+        optional=optional, has_pattern=has_pattern,
+        whole=~is_patterned[:, None] & optional, switchable=switchable,
+        all_patterned=tuple(all(pattern_of[n] for n in sw) for sw in switchable),
+        pattern_of=pattern_of)
 
-    cols: dict[str, list[np.ndarray]] = {"fixed": [], "patterned": [], "dead": [],
-                                         "cells": []}
-    col_combo: list[int] = []
-    col_masks: list[Masks] = []
-    distinct: list[np.ndarray] = []  # each distinct group vector once
-    known: dict[bytes, int] = {}
-    group_src: list[int] = []
-    group_col: list[int] = []
-    group_case: list[str] = []
-    group_mask: list[np.ndarray] = []
 
-    of_case = {n: np.array([m == n for m in names], dtype=bool) for n in set(names)}
+class _Groups:
+    """The whole-case on/off groups as they are added, column by column; each distinct
+    vector of factors is stored once."""
 
-    def add_groups(k: int, col: int, select: np.ndarray, mask: np.ndarray) -> None:
-        """One group per case among the units ``select``: that case's factors there."""
-        for name in switchable[k]:
-            part = np.where(select & of_case[name], factor[:, k], 0.0)
+    def __init__(self, inp: _Inputs) -> None:
+        self.inp = inp
+        self.distinct: list[np.ndarray] = []
+        self.known: dict[bytes, int] = {}
+        self.src: list[int] = []
+        self.col: list[int] = []
+        self.case: list[str] = []
+        self.mask: list[np.ndarray] = []
+        self.of_case = {n: np.array([m == n for m in inp.names], dtype=bool)
+                        for n in set(inp.names)}
+
+    def add(self, k: int, col: int, mask: np.ndarray) -> None:
+        """One group per switchable case of combination ``k`` that is not patterned:
+        that case's factors, acting where ``mask`` says when on."""
+        inp = self.inp
+        for name in inp.switchable[k]:
+            part = np.where(inp.whole[:, k] & self.of_case[name], inp.factor[:, k], 0.0)
             if np.any(part != 0.0):
-                src = known.setdefault(part.tobytes(), len(distinct))
-                if src == len(distinct):
-                    distinct.append(part)
-                group_src.append(src)
-                group_col.append(col)
-                group_case.append(name)
-                group_mask.append(mask)
+                src = self.known.setdefault(part.tobytes(), len(self.distinct))
+                if src == len(self.distinct):
+                    self.distinct.append(part)
+                self.src.append(src)
+                self.col.append(col)
+                self.case.append(name)
+                self.mask.append(mask)
 
-    every_cell = np.ones(n_g, dtype=bool)
+    def fields(self, n_u: int, n_g: int) -> dict[str, Any]:
+        """The group fields of a case set."""
+        return {"groups": _stack(self.distinct, n_u),
+                "group_src": np.array(self.src, dtype=np.int64),
+                "group_col": np.array(self.col, dtype=np.int64),
+                "group_case": tuple(self.case),
+                "group_mask": np.array(self.mask, dtype=bool).reshape(len(self.col), n_g)}
+
+
+def _stack(parts: list[np.ndarray], rows: int) -> np.ndarray:
+    """Vectors as the columns of a (rows x len(parts)) array."""
+    return np.array(parts).T.reshape(rows, len(parts)) if parts else np.zeros((rows, 0))
+
+
+def build_case_set(beam: Beam, combos: tuple[Combination, ...], units: UnitCases,
+                   cells: Cells, favourable_dead: float | None = None) -> CaseSet:
+    """Coefficients of a combination set over the unit cases, for the beam's patterning.
+
+    Parameters
+    ----------
+    beam : Beam
+        The beam; its ``patterning`` chooses explicit arrangements (``none``,
+        ``code``) or superposition (``exhaustive``, ``segments``).
+    combos : tuple of Combination
+        The set's combinations (dimensionless factors by case name).
+    units : UnitCases
+        The unit cases (one load case on one cell), in solution column order.
+    cells : Cells
+        The parts of the spans that patterning loads or leaves empty.
+    favourable_dead : float, optional
+        Factor on the dead load of cells left without patterned load; defaults to
+        the patterning's (service sets give 1.0: EN 1990 6.5.3 takes every
+        permanent action at 1.0).
+
+    Returns
+    -------
+    ExplicitCaseSet or SuperposedCaseSet
+        The columns and on/off parts that :func:`reduce` envelopes.
+    """
+    pat: Patterning = beam.patterning
+    fav = pat.favourable_dead if favourable_dead is None else favourable_dead
+    inp = _inputs(beam, combos, units)
     sets = arrangements(pat, beam.n_spans)
-    superposed = sets is None
-    whole = ~is_patterned[:, None] & optional  # non-patterned cases acting or not
-    if superposed:
-        for k in range(n_k):
-            variable_dead = is_dead & has_pattern[k] & (fav != 1.0)
-            cols["patterned"].append(np.where(is_patterned, factor[:, k], 0.0))
-            cols["dead"].append(np.where(variable_dead, factor[:, k], 0.0))
-            cols["fixed"].append(np.where(is_patterned | variable_dead | whole[:, k], 0.0,
-                                          factor[:, k]))
-            cols["cells"].append(every_cell)
+    if sets is None:
+        return _superposed(combos, units, cells, inp, fav)
+    return _explicit(beam, combos, units, cells, inp, fav, sets)
+
+
+def _common(combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
+            inp: _Inputs, col_combo: list[int], fixed: list[np.ndarray],
+            groups: _Groups) -> dict[str, Any]:
+    """The fields every case set has, from its columns."""
+    n_u = units.n_units
+    return {"combinations": combos, "cell_labels": cells.label,
+            "unit_case_name": tuple(inp.names), "unit_cell": units.cell,
+            "col_combo": np.array(col_combo, dtype=np.int64), "fixed": _stack(fixed, n_u),
+            **groups.fields(n_u, cells.n), "switchable": inp.switchable,
+            "all_patterned": inp.all_patterned}
+
+
+def _superposed(combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
+                inp: _Inputs, fav: float) -> SuperposedCaseSet:
+    """One column per combination: its patterned unit cases on/off one by one, the
+    dead load of a combination with patterned load pattern-dependent when ``fav`` is
+    not 1, the optional whole cases as groups acting over every cell."""
+    every_cell = np.ones(cells.n, dtype=bool)
+    fixed, patterned, dead = [], [], []
+    groups = _Groups(inp)
+    for k in range(len(combos)):
+        f_k = inp.factor[:, k]
+        variable_dead = inp.is_dead & inp.has_pattern[k] & (fav != 1.0)
+        patterned.append(np.where(inp.is_patterned, f_k, 0.0))
+        dead.append(np.where(variable_dead, f_k, 0.0))
+        fixed.append(np.where(inp.is_patterned | variable_dead | inp.whole[:, k], 0.0, f_k))
+        groups.add(k, k, every_cell)
+    n_u = units.n_units
+    return SuperposedCaseSet(
+        **_common(combos, units, cells, inp, list(range(len(combos))), fixed, groups),
+        patterned=_stack(patterned, n_u), dead_var=_stack(dead, n_u), favourable_dead=fav)
+
+
+def _explicit(beam: Beam, combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
+              inp: _Inputs, fav: float, sets: tuple[frozenset[int], ...]) -> ExplicitCaseSet:
+    """One column per combination and loaded span set (all spans for a combination
+    without patterned load; also no span at all where every patterned case of the
+    combination is optional), the factors of that arrangement folded into ``fixed``."""
+    every = frozenset(range(beam.n_spans))
+    every_cell = np.ones(cells.n, dtype=bool)
+    unit_span = cells.span[units.cell]
+    col_combo: list[int] = []
+    fixed, col_cells = [], []
+    col_masks: list[Masks] = []
+    groups = _Groups(inp)
+    for k in range(len(combos)):
+        f_k = inp.factor[:, k]
+        spans = sets if inp.has_pattern[k] else (every,)
+        pat_k = inp.is_patterned & (f_k != 0.0)
+        if inp.has_pattern[k] and np.all(inp.optional[pat_k, k]):
+            spans = (*spans, frozenset())  # no patterned case acting at all
+        for s in spans:
+            span_on = np.zeros(beam.n_spans, dtype=bool)
+            span_on[list(s)] = True
+            on, cell_on = span_on[unit_span], span_on[cells.span]
+            f = np.where(inp.is_patterned, np.where(on, f_k, 0.0), f_k)
+            f = np.where(inp.is_dead & ~on, f_k * fav, f)
+            fixed.append(np.where(inp.whole[:, k], 0.0, f))
+            col_cells.append(cell_on)
+            col_masks.append(tuple((n, tuple(bool(b) for b in cell_on))
+                                   for n in inp.switchable[k] if inp.pattern_of[n]))
+            groups.add(k, len(col_combo), every_cell)
             col_combo.append(k)
-            col_masks.append(())
-            add_groups(k, k, whole[:, k], every_cell)
-    else:
-        every = frozenset(range(beam.n_spans))
-        assert sets is not None  # explicit arrangements: not superposed
-        for k in range(n_k):
-            spans = sets if has_pattern[k] else (every,)
-            pat_k = is_patterned & (factor[:, k] != 0.0)
-            if has_pattern[k] and np.all(optional[pat_k, k]):
-                spans = (*spans, frozenset())  # no patterned case acting at all
-            for s in spans:
-                col = len(col_combo)
-                span_on = np.zeros(beam.n_spans, dtype=bool)
-                span_on[list(s)] = True
-                on, cell_on = span_on[unit_span], span_on[cells.span]
-                f = np.where(is_patterned, np.where(on, factor[:, k], 0.0), factor[:, k])
-                f = np.where(is_dead & ~on, factor[:, k] * fav, f)
-                f = np.where(whole[:, k], 0.0, f)
-                cols["fixed"].append(f)
-                cols["patterned"].append(np.zeros(n_u))
-                cols["dead"].append(np.zeros(n_u))
-                cols["cells"].append(cell_on)
-                col_combo.append(k)
-                col_masks.append(tuple((n, tuple(bool(b) for b in cell_on))
-                                       for n in switchable[k] if pattern_of[n]))
-                add_groups(k, col, whole[:, k], every_cell)
-
-    def stack(parts: list[np.ndarray], rows: int) -> np.ndarray:
-        return np.array(parts).T.reshape(rows, len(parts)) if parts else np.zeros((rows, 0))
-
-    return CaseSet(
-        combinations=combos, cell_labels=cells.label, unit_case_name=tuple(names),
-        unit_cell=units.cell, superposed=superposed,
-        col_combo=np.array(col_combo, dtype=np.int64),
-        col_cells=np.array(cols["cells"], dtype=bool).reshape(len(col_combo), n_g),
-        col_masks=tuple(col_masks),
-        fixed=stack(cols["fixed"], n_u), patterned=stack(cols["patterned"], n_u),
-        dead_var=stack(cols["dead"], n_u), groups=stack(distinct, n_u),
-        group_src=np.array(group_src, dtype=np.int64),
-        group_col=np.array(group_col, dtype=np.int64), group_case=tuple(group_case),
-        group_mask=np.array(group_mask, dtype=bool).reshape(len(group_col), n_g),
-        switchable=switchable, all_patterned=all_patterned, favourable_dead=fav)
+    return ExplicitCaseSet(
+        **_common(combos, units, cells, inp, col_combo, fixed, groups),
+        col_cells=np.array(col_cells, dtype=bool).reshape(len(col_combo), cells.n),
+        col_masks=tuple(col_masks))
 
 
-def _cell_onehot(cs: CaseSet) -> np.ndarray:
+def _cell_onehot(cs: _Columns) -> np.ndarray:
+    """(units x cells) 0/1 matrix: the cell of each unit case."""
     n_g = len(cs.cell_labels)
     onehot = np.zeros((cs.unit_cell.size, n_g))
     onehot[np.arange(cs.unit_cell.size), cs.unit_cell] = 1.0
     return onehot
 
 
-def _superposed_values(R: np.ndarray, cs: CaseSet, k: int, sign: float,
+def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float,
                        onehot: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Extreme (sign=+1: max, -1: min) of column k over all subsets of cells, fixed and
     patterned parts, with the cell-by-cell choice that ``favourable_dead`` needs.
@@ -308,7 +430,7 @@ def column_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]
     pattern-dependent (favourable) dead load take the cell-by-cell choice of
     :func:`_superposed_values`."""
     base = R @ cs.fixed
-    if cs.superposed:
+    if isinstance(cs, SuperposedCaseSet):
         signed = R @ cs.patterned
         spread = np.abs(R) @ np.abs(cs.patterned)
         vmax = base + 0.5 * (signed + spread)
@@ -349,13 +471,15 @@ def _choices(R: np.ndarray, cs: CaseSet, col: np.ndarray, sign: float
     """The governing choice at each row for its own column: chosen patterned units
     (rows x units), where dead load is pattern-dependent the loaded cells, and the
     groups acting (rows x groups)."""
-    P = cs.patterned.T[col]  # rows x units: each row's own column
-    units = (sign * R * P) > 0.0
     groups = np.zeros((R.shape[0], cs.group_col.size), dtype=bool)
     if cs.group_col.size:
         gv = (R @ cs.groups)[:, cs.group_src]
         groups = ((sign * gv) > 0.0) & (cs.group_col[None, :] == col[:, None])
-    fav = np.flatnonzero(cs.dead_var.any(axis=0)) if cs.superposed else np.zeros(0, int)
+    if not isinstance(cs, SuperposedCaseSet):  # explicit: no unit is switched
+        return np.zeros(R.shape, dtype=bool), None, groups
+    P = cs.patterned.T[col]  # rows x units: each row's own column
+    units = (sign * R * P) > 0.0
+    fav = np.flatnonzero(cs.dead_var.any(axis=0))
     if not fav.size:
         return units, None, groups
     onehot = _cell_onehot(cs)
@@ -376,10 +500,12 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
     vmax, _ = column_extremes(R, cs)
     col = np.argmax(vmax, axis=1)
     units, cells, groups = _choices(R, cs, col, 1.0)
-    coef = (cs.fixed.T[col] + cs.patterned.T[col] * units
-            + groups.astype(float) @ cs.groups[:, cs.group_src].T)
-    dead = cs.dead_var.T[col]
-    if cells is not None:
+    coef = cs.fixed.T[col]
+    if isinstance(cs, SuperposedCaseSet):
+        coef = coef + cs.patterned.T[col] * units
+    coef = coef + groups.astype(float) @ cs.groups[:, cs.group_src].T
+    if cells is not None and isinstance(cs, SuperposedCaseSet):
+        dead = cs.dead_var.T[col]
         on = cells[:, cs.unit_cell]
         coef += np.where(on, dead, dead * cs.favourable_dead)
     return coef
@@ -421,30 +547,41 @@ def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray |
         c = int(col[row])
         k = int(cs.col_combo[c])
         by_case: dict[str, list[bool]] = {n: [False] * n_g for n in cs.switchable[k]}
-        for name, mask in cs.col_masks[c]:
-            by_case[name] = list(mask)
+        if isinstance(cs, ExplicitCaseSet):
+            for name, mask in cs.col_masks[c]:
+                by_case[name] = list(mask)
         for name, cells_of in _cells_by_case(case_names, unit_case, cs.unit_cell,
                                              np.flatnonzero(units[row]), n_g):
             by_case[name] = cells_of
         for g in np.flatnonzero(groups[row]):
             by_case[cs.group_case[g]] = [bool(b) for b in cs.group_mask[g]]
-        if cells is not None:
+        if cells is not None and isinstance(cs, SuperposedCaseSet):
             if c not in present:
-                is_pat = cs.patterned[:, c] != 0.0
-                present[c] = {}
-                for u in np.flatnonzero(is_pat):
-                    present[c].setdefault(cs.unit_case_name[u], set()).add(
-                        int(cs.unit_cell[u]))
-            pat = [n for n in by_case if n in present[c]]
-            # a cell loaded with none of its own patterned units carries a patterned case
-            # that has no load there (so its dead load takes the full factor)
-            for g in np.flatnonzero(cells[row]):
-                if not any(by_case[n][g] for n in pat):
-                    empty = [n for n in pat if int(g) not in present[c][n]]
-                    if empty:
-                        by_case[empty[0]][int(g)] = True
+                present[c] = _patterned_cells(cs, c)
+            _mark_empty_cells(by_case, present[c], cells[row])
         text[i] = _label_text(cs.cell_labels, by_case, cs.all_patterned[k])
     return text[inverse.ravel()]
+
+
+def _patterned_cells(cs: SuperposedCaseSet, c: int) -> dict[str, set[int]]:
+    """The cells where each patterned case of column ``c`` has load."""
+    out: dict[str, set[int]] = {}
+    for u in np.flatnonzero(cs.patterned[:, c] != 0.0):
+        out.setdefault(cs.unit_case_name[u], set()).add(int(cs.unit_cell[u]))
+    return out
+
+
+def _mark_empty_cells(by_case: dict[str, list[bool]], present: dict[str, set[int]],
+                      loaded: np.ndarray) -> None:
+    """A cell loaded (dead load at its full factor) with none of its own patterned
+    units carries a patterned case that has no load there: mark the first such case
+    on that cell in ``by_case``."""
+    pat = [n for n in by_case if n in present]
+    for g in np.flatnonzero(loaded):
+        if not any(by_case[n][g] for n in pat):
+            empty = [n for n in pat if int(g) not in present[n]]
+            if empty:
+                by_case[empty[0]][int(g)] = True
 
 
 def _cells_by_case(case_names: list[str], unit_case: np.ndarray, unit_cell: np.ndarray,

@@ -24,7 +24,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope import config
-from envelope.enveloper import governing_coefficients
+from envelope.enveloper import ExplicitCaseSet, governing_coefficients
 from envelope.recovery import Points, evaluate_some, make_points
 from envelope.sizing.bracing import Segments, locate
 from envelope.sizing.ltb import cb as cb_f1_1
@@ -77,7 +77,7 @@ def segment_demands(solved: Solved, stations: Points, segs: Segments) -> Segment
         # arrangement and the variable actions it takes there); with explicit
         # arrangements also every one of them with all its cases acting
         coef = np.unique(governing_coefficients(sign * r["moment"], cs), axis=0).T
-        if not cs.superposed:
+        if isinstance(cs, ExplicitCaseSet):
             coef = np.hstack([cs.explicit_cases()[0], coef])
         m = r["moment"] @ coef          # points x cases
         v = r["shear"] @ coef
