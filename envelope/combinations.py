@@ -94,11 +94,13 @@ class Row:
 
     @property
     def kinds(self) -> frozenset[str]:
+        """The load kinds the row puts a factor on."""
         return frozenset(kind for kind, _ in self.terms)
 
 
 def _row(equation: str, needs: Iterable[str] = (), needs_one: Iterable[str] = (),
          **factors: float) -> Row:
+    """A :class:`Row` written as the clause prints it: factors by kind as keywords."""
     return Row(equation, tuple(factors.items()), frozenset(needs), frozenset(needs_one))
 
 
@@ -286,10 +288,12 @@ def _clean(factor: float) -> float:
 
 
 def _format_factor(factor: float) -> str:
+    """A factor as it leads a term of a combination name: nothing for 1."""
     return "" if factor == 1.0 else f"{factor:.10g}"
 
 
 def _g(x: float) -> str:
+    """A factor in a derivation text, to ten significant digits."""
     return f"{x:.10g}"
 
 
@@ -305,6 +309,9 @@ def _ordered(cases: tuple[LoadCase, ...], factors: Mapping[str, float]) -> Facto
 
 def _asce(cases: tuple[LoadCase, ...], table: tuple[Row, ...], clause: str,
           reduced_live: bool) -> list[_Generated]:
+    """The rows of an ASCE 7-22 table that the cases' kinds call for, every case of a
+    kind at the row's factor and every variable case optional (loads not acting);
+    ``reduced_live`` takes 2.3.1 Exception 1 (0.5L in equations 3 and 4)."""
     present = {c.kind for c in cases}
     variable = frozenset(c.name for c in cases if c.kind not in PERMANENT_KINDS)
     out: list[_Generated] = []
@@ -395,6 +402,7 @@ def _term(case: LoadCase, what: str, pf: Mapping[str, float]) -> tuple[float, st
 
 
 def _permanent(what: str, pf: Mapping[str, float]) -> tuple[float, str]:
+    """The factor on every permanent action of an :class:`EnRow` and how it is made."""
     if what == "sup":
         return pf["G_sup"], f"gamma_G,sup {_g(pf['G_sup'])}"
     if what == "xi sup":
@@ -406,22 +414,26 @@ def _permanent(what: str, pf: Mapping[str, float]) -> tuple[float, str]:
 
 def _en1990(cases: tuple[LoadCase, ...], table: tuple[EnRow, ...], clause: str,
             pf: Mapping[str, float], tables: str) -> list[_Generated]:
+    """The rows of an EN 1990 expression table: each row once per leading variable
+    case (once with none where the row has no leading action), the permanent actions
+    at the row's factor and the accompanying ones at theirs, optional (gamma_Q = 0
+    where favourable, Table A1.2(B))."""
     permanent = [c for c in cases if c.kind in PERMANENT_KINDS]
     variable = [c for c in cases if c.kind not in PERMANENT_KINDS]
     out: list[_Generated] = []
     for row in table:
         source = f"{clause} {row.equation}, {tables}"
         g, g_why = _permanent(row.permanent, pf)
-        leads: list[LoadCase | None] = [None] if row.leading is None else list(variable)
+        leading = row.leading
+        leads: list[LoadCase | None] = [None] if leading is None else list(variable)
         for lead in leads:
             factors: dict[str, float] = {}
             why: dict[str, str] = {}
             for c in permanent:
                 factors[c.name], why[c.name] = _clean(g), g_why
             for c in variable:
-                if c is lead:
-                    assert row.leading is not None
-                    f, text = _term(c, row.leading, pf)
+                if c is lead and leading is not None:
+                    f, text = _term(c, leading, pf)
                     text += " (leading)"
                 else:
                     f, text = _term(c, row.accompanying, pf)
@@ -436,6 +448,7 @@ def _en1990(cases: tuple[LoadCase, ...], table: tuple[EnRow, ...], clause: str,
 
 def _generate(cases: tuple[LoadCase, ...], rule: str, spec: CombinationSpec
               ) -> list[_Generated]:
+    """The generated rows of one rule set, before naming (none for ``"none"``)."""
     if rule == "asce7-lrfd":
         return _asce(cases, ASCE7_LRFD, ASCE7_LRFD_CLAUSE, spec.reduced_companion_live)
     if rule == "asce7-asd":
@@ -535,6 +548,19 @@ def build(cases: tuple[LoadCase, ...], spec: CombinationSpec) -> tuple[Combinati
     name not in :data:`STRENGTH_SETS` or :data:`SERVICE_SETS`, an unknown partial
     factor key, a custom combination naming an unknown case, or two custom
     combinations of one name.
+
+    Parameters
+    ----------
+    cases : tuple of LoadCase
+        The beam's load cases, in declaration order (their kinds choose the rows).
+    spec : CombinationSpec
+        The ``[combinations]`` table: rule sets, partial factors, custom rows.
+
+    Returns
+    -------
+    tuple of Combination
+        Dimensionless factors by case name, each with the clause it comes from and
+        its derivation; the enveloper turns them into coefficients over unit cases.
     """
     custom_names = _check(spec, cases)
     taken = set(custom_names)

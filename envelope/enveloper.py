@@ -1,13 +1,17 @@
 """Envelopes as reductions over unit-case responses.
 
 A combination set (strength or service) becomes *columns* of coefficients over unit
-cases.  A column is one combination under one arrangement of its patterned cases:
+cases.  A column is one combination under one arrangement of its patterned cases;
+the two kinds of set are two types (:data:`CaseSet` names either):
 
-* explicit arrangements (patterning ``none`` and ``code``): one column per
+* :class:`ExplicitCaseSet` (patterning ``none`` and ``code``): one column per
   combination and loaded span set;
-* superposition (``exhaustive`` and ``segments``): one column per combination,
-  whose ``patterned`` factors put each patterned unit case (one case on one
-  cell) on or off independently.
+* :class:`SuperposedCaseSet` (``exhaustive`` and ``segments``): one column per
+  combination, whose ``patterned`` factors put each patterned unit case (one case
+  on one cell) on or off independently.
+
+Coefficients are dimensionless: a response of the set is ``R @ coefficients`` in
+the units of ``R``.
 
 Every column holds ``fixed`` coefficients, always applied, and on/off parts that
 act only where they make the value worse: the patterned unit cases (superposition)
@@ -23,8 +27,10 @@ separates cell by cell, so each cell takes the better of "unloaded" and "loaded
 by the best non-empty choice of its patterned unit cases".
 
 ``R`` is (rows x units) for one quantity: stations, support reactions, or any
-points.  Every reduction returns the governing combination and, as ``_loaded``
-text, which switchable cases act and where.
+points, in the engine's consistent units (shear and reactions kN or kip, moment
+kN*m or kip*ft, deflection m or ft, rotation rad).  Every reduction returns the
+governing combination and, as ``_loaded`` text, which switchable cases act and
+where.
 """
 
 from __future__ import annotations
@@ -158,7 +164,8 @@ CaseSet = ExplicitCaseSet | SuperposedCaseSet
 
 @dataclass(frozen=True, slots=True)
 class Extremes:
-    """Envelope of one quantity at each row: values, governing combination, loaded cells."""
+    """Envelope of one quantity at each row: values (in the units of the responses
+    reduced), governing combination, loaded cells (the ``_loaded`` text)."""
 
     max: np.ndarray
     min: np.ndarray
@@ -169,6 +176,7 @@ class Extremes:
 
     @staticmethod
     def concat(parts: list[Extremes]) -> Extremes:
+        """The rows of ``parts`` one after another (chunks of points joined)."""
         return Extremes(*(np.concatenate([getattr(p, f) for p in parts])
                           for f in ("max", "min", "max_combo", "min_combo", "max_loaded",
                                     "min_loaded")))
@@ -207,6 +215,7 @@ class _Inputs:
 
 
 def _inputs(beam: Beam, combos: tuple[Combination, ...], units: UnitCases) -> _Inputs:
+    """Factors, kinds and switches of every unit case under every combination."""
     cases = beam.cases
     n_u, n_k = units.n_units, len(combos)
     names = [cases[i].name for i in units.case]
@@ -496,7 +505,8 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
     """Coefficients over unit cases (rows x units) of the case that governs the maximum
     at each row: the column with its chosen subset of on/off parts.  The response of
     that one fixed case is smooth where the envelope is, so its derivative locates the
-    envelope's extreme exactly."""
+    envelope's extreme exactly.  ``R`` is (rows x units) in any units; the
+    coefficients are dimensionless (a response is ``R @ coef[i]``)."""
     vmax, _ = column_extremes(R, cs)
     col = np.argmax(vmax, axis=1)
     units, cells, groups = _choices(R, cs, col, 1.0)
@@ -512,8 +522,26 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
 
 
 def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True) -> Extremes:
-    """Envelope of the responses ``R`` (rows x units) over the case set; with
-    ``labels=False`` the ``_loaded`` texts are left empty."""
+    """Envelope of the responses ``R`` over a case set, exact by superposition.
+
+    Parameters
+    ----------
+    R : ndarray, (rows x units)
+        One quantity's response to each unit case at each row (a station, a support
+        or any point), in consistent units.
+    cs : ExplicitCaseSet or SuperposedCaseSet
+        The combination set, from :func:`build_case_set`.
+    labels : bool
+        Whether to write the ``_loaded`` texts; ``False`` leaves them empty (the
+        design-action searches need values only, and the texts cost most).
+
+    Returns
+    -------
+    Extremes
+        Largest and smallest value per row, in the units of ``R``, with the
+        governing combination (an index into ``cs.combinations``) and the loaded
+        text of each.
+    """
     vmax, vmin = column_extremes(R, cs)
     rows = np.arange(R.shape[0])
     c_max, c_min = np.argmax(vmax, axis=1), np.argmin(vmin, axis=1)

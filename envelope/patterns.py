@@ -34,7 +34,9 @@ def code_arrangements(n_spans: int) -> tuple[frozenset[int], ...]:
 
 
 def arrangements(patterning: Patterning, n_spans: int) -> tuple[frozenset[int], ...] | None:
-    """Explicit loaded-span sets, or None for the superposition methods."""
+    """Explicit loaded-span sets (0-based span indices) for ``none`` (every span) and
+    ``code`` (:func:`code_arrangements`), or None for the superposition methods,
+    whose every subset of cells the enveloper takes at once."""
     if patterning.method == "none":
         return (frozenset(range(n_spans)),)
     if patterning.method == "code":
@@ -43,7 +45,12 @@ def arrangements(patterning: Patterning, n_spans: int) -> tuple[frozenset[int], 
 
 
 def loaded_label(cells: list[str] | tuple[str, ...], loaded: list[bool], every: bool) -> str:
-    """The contract's ``_loaded`` text: ``"all"``, ``"1 3 5"``, ``"2.1 2.3"`` or ``"none"``."""
+    """The contract's ``_loaded`` text: ``"all"``, ``"1 3 5"``, ``"2.1 2.3"`` or ``"none"``.
+
+    ``cells`` are the cell labels (1-based spans, ``"span.segment"`` with segments),
+    ``loaded`` one flag per cell and ``every`` whether the whole beam is loaded (then
+    ``"all"``, whatever the flags).  ValueError when the flags and cells differ in
+    number."""
     if every:
         return "all"
     if len(cells) != len(loaded):
