@@ -130,11 +130,12 @@ def _root_of_governing(solved: Solved, span: np.ndarray, length: np.ndarray, x: 
     the root and value are ``x`` and the envelope at ``x``."""
     beam = solved.beam
     cs = solved.case_set(case_set or QUANTITY_SET[quantity])
+    solution = solved.solution_for(case_set or QUANTITY_SET[quantity])
     slope_name = _SLOPE[quantity]
 
     def responses(xs: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
         owners = span if xs.size == span.size else np.r_[span, span]
-        return evaluate_some(solved.mesh, solved.unit_cases, solved.solution,
+        return evaluate_some(solved.mesh, solved.unit_cases, solution,
                              make_points(beam, owners, xs), names)
 
     coef = governing_coefficients(responses(x, (quantity,))[quantity], cs)

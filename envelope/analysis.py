@@ -13,7 +13,8 @@ from envelope.enveloper import CaseSet, Extremes, SuperposedCaseSet, reduce
 from envelope.limits import WorkLimits
 from envelope.limits import check as check_work
 from envelope.model import Beam
-from envelope.recovery import Points, evaluate, stations
+from envelope.recovery import Points, evaluate, evaluate_some, stations
+from envelope.redistribution import requested
 from envelope.solved import Solved, envelopes_at, solve_beam
 
 
@@ -28,6 +29,8 @@ class Analysis:
     reaction_envelopes: dict[str, Extremes | None]  # reaction, service_reaction, support_moment
     unfactored_reactions: np.ndarray  # (n_support_joints, n_cases): each case alone, every span
     design_actions: dict[str, np.ndarray]  # per span, see envelope.actions
+    #: sizings it took to settle redistribution = "max" (0: not asked for)
+    redistribution_sizings: int = 0
 
     @property
     def beam(self) -> Beam:
@@ -51,7 +54,18 @@ def analyse(beam: Beam, limits: WorkLimits | None = None) -> Analysis:
     half the machine's memory, ``config.WORK_MAX_SECONDS``) is refused before any work
     (:mod:`envelope.limits`)."""
     check_work(beam, limits)
-    solved = solve_beam(beam)
+    analysis = analyse_solved(solve_beam(beam))
+    if requested(beam)[1].any():
+        # "max" redistribution depends on the section designed: settled by sizing
+        # (imported here: sizing is built on this module)
+        from envelope.sizing.redistributed import settle_largest
+        analysis = settle_largest(analysis, analyse_solved)
+    return analysis
+
+
+def analyse_solved(solved: Solved) -> Analysis:
+    """:func:`analyse` of a beam already solved (with its redistribution, if any)."""
+    beam = solved.beam
     pts = stations(beam, solved.mesh, solved.unit_cases)
     env = envelopes_at(solved, pts, {"moment": "strength", "shear": "strength",
                                      "deflection": "service"})
@@ -59,8 +73,9 @@ def analyse(beam: Beam, limits: WorkLimits | None = None) -> Analysis:
     sol = solved.solution
     joints = np.array([j for j, s in enumerate(beam.supports) if s.is_restrained], dtype=int)
     support_moment = support_moments(sol.reaction_moment)
+    strength = solved.solution_for("strength")
     reactions: dict[str, Extremes | None] = {
-        "reaction": _reduce_rows(sol.reaction[joints], solved.strength),
+        "reaction": _reduce_rows(strength.reaction[joints], solved.strength),
         "service_reaction": _reduce_rows(sol.reaction[joints], solved.service),
         "support_moment": _reduce_rows(support_moment[joints], solved.strength),
     }
@@ -109,16 +124,23 @@ def explicit_case_blocks(analysis: Analysis) -> Iterator[dict[str, np.ndarray]]:
     pts = analysis.stations
     defl = beam.units.deflection_factor
     step = max(1, config.STATION_CHUNK_ROWS)
+    n_strength = coefs[0].shape[1]
     for lo in range(0, pts.n, step):
         chunk = pts.take(slice(lo, lo + step))
         r = evaluate(solved.mesh, solved.unit_cases, solved.solution, chunk)
+        shear, moment = r.shear @ coef, r.moment @ coef
+        if solved.strength_solution is not None:  # strength cases redistributed
+            rs = evaluate_some(solved.mesh, solved.unit_cases, solved.strength_solution,
+                               chunk, ("shear", "moment"))
+            shear[:, :n_strength] = rs["shear"] @ coefs[0]
+            moment[:, :n_strength] = rs["moment"] @ coefs[0]
         yield {
             "case": np.tile(case_index, chunk.n).astype(np.int32),
             "span": np.repeat(chunk.span + 1, n_c).astype(np.int32),
             "x": np.repeat(chunk.x, n_c),
             "x_span": np.repeat(chunk.x_span, n_c),
-            "shear": (r.shear @ coef).ravel(),
-            "moment": (r.moment @ coef).ravel(),
+            "shear": shear.ravel(),
+            "moment": moment.ravel(),
             "rotation": (r.rotation @ coef).ravel(),
             "deflection": (r.deflection @ coef).ravel() * defl,
         }

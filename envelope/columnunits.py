@@ -23,7 +23,7 @@ _RULES: tuple[tuple[re.Pattern[str], str], ...] = tuple(
     (re.compile(p), q) for p, q in (
         (r"^(x|x_span|length|moment_pos_x|start|end|lb)$", "length"),
         (r"^(span_over_deflection|utilisation_.*|phi|eps_t|beta1|cb|live_reduction|"
-         r"redistribution)$", "dimensionless"),
+         r"redistribution|redistribution_allowed)$", "dimensionless"),
         (r"^(deflection|deflection_.*|service_deflection.*)$", "deflection"),
         (r"^(moment|moment_.*|support_moment_.*)$", "moment"),
         (r"^(shear|shear_.*|reaction_.*|service_reaction_.*|unfactored_.*)$", "force"),

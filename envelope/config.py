@@ -113,3 +113,13 @@ WORK_MAX_SECONDS = 600.0
 #: concrete deflections (trapezoidal rule: relative error about (1/400)^2 / 12 ~ 5e-7
 #: of a smooth span's deflection; point-load positions are added to the grid).
 DEFLECTION_GRID = 400
+
+#: ``redistribution = "max"``: the fraction at a support is lowered to the largest the
+#: section designed allows, rounded down to this step (0.1 percent, the precision an
+#: engineer quotes), and the beam sized again until no support asks for more than
+#: allowed.  The fraction only falls, so the loop ends; it is capped at this many
+#: sizings, after which sizing's own check fails the status where it is still too high.
+REDISTRIBUTION_STEP = 0.001
+REDISTRIBUTION_MAX_SIZINGS = 8
+#: Round-off allowed when the fraction used is compared with the fraction allowed.
+REDISTRIBUTION_ATOL = 1e-9

@@ -48,6 +48,10 @@ class LongTerm:
 
 
 Member = Literal["floor", "roof"]
+SteelClass = Literal["A", "B", "C"]
+#: ``[design] redistribution``: a fraction or "max" for every support, or one per support.
+RedistributionValue = float | Literal["max"]
+Redistribution = RedistributionValue | tuple[RedistributionValue, ...]
 Nonstructural = Literal["damage-likely", "damage-unlikely", "none"]
 
 
@@ -80,6 +84,11 @@ class ConcreteDesign:
     crack_width: float = 0.3  # mm, EN 1992-1-1 Tables 7.2N / 7.3N
     member: Member = "floor"
     nonstructural: Nonstructural = "damage-likely"
+    #: moment redistribution at interior supports (envelope.redistribution): a fraction,
+    #: "max" (the largest the code allows), or one of those per support; None: none
+    redistribution: Redistribution | None = None
+    #: reinforcement ductility class of EN 1992-1-1 Annex C (k5 or k6 of 5.5(4))
+    steel_class: SteelClass = "B"
 
     @property
     def d(self) -> float:

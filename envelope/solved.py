@@ -7,6 +7,7 @@ quantity at any points, in chunks of rows so that memory stays bounded.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
@@ -20,6 +21,7 @@ from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
 from envelope.mesh import Mesh, build_mesh
 from envelope.model import Beam, Combination
 from envelope.recovery import Points, Response, evaluate, evaluate_some
+from envelope.redistribution import redistribute, requested
 from envelope.solver import Solution, solve
 
 #: Which combination set envelopes which quantity (outputs contract).
@@ -40,6 +42,10 @@ class Solved:
     service: CaseSet  # every service set together
     live: CaseSet  # each variable kind alone at 1.0: for deflection_live
     service_sets: tuple[tuple[str, CaseSet], ...] = ()  # each service rule set alone
+    #: fraction of the elastic moment redistributed at each joint (all 0: none), and the
+    #: solution whose moments, shears and reactions carry it (envelope.redistribution)
+    redistribution: np.ndarray | None = None
+    strength_solution: Solution | None = None
 
     @property
     def per_case(self) -> np.ndarray:
@@ -52,6 +58,22 @@ class Solved:
     def geometry(self) -> Geometry:
         """Joint positions, span lengths and support faces (those of the beam)."""
         return self.beam.geometry
+
+    def solution_for(self, case_set: str) -> Solution:
+        """The solution whose responses ``case_set`` combines: the redistributed one for
+        ``strength``, the elastic one for every service set."""
+        if case_set == "strength" and self.strength_solution is not None:
+            return self.strength_solution
+        return self.solution
+
+    def redistributed(self, fraction: np.ndarray) -> Solved:
+        """This beam with ``fraction`` of the elastic moment redistributed at each joint
+        (the solve is not repeated)."""
+        fraction = np.asarray(fraction, dtype=float)
+        strength = redistribute(self.beam, self.mesh, self.unit_cases, self.solution,
+                                fraction)
+        return dataclasses.replace(self, redistribution=fraction,
+                                   strength_solution=strength)
 
     def case_set(self, name: str) -> CaseSet:
         """``strength``, ``service`` (every service set), ``live`` (each variable kind
@@ -78,7 +100,7 @@ def solve_beam(beam: Beam) -> Solved:
     service = tuple(c for c in combos if c.set == "service")
     rules = tuple(dict.fromkeys(c.rule for c in service))
     # favourable_dead is a strength-set option: service sets take every dead load at 1.0
-    return Solved(
+    solved = Solved(
         beam, mesh, cells, units, solution,
         strength=build_case_set(beam, strength, units, cells),
         service=build_case_set(beam, service, units, cells, favourable_dead=1.0),
@@ -87,6 +109,8 @@ def solve_beam(beam: Beam) -> Solved:
                                               units, cells, favourable_dead=1.0))
                            for r in rules),
     )
+    fraction, _ = requested(beam)
+    return solved.redistributed(fraction) if fraction.any() else solved
 
 
 def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
@@ -98,13 +122,19 @@ def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
     sets = {q: solved.case_set(name) for q, name in requests.items()}
     wanted = tuple(q for q, cs in sets.items() if not cs.is_empty)
     parts: dict[str, list[Extremes]] = {q: [] for q in wanted}
+    # strength sets read the redistributed solution, service sets the elastic one
+    by_solution: dict[int, tuple[Solution, tuple[str, ...]]] = {}
+    for q in wanted:
+        sol = solved.solution_for(requests[q])
+        by_solution[id(sol)] = (sol, by_solution.get(id(sol), (sol, ()))[1] + (q,))
     step = config.STATION_CHUNK_ROWS
     if wanted:
         for lo in range(0, max(points.n, 1), step):
             chunk = points.take(slice(lo, lo + step))
-            resp = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, chunk, wanted)
-            for q in wanted:
-                parts[q].append(reduce(resp[q], sets[q], labels))
+            for sol, names in by_solution.values():
+                resp = evaluate_some(solved.mesh, solved.unit_cases, sol, chunk, names)
+                for q in names:
+                    parts[q].append(reduce(resp[q], sets[q], labels))
     return {q: Extremes.concat(parts[q]) if q in parts else None for q in requests}
 
 
@@ -118,7 +148,8 @@ def envelope_at(solved: Solved, points: Points, quantity: str,
 
 def case_responses(solved: Solved, points: Points) -> Response:
     """Each load case alone on every span at ``points``: (n_points, n_cases) arrays, in
-    the order of ``beam.cases`` (consistent units, contract sign conventions)."""
+    the order of ``beam.cases`` (consistent units, contract sign conventions); the
+    elastic responses (unfactored cases are not redistributed)."""
     per_case = solved.per_case
     r = evaluate(solved.mesh, solved.unit_cases, solved.solution, points)
     return Response(r.shear @ per_case, r.moment @ per_case, r.rotation @ per_case,

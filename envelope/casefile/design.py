@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from typing import Any, get_args
 
-from envelope.casefile import steel
+from envelope.casefile import redistribution, steel
 from envelope.casefile.concrete_design import CONCRETE_DETAIL_KEYS, concrete_detailing
 from envelope.casefile.reader import MAX_MAGNITUDE, MIN_MAGNITUDE, Reader, join
 from envelope.design import (
@@ -23,11 +23,11 @@ from envelope.design import (
 DESIGN_KEYS = ("material", "code", "b", "h", "cover_to_bar_centre", "flange_width",
                "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits", "Fy",
                "sections", "section", "bracing", "bearing_length", "camber_fraction",
-               "vibration", *CONCRETE_DETAIL_KEYS)
+               "vibration", *CONCRETE_DETAIL_KEYS, *redistribution.REDISTRIBUTION_KEYS)
 DESIGN_MATERIAL_KEYS: dict[str, tuple[str, ...]] = {
     "concrete": ("material", "code", "b", "h", "cover_to_bar_centre", "flange_width",
                  "flange_depth", "fc", "fy", "stirrup_fy", "deflection_limits",
-                 *CONCRETE_DETAIL_KEYS),
+                 *CONCRETE_DETAIL_KEYS, *redistribution.REDISTRIBUTION_KEYS),
     "steel": ("material", "code", "Fy", "sections", "section", "deflection_limits",
               "bracing", "bearing_length", "camber_fraction", "vibration"),
 }
@@ -103,6 +103,7 @@ def design(r: Reader, data: dict[str, Any], span_lengths: tuple[float, ...] = ()
     if material == "concrete":
         check_concrete(r, table, out)
         concrete_detailing(r, table, out, data.get("cases") or {})
+        redistribution.read(r, table, out, len(span_lengths) + 1)
         return ConcreteDesign(**out)
     check_steel(r, table, out, span_lengths)
     return SteelDesign(**out)

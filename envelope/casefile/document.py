@@ -16,7 +16,7 @@ from pathlib import Path
 from typing import Any
 
 from envelope import config, stability
-from envelope.casefile import design, geometry, loads, options
+from envelope.casefile import design, geometry, loads, options, redistribution
 from envelope.casefile.reader import Reader, TomlReader, misplaced_hint, one_line
 from envelope.errors import CaseError
 from envelope.files import UnreadableFile, read_regular
@@ -101,6 +101,7 @@ def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
     patterning = options.patterning(r, data)
     output = options.output(r, data)
     design_table = design.design(r, data, tuple(sp.length for sp in spans))
+    redistribution.check_supports(r, design_table, spans, supports)
     stability.check(spans, supports, source, length_unit=r.length_unit())
     return Beam(
         id=beam_id, title=title, units=r.system, spans=spans, supports=supports,

@@ -30,6 +30,8 @@ from envelope.sizing import deflection
 from envelope.sizing.concrete import size_concrete
 from envelope.sizing.detailing import detail
 from envelope.sizing.extents import EXTENT_KEYS, extents
+from envelope.sizing.layout import Sized
+from envelope.sizing.redistributed import check as check_redistribution
 from envelope.sizing.steel import size_steel
 
 __all__ = ["extents", "size", "size_with_candidates", "size_with_units"]
@@ -41,6 +43,12 @@ COLUMN_UNITS = {"x_span": "length", "x": "length", "moment_design": "moment",
                 "deflection_live_allowed": "deflection",
                 "deflection_total_allowed": "deflection",
                 **{k: "length" for k in EXTENT_KEYS}}
+
+def concrete_sized(analysis: Analysis) -> Sized:
+    """A concrete beam's sections, bars and deflections, and its moment redistribution
+    checked (:mod:`envelope.sizing.redistributed`)."""
+    return check_redistribution(analysis, detail(analysis, size_concrete(analysis)))
+
 
 def size(analysis: Analysis) -> dict[str, np.ndarray]:
     """The sizing.parquet columns (see the module docstring); the beam must have a
@@ -72,10 +80,8 @@ def size_with_candidates(analysis: Analysis
     live, total = d["deflection_live"], d["deflection_max"]
     defl = deflection.check(ell, live, total, limits["live"], limits["total"])
     factor = beam.units.deflection_factor
-    if design.material == "steel":
-        sized = size_steel(analysis, defl)
-    else:
-        sized = detail(analysis, size_concrete(analysis))
+    sized = size_steel(analysis, defl) if design.material == "steel" else \
+        concrete_sized(analysis)
     rows = sized.rows
     n = rows.n
     mid = rows.is_span

@@ -44,10 +44,11 @@ def seat_rows(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[int, str
             x = 0.0 if end == "left" else beam.spans[j].length
             pts = make_points(beam, np.array([j]), np.array([x]),
                               np.array([end == "left"]))
-            m_u = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
+            strength = solved.solution_for("strength")
+            m_u = evaluate_some(solved.mesh, solved.unit_cases, strength, pts,
                                 ("moment",))["moment"]
             if design.code == "en1992-1-1":
-                r_u = solved.solution.reaction[joint][None, :]
+                r_u = strength.reaction[joint][None, :]
                 reduced = m_u + r_u * sup.width / 8.0
                 text = ("bearing support: centreline moment less F t/8 (EN 1992-1-1 "
                         "5.3.2.2(4))")

@@ -550,6 +550,21 @@ NEW_ROWS: list[Row] = [
     ("design_h_huge", design(CONCRETE, h="1e308"),
      f"{FILE}: design.h: 1e+308 is outside the range sizing can carry (1e-30 to 1e+30); "
      "check the value and its unit"),
+    ("design_redistribution_above_ceiling", design(CONCRETE, redistribution="0.25"),
+     f"{FILE}: design.redistribution: a fraction of the elastic moment from 0 to 0.2 (ACI "
+     "318-19 6.6.5: at most 20 percent), got 0.25"),
+    ("design_redistribution_unknown_word", design(CONCRETE, redistribution='"most"'),
+     f"{FILE}: design.redistribution: expected a fraction such as 0.10 or \"max\", got "
+     "'most'"),
+    ("design_redistribution_one_per_support", design(CONCRETE, redistribution="[0, 0.1]"),
+     f"{FILE}: design.redistribution: give one value per support (3), got 2"),
+    ("design_redistribution_at_an_end_support",
+     design(CONCRETE, redistribution='[0.1, "max", 0]'),
+     f"{FILE}: design.redistribution[1]: support 1 cannot redistribute moment: an end "
+     "support; give 0 there"),
+    ("design_steel_class_for_aci", design(CONCRETE, steel_class='"B"'),
+     f"{FILE}: design.steel_class: steel_class applies to en1992-1-1 design (the k5 / k6 "
+     "limit of 5.5(4)); ACI 318-19 6.6.5 limits redistribution by eps_t"),
     ("design_steel_code_for_concrete", design(STEEL, code='"aci318-19"'),
      f"{FILE}: design.code: unknown steel design code 'aci318-19' (valid: aisc360-22)"),
     ("design_concrete_key_on_steel", design(STEEL, fc="32"),
