@@ -308,3 +308,40 @@ def test_a_fraction_at_an_excluded_support_is_refused() -> None:
     with pytest.raises(CaseError, match=r"design.redistribution\[3\]: support 3 cannot"):
         beam((8.0, 6.0, 2.0), 20.0, design={**ACI, "redistribution": [0, 0.1, 0.1, 0]},
              supports=("pinned", "pinned", "pinned", "free"))
+
+
+# -- shown where concrete sizing is shown --------------------------------------------------
+
+
+def test_console_summary_names_the_redistribution_per_support() -> None:
+    from envelope.sizing.table import sizing_summary
+
+    text = sizing_summary(analyse(beam((L, L), W, design={**ACI, "redistribution": 0.15})))
+    cols = size(analyse(beam((L, L), W, design={**ACI, "redistribution": 0.15})))
+    allowed = 100.0 * cols["redistribution_allowed"][2]
+    assert ("Moment redistribution (ACI 318-19 6.6.5), of the elastic support moment in "
+            f"every strength arrangement: support 2 15.0 % (allowed {allowed:.1f} %)") in text
+    assert "Service deflections are elastic" in text
+
+
+def test_console_summary_is_silent_without_redistribution() -> None:
+    from envelope.sizing.table import sizing_summary
+
+    assert "redistribution" not in sizing_summary(analyse(beam((L, L), W, design=ACI)))
+
+
+def test_report_checks_list_redistribution_with_its_clause() -> None:
+    from envelope.report import checks, collect
+
+    table = collect.Table("sizing", "", ("span", "section", "moment_design", "as_required",
+                                         "as_max", "redistribution",
+                                         "redistribution_allowed", "status"), {},
+                          ((1, "right", -192.0, 1500.0, 4000.0, 0.2, 0.093,
+                            "moment redistribution 20.0 % at support 2 exceeds the 9.3 % "
+                            "allowed by 10.7 points (ACI 318-19 6.6.5: ...)"),
+                           (2, "left", -192.0, 1500.0, 4000.0, 0.1, 0.2, "ok")))
+    rows = [r for r in checks.checks(table, None, "aci318-19")
+            if r["check"] == "redistribution"]
+    assert [(r["result"], r["value"]) for r in rows] == [("fail", f"{0.2 / 0.093:.3f}"),
+                                                        ("pass", "0.500")]
+    assert all(r["clause"].startswith("ACI 318-19 6.6.5") for r in rows)

@@ -3,7 +3,8 @@
 Read generically from the table's columns: each ``utilisation_<what>`` column is a
 check (so checks added to the sizing table appear here unchanged); concrete flexure and
 shear, which the table states as required quantities, are checks as well, failing when
-the row's ``status`` names them.  A row whose status fails for a reason no check names
+the row's ``status`` names them, and so is moment redistribution where it is used (the
+fraction used over the fraction allowed).  A row whose status fails for a reason no check names
 gets a check of its own, so a failure is never hidden; a check that cannot be done
 (no value) says so instead of passing.
 """
@@ -23,11 +24,15 @@ CLAUSES: dict[str, dict[str, str]] = {
                    "minimum 9.6.1.2",
         "shear": "ACI 318-19 22.5, 9.5.1.1; section limit 22.5.1.2; stirrups 9.6.3",
         "deflection": "ACI 318-19 24.2.2, limits span/N from the case file",
+        "redistribution": "ACI 318-19 6.6.5: at most 1000 eps_t percent and 20 percent, "
+                          "none below eps_t = 0.0075",
     },
     "en1992-1-1": {
         "flexure": "EN 1992-1-1 6.1 (K' limit), 9.2.1.1",
         "shear": "EN 1992-1-1 6.2.2, 6.2.3; links 9.2.2",
         "deflection": "EN 1992-1-1 7.4.1, limits span/N from the case file",
+        "redistribution": "EN 1992-1-1 5.5(4): delta >= k1 + k2 xu/d and k5 (k6), "
+                          "adjacent spans 0.5 to 2",
     },
     "aisc360-22": {
         "moment": "AISC 360-22 F2.1, F2.2 (yielding, lateral-torsional buckling; Cb by "
@@ -41,7 +46,8 @@ CLAUSES: dict[str, dict[str, str]] = {
 #: Words of a failing ``status`` that belong to each check.
 STATUS_WORDS = {"flexure": ("singly reinforced", "0.04 Ac", "tension steel"),
                 "shear": ("for shear",), "deflection": ("deflection",),
-                "bearing": ("bearing", "J10", "crippling", "web local yielding")}
+                "bearing": ("bearing", "J10", "crippling", "web local yielding"),
+                "redistribution": ("moment redistribution",)}
 OTHER_CLAUSE = "see the note and status of sizing.parquet"
 #: A clause a failing status cites in brackets, e.g. "(ACI 318-19 9.9.1.1(b))": the
 #: clause of a failure no check names.
@@ -104,6 +110,11 @@ def checks(sizing: Table | None, document: dict[str, Any] | None,
                 add("flexure", ratio)
             if not _missing(r.get("shear_design")):
                 add("shear", None)
+            used = r.get("redistribution")
+            if not _missing(used) and used:
+                allowed = r.get("redistribution_allowed")
+                add("redistribution", None if _missing(allowed) or not allowed
+                    else used / allowed)
         for c in util_cols:
             if not _missing(r.get(c)):
                 add(c.removeprefix("utilisation_"), r[c])

@@ -220,3 +220,29 @@ def settle_largest(analysis: Analysis, rerun: Callable[[Solved], Analysis]) -> A
         fraction = np.maximum(fraction, 0.0)
         analysis = rerun(analysis.solved.redistributed(fraction))
     return dataclasses.replace(analysis, redistribution_sizings=sizings)
+
+
+def summary_line(beam_code: str, cols: dict[str, np.ndarray]) -> str | None:
+    """One console line: the fraction used and allowed at each support that
+    redistributes or could (from the sizing columns); None where nothing is asked."""
+    if "redistribution" not in cols:
+        return None
+    span, section = cols["span"], cols["section"]
+    used, allowed = cols["redistribution"], cols["redistribution_allowed"]
+    seen: dict[int, tuple[float, float]] = {}
+    for i in range(span.size):
+        if section[i] == "span":
+            continue
+        joint = int(span[i]) + (1 if section[i] == "right" else 0)  # 1-based support
+        a = float(allowed[i])
+        if np.isnan(a) and used[i] == 0.0:
+            continue
+        u_prev, a_prev = seen.get(joint, (0.0, np.inf))
+        seen[joint] = (max(u_prev, float(used[i])), min(a_prev, a if np.isfinite(a) else 0.0))
+    if not any(u > 0.0 for u, _ in seen.values()):
+        return None
+    clause = "ACI 318-19 6.6.5" if beam_code == "aci318-19" else "EN 1992-1-1 5.5(4)"
+    parts = [f"support {j} {100.0 * u:.1f} % (allowed {100.0 * a:.1f} %)"
+             for j, (u, a) in sorted(seen.items())]
+    return (f"Moment redistribution ({clause}), of the elastic support moment in every "
+            f"strength arrangement: {'; '.join(parts)}.  Service deflections are elastic.")

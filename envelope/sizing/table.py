@@ -15,6 +15,7 @@ from envelope.analysis import Analysis
 from envelope.design import SteelDesign
 from envelope.sizing import size_with_candidates, size_with_units
 from envelope.sizing.layout import SECTION_UNITS
+from envelope.sizing.redistributed import summary_line
 from envelope.store import _metadata, float_column, int_column, make_table, string_column
 
 SIZING_CAUTION = ("Sizing is a first check for a licensed engineer, not a design: the "
@@ -135,6 +136,8 @@ def sizing_summary(analysis: Analysis) -> str:
                      f" from the left, {_n(cols['hogging_right_extent'][i], 2)} from the right;"
                      f" sagging {_n(cols['sagging_start'][i], 2)} to "
                      f"{_n(cols['sagging_end'][i], 2)}")
+    if not steel and (line := summary_line(design.code, cols)) is not None:
+        lines.append(line)
     if candidates:
         lines.append("Sections of the table, lightest first (what rejects each):")
         lines += [f"  {c}" for c in candidates]
