@@ -11,20 +11,40 @@ on the envelope itself, evaluated exactly at any point, brackets the maximum to
 there finishes it where one exists.  Hogging
 moments are taken at the support centrelines and at the support faces (half
 the support width from the centreline; the centreline where no width is given).
+
+One search serves every quantity (the moment, the service deflection and the live
+deflection): each step evaluates the points of all of them at once.  The case governing
+a bracket is contracted with the solution once (:func:`envelope.recovery.combine`), so
+a step of the slope root costs the load items at its point, not every unit case.
 """
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+from dataclasses import dataclass
+
 import numpy as np
 
 from envelope import config
-from envelope.enveloper import Extremes, governing_coefficients
-from envelope.recovery import Points, evaluate_some, make_points
+from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients
+from envelope.recovery import (
+    Combined,
+    Points,
+    combine,
+    evaluate_combined,
+    evaluate_some,
+    make_points,
+)
 from envelope.search import golden_max, illinois_root
 from envelope.solved import QUANTITY_SET, Solved, envelope_at
+from envelope.solver import Solution
 
 #: The derivative of each quantity along the beam: dM/dx = V, d(deflection)/dx = rotation.
 _SLOPE = {"moment": "shear", "deflection": "rotation"}
+
+#: One maximum to refine: the envelope maximum at the stations, the quantity (moment or
+#: deflection) and the case set (None: the quantity's own, see ``QUANTITY_SET``).
+Request = tuple[np.ndarray, str, str | None]
 
 
 def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
@@ -33,137 +53,279 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
 
     ``env_max`` is the envelope maximum at the stations ``pts``.  Each local maximum
     among the stations is bracketed by its neighbouring distinct positions and refined;
-    the result is never below the best station."""
-    n_spans = solved.beam.n_spans
+    the result is never below the best station.  (One request of :func:`refine_maxima`.)"""
+    return refine_maxima(solved, pts, [(env_max, quantity, case_set)])[0]
+
+
+@dataclass(frozen=True, slots=True)
+class _Brackets:
+    """Every local maximum among the stations, of every request: its request (``task``),
+    span, span length, station position and neighbouring positions [a, b]."""
+
+    task: np.ndarray
+    span: np.ndarray
+    length: np.ndarray
+    x: np.ndarray
+    a: np.ndarray
+    b: np.ndarray
+
+
+def _station_maxima(pts: Points, env_max: np.ndarray, n_spans: int
+                    ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray,
+                               np.ndarray]:
+    """Best station of each span (value, x_span: the first best row), and each local
+    maximum among the distinct station positions of a span: its span and position with
+    the neighbouring positions (a, x, b); a plateau counts once, at its start."""
     best = np.full(n_spans, -np.inf)
     best_x = np.zeros(n_spans)
-    for j in range(n_spans):
-        rows = np.flatnonzero(pts.span == j)
-        k = int(rows[np.argmax(env_max[rows])])
-        best[j], best_x[j] = env_max[k], pts.x_span[k]
+    rows = np.arange(pts.n)
+    first_best = np.lexsort((rows, -env_max, pts.span))  # per span: largest, first row
+    head = first_best[np.r_[True, pts.span[first_best][1:] != pts.span[first_best][:-1]]]
+    best[pts.span[head]], best_x[pts.span[head]] = env_max[head], pts.x_span[head]
 
-    lo, hi, at, owner = [], [], [], []
-    for j in range(n_spans):
-        rows = np.flatnonzero(pts.span == j)
-        xs, vals = pts.x_span[rows], env_max[rows]
-        ux = np.sort(xs)  # np.unique without its numpy.ma import (about 20 ms)
-        ux = ux[np.r_[True, ux[1:] != ux[:-1]]]
-        uv = np.array([vals[xs == x].max() for x in ux])
-        for i in range(ux.size):
-            left = uv[i - 1] if i > 0 else -np.inf
-            right = uv[i + 1] if i + 1 < ux.size else -np.inf
-            if uv[i] > left and uv[i] >= right:  # a plateau counts once, at its start
-                lo.append(ux[max(i - 1, 0)])
-                hi.append(ux[min(i + 1, ux.size - 1)])
-                at.append(ux[i])
-                owner.append(j)
-    if not owner:
-        return best, best_x
-    a, b = np.array(lo), np.array(hi)
-    x_station = np.array(at)
-    span = np.array(owner, dtype=np.int64)
-    length = np.array([solved.beam.spans[j].length for j in owner])
+    order = np.lexsort((rows, pts.x_span, pts.span))
+    sp, xs, vals = pts.span[order], pts.x_span[order], env_max[order]
+    new_span = np.r_[True, sp[1:] != sp[:-1]]
+    first = new_span | np.r_[True, xs[1:] != xs[:-1]]
+    starts = np.flatnonzero(first)
+    uv = np.maximum.reduceat(vals, starts)  # the largest at each distinct position
+    us, ux, opens = sp[starts], xs[starts], new_span[starts]
+    closes = np.r_[opens[1:], True]  # the last position of its span
+    left = np.where(opens, -np.inf, np.r_[-np.inf, uv[:-1]])
+    right = np.where(closes, -np.inf, np.r_[uv[1:], -np.inf])
+    i = np.flatnonzero((uv > left) & (uv >= right))
+    a = np.where(opens[i], ux[i], ux[np.maximum(i - 1, 0)])
+    b = np.where(closes[i], ux[i], ux[np.minimum(i + 1, ux.size - 1)])
+    return best, best_x, us[i], a, ux[i], b
 
-    # a smooth maximum: the case governing at the station has a slope root between the
-    # neighbouring stations and still governs there -> exact at once
-    xm, vm, done = _root_of_governing(solved, span, length, x_station, a, b, quantity,
-                                      case_set)
-    if not np.all(done):
-        # a vertex at the station itself (under a point load, at a span end): the
-        # envelope is lower on both sides, near and far
-        rest = np.flatnonzero(~done)
-        steps = np.array(config.VERTEX_PROBES) * length[rest, None]
-        probes = np.clip(np.c_[x_station[rest, None] - steps, x_station[rest, None] + steps],
-                         a[rest, None], b[rest, None])
-        inside = _envelope_max(solved, np.repeat(span[rest], probes.shape[1]),
-                               probes.ravel(), quantity, case_set).reshape(probes.shape)
-        own = probes == x_station[rest, None]  # clipped onto the station: no information
-        vertex = np.all(own | (inside <= vm[rest, None]), axis=1)
-        done[rest] = vertex
-    if not np.all(done):
-        # a kink, or the governing case changes: golden section on the envelope itself
-        rest = np.flatnonzero(~done)
-        xg, vg = _golden(solved, span[rest], length[rest], a[rest], b[rest], quantity,
-                         case_set)
-        h = config.ROOT_BRACKET * length[rest]
-        xr, vr, _ = _root_of_governing(solved, span[rest], length[rest], xg,
-                                       np.maximum(xg - h, 0.0), np.minimum(xg + h, length[rest]),
-                                       quantity, case_set)
-        better = vr >= vg - config.ZERO_RTOL * np.abs(vg)
-        xm[rest] = np.where(better, xr, xg)
-        vm[rest] = np.where(better, np.maximum(vr, vg), vg)
-    for i, j in enumerate(owner):
+
+def refine_maxima(solved: Solved, pts: Points, requests: Sequence[Request]
+                  ) -> list[tuple[np.ndarray, np.ndarray]]:
+    """:func:`refine_max` of several requests in one search: per request, the largest
+    value in each span and its x_span.  Each step evaluates the points of every request
+    together; each request's brackets stop when its own are done, so each answer is the
+    one its search alone would give (to round-off)."""
+    n_spans = solved.beam.n_spans
+    out: list[tuple[np.ndarray, np.ndarray]] = []
+    parts: list[tuple[np.ndarray, ...]] = []
+    for t, (env_max, _, _) in enumerate(requests):
+        best, best_x, span, a, x, b = _station_maxima(pts, env_max, n_spans)
+        out.append((best, best_x))
+        parts.append((np.full(span.size, t, dtype=np.int64), span, a, x, b))
+    if not parts or not sum(p[0].size for p in parts):
+        return out
+    task, span, a, x, b = (np.concatenate(col) for col in zip(*parts, strict=True))
+    length = np.asarray(solved.beam.geometry.span_length, dtype=float)[span]
+    br = _Brackets(task, span.astype(np.int64), length, x, a, b)
+    scale = [float(np.max(np.abs(env_max), initial=0.0)) for env_max, _, _ in requests]
+    search = _Search(solved, [(q, c or QUANTITY_SET[q]) for _, q, c in requests], scale)
+    xm, vm = search.refine(br)
+    for i in range(task.size):
+        best, best_x = out[int(task[i])]
+        j = int(span[i])
         if vm[i] > best[j]:
             best[j], best_x[j] = vm[i], xm[i]
-    return best, best_x
+    return out
 
 
-def _envelope_max(solved: Solved, span: np.ndarray, x: np.ndarray, quantity: str,
-                  case_set: str | None) -> np.ndarray:
-    ext = envelope_at(solved, make_points(solved.beam, span, x), quantity, case_set,
-                      labels=False)
-    assert ext is not None
-    return ext.max
+class _Search:
+    """The envelopes and governing cases that the search evaluates, for its requests
+    (``tasks``: quantity and case-set name per request; ``scale``: the largest magnitude
+    of each request's envelope at the stations, the size of its round-off)."""
 
+    def __init__(self, solved: Solved, tasks: list[tuple[str, str]],
+                 scale: list[float]) -> None:
+        self.solved = solved
+        self.scale = np.array(scale, dtype=float)
+        self.quantity = [q for q, _ in tasks]
+        self.sets: list[CaseSet] = [solved.case_set(name) for _, name in tasks]
+        # strength sets read the redistributed solution (where moment is redistributed),
+        # service sets the elastic one
+        self.solution = [solved.solution_for(name) for _, name in tasks]
 
-def _golden(solved: Solved, span: np.ndarray, length: np.ndarray, a: np.ndarray,
-            b: np.ndarray, quantity: str, case_set: str | None
-            ) -> tuple[np.ndarray, np.ndarray]:
-    """Golden-section search for the envelope maximum in each bracket [a, b], to
-    :data:`envelope.config.GOLDEN_XTOL` of the span; one new point per bracket a step."""
-    def f(x: np.ndarray) -> np.ndarray:
-        owners = span if x.size == span.size else np.r_[span, span]
-        return _envelope_max(solved, owners, x, quantity, case_set)
+    def refine(self, br: _Brackets) -> tuple[np.ndarray, np.ndarray]:
+        """Position and value of the maximum in each bracket (see the module docstring)."""
+        # a smooth maximum: the case governing at the station has a slope root between the
+        # neighbouring stations and still governs there -> exact at once
+        xm, vm, done = self.root_of_governing(br.task, br.span, br.length, br.x, br.a, br.b)
+        if not np.all(done):
+            # a vertex at the station itself (under a point load, at a span end): the
+            # envelope is lower on both sides, near and far
+            rest = np.flatnonzero(~done)
+            steps = np.array(config.VERTEX_PROBES) * br.length[rest, None]
+            x_rest = br.x[rest, None]
+            probes = np.clip(np.c_[x_rest - steps, x_rest + steps], br.a[rest, None],
+                             br.b[rest, None])
+            k = probes.shape[1]
+            inside = self.envelope_max(np.repeat(br.task[rest], k), np.repeat(br.span[rest], k),
+                                       probes.ravel()).reshape(probes.shape)
+            own = probes == x_rest  # clipped onto the station: no information
+            done[rest] = np.all(own | (inside <= vm[rest, None]), axis=1)
+        if not np.all(done):
+            # a kink, or the governing case changes: golden section on the envelope itself
+            rest = np.flatnonzero(~done)
+            task, span, length = br.task[rest], br.span[rest], br.length[rest]
 
-    return golden_max(f, a, b, config.GOLDEN_XTOL * length)
+            def f(x: np.ndarray) -> np.ndarray:
+                twice = x.size != span.size
+                return self.envelope_max(np.r_[task, task] if twice else task,
+                                         np.r_[span, span] if twice else span, x)
 
+            xg, vg = golden_max(f, br.a[rest], br.b[rest], config.GOLDEN_XTOL * length,
+                                group=task)
+            h = config.ROOT_BRACKET * length
+            xr, vr, _ = self.root_of_governing(task, span, length, xg,
+                                               np.maximum(xg - h, 0.0),
+                                               np.minimum(xg + h, length))
+            better = vr >= vg - config.ZERO_RTOL * np.abs(vg)
+            xm[rest] = np.where(better, xr, xg)
+            vm[rest] = np.where(better, np.maximum(vr, vg), vg)
+        return xm, vm
 
-def _root_of_governing(solved: Solved, span: np.ndarray, length: np.ndarray, x: np.ndarray,
-                       lo: np.ndarray, hi: np.ndarray, quantity: str, case_set: str | None
-                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The root in [lo, hi] of the slope (shear for moment, rotation for deflection) of
-    the case governing at ``x``, by Illinois regula falsi, exact to round-off.
+    def _each_task(self, task: np.ndarray) -> list[tuple[int, np.ndarray]]:
+        """The requests present in ``task`` and their rows, in request order."""
+        return [(t, np.flatnonzero(task == t)) for t in range(len(self.sets))
+                if np.any(task == t)]
 
-    Returns the root, the envelope there, and whether that is a true maximum of the
-    envelope: the slope changed sign from + to - (or, with ``x`` at an end of its
-    bracket, falls away from it) and the same case still governs there.  Elsewhere
-    the root and value are ``x`` and the envelope at ``x``."""
-    beam = solved.beam
-    cs = solved.case_set(case_set or QUANTITY_SET[quantity])
-    solution = solved.solution_for(case_set or QUANTITY_SET[quantity])
-    slope_name = _SLOPE[quantity]
+    def _by_solution(self, task: np.ndarray) -> list[tuple[Solution, list[int], np.ndarray]]:
+        """The tasks present in ``task`` grouped by the solution they read: each
+        solution, its tasks and their rows."""
+        groups: dict[int, tuple[Solution, list[int], list[np.ndarray]]] = {}
+        for t, rows in self._each_task(task):
+            sol = self.solution[t]
+            groups.setdefault(id(sol), (sol, [], []))
+            groups[id(sol)][1].append(t)
+            groups[id(sol)][2].append(rows)
+        return [(sol, ts, np.sort(np.concatenate(rs))) for sol, ts, rs in groups.values()]
 
-    def responses(xs: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
-        owners = span if xs.size == span.size else np.r_[span, span]
-        return evaluate_some(solved.mesh, solved.unit_cases, solution,
-                             make_points(beam, owners, xs), names)
+    def responses(self, task: np.ndarray, span: np.ndarray, x: np.ndarray
+                  ) -> dict[int, np.ndarray]:
+        """Every unit case's response at the points (rows x units), for each task
+        present: its quantity from its solution (rows of other tasks are left zero)."""
+        s = self.solved
+        out: dict[int, np.ndarray] = {}
+        for sol, tasks, rows in self._by_solution(task):
+            names = tuple(dict.fromkeys(self.quantity[t] for t in tasks))
+            pts = make_points(s.beam, span[rows], x[rows])
+            resp = evaluate_some(s.mesh, s.unit_cases, sol, pts, names)
+            for t in tasks:
+                full = np.zeros((x.size, s.unit_cases.n_units))
+                full[rows] = resp[self.quantity[t]]
+                out[t] = full
+        return out
 
-    coef = governing_coefficients(responses(x, (quantity,))[quantity], cs)
-    ends = responses(np.r_[lo, hi], (slope_name,))[slope_name]
-    f_lo = np.einsum("iu,iu->i", ends[: x.size], coef)
-    f_hi = np.einsum("iu,iu->i", ends[x.size:], coef)
-    ok = (f_lo > 0.0) & (f_hi < 0.0)
+    def combine(self, task: np.ndarray, coef: np.ndarray) -> Combined:
+        """The cases ``coef`` (one row per bracket) contracted with each bracket's own
+        solution (:func:`envelope.recovery.combine`)."""
+        s = self.solved
+        groups = self._by_solution(task)
+        if len(groups) == 1:
+            return combine(s.unit_cases, groups[0][0], coef)
+        n_elem = s.solution.V0.shape[0]
+        states = [np.zeros((coef.shape[0], n_elem)) for _ in range(4)]
+        for sol, _, rows in groups:
+            part = combine(s.unit_cases, sol, coef[rows])
+            for full, got in zip(states, (part.V0, part.M0, part.theta1, part.v1),
+                                 strict=True):
+                full[rows] = got
+        V0, M0, theta1, v1 = states
+        return Combined(V0, M0, theta1, v1, coef[:, s.unit_cases.item_unit])
 
-    def slope(xs: np.ndarray) -> np.ndarray:
-        return np.einsum("iu,iu->i", responses(xs, (slope_name,))[slope_name], coef)
+    def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray
+                     ) -> np.ndarray:
+        """Envelope maximum of each point's own request (its quantity over its case set),
+        in chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows a request; NaN at
+        a NaN position (a bracket whose search has finished)."""
+        out = np.full(x.size, np.nan)
+        if np.isnan(x).any():
+            keep = np.flatnonzero(~np.isnan(x))
+            out[keep] = self.envelope_max(task[keep], span[keep], x[keep])
+            return out
+        step = config.STATION_CHUNK_ROWS
+        for lo in range(0, x.size, step):
+            part = slice(lo, lo + step)
+            resp = self.responses(task[part], span[part], x[part])
+            for t, rows in self._each_task(task[part]):
+                for r0 in range(0, rows.size, step):
+                    sel = rows[r0: r0 + step]
+                    vmax = column_max(resp[t][sel], self.sets[t])
+                    out[lo + sel] = vmax.max(axis=1)
+        return out
 
-    tol = config.ROOT_XTOL_EPS * np.finfo(float).eps * np.maximum(length, 1.0)
-    root = illinois_root(slope, lo, hi, f_lo, f_hi, x, ok, tol)
-    # a maximum at an end of its bracket (a span end): the case falls away inwards and
-    # the envelope is lower at probes inside the bracket (several cases may tie at a
-    # support, so the governing one alone does not decide)
-    at_end = ~ok & (((x == lo) & (f_lo <= 0.0)) | ((x == hi) & (f_hi >= 0.0)))
-    value = _envelope_max(solved, span, root, quantity, case_set)
-    if at_end.any():
-        ends = np.flatnonzero(at_end)
-        probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
-        inside = _envelope_max(solved, np.repeat(span[ends], probes.shape[1]),
-                               probes.ravel(), quantity, case_set).reshape(probes.shape)
-        at_end[ends] = np.all(inside < value[ends, None], axis=1)
-    own = np.einsum("iu,iu->i", responses(root, (quantity,))[quantity], coef)
-    scale = np.maximum(np.abs(value), np.finfo(float).tiny)
-    governs = value <= own + config.GOVERNS_RTOL * scale
-    return root, value, (ok | at_end) & governs
+    def root_of_governing(self, task: np.ndarray, span: np.ndarray, length: np.ndarray,
+                          x: np.ndarray, lo: np.ndarray, hi: np.ndarray
+                          ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """The root in [lo, hi] of the slope (shear for moment, rotation for deflection)
+        of the case governing at ``x``, by Illinois regula falsi, exact to round-off.
+
+        Returns the root, the envelope there, and whether that is a true maximum of the
+        envelope: the slope changed sign from + to - (or, with ``x`` at an end of its
+        bracket, falls away from it) and the same case still governs there.  Elsewhere
+        the root and value are ``x`` and the envelope at ``x``."""
+        s = self.solved
+        beam = s.beam
+        resp = self.responses(task, span, x)
+        coef = np.empty((x.size, s.unit_cases.n_units))
+        for t, rows in self._each_task(task):
+            coef[rows] = governing_coefficients(resp[t][rows], self.sets[t])
+        comb = self.combine(task, coef)
+        owner = np.arange(x.size)
+        quantity = np.array([self.quantity[t] for t in task.tolist()], dtype=object)
+        slope_name = np.array([_SLOPE[q] for q in quantity], dtype=object)
+
+        def own(xs: np.ndarray, names: np.ndarray, which: np.ndarray | None = None,
+                right: np.ndarray | None = None) -> np.ndarray:
+            """The governing case of bracket ``which`` (default: each bracket once) at
+            ``xs``: the quantity ``names`` names (NaN at a NaN position: a bracket whose
+            search has finished)."""
+            which = owner if which is None else which
+            got = np.full(xs.size, np.nan)
+            at = np.flatnonzero(~np.isnan(xs))
+            side = None if right is None else right[at]
+            vals = evaluate_combined(s.mesh, s.unit_cases, comb,
+                                     make_points(beam, span[which[at]], xs[at], side),
+                                     which[at], tuple(dict.fromkeys(names[which[at]].tolist())))
+            for name, v in vals.items():
+                mine = names[which[at]] == name
+                got[at[mine]] = v[mine]
+            return got
+
+        def slope(xs: np.ndarray) -> np.ndarray:
+            return own(xs, slope_name)
+
+        n = x.size
+        four = own(np.r_[lo, hi, x, x], slope_name, np.tile(owner, 4),
+                   np.repeat([True, True, False, True], n))
+        f_lo, f_hi, left, right = four[:n], four[n: 2 * n], four[2 * n: 3 * n], four[3 * n:]
+        ok = (f_lo > 0.0) & (f_hi < 0.0)
+        # the slope just left and right of the station itself: through zero there (a
+        # jump under a point load) is the root at once; else the bracket keeps the side
+        # of the station where the root lies
+        at_x = ok & (left >= 0.0) & (right <= 0.0)
+        inner = ok & ~at_x & (x > lo) & (x < hi)
+        up = inner & (left > 0.0) & (right > 0.0)
+        down = inner & (left < 0.0) & (right < 0.0)
+        tol = config.ROOT_XTOL_EPS * np.finfo(float).eps * np.maximum(length, 1.0)
+        root = illinois_root(slope, np.where(up, x, lo), np.where(down, x, hi),
+                             np.where(up, right, f_lo), np.where(down, left, f_hi), x,
+                             ok & ~at_x, tol, group=task)
+        # a maximum at an end of its bracket (a span end): the case falls away inwards and
+        # the envelope is lower at probes inside the bracket (several cases may tie at a
+        # support, so the governing one alone does not decide)
+        at_end = ~ok & (((x == lo) & (f_lo <= 0.0)) | ((x == hi) & (f_hi >= 0.0)))
+        value = self.envelope_max(task, span, root)
+        if at_end.any():
+            ends = np.flatnonzero(at_end)
+            probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
+            k = probes.shape[1]
+            inside = self.envelope_max(np.repeat(task[ends], k), np.repeat(span[ends], k),
+                                       probes.ravel()).reshape(probes.shape)
+            at_end[ends] = np.all(inside < value[ends, None], axis=1)
+        # round-off of the sums is relative to the envelope's size (a value near zero,
+        # e.g. at a free end, is compared with its noise, not with itself)
+        scale = np.maximum(np.maximum(np.abs(value), self.scale[task]), np.finfo(float).tiny)
+        governs = value <= own(root, quantity) + config.GOVERNS_RTOL * scale
+        return root, value, (ok | at_end) & governs
 
 
 def _at_span_ends(pts: Points, n_spans: int) -> tuple[np.ndarray, np.ndarray]:
@@ -187,9 +349,15 @@ def design_actions(solved: Solved, pts: Points,
     left, right = _at_span_ends(pts, n)
     out: dict[str, np.ndarray] = {"span": np.arange(1, n + 1), "length": length}
 
-    moment, shear = env["moment"], env["shear"]
+    moment, shear, deflection = env["moment"], env["shear"], env["deflection"]
+    live = envelope_at(solved, pts, "deflection", "live", labels=False)
+    # one search for the three maxima: sagging moment, service and live deflection
+    wanted = {"moment": (moment, "moment", None), "deflection": (deflection, "deflection", None),
+              "live": (live, "deflection", "live")}
+    asked = {key: (ext.max, q, c) for key, (ext, q, c) in wanted.items() if ext is not None}
+    found = dict(zip(asked, refine_maxima(solved, pts, list(asked.values())), strict=True))
     if moment is not None:
-        pos, pos_x = refine_max(solved, pts, moment.max, "moment")
+        pos, pos_x = found["moment"]
         # round-off at a free end is not a sagging moment
         zero = config.ZERO_RTOL * max(float(np.abs(moment.max).max()),
                                       float(np.abs(moment.min).max()))
@@ -214,16 +382,14 @@ def design_actions(solved: Solved, pts: Points,
     else:
         out["shear_left"] = out["shear_right"] = nan
 
-    deflection = env["deflection"]
     if deflection is not None:
-        dmax, _ = refine_max(solved, pts, deflection.max, "deflection")
+        dmax, _ = found["deflection"]
         out["deflection_max"] = np.maximum(dmax, 0.0)
     else:
         out["deflection_max"] = nan
-    live = envelope_at(solved, pts, "deflection", "live", labels=False)
     out["deflection_live_combo"] = np.full(n, "", dtype=object)
     if live is not None:
-        lmax, lx = refine_max(solved, pts, live.max, "deflection", "live")
+        lmax, lx = found["live"]
         out["deflection_live"] = np.maximum(lmax, 0.0)
         # which variable action alone governs, at the span's largest deflection
         at = envelope_at(solved, make_points(beam, np.arange(n), lx), "deflection", "live",

@@ -438,6 +438,19 @@ def column_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]
     max(R @ G, 0) summed by column (one more product).  Columns with a
     pattern-dependent (favourable) dead load take the cell-by-cell choice of
     :func:`_superposed_values`."""
+    return _column_bounds(R, cs, True)
+
+
+def column_max(R: np.ndarray, cs: CaseSet) -> np.ndarray:
+    """The largest value of every column (rows x columns): the first array of
+    :func:`column_extremes`, without the cost of the smallest (for searches)."""
+    return _column_bounds(R, cs, False)[0]
+
+
+def _column_bounds(R: np.ndarray, cs: CaseSet, smallest: bool
+                   ) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`column_extremes`; with ``smallest`` False the second array is not the
+    smallest value where dead load is pattern-dependent (left undone)."""
     base = R @ cs.fixed
     if isinstance(cs, SuperposedCaseSet):
         signed = R @ cs.patterned
@@ -449,7 +462,8 @@ def column_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]
             onehot = _cell_onehot(cs)
             for k in fav:
                 vmax[:, k] = _superposed_values(R, cs, int(k), 1.0, onehot)[0]
-                vmin[:, k] = _superposed_values(R, cs, int(k), -1.0, onehot)[0]
+                if smallest:
+                    vmin[:, k] = _superposed_values(R, cs, int(k), -1.0, onehot)[0]
     else:
         vmax, vmin = base, base.copy()
     if cs.group_col.size:
@@ -507,8 +521,7 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
     that one fixed case is smooth where the envelope is, so its derivative locates the
     envelope's extreme exactly.  ``R`` is (rows x units) in any units; the
     coefficients are dimensionless (a response is ``R @ coef[i]``)."""
-    vmax, _ = column_extremes(R, cs)
-    col = np.argmax(vmax, axis=1)
+    col = np.argmax(column_max(R, cs), axis=1)
     units, cells, groups = _choices(R, cs, col, 1.0)
     coef = cs.fixed.T[col]
     if isinstance(cs, SuperposedCaseSet):

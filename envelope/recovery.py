@@ -220,3 +220,62 @@ def _kernel_terms(mesh: Mesh, units: UnitCases, points: Points, elem: np.ndarray
     for i, name in enumerate(QUANTITIES):
         if name in out:
             out[name] += block[i]
+
+
+@dataclass(frozen=True, slots=True)
+class Combined:
+    """Unit cases combined into one load case per *owner* (a row of coefficients over
+    the unit cases), contracted once: each element's start state of each owner's case,
+    and each load item's factor in it.  Arrays are (n_owners, n_elements) and
+    (n_owners, n_items)."""
+
+    V0: np.ndarray
+    M0: np.ndarray
+    theta1: np.ndarray
+    v1: np.ndarray
+    item_factor: np.ndarray
+
+
+def combine(units: UnitCases, sol: Solution, coef: np.ndarray) -> Combined:
+    """The cases ``coef`` (owners x unit cases) contracted with the solution: one
+    matrix product per state, after which a response of one owner's case at a point
+    costs the load items of the point's element (see :func:`evaluate_combined`)."""
+    return Combined(coef @ sol.V0.T, coef @ sol.M0.T, coef @ sol.theta1.T, coef @ sol.v1.T,
+                    coef[:, units.item_unit])
+
+
+def evaluate_combined(mesh: Mesh, units: UnitCases, comb: Combined, points: Points,
+                      owner: np.ndarray, quantities: tuple[str, ...]
+                      ) -> dict[str, np.ndarray]:
+    """Response of each point's own combined case (``owner``: its row of ``comb``): the
+    named quantities as (n_points,) arrays, the same as :func:`evaluate_some` times the
+    owner's coefficients (to round-off), in the same units and signs."""
+    elem = locate(mesh, points.span, points.x_span, points.right)
+    s = np.clip(points.x_span - mesh.start[elem], 0.0, mesh.length[elem])
+    EI = mesh.EI[elem]
+    V0, M0 = comb.V0[owner, elem], comb.M0[owner, elem]
+    theta1, v1 = comb.theta1[owner, elem], comb.v1[owner, elem]
+    out: dict[str, np.ndarray] = {}
+    if "shear" in quantities:
+        out["shear"] = V0.copy()
+    if "moment" in quantities:
+        out["moment"] = M0 + V0 * s
+    if "rotation" in quantities:
+        out["rotation"] = theta1 + (M0 * s + V0 * s**2 / 2.0) / EI
+    if "deflection" in quantities:
+        out["deflection"] = v1 + theta1 * s + (M0 * s**2 / 2.0 + V0 * s**3 / 6.0) / EI
+    pt, it = _pairs(elem, units.elem_first)
+    if pt.size:
+        Q, m, m1, m2 = load_terms(units.item_kind[it], units.item_a[it], units.item_b[it],
+                                  units.item_wa[it], units.item_wb[it], units.item_p[it],
+                                  s[pt], points.right[pt])
+        w = comb.item_factor[owner[pt], it]
+        ei_pt = EI[pt]
+        for name, term in (("shear", Q), ("moment", m), ("rotation", m1 / ei_pt),
+                           ("deflection", m2 / ei_pt)):
+            if name in out:
+                out[name] -= np.bincount(pt, w * term, points.n)
+    for name in ("rotation", "deflection"):  # downward deflection, clockwise rotation
+        if name in out:
+            out[name] = -out[name]
+    return out

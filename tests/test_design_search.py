@@ -1,0 +1,179 @@
+"""The combined design search (envelope.actions) against the slow reference path.
+
+The reference, tests/reference_actions.py, is the design search as it was before it was
+combined: three separate searches (moment, service deflection, live deflection), each
+step a full evaluation of every unit case.  The combined search contracts the governing
+case once per bracket and evaluates every quantity in one step; its answers must equal
+the reference's to round-off (1e-12 of the column's largest value in the beam), on the
+invented beams of benchmarks/make_cases.py (every load type, patterning method and
+combination set) and on the demo cases.  The grouped searches of envelope.search must
+give each group the answer it gets alone, bit for bit; the contracted response must
+equal the unit-case responses times the coefficients (superposition, round-off).
+"""
+
+from __future__ import annotations
+
+import importlib.util
+import math
+from pathlib import Path
+from types import ModuleType
+
+import numpy as np
+import pytest
+import reference_actions
+
+from envelope.actions import design_actions, refine_max, refine_maxima
+from envelope.analysis import analyse
+from envelope.casefile import load_case
+from envelope.recovery import combine, evaluate_combined, evaluate_some, make_points
+from envelope.search import golden_max, illinois_root
+
+from tolerances import LONG_SUM
+
+REPO = Path(__file__).resolve().parents[1]
+
+
+def _make_cases() -> ModuleType:
+    spec = importlib.util.spec_from_file_location("make_cases",
+                                                  REPO / "benchmarks" / "make_cases.py")
+    assert spec is not None and spec.loader is not None
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
+
+
+@pytest.fixture(scope="module")
+def generated(tmp_path_factory: pytest.TempPathFactory) -> list[Path]:
+    folder = tmp_path_factory.mktemp("beams")
+    _make_cases().make_cases(48, folder, seed=11)
+    return sorted(folder.glob("*.toml"))
+
+
+def _assert_same_actions(fast: dict[str, np.ndarray], slow: dict[str, np.ndarray],
+                         where: str) -> None:
+    assert fast.keys() == slow.keys()
+    for key, want in slow.items():
+        got = fast[key]
+        if want.dtype == object:
+            assert got.tolist() == want.tolist(), (where, key)
+            continue
+        assert np.array_equal(np.isnan(got), np.isnan(want)), (where, key)
+        scale = float(np.nanmax(np.abs(want), initial=0.0))
+        err = np.nanmax(np.abs(got - want), initial=0.0)
+        # round-off (LONG_SUM) of the beam's largest value of the column
+        assert err <= LONG_SUM * scale, (where, key, err, scale)
+
+
+def _reference(a) -> dict[str, np.ndarray]:  # type: ignore[no-untyped-def]
+    return reference_actions.design_actions(a.solved, a.stations, a.station_envelopes)
+
+
+def test_combined_search_matches_the_three_separate_searches(generated: list[Path]) -> None:
+    for path in generated:
+        a = analyse(load_case(path))
+        _assert_same_actions(a.design_actions, _reference(a), path.name)
+
+
+def test_combined_search_matches_the_reference_on_the_demo_cases() -> None:
+    for path in sorted((REPO / "cases").glob("*.toml")):
+        a = analyse(load_case(path))
+        _assert_same_actions(a.design_actions, _reference(a), path.name)
+
+
+def test_one_request_alone_and_among_others_gives_the_same_maxima(
+        generated: list[Path]) -> None:
+    for path in generated[:16]:
+        a = analyse(load_case(path))
+        env = a.station_envelopes
+        moment, deflection = env["moment"], env["deflection"]
+        assert moment is not None and deflection is not None
+        both = refine_maxima(a.solved, a.stations, [(moment.max, "moment", None),
+                                                    (deflection.max, "deflection", None)])
+        for (value, x), (env_max, q) in zip(both, ((moment.max, "moment"),
+                                                  (deflection.max, "deflection")),
+                                            strict=True):
+            alone_value, alone_x = refine_max(a.solved, a.stations, env_max, q)
+            scale = float(np.abs(env_max).max())
+            np.testing.assert_allclose(value, alone_value, rtol=0, atol=LONG_SUM * scale)
+            length = a.beam.geometry.span_length
+            np.testing.assert_allclose(x, alone_x, rtol=0,
+                                       atol=LONG_SUM * float(np.max(length)))
+
+
+def test_design_actions_takes_the_station_envelopes_as_before(generated: list[Path]) -> None:
+    a = analyse(load_case(generated[0]))
+    again = design_actions(a.solved, a.stations, a.station_envelopes)
+    for key, col in a.design_actions.items():
+        assert np.array_equal(col, again[key]) or (
+            col.dtype != object and np.array_equal(np.isnan(col), np.isnan(again[key])))
+
+
+def test_contracted_response_is_the_unit_responses_times_the_coefficients(
+        generated: list[Path]) -> None:
+    rng = np.random.default_rng(3)
+    for path in generated[:12]:
+        s = analyse(load_case(path)).solved
+        n = 40
+        span = rng.integers(0, s.beam.n_spans, n)
+        x = rng.random(n) * np.asarray(s.beam.geometry.span_length)[span]
+        right = rng.random(n) < 0.5
+        pts = make_points(s.beam, span, x, right)
+        coef = rng.normal(size=(n, s.unit_cases.n_units))
+        names = ("shear", "moment", "rotation", "deflection")
+        unit = evaluate_some(s.mesh, s.unit_cases, s.solution, pts, names)
+        comb = evaluate_combined(s.mesh, s.unit_cases, combine(s.unit_cases, s.solution, coef),
+                                 pts, np.arange(n), names)
+        for q in names:
+            want = np.einsum("iu,iu->i", unit[q], coef)
+            scale = np.abs(unit[q]).max() * np.abs(coef).sum(axis=1).max()
+            np.testing.assert_allclose(comb[q], want, rtol=0, atol=LONG_SUM * scale)
+
+
+def _peaks(x: np.ndarray, centre: np.ndarray) -> np.ndarray:
+    return -np.abs(x - centre) ** 1.5
+
+
+def test_grouped_golden_search_gives_each_group_its_own_answer() -> None:
+    a = np.array([0.0, 1.0, -3.0, 2.0, 0.5])
+    b = np.array([1.0, 4.0, 5.0, 2.5, 0.7])
+    centre = np.array([0.3, 2.9, 1.1, 2.2, 0.61])
+    xtol = np.array([1e-9, 1e-3, 1e-6, 1e-12, 1e-5])
+    group = np.array([0, 1, 1, 2, 0])
+
+    def f_of(c: np.ndarray):  # type: ignore[no-untyped-def]
+        return lambda x: _peaks(x, np.resize(c, x.size))
+
+    x, v = golden_max(f_of(centre), a, b, xtol, group=group)
+    for g in range(3):
+        mine = group == g
+        xg, vg = golden_max(f_of(centre[mine]), a[mine], b[mine], xtol[mine])
+        assert np.array_equal(x[mine], xg) and np.array_equal(v[mine], vg)
+    assert np.all(np.abs(x - centre) < 1e-2)
+
+
+def test_grouped_root_search_gives_each_group_its_own_answer() -> None:
+    lo = np.array([0.5, 4.0, 0.0, 0.1])
+    hi = np.array([2.5, 5.0, 3.0, 1.0])
+    shift = np.array([0.0, math.pi, 0.0, 0.0])
+    power = np.array([1.0, 1.0, 3.0, 1.0])
+    group = np.array([0, 1, 1, 0])
+    active = np.array([True, True, True, False])
+
+    def f_of(sh: np.ndarray, pw: np.ndarray):  # type: ignore[no-untyped-def]
+        def f(x: np.ndarray) -> np.ndarray:
+            return np.where(pw == 1.0, np.cos(x - sh), 2.0 - x ** pw)
+        return f
+
+    f = f_of(shift, power)
+    start = (lo + hi) / 2
+    xtol = np.full(4, 1e-15)
+    root = illinois_root(f, lo, hi, f(lo), f(hi), start, active, xtol, group=group)
+    for g in range(2):
+        m = group == g
+        fg = f_of(shift[m], power[m])
+        alone = illinois_root(fg, lo[m], hi[m], fg(lo[m]), fg(hi[m]), start[m], active[m],
+                              xtol[m])
+        assert np.array_equal(root[m], alone)
+    np.testing.assert_allclose(root[:3], [math.pi / 2, 3 * math.pi / 2, 2.0 ** (1 / 3)],
+                               rtol=4e-16, atol=0)
+    assert root[3] == start[3]
