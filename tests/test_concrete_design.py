@@ -25,6 +25,8 @@ from envelope.casefile import parse_case
 from envelope.design import LongTerm
 from envelope.sizing import size
 
+from tolerances import SOLVE
+
 ACI = {"material": "concrete", "code": "aci318-19", "b": 300, "h": 600,
        "cover_to_bar_centre": 60, "fc": 30, "fy": 420}
 EN = {"material": "concrete", "code": "en1992-1-1", "b": 300, "h": 600,
@@ -391,6 +393,23 @@ def test_deep_beam_and_uplift_are_flagged_in_the_status() -> None:
     assert "can lift off" not in cols["status"][row(cols, 1, "left")]
 
 
+def test_a_point_load_within_2h_of_a_face_flags_a_deep_beam_region() -> None:
+    # ACI 318-19 9.9.1.1(b): the office demo with its facade point load moved from 1.8 m
+    # to 0.7 m from the east column (0.475 m from the face of the 0.45 m column, within
+    # 2h = 1.4 m of the 700 mm beam): the region fails the status; nothing else does
+    from pathlib import Path
+    text = (Path(__file__).resolve().parents[1] / "cases" / "office-4span-si.toml"
+            ).read_text(encoding="utf-8")
+    assert text.count("at = 5.4\n") == 1
+    beam = parse_case(tomllib.loads(text.replace("at = 5.4\n", "at = 6.5\n")), "t.toml")
+    cols = size(analyse(beam))
+    flagged = [i for i, s in enumerate(cols["status"]) if s != "ok"]
+    assert flagged == [row(cols, 4, "right")]
+    assert cols["status"][flagged[0]].startswith(
+        "deep-beam region (ACI 318-19 9.9.1.1(b)): a point load at 6.5 m lies within 2h "
+        "of the right face")
+
+
 @pytest.mark.parametrize("code", ["en1992-1-1", "aci318-19"])
 def test_bearing_seat_takes_the_centreline_moment_less_f_t_over_8(code: str) -> None:
     # two equal 6 m spans under 1.4 x 20 kN/m on a 0.3 m wide middle support: M_B =
@@ -434,3 +453,68 @@ def test_en_after_construction_limit_only_where_parts_can_be_damaged() -> None:
     assert base["utilisation_deflection"][i] == pytest.approx(
         max(lt / (8000 / 250), inc / (8000 / 500)))
     assert free["utilisation_deflection"][i] == pytest.approx(lt / (8000 / 250))
+
+
+def _spring_ended(code: str, k_rotation: float, stretch: str = "") -> str:
+    return ('units = "SI"\n[section]\nE = 30000\nI = 5.4e9\n'
+            f'[[spans]]\nlength = 6.0\n{stretch}'
+            f'[[supports]]\ntype = "spring"\nk_rotation = {k_rotation!r}\n'
+            f'[[supports]]\ntype = "spring"\nk_rotation = {k_rotation!r}\n'
+            '[cases]\nD = { kind = "dead" }\nL = { kind = "live" }\n'
+            '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 20.0\n'
+            '[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = 15.0\n'
+            '[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+            '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
+            'factors = { D = 1.4, L = 1.7 }\n'
+            f'[design]\nmaterial = "concrete"\ncode = "{code}"\nb = 300\nh = 600\n'
+            'cover_to_bar_centre = 60\nfc = 30\nfy = 500\n')
+
+
+def test_en_face_moment_is_at_least_065_of_the_fixed_end_moment() -> None:
+    # EN 1992-1-1:2004 5.3.2.2(3) note: a 6 m span on nearly free rotational springs
+    # (1 kN*m/rad) carries almost no end moment; the face moment is floored at 0.65 of
+    # the fixed-end moment w L^2 / 12 (closed form) with w = 1.4 x 20 + 1.7 x 15
+    w, L = 1.4 * 20.0 + 1.7 * 15.0, 6.0
+    cols = size(analyse(parse_case(tomllib.loads(_spring_ended("en1992-1-1", 1.0)),
+                                   "t.toml")))
+    for end in ("left", "right"):
+        i = row(cols, 1, end)
+        assert cols["moment_design"][i] == pytest.approx(-0.65 * w * L * L / 12, rel=SOLVE)
+        assert "0.65 of the fixed-end moment" in cols["note"][i]
+    # ACI 318-19 has no such floor: the analysed end moment stays
+    aci = size(analyse(parse_case(tomllib.loads(_spring_ended("aci318-19", 1.0)),
+                                  "t.toml")))
+    assert abs(aci["moment_design"][row(aci, 1, "left")]) < 0.01
+
+
+def test_en_floor_leaves_a_face_moment_above_065_fem_alone() -> None:
+    # two equal spans: the middle face moment w L^2 / 8 exceeds 0.65 w L^2 / 12
+    # (EN 1992-1-1:2004 5.3.2.2(3)); the pinned ends carry none and are not floored
+    cols = case(EN, (6.0, 6.0), 20.0, 15.0)
+    i = row(cols, 1, "right")
+    assert "fixed-end moment" not in cols["note"][i]
+    assert "floor of EN 1992-1-1 5.3.2.2(3) not applied" in cols["note"][row(cols, 1, "left")]
+    assert cols["moment_design"][row(cols, 1, "left")] == 0.0
+
+
+def test_fixed_end_moments_of_a_stepped_span_match_sympy() -> None:
+    # a 6 m span, EI doubled over its first 2 m, under 20 kN/m: the built-in end moments
+    # by the unit-load method solved exactly in SymPy (rotations at both ends zero)
+    import sympy as sp
+
+    from envelope.sizing.seats import fixed_end_moments
+    stretch = '  [[spans.sections]]\n  from = 0.0\n  to = 2.0\n  I = 1.08e10\n'
+    a = analyse(parse_case(tomllib.loads(_spring_ended("en1992-1-1", 1.0, stretch)),
+                           "t.toml"))
+    fem = fixed_end_moments(a, 0)
+    dead = a.solved.unit_cases.case == [c.name for c in a.beam.cases].index("D")
+    got = fem[:, dead].sum(axis=1)
+    x, ma, mb = sp.symbols("x M_a M_b")
+    L, wd, ei = sp.Integer(6), sp.Integer(20), sp.Integer(1)
+    m = wd * x * (L - x) / 2 + ma * (1 - x / L) + mb * x / L
+    eqs = [sp.integrate(m * f / (2 * ei), (x, 0, 2)) + sp.integrate(m * f / ei, (x, 2, L))
+           for f in (1 - x / L, x / L)]
+    sol = sp.solve(eqs, (ma, mb))
+    assert got[0] == pytest.approx(float(sol[ma]), rel=SOLVE)
+    assert got[1] == pytest.approx(float(sol[mb]), rel=SOLVE)
+    assert float(sol[ma]) != pytest.approx(float(sol[mb]), rel=1e-3)  # not symmetric

@@ -700,13 +700,6 @@ def test_demo_cases_size_end_to_end(name: str, tmp_path: Path) -> None:
         assert key in meta
     assert table.column("section").to_pylist()[:3] == ["left", "span", "right"]
     statuses = set(table.column("status").to_pylist())
-    if name == "office-4span-si":
-        # the point load 0.475 m from the first interior face makes a deep-beam region
-        # (ACI 318-19 9.9.1.1(b)), which the status must flag
-        flagged = {s for s in statuses if s != "ok"}
-        assert flagged and all(s.startswith("deep-beam region (ACI 318-19 9.9.1.1(b))")
-                               for s in flagged)
-        statuses -= flagged
     assert statuses == {"ok"}
     pq.write_table(table, tmp_path / "sizing.parquet")
     assert pq.read_table(tmp_path / "sizing.parquet").num_rows == table.num_rows

@@ -30,7 +30,7 @@ from envelope.sizing.layout import (
     design_rows,
     section_to_consistent,
 )
-from envelope.sizing.seats import seat_rows
+from envelope.sizing.seats import fixed_end_floor, seat_rows
 
 
 def _pct(demand: float, capacity: float) -> str:
@@ -87,6 +87,9 @@ def size_concrete(analysis: Analysis) -> Sized:
     d = float(design.d)
     rows = design_rows(analysis, at_faces=True, shear_shift=d * section_to_consistent(beam))
     rows, seat_notes = seat_rows(analysis, rows)
+    if design.code == "en1992-1-1":
+        rows, floor_notes = fixed_end_floor(analysis, rows)
+        seat_notes += floor_notes
     sag = rows.is_span & design.is_tee
     bf = np.where(sag, float(design.flange_width if design.flange_width is not None else b), b)
     hf = np.where(sag, float(design.flange_depth or 0.0), 0.0)

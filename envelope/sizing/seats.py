@@ -8,18 +8,27 @@ moment is used; EN 1992-1-1 5.3.2.2(4) reduces the centreline moment by
 Delta M = F_Ed,sup t / 8 (t the bearing width, F_Ed,sup the support reaction).  The
 reduced moment M + R t / 8 is linear in the unit cases, so its envelope over the
 strength set is exact (each arrangement with its own reaction).
+
+EN 1992-1-1 5.3.2.2(3) also floors the face moment of a monolithic support at 0.65 of
+the full fixed-end moment (:func:`fixed_end_floor`).
 """
 
 from __future__ import annotations
 
 import dataclasses
+import itertools
 
 import numpy as np
 
+from envelope import config
 from envelope.analysis import Analysis
 from envelope.enveloper import reduce
 from envelope.recovery import evaluate_some, make_points
 from envelope.sizing.layout import Rows
+
+#: EN 1992-1-1 5.3.2.2(3) note: the face moment of a monolithic support is at least
+#: this share of the full fixed-end moment.
+FIXED_END_SHARE = 0.65
 
 
 def seat_rows(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[int, str]]]:
@@ -61,3 +70,103 @@ def seat_rows(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[int, str
             x_span[i] = x
             notes.append((i, text))
     return dataclasses.replace(rows, moment=moment, x_span=x_span), notes
+
+
+def _simpson(lo: float, hi: float, n: int) -> tuple[np.ndarray, np.ndarray]:
+    """Points and weights of the composite Simpson rule on [lo, hi], ``n`` even."""
+    x = np.linspace(lo, hi, n + 1)
+    w = np.full(n + 1, 2.0)
+    w[1::2] = 4.0
+    w[0] = w[-1] = 1.0
+    return x, w * (hi - lo) / (3.0 * n)
+
+
+def fixed_end_moments(analysis: Analysis, span: int) -> np.ndarray:
+    """Fixed-end moments (2 x n_unit_cases: left end, right end; consistent units,
+    sagging positive, so hogging is negative) of every unit case on span ``span`` taken
+    as built in at both ends, with the span's own stretches.
+
+    The span's free-body moment of its own loads is M0(x) = M(x) - M(0) (1 - x/L) -
+    M(L) x/L (statics of the span cut from the beam; M from the analysis).  The built-in
+    end moments Ma, Mb make both end rotations zero (unit-load method, 1/EI per stretch):
+    integral (M0 + Ma (1 - x/L) + Mb x/L) (1 - x/L) / EI dx = 0 and the same with x/L,
+    integrated by Simpson's rule piecewise between stretch ends and point loads (exact
+    for uniform and point loads, whose integrands are cubic at most there).  A prismatic
+    span under w gives -w L^2 / 12 at each end."""
+    beam = analysis.beam
+    solved = analysis.solved
+    sp = beam.spans[span]
+    length = sp.length
+    loads = np.array([ld.at for ld in beam.loads
+                      if getattr(ld, "type", "") == "point" and ld.span == span
+                      and ld.at is not None], dtype=float)
+    xs: list[np.ndarray] = []
+    weights: list[np.ndarray] = []
+    for st in sp.stretches:
+        cuts = np.unique(np.r_[st.start, loads[(loads > st.start) & (loads < st.end)],
+                               st.end])
+        for lo, hi in itertools.pairwise(cuts.tolist()):
+            n = 2 * max(4, int(np.ceil(config.DEFLECTION_GRID * (hi - lo) / length / 2)))
+            x, w = _simpson(lo, hi, n)
+            xs.append(x)
+            weights.append(w / st.section.EI)
+    x = np.concatenate(xs)
+    w = np.concatenate(weights)
+    pts = make_points(beam, np.full(x.size + 2, span), np.r_[x, 0.0, length],
+                      np.r_[x < length, True, False])
+    m = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
+                      ("moment",))["moment"]
+    xi = (x / length)[:, None]
+    m0 = m[:-2] - m[-2][None, :] * (1.0 - xi) - m[-1][None, :] * xi
+    a, b = (1.0 - xi)[:, 0], xi[:, 0]
+    f = np.array([[np.sum(w * a * a), np.sum(w * a * b)],
+                  [np.sum(w * a * b), np.sum(w * b * b)]])
+    rhs = -np.vstack([(w * a) @ m0, (w * b) @ m0])
+    return np.asarray(np.linalg.solve(f, rhs))
+
+
+def _built_in(analysis: Analysis, joint: int) -> bool:
+    """A joint whose support is monolithic and carries moment in the analysis: the beam
+    runs on over it (a span each side) or the support restrains rotation."""
+    beam = analysis.beam
+    sup = beam.supports[joint]
+    if sup.seat != "monolithic" or not sup.restrains_vertical:
+        return False
+    return 0 < joint < beam.n_spans or sup.restrains_rotation
+
+
+def fixed_end_floor(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[int, str]]]:
+    """EN 1992-1-1 5.3.2.2(3) note: the design moment at the face of a monolithic
+    support is at least 0.65 of the full fixed-end moment.  The fixed-end moment of each
+    unit case (:func:`fixed_end_moments`) is linear in the loads, so its most hogging
+    value over the strength set is exact; each built-in face row (:func:`_built_in`) is
+    raised to 0.65 of it where its own hogging moment is smaller, with a note.  End
+    supports modelled free to rotate carry no moment in the analysis and are left as
+    they are (a note says so)."""
+    beam = analysis.beam
+    solved = analysis.solved
+    moment = rows.moment.copy()
+    notes: list[tuple[int, str]] = []
+    if solved.strength.is_empty:
+        return rows, notes
+    lab = beam.units.labels["moment"]
+    for j in range(beam.n_spans):
+        fem = None
+        for k, (end, joint) in enumerate((("left", j), ("right", j + 1))):
+            i = 3 * j + (0 if end == "left" else 2)
+            sup = beam.supports[joint]
+            if not _built_in(analysis, joint):
+                if sup.seat == "monolithic" and sup.restrains_vertical:
+                    notes.append((i, "end support free to rotate in the analysis: the "
+                                     "0.65 fixed-end moment floor of EN 1992-1-1 "
+                                     "5.3.2.2(3) not applied"))
+                continue
+            if fem is None:
+                fem = fixed_end_moments(analysis, j)
+            low = float(reduce(fem[k:k + 1], solved.strength, labels=False).min[0])
+            floor = FIXED_END_SHARE * min(low, 0.0)
+            if floor < moment[i]:
+                notes.append((i, f"face moment raised to 0.65 of the fixed-end moment "
+                                 f"{low:.1f} {lab} (EN 1992-1-1 5.3.2.2(3))"))
+                moment[i] = floor
+    return dataclasses.replace(rows, moment=moment), notes
