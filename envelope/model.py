@@ -73,6 +73,9 @@ class Stretch:
     start: float
     end: float
     section: Section
+    #: concrete sizing: the depth of the section here (section units, mm / in); None:
+    #: the ``[design]`` h
+    h: float | None = None
 
 
 @dataclass(frozen=True, slots=True)

@@ -43,10 +43,12 @@ def _value(v: object) -> str:
 
 
 def case(design: dict, spans: tuple[float, ...], dead: float, live: float,
-         supports: tuple[str, ...] | None = None, extra: dict | None = None) -> dict:
+         supports: tuple[str, ...] | None = None, extra: dict | None = None,
+         stretches: tuple[str, ...] = ()) -> dict:
     sup = supports or ("pinned",) * (len(spans) + 1)
     parts = ['units = "SI"', "[section]\nE = 30000\nI = 5.4e9"]
-    parts += [f"[[spans]]\nlength = {L!r}" for L in spans]
+    parts += [f"[[spans]]\nlength = {L!r}" + (f"\n{stretches[j]}" if j < len(stretches)
+                                               else "") for j, L in enumerate(spans)]
     parts += [f'[[supports]]\ntype = "{s}"' for s in sup]
     parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }')
     parts.append(f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {dead!r}')
@@ -518,3 +520,51 @@ def test_fixed_end_moments_of_a_stepped_span_match_sympy() -> None:
     assert got[0] == pytest.approx(float(sol[ma]), rel=SOLVE)
     assert got[1] == pytest.approx(float(sol[mb]), rel=SOLVE)
     assert float(sol[ma]) != pytest.approx(float(sol[mb]), rel=1e-3)  # not symmetric
+
+
+def _whole_span_depth(h: float, length: float) -> str:
+    return f"[[spans.sections]]\nfrom = 0.0\nto = {length!r}\nh = {h!r}"
+
+
+@pytest.mark.parametrize("design", [ACI, EN], ids=["aci", "en"])
+def test_a_stretch_depth_over_the_whole_beam_designs_as_that_depth(design: dict) -> None:
+    # two 7 m spans given h = 700 mm by a stretch over each whole span (the [design] h is
+    # 600 mm) size exactly as a 700 mm beam: flexure, minimum steel, shear at d from the
+    # face, bars, crack control and the cracked deflections all take the local depth
+    spans = (7.0, 7.0)
+    deep = case({**design, "h": 700}, spans, 25.0, 15.0)
+    given = case(design, spans, 25.0, 15.0,
+                 stretches=tuple(_whole_span_depth(700.0, L) for L in spans))
+    assert list(given["h"]) == [700.0] * 6
+    for key, value in deep.items():
+        if key == "note" or value.dtype == object:
+            if key not in ("note",):
+                assert list(given[key]) == list(value), key
+            continue
+        np.testing.assert_allclose(given[key], value, rtol=1e-9, err_msg=key)
+    assert all("depth of its stretch, h = 700 mm" in n for n in given["note"])
+
+
+def test_a_haunch_is_designed_with_its_own_depth_at_the_face() -> None:
+    # two 8 m spans, 600 mm deep, haunched to 900 mm over the last 1.2 m of span 1 and
+    # the first 1.2 m of span 2: the hogging faces are designed with d = 900 - 60 mm.
+    # ACI 318-19 22.2.2.4.1 (block 0.85 f'c over a), 22.2.2.4.3 (beta1 = 0.85 -
+    # 0.05 (30 - 28)/7 for f'c = 30 MPa), tension-controlled phi = 0.9 (21.2.2):
+    # Mu = phi As fy (d - a/2), a = As fy / (0.85 f'c b), solved for As.
+    haunch = ("[[spans.sections]]\nfrom = 6.8\nto = 8.0\nI = 1.8225e10\nh = 900.0",
+              "[[spans.sections]]\nfrom = 0.0\nto = 1.2\nI = 1.8225e10\nh = 900.0")
+    cols = case(ACI, (8.0, 8.0), 25.0, 15.0, stretches=haunch)
+    i, k = row(cols, 1, "right"), row(cols, 1, "span")
+    assert cols["h"][i] == 900.0 and cols["h"][k] == 600.0
+    assert cols["d"][k] < 600.0
+    mu = abs(cols["moment_design"][i]) * 1e6  # N*mm
+    b, d, fc, fy = 300.0, 840.0, 30.0, 420.0
+    # phi fy As (d - As fy / (1.7 f'c b)) = Mu: the smaller root of the quadratic
+    qa, qb, qc = 0.9 * fy * fy / (1.7 * fc * b), -0.9 * fy * d, mu
+    as_req = (-qb - math.sqrt(qb * qb - 4 * qa * qc)) / (2 * qa)
+    assert cols["as_required"][i] == pytest.approx(as_req, rel=1e-6)
+    # at the 600 mm depth (d = 540 mm) the same moment would need over half as much again
+    qb = -0.9 * fy * 540.0
+    assert (-qb - math.sqrt(qb * qb - 4 * qa * qc)) / (2 * qa) > 1.5 * as_req
+    assert "depth of its stretch, h = 900 mm" in cols["note"][i]
+    assert "depth of its stretch" not in cols["note"][k]

@@ -102,6 +102,7 @@ def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
     output = options.output(r, data)
     design_table = design.design(r, data, tuple(sp.length for sp in spans))
     redistribution.check_supports(r, design_table, spans, supports)
+    geometry.check_depths(r, spans, design_table)
     stability.check(spans, supports, source, length_unit=r.length_unit())
     return Beam(
         id=beam_id, title=title, units=r.system, spans=spans, supports=supports,

@@ -12,6 +12,7 @@ import math
 from typing import Any, get_args
 
 from envelope.casefile.reader import Reader, item, join, suggest
+from envelope.design import ConcreteDesign, Design
 from envelope.model import RESTRAINTS, Seat, Section, Span, Stretch, Support, SupportKind
 
 SECTION_KEYS = ("E", "I", "A", "unit_weight")
@@ -19,7 +20,7 @@ SECTION_KEYS = ("E", "I", "A", "unit_weight")
 SECTION_QUANTITIES = {"E": "modulus", "I": "inertia", "A": "area", "unit_weight": "unit_weight"}
 SPAN_KEYS = ("length", *SECTION_KEYS, "sections", "hinges")
 HINGE_KEYS = ("at",)
-STRETCH_KEYS = ("from", "to", *SECTION_KEYS)
+STRETCH_KEYS = ("from", "to", *SECTION_KEYS, "h")
 SUPPORT_TYPES: tuple[SupportKind, ...] = get_args(SupportKind)
 SUPPORT_KEYS: dict[str, tuple[str, ...]] = {
     "pinned": ("type", "width", "seat"),
@@ -91,24 +92,25 @@ def span(r: Reader, table: dict[str, Any], key: str, default: Props,
     length = r.positive(r.required(table, key, "length"), join(key, "length"), "length")
     props = section_props(r, table, key, default)
     section = make_section(r, props, key)
-    pieces: list[tuple[float, float, Section, str]] = []
+    pieces: list[tuple[float, float, Section, str, float | None]] = []
     if "sections" in table:
         skey = join(key, "sections")
         for j, entry in enumerate(r.array_of_tables(table["sections"], skey)):
             pieces.append(stretch(r, entry, item(skey, j), length, props))
     pieces.sort(key=lambda p: p[0])
-    for (_, prev_end, _, prev_key), (start, _, _, this_key) in itertools.pairwise(pieces):
+    for (_, prev_end, _, prev_key, _), (start, _, _, this_key, _) in itertools.pairwise(
+            pieces):
         if start < prev_end:
             r.fail(this_key, f"overlaps {prev_key} (which ends at {r.fmt_len(prev_end)})")
     stretches: list[Stretch] = []
     x = 0.0
     shortest = MIN_STRETCH * length
-    for start, end, sec, skey in pieces:
+    for start, end, sec, skey, depth in pieces:
         if start > x:
             long_enough(r, x, start, shortest, skey, "the part of the span before it")
             stretches.append(Stretch(x, start, section))
         long_enough(r, start, end, shortest, skey, "this stretch")
-        stretches.append(Stretch(start, end, sec))
+        stretches.append(Stretch(start, end, sec, depth))
         x = end
     if x < length:
         if pieces:
@@ -165,15 +167,40 @@ def long_enough(r: Reader, start: float, end: float, shortest: float, key: str,
 
 
 def stretch(r: Reader, table: dict[str, Any], key: str, length: float,
-            span_props: Props) -> tuple[float, float, Section, str]:
-    """One ``[[spans.sections]]`` item: (from, to, section, key path)."""
+            span_props: Props) -> tuple[float, float, Section, str, float | None]:
+    """One ``[[spans.sections]]`` item: (from, to, section, key path, h).  ``h`` is the
+    concrete depth there for sizing, in section units (mm / in), None where not given."""
     r.known_keys(table, key, STRETCH_KEYS)
     start = r.within_span(r.required(table, key, "from"), join(key, "from"), length, "from")
     end = r.within_span(r.required(table, key, "to"), join(key, "to"), length, "to")
     if not start < end:
         r.fail(key, f"'from' ({r.fmt_len(start)}) must be less than 'to' ({r.fmt_len(end)})")
     section = make_section(r, section_props(r, table, key, span_props), key)
-    return start, end, section, key
+    depth = None
+    if "h" in table:
+        depth = r.positive(table["h"], join(key, "h"), "deflection") / \
+            r.system.to_consistent("deflection")
+    return start, end, section, key, depth
+
+
+def check_depths(r: Reader, spans: tuple[Span, ...], design: Design | None) -> None:
+    """A stretch's ``h`` is for concrete sizing: refused without a concrete ``[design]``,
+    and it must leave room for the cover and a T-beam's flange."""
+    for i, one in enumerate(spans):
+        key = join(item("spans", i), "sections")
+        for st in one.stretches:
+            if st.h is None:
+                continue
+            where = f"the stretch from {r.fmt_len(st.start)} to {r.fmt_len(st.end)}"
+            if not isinstance(design, ConcreteDesign):
+                r.fail(key, f"{where} gives h, which only concrete sizing reads "
+                            f"([design] material = \"concrete\")")
+            if st.h <= design.cover_to_bar_centre:
+                r.fail(key, f"{where}: h = {st.h:g} must be more than "
+                            f"cover_to_bar_centre = {design.cover_to_bar_centre:g}")
+            if design.flange_depth is not None and st.h <= design.flange_depth:
+                r.fail(key, f"{where}: h = {st.h:g} must be more than flange_depth = "
+                            f"{design.flange_depth:g}")
 
 
 # -- supports ---------------------------------------------------------------

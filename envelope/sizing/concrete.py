@@ -20,6 +20,7 @@ from envelope.analysis import Analysis
 from envelope.design import ConcreteDesign
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
+from envelope.sizing import depths
 from envelope.sizing.layout import (
     ACI_SCALES,
     EN_SCALES,
@@ -48,19 +49,22 @@ def _end_steel(rows: Rows, as_des: np.ndarray) -> np.ndarray:
     return np.where(rows.is_end, np.nan_to_num(steel), np.nan)
 
 
-def min_steel_width(analysis: Analysis, rows: Rows) -> np.ndarray:
+def min_steel_width(analysis: Analysis, rows: Rows, h: np.ndarray | None = None
+                    ) -> np.ndarray:
     """Width for the minimum tension steel at each row (section units): the web, except
     where a T-beam's flange is in tension (hogging rows): ACI 318-19 9.6.1.2 takes the
     lesser of bf and 2 bw in a statically determinate member (a cantilever), the web in
     a continuous one; EN 1992-1-1 9.2.1.1(1) takes bt, the mean width of the tension
-    zone, here of the gross section above its centroid."""
+    zone, here of the gross section above its centroid (of depth ``h`` per row, the
+    ``[design]`` h where None)."""
     design = analysis.beam.design
     assert design is not None
     b = float(design.b)
     out = np.full(rows.n, b)
     if design.flange_width is None or design.flange_depth is None:
         return out
-    bf, hf, h = float(design.flange_width), float(design.flange_depth), float(design.h)
+    bf, hf = float(design.flange_width), float(design.flange_depth)
+    h = np.full(rows.n, float(design.h)) if h is None else np.asarray(h, dtype=float)
     hog = rows.is_end
     if design.code == "aci318-19":
         beam = analysis.beam
@@ -73,7 +77,7 @@ def min_steel_width(analysis: Analysis, rows: Rows) -> np.ndarray:
         return np.where(hog & cantilever[rows.span], min(bf, 2.0 * b), out)
     area = b * h + (bf - b) * hf
     y_top = (b * h * h / 2.0 + (bf - b) * hf * hf / 2.0) / area
-    mean = (bf * hf + b * max(y_top - hf, 0.0)) / y_top if y_top > hf else bf
+    mean = np.where(y_top > hf, (bf * hf + b * np.maximum(y_top - hf, 0.0)) / y_top, bf)
     return np.where(hog, mean, out)
 
 
@@ -83,9 +87,13 @@ def size_concrete(analysis: Analysis) -> Sized:
     design = beam.design
     assert isinstance(design, ConcreteDesign)
     b = float(design.b)
-    h = float(design.h)
-    d = float(design.d)
-    rows = design_rows(analysis, at_faces=True, shear_shift=d * section_to_consistent(beam))
+    cover = float(design.cover_to_bar_centre)
+    geo = beam.geometry
+    n = beam.n_spans
+    faces = np.c_[geo.face_left, np.full(n, np.nan), geo.face_right].ravel()
+    d_faces = depths.depth_at(beam, np.repeat(np.arange(n), 3), faces) - cover
+    rows = design_rows(analysis, at_faces=True,
+                       shear_shift=d_faces * section_to_consistent(beam))
     rows, seat_notes = seat_rows(analysis, rows)
     if design.code == "en1992-1-1":
         rows, floor_notes = fixed_end_floor(analysis, rows)
@@ -102,21 +110,26 @@ def size_concrete(analysis: Analysis) -> Sized:
             kind = "sagging moment in this span" if rows.is_span[i] else \
                 "hogging moment at this face"
             notes[i].append(f"no {kind}: no tension steel required")
+    h = depths.depth_at(beam, rows.span, rows.x_span)
+    d = h - cover
+    for i in np.flatnonzero(h != float(design.h)).tolist():
+        notes[i].append(f"designed with the depth of its stretch, h = {h[i]:.4g} "
+                        f"{SECTION_UNITS[beam.units.name]['length']}")
     if design.code == "aci318-19":
-        cols, units = _aci(analysis, rows, b, d, bf, hf, notes, failures)
+        cols, units = _aci(analysis, rows, b, d, bf, hf, notes, failures, h)
     else:
         cols, units = _en(analysis, rows, b, h, d, bf, hf, notes, failures)
     for i, why in enumerate(rows.face_reason):
         if why:
             notes[i].append(f"shear taken at the face: {FACE_REASONS[why]}")
     su = SECTION_UNITS[beam.units.name]
-    base = {"b": np.full(rows.n, b), "h": np.full(rows.n, h), "d": np.full(rows.n, d)}
+    base = {"b": np.full(rows.n, b), "h": h, "d": d}
     units.update({k: su["length"] for k in base})
     return Sized(rows, {**base, **cols}, units, notes, failures)
 
 
-def _aci(analysis: Analysis, rows: Rows, b: float, d: float, bf: np.ndarray,
-         hf: np.ndarray, notes: list[list[str]], failures: list[list[str]]
+def _aci(analysis: Analysis, rows: Rows, b: float, d: np.ndarray, bf: np.ndarray,
+         hf: np.ndarray, notes: list[list[str]], failures: list[list[str]], h: np.ndarray
          ) -> tuple[dict[str, np.ndarray], dict[str, str]]:
     beam = analysis.beam
     design = beam.design
@@ -129,7 +142,7 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: float, bf: np.ndarray,
     fyt = float(design.stirrup_strength) * s.stress
     mu = np.abs(rows.moment) * s.moment
     fl = aci.flexure(mu, b, d, fc, fy, system, bf, hf)
-    bt = min_steel_width(analysis, rows)
+    bt = min_steel_width(analysis, rows, h)
     as_min = np.where(rows.moment != 0.0, aci.as_min(bt, d, fc, fy, system), 0.0)
     as_des = aci.as_design(fl["as_required"], as_min)
     cap = aci.capacity(np.nan_to_num(as_des), b, d, fc, fy, system, bf, hf)
@@ -200,7 +213,8 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: float, bf: np.ndarray,
         "av_over_s_required": su["area_per_length"], "s_max": su["length"]}
 
 
-def _en(analysis: Analysis, rows: Rows, b: float, h: float, d: float, bf: np.ndarray,
+def _en(analysis: Analysis, rows: Rows, b: float, h: np.ndarray, d: np.ndarray,
+        bf: np.ndarray,
         hf: np.ndarray, notes: list[list[str]], failures: list[list[str]]
         ) -> tuple[dict[str, np.ndarray], dict[str, str]]:
     beam = analysis.beam
@@ -223,14 +237,14 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: float, d: float, bf: np.nda
     use_web = (bf > b) & ~inside
     width = np.where(use_web, bm, width)
     fl = en.flexure(m, width, dm, fck, fyk)
-    bt = min_steel_width(analysis, rows) * L
+    bt = min_steel_width(analysis, rows, h) * L
     as_min = np.where(rows.moment != 0.0, en.as_min(bt, dm, fck, fyk), 0.0)
     as_req = fl["as_required"]
     as_des = np.where(as_req > 0, np.maximum(as_req, as_min),
                       np.where(as_req == 0, 0.0, np.nan))
     res = en.resistance(np.nan_to_num(as_des), width, dm, fck, fyk)
     too_small = fl["too_small"]
-    as_max = np.full(rows.n, float(en.as_max(bm, hm)))
+    as_max = np.broadcast_to(en.as_max(bm, hm), (rows.n,)).astype(float)
     for i in range(rows.n):
         if too_small[i]:
             failures[i].append(

@@ -81,6 +81,14 @@ class Inputs:
     to_base_length: float     # consistent length (m, ft) -> base length (mm, in)
     to_base_moment: float     # consistent moment -> base moment (N*mm, lb*in)
     to_section: float         # base length -> section length (mm / in) for the results
+    #: depth at each design section (base length, arrays of n_spans) where the bars'
+    #: depth d was taken; d elsewhere keeps the same distance from the far face
+    h_bottom: np.ndarray | None = None
+    h_top_left: np.ndarray | None = None
+    h_top_right: np.ndarray | None = None
+    #: per span: stretch starts, stretch ends (base length, span-local) and depths
+    #: (base length); None: ``h`` all along
+    profiles: tuple[tuple[np.ndarray, np.ndarray, np.ndarray], ...] | None = None
 
 
 def sustained_fractions(solved: Solved, code: str, sustained: dict[str, float]
@@ -102,12 +110,15 @@ def sustained_fractions(solved: Solved, code: str, sustained: dict[str, float]
 
 
 def _grid(solved: Solved, span: int) -> np.ndarray:
+    """Integration points of span ``span``: an even grid, point loads and stretch ends
+    (where the depth, and so the stiffness, may step)."""
     beam = solved.beam
     length = beam.spans[span].length
     xs = [np.linspace(0.0, length, config.DEFLECTION_GRID + 1)]
     xs.append(np.array([ld.at for ld in beam.loads
                         if getattr(ld, "type", "") == "point" and ld.span == span
                         and ld.at is not None], dtype=float))
+    xs.append(np.array([st.end for st in beam.spans[span].stretches], dtype=float))
     x = np.unique(np.clip(np.concatenate(xs), 0.0, length))
     return x
 
@@ -126,16 +137,34 @@ def _diagrams(solved: Solved, span: int, x: np.ndarray, coef: np.ndarray
     return r["moment"][:n] @ coef, r["deflection"][n:] @ coef
 
 
-def _section(inputs: Inputs, n_modular: float | np.ndarray) -> dict[str, np.ndarray]:
-    """Gross and cracked properties per span: sagging (bottom steel, flange in
-    compression) and hogging at each end (top steel, web in compression)."""
-    g = cracked.gross(inputs.bw, inputs.h, inputs.bf, inputs.hf)
-    sag = cracked.cracked(inputs.bw, inputs.bf, inputs.hf, inputs.as_bottom,
-                          inputs.d_bottom, n_modular)
-    left = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_left,
-                           inputs.d_top_left, n_modular)
-    right = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_right,
-                            inputs.d_top_right, n_modular)
+def _depth(inputs: Inputs, j: int, x: np.ndarray) -> np.ndarray:
+    """The depth h at the points ``x`` (base length) of span ``j``: the stretch's, the
+    shallower one at the common end of two stretches."""
+    if inputs.profiles is None:
+        return np.full(x.shape, inputs.h)
+    start, end, h = inputs.profiles[j]
+    inside = (start[None, :] <= x[:, None]) & (x[:, None] <= end[None, :])
+    return np.asarray(np.min(np.where(inside, h[None, :], np.inf), axis=1))
+
+
+def _section(inputs: Inputs, n_modular: float, j: int, x: np.ndarray
+             ) -> dict[str, np.ndarray]:
+    """Gross and cracked properties at the points ``x`` of span ``j``: sagging (bottom
+    steel, flange in compression) and hogging at each end (top steel, web in
+    compression).  The steel of each region is that of its design section, at the same
+    distance from the tension face as there (h(x) - (h - d) of the design section)."""
+    h = _depth(inputs, j, x)
+
+    def d_at(d: np.ndarray, h_row: np.ndarray | None) -> np.ndarray:
+        return h - (inputs.h - d[j] if h_row is None else h_row[j] - d[j])
+
+    g = cracked.gross(inputs.bw, h, inputs.bf, inputs.hf)
+    sag = cracked.cracked(inputs.bw, inputs.bf, inputs.hf, inputs.as_bottom[j],
+                          d_at(inputs.d_bottom, inputs.h_bottom), n_modular)
+    left = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_left[j],
+                           d_at(inputs.d_top_left, inputs.h_top_left), n_modular)
+    right = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_right[j],
+                            d_at(inputs.d_top_right, inputs.h_top_right), n_modular)
     return {"ig": g["ig"], "yt_sag": g["yt"], "yt_hog": g["y_comp"],
             "icr_sag": sag["icr"], "icr_left": left["icr"], "icr_right": right["icr"]}
 
@@ -153,27 +182,30 @@ def _regions(x: np.ndarray, length: float, m: np.ndarray, root: str | None
     return sag, ~sag & near_left, ~sag & ~near_left
 
 
-def _flex_aci(inputs: Inputs, props: dict[str, np.ndarray], j: int, x: np.ndarray,
-              length: float, m: np.ndarray, ec: float, fr: float, root: str | None = None
+def _flex_aci(inputs: Inputs, j: int, x: np.ndarray, length: float, m: np.ndarray,
+              ec: float, fr: float, root: str | None = None
               ) -> tuple[np.ndarray, np.ndarray]:
-    """1/(Ec Ie) at every point of every diagram (Table 24.2.3.5 per region), and
-    whether a cracked region has no steel to compute Icr with."""
-    ig = float(props["ig"])
-    out = np.full(m.shape, 1.0 / (ec * ig))
+    """1/(Ec Ie) at every point of every diagram (Table 24.2.3.5 per region, Ma the
+    region's largest moment; Ig, Icr and Mcr those of the section at each point, which
+    for a region of one depth is the table as written), and whether a cracked region
+    has no steel to compute Icr with."""
+    props = _section(inputs, cracked.ES[inputs.system] / ec, j, x)
+    ig = props["ig"][:, None]
+    out = np.broadcast_to(1.0 / (ec * ig), m.shape).copy()
     missing = np.zeros(m.shape[1], dtype=bool)
     masks = _regions(x, length, m, root)
     for mask, yt, icr in zip(masks, (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
-                             (props["icr_sag"][j], props["icr_left"][j],
-                              props["icr_right"][j]), strict=True):
-        ma = np.max(np.where(mask, np.abs(m), 0.0), axis=0)
-        mcr = fr * ig / float(yt)
+                             (props["icr_sag"], props["icr_left"], props["icr_right"]),
+                             strict=True):
+        ma = np.max(np.where(mask, np.abs(m), 0.0), axis=0)[None, :]
+        mcr = (fr * ig[:, 0] / yt)[:, None]
         cracks = ma > 2.0 / 3.0 * mcr
-        if not np.isfinite(icr):
-            missing |= cracks & mask.any(axis=0)
-            ie = np.where(cracks, np.nan, ig)
-        else:
-            ie = cracked.ie_aci(ma, mcr, ig, float(icr))
-        out = np.where(mask, 1.0 / (ec * ie)[None, :], out)
+        no_steel = ~np.isfinite(icr)[:, None]
+        missing |= np.any(mask & cracks & no_steel, axis=0)
+        ie = np.where(no_steel & ~cracks, ig,
+                      cracked.ie_aci(ma, mcr, ig, np.nan_to_num(icr, nan=1.0)[:, None]))
+        ie = np.where(no_steel & cracks, np.nan, ie)
+        out = np.where(mask, 1.0 / (ec * ie), out)
     return out, missing
 
 
@@ -182,21 +214,20 @@ def _flex_en(inputs: Inputs, j: int, x: np.ndarray, length: float, m: np.ndarray
              ) -> tuple[np.ndarray, np.ndarray]:
     """Curvature per unit moment by eq. 7.18/7.19 at every point (modular ratio
     Es / E), and whether a cracked point has no steel."""
-    props = _section(inputs, cracked.ES["SI"] / e)
-    ig = float(props["ig"])
+    props = _section(inputs, cracked.ES["SI"] / e, j, x)
+    ig = props["ig"][:, None]
     out = np.empty(m.shape)
     missing = np.zeros(m.shape[1], dtype=bool)
     for mask, yt, icr in zip(_regions(x, length, m, root),
                              (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
-                             (props["icr_sag"][j], props["icr_left"][j],
-                              props["icr_right"][j]), strict=True):
-        mcr = fctm * ig / float(yt)
+                             (props["icr_sag"], props["icr_left"], props["icr_right"]),
+                             strict=True):
+        mcr = (fctm * ig[:, 0] / yt)[:, None]
         zeta = cracked.zeta_en(m, mcr, beta)
-        if not np.isfinite(icr):
-            missing |= np.any(mask & (zeta > 0), axis=0)
-            flex = np.where(zeta > 0, np.nan, 1.0 / (e * ig))
-        else:
-            flex = cracked.flexibility_en(zeta, e, ig, float(icr))
+        no_steel = ~np.isfinite(icr)[:, None]
+        missing |= np.any(mask & (zeta > 0) & no_steel, axis=0)
+        flex = cracked.flexibility_en(zeta, e, ig, np.nan_to_num(icr, nan=1.0)[:, None])
+        flex = np.where(no_steel & (zeta > 0), np.nan, flex)
         out = np.where(mask, flex, out)
     return out, missing
 
@@ -227,7 +258,6 @@ class _Spans:
         if code == "aci318-19":
             self.ec = float(cracked.ec_aci(inputs.fc, inputs.system))
             self.fr = float(cracked.fr_aci(inputs.fc, inputs.system))
-            self.props = _section(inputs, cracked.ES[inputs.system] / self.ec)
         else:
             from envelope.sizing.concrete_en import fctm
             self.ecm = float(cracked.ecm_en(inputs.fc))
@@ -248,7 +278,7 @@ class _Spans:
         length = length_c * inputs.to_base_length
         m = m_c * inputs.to_base_moment
         if inputs.code == "aci318-19":
-            flex, missing = _flex_aci(inputs, self.props, j, x, length, m, self.ec, self.fr)
+            flex, missing = _flex_aci(inputs, j, x, length, m, self.ec, self.fr)
         else:
             flex = np.empty(m.shape)
             missing = np.zeros(len(stages), dtype=bool)
@@ -275,8 +305,7 @@ class _Spans:
         m = m_c * inputs.to_base_moment
         root = "left" if root_left else "right"
         if inputs.code == "aci318-19":
-            flex, missing = _flex_aci(inputs, self.props, j, x, length, m, self.ec, self.fr,
-                                      root)
+            flex, missing = _flex_aci(inputs, j, x, length, m, self.ec, self.fr, root)
         else:
             flex = np.empty(m.shape)
             missing = np.zeros(len(stages), dtype=bool)

@@ -32,7 +32,7 @@ from envelope.recovery import evaluate_some, make_points
 from envelope.sizing import bars as bar_mod
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
-from envelope.sizing import crack_control, cracked
+from envelope.sizing import crack_control, cracked, depths
 from envelope.sizing import cracked_deflection as cdefl
 from envelope.sizing.concrete import min_steel_width
 from envelope.sizing.deflection import ratio_lengths
@@ -90,14 +90,14 @@ def params(design: ConcreteDesign, system: str) -> Params:
 
 
 def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
-              bf: np.ndarray, hf: np.ndarray) -> Any:
+              bf: np.ndarray, hf: np.ndarray, h: np.ndarray) -> Any:
     """required(d): tension steel to provide (section units) at depths d (section
     units), by the same sequence as :mod:`envelope.sizing.concrete`."""
     design = analysis.beam.design
     system = analysis.beam.units.name
     fc_s, fy_s = float(design.fc), float(design.fy)
     moment = rows.moment
-    bt = min_steel_width(analysis, rows)
+    bt = min_steel_width(analysis, rows, h)
     if p.code == "aci318-19":
         s = ACI_SCALES[system]
         fc, fy = fc_s * s.stress, fy_s * s.stress
@@ -158,7 +158,8 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     units = dict(sized.units)
     notes, failures = sized.notes, sized.failures
     su = SECTION_UNITS[system]
-    bw, h = float(design.b), float(design.h)
+    bw = float(design.b)
+    h = np.asarray(cols["h"], dtype=float)  # the depth at each design section
     side = float(design.cover_to_bar_centre)
     tee = design.is_tee
     sag = rows.is_span & tee
@@ -169,7 +170,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
         bar_set = bar_mod.bar_set(p.bars, system)
     except ValueError as exc:  # the reader checks the key; this is a last guard
         raise ValueError(f"design.bars: {exc}") from None
-    need = _required(analysis, p, rows, bw, bf, hf)
+    need = _required(analysis, p, rows, bw, bf, hf, h)
     as_max = np.asarray(cols["as_max"], dtype=float)
     crack = _crack_rule(analysis, rows, p, bw, h, bf, hf, side)
     chosen = bar_mod.choose(need, d0, np.full(rows.n, bw), side, as_max, bar_set, p.code,
@@ -210,7 +211,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
                            "at 75 mm / 3 in spacing or more: widen the section")
 
     # deflections per span
-    inputs = _inputs(analysis, p, cols, bw, h, bf, hf)
+    inputs = _inputs(analysis, p, cols, bw, bf, hf)
     defl = cdefl.span_deflections(analysis.solved, inputs)
     _crack(analysis, rows, p, cols, units, failures, chosen, side, crack)
     _deflection_columns(analysis, p, defl, cols, units, notes, failures)
@@ -227,9 +228,7 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
     off, and deep-beam regions (ACI 318-19 9.9.1.1: clear span at most 4h, or a point
     load within 2h of a support face; EN 1992-1-1 5.3.1(3): span less than 3h)."""
     beam = analysis.beam
-    design = beam.design
     to_c = beam.units.to_consistent("deflection")
-    h = float(design.h) * to_c  # consistent length
     lab = beam.units.labels
     env = analysis.reaction_envelopes["reaction"]
     if env is not None:
@@ -248,6 +247,7 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
         left, right = beam.supports[j], beam.supports[j + 1]
         if not (left.restrains_vertical and right.restrains_vertical):
             continue
+        h = float(np.max(depths.span_profile(beam, j)[2])) * to_c  # the deepest part
         length = beam.spans[j].length
         clear = length - left.width / 2.0 - right.width / 2.0
         mid = 3 * j + 1
@@ -283,7 +283,7 @@ def _spacing_clause(code: str) -> str:
 
 
 def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: float,
-            h: float, bf: np.ndarray, hf: np.ndarray) -> cdefl.Inputs:
+            bf: np.ndarray, hf: np.ndarray) -> cdefl.Inputs:
     beam = analysis.beam
     system = beam.units.name
     s = ACI_SCALES[system] if p.code == "aci318-19" else EN_SCALES[system]
@@ -295,8 +295,16 @@ def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: floa
     flange_w = float(np.max(bf))
     flange_d = float(np.max(hf))
     to_base_length = 1.0 / beam.units.to_consistent("deflection") * L
+    h_row = np.asarray(cols["h"], float) * L
+    profiles = None
+    if depths.varies(beam):
+        profiles = tuple((start * to_base_length, end * to_base_length, depth * L)
+                         for start, end, depth in (depths.span_profile(beam, j)
+                                                   for j in range(n)))
     return cdefl.Inputs(
-        code=p.code, system=system, bw=bw * L, h=h * L, bf=flange_w * L, hf=flange_d * L,
+        code=p.code, system=system, bw=bw * L, h=float(beam.design.h) * L,
+        bf=flange_w * L, hf=flange_d * L, h_bottom=h_row[mid], h_top_left=h_row[left],
+        h_top_right=h_row[right], profiles=profiles,
         fc=float(beam.design.fc) * s.stress,
         as_bottom=area[mid], d_bottom=d[mid], as_top_left=area[left], d_top_left=d[left],
         as_top_right=area[right], d_top_right=d[right], sustained=p.sustained,
@@ -304,7 +312,7 @@ def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: floa
         to_base_moment=s.moment, to_section=1.0 / L)
 
 
-def _crack_rule(analysis: Analysis, rows: Rows, p: Params, bw: float, h: float,
+def _crack_rule(analysis: Analysis, rows: Rows, p: Params, bw: float, h: np.ndarray,
                 bf: np.ndarray, hf: np.ndarray, side: float) -> Any:
     """rule(db, spacing, area, d) -> ``ok`` per section and the limits, in section units:
     ACI 318-19 24.3.2 (fs = 2/3 fy) or EN 1992-1-1 7.3.3 (the steel stress of the

@@ -120,15 +120,17 @@ def _point_loads(beam: Beam, span: int) -> np.ndarray:
                     dtype=float)
 
 
-def design_rows(analysis: Analysis, at_faces: bool, shear_shift: float | None) -> Rows:
+def design_rows(analysis: Analysis, at_faces: bool,
+                shear_shift: float | np.ndarray | None) -> Rows:
     """The design sections and their demands.
 
     ``at_faces``: hogging moments at the support faces (else the centrelines).
     ``shear_shift``: for concrete, d in consistent length: the shear is taken at d from
     the face (ACI 318-19 9.4.3.2, EN 1992-1-1 6.2.1(8)) where the support pushes up on the
     beam under every strength combination and no point load lies between the face and d;
-    otherwise at the face (the section is never moved past mid-span).  ``None`` (steel):
-    the shear at the support centreline.
+    otherwise at the face (the section is never moved past mid-span); one d per row
+    (3 per span) where the depth varies.  ``None`` (steel): the shear at the support
+    centreline.
     """
     beam = analysis.beam
     d = analysis.design_actions
@@ -174,7 +176,10 @@ def design_rows(analysis: Analysis, at_faces: bool, shear_shift: float | None) -
                     face, toward = face_l[j], 1.0
                 else:
                     face, toward = face_r[j], -1.0
-                shifted = face + toward * shear_shift
+                row = 3 * j + (0 if end == "left" else 2)
+                shift = float(np.asarray(shear_shift)[row]) if np.ndim(shear_shift) \
+                    else float(shear_shift)
+                shifted = face + toward * shift
                 shifted = min(shifted, lengths[j] / 2) if end == "left" else \
                     max(shifted, lengths[j] / 2)
                 lo, hi = sorted((face, shifted))
@@ -185,7 +190,6 @@ def design_rows(analysis: Analysis, at_faces: bool, shear_shift: float | None) -
                     why = "tension"
                 elif np.any((loads >= lo) & (loads <= hi)):
                     why = "point"
-                row = 3 * j + (0 if end == "left" else 2)
                 reason[row] = why
                 xs.append(face if why else shifted)
                 rights.append(end == "left")

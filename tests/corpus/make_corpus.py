@@ -197,7 +197,17 @@ NEW_ROWS: list[Row] = [
     ("stretch_unknown_key", doc(spans=STRETCH.format(body="  from = 0.0\n  to = 1.0\n"
                                                           "  length = 1.0")),
      f"{FILE}: spans[1].sections[1].length: unknown key 'length' (valid: from, to, E, I, A, "
-     "unit_weight)"),
+     "unit_weight, h)"),
+    ("stretch_h_without_concrete_design",
+     doc(spans=STRETCH.format(body="  from = 0.0\n  to = 1.0\n  h = 900"),
+         extra="[design]\n" + "".join(f"{k} = {v}\n" for k, v in STEEL.items())),
+     f"{FILE}: spans[1].sections: the stretch from 0 m to 1 m gives h, which only concrete "
+     'sizing reads ([design] material = "concrete")'),
+    ("stretch_h_within_the_cover",
+     doc(spans=STRETCH.format(body="  from = 0.0\n  to = 1.0\n  h = 60"),
+         extra="[design]\n" + "".join(f"{k} = {v}\n" for k, v in CONCRETE.items())),
+     f"{FILE}: spans[1].sections: the stretch from 0 m to 1 m: h = 60 must be more than "
+     "cover_to_bar_centre = 65"),
     ("stretch_I_zero", doc(spans=STRETCH.format(body="  from = 0.0\n  to = 1.0\n  I = 0")),
      f"{FILE}: spans[1].sections[1].I: must be greater than zero, got 0 mm^4"),
     ("stretch_E_wrong_unit", doc(spans=STRETCH.format(body='  from = 0.0\n  to = 1.0\n'
