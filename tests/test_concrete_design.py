@@ -568,3 +568,60 @@ def test_a_haunch_is_designed_with_its_own_depth_at_the_face() -> None:
     assert (-qb - math.sqrt(qb * qb - 4 * qa * qc)) / (2 * qa) > 1.5 * as_req
     assert "depth of its stretch, h = 900 mm" in cols["note"][i]
     assert "depth of its stretch" not in cols["note"][k]
+
+
+def test_aci_doubly_reinforced_section_matches_the_hand_calculation() -> None:
+    # a 7 m simple span, 300 x 500 (d = 440 mm, d' = 60 mm), f'c = 30 MPa, fy = 420 MPa,
+    # Mu = (1.4 x 30 + 1.7 x 20) 7^2 / 8 = 465.5 kN*m: more than the singly reinforced
+    # section can give, so compression steel is reported instead of a failure
+    cols = case({**ACI, "h": 500}, (7.0,), 30.0, 20.0)
+    i = row(cols, 1, "span")
+    mu = 76.0 * 49.0 / 8.0 * 1e6  # N*mm
+    b, d, d2, fc, fy, es = 300.0, 440.0, 60.0, 30.0, 420.0, 200_000.0
+    beta1 = 0.85 - 0.05 * (fc - 28.0) / 7.0           # ACI 318-19 Table 22.2.2.4.3
+    c = 0.003 * d / (0.003 + fy / es + 0.003)         # Table 21.2.2: eps_t = eps_ty + 0.003
+    a = beta1 * c                                     # 22.2.2.4.1
+    cc = 0.85 * fc * b * a                            # 22.2.2.4.1: 0.85 f'c over a
+    mn1 = cc * (d - a / 2)
+    fs2 = min(es * 0.003 * (c - d2) / c, fy)          # 22.2.1.2 strain compatibility
+    as2 = (mu / 0.9 - mn1) / ((fs2 - 0.85 * fc) * (d - d2))  # phi = 0.90, Table 21.2.2
+    as1 = (cc + as2 * (fs2 - 0.85 * fc)) / fy         # equilibrium of forces
+    assert cols["as_compression"][i] == pytest.approx(as2, rel=1e-9)
+    assert cols["as_required"][i] == pytest.approx(as1, rel=1e-9)
+    assert cols["phi"][i] == pytest.approx(0.9, rel=1e-9)
+    assert cols["phiMn"][i] == pytest.approx(mu / 1e6, rel=1e-6)  # strain compatibility
+    assert "doubly reinforced" in cols["note"][i]
+    assert "section too small" not in cols["status"][i]
+    # singly reinforced sections report no compression steel
+    assert cols["as_compression"][row(cols, 1, "left")] == 0.0
+
+
+def test_en_doubly_reinforced_section_matches_the_hand_calculation() -> None:
+    # the same span and section by EN 1992-1-1:2004, fck = 30, fyk = 500 MPa, M = 465.5
+    # kN*m: K = M / (b d^2 fck) > K' = 0.167 (x/d <= 0.448, 5.5(4) with delta = 1)
+    cols = case({**EN, "h": 500}, (7.0,), 30.0, 20.0)
+    i = row(cols, 1, "span")
+    m = 76.0 * 49.0 / 8.0 * 1e6
+    b, d, d2, fck, fyk = 300.0, 440.0, 60.0, 30.0, 500.0
+    fyd = fyk / 1.15                                   # 3.2.7(2), gamma_s 2.4.2.4
+    k = m / (b * d * d * fck)
+    k_lim = 0.167
+    assert k > k_lim
+    z = d / 2 * (1 + math.sqrt(1 - 3.53 * k_lim))      # block of 3.1.7(3)
+    x = (d - z) / 0.4
+    fsc = min(200_000.0 * 0.0035 * (x - d2) / x, fyd)  # 3.2.7(4) Es, Table 3.1 eps_cu3
+    as2 = (k - k_lim) * fck * b * d * d / (fsc * (d - d2))
+    as1 = k_lim * fck * b * d * d / (fyd * z) + as2 * fsc / fyd
+    assert cols["as_compression"][i] == pytest.approx(as2, rel=1e-9)
+    assert cols["as_required"][i] == pytest.approx(as1, rel=1e-9)
+    assert "doubly reinforced" in cols["note"][i]
+    assert "section too small" not in cols["status"][i]
+
+
+def test_en_section_fails_where_even_compression_steel_exceeds_004_ac() -> None:
+    # EN 1992-1-1:2004 9.2.1.1(3): As and As2 each at most 0.04 Ac; a 250 x 400 beam
+    # under 676 kN*m would need more tension steel than 0.04 x 250 x 400 = 4000 mm^2
+    cols = case({**EN, "h": 400, "b": 250}, (8.0,), 30.0, 25.0)
+    i = row(cols, 1, "span")
+    assert "compression steel cannot make it work" in cols["status"][i]
+    assert "exceeds 0.04 Ac = 4000 mm2 (EN 1992-1-1 9.2.1.1(3))" in cols["status"][i]

@@ -20,7 +20,7 @@ from envelope.analysis import Analysis
 from envelope.design import ConcreteDesign
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
-from envelope.sizing import depths
+from envelope.sizing import depths, doubly
 from envelope.sizing.layout import (
     ACI_SCALES,
     EN_SCALES,
@@ -142,22 +142,39 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: np.ndarray, bf: np.ndarray
     fyt = float(design.stirrup_strength) * s.stress
     mu = np.abs(rows.moment) * s.moment
     fl = aci.flexure(mu, b, d, fc, fy, system, bf, hf)
+    d2 = float(design.cover_to_bar_centre)
+    dbl = doubly.aci_design(mu, b, d, d2, fc, fy, system, bf, hf)
+    two = fl["too_small"] & dbl["ok"]
+    as_req = np.where(two, dbl["as_required"], fl["as_required"])
+    as_comp = np.where(two, dbl["as_compression"], 0.0)
     bt = min_steel_width(analysis, rows, h)
     as_min = np.where(rows.moment != 0.0, aci.as_min(bt, d, fc, fy, system), 0.0)
-    as_des = aci.as_design(fl["as_required"], as_min)
+    as_des = aci.as_design(as_req, as_min)
     cap = aci.capacity(np.nan_to_num(as_des), b, d, fc, fy, system, bf, hf)
-    too_small = fl["too_small"]
+    cap2 = doubly.aci_capacity(np.nan_to_num(as_des), as_comp, b, d, d2, fc, fy, system,
+                               bf, hf)
+    cap = {k: np.where(two, cap2[k], v) if k in cap2 else v for k, v in cap.items()}
+    as_max = np.where(two, doubly.aci_as_max(as_comp, b, d, d2, fc, fy, system, bf, hf),
+                      fl["as_max"])
+    too_small = fl["too_small"] & ~dbl["ok"]
     phi_mn = np.where(too_small, fl["phi_mn_max"], cap["phi_mn"]) / s.moment
 
     for i in range(rows.n):
         if too_small[i]:
             failures[i].append(
-                f"section too small for singly reinforced design: Mu = "
-                f"{mu[i] / s.moment:.1f} {u['moment']} exceeds the largest phiMn = "
-                f"{phi_mn[i]:.1f} {u['moment']} with eps_t >= 0.004 (ACI 318-19 9.3.3.1) "
-                f"by {_pct(mu[i], fl['phi_mn_max'][i])}; deepen or widen the section, "
-                f"raise f'c, or add compression steel")
+                f"section too small: Mu = {mu[i] / s.moment:.1f} {u['moment']} exceeds the "
+                f"largest singly reinforced phiMn = {phi_mn[i]:.1f} {u['moment']} with "
+                f"eps_t >= 0.004 (ACI 318-19 9.3.3.1) by {_pct(mu[i], fl['phi_mn_max'][i])}"
+                f", and compression steel cannot help (at or below the neutral axis at the "
+                f"tension-controlled limit); deepen or widen the section, or raise f'c")
             continue
+        if two[i]:
+            notes[i].append(
+                f"doubly reinforced: compression steel {_fmt(as_comp[i])} "
+                f"{SECTION_UNITS[system]['area']} at fs' = "
+                f"{dbl['fs_prime'][i] / s.stress:.4g} {SECTION_UNITS[system]['stress']} by "
+                f"strain compatibility (ACI 318-19 22.2.1.2), the neutral axis at the "
+                f"tension-controlled limit (Table 21.2.2)")
         if rows.moment[i] == 0.0:
             continue
         if as_min[i] > fl["as_required"][i]:
@@ -197,8 +214,8 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: np.ndarray, bf: np.ndarray
     return {
         "beta1": fl["beta1"],
         "a": np.where(too_small, np.nan, cap["a"]),
-        "as_required": fl["as_required"], "as_min": as_min, "as_max": fl["as_max"],
-        "as_design": as_des,
+        "as_required": as_req, "as_min": as_min, "as_max": as_max,
+        "as_design": as_des, "as_compression": np.where(too_small, np.nan, as_comp),
         "phi": np.where(too_small, np.nan, cap["phi"]),
         "eps_t": np.where(too_small, np.nan, cap["eps_t"]),
         "phiMn": phi_mn,
@@ -208,6 +225,7 @@ def _aci(analysis: Analysis, rows: Rows, b: float, d: np.ndarray, bf: np.ndarray
         "av_over_s_required": sh["av_over_s_required"] * end_only,
         "s_max": sh["s_max"] * end_only,
     }, {"a": su["length"], "as_required": su["area"], "as_min": su["area"],
+        "as_compression": su["area"],
         "as_max": su["area"], "as_design": su["area"], "phiMn": u["moment"],
         "Vc": u["force"], "phiVc": u["force"], "av_over_s_min": su["area_per_length"],
         "av_over_s_required": su["area_per_length"], "s_max": su["length"]}
@@ -239,21 +257,40 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: np.ndarray, d: np.ndarray,
     fl = en.flexure(m, width, dm, fck, fyk)
     bt = min_steel_width(analysis, rows, h) * L
     as_min = np.where(rows.moment != 0.0, en.as_min(bt, dm, fck, fyk), 0.0)
-    as_req = fl["as_required"]
+    d2 = float(design.cover_to_bar_centre) * L
+    dbl = doubly.en_design(m, width, dm, d2, fck, fyk, hm)
+    two = fl["too_small"] & dbl["ok"]
+    as_req = np.where(two, dbl["as_required"], fl["as_required"])
+    as_comp = np.where(two, dbl["as_compression"], 0.0)
     as_des = np.where(as_req > 0, np.maximum(as_req, as_min),
                       np.where(as_req == 0, 0.0, np.nan))
     res = en.resistance(np.nan_to_num(as_des), width, dm, fck, fyk)
-    too_small = fl["too_small"]
+    # doubly: the block at its limit x and the compression steel at fsc
+    res = {"m_rd": np.where(two, fl["m_lim"] + (as_des - fl["m_lim"] / (fyk / en.GAMMA_S
+                                                                        * dbl["z"]))
+                            * fyk / en.GAMMA_S * (dm - d2), res["m_rd"]),
+           "eps_s": np.where(two, en.EPS_CU * (dm - dbl["x"]) / dbl["x"], res["eps_s"])}
+    too_small = fl["too_small"] & ~dbl["ok"]
     as_max = np.broadcast_to(en.as_max(bm, hm), (rows.n,)).astype(float)
     for i in range(rows.n):
         if too_small[i]:
+            why = ("the compression steel would lie at or below the neutral axis"
+                   if dbl["over"][i] not in ("tension", "compression") else
+                   f"the {dbl['over'][i]} steel it needs exceeds 0.04 Ac = "
+                   f"{_fmt(dbl['as_max'][i] * s.area)} {su['area']} (EN 1992-1-1 "
+                   f"9.2.1.1(3))")
             failures[i].append(
-                f"section too small for singly reinforced design: K = {fl['K'][i]:.3f} "
-                f"exceeds K' = {en.K_LIM} by {_pct(fl['K'][i], en.K_LIM)} (M = "
-                f"{m[i] / s.moment:.1f} {u['moment']} > K' b d^2 fck = "
-                f"{fl['m_lim'][i] / s.moment:.1f} {u['moment']}); deepen or widen the "
-                f"section, raise fck, or add compression steel")
+                f"section too small: K = {fl['K'][i]:.3f} exceeds K' = {en.K_LIM} by "
+                f"{_pct(fl['K'][i], en.K_LIM)} (M = {m[i] / s.moment:.1f} {u['moment']} > "
+                f"K' b d^2 fck = {fl['m_lim'][i] / s.moment:.1f} {u['moment']}) and "
+                f"compression steel cannot make it work: {why}; deepen or widen the "
+                f"section, or raise fck")
             continue
+        if two[i]:
+            notes[i].append(
+                f"doubly reinforced: compression steel {_fmt(as_comp[i] * s.area)} "
+                f"{su['area']} at fsc = {dbl['fsc'][i]:.0f} MPa, x at its limit "
+                f"{dbl['x'][i] / dm[i]:.3f} d (EN 1992-1-1 5.5(4), delta = 1)")
         if rows.moment[i] == 0.0:
             continue
         if as_des[i] > as_max[i]:
@@ -286,7 +323,9 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: np.ndarray, d: np.ndarray,
     ok = ~too_small
     return {
         "K": fl["K"], "K_lim": np.full(rows.n, en.K_LIM),
-        "z": np.where(ok & (rows.moment != 0.0), fl["z"], np.nan) / L,
+        "z": np.where(ok & (rows.moment != 0.0), np.where(two, dbl["z"], fl["z"]),
+                      np.nan) / L,
+        "as_compression": np.where(ok, as_comp, np.nan) * s.area,
         "as_required": as_req * s.area, "as_min": as_min * s.area, "as_max": as_max * s.area,
         "as_design": as_des * s.area,
         "phi": np.full(rows.n, np.nan),
@@ -299,6 +338,7 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: np.ndarray, d: np.ndarray,
         "av_over_s_required": sh["av_over_s_required"] * s.area * L * end_only,
         "s_max": sh["s_max"] / L * end_only,
     }, {"z": su["length"], "as_required": su["area"], "as_min": su["area"],
+        "as_compression": su["area"],
         "as_max": su["area"], "as_design": su["area"], "MRd": u["moment"],
         "VRdc": u["force"], "av_over_s_min": su["area_per_length"],
         "av_over_s_required": su["area_per_length"], "s_max": su["length"]}

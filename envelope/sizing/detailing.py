@@ -32,7 +32,7 @@ from envelope.recovery import evaluate_some, make_points
 from envelope.sizing import bars as bar_mod
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
-from envelope.sizing import crack_control, cracked, depths
+from envelope.sizing import crack_control, cracked, depths, doubly
 from envelope.sizing import cracked_deflection as cdefl
 from envelope.sizing.concrete import min_steel_width
 from envelope.sizing.deflection import ratio_lengths
@@ -98,6 +98,7 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
     fc_s, fy_s = float(design.fc), float(design.fy)
     moment = rows.moment
     bt = min_steel_width(analysis, rows, h)
+    d2 = float(design.cover_to_bar_centre)  # compression steel, as in the sizing
     if p.code == "aci318-19":
         s = ACI_SCALES[system]
         fc, fy = fc_s * s.stress, fy_s * s.stress
@@ -105,8 +106,10 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
 
         def need(d: np.ndarray) -> np.ndarray:
             fl = aci.flexure(mu, bw, d, fc, fy, system, bf, hf)
+            dbl = doubly.aci_design(mu, bw, d, d2, fc, fy, system, bf, hf)
+            req = np.where(fl["too_small"], dbl["as_required"], fl["as_required"])
             as_min = np.where(moment != 0.0, aci.as_min(bt, d, fc, fy, system), 0.0)
-            return aci.as_design(fl["as_required"], as_min)
+            return aci.as_design(req, as_min)
         return need
     s = EN_SCALES[system]
     L = s.length
@@ -121,7 +124,8 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
         width = np.where((bf > bw) & ~inside, bw * L, width)
         fl = en.flexure(m, width, dm, fck, fyk)
         as_min = np.where(moment != 0.0, en.as_min(bt * L, dm, fck, fyk), 0.0)
-        req = fl["as_required"]
+        dbl = doubly.en_design(m, width, dm, d2 * L, fck, fyk, h * L)
+        req = np.where(fl["too_small"] & dbl["ok"], dbl["as_required"], fl["as_required"])
         out = np.where(req > 0, np.maximum(req, as_min), np.where(req == 0, 0.0, np.nan))
         return out * s.area
     return need_en
