@@ -40,11 +40,14 @@ class LongTerm:
     """The sustained part of the service load and its duration (concrete deflection):
     ``sustained`` pairs a load case name with the fraction of it that is sustained
     (cases not named take the code's default), ``months`` is the load duration for
-    ACI 318-19 Table 24.2.4.1.3, ``creep`` the creep coefficient of EN 1992-1-1."""
+    ACI 318-19 Table 24.2.4.1.3, ``creep`` the creep coefficient of EN 1992-1-1,
+    ``shrinkage`` the free shrinkage strain eps_cs of EN 1992-1-1 3.1.4(6) for the
+    shrinkage curvature of 7.4.3(6) (None: not included)."""
 
     sustained: tuple[tuple[str, float], ...] = ()
     months: float = 60.0
     creep: float = 2.0
+    shrinkage: float | None = None
 
 
 Member = Literal["floor", "roof"]

@@ -625,3 +625,57 @@ def test_en_section_fails_where_even_compression_steel_exceeds_004_ac() -> None:
     i = row(cols, 1, "span")
     assert "compression steel cannot make it work" in cols["status"][i]
     assert "exceeds 0.04 Ac = 4000 mm2 (EN 1992-1-1 9.2.1.1(3))" in cols["status"][i]
+
+
+def test_en_shrinkage_curvature_adds_eq_7_21_interpolated_with_zeta() -> None:
+    # the 8 m simple span of the zeta test with eps_cs = 0.0004: EN 1992-1-1:2004
+    # 7.4.3(6) eq. 7.21 1/r_cs = eps_cs alpha_e S / I, alpha_e = Es / Ec,eff (eq. 7.20,
+    # creep 2.5), S and I of the uncracked (gross, S about mid-depth) and the cracked
+    # section (S about the neutral axis), interpolated with zeta of the quasi-permanent
+    # moment (eq. 7.18/7.19, beta = 0.5); added to the long-term deflection, integrated
+    # here by scipy quad against the simple-span influence line
+    L, g, q, eps = 8.0, 20.0, 15.0, 0.0004
+    base = case(EN, (L,), g, q, extra={"long_term": {"creep": 2.5}})
+    cols = case(EN, (L,), g, q, extra={"long_term": {"creep": 2.5, "shrinkage": eps}})
+    i = row(cols, 1, "span")
+    As, d = cols["as_provided"][i], cols["d"][i]
+    assert As == base["as_provided"][i]
+    e = 22_000 * ((30 + 8) / 10) ** 0.3 / 3.5        # Table 3.1 Ecm, eq. 7.20
+    alpha = 200_000 / e                               # 3.2.7(4) Es
+    fctm = 0.30 * 30 ** (2 / 3)
+    ig = 300 * 600**3 / 12
+    mcr = fctm * ig / 300
+    icr = icr_rect(300, d, As, alpha)
+    rn = As / (300 * d) * alpha
+    kd = d * (math.sqrt(2 * rn + rn * rn) - rn)
+    s1, s2 = As * (d - 300), As * (d - kd)
+    w = g + 0.3 * q                                   # psi_2 = 0.3, EN 1990 Table A1.1
+
+    def kappa(x: float) -> float:
+        m = w * x * (L * 1000 - x) / 2
+        zeta = 1 - 0.5 * (mcr / m) ** 2 if m > mcr else 0.0
+        return eps * alpha * (zeta * s2 / icr + (1 - zeta) * s1 / ig)
+
+    half = L * 1000 / 2
+    extra = 2 * quad(lambda x: x / 2 * kappa(x), 0, half, limit=200,
+                     points=[_crack_x(w, mcr, L)])[0]
+    assert extra > 0
+    assert cols["deflection_long_term"][i] - base["deflection_long_term"][i] == \
+        pytest.approx(extra, rel=1e-4)
+    assert cols["deflection_immediate"][i] == base["deflection_immediate"][i]
+    assert "shrinkage curvature" in base["note"][i]
+    assert "shrinkage curvature" not in cols["note"][i]
+
+
+def test_aci_lambda_delta_counts_the_compression_steel_at_midspan() -> None:
+    # ACI 318-19 24.2.4.1.1: lambda_Delta = xi / (1 + 50 rho'), rho' = As' / (b d) at
+    # mid-span; xi = 2.0 for 5 years (Table 24.2.4.1.3); the doubly reinforced span of
+    # the hand calculation above
+    cols = case({**ACI, "h": 500}, (7.0,), 30.0, 20.0)
+    i = row(cols, 1, "span")
+    rho = cols["as_compression"][i] / (300 * cols["d"][i])
+    assert rho > 0
+    assert cols["lambda_delta"][i] == pytest.approx(2.0 / (1 + 50 * rho), rel=1e-12)
+    # no compression steel: rho' = 0
+    single = case(ACI, (7.0,), 20.0, 15.0)
+    assert single["lambda_delta"][row(single, 1, "span")] == 2.0

@@ -20,7 +20,7 @@ from envelope.sizing.bars import bar_set
 CONCRETE_DETAIL_KEYS = ("bars", "aggregate", "long_term", "crack_width", "member",
                         "nonstructural")
 #: Keys of ``long_term``.
-LONG_TERM_KEYS = ("sustained", "months", "creep")
+LONG_TERM_KEYS = ("sustained", "months", "creep", "shrinkage")
 MEMBERS = ("floor", "roof")
 #: Immediate live-load limit of a roof, span / this (ACI 318-19 Table 24.2.2).
 ROOF_LIVE = 180.0
@@ -31,6 +31,9 @@ CRACK_WIDTHS = (0.2, 0.3, 0.4)
 MAX_MONTHS = 1200.0
 #: Largest creep coefficient read (EN 1992-1-1 Figure 3.1 stays below about 6).
 MAX_CREEP = 10.0
+#: Largest free shrinkage strain read (EN 1992-1-1 Tables 3.2 and 3.3 stay below about
+#: 0.001 in total).
+MAX_SHRINKAGE = 0.003
 
 
 def concrete_detailing(r: Reader, table: dict[str, Any], out: dict[str, Any],
@@ -107,4 +110,11 @@ def _long_term(r: Reader, value: object, key: str, cases: dict[str, Any]) -> Lon
         if not 0.0 <= creep <= MAX_CREEP:
             r.fail(ckey, f"creep coefficient from 0 to {MAX_CREEP:g}, got {creep:g}")
         out["creep"] = creep
+    if "shrinkage" in lt:
+        skey = join(key, "shrinkage")
+        shrink = r.plain_number(lt["shrinkage"], skey)
+        if not 0.0 <= shrink <= MAX_SHRINKAGE:
+            r.fail(skey, f"free shrinkage strain eps_cs from 0 to {MAX_SHRINKAGE:g} (e.g. "
+                         f"0.0004), got {shrink:g}")
+        out["shrinkage"] = shrink
     return LongTerm(**out)

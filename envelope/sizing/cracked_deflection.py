@@ -19,7 +19,8 @@ of the span with Ma its largest sagging moment and the bottom steel, each hoggin
 with Ma its largest hogging moment and the top steel at that face (Mcr = fr Ig / yt,
 19.2.3.1; Ig of the gross section; Icr of the cracked transformed section, n = Es/Ec).
 Immediate live = total - permanent; long-term = total + lambda_Delta x sustained
-(24.2.4.1.1, rho' = 0 taken: compression steel not counted, on the safe side);
+(24.2.4.1.1, rho' of the compression steel required at mid-span, at the support of a
+cantilever; the compression steel is left out of Icr, on the safe side);
 incremental = lambda_Delta x sustained + immediate live (the deflection after the
 nonstructural elements are attached, Table 24.2.2 note, common practice).
 
@@ -28,8 +29,10 @@ cracked section with zeta of eq. 7.19 (Mcr = fctm Ig / yt): immediate = the tota
 diagram at Ecm with beta = 1; long-term = the sustained (quasi-permanent) diagram at
 Ec,eff = Ecm / (1 + phi) with beta = 0.5 (7.4.3(5)); incremental = long-term - the
 permanent diagram at Ecm with beta = 1 (the part after construction, 7.4.1(5)).
-Shrinkage curvature (7.4.3(6)) is not included; the uncracked section is the gross
-concrete section.
+With ``long_term.shrinkage`` (eps_cs) the shrinkage curvature of 7.4.3(6), eq. 7.21,
+is added to the long-term stage, uncracked and cracked interpolated with zeta of the
+sustained moment (:func:`_shrinkage_en`); without it a note says it is left out.  The
+uncracked section is the gross concrete section.
 
 Everything here is in the design base units of :mod:`envelope.sizing.layout` (N, mm,
 MPa; lb, in, psi for ACI in US units); results come back in section units (mm / in).
@@ -81,6 +84,11 @@ class Inputs:
     to_base_length: float     # consistent length (m, ft) -> base length (mm, in)
     to_base_moment: float     # consistent moment -> base moment (N*mm, lb*in)
     to_section: float         # base length -> section length (mm / in) for the results
+    #: EN 1992-1-1 free shrinkage strain for the curvature of 7.4.3(6); None: left out
+    shrinkage: float | None = None
+    #: ACI 318-19 24.2.4.1.1 rho' of the compression steel at each design section, per
+    #: span (left face, mid-span, right face); None: 0
+    rho_prime: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None
     #: depth at each design section (base length, arrays of n_spans) where the bars'
     #: depth d was taken; d elsewhere keeps the same distance from the far face
     h_bottom: np.ndarray | None = None
@@ -159,14 +167,52 @@ def _section(inputs: Inputs, n_modular: float, j: int, x: np.ndarray
         return h - (inputs.h - d[j] if h_row is None else h_row[j] - d[j])
 
     g = cracked.gross(inputs.bw, h, inputs.bf, inputs.hf)
-    sag = cracked.cracked(inputs.bw, inputs.bf, inputs.hf, inputs.as_bottom[j],
-                          d_at(inputs.d_bottom, inputs.h_bottom), n_modular)
-    left = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_left[j],
-                           d_at(inputs.d_top_left, inputs.h_top_left), n_modular)
-    right = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_right[j],
-                            d_at(inputs.d_top_right, inputs.h_top_right), n_modular)
+    d_sag = d_at(inputs.d_bottom, inputs.h_bottom)
+    d_left = d_at(inputs.d_top_left, inputs.h_top_left)
+    d_right = d_at(inputs.d_top_right, inputs.h_top_right)
+    sag = cracked.cracked(inputs.bw, inputs.bf, inputs.hf, inputs.as_bottom[j], d_sag,
+                          n_modular)
+    left = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_left[j], d_left,
+                           n_modular)
+    right = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_right[j], d_right,
+                            n_modular)
     return {"ig": g["ig"], "yt_sag": g["yt"], "yt_hog": g["y_comp"],
-            "icr_sag": sag["icr"], "icr_left": left["icr"], "icr_right": right["icr"]}
+            "icr_sag": sag["icr"], "icr_left": left["icr"], "icr_right": right["icr"],
+            "c_sag": sag["c"], "c_left": left["c"], "c_right": right["c"],
+            "d_sag": d_sag, "d_left": d_left, "d_right": d_right, "y_comp": g["y_comp"],
+            "h": h}
+
+
+def _shrinkage_en(inputs: Inputs, j: int, x: np.ndarray, length: float, m: np.ndarray,
+                  e: float, beta: float, fctm: float, root: str | None = None
+                  ) -> np.ndarray:
+    """Shrinkage curvature (n_x, 1) of EN 1992-1-1 7.4.3(6), eq. 7.21: 1/r_cs = eps_cs
+    alpha_e S / I, alpha_e = Es / Ec,eff, for the uncracked state (S of the region's
+    tension steel about the gross centroid, I = Ig) and the cracked state (S about the
+    cracked neutral axis, I = Icr), interpolated with zeta of the moment ``m`` (eq.
+    7.18).  Sagging where the span sags (bottom steel), hogging at the ends (top steel)."""
+    eps = float(inputs.shrinkage or 0.0)
+    alpha = cracked.ES["SI"] / e
+    props = _section(inputs, alpha, j, x)
+    ig = props["ig"]
+    out = np.zeros(m.shape)
+    steel = (inputs.as_bottom[j], inputs.as_top_left[j], inputs.as_top_right[j])
+    for mask, sign, yt, icr, c, d, area, yc in zip(
+            _regions(x, length, m, root), (1.0, -1.0, -1.0),
+            (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
+            (props["icr_sag"], props["icr_left"], props["icr_right"]),
+            (props["c_sag"], props["c_left"], props["c_right"]),
+            (props["d_sag"], props["d_left"], props["d_right"]), steel,
+            (props["y_comp"], props["h"] - props["y_comp"], props["h"] - props["y_comp"]),
+            strict=True):
+        if not area > 0:
+            continue
+        zeta = cracked.zeta_en(m, (fctm * ig / yt)[:, None], beta)
+        s1, s2 = area * (d - yc), area * (d - c)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            k = (zeta * (s2 / icr)[:, None] + (1.0 - zeta) * (s1 / ig)[:, None])
+        out = np.where(mask, sign * eps * alpha * k, out)
+    return out
 
 
 def _regions(x: np.ndarray, length: float, m: np.ndarray, root: str | None
@@ -263,6 +309,21 @@ class _Spans:
             self.ecm = float(cracked.ecm_en(inputs.fc))
             self.fctm = float(fctm(inputs.fc))
 
+    def _shrinkage(self, j: int, x: np.ndarray, length: float, m: np.ndarray,
+                   stages: list[tuple[int, float, float]], root: str | None = None
+                   ) -> np.ndarray:
+        """EN 1992-1-1 shrinkage curvature of each stage: on the long-term stage (the
+        sustained diagram, column 2) where ``shrinkage`` is given, else 0."""
+        out = np.zeros(m.shape)
+        if self.inputs.code == "aci318-19" or not self.inputs.shrinkage:
+            return out
+        for k, (col, phi, beta) in enumerate(stages):
+            if col == 2:
+                out[:, k:k + 1] = _shrinkage_en(
+                    self.inputs, j, x, length, m[:, k:k + 1],
+                    float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm, root)
+        return out
+
     def deflect(self, j: int, stages: list[tuple[int, float, float]],
                 slope_end: str | None = None
                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
@@ -286,7 +347,7 @@ class _Spans:
                 f, miss = _flex_en(inputs, j, x, length, m[:, k:k + 1],
                                    float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm)
                 flex[:, k:k + 1], missing[k] = f, miss[0]
-        kappa = m * flex
+        kappa = m * flex + self._shrinkage(j, x, length, m, stages)
         w_ends = w_ends * inputs.to_base_length
         out = curvature.simple_span(x, kappa, w_ends[0], w_ends[1])
         slopes = np.vstack([out["slope_left"], out["slope_right"]])
@@ -314,6 +375,7 @@ class _Spans:
                                    float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm,
                                    root)
                 flex[:, k:k + 1], missing[k] = f, miss[0]
+        shrink = self._shrinkage(j, x, length, m, stages, root)
         root = beam.supports[j if root_left else j + 1]
         # the neighbour shares the root: its right end when the root is the
         # cantilever's left end, and the reverse
@@ -327,8 +389,24 @@ class _Spans:
         else:
             return np.full((x.size, len(stages)), np.nan), None
         w_root = w_ends[0 if root_left else 1] * inputs.to_base_length
-        w = curvature.cantilever(x, m * flex, root_left, w_root, slope)
+        w = curvature.cantilever(x, m * flex + shrink, root_left, w_root, slope)
         return np.where(missing[None, :], np.nan, w), missing
+
+
+def _shrinkage_note(inputs: Inputs) -> list[str]:
+    """Say so where EN 1992-1-1 shrinkage curvature is left out (no strain given)."""
+    if inputs.code == "aci318-19" or inputs.shrinkage:
+        return []
+    return ["shrinkage curvature (EN 1992-1-1 7.4.3(6)) not included: give "
+            "long_term.shrinkage"]
+
+
+def _lambda_delta(inputs: Inputs, kind: str, j: int) -> float:
+    """ACI 318-19 24.2.4.1.1 lambda_Delta = xi / (1 + 50 rho') of span ``j``, rho' of the
+    compression steel at mid-span, at the support for a cantilever."""
+    where = {"cantilever-left": 2, "cantilever-right": 0}.get(kind, 1)
+    rho = 0.0 if inputs.rho_prime is None else float(inputs.rho_prime[where][j])
+    return float(cracked.lambda_delta(inputs.months, rho))
 
 
 def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
@@ -351,9 +429,10 @@ def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
     unit_case = solved.unit_cases.case
     permanent = np.array([c.kind in PERMANENT_KINDS for c in beam.cases])[unit_case]
     aci = inputs.code == "aci318-19"
-    lam = float(cracked.lambda_delta(inputs.months, 0.0)) if aci else np.nan
     for j in range(n):
         kind = _kind(solved, j)
+        lam = _lambda_delta(inputs, kind, j) if aci else np.nan
+        notes[j].extend(_shrinkage_note(inputs))
         if kind == "other":
             failures[j].append("cracked deflection not computed for this span (an internal "
                                "hinge, or no support at an end that is not a cantilever "

@@ -62,6 +62,7 @@ class Params:
     sustained: dict[str, float] = field(default_factory=dict)
     months: float = MONTHS
     creep: float = CREEP
+    shrinkage: float | None = None
     crack_width: float = CRACK_WIDTH_MM
     member: str = "floor"
     nonstructural: str = "damage-likely"
@@ -84,7 +85,8 @@ def params(design: ConcreteDesign, system: str) -> Params:
     given = frozenset({"long_term"} if lt.sustained else ())
     return Params(code=code, bars=bars, aggregate=float(design.aggregate or AGGREGATE_MM * mm),
                   sustained=dict(lt.sustained), months=float(lt.months),
-                  creep=float(lt.creep), crack_width=float(design.crack_width),
+                  creep=float(lt.creep), shrinkage=lt.shrinkage,
+                  crack_width=float(design.crack_width),
                   member=design.member, nonstructural=design.nonstructural,
                   limits=limits, given=given)
 
@@ -300,6 +302,12 @@ def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: floa
     flange_d = float(np.max(hf))
     to_base_length = 1.0 / beam.units.to_consistent("deflection") * L
     h_row = np.asarray(cols["h"], float) * L
+    # ACI 318-19 24.2.4.1.1: rho' = As' / (b d) of the compression steel (the section
+    # units cancel)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rho = np.nan_to_num(np.asarray(cols["as_compression"], float)
+                            / (bw * np.asarray(cols["d"], float)))
+    rho_prime = (rho[left], rho[mid], rho[right])
     profiles = None
     if depths.varies(beam):
         profiles = tuple((start * to_base_length, end * to_base_length, depth * L)
@@ -312,7 +320,8 @@ def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: floa
         fc=float(beam.design.fc) * s.stress,
         as_bottom=area[mid], d_bottom=d[mid], as_top_left=area[left], d_top_left=d[left],
         as_top_right=area[right], d_top_right=d[right], sustained=p.sustained,
-        months=p.months, creep=p.creep, to_base_length=to_base_length,
+        months=p.months, creep=p.creep, shrinkage=p.shrinkage,
+        rho_prime=rho_prime, to_base_length=to_base_length,
         to_base_moment=s.moment, to_section=1.0 / L)
 
 
