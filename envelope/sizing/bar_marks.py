@@ -103,7 +103,10 @@ def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np
                                                       system, top, clear_ok))
             return max(d, 12.0 * db), ld
         L = s.length
-        good = not (top and design.h * L > 250.0)
+        # EN 1992-1-1 8.4.2(2): top bars of a member deeper than 250 mm are in poor bond
+        # (the deepest design section of the span, where a stretch gives its own h)
+        depth = float(np.max(np.asarray(sizing["h"], dtype=float)[3 * j:3 * j + 3]))
+        good = not (top and depth * L > 250.0)
         lbd = float(cutoffs.anchorage_length_en(db * L, fy * s.stress, fc * s.stress,
                                                 good)) / L
         cot = [sizing["cot_theta"][3 * j + k] for k in (0, 2)] if "cot_theta" in sizing \
