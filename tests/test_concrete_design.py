@@ -592,8 +592,15 @@ def test_aci_doubly_reinforced_section_matches_the_hand_calculation() -> None:
     assert cols["phiMn"][i] == pytest.approx(mu / 1e6, rel=1e-6)  # strain compatibility
     assert "doubly reinforced" in cols["note"][i]
     assert "section too small" not in cols["status"][i]
+    # the compression bars give at least As' (ASTM A615 nominal areas, in^2, x 645.16)
+    count, size = cols["bars_compression"][i].split()
+    area = {"#4": 0.20, "#5": 0.31, "#6": 0.44, "#7": 0.60, "#8": 0.79, "#9": 1.00,
+            "#10": 1.27, "#11": 1.56}[size] * 645.16
+    assert int(count) * area >= as2
+    assert "9.7.6.4" in cols["note"][i]
     # singly reinforced sections report no compression steel
     assert cols["as_compression"][row(cols, 1, "left")] == 0.0
+    assert cols["bars_compression"][row(cols, 1, "left")] == ""
 
 
 def test_en_doubly_reinforced_section_matches_the_hand_calculation() -> None:

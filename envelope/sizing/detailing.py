@@ -192,6 +192,8 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
             notes[i].append(f"two layers of bars: d = {chosen['d'][i]:.4g} {su['length']} "
                             f"to their centroid")
     cols["bars"] = chosen["label"]
+    cols["bars_compression"] = _compression_bars(rows, p, cols, bw, side, bar_set, system,
+                                                 notes, failures)
     cols["as_provided"] = chosen["area"]
     cols["bar_layers"] = chosen["layers"]
     units["bar_layers"] = "1"
@@ -227,6 +229,32 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
             notes[i].append("no live load taken as sustained (long_term.sustained not "
                             "given)")
     return Sized(rows, cols, units, notes, failures)
+
+
+def _compression_bars(rows: Rows, p: Params, cols: dict[str, np.ndarray], bw: float,
+                      side: float, bar_set: bar_mod.BarSet, system: str,
+                      notes: list[list[str]], failures: list[list[str]]) -> np.ndarray:
+    """Bars for the compression steel of doubly reinforced rows (``as_compression``), by
+    the same rules as the tension bars (one or two layers, clear spacing), at the
+    compression face; "" elsewhere."""
+    comp = np.nan_to_num(np.asarray(cols["as_compression"], dtype=float))
+    if not np.any(comp > 0):
+        return np.full(rows.n, "", dtype=object)
+    d0 = np.asarray(cols["d"], dtype=float)
+    chosen = bar_mod.choose(lambda d: np.where(comp > 0, comp, 0.0), d0,
+                            np.full(rows.n, bw), side, np.full(rows.n, np.inf), bar_set,
+                            p.code, p.aggregate, system)
+    su = SECTION_UNITS[system]
+    for i in np.flatnonzero(comp > 0).tolist():
+        if not chosen["fits"][i]:
+            failures[i].append(
+                f"no arrangement of the bar set gives the compression steel "
+                f"{comp[i]:.4g} {su['area']} in one or two layers of a {bw:g} "
+                f"{su['length']} web: widen the section or allow larger bars")
+        elif p.code == "aci318-19":
+            notes[i].append("compression bars to be enclosed by stirrups or ties (ACI "
+                            "318-19 9.7.6.4)")
+    return np.asarray(chosen["label"], dtype=object)
 
 
 def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]]) -> None:
