@@ -123,3 +123,8 @@ REDISTRIBUTION_STEP = 0.001
 REDISTRIBUTION_MAX_SIZINGS = 8
 #: Round-off allowed when the fraction used is compared with the fraction allowed.
 REDISTRIBUTION_ATOL = 1e-9
+#: Offset, as a fraction of the span, of the grid points placed just each side of a
+#: stretch end for the concrete deflections: the stiffness steps there, and a point each
+#: side lets the trapezoidal rule take each stretch's own curvature up to the step (the
+#: sliver between them weighs 1e-9 of the span, far below the rule's own error).
+STRETCH_SIDE = 1e-9

@@ -686,3 +686,45 @@ def test_aci_lambda_delta_counts_the_compression_steel_at_midspan() -> None:
     # no compression steel: rho' = 0
     single = case(ACI, (7.0,), 20.0, 15.0)
     assert single["lambda_delta"][row(single, 1, "span")] == 2.0
+
+
+def test_en_cracked_deflection_of_a_span_with_a_deeper_stretch() -> None:
+    # an 8 m simple span (statically determinate: M = w x (L - x) / 2 whatever the
+    # stiffness), 600 mm deep with its first 2 m 800 mm deep: at every point Ig, Mcr =
+    # fctm Ig / (h/2) and Icr of the bottom bars at h(x) - (600 - d) use the local depth
+    # (EN 1992-1-1:2004 7.4.3(3) eq. 7.18/7.19, Table 3.1 Ecm and fctm); the deflection
+    # is the unit-load integral of the curvature (scipy quad), its largest value on the
+    # span's grid
+    L, g, q = 8.0, 20.0, 15.0
+    stretch = "[[spans.sections]]\nfrom = 0.0\nto = 2.0\nI = 1.28e10\nh = 800.0"
+    cols = case(EN, (L,), g, q, stretches=(stretch,))
+    i = row(cols, 1, "span")
+    As, d = cols["as_provided"][i], cols["d"][i]
+    assert cols["h"][i] == 600.0
+    ecm = 22_000 * ((30 + 8) / 10) ** 0.3
+    fctm = 0.30 * 30 ** (2 / 3)
+    w = g + q
+    Lm = L * 1000
+
+    def kappa(x: float) -> float:
+        h = 800.0 if x <= 2000.0 else 600.0
+        ig = 300 * h**3 / 12
+        mcr = fctm * ig / (h / 2)
+        icr = icr_rect(300, h - (600.0 - d), As, 200_000 / ecm)
+        m = w * x * (Lm - x) / 2
+        zeta = 1 - (mcr / m) ** 2 if m > mcr else 0.0
+        return m * (zeta / (ecm * icr) + (1 - zeta) / (ecm * ig))
+
+    def deflection(x: float) -> float:
+        def g_xi(xi: float) -> float:
+            return (xi * (Lm - x) if xi <= x else x * (Lm - xi)) / Lm
+        pts = sorted({x, 2000.0, *(p for p in (_crack_x(w, 300 * 600**3 / 12 * fctm
+                                                         / 300, L),) if 0 < p < Lm)})
+        return quad(lambda xi: g_xi(xi) * kappa(xi), 0, Lm, points=pts, limit=400)[0]
+
+    grid = np.unique(np.r_[np.linspace(0, Lm, 401), 2000.0])
+    expected = max(deflection(float(x)) for x in grid[(grid > 3000) & (grid < 5000)])
+    assert cols["deflection_immediate"][i] == pytest.approx(expected, rel=1e-4)
+    # the deeper stretch is stiffer: less deflection than the 600 mm beam
+    flat = case(EN, (L,), g, q)
+    assert cols["deflection_immediate"][i] < flat["deflection_immediate"][i]

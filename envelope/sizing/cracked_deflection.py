@@ -118,15 +118,19 @@ def sustained_fractions(solved: Solved, code: str, sustained: dict[str, float]
 
 
 def _grid(solved: Solved, span: int) -> np.ndarray:
-    """Integration points of span ``span``: an even grid, point loads and stretch ends
-    (where the depth, and so the stiffness, may step)."""
+    """Integration points of span ``span``: an even grid, point loads, and stretch ends
+    with a point just each side (where the depth, and so the stiffness, may step)."""
     beam = solved.beam
     length = beam.spans[span].length
     xs = [np.linspace(0.0, length, config.DEFLECTION_GRID + 1)]
     xs.append(np.array([ld.at for ld in beam.loads
                         if getattr(ld, "type", "") == "point" and ld.span == span
                         and ld.at is not None], dtype=float))
-    xs.append(np.array([st.end for st in beam.spans[span].stretches], dtype=float))
+    # each side of a stretch end, so that the trapezoidal rule takes each stretch's own
+    # stiffness up to the step (the end itself takes the shallower, :func:`_depth`)
+    ends = np.array([st.end for st in beam.spans[span].stretches[:-1]], dtype=float)
+    step = config.STRETCH_SIDE * length
+    xs.append(np.r_[ends, ends - step, ends + step])
     x = np.unique(np.clip(np.concatenate(xs), 0.0, length))
     return x
 
