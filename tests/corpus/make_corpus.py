@@ -532,6 +532,10 @@ NEW_ROWS: list[Row] = [
      "read for this key), got '360'"),
     ("design_deflection_limit_zero", design(CONCRETE, deflection_limits="{ total = 0 }"),
      f"{FILE}: design.deflection_limits.total: must be greater than zero, got 0"),
+    ("design_shrinkage_too_large",
+     design({**CONCRETE, "code": '"en1992-1-1"'}, long_term="{ shrinkage = 0.4 }"),
+     f"{FILE}: design.long_term.shrinkage: free shrinkage strain eps_cs from 0 to 0.003 "
+     "(e.g. 0.0004), got 0.4"),
     # -- limits: nesting, text, unit strings, [design] magnitudes -------------
     ("nesting_arrays_5000_deep", header("tags = " + "[" * 5000 + "]" * 5000),
      f"{FILE}: values nested more than 16 levels deep (arrays or tables inside each other); "
