@@ -54,7 +54,7 @@ def main() -> None:
         work = Path(tmp)
         make_cases(args.n, work / "cases", seed=7)
         paths = sorted((work / "cases").glob("*.toml"))
-        tasks = [(str(p), str(p), None) for p in paths]
+        tasks = [(str(p), str(p), None, None, None) for p in paths]
         _side(tasks[:3], work, True)   # imports and caches, untimed
         _side(tasks[:3], work, False)
         raw: dict[str, list[tuple[float, float]]] = {"without": [], "with": []}

@@ -94,6 +94,17 @@ CASE_NESTING_MAX = 16
 #: Longest text value in a case file, in characters (a title, a name, a path).
 TEXT_MAX_CHARS = 4096
 
+#: Positions of glyphs within a pixel on the figure's raster canvas (envelope.glyphs):
+#: a glyph is rendered once per position step, so 4 steps (a quarter pixel, at most an
+#: eighth of a pixel from where the text layout puts it) keep 16 renderings per glyph
+#: and letters that look as matplotlib places them.
+TEXT_SUBPIXEL_STEPS = 4
+
+#: Entries of each text cache of the raster canvas (glyphs, lines, extents, layouts;
+#: a line is a few kilobytes, so at most some tens of MiB): a cache that fills is
+#: emptied and starts again.
+TEXT_CACHE_ENTRIES = 10_000
+
 #: Largest sections table (CSV) read, in bytes: a full catalogue of rolled shapes with
 #: every column is well under 1 MB.
 SECTIONS_MAX_BYTES = 4 * 1024 * 1024

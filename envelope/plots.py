@@ -34,7 +34,6 @@ from typing import Any
 
 import matplotlib as mpl
 import numpy as np
-from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.patches import Polygon, Rectangle
@@ -43,6 +42,8 @@ from matplotlib.ticker import MaxNLocator
 from matplotlib.transforms import Bbox
 
 from envelope.files import write_atomic
+from envelope.glyphs import CachedTextCanvas
+from envelope.raster import figure_png
 from envelope.sketch import decode
 
 Columns = Mapping[str, Any]
@@ -326,9 +327,11 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
             a.set_ylabel("")
             a.set_xlabel("")
         return fig, axes
+    # a kept figure is drawn at the file's resolution, so that its renderer (and the
+    # text extents measured for placing the labels) serve every beam's file
     fig = Figure(figsize=(WIDTH, sum(heights) + top + bottom + 0.12 * len(heights)),
-                 facecolor="white")
-    FigureCanvasAgg(fig)
+                 facecolor="white", dpi=DPI if reuse else None)
+    CachedTextCanvas(fig)
     axes = _panel_axes(fig, heights, top, bottom)
     if reuse:
         if len(_KEPT) >= _KEEP_AT_MOST:
@@ -513,6 +516,9 @@ def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool
     fmt = path.suffix.lstrip(".").lower() or "png"
     with mpl.rc_context(STYLE):
         fig = _build(results, None, reuse=True)
+        if fmt == "png" and fig.dpi == DPI:  # the canvas as it is, encoded directly
+            write_atomic(path, lambda fh: fh.write(figure_png(fig)), durable)
+            return path
         kwargs: dict[str, Any] = {"format": fmt, "dpi": DPI, "facecolor": "white"}
         if fmt == "png":  # fast deflate: a quarter of the encoding time, a larger file
             kwargs["pil_kwargs"] = {"compress_level": 1}

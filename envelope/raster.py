@@ -1,0 +1,57 @@
+"""A figure's raster canvas as a PNG file, written directly (PNG, ISO/IEC 15948:2004).
+
+matplotlib hands its canvas to Pillow, whose encoder tries every row filter on every
+row: for the envelope figure (1210 x 1260 pixels) that costs more than drawing the
+figure.  An opaque figure is written here as 8-bit RGB (the alpha channel, all 255,
+left out), every row with the "Up" filter (ISO/IEC 15948 9.2, filter type 2: the
+difference from the row above, zero over the plain paper and along vertical lines) and
+deflated at zlib's fastest level; a figure with transparency keeps its alpha.  Any PNG
+reader gives back the canvas's pixels exactly.
+"""
+
+from __future__ import annotations
+
+import struct
+import zlib
+from typing import Any
+
+import numpy as np
+
+_SIGNATURE = b"\x89PNG\r\n\x1a\n"
+#: zlib level: the fastest (a larger file, a third of the time of the default level).
+_LEVEL = 1
+
+
+def _chunk(kind: bytes, data: bytes) -> bytes:
+    """One PNG chunk: length, type, data, CRC-32 of type and data (ISO/IEC 15948 5.3)."""
+    return (struct.pack(">I", len(data)) + kind + data
+            + struct.pack(">I", zlib.crc32(data, zlib.crc32(kind)) & 0xFFFFFFFF))
+
+
+def png_bytes(rgba: np.ndarray, dpi: float) -> bytes:
+    """The PNG file of an RGBA image (rows top to bottom, uint8), its resolution
+    recorded in the pHYs chunk (pixels per metre)."""
+    rgba = np.asarray(rgba, dtype=np.uint8)
+    height, width, _ = rgba.shape
+    opaque = bool(rgba[..., 3].min() == 255) if rgba.size else True
+    pixels = rgba[..., :3] if opaque else rgba
+    rows = pixels.reshape(height, -1)
+    data = np.empty((height, rows.shape[1] + 1), dtype=np.uint8)
+    data[:, 0] = 2  # filter type Up; the row above the first is zeros
+    if height:
+        data[0, 1:] = rows[0]
+        np.subtract(rows[1:], rows[:-1], out=data[1:, 1:])
+    colour_type = 2 if opaque else 6  # truecolour, truecolour with alpha
+    header = struct.pack(">IIBBBBB", width, height, 8, colour_type, 0, 0, 0)
+    per_metre = round(dpi / 0.0254)
+    deflated = zlib.compress(data.data, _LEVEL)
+    return b"".join((_SIGNATURE, _chunk(b"IHDR", header),
+                     _chunk(b"pHYs", struct.pack(">IIB", per_metre, per_metre, 1)),
+                     _chunk(b"IDAT", deflated), _chunk(b"IEND", b"")))
+
+
+def figure_png(fig: Any) -> bytes:
+    """Draw ``fig`` on its Agg canvas at the figure's own resolution and return the
+    PNG file of the canvas."""
+    fig.canvas.draw()
+    return png_bytes(np.asarray(fig.canvas.buffer_rgba()), fig.dpi)
