@@ -1,14 +1,22 @@
-"""Cost of the figures in a batch: the work of one batch worker with and without
-``--plots``, on the same generated beams, as a ratio (target: at most 1.5).
+"""Cost of the figures in a batch, as ratios (target: a batch with figures at most 1.5
+times one without).
 
-    python benchmarks/figures_bench.py [N] [--json OUT.json]
+    python benchmarks/figures_bench.py batch [N] [--repeats R] [--json OUT.json]
+    python benchmarks/figures_bench.py worker [N] [--repeats R] [--json OUT.json]
 
-Each side runs :func:`envelope.batch.worker.run_chunk` on N generated beams (see
-``make_cases.py``) in this process, as a worker does, so the figure is reused across
-beams as it is in a batch.  CPU time of the process (``time.process_time``) is the
-measure, so that a busy machine slows both sides alike; wall time is kept as well.  The
-sides are interleaved (A B B A) and each figure is the best of the repeats.  A first
-untimed pass imports everything and warms the caches on both sides.
+``batch`` (the target): whole processes, ``envelope batch <N files> -o OUT --workers 2
+--force -q`` with ``--plots`` and with ``--no-plots``, on the first N beams of
+``make_cases.py`` (seed 7), timed from start to exit (wall time, as a user waits for
+it); the two sides are interleaved (A B B A ...) and the ratio is taken of the medians
+(the best of each side is printed too).  N defaults to 60.
+
+``worker``: one batch worker's chunk in this process (:func:`run_chunk`, as a worker
+runs it, so the figure is reused across beams), with and without figures; the CPU time
+of the process (``time.process_time``), so that a busy machine slows both sides alike,
+per beam.  A first untimed pass imports everything and warms the caches on both sides.
+
+Every raw timing, the load average at the start and the end and the engine's commit go
+to the JSON file.
 """
 
 from __future__ import annotations
@@ -18,6 +26,8 @@ import json
 import os
 import platform
 import shutil
+import statistics
+import subprocess
 import sys
 import tempfile
 import time
@@ -32,7 +42,15 @@ from make_cases import make_cases  # noqa: E402
 from envelope.batch.worker import run_chunk  # noqa: E402
 
 
-def _side(tasks: list, work: Path, plots: bool) -> tuple[float, float]:
+def _commit() -> str:
+    try:
+        return subprocess.run(["git", "-C", str(ROOT), "rev-parse", "--short", "HEAD"],
+                              capture_output=True, text=True, check=True).stdout.strip()
+    except (OSError, subprocess.CalledProcessError):
+        return "unknown"
+
+
+def _worker_side(tasks: list, work: Path, plots: bool) -> tuple[float, float]:
     out = work / ("with" if plots else "without")
     shutil.rmtree(out, ignore_errors=True)
     wall, cpu = time.perf_counter(), time.process_time()
@@ -44,37 +62,71 @@ def _side(tasks: list, work: Path, plots: bool) -> tuple[float, float]:
     return cpu, wall
 
 
+def bench_worker(n: int, repeats: int, work: Path) -> dict:
+    """CPU time per beam of one worker's chunk, with and without figures."""
+    paths = sorted((work / "cases").glob("*.toml"))
+    tasks = [(str(p), str(p), None, None, None) for p in paths]
+    _worker_side(tasks[:3], work, True)   # imports and caches, untimed
+    _worker_side(tasks[:3], work, False)
+    raw: dict[str, list[tuple[float, float]]] = {"without": [], "with": []}
+    for plots in ([False, True, True, False] * repeats)[: 2 * repeats]:
+        raw["with" if plots else "without"].append(_worker_side(tasks, work, plots))
+    best = {k: min(v) for k, v in raw.items()}
+    ratio = best["with"][0] / best["without"][0]
+    print(f"worker, {n} beams: without figures {best['without'][0] / n * 1e3:.0f} ms CPU "
+          f"per beam, with {best['with'][0] / n * 1e3:.0f} ms: {ratio:.2f}x")
+    return {"ratio_cpu": ratio,
+            "ratio_wall": min(w for _, w in raw["with"]) / min(w for _, w in raw["without"]),
+            "per_beam_cpu_without_s": best["without"][0] / n,
+            "per_beam_cpu_with_s": best["with"][0] / n, "raw_cpu_wall_s": raw}
+
+
+def _batch_once(cases: Path, out: Path, plots: bool) -> float:
+    args = [sys.executable, "-m", "envelope", "batch", str(cases), "-o", str(out),
+            "--workers", "2", "--force", "-q", "--plots" if plots else "--no-plots"]
+    env = dict(os.environ, PYTHONPATH=str(ROOT), MPLBACKEND="Agg")
+    start = time.perf_counter()
+    subprocess.run(args, check=True, env=env, stdout=subprocess.DEVNULL)
+    return time.perf_counter() - start
+
+
+def bench_batch(n: int, repeats: int, work: Path) -> dict:
+    """Wall time of whole batches with two workers, with and without figures."""
+    cases = work / "cases"
+    _batch_once(cases, work / "warm", True)  # file cache and compiled modules, untimed
+    raw: dict[str, list[float]] = {"without": [], "with": []}
+    for plots in ([False, True, True, False] * repeats)[: 2 * repeats]:
+        out = work / ("with" if plots else "without")
+        shutil.rmtree(out, ignore_errors=True)
+        raw["with" if plots else "without"].append(_batch_once(cases, out, plots))
+    median = {k: statistics.median(v) for k, v in raw.items()}
+    best = {k: min(v) for k, v in raw.items()}
+    ratio = median["with"] / median["without"]
+    print(f"batch, {n} beams, 2 workers: without figures {median['without']:.2f} s, with "
+          f"{median['with']:.2f} s (medians of {repeats}): {ratio:.2f}x "
+          f"(best {best['with'] / best['without']:.2f}x; target at most 1.5x)")
+    return {"ratio_median_wall": ratio, "ratio_best_wall": best["with"] / best["without"],
+            "median_wall_s": median, "best_wall_s": best, "raw_wall_s": raw}
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("n", nargs="?", type=int, default=30)
-    parser.add_argument("--repeats", type=int, default=2)
+    parser.add_argument("what", choices=("batch", "worker"))
+    parser.add_argument("n", nargs="?", type=int, default=60)
+    parser.add_argument("--repeats", type=int, default=3)
     parser.add_argument("--json", type=Path)
     args = parser.parse_args()
+    start = {"date": time.strftime("%Y-%m-%d %H:%M:%S"), "load_average_start": os.getloadavg()}
     with tempfile.TemporaryDirectory() as tmp:
         work = Path(tmp)
         make_cases(args.n, work / "cases", seed=7)
-        paths = sorted((work / "cases").glob("*.toml"))
-        tasks = [(str(p), str(p), None, None, None) for p in paths]
-        _side(tasks[:3], work, True)   # imports and caches, untimed
-        _side(tasks[:3], work, False)
-        raw: dict[str, list[tuple[float, float]]] = {"without": [], "with": []}
-        order = [False, True, True, False] * args.repeats
-        for plots in order[: 2 * args.repeats]:
-            raw["with" if plots else "without"].append(_side(tasks, work, plots))
-    best = {k: min(v) for k, v in raw.items()}
-    ratio = best["with"][0] / best["without"][0]
-    result = {
-        "beams": args.n, "ratio_cpu": ratio,
-        "ratio_wall": min(w for _, w in raw["with"]) / min(w for _, w in raw["without"]),
-        "per_beam_cpu_without_s": best["without"][0] / args.n,
-        "per_beam_cpu_with_s": best["with"][0] / args.n,
-        "raw_cpu_wall_s": raw, "target": 1.5,
-        "date": time.strftime("%Y-%m-%d %H:%M:%S"), "machine": platform.platform(),
-        "cpus": os.cpu_count(), "load_average": os.getloadavg(),
-    }
-    print(f"{args.n} beams: without figures {result['per_beam_cpu_without_s'] * 1e3:.0f} ms "
-          f"CPU per beam, with {result['per_beam_cpu_with_s'] * 1e3:.0f} ms: "
-          f"{ratio:.2f}x (target at most 1.5x)")
+        bench = bench_batch if args.what == "batch" else bench_worker
+        result = {"what": args.what, "beams": args.n, "repeats": args.repeats,
+                  **bench(args.n, args.repeats, work)}
+    result.update(start, load_average_end=os.getloadavg(), target=1.5, commit=_commit(),
+                  machine=platform.platform(), cpus=os.cpu_count())
+    print(f"load average {start['load_average_start'][0]:.1f} at the start, "
+          f"{result['load_average_end'][0]:.1f} at the end")
     if args.json:
         args.json.write_text(json.dumps(result, indent=1) + "\n")
 

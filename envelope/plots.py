@@ -38,6 +38,7 @@ from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.patches import Polygon, Rectangle
 from matplotlib.path import Path as MPath
+from matplotlib.text import Text
 from matplotlib.ticker import MaxNLocator
 from matplotlib.transforms import Bbox
 
@@ -185,6 +186,11 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
     placed: list[Bbox] = []
     frames: dict[Any, Bbox] = {}
     dropped = 0
+    # one text, never drawn, measures every label: its extent at the anchor is the
+    # label's (left and bottom aligned, so the anchor is the extent's corner)
+    probe = Text(0.0, 0.0, "", fontsize=7, ha="left", va="bottom", linespacing=1.05,
+                 parse_math=False)
+    probe.set_figure(fig)
     for lab in sorted(labels, key=lambda lb: lb.rank):
         ax = lab.ax
         if ax not in frames:
@@ -195,11 +201,8 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
         if not (np.isfinite(ax_x) and np.isfinite(ax_y)):
             dropped += 1
             continue
-        text = ax.annotate(lab.text, (lab.x, lab.y), xytext=(0.0, 0.0),
-                           textcoords="offset points", fontsize=7, color=lab.colour,
-                           ha="left", va="bottom", linespacing=1.05, parse_math=False,
-                           zorder=8, gid="value-label", annotation_clip=False)
-        size = text.get_window_extent(renderer)
+        probe.set_text(lab.text)
+        size = probe.get_window_extent(renderer)
         w, h = size.width, size.height
         best = None
         up = 1.0 if lab.above else -1.0
@@ -217,13 +220,14 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
                     break
             if best is not None:
                 break
-        text.remove()
         if best is None:
             dropped += 1
             continue
         placed.append(Bbox.from_extents(best.x0 - 1, best.y0 - 1, best.x1 + 1, best.y1 + 1))
-        # offset by the pixels between where the text was measured and where it goes
-        offset = ((best.x0 - size.x0) / px_per_pt, (best.y0 - size.y0) / px_per_pt)
+        # offset by the pixels between the anchor (the measured extent's corner) and
+        # where the label goes
+        offset = ((best.x0 - ax_x - size.x0) / px_per_pt,
+                  (best.y0 - ax_y - size.y0) / px_per_pt)
         far = min(abs(best.y0 - ax_y), abs(best.y1 - ax_y)) > 6 * px_per_pt
         arrow = {"arrowstyle": "-", "color": SOFT, "lw": 0.5, "shrinkA": 0, "shrinkB": 0,
                  "relpos": (0.5, 0.0 if best.y0 > ax_y else 1.0)} if far else None
@@ -299,7 +303,27 @@ def _panel_axes(fig: Figure, heights: Sequence[float], top: float, bottom: float
         ax.set_facecolor(PAPER)
         axes.append(ax)
         y -= gap
+    _prepare(axes)
     return axes
+
+
+def _prepare(axes: Sequence[Any]) -> None:
+    """What every beam's panels share, set once (a kept figure keeps it): the strip
+    without axes, the panels' ticks and spines, x tick labels on the bottom panel only."""
+    axes[0].set_facecolor("none")
+    axes[0].axis("off")
+    for ax in axes[1:]:
+        ax.tick_params(labelsize=7, colors=SOFT, length=2.5)
+        # no tick label at the very top or bottom, where it would meet the next panel's
+        ax.yaxis.set_major_locator(MaxNLocator(nbins=5, prune="both"))
+        ax.spines[["top", "right"]].set_visible(False)
+        for side in ("left", "bottom"):
+            ax.spines[side].set_color(SOFT)
+        ax.tick_params(labelbottom=ax is axes[-1])
+        if ax is not axes[-1]:
+            # no x label above the bottom panel: a fixed place spares matplotlib
+            # measuring the tick labels to put one there at every draw
+            ax.xaxis.set_label_coords(0.5, 0.0)
 
 
 #: Figures kept for reuse by :func:`draw_results`, by panel heights: creating the axes
@@ -341,13 +365,8 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
 
 
 def _style_panel(ax: Any, ylabel: str) -> None:
+    """The panel's y label (its ticks and spines are set once, by :func:`_prepare`)."""
     ax.set_ylabel(ylabel, fontsize=7.5, color=INK, labelpad=3)
-    ax.tick_params(labelsize=7, colors=SOFT, length=2.5)
-    # no tick label at the very top or bottom, where it would meet the next panel's
-    ax.yaxis.set_major_locator(MaxNLocator(nbins=5, prune="both"))
-    ax.spines[["top", "right"]].set_visible(False)
-    for side in ("left", "bottom"):
-        ax.spines[side].set_color(SOFT)
 
 
 def _envelope(ax: Any, x: np.ndarray, hi: np.ndarray, lo: np.ndarray, pixels: int) -> None:
@@ -380,8 +399,6 @@ def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Se
            units: Mapping[str, str], n_lanes: int) -> list[str]:
     """The beam strip; returns the symbols it used (for the key)."""
     used: list[str] = []
-    ax.set_facecolor("none")
-    ax.axis("off")
     total = float(joint_x[-1]) if joint_x.size else 1.0
     ax.plot([0.0, total], [0.0, 0.0], color=INK, lw=2.6, solid_capstyle="butt", zorder=4)
     ax.set_ylim(-1.3, 0.45 + max(n_lanes, 1) * 1.0)
@@ -573,8 +590,6 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False) 
     total = float(joint_x[-1]) if joint_x.size > 1 else float(x.max() or 1.0)
     pad = 0.02 * total
     m_ax.set_xlim(-pad, total + pad)
-    for a in axes[1:-1]:
-        a.tick_params(labelbottom=False)
     pixels = int(m_ax.get_position().width * fig.get_figwidth() * fig.dpi)
 
     # the title, the caution, the key
@@ -617,7 +632,6 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False) 
     for a in axes[1:]:
         _support_lines(a, joint_x)
     axes[-1].set_xlabel(f"x [{units.get('length', '')}]", fontsize=7.5, color=INK)
-    axes[-1].tick_params(labelbottom=True)
 
     _, dropped = place_labels(fig, labels)
     _key(fig, used, dropped, units)

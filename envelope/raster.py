@@ -35,12 +35,13 @@ def png_bytes(rgba: np.ndarray, dpi: float) -> bytes:
     height, width, _ = rgba.shape
     opaque = bool(rgba[..., 3].min() == 255) if rgba.size else True
     pixels = rgba[..., :3] if opaque else rgba
-    rows = pixels.reshape(height, -1)
-    data = np.empty((height, rows.shape[1] + 1), dtype=np.uint8)
+    channels = pixels.shape[2]
+    data = np.empty((height, width * channels + 1), dtype=np.uint8)
     data[:, 0] = 2  # filter type Up; the row above the first is zeros
+    rows = data[:, 1:].reshape(height, width, channels)  # a view: no copy of the canvas
     if height:
-        data[0, 1:] = rows[0]
-        np.subtract(rows[1:], rows[:-1], out=data[1:, 1:])
+        rows[0] = pixels[0]
+        np.subtract(pixels[1:], pixels[:-1], out=rows[1:])
     colour_type = 2 if opaque else 6  # truecolour, truecolour with alpha
     header = struct.pack(">IIBBBBB", width, height, 8, colour_type, 0, 0, 0)
     per_metre = round(dpi / 0.0254)
