@@ -345,3 +345,21 @@ def test_report_checks_list_redistribution_with_its_clause() -> None:
     assert [(r["result"], r["value"]) for r in rows] == [("fail", f"{0.2 / 0.093:.3f}"),
                                                         ("pass", "0.500")]
     assert all(r["clause"].startswith("ACI 318-19 6.6.5") for r in rows)
+
+
+def test_explicit_cases_carry_redistributed_strength_and_elastic_service() -> None:
+    # stations.parquet: a strength case's moment at the support is (1 - r) of the elastic
+    # one (ACI 318-19 6.6.5); the service case's stays elastic, -wL^2/8 (common practice)
+    from envelope.analysis import explicit_case_blocks
+
+    a = analyse(beam((L, L), W, design={**ACI, "redistribution": 0.2}))
+    n_strength = a.solved.strength.explicit_cases()[0].shape[1]
+    support = -W * L**2 / 8.0
+    found = 0
+    for block in explicit_case_blocks(a):
+        at = (block["span"] == 1) & (block["x_span"] == L)
+        for case, m in zip(block["case"][at], block["moment"][at], strict=True):
+            expected = 0.8 * support if case < n_strength else support
+            assert m == pytest.approx(expected, rel=SOLVE)
+            found += 1
+    assert found >= 2

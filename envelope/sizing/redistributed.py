@@ -160,12 +160,12 @@ def check(analysis: Analysis, sized: Sized) -> Sized:
 
 
 def _used_text(design: ConcreteDesign, used: float, j: int, analysis: Analysis) -> str:
-    clause = "ACI 318-19 6.6.5" if design.code == "aci318-19" else "EN 1992-1-1 5.5"
+    clause = "ACI 318-19 6.6.5" if design.code == "aci318-19" else "EN 1992-1-1 5.5(4)"
     how = ""
     if design.redistribution == "max" or (isinstance(design.redistribution, tuple)
                                           and design.redistribution[j] == "max"):
-        how = (f", the largest allowed (found in {analysis.redistribution_sizings} "
-               f"sizings)")
+        n = analysis.redistribution_sizings
+        how = f", the largest allowed (found in {n} sizing{'' if n == 1 else 's'})"
     return (f"support moment redistributed by {100.0 * used:.1f} % of its elastic value "
             f"in every strength arrangement{how} ({clause}); service deflections elastic")
 
