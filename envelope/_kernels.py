@@ -19,7 +19,10 @@ from __future__ import annotations
 import numpy as np
 from numba import njit, prange
 
-_GX, _GW = np.polynomial.legendre.leggauss(3)
+#: The three-point Gauss-Legendre rule of envelope.loadterms (numpy.polynomial.legendre.
+#: leggauss(3), written out).
+_GX = np.array([-0.7745966692414834, 0.0, 0.7745966692414834])
+_GW = np.array([0.5555555555555557, 0.8888888888888888, 0.5555555555555557])
 
 
 #: Rows of the packed point array of :func:`particular_terms`.

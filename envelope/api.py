@@ -11,8 +11,6 @@ from __future__ import annotations
 
 import contextlib
 import os
-import shutil
-import tempfile
 import warnings
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -21,7 +19,7 @@ from envelope.analysis import Analysis
 from envelope.analysis import analyse as _analyse
 from envelope.casefile import load_case
 from envelope.errors import EnvelopeError, EnvelopeWarning, OutputError
-from envelope.files import real_folder
+from envelope.files import real_folder, temporary_folder
 
 if TYPE_CHECKING:
     import pyarrow as pa
@@ -87,6 +85,8 @@ def tables(result: Analysis) -> dict[str, pa.Table]:
 
 
 def _tables(result: Analysis, all_cases: bool) -> dict[str, pa.Table]:
+    """Every table :func:`write` writes (with ``all_cases``, the cases table lists every
+    explicit case)."""
     from envelope import store
 
     built = store.tables(result, all_cases)
@@ -95,6 +95,11 @@ def _tables(result: Analysis, all_cases: bool) -> dict[str, pa.Table]:
 
         built.update(sizing_tables(result))
     return built
+
+
+def built_tables(result: Analysis, all_cases: bool) -> dict[str, pa.Table]:
+    """The tables :func:`write` writes, by file stem (see :func:`write_built`)."""
+    return _tables(result, all_cases)
 
 
 def summary_text(result: Analysis) -> str:
@@ -170,11 +175,17 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
     pathlib.Path
         The folder written, ``OUT/<id>``.
     """
-    from envelope import store
-
     if all_cases is None:
         all_cases = result.beam.output.all_cases
-    built = _tables(result, all_cases)
+    return write_built(result, _tables(result, all_cases), out, plots, all_cases, durable)
+
+
+def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.PathLike[str],
+                plots: bool, all_cases: bool, durable: bool) -> Path:
+    """:func:`write` of tables already built by :func:`built_tables` (the batch worker
+    keeps them: the beam's envelope table is also its partition of OUT/_all)."""
+    from envelope import store
+
     root = Path(out)
     folder = root / result.beam.id
     store.check_tables(folder, built)  # refuse before anything is written
@@ -187,8 +198,10 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
     # removed by the next write of the beam or batch run over OUT (its name ends in .tmp).
     for old in folder.glob(".staging-*.tmp"):  # left by a killed write (one writer a folder)
         if old.is_dir() and not old.is_symlink():
+            import shutil  # rarely needed: not imported at start-up
+
             shutil.rmtree(old, ignore_errors=True)
-    stage = Path(tempfile.mkdtemp(prefix=".staging-", suffix=".tmp", dir=folder))
+    stage = temporary_folder(folder, ".staging-", ".tmp")
     written = {f"{stem}.parquet" for stem in built}
     try:
         if all_cases:
@@ -204,6 +217,8 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
             os.replace(item, folder / item.name)
         stage.rmdir()
     except BaseException as exc:
+        import shutil
+
         shutil.rmtree(stage, ignore_errors=True)
         for path in reversed(made):  # folders this call created, when left empty
             with contextlib.suppress(OSError):

@@ -10,7 +10,6 @@ import contextlib
 import errno
 import os
 import stat
-import tempfile
 from collections.abc import Callable
 from pathlib import Path
 from typing import BinaryIO
@@ -26,6 +25,39 @@ def _file_mode() -> int:
 _MODE = _file_mode()
 
 
+def _fresh_name(prefix: str, suffix: str) -> str:
+    """A name no other writer picks: 16 random hex digits between prefix and suffix."""
+    return f"{prefix}{os.urandom(8).hex()}{suffix}"
+
+
+def temporary_file(folder: Path, prefix: str, suffix: str) -> tuple[int, str]:
+    """A new file in ``folder`` (created exclusively, mode 0600, no link followed), open
+    for writing, and its path: :func:`tempfile.mkstemp` without importing tempfile (and
+    with it shutil, zlib, bz2, lzma and random) at every start."""
+    flags = (os.O_RDWR | os.O_CREAT | os.O_EXCL | getattr(os, "O_NOFOLLOW", 0)
+             | getattr(os, "O_CLOEXEC", 0) | getattr(os, "O_BINARY", 0))
+    for _ in range(100):
+        name = os.path.join(folder, _fresh_name(prefix, suffix))
+        try:
+            return os.open(name, flags, 0o600), name
+        except FileExistsError:
+            continue
+    raise FileExistsError(errno.EEXIST, "no unused temporary name", str(folder))
+
+
+def temporary_folder(folder: Path, prefix: str, suffix: str) -> Path:
+    """A new, empty folder in ``folder`` (mode 0700) of a name no other writer picks:
+    :func:`tempfile.mkdtemp` without importing tempfile."""
+    for _ in range(100):
+        path = folder / _fresh_name(prefix, suffix)
+        try:
+            path.mkdir(mode=0o700)
+        except FileExistsError:
+            continue
+        return path
+    raise FileExistsError(errno.EEXIST, "no unused temporary name", str(folder))
+
+
 def write_bytes(path: Path, data: bytes, durable: bool = True) -> None:
     """Write ``data`` to ``path`` atomically (see :func:`write_atomic`)."""
     write_atomic(path, lambda fh: fh.write(data), durable)
@@ -39,7 +71,7 @@ def write_atomic(path: Path, write: Callable[[BinaryIO], object],
     also makes it safe against the machine losing power.  ``durable=False`` skips the
     fsync where something else verifies the files later (the batch runner's manifest)."""
     path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    fd, tmp = temporary_file(path.parent, f".{path.name}.", ".tmp")
     try:
         os.fchmod(fd, _MODE)
         with os.fdopen(fd, "wb") as fh:
@@ -51,6 +83,18 @@ def write_atomic(path: Path, write: Callable[[BinaryIO], object],
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
         raise
+
+
+def sync_file(path: Path) -> None:
+    """Flush to disk (fsync) a file written earlier without it; nothing if it is gone."""
+    try:
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NOFOLLOW", 0))
+    except FileNotFoundError:
+        return
+    try:
+        os.fsync(fd)
+    finally:
+        os.close(fd)
 
 
 def real_folder(root: Path, folder: Path, create: bool = True) -> Path:

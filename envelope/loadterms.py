@@ -27,7 +27,11 @@ import numpy as np
 
 from envelope.loading import DISTRIBUTED, MOMENT, POINT
 
-_GAUSS_X, _GAUSS_W = np.polynomial.legendre.leggauss(3)
+#: Three-point Gauss-Legendre rule on [-1, 1]: the values numpy.polynomial.legendre.leggauss(3)
+#: gives (+-sqrt(3/5), 0; 5/9, 8/9, 5/9), written out so that numpy.polynomial is not
+#: imported at start-up.
+_GAUSS_X = np.array([-0.7745966692414834, 0.0, 0.7745966692414834])
+_GAUSS_W = np.array([0.5555555555555557, 0.8888888888888888, 0.5555555555555557])
 
 
 def load_terms(

@@ -14,7 +14,6 @@ from typing import Any
 
 from envelope.casefile.reader import Reader, join
 from envelope.design import DeflectionLimits, LongTerm
-from envelope.sizing.bars import bar_set
 
 #: Concrete keys read here (documented in docs/case-format.md).
 CONCRETE_DETAIL_KEYS = ("bars", "aggregate", "long_term", "crack_width", "member",
@@ -40,6 +39,7 @@ def concrete_detailing(r: Reader, table: dict[str, Any], out: dict[str, Any],
                        cases: dict[str, Any]) -> None:
     """Read the keys of :data:`CONCRETE_DETAIL_KEYS` from ``table`` into ``out``."""
     from envelope.casefile.design import design_number
+    from envelope.sizing.bars import bar_set  # here: the sizing package is large
 
     key = "design"
     if "bars" in table:

@@ -6,7 +6,6 @@ from 1 in the file and from 0 in the model.
 
 from __future__ import annotations
 
-import difflib
 from typing import Any, get_args
 
 from envelope.casefile.reader import Reader, describe, item, join, suggest
@@ -106,6 +105,8 @@ def load_case_name(r: Reader, table: dict[str, Any], key: str,
     """The load's ``case``, which must be declared in ``[cases]``."""
     case = r.string(r.required(table, key, "case"), join(key, "case"))
     if case not in case_names:
+        import difflib  # only for a message
+
         close = difflib.get_close_matches(case, case_names, n=1)
         hint = f"; did you mean {close[0]!r}?" if close else ""
         r.fail(join(key, "case"), f"case {case!r} is not declared in [cases] "

@@ -12,7 +12,6 @@ counted from 1 (``spans[1]`` is the first span).
 
 from __future__ import annotations
 
-import difflib
 import json
 import math
 import re
@@ -94,6 +93,8 @@ def describe(value: object) -> str:
 
 def suggest(word: str, choices: Iterable[str]) -> str:
     """"; did you mean 'x'?" for the nearest choice, or the list of choices."""
+    import difflib  # only for a message
+
     options = list(choices)
     close = difflib.get_close_matches(word, options, n=1)
     if close:

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import warnings
 from contextlib import ExitStack
-from importlib import resources
 from pathlib import Path
 
 import click
@@ -43,6 +42,8 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
 
     with ExitStack() as stack:
         if case is None:
+            from importlib import resources
+
             ref = resources.files("envelope") / "data" / "demo.toml"
             path = str(stack.enter_context(resources.as_file(ref)))
         else:
