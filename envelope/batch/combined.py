@@ -28,11 +28,11 @@ def _read(path: Path) -> Any:
     return pq.ParquetFile(path).read()
 
 
-def _write(path: Path, table: Any) -> None:
+def _write(path: Path, table: Any, durable: bool = True) -> None:
     """One Parquet file, atomically (:mod:`envelope.files`)."""
     import pyarrow.parquet as pq
 
-    write_atomic(path, lambda fh: pq.write_table(table, fh))
+    write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
 
 
 def _units_metadata(labels: dict[str, str]) -> bytes:
@@ -120,18 +120,26 @@ def _converted(table: Any, units: dict[str, str], to_system: str) -> Any:
     return table
 
 
-def write_partition(out: Path, beam_id: str, system: str) -> None:
+def write_partition(out: Path, beam_id: str, system: str, envelope: Any = None) -> None:
     """``OUT/_all/envelope/beam=<id>/part-0.parquet``: the beam's envelope.parquet
     without its beam column (readers take it from the folder name, and most refuse it
     twice) and with a ``system`` column (SI or US), metadata kept.  Written by the worker
-    that ran the beam, so that combining costs the coordinator no more than a check."""
+    that ran the beam, so that combining costs the coordinator no more than a check;
+    from ``envelope`` (the table just written as envelope.parquet) when given, else read
+    back.  Not fsynced: :func:`combine` checks every partition's stamp and writes a
+    missing or unreadable one again."""
     import pyarrow as pa
 
-    table = _read(out / beam_id / "envelope.parquet")
+    if envelope is not None:
+        from envelope.store import with_field_units
+
+        table = with_field_units(envelope)  # as envelope.parquet holds it
+    else:
+        table = _read(out / beam_id / "envelope.parquet")
     column = pa.array([system] * table.num_rows, pa.string())
     table = table.drop_columns(["beam"]).append_column("system", column)
     folder = real_folder(out, out / COMBINED / "envelope" / f"beam={beam_id}")
-    _write(folder / "part-0.parquet", table)
+    _write(folder / "part-0.parquet", table, durable=False)
 
 
 def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = None) -> None:

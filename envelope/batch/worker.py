@@ -16,7 +16,7 @@ from envelope import engine_version
 from envelope.batch.combined import write_partition
 from envelope.batch.model import COMBINED, MANIFEST, BatchError, Outcome, Task
 from envelope.errors import EnvelopeError, EnvelopeWarning
-from envelope.files import is_link, real_folder, write_atomic
+from envelope.files import is_link, real_folder, sync_file, write_atomic
 
 
 def _is_result(name: str) -> bool:
@@ -82,11 +82,13 @@ def _clear_results(folder: Path) -> None:
             item.unlink(missing_ok=True)
 
 
-def run_beam(task: Task, out: str, plots: bool) -> Outcome:
+def run_beam(task: Task, out: str, plots: bool, unsynced: list[Path] | None = None
+             ) -> Outcome:
     """Analyse one case file and write ``OUT/<id>/`` as ``envelope run`` does, then the
     manifest; any error becomes the outcome's message (nothing raised).  A failure after
     writing began removes the beam's result files, so the folder is either complete with
-    its manifest or holds no results."""
+    its manifest or holds no results.  With ``unsynced`` the manifest is not fsynced but
+    added to that list, for the caller to fsync (:func:`run_chunk`: once a chunk)."""
     from envelope import api
 
     target, shown, quick_id, limit, work_limits = task
@@ -113,7 +115,9 @@ def run_beam(task: Task, out: str, plots: bool) -> Outcome:
             # no fsync per file: the manifest, written last, is checked against every
             # file (size and input hash) before a beam counts as done, so a file lost to
             # a power failure is found and the beam rerun
-            api.write(result, out, plots=plots, durable=False)
+            all_cases = beam.output.all_cases
+            built = api.built_tables(result, all_cases)
+            api.write_built(result, built, out, plots, all_cases, durable=False)
             written = time.perf_counter()
             after = _snapshot(folder)
             produced = {name: ident for name, ident in after.items()
@@ -121,14 +125,16 @@ def run_beam(task: Task, out: str, plots: bool) -> Outcome:
             for name in before.keys() - produced.keys():
                 if _is_result(name):  # written by an earlier run, not by this one: stale
                     (folder / name).unlink(missing_ok=True)
-            write_partition(Path(out), beam.id, beam.units.name)
+            write_partition(Path(out), beam.id, beam.units.name, built["envelope"])
             manifest = {
                 "beam": beam.id, "input_sha256": beam.input_sha256,
                 "version": engine_version(), "source": shown, "units": beam.units.name,
                 "plots": plots, "files": {name: produced[name][2] for name in sorted(produced)},
             }
             data = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
-            write_atomic(folder / MANIFEST, lambda fh: fh.write(data))
+            write_atomic(folder / MANIFEST, lambda fh: fh.write(data), unsynced is None)
+            if unsynced is not None:
+                unsynced.append(folder / MANIFEST)
         done = time.perf_counter()
         return Outcome(shown, beam.id, None, manifest, analysed - start, written - analysed,
                        done - written)
@@ -144,8 +150,16 @@ def run_beam(task: Task, out: str, plots: bool) -> Outcome:
 
 
 def run_chunk(tasks: Sequence[Task], out: str, plots: bool) -> list[Outcome]:
-    """One unit of work for a worker: several beams, one after the other."""
-    return [run_beam(task, out, plots) for task in tasks]
+    """One unit of work for a worker: several beams, one after the other, their manifests
+    fsynced together at the end (the first fsync commits them all, the rest find nothing
+    left to write).  A beam counts as done for a later batch only when its manifest
+    stands and every file it lists has the listed size and stamp, so a manifest or file
+    lost to a power failure before then means the beam is run again."""
+    unsynced: list[Path] = []
+    outcomes = [run_beam(task, out, plots, unsynced) for task in tasks]
+    for path in unsynced:
+        sync_file(path)
+    return outcomes
 
 
 def worker_engine_version() -> str:
