@@ -20,9 +20,24 @@ RESIDUAL_RTOL = 1e-9
 #: (so that a point load placed at a generated station does not add a third row).
 STATION_MERGE_RTOL = 1e-12
 
-#: Rows of stations handled at once by the enveloper: the response block is
-#: rows x unit cases float64 per quantity, so 2048 rows of 2048 units is 32 MiB.
+#: Most rows of stations handled at once by the enveloper (and by the all-cases
+#: table); see also :data:`ENVELOPE_CHUNK_VALUES`.
 STATION_CHUNK_ROWS = 2048
+
+#: Most (rows x unit cases) values in one block of the enveloper: the response block
+#: is that many float64 per quantity (4 MiB), and the reduction's working arrays a few
+#: times that, so memory stays bounded however many spans the beam has, and a block
+#: stays near the processor's caches (a 512-span beam with 4 segments a span has 4096
+#: unit cases: 128 rows a block).
+ENVELOPE_CHUNK_VALUES = 1 << 19
+
+#: Most (elements x unit cases) values in one block of columns of the solve: its
+#: working arrays are (elements x 4 x unit cases) float64, 8 MiB each at this size.
+SOLVE_CHUNK_VALUES = 1 << 18
+
+#: Spans of stations in one row group of envelope.parquet: each row group is built and
+#: written on its own, with its own dictionary of ``_loaded`` texts.
+ENVELOPE_ROW_GROUP_SPANS = 64
 
 #: Rows per Parquet row group of stations.parquet (all cases, long format).
 STATIONS_ROW_GROUP = 1_000_000

@@ -534,7 +534,8 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
     return coef
 
 
-def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True) -> Extremes:
+def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True,
+           known: dict[bytes, str] | None = None) -> Extremes:
     """Envelope of the responses ``R`` over a case set, exact by superposition.
 
     Parameters
@@ -547,6 +548,10 @@ def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True) -> Extremes:
     labels : bool
         Whether to write the ``_loaded`` texts; ``False`` leaves them empty (the
         design-action searches need values only, and the texts cost most).
+    known : dict, optional
+        Governing choice -> ``_loaded`` text, for this case set: shared by the calls
+        over the blocks of rows of one beam, so that each distinct text is built once
+        and held once.
 
     Returns
     -------
@@ -559,8 +564,9 @@ def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True) -> Extremes:
     rows = np.arange(R.shape[0])
     c_max, c_min = np.argmax(vmax, axis=1), np.argmin(vmin, axis=1)
     if labels:
-        t_max = _labels(cs, c_max, *_choices(R, cs, c_max, 1.0))
-        t_min = _labels(cs, c_min, *_choices(R, cs, c_min, -1.0))
+        known = {} if known is None else known
+        t_max = _labels(cs, c_max, *_choices(R, cs, c_max, 1.0), known)
+        t_min = _labels(cs, c_min, *_choices(R, cs, c_min, -1.0), known)
     else:
         t_max = t_min = np.full(R.shape[0], "", dtype=object)
     return Extremes(vmax[rows, c_max], vmin[rows, c_min], cs.col_combo[c_max],
@@ -568,9 +574,10 @@ def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True) -> Extremes:
 
 
 def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray | None,
-            groups: np.ndarray) -> np.ndarray:
+            groups: np.ndarray, known: dict[bytes, str]) -> np.ndarray:
     """``_loaded`` text per row from its column, the chosen units and groups (and the
-    loaded cells, where dead load depends on the pattern)."""
+    loaded cells, where dead load depends on the pattern): an object array whose rows
+    refer to one string per distinct choice, taken from ``known`` or built and added."""
     parts = [col[:, None].astype(np.int64).view(np.uint8), np.packbits(units, axis=1),
              np.packbits(groups, axis=1)]
     if cells is not None:
@@ -585,6 +592,10 @@ def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray |
     case_names = list(dict.fromkeys(cs.unit_case_name))
     unit_case = np.array([case_names.index(n) for n in cs.unit_case_name], dtype=np.int64)
     for i, row in enumerate(first):
+        seen = known.get(raw[row].tobytes())
+        if seen is not None:
+            text[i] = seen
+            continue
         c = int(col[row])
         k = int(cs.col_combo[c])
         by_case: dict[str, list[bool]] = {n: [False] * n_g for n in cs.switchable[k]}
@@ -600,7 +611,8 @@ def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray |
             if c not in present:
                 present[c] = _patterned_cells(cs, c)
             _mark_empty_cells(by_case, present[c], cells[row])
-        text[i] = _label_text(cs.cell_labels, by_case, cs.all_patterned[k])
+        text[i] = known[raw[row].tobytes()] = _label_text(cs.cell_labels, by_case,
+                                                          cs.all_patterned[k])
     return text[inverse.ravel()]
 
 

@@ -116,9 +116,10 @@ def solve_beam(beam: Beam) -> Solved:
 def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
                  labels: bool = True) -> dict[str, Extremes | None]:
     """Envelopes at ``points`` for each ``quantity -> case set`` of ``requests``, in
-    chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows, each chunk's response
-    computed once for all quantities; None for an empty case set.  ``labels=False``
-    skips the ``_loaded`` texts (for searches that need values only)."""
+    blocks of rows (:func:`chunk_rows`), each block's response computed once for all
+    quantities; None for an empty case set.  ``labels=False`` skips the ``_loaded``
+    texts (for searches that need values only); each distinct text is built once per
+    case set, whichever block and quantity it governs."""
     sets = {q: solved.case_set(name) for q, name in requests.items()}
     wanted = tuple(q for q, cs in sets.items() if not cs.is_empty)
     parts: dict[str, list[Extremes]] = {q: [] for q in wanted}
@@ -127,15 +128,25 @@ def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
     for q in wanted:
         sol = solved.solution_for(requests[q])
         by_solution[id(sol)] = (sol, by_solution.get(id(sol), (sol, ()))[1] + (q,))
-    step = config.STATION_CHUNK_ROWS
+    known: dict[str, dict[bytes, str]] = {name: {} for name in requests.values()}
+    step = chunk_rows(solved.unit_cases.n_units)
     if wanted:
         for lo in range(0, max(points.n, 1), step):
             chunk = points.take(slice(lo, lo + step))
             for sol, names in by_solution.values():
                 resp = evaluate_some(solved.mesh, solved.unit_cases, sol, chunk, names)
                 for q in names:
-                    parts[q].append(reduce(resp[q], sets[q], labels))
+                    parts[q].append(reduce(resp[q], sets[q], labels, known[requests[q]]))
     return {q: Extremes.concat(parts[q]) if q in parts else None for q in requests}
+
+
+def chunk_rows(n_units: int) -> int:
+    """Rows of points enveloped at once: at most
+    :data:`envelope.config.STATION_CHUNK_ROWS`, and at most
+    :data:`envelope.config.ENVELOPE_CHUNK_VALUES` (rows x unit cases) values, so that a
+    block's arrays do not grow with the beam; at least one row."""
+    return max(1, min(config.STATION_CHUNK_ROWS,
+                      config.ENVELOPE_CHUNK_VALUES // max(n_units, 1)))
 
 
 def envelope_at(solved: Solved, points: Points, quantity: str,

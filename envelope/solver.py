@@ -209,7 +209,59 @@ def _restraints(mesh: Mesh, supports: tuple[Support, ...]) -> tuple[np.ndarray, 
 
 def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
           source: str = "") -> Solution:
-    """Assemble, factorise once, solve every unit case, recover element start states."""
+    """Assemble, factorise, solve every unit case, recover element start states.
+
+    The unit cases are solved in blocks of columns (at most
+    :data:`envelope.config.SOLVE_CHUNK_VALUES` elements x unit cases each), so that the
+    (elements x 4 x unit cases) working arrays stay bounded as the beam grows; every
+    step is column by column, so a block's columns are the same, bit for bit, as when
+    all unit cases are solved at once."""
+    n_u = units.n_units
+    step = max(1, config.SOLVE_CHUNK_VALUES // max(mesh.n_elements, 1))
+    if n_u <= step:
+        return _own_arrays(_solve_block(mesh, supports, units, source))
+    n_e, n_j = mesh.n_elements, mesh.joint_node.size
+    out = {name: np.empty((n_e, n_u)) for name in ("V0", "M0", "theta1", "v1")}
+    out |= {name: np.empty((n_j, n_u)) for name in ("reaction", "reaction_moment")}
+    condition = 1.0
+    for lo in range(0, n_u, step):
+        hi = min(n_u, lo + step)
+        block = _solve_block(mesh, supports, unit_block(units, lo, hi), source, lo)
+        for name, arr in out.items():
+            arr[:, lo:hi] = getattr(block, name)
+        condition = block.condition  # the same factor for every block
+    return Solution(**out, condition=condition)
+
+
+def _own_arrays(sol: Solution) -> Solution:
+    """``sol`` with each array its own contiguous copy (a view would keep the whole
+    (elements x 4 x unit cases) working array it was cut from alive)."""
+    return Solution(V0=np.ascontiguousarray(sol.V0), M0=np.ascontiguousarray(sol.M0),
+                    theta1=np.ascontiguousarray(sol.theta1), v1=np.ascontiguousarray(sol.v1),
+                    reaction=sol.reaction, reaction_moment=sol.reaction_moment,
+                    condition=sol.condition)
+
+
+def unit_block(units: UnitCases, lo: int, hi: int) -> UnitCases:
+    """The unit cases ``lo:hi`` alone, renumbered from 0, with their load items in the
+    same order (still sorted by element)."""
+    keep = (units.item_unit >= lo) & (units.item_unit < hi)
+    elem = units.item_elem[keep]
+    n_e = units.elem_first.size - 1
+    return UnitCases(
+        case=units.case[lo:hi], cell=units.cell[lo:hi],
+        item_unit=units.item_unit[keep] - lo, item_elem=elem,
+        item_kind=units.item_kind[keep], item_a=units.item_a[keep],
+        item_b=units.item_b[keep], item_wa=units.item_wa[keep],
+        item_wb=units.item_wb[keep], item_p=units.item_p[keep],
+        elem_first=np.searchsorted(elem, np.arange(n_e + 1), side="left"),
+        settlement=None if units.settlement is None else units.settlement[:, lo:hi])
+
+
+def _solve_block(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
+                 source: str = "", first_unit: int = 0) -> Solution:
+    """:func:`solve` of the unit cases ``units`` in one block (``first_unit``: the number
+    of the block's first unit case, for messages)."""
     n_e = mesh.n_elements
     n_dof = 2 * mesh.n_nodes
     ke = element_stiffness(mesh.length, mesh.EI)
@@ -306,7 +358,7 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     # the scale of the forces meeting at each dof: |k_e| |d_e| + |fixed-end forces|
     bound = _node_sums(np.einsum("epq,equ->epu", np.abs(ke), np.abs(de)) + np.abs(fF), n_dof)
     try:
-        _check(mesh, node_f, bound, support_dof, Ql, ml, source)
+        _check(mesh, node_f, bound, support_dof, Ql, ml, source, first_unit)
     except StaticsError:
         if condition <= config.CONDITION_BLAME:
             raise
@@ -346,7 +398,7 @@ def _node_sums(f: np.ndarray, n_dof: int) -> np.ndarray:
 
 
 def _check(mesh: Mesh, node_f: np.ndarray, bound: np.ndarray, support_dof: np.ndarray,
-           Ql: np.ndarray, ml: np.ndarray, source: str) -> None:
+           Ql: np.ndarray, ml: np.ndarray, source: str, first_unit: int = 0) -> None:
     """Residual at free dofs (relative to ``bound``, the sum of the magnitudes of the
     forces meeting there: the backward error of the solve) and global statics of every
     unit case, or StaticsError."""
@@ -376,5 +428,5 @@ def _check(mesh: Mesh, node_f: np.ndarray, bound: np.ndarray, support_dof: np.nd
     if np.any(bad_f | bad_m):
         u = int(np.flatnonzero(bad_f | bad_m)[0])
         raise StaticsError(
-            f"{source}: statics check failed for unit case {u}: reactions "
+            f"{source}: statics check failed for unit case {u + first_unit}: reactions "
             f"{sum_f[u]:.12g} against loads {load_force[u]:.12g}; result withheld")

@@ -10,6 +10,7 @@ crash never leaves a half-written file under a final name.
 from __future__ import annotations
 
 import hashlib
+import itertools
 import json
 import os
 from collections.abc import Mapping
@@ -80,6 +81,29 @@ def string_column(values: np.ndarray | list[str], null: np.ndarray | None = None
     return pa.Array.from_buffers(kind, codes.size, bufs, null_count=count)
 
 
+#: The Arrow type of every ``_loaded`` column: a dictionary of the distinct texts
+#: (each several kilobytes on a long beam, and repeated over many rows) and one int32
+#: index a row.
+LOADED_TYPE = pa.dictionary(pa.int32(), pa.string())
+
+
+def dictionary_column(values: np.ndarray | list[str],
+                      null: np.ndarray | None = None) -> pa.Array:
+    """Dictionary-encoded string column (:data:`LOADED_TYPE`): each distinct text once,
+    in the order of its first row, and an int32 index per row; ``null`` marks missing
+    entries."""
+    index: dict[str, int] = {}
+    codes = np.fromiter((index.setdefault(v, len(index)) for v in map(str, values)),
+                        dtype=np.int32, count=len(values))
+    bufs: list[pa.Buffer | None] = [None, pa.py_buffer(codes)]
+    count = 0
+    if null is not None and np.any(null):
+        bufs[0] = pa.py_buffer(np.packbits(~np.asarray(null, dtype=bool), bitorder="little"))
+        count = int(np.count_nonzero(null))
+    indices = pa.Array.from_buffers(pa.int32(), codes.size, bufs, null_count=count)
+    return pa.DictionaryArray.from_arrays(indices, string_column(list(index)))
+
+
 def repeated_string(value: str, n: int) -> pa.Array:
     """A string column holding one value n times (the beam id)."""
     return string_column([value] * n)
@@ -105,52 +129,79 @@ def _metadata(analysis: Analysis) -> dict[bytes, bytes]:
 
 
 def _extreme_columns(prefix: str, ext: Extremes | None, cs: CaseSet, n: int,
-                     scale: float, mask: np.ndarray | None = None) -> dict[str, pa.Array]:
+                     scale: float, mask: np.ndarray | None = None,
+                     rows: slice = slice(None)) -> dict[str, pa.Array]:
     """``<prefix>_max``, ``_min`` and their ``_combo`` / ``_loaded`` columns (null where the
-    set is empty or ``mask`` is False)."""
+    set is empty or ``mask`` is False) for the ``n`` rows ``rows`` of ``ext``."""
     if ext is None:
-        null_f = float_column(np.zeros(n), np.ones(n, dtype=bool))
-        null_s = string_column([""] * n, np.ones(n, dtype=bool))
+        null = np.ones(n, dtype=bool)
+        null_f = float_column(np.zeros(n), null)
+        null_s = string_column([""] * n, null)
+        null_d = dictionary_column([""] * n, null)
         return {f"{prefix}_max": null_f, f"{prefix}_min": null_f,
-                f"{prefix}_max_combo": null_s, f"{prefix}_max_loaded": null_s,
-                f"{prefix}_min_combo": null_s, f"{prefix}_min_loaded": null_s}
+                f"{prefix}_max_combo": null_s, f"{prefix}_max_loaded": null_d,
+                f"{prefix}_min_combo": null_s, f"{prefix}_min_loaded": null_d}
     names = np.array([c.name for c in cs.combinations], dtype=object)
-    valid = None if mask is None else ~np.asarray(mask, dtype=bool)
+    valid = None if mask is None else ~np.asarray(mask, dtype=bool)[rows]
 
     def f(v: np.ndarray) -> pa.Array:
-        return float_column(v * scale, valid)
+        return float_column(v[rows] * scale, valid)
 
     def s(v: np.ndarray) -> pa.Array:
-        return string_column(list(v), valid)
+        return string_column(list(v[rows]), valid)
+
+    def d(v: np.ndarray) -> pa.Array:
+        return dictionary_column(list(v[rows]), valid)
 
     return {f"{prefix}_max": f(ext.max), f"{prefix}_min": f(ext.min),
             f"{prefix}_max_combo": s(names[ext.max_combo]),
-            f"{prefix}_max_loaded": s(ext.max_loaded),
+            f"{prefix}_max_loaded": d(ext.max_loaded),
             f"{prefix}_min_combo": s(names[ext.min_combo]),
-            f"{prefix}_min_loaded": s(ext.min_loaded)}
+            f"{prefix}_min_loaded": d(ext.min_loaded)}
+
+
+def envelope_row_groups(analysis: Analysis) -> list[slice]:
+    """The stations of each row group of envelope.parquet: whole spans,
+    :data:`envelope.config.ENVELOPE_ROW_GROUP_SPANS` at a time (one group for an empty
+    table)."""
+    span = analysis.stations.span
+    step = max(1, config.ENVELOPE_ROW_GROUP_SPANS)
+    cuts = np.searchsorted(span, np.arange(step, analysis.beam.n_spans, step), side="left")
+    bounds = [0, *cuts.tolist(), int(span.size)]
+    return [slice(lo, hi) for lo, hi in itertools.pairwise(bounds) if hi > lo] or [
+        slice(0, 0)]
 
 
 def envelope_table(analysis: Analysis) -> pa.Table:
-    """envelope.parquet: one row per station, sorted by x (left side first at a jump)."""
-    pts = analysis.stations
+    """envelope.parquet: one row per station, sorted by x (left side first at a jump).
+
+    Built one row group at a time (:func:`envelope_row_groups`): each is a chunk of
+    the table's columns with its own dictionary of ``_loaded`` texts, and
+    :func:`write_parquet` writes each chunk as one Parquet row group."""
     beam = analysis.beam
-    cols: dict[str, pa.Array] = {
-        "beam": repeated_string(beam.id, pts.n),
-        "span": int_column(pts.span + 1),
-        "x": float_column(pts.x),
-        "x_span": float_column(pts.x_span),
-        "side": string_column(np.where(pts.right, "right", "left")),
-    }
     solved = analysis.solved
-    for q, scale in _ENVELOPE_QUANTITIES:
-        cs = solved.strength if q != "deflection" else solved.service
-        factor = scale if scale is not None else beam.units.deflection_factor
-        cols.update(_extreme_columns(q, analysis.station_envelopes[q], cs, pts.n, factor))
+    parts = []
+    for rows in envelope_row_groups(analysis):
+        pts = analysis.stations.take(rows)
+        cols: dict[str, pa.Array] = {
+            "beam": repeated_string(beam.id, pts.n),
+            "span": int_column(pts.span + 1),
+            "x": float_column(pts.x),
+            "x_span": float_column(pts.x_span),
+            "side": string_column(np.where(pts.right, "right", "left")),
+        }
+        for q, scale in _ENVELOPE_QUANTITIES:
+            cs = solved.strength if q != "deflection" else solved.service
+            factor = scale if scale is not None else beam.units.deflection_factor
+            cols.update(_extreme_columns(q, analysis.station_envelopes[q], cs, pts.n,
+                                         factor, rows=rows))
+        parts.append(make_table(cols))
     from envelope.sketch import encode
 
     meta = _metadata(analysis)
     meta[b"envelope:sketch"] = encode(beam)  # the beam strip of the figure
-    return make_table(cols).replace_schema_metadata(meta)
+    table = parts[0] if len(parts) == 1 else pa.concat_tables(parts)
+    return table.replace_schema_metadata(meta)
 
 
 def reactions_table(analysis: Analysis) -> pa.Table:
@@ -377,7 +428,18 @@ def write_parquet(path: Path, table: pa.Table, durable: bool = True,
     if not checked:
         check_finite(table, str(path))
     table = with_field_units(table)
-    write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
+    write_atomic(path, lambda fh: _write_row_groups(table, fh), durable)
+
+
+def _write_row_groups(table: pa.Table, fh: object) -> None:
+    """``table`` as Parquet, one row group per chunk of its columns (envelope.parquet is
+    built in chunks of whole spans; the other tables have one)."""
+    if table.num_rows == 0:
+        pq.write_table(table, fh)
+        return
+    with pq.ParquetWriter(fh, table.schema) as writer:
+        for batch in table.to_batches():
+            writer.write_batch(batch)
 
 
 def check_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> None:
@@ -414,7 +476,9 @@ def result_columns(result_tables: Mapping[str, pa.Table]) -> dict[str, dict[str,
         cols: dict[str, object] = {}
         for name in table.column_names:
             col = table.column(name)
-            if pa.types.is_string(col.type):
+            if pa.types.is_dictionary(col.type):
+                cols[name] = dictionary_values(col)
+            elif pa.types.is_string(col.type):
                 cols[name] = np.array(col.to_pylist(), dtype=object)
             elif pa.types.is_floating(col.type) or pa.types.is_integer(col.type):
                 cols[name] = numeric_values(col.cast(pa.float64()) if not (
@@ -427,6 +491,19 @@ def result_columns(result_tables: Mapping[str, pa.Table]) -> dict[str, dict[str,
     meta["units"] = json.loads(str(meta.get("envelope:units", "{}")))
     out["meta"] = meta
     return out
+
+
+def dictionary_values(column: pa.ChunkedArray | pa.Array) -> np.ndarray:
+    """A dictionary-encoded string column as an object array whose rows refer to one
+    Python string per distinct text of each chunk (``to_pylist`` would make a string
+    per row); nulls as None."""
+    chunks = column.chunks if isinstance(column, pa.ChunkedArray) else [column]
+    parts = [np.zeros(0, dtype=object)]
+    for a in chunks:
+        texts = np.array([*a.dictionary.to_pylist(), None], dtype=object)
+        codes, valid = _values_and_validity(a.indices)
+        parts.append(texts[np.where(valid, codes, len(texts) - 1).astype(np.int64)])
+    return np.concatenate(parts)
 
 
 def read_results(folder: str | os.PathLike) -> dict[str, dict[str, object]]:

@@ -114,3 +114,81 @@ def test_banded_cholesky_refuses_a_singular_matrix() -> None:
     ab[3, 2] = -1.0
     with pytest.raises(NotPositiveDefinite):
         cholesky_upper(ab)
+
+
+_SETTLED_HINGED = """
+id = "blocks"
+units = "SI"
+[section]
+E = "1 kN/m^2"
+I = "1 m^4"
+[[spans]]
+length = 5.0
+[[spans]]
+length = 4.0
+hinges = [{ at = 1.5 }]
+[[spans]]
+length = 6.0
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "spring"
+k_vertical = 2.0
+[[supports]]
+type = "fixed"
+[cases]
+D = { kind = "dead" }
+L = { kind = "live" }
+S = { kind = "settlement" }
+[[loads]]
+case = "D"
+type = "uniform"
+spans = "all"
+w = 2.0
+[[loads]]
+case = "L"
+type = "point"
+spans = [1, 3]
+P = 3.0
+at = 2.0
+[[loads]]
+case = "L"
+type = "moment"
+spans = 2
+M = 1.5
+at = 0.5
+[[loads]]
+case = "S"
+type = "settlement"
+support = 2
+delta = 0.01
+[[combinations.custom]]
+name = "U"
+set = "strength"
+factors = { D = 1.2, L = 1.6, S = 1.0 }
+[patterning]
+method = "segments"
+segments = 3
+"""
+
+
+@pytest.mark.parametrize("per_block", [1, 2, 5])
+def test_solve_in_blocks_of_unit_cases_equals_one_solve_bit_for_bit(monkeypatch, per_block):
+    """Solving the unit cases a few columns at a time (SOLVE_CHUNK_VALUES) gives the
+    same arrays, bit for bit, as one solve of every column: the solve is column by
+    column (a beam with a hinge, a spring, a fixed end and a settlement)."""
+    from envelope import config
+    from envelope.solved import solve_beam
+    from tests.beams import parse_text
+
+    beam = parse_text(_SETTLED_HINGED)
+    whole = solve_beam(beam).solution
+    monkeypatch.setattr(config, "SOLVE_CHUNK_VALUES", per_block * beam.n_spans)
+    solved = solve_beam(beam)
+    assert solved.unit_cases.n_units > per_block  # really in several blocks
+    blocks = solved.solution
+    for name in ("V0", "M0", "theta1", "v1", "reaction", "reaction_moment"):
+        assert np.array_equal(getattr(blocks, name), getattr(whole, name)), name
+    assert blocks.condition == whole.condition
