@@ -109,6 +109,7 @@ def run_case(text: str, tmp_path: Path, name: str = "edge",
         finite(table, file.name)
         tables[file.stem] = {c: np.asarray(table.column(c).to_pylist(), dtype=object
                                            if pa.types.is_string(table.column(c).type)
+                                           or pa.types.is_dictionary(table.column(c).type)
                                            else float) for c in table.column_names}
         tables[file.stem]["__meta__"] = table.schema.metadata  # type: ignore[assignment]
     assert {"envelope", "reactions", "design", "cases"} <= set(tables)
