@@ -22,6 +22,8 @@ SPAN_KEYS = ("length", *SECTION_KEYS, "sections", "hinges")
 HINGE_KEYS = ("at",)
 STRETCH_KEYS = ("from", "to", *SECTION_KEYS, "h")
 SUPPORT_TYPES: tuple[SupportKind, ...] = get_args(SupportKind)
+#: The seats a support may have (a support's ``seat`` key).
+SEATS: tuple[Seat, ...] = get_args(Seat)
 SUPPORT_KEYS: dict[str, tuple[str, ...]] = {
     "pinned": ("type", "width", "seat"),
     "fixed": ("type", "width", "seat"),
@@ -242,8 +244,8 @@ def support(r: Reader, table: dict[str, Any], key: str) -> Support:
         r.fail(join(key, name), f"unknown key {name!r}{suggest(name, allowed)}")
     width = r.optional(table, key, "width",
                        lambda v, k: r.non_negative(v, k, "length"), 0.0)
-    seat = r.optional(table, key, "seat",
-                      lambda v, k: r.choice(v, k, get_args(Seat), "seat"), "monolithic")
+    seat: Seat = r.optional(table, key, "seat",
+                            lambda v, k: r.choice(v, k, SEATS, "seat"), "monolithic")
     k_vertical, k_rotation = RESTRAINTS[kind]
     if kind != "spring":
         return Support(kind, k_vertical, k_rotation, width, seat)

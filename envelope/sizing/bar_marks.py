@@ -153,7 +153,7 @@ def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np
             continue
         keep = count if count <= 2 else max(2, math.ceil(count * TOP_SHARE))
         ext, ld = (v * to_c for v in extension(d, db, True, min(k, n - 1)))
-        pos = {"keep": [], "cut": []}
+        pos: dict[str, list[float]] = {"keep": [], "cut": []}
         for j, at_left in ((k - 1, False), (k, True)):  # span left of / right of joint k
             if not 0 <= j < n:
                 continue

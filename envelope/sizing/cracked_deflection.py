@@ -368,18 +368,18 @@ class _Spans:
         x = x_c * inputs.to_base_length
         length = beam.spans[j].length * inputs.to_base_length
         m = m_c * inputs.to_base_moment
-        root = "left" if root_left else "right"
+        root_end = "left" if root_left else "right"
         if inputs.code == "aci318-19":
-            flex, missing = _flex_aci(inputs, j, x, length, m, self.ec, self.fr, root)
+            flex, missing = _flex_aci(inputs, j, x, length, m, self.ec, self.fr, root_end)
         else:
             flex = np.empty(m.shape)
             missing = np.zeros(len(stages), dtype=bool)
             for k, (_, phi, beta) in enumerate(stages):
                 f, miss = _flex_en(inputs, j, x, length, m[:, k:k + 1],
                                    float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm,
-                                   root)
+                                   root_end)
                 flex[:, k:k + 1], missing[k] = f, miss[0]
-        shrink = self._shrinkage(j, x, length, m, stages, root)
+        shrink = self._shrinkage(j, x, length, m, stages, root_end)
         root = beam.supports[j if root_left else j + 1]
         # the neighbour shares the root: its right end when the root is the
         # cantilever's left end, and the reverse
@@ -462,12 +462,14 @@ def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
         if kind == "span":
             w, _, _, missing = spans.deflect(j, stages)
         else:
-            w, missing = spans.cantilever(j, stages, root_left=(kind == "cantilever-right"))
-            if missing is None:
+            w, cant_missing = spans.cantilever(j, stages,
+                                               root_left=(kind == "cantilever-right"))
+            if cant_missing is None:
                 failures[j].append("cracked deflection not computed for this cantilever: "
                                    "its root slope is unknown (no neighbouring span "
                                    "supported at both ends)")
                 continue
+            missing = cant_missing
         if missing.any():
             failures[j].append("cracked deflection not computed: the service moment cracks "
                                "a section where no tension steel is provided")

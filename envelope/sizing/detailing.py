@@ -59,6 +59,7 @@ class Params:
     code: str
     bars: Any
     aggregate: float
+    design: ConcreteDesign  # the typed [design] values themselves
     sustained: dict[str, float] = field(default_factory=dict)
     months: float = MONTHS
     creep: float = CREEP
@@ -84,6 +85,7 @@ def params(design: ConcreteDesign, system: str) -> Params:
         limits["incremental"] = dl.incremental
     given = frozenset({"long_term"} if lt.sustained else ())
     return Params(code=code, bars=bars, aggregate=float(design.aggregate or AGGREGATE_MM * mm),
+                  design=design,
                   sustained=dict(lt.sustained), months=float(lt.months),
                   creep=float(lt.creep), shrinkage=lt.shrinkage,
                   crack_width=float(design.crack_width),
@@ -95,7 +97,7 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
               bf: np.ndarray, hf: np.ndarray, h: np.ndarray) -> Any:
     """required(d): tension steel to provide (section units) at depths d (section
     units), by the same sequence as :mod:`envelope.sizing.concrete`."""
-    design = analysis.beam.design
+    design = p.design
     system = analysis.beam.units.name
     fc_s, fy_s = float(design.fc), float(design.fy)
     moment = rows.moment
@@ -156,7 +158,8 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     module docstring)."""
     beam = analysis.beam
     design = beam.design
-    assert isinstance(design, ConcreteDesign)
+    if not isinstance(design, ConcreteDesign):
+        raise ValueError(f"{beam.source}: concrete detailing needs a concrete [design] table")
     system = beam.units.name
     p = params(design, system)
     rows = sized.rows
@@ -214,7 +217,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
                           np.full(rows.n, bw), d_now, side, legs_max,
                           bar_mod.stirrup_set(bar_set, system), system)
     cols["stirrups"] = np.where(ends, st["label"], "").astype(object)
-    for i in np.flatnonzero(ends & ~st["fits"]):
+    for i in np.flatnonzero(ends & ~st["fits"]).tolist():
         failures[i].append("no stirrup arrangement of the set gives the Av/s required "
                            "at 75 mm / 3 in spacing or more: widen the section")
 
@@ -225,7 +228,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     _deflection_columns(analysis, p, defl, cols, units, notes, failures)
     _flags(analysis, rows, p, failures)
     if p.code == "aci318-19" and "long_term" not in p.given:
-        for i in np.flatnonzero(rows.is_span):
+        for i in np.flatnonzero(rows.is_span).tolist():
             notes[i].append("no live load taken as sustained (long_term.sustained not "
                             "given)")
     return Sized(rows, cols, units, notes, failures)
@@ -274,7 +277,8 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
                         f"{low:.1f} {lab['force']} under a strength combination: hold it "
                         f"down and check the support (not designed here)")
                 for i in np.flatnonzero(((rows.span == joint - 1) & (rows.section == "right"))
-                                        | ((rows.span == joint) & (rows.section == "left"))):
+                                        | ((rows.span == joint) & (rows.section == "left"))
+                                        ).tolist():
                     failures[i].append(text)
     n = beam.n_spans
     for j in range(n):
@@ -342,10 +346,10 @@ def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: floa
                          for start, end, depth in (depths.span_profile(beam, j)
                                                    for j in range(n)))
     return cdefl.Inputs(
-        code=p.code, system=system, bw=bw * L, h=float(beam.design.h) * L,
+        code=p.code, system=system, bw=bw * L, h=float(p.design.h) * L,
         bf=flange_w * L, hf=flange_d * L, h_bottom=h_row[mid], h_top_left=h_row[left],
         h_top_right=h_row[right], profiles=profiles,
-        fc=float(beam.design.fc) * s.stress,
+        fc=float(p.design.fc) * s.stress,
         as_bottom=area[mid], d_bottom=d[mid], as_top_left=area[left], d_top_left=d[left],
         as_top_right=area[right], d_top_right=d[right], sustained=p.sustained,
         months=p.months, creep=p.creep, shrinkage=p.shrinkage,
@@ -359,7 +363,7 @@ def _crack_rule(analysis: Analysis, rows: Rows, p: Params, bw: float, h: np.ndar
     ACI 318-19 24.3.2 (fs = 2/3 fy) or EN 1992-1-1 7.3.3 (the steel stress of the
     cracked section under the sustained moment at the section)."""
     system = analysis.beam.units.name
-    design = analysis.beam.design
+    design = p.design
     if p.code == "aci318-19":
         s = ACI_SCALES[system]
         fs = 2.0 / 3.0 * float(design.fy) * s.stress
@@ -399,7 +403,7 @@ def _crack(analysis: Analysis, rows: Rows, p: Params, cols: dict[str, np.ndarray
     failures of the bars chosen."""
     system = analysis.beam.units.name
     su = SECTION_UNITS[system]
-    bw = float(analysis.beam.design.b)
+    bw = float(p.design.b)
     has = chosen["index"] >= 0
     db = np.where(has, chosen["diameter"], np.nan)
     clear = bar_mod.min_clear_spacing(p.code, np.nan_to_num(db), p.aggregate, system)
