@@ -16,6 +16,8 @@ from envelope.casefile import load_case
 from envelope.cli import main
 from envelope.solved import case_responses
 
+from tolerances import LONG_SUM, NEAR_ZERO
+
 REPO = Path(__file__).resolve().parents[1]
 
 
@@ -47,11 +49,11 @@ def test_every_explicit_case_is_the_factored_sum_of_its_load_cases(case: str,
         assert rows.size == n_st
         moment = np.asarray(stations["moment"])[rows]
         shear = np.asarray(stations["shear"])[rows]
-        np.testing.assert_allclose(moment, per_case.moment @ f, rtol=1e-12, atol=1e-9)
-        np.testing.assert_allclose(shear, per_case.shear @ f, rtol=1e-12, atol=1e-9)
+        np.testing.assert_allclose(moment, per_case.moment @ f, rtol=LONG_SUM, atol=NEAR_ZERO)
+        np.testing.assert_allclose(shear, per_case.shear @ f, rtol=LONG_SUM, atol=NEAR_ZERO)
         defl_mm = np.asarray(stations["deflection"])[rows]
-        np.testing.assert_allclose(defl_mm, per_case.deflection @ f * 1000.0, rtol=1e-12,
-                                   atol=1e-9)
+        np.testing.assert_allclose(defl_mm, per_case.deflection @ f * 1000.0, rtol=LONG_SUM,
+                                   atol=NEAR_ZERO)
 
 
 def test_explicit_cases_bound_the_envelope_of_code_patterning(tmp_path: Path) -> None:
@@ -69,5 +71,7 @@ def test_explicit_cases_bound_the_envelope_of_code_patterning(tmp_path: Path) ->
     moment = np.asarray(table["moment"])
     by_case = np.stack([moment[case_ids == i] for i in strength], axis=1)
     assert by_case.shape == (n_st, len(strength))
-    np.testing.assert_allclose(by_case.max(axis=1), env["moment_max"], rtol=1e-12, atol=1e-9)
-    np.testing.assert_allclose(by_case.min(axis=1), env["moment_min"], rtol=1e-12, atol=1e-9)
+    np.testing.assert_allclose(by_case.max(axis=1), env["moment_max"], rtol=LONG_SUM,
+                               atol=NEAR_ZERO)
+    np.testing.assert_allclose(by_case.min(axis=1), env["moment_min"], rtol=LONG_SUM,
+                               atol=NEAR_ZERO)

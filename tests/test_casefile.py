@@ -25,6 +25,8 @@ from envelope.casefile import load_case, parse_case
 from envelope.design import ConcreteDesign, DeflectionLimits, SteelDesign
 from envelope.model import Section, Span, Stretch, Support
 
+from tolerances import ULPS, UNIT_READING
+
 REPO = Path(__file__).resolve().parents[1]
 CASE_FILES = sorted((REPO / "cases").glob("*.toml"))
 
@@ -119,7 +121,7 @@ def test_carpark_case_has_an_overhang_a_spring_with_columns_and_category_F() -> 
     assert spring.kind == "spring" and spring.k_vertical == 2.5e5
     # 4EI/h above and below, far ends fixed (common practice)
     EI = 33000e3 * 2.133e9 * 1e-12
-    assert spring.k_rotation == pytest.approx(4 * EI / 3.0 + 4 * EI / 2.9, rel=1e-12)
+    assert spring.k_rotation == pytest.approx(4 * EI / 3.0 + 4 * EI / 2.9, rel=UNIT_READING)
     assert beam.case("Q").category == "F"
     assert beam.combinations.strength == "en1990-6.10"
     assert beam.patterning.method == "code"
@@ -128,12 +130,12 @@ def test_carpark_case_has_an_overhang_a_spring_with_columns_and_category_F() -> 
 def test_mezzanine_case_reads_unit_strings_in_us_units() -> None:
     beam = load_case(REPO / "cases" / "mezzanine-us.toml")
     assert beam.id == "mezz-B3" and beam.units.name == "US"
-    assert [s.length for s in beam.spans] == pytest.approx([24.0, 24.0, 18.0], rel=1e-12)
-    assert beam.supports[1].width == pytest.approx(10.0 / 12.0, rel=1e-12)
+    assert [s.length for s in beam.spans] == pytest.approx([24.0, 24.0, 18.0], rel=UNIT_READING)
+    assert beam.supports[1].width == pytest.approx(10.0 / 12.0, rel=UNIT_READING)
     rack = [ld for ld in beam.loads if ld.key == "loads[5]"]
     assert len(rack) == 1 and rack[0].span == 2
-    assert rack[0].w_start == rack[0].w_end == pytest.approx(1.2, rel=1e-12)
-    assert (rack[0].start, rack[0].end) == pytest.approx((3.0, 15.0), rel=1e-12)
+    assert rack[0].w_start == rack[0].w_end == pytest.approx(1.2, rel=UNIT_READING)
+    assert (rack[0].start, rack[0].end) == pytest.approx((3.0, 15.0), rel=UNIT_READING)
     assert isinstance(beam.design, SteelDesign) and beam.design.section is not None
     assert beam.design.section.Zx == 141.1
 
@@ -186,13 +188,13 @@ def test_E_as_30_GPa_string_equals_30000_plain_MPa(tmp_path: Path) -> None:
     plain = load_case(simple(tmp_path, E=30000, name="plain.toml"))
     text = load_case(simple(tmp_path, E="30 GPa", name="text.toml"))
     # 30000 MPa = 3.0e7 kN/m^2 (SI prefixes)
-    assert pytest.approx(3.0e7, rel=1e-15) == plain.spans[0].section.E
-    assert pytest.approx(plain.spans[0].section.E, rel=1e-12) == text.spans[0].section.E
+    assert pytest.approx(3.0e7, rel=ULPS) == plain.spans[0].section.E
+    assert pytest.approx(plain.spans[0].section.E, rel=UNIT_READING) == text.spans[0].section.E
 
 
 def test_feet_string_in_an_si_file_converts_to_metres(tmp_path: Path) -> None:
     beam = load_case(simple(tmp_path, L1="24 ft"))
-    assert beam.spans[0].length == pytest.approx(24 * FT, rel=1e-12)  # 7.3152 m
+    assert beam.spans[0].length == pytest.approx(24 * FT, rel=UNIT_READING)  # 7.3152 m
 
 
 def test_plain_end_equal_to_a_feet_span_length_is_accepted(tmp_path: Path) -> None:
@@ -206,9 +208,9 @@ def test_plain_end_equal_to_a_feet_span_length_is_accepted(tmp_path: Path) -> No
 
 def test_us_inertia_in_in4_converts_to_ft4(tmp_path: Path) -> None:
     beam = load_case(simple(tmp_path, units="US", E=29000, I=1.0, L1=20.0, L2=20.0, w=1.0))
-    assert pytest.approx(1.0 / 20736.0, rel=1e-15) == beam.spans[0].section.I
+    assert pytest.approx(1.0 / 20736.0, rel=ULPS) == beam.spans[0].section.I
     # 29000 ksi = 29000 * 144 kip/ft^2 (1 ft^2 = 144 in^2)
-    assert pytest.approx(29000 * 144.0, rel=1e-15) == beam.spans[0].section.E
+    assert pytest.approx(29000 * 144.0, rel=ULPS) == beam.spans[0].section.E
 
 
 def test_us_and_si_descriptions_of_one_beam_give_equal_quantities(tmp_path: Path) -> None:
@@ -269,33 +271,33 @@ service = "characteristic"
     b_si = load_case(write(tmp_path, text("SI", si), "si.toml"))
     s_us, s_si = b_us.spans[0].section, b_si.spans[0].section
     # consistent units: US kip, ft; SI kN, m
-    assert pytest.approx(s_us.E * KIP / FT**2, rel=1e-12) == s_si.E
-    assert pytest.approx(s_us.I * FT**4, rel=1e-12) == s_si.I
-    assert pytest.approx(s_us.A * FT**2, rel=1e-12) == s_si.A
-    assert s_si.unit_weight == pytest.approx(s_us.unit_weight * KIP / FT**3, rel=1e-12)
-    assert pytest.approx(s_us.EI * KIP * FT**2, rel=1e-12) == s_si.EI
+    assert pytest.approx(s_us.E * KIP / FT**2, rel=UNIT_READING) == s_si.E
+    assert pytest.approx(s_us.I * FT**4, rel=UNIT_READING) == s_si.I
+    assert pytest.approx(s_us.A * FT**2, rel=UNIT_READING) == s_si.A
+    assert s_si.unit_weight == pytest.approx(s_us.unit_weight * KIP / FT**3, rel=UNIT_READING)
+    assert pytest.approx(s_us.EI * KIP * FT**2, rel=UNIT_READING) == s_si.EI
     for a, b in zip(b_si.spans, b_us.spans, strict=True):
-        assert a.length == pytest.approx(b.length * FT, rel=1e-12)
+        assert a.length == pytest.approx(b.length * FT, rel=UNIT_READING)
     assert b_si.supports[1].k_vertical == pytest.approx(b_us.supports[1].k_vertical * KIP / FT,
-                                                        rel=1e-12)
+                                                        rel=UNIT_READING)
     assert b_si.supports[1].k_rotation == pytest.approx(b_us.supports[1].k_rotation * KIP * FT,
-                                                        rel=1e-12)
+                                                        rel=UNIT_READING)
     for a, b in zip(b_si.loads, b_us.loads, strict=True):
         assert (a.type, a.span) == (b.type, b.span)
-        assert a.w_start == pytest.approx(b.w_start * KIP / FT, rel=1e-12)
-        assert pytest.approx(b.P * KIP, rel=1e-12) == a.P
-        assert pytest.approx(b.M * KIP * FT, rel=1e-12) == a.M
-        assert a.at == pytest.approx(b.at * FT, rel=1e-12)
-        assert a.end == pytest.approx(b.end * FT, rel=1e-12)
+        assert a.w_start == pytest.approx(b.w_start * KIP / FT, rel=UNIT_READING)
+        assert pytest.approx(b.P * KIP, rel=UNIT_READING) == a.P
+        assert pytest.approx(b.M * KIP * FT, rel=UNIT_READING) == a.M
+        assert a.at == pytest.approx(b.at * FT, rel=UNIT_READING)
+        assert a.end == pytest.approx(b.end * FT, rel=UNIT_READING)
 
 
 def test_us_unit_strings_in_an_si_file_match_the_exact_factors(tmp_path: Path) -> None:
     beam = load_case(simple(tmp_path, E="29000 ksi", I="1330 in^4", L1="24 ft",
                             w="1.2 kip/ft"))
     section = beam.spans[0].section
-    assert pytest.approx(29000 * KIP / IN**2, rel=1e-9) == section.E
-    assert pytest.approx(1330 * IN**4, rel=1e-9) == section.I
-    assert beam.loads[0].w_start == pytest.approx(1.2 * KIP / FT, rel=1e-9)
+    assert pytest.approx(29000 * KIP / IN**2, rel=UNIT_READING) == section.E
+    assert pytest.approx(1330 * IN**4, rel=UNIT_READING) == section.I
+    assert beam.loads[0].w_start == pytest.approx(1.2 * KIP / FT, rel=UNIT_READING)
 
 
 # -- sections -------------------------------------------------------------------
@@ -311,17 +313,17 @@ def test_span_overrides_and_stretches_cover_the_span_in_order(tmp_path: Path) ->
     beam = load_case(write(tmp_path, text))
     first, second = beam.spans
     assert [(s.start, s.end) for s in first.stretches] == [(0.0, 6.0)]
-    assert first.section.E == 3.0e7 and pytest.approx(8.0e-3, rel=1e-12) == first.section.I
+    assert first.section.E == 3.0e7 and pytest.approx(8.0e-3, rel=UNIT_READING) == first.section.I
     pieces = [(s.start, s.end) for s in second.stretches]
     assert pieces == [(0.0, 2.0), (2.0, 3.0), (3.0, 6.0), (6.0, 7.0)]
     # the pieces no stretch covers carry the span's own section (its I override)
     own = second.stretches[0].section
-    assert own.E == 3.0e7 and pytest.approx(9.0e-3, rel=1e-12) == own.I
+    assert own.E == 3.0e7 and pytest.approx(9.0e-3, rel=UNIT_READING) == own.I
     assert second.stretches[2].section == own
     # a stretch inherits what it does not override from its span
     assert pytest.approx(2.0e7) == second.stretches[1].section.E
-    assert pytest.approx(9.0e-3, rel=1e-12) == second.stretches[1].section.I
-    assert pytest.approx(1.4e-2, rel=1e-12) == second.stretches[3].section.I
+    assert pytest.approx(9.0e-3, rel=UNIT_READING) == second.stretches[1].section.I
+    assert pytest.approx(1.4e-2, rel=UNIT_READING) == second.stretches[3].section.I
     assert second.section == second.stretches[0].section
 
 
@@ -366,12 +368,12 @@ def test_spring_columns_give_k_rotation_as_sum_of_4EI_over_h(tmp_path: Path) -> 
     EI = 30000e3 * 5.4e9 * 1e-12  # kN*m^2: 30000 MPa, 5.4e9 mm^4
     both = k_rot('{ E = 30000, I = 5.4e9, height_below = 3.6, height_above = 3.3, '
                  'far_end = "fixed" }')
-    assert both == pytest.approx(4 * EI / 3.6 + 4 * EI / 3.3, rel=1e-12)
+    assert both == pytest.approx(4 * EI / 3.6 + 4 * EI / 3.3, rel=UNIT_READING)
     below_pinned = k_rot('{ E = 30000, I = 5.4e9, height_below = 3.6, far_end = "pinned" }')
-    assert below_pinned == pytest.approx(3 * EI / 3.6, rel=1e-12)
+    assert below_pinned == pytest.approx(3 * EI / 3.6, rel=UNIT_READING)
     above_only = k_rot('{ E = "30 GPa", I = "5.4e9 mm^4", height_above = "3300 mm", '
                        'far_end = "fixed" }')
-    assert above_only == pytest.approx(4 * EI / 3.3, rel=1e-12)
+    assert above_only == pytest.approx(4 * EI / 3.3, rel=UNIT_READING)
 
 
 def test_spring_stiffness_zero_is_allowed(tmp_path: Path) -> None:

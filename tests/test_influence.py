@@ -19,6 +19,7 @@ from envelope.recovery import make_points, stations
 
 import reference as ref
 from beams import beam_text, parse_text
+from tolerances import SMALL_SOLVE
 
 #: Cubic fits from four exact samples and closed-form maxima: agreement to round-off,
 #: relative to the largest value of the line.
@@ -165,7 +166,7 @@ def test_tabulated_shear_line_jumps_by_the_unit_load_at_the_point() -> None:
     beam = _simple(L)
     xi, lines = influence_at(beam, 0, a)
     at = np.flatnonzero(xi == a)
-    assert lines["shear"][at].tolist() == pytest.approx([-a / L, (L - a) / L], abs=1e-12)
+    assert lines["shear"][at].tolist() == pytest.approx([-a / L, (L - a) / L], abs=SMALL_SOLVE)
     want = np.where(xi < a, -xi / L, (L - xi) / L)
     off = xi != a
     assert lines["shear"][off] == pytest.approx(want[off], abs=FIT_RTOL)

@@ -15,6 +15,8 @@ from envelope.casefile import load_case
 from envelope.recovery import QUANTITIES, evaluate_some, make_points, stations
 from envelope.solved import solve_beam
 
+from tolerances import ROUND_OFF
+
 REPO = Path(__file__).resolve().parents[1]
 CASES = sorted((REPO / "cases").glob("*.toml"))
 
@@ -26,7 +28,7 @@ def _compare(beam, points=None) -> None:  # type: ignore[no-untyped-def]
     plain = evaluate_some(s.mesh, s.unit_cases, s.solution, pts, QUANTITIES, kernel=False)
     for q in QUANTITIES:
         scale = max(float(np.abs(plain[q]).max()), 1e-300)
-        np.testing.assert_allclose(fast[q], plain[q], rtol=0, atol=1e-13 * scale, err_msg=q)
+        np.testing.assert_allclose(fast[q], plain[q], rtol=0, atol=ROUND_OFF * scale, err_msg=q)
 
 
 @pytest.mark.parametrize("case", CASES, ids=[c.stem for c in CASES])

@@ -41,6 +41,8 @@ from envelope.model import Beam
 from envelope.recovery import Points, make_points
 from envelope.solved import Solved, case_responses, envelope_at, solve_beam
 
+from tolerances import SMALL_SOLVE
+
 Num = F | str
 DENSE = 100_001  # points per span for maxima and their positions (spacing 1e-5 L)
 
@@ -544,22 +546,22 @@ def test_single_span_segments_give_partial_loading_shear() -> None:
     pts = make_points(seg2.beam, [0, 0], [L / 2, L / 2], [False, True])
     v = envelope_at(seg2.solved, pts, "shear")
     assert v is not None
-    assert np.allclose(v.max, w * L / 8, rtol=0, atol=1e-12)
-    assert np.allclose(v.min, -w * L / 8, rtol=0, atol=1e-12)
+    assert np.allclose(v.max, w * L / 8, rtol=0, atol=SMALL_SOLVE)
+    assert np.allclose(v.min, -w * L / 8, rtol=0, atol=SMALL_SOLVE)
     assert list(v.max_loaded) == ["1.2", "1.2"] and list(v.min_loaded) == ["1.1", "1.1"]
 
     exh = analyse(build(beam_toml(1, method="exhaustive", length=L, w=w)))
     v_full = envelope_at(exh.solved, pts, "shear")
     assert v_full is not None
-    assert np.all(np.abs(v_full.max) <= 1e-12) and np.all(np.abs(v_full.min) <= 1e-12)
+    assert np.all(np.abs(v_full.max) <= SMALL_SOLVE) and np.all(np.abs(v_full.min) <= SMALL_SOLVE)
 
     seg4 = analyse(build(beam_toml(1, method="segments", length=L, w=w,
                                    extra_patterning="segments = 4")))
     x = np.array([L / 4, L / 2, 3 * L / 4])
     v4 = envelope_at(seg4.solved, make_points(seg4.beam, np.zeros(3, int), x), "shear")
     assert v4 is not None
-    assert np.allclose(v4.max, w * (L - x) ** 2 / (2 * L), rtol=0, atol=1e-12)
-    assert np.allclose(v4.min, -w * x**2 / (2 * L), rtol=0, atol=1e-12)
+    assert np.allclose(v4.max, w * (L - x) ** 2 / (2 * L), rtol=0, atol=SMALL_SOLVE)
+    assert np.allclose(v4.min, -w * x**2 / (2 * L), rtol=0, atol=SMALL_SOLVE)
     assert list(v4.max_loaded) == ["1.2 1.3 1.4", "1.3 1.4", "1.4"]
 
 

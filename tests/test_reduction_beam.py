@@ -11,6 +11,7 @@ import envelope
 from envelope.errors import CaseError
 
 from beams import parse_text
+from tolerances import SMALL_SOLVE
 
 TWO_SPANS = """
 units = "SI"
@@ -67,12 +68,12 @@ def test_reduced_live_reactions_and_reported_factor(strength: str, reduction: st
     tables = envelope.tables(result)
     reactions = tables["reactions"].to_pydict()
     assert reactions["unfactored_L"][0] == pytest.approx(3 / 8 * 15.0 * 8.0 * factor,
-                                                         rel=1e-12)
+                                                         rel=SMALL_SOLVE)
     assert reactions["unfactored_L"][1] == pytest.approx(10 / 8 * 15.0 * 8.0 * factor,
-                                                         rel=1e-12)
-    assert reactions["unfactored_D"][0] == pytest.approx(3 / 8 * 10.0 * 8.0, rel=1e-12)
+                                                         rel=SMALL_SOLVE)
+    assert reactions["unfactored_D"][0] == pytest.approx(3 / 8 * 10.0 * 8.0, rel=SMALL_SOLVE)
     assert tables["design"].column("live_reduction").to_pylist() == pytest.approx(
-        [factor, factor], rel=1e-12)
+        [factor, factor], rel=SMALL_SOLVE)
     cases = tables["cases"].to_pydict()
     for factors, reduced in zip(cases["factors"], cases["live_reduction"], strict=True):
         uses_live = json.loads(factors).get("L", 0.0) != 0.0

@@ -15,6 +15,8 @@ import pytest
 from envelope.banded import NotPositiveDefinite, cholesky_upper, solve_upper
 from envelope.solver import element_end_forces, element_end_forces_exact
 
+from tolerances import REARRANGED, ROUND_OFF, SAME_ALGORITHM, ULPS
+
 
 def _exact(length: float, EI: float, de: np.ndarray) -> list[float]:
     """The four end forces of one element, one unit case, in exact arithmetic."""
@@ -72,7 +74,7 @@ def test_exact_and_plain_end_forces_agree_on_ordinary_elements() -> None:
     de = rng.uniform(-1e-2, 1e-2, (7, 4, n))
     a = element_end_forces_exact(length, EI, de)
     b = element_end_forces(length, EI, de)
-    np.testing.assert_allclose(a, b, rtol=0, atol=1e-12 * np.abs(b).max())
+    np.testing.assert_allclose(a, b, rtol=0, atol=REARRANGED * np.abs(b).max())
 
 
 def _random_band(rng: np.random.Generator, n: int, u: int = 3) -> np.ndarray:
@@ -94,15 +96,15 @@ def test_banded_cholesky_equals_scipy(n: int, m: int) -> None:
     b = rng.standard_normal((n, m))
     want_c = scipy_linalg.cholesky_banded(ab, lower=False)
     got_c = cholesky_upper(ab)
-    np.testing.assert_allclose(got_c, want_c, rtol=0, atol=1e-14 * np.abs(want_c).max())
+    np.testing.assert_allclose(got_c, want_c, rtol=0, atol=SAME_ALGORITHM * np.abs(want_c).max())
     want = scipy_linalg.cho_solve_banded((want_c, False), b)
     got = solve_upper(got_c, b)
     assert got.shape == want.shape
     if m:
-        np.testing.assert_allclose(got, want, rtol=0, atol=1e-13 * np.abs(want).max())
+        np.testing.assert_allclose(got, want, rtol=0, atol=ROUND_OFF * np.abs(want).max())
     v = solve_upper(got_c, b[:, 0]) if m else None
     if v is not None:
-        np.testing.assert_allclose(v, got[:, 0], rtol=0, atol=1e-15 * np.abs(want).max())
+        np.testing.assert_allclose(v, got[:, 0], rtol=0, atol=ULPS * np.abs(want).max())
 
 
 def test_banded_cholesky_refuses_a_singular_matrix() -> None:

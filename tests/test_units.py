@@ -22,6 +22,8 @@ import pytest
 from envelope import units
 from envelope.units import MAX_UNIT_TEXT, SI, UNIT_TABLE, US, UnitError, parse_quantity
 
+from tolerances import CONVERSION
+
 REPO = Path(__file__).resolve().parent.parent
 
 #: An independent registry: pint's definitions plus the trade's US load abbreviations.
@@ -36,7 +38,7 @@ def test_every_table_entry_equals_pint(name: str) -> None:
     factor, (length, force) = UNIT_TABLE[name]
     base = f"m ** {length} * N ** {force}" if (length, force) != (0, 0) else "radian"
     reference = REF.Quantity(1.0, name).to(base).magnitude
-    assert float(factor) == pytest.approx(reference, rel=1e-14)
+    assert float(factor) == pytest.approx(reference, rel=CONVERSION)
 
 
 #: Every quantity and the spellings read for it (demo cases, tests, README, contract).
@@ -76,8 +78,8 @@ def test_the_table_reads_each_spelling_as_pint_does(system: units.UnitSystem, qu
     target = system.consistent(quantity).replace("/rad", "")
     reference = REF.Quantity(float(number), text.strip()[len(number):].strip()
                              .replace("^", "**").replace("·", "*")).to(target).magnitude
-    assert fast == pytest.approx(slow, rel=1e-14)
-    assert fast == pytest.approx(reference, rel=1e-14)
+    assert fast == pytest.approx(slow, rel=CONVERSION)
+    assert fast == pytest.approx(reference, rel=CONVERSION)
 
 
 def test_common_spellings_do_not_import_pint() -> None:
@@ -92,7 +94,7 @@ def test_common_spellings_do_not_import_pint() -> None:
 
 
 def test_an_unusual_spelling_falls_back_to_pint() -> None:
-    assert parse_quantity("2 yards", SI, "length") == pytest.approx(1.8288, rel=1e-14)
+    assert parse_quantity("2 yards", SI, "length") == pytest.approx(1.8288, rel=CONVERSION)
     assert parse_quantity("2 kips", US, "force") == 2.0
     assert parse_quantity("1 kN*m/deg", SI, "k_rotation") == pytest.approx(57.29577951308232)
 

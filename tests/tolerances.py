@@ -22,3 +22,32 @@ LONG_SUM = 1e-12
 #: Unit conversions against the exact definitions (NIST SP 811): one or two
 #: multiplications by exact constants, so a few ulps.
 CONVERSION = 1e-14
+
+#: A value one or two correctly rounded operations from an exact one (30000 MPa as
+#: 3.0e7 kN/m^2, 1 in^4 as 1/20736 ft^4, one triangular solve against the same solve
+#: of a matrix of right-hand sides): a few ulps.
+ULPS = 1e-15
+
+#: Two implementations of one algorithm in nearly the same order of operations (the
+#: engine's banded Cholesky against LAPACK's on a diagonally dominant matrix): only
+#: reordered or fused operations differ, a few dozen ulps of the largest entry.
+SAME_ALGORITHM = 1e-14
+
+#: A value read through the case file's units (a unit string parsed, its factor
+#: composed from the definitions, times the reader's own scale) against the same value
+#: from exact factors by hand: a few dozen ulps; far below any slip of a factor.
+UNIT_READING = 1e-12
+
+#: One quantity by two algebraically equal formulas over inputs of widely different
+#: size (element end forces from the exact and the fast expressions, EI from 1e3 to
+#: 1e6): cancellation between terms costs up to a few thousand ulps of the largest.
+REARRANGED = 1e-12
+
+#: One banded solve of a small, well-conditioned beam (one to three prismatic spans,
+#: no stiffness contrast, values of order one) against a closed form: round-off stays
+#: near 1e-14; a thousand times tighter than SOLVE, which allows for stiff contrasts.
+SMALL_SOLVE = 1e-12
+
+#: An absolute floor for result-table values that cancel to zero (output units:
+#: kN*m, kN, mm, values up to about 1e3): round-off of 1e3 at LONG_SUM.
+NEAR_ZERO = 1e-9
