@@ -52,18 +52,27 @@ def beam_text(
     loads: Sequence[Mapping[str, Any]],
     *,
     section: Mapping[str, Any] = UNIT_EI,
-    cases: Mapping[str, str] | None = None,
+    cases: Mapping[str, str | Mapping[str, Any]] | None = None,
+    units: str = "SI",
+    combinations: Mapping[str, Any] | None = None,
+    patterning: Mapping[str, Any] | None = None,
+    output: Mapping[str, Any] | None = None,
+    design: Mapping[str, Any] | None = None,
 ) -> str:
-    """A whole SI case file.
+    """A whole case file (SI unless ``units`` says ``"US"``).
 
     ``spans``: lengths in m, or tables of span keys (a ``sections`` entry is a list of
     stretch tables, written as ``[[spans.sections]]``).  ``supports``: a type name or a
     support table.  ``loads``: load tables; ``case`` defaults to ``"D"``.  ``cases``:
-    name -> kind, default one dead case ``D``.  Combinations: none for strength, the
+    name -> kind, or name -> table of case keys; default one dead case ``D``.
+    ``combinations``: the ``[combinations]`` table, default none for strength and the
     characteristic service set, so every case can be read with ``case_responses``.
+    ``patterning``, ``output`` and ``design``: those tables, left out when None.
     """
     cases = {"D": "dead"} if cases is None else cases
-    parts = ['units = "SI"\n', _table("[section]", section)]
+    if combinations is None:
+        combinations = {"strength": "none", "service": "characteristic"}
+    parts = [f"units = {toml_value(units)}\n", _table("[section]", section)]
     for sp in spans:
         table = {"length": sp} if isinstance(sp, int | float) else dict(sp)
         stretches = table.pop("sections", ())
@@ -71,10 +80,15 @@ def beam_text(
         parts.extend(_table("[[spans.sections]]", st) for st in stretches)
     for su in supports:
         parts.append(_table("[[supports]]", {"type": su} if isinstance(su, str) else su))
-    parts.append(_table("[cases]", {name: {"kind": kind} for name, kind in cases.items()}))
+    parts.append(_table("[cases]", {name: {"kind": kind} if isinstance(kind, str) else kind
+                                    for name, kind in cases.items()}))
     for ld in loads:
         parts.append(_table("[[loads]]", {"case": "D", **ld}))
-    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n')
+    parts.append(_table("[combinations]", combinations))
+    for header, table in (("[patterning]", patterning), ("[output]", output),
+                          ("[design]", design)):
+        if table is not None:
+            parts.append(_table(header, table))
     return "\n".join(parts)
 
 
