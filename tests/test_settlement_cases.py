@@ -10,45 +10,32 @@ ends.  EN 1990:2002 Table A1.2(B): G at 1.35 or 1.00, the settlement at gamma_G,
 
 from __future__ import annotations
 
+from typing import Any
+
 import pytest
 
 import envelope
 from envelope.errors import CaseError
 
-from beams import parse_text
+from beams import beam_text, parse_text
+from tolerances import SOLVE
 
-TEXT = """
-units = "SI"
-[section]
-E = "1 kN/m^2"
-I = "1e5 m^4"
-[[spans]]
-length = 6.0
-[[spans]]
-length = 6.0
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-G = { kind = "dead" }
-S1 = { kind = "settlement" }
-[[loads]]
-case = "G"
-type = "uniform"
-spans = "all"
-w = 10.0
-[[loads]]
-case = "S1"
-type = "settlement"
-support = 2
-delta = "10 mm"
-[combinations]
-strength = "en1990-6.10"
-service = "characteristic"
-"""
+
+def settling(strength: str = "en1990-6.10", s1: str | dict[str, Any] = "settlement",
+             settlement: dict[str, Any] | None = None, middle: str = "pinned") -> str:
+    """Two 6 m spans on three supports, EI = 1e5 kN*m^2: dead 10 kN/m on both and the
+    middle support settling 10 mm (case S1); the arguments change one thing each."""
+    return beam_text(
+        [6.0, 6.0], ["pinned", middle, "pinned"],
+        [{"case": "G", "type": "uniform", "spans": "all", "w": 10.0},
+         {"case": "S1", "type": "settlement", "support": 2, "delta": "10 mm",
+          **(settlement or {})}],
+        section={"E": "1 kN/m^2", "I": "1e5 m^4"},
+        cases={"G": "dead", "S1": s1},
+        combinations={"strength": strength, "service": "characteristic"})
+
+
+TEXT = settling()
 EI, L, W, DELTA = 1e5, 6.0, 10.0, 0.01
 
 
@@ -59,40 +46,37 @@ def test_settlement_acts_at_1_20_only_where_unfavourable() -> None:
     i = next(k for k, (s, x) in enumerate(zip(env["span"], env["x_span"], strict=True))
              if s == 1 and x == L)
     m_g, m_s = -W * L**2 / 8, 3 * EI * DELTA / L**2
-    assert env["moment_max"][i] == pytest.approx(1.0 * m_g + 1.2 * m_s, rel=1e-9)
-    assert env["moment_min"][i] == pytest.approx(1.35 * m_g, rel=1e-9)
+    assert env["moment_max"][i] == pytest.approx(1.0 * m_g + 1.2 * m_s, rel=SOLVE)
+    assert env["moment_min"][i] == pytest.approx(1.35 * m_g, rel=SOLVE)
     reactions = tables["reactions"].to_pydict()
     r_g, r_s = 3 / 8 * W * L, 3 * EI * DELTA / L**3
-    assert reactions["reaction_max"][0] == pytest.approx(1.35 * r_g + 1.2 * r_s, rel=1e-9)
-    assert reactions["reaction_min"][0] == pytest.approx(1.0 * r_g, rel=1e-9)
-    assert reactions["unfactored_S1"][1] == pytest.approx(-6 * EI * DELTA / L**3, rel=1e-9)
+    assert reactions["reaction_max"][0] == pytest.approx(1.35 * r_g + 1.2 * r_s, rel=SOLVE)
+    assert reactions["reaction_min"][0] == pytest.approx(1.0 * r_g, rel=SOLVE)
+    assert reactions["unfactored_S1"][1] == pytest.approx(-6 * EI * DELTA / L**3, rel=SOLVE)
     # service: the settlement at 1.0 where it deflects the beam more (the middle support
     # itself moves down by delta)
     j = env["x"].index(L)
-    assert env["deflection_max"][j] == pytest.approx(DELTA * 1000.0, rel=1e-9)
+    assert env["deflection_max"][j] == pytest.approx(DELTA * 1000.0, rel=SOLVE)
 
 
 def test_asce_rows_take_the_settlement_at_1_0() -> None:
-    text = TEXT.replace('strength = "en1990-6.10"', 'strength = "asce7-lrfd"')
+    text = settling(strength="asce7-lrfd")
     tables = envelope.tables(envelope.analyse(parse_text(text)))
     env = tables["envelope"].to_pydict()
     i = next(k for k, (s, x) in enumerate(zip(env["span"], env["x_span"], strict=True))
              if s == 1 and x == L)
     m_g, m_s = -W * L**2 / 8, 3 * EI * DELTA / L**2
     # ASCE 7-22 2.3.1: 1.4D alone (1.2D needs L, Lr, S, R or W with it)
-    assert env["moment_max"][i] == pytest.approx(1.4 * m_g + 1.0 * m_s, rel=1e-9)
+    assert env["moment_max"][i] == pytest.approx(1.4 * m_g + 1.0 * m_s, rel=SOLVE)
 
 
-@pytest.mark.parametrize(("old", "new", "message"), [
-    ('S1 = { kind = "settlement" }', 'S1 = { kind = "dead" }', "kind 'settlement'"),
-    ('S1 = { kind = "settlement" }', 'S1 = { kind = "settlement", pattern = true }',
-     "not patterned"),
-    ("support = 2", "support = 4", "support"),
-    ('delta = "10 mm"', "delta = 0.0", "zero"),
-    ('type = "pinned"\n[[supports]]\ntype = "pinned"\n[[supports]]\ntype = "pinned"',
-     'type = "pinned"\n[[supports]]\ntype = "free"\n[[supports]]\ntype = "pinned"',
-     "nothing settles"),
+@pytest.mark.parametrize(("change", "message"), [
+    ({"s1": "dead"}, "kind 'settlement'"),
+    ({"s1": {"kind": "settlement", "pattern": True}}, "not patterned"),
+    ({"settlement": {"support": 4}}, "support"),
+    ({"settlement": {"delta": 0.0}}, "zero"),
+    ({"middle": "free"}, "nothing settles"),
 ])
-def test_bad_settlements_are_refused(old: str, new: str, message: str) -> None:
+def test_bad_settlements_are_refused(change: dict[str, Any], message: str) -> None:
     with pytest.raises(CaseError, match=message):
-        parse_text(TEXT.replace(old, new))
+        parse_text(settling(**change))
