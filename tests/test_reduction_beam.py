@@ -4,47 +4,31 @@ the reduced load, the factor in design.parquet and cases.parquet, refusals."""
 from __future__ import annotations
 
 import json
+from typing import Any
 
 import pytest
 
 import envelope
 from envelope.errors import CaseError
+from envelope.model import Beam
 
-from beams import parse_text
+from beams import beam_text, parse_text
 from tolerances import SMALL_SOLVE
 
-TWO_SPANS = """
-units = "SI"
-[section]
-E = 30000
-I = 8.0e9
-[[spans]]
-length = 8.0
-[[spans]]
-length = 8.0
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-D = {{ kind = "dead" }}
-L = {{ kind = "live", reduction = {reduction} }}
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 10.0
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 15.0
-[combinations]
-strength = "{strength}"
-service = "characteristic"
-"""
+
+def two_spans(reduction: dict[str, Any], strength: str = "asce7-lrfd",
+              dead: dict[str, Any] | None = None) -> str:
+    """Two 8 m spans on pins: dead 10 and live 15 kN/m on both, the live case with the
+    ``reduction`` table (and the dead case with ``dead``'s keys, where given)."""
+    return beam_text(
+        [8.0, 8.0], ["pinned"] * 3,
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 10.0},
+         {"case": "L", "type": "uniform", "spans": "all", "w": 15.0}],
+        section={"E": 30000, "I": 8.0e9},
+        cases={"D": {"kind": "dead", **(dead or {})},
+               "L": {"kind": "live", "reduction": reduction}},
+        combinations={"strength": strength, "service": "characteristic"})
+
 
 #: ASCE 7-22 Eq. (4.7-1M): 8 m x 6 m per span, KLL = 2: 0.25 + 4.57 / sqrt(96).
 ASCE_FACTOR = 0.25 + 4.57 / 96.0**0.5
@@ -52,15 +36,15 @@ ASCE_FACTOR = 0.25 + 4.57 / 96.0**0.5
 EN_FACTOR = 0.5 + 10.0 / 48.0
 
 
-def _beam(reduction: str, strength: str = "asce7-lrfd"):  # type: ignore[no-untyped-def]
-    return parse_text(TWO_SPANS.format(reduction=reduction, strength=strength))
+def _beam(reduction: dict[str, Any], strength: str = "asce7-lrfd") -> Beam:
+    return parse_text(two_spans(reduction, strength))
 
 
 @pytest.mark.parametrize(("strength", "reduction", "factor"), [
-    ("asce7-lrfd", "{ tributary_width = 6.0, kll = 2 }", ASCE_FACTOR),
-    ("en1990-6.10", "{ tributary_width = 6.0 }", EN_FACTOR),
+    ("asce7-lrfd", {"tributary_width": 6.0, "kll": 2}, ASCE_FACTOR),
+    ("en1990-6.10", {"tributary_width": 6.0}, EN_FACTOR),
 ])
-def test_reduced_live_reactions_and_reported_factor(strength: str, reduction: str,
+def test_reduced_live_reactions_and_reported_factor(strength: str, reduction: dict[str, Any],
                                                     factor: float) -> None:
     """Two equal spans, w on both: end reaction 3/8 wL, middle 10/8 wL (common
     practice); the live case's reactions scale by the factor, the dead case's not."""
@@ -83,26 +67,25 @@ def test_reduced_live_reactions_and_reported_factor(strength: str, reduction: st
 
 def test_small_area_is_not_reduced() -> None:
     """KLL AT = 8 x 2 x 2 = 32 m^2 < 37.16 m^2: no reduction (ASCE 7-22 4.7.3)."""
-    result = envelope.analyse(_beam("{ tributary_width = 2.0, kll = 2 }"))
+    result = envelope.analyse(_beam({"tributary_width": 2.0, "kll": 2}))
     assert envelope.tables(result)["design"].column("live_reduction").to_pylist() == [1.0, 1.0]
 
 
 @pytest.mark.parametrize(("reduction", "message"), [
-    ("{ tributary_width = 6.0 }", "kll is required"),
-    ("{ tributary_width = 6.0, kll = 5 }", "KLL is 1 to 4"),
-    ("{ tributary_width = -1.0, kll = 2 }", "tributary_width"),
-    ("{ tributary_width = 6.0, kll = 2, occupancy = \"stadium\" }", "occupancy"),
-    ("{ width = 6.0, kll = 2 }", "unknown key"),
+    ({"tributary_width": 6.0}, "kll is required"),
+    ({"tributary_width": 6.0, "kll": 5}, "KLL is 1 to 4"),
+    ({"tributary_width": -1.0, "kll": 2}, "tributary_width"),
+    ({"tributary_width": 6.0, "kll": 2, "occupancy": "stadium"}, "occupancy"),
+    ({"width": 6.0, "kll": 2}, "unknown key"),
 ])
-def test_bad_reduction_is_refused_at_its_key(reduction: str, message: str) -> None:
+def test_bad_reduction_is_refused_at_its_key(reduction: dict[str, Any], message: str) -> None:
     with pytest.raises(CaseError, match=message) as err:
         _beam(reduction)
     assert "cases.L.reduction" in str(err.value)
 
 
 def test_reduction_only_on_live_cases() -> None:
-    text = TWO_SPANS.format(reduction="{ tributary_width = 6.0, kll = 2 }",
-                            strength="asce7-lrfd").replace(
-        'D = { kind = "dead" }', 'D = { kind = "dead", reduction = { tributary_width = 6.0 } }')
+    text = two_spans({"tributary_width": 6.0, "kll": 2},
+                     dead={"reduction": {"tributary_width": 6.0}})
     with pytest.raises(CaseError, match="kind 'live'"):
         parse_text(text)
