@@ -41,19 +41,20 @@ from envelope.model import Beam
 from envelope.recovery import Points, make_points
 from envelope.solved import Solved, case_responses, envelope_at, solve_beam
 
-from tolerances import SMALL_SOLVE
+from beams import beam_text
+from tolerances import SMALL_SOLVE, SOLVE
 
 Num = F | str
 DENSE = 100_001  # points per span for maxima and their positions (spacing 1e-5 L)
 
 
 def target(value: Num) -> tuple[float, float]:
-    """A reference value and its tolerance: exact to 1e-12, printed to half a unit
-    in the last printed digit (plus 1e-12 for rounding noise)."""
+    """A reference value and its tolerance: exact to SMALL_SOLVE, printed to half a
+    unit in the last printed digit (plus SMALL_SOLVE for rounding noise)."""
     if isinstance(value, F):
-        return float(value), 1e-12
+        return float(value), SMALL_SOLVE
     decimals = len(value.split(".")[1]) if "." in value else 0
-    return float(value), 0.5 * 10.0**-decimals + 1e-12
+    return float(value), 0.5 * 10.0**-decimals + SMALL_SOLVE
 
 
 def assert_ref(got: float, value: Num, what: str, extra_tol: float = 0.0) -> None:
@@ -61,25 +62,23 @@ def assert_ref(got: float, value: Num, what: str, extra_tol: float = 0.0) -> Non
     assert abs(got - expected) <= tol + extra_tol, f"{what}: got {got!r}, expected {value}"
 
 
-def beam_toml(n: int, *, loaded: str = '"all"', kind: str = "live", method: str = "none",
-              length: float = 1.0, w: float = 1.0, EI: float = 1.0,
-              extra_patterning: str = "", service: bool = False, stations: int = 21) -> str:
-    """n equal pinned spans, one load case "L" of intensity w on ``loaded`` spans and a
-    custom strength combination {L = 1.0} (plus a service one if asked)."""
-    lines = ['units = "SI"', "[section]", f'E = "{EI!r} kN/m^2"', 'I = "1 m^4"']
-    lines += ["[[spans]]", f"length = {length!r}"] * n
-    lines += ["[[supports]]", 'type = "pinned"'] * (n + 1)
-    lines += ["[cases]", f'L = {{ kind = "{kind}" }}',
-              "[[loads]]", 'case = "L"', 'type = "uniform"', f"spans = {loaded}", f"w = {w!r}",
-              "[combinations]", 'strength = "none"', 'service = "none"',
-              "[[combinations.custom]]", 'name = "L only"', 'set = "strength"',
-              "factors = { L = 1.0 }"]
+def beam_toml(n: int, *, loaded: str | list[int] = "all", kind: str = "live",
+              method: str = "none", length: float = 1.0, w: float = 1.0, EI: float = 1.0,
+              segments: int | None = None, service: bool = False, stations: int = 21) -> str:
+    """n equal pinned spans, one load case "L" of intensity w on ``loaded`` spans (1-based,
+    or ``"all"``) and a custom strength combination {L = 1.0} (plus a service one if
+    asked)."""
+    custom = [{"name": "L only", "set": "strength", "factors": {"L": 1.0}}]
     if service:
-        lines += ["[[combinations.custom]]", 'name = "L service"', 'set = "service"',
-                  "factors = { L = 1.0 }"]
-    lines += ["[patterning]", f'method = "{method}"', extra_patterning,
-              "[output]", f"stations_per_span = {stations}"]
-    return "\n".join(lines) + "\n"
+        custom.append({"name": "L service", "set": "service", "factors": {"L": 1.0}})
+    patterning: dict[str, object] = {"method": method}
+    if segments is not None:
+        patterning["segments"] = segments
+    return beam_text([length] * n, ["pinned"] * (n + 1),
+                     [{"case": "L", "type": "uniform", "spans": loaded, "w": w}],
+                     section={"E": f"{EI!r} kN/m^2", "I": "1 m^4"}, cases={"L": kind},
+                     combinations={"strength": "none", "service": "none", "custom": custom},
+                     patterning=patterning, output={"stations_per_span": stations})
 
 
 def build(text: str) -> Beam:
@@ -87,10 +86,11 @@ def build(text: str) -> Beam:
 
 
 @cache
-def live_analysis(n: int, method: str, stations: int = 21, extra: str = "") -> Analysis:
+def live_analysis(n: int, method: str, stations: int = 21,
+                  segments: int | None = None) -> Analysis:
     """Live-only analysis of n unit spans (L = 1, w = 1, EI = 1), strength and service."""
     return analyse(build(beam_toml(n, method=method, service=True, stations=stations,
-                                   extra_patterning=extra)))
+                                   segments=segments)))
 
 
 def dense_points(solved: Solved, span: int, m: int = DENSE, right: bool = True) -> Points:
@@ -216,8 +216,7 @@ def test_single_case_on_listed_spans_matches_handbook_pattern(
     """A non-patterned case placed on the listed spans only (references 3.3, [D];
     2- and 3-span rows AISC Table 3-23 [M])."""
     L, w, EI = scale
-    loaded = "[" + ", ".join(str(s) for s in pat.loaded) + "]"
-    beam = build(beam_toml(pat.n, loaded=loaded, kind="dead", length=L, w=w, EI=EI))
+    beam = build(beam_toml(pat.n, loaded=list(pat.loaded), kind="dead", length=L, w=w, EI=EI))
     solved = solve_beam(beam)
     x_unit = np.linspace(0.0, 1.0, DENSE)
     resp = [case_responses(solved, dense_points(solved, j)) for j in range(pat.n)]
@@ -236,7 +235,7 @@ def test_single_case_on_listed_spans_matches_handbook_pattern(
     for joint, value in pat.reaction.items():
         assert_ref(reaction[joint - 1], value, f"reaction at joint {joint}")
     # statics: the reactions carry the load (w on each loaded span)
-    assert abs(reaction.sum() - len(pat.loaded)) <= 1e-12
+    assert abs(reaction.sum() - len(pat.loaded)) <= SMALL_SOLVE
 
     for span, (value, pos) in pat.span_max.items():
         m = resp[span - 1].moment[:, 0] / m_scale
@@ -357,7 +356,7 @@ def test_envelope_table_carries_the_pattern_label_and_combination() -> None:
     table = envelope.tables(a)["envelope"].to_pylist()
     rows = [r for r in table if r["span"] == 1 and abs(r["x_span"] - 0.45) <= 1e-12]
     assert len(rows) == 1
-    assert abs(rows[0]["moment_max"] - 81 / 800) <= 1e-12
+    assert abs(rows[0]["moment_max"] - 81 / 800) <= SMALL_SOLVE
     assert rows[0]["moment_max_loaded"] == "1 3"
     assert rows[0]["moment_max_combo"] == "L only"
 
@@ -523,7 +522,7 @@ def test_code_envelope_never_exceeds_exhaustive(n: int) -> None:
 def test_segments_envelope_is_at_least_as_severe_as_exhaustive(n: int) -> None:
     # Every full-span subset is also a subset of segments (section 2: exact extremes
     # near inflection points and shears away from supports need partial loading [P]).
-    seg = live_analysis(n, "segments", extra="segments = 4")
+    seg = live_analysis(n, "segments", segments=4)
     exh = live_analysis(n, "exhaustive")
     assert_at_least_as_severe(seg, exh, f"{n} spans, 4 segments")
     mid = make_points(seg.beam, np.arange(n), np.full(n, 0.5))
@@ -541,8 +540,7 @@ def test_single_span_segments_give_partial_loading_shear() -> None:
     # from x to the right support; at midspan wL/8 (right half loaded, label "1.2"),
     # and -wL/8 with the left half loaded.  Full-span loading gives 0 at midspan.
     L, w = 6.0, 4.0
-    seg2 = analyse(build(beam_toml(1, method="segments", length=L, w=w,
-                                   extra_patterning="segments = 2")))
+    seg2 = analyse(build(beam_toml(1, method="segments", length=L, w=w, segments=2)))
     pts = make_points(seg2.beam, [0, 0], [L / 2, L / 2], [False, True])
     v = envelope_at(seg2.solved, pts, "shear")
     assert v is not None
@@ -555,8 +553,7 @@ def test_single_span_segments_give_partial_loading_shear() -> None:
     assert v_full is not None
     assert np.all(np.abs(v_full.max) <= SMALL_SOLVE) and np.all(np.abs(v_full.min) <= SMALL_SOLVE)
 
-    seg4 = analyse(build(beam_toml(1, method="segments", length=L, w=w,
-                                   extra_patterning="segments = 4")))
+    seg4 = analyse(build(beam_toml(1, method="segments", length=L, w=w, segments=4)))
     x = np.array([L / 4, L / 2, 3 * L / 4])
     v4 = envelope_at(seg4.solved, make_points(seg4.beam, np.zeros(3, int), x), "shear")
     assert v4 is not None
@@ -570,45 +567,17 @@ def test_single_span_segments_give_partial_loading_shear() -> None:
 
 def two_span_dead_live(method: str, favourable: float, L: float, wd: float,
                        wl: float) -> str:
-    return f"""
-units = "SI"
-[section]
-E = 30000
-I = 5.0e9
-[[spans]]
-length = {L!r}
-[[spans]]
-length = {L!r}
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-D = {{ kind = "dead" }}
-L = {{ kind = "live" }}
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = {wd!r}
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = {wl!r}
-[combinations]
-strength = "none"
-service = "none"
-  [[combinations.custom]]
-  name = "1.35D + 1.5L"
-  set = "strength"
-  factors = {{ D = 1.35, L = 1.5 }}
-[patterning]
-method = "{method}"
-favourable_dead = {favourable!r}
-"""
+    """Two equal pinned spans, dead ``wd`` and live ``wl`` on both, one strength
+    combination 1.35D + 1.5L, the dead factor on unloaded spans ``favourable``."""
+    return beam_text(
+        [L, L], ["pinned"] * 3,
+        [{"case": "D", "type": "uniform", "spans": "all", "w": wd},
+         {"case": "L", "type": "uniform", "spans": "all", "w": wl}],
+        section={"E": 30000, "I": 5.0e9}, cases={"D": "dead", "L": "live"},
+        combinations={"strength": "none", "service": "none",
+                      "custom": [{"name": "1.35D + 1.5L", "set": "strength",
+                                  "factors": {"D": 1.35, "L": 1.5}}]},
+        patterning={"method": method, "favourable_dead": favourable})
 
 
 @pytest.mark.parametrize("method", ["code", "exhaustive"])
@@ -634,18 +603,18 @@ def test_favourable_dead_on_the_unloaded_span(method: str, favourable: float) ->
     assert abs(ext.max[k] - expected) <= 1e-7, (ext.max[k], expected)
     assert abs(x[k] - r_a / q1) <= L * 1e-5
     assert ext.max_loaded[k] == "1"
-    assert abs(a.design_actions["moment_pos"][0] - expected) <= 1e-9 * expected
+    assert abs(a.design_actions["moment_pos"][0] - expected) <= SOLVE * expected
     # span 2, midspan, least sagging (same arrangement): Clapeyron for two equal spans,
     # M_B = -(q1 + q2) L^2 / 16, then M(L/2) = M_B / 2 + q2 L^2 / 8
     mid = envelope_at(a.solved, make_points(a.beam, [1], [L / 2]), "moment")
     assert mid is not None
     m_b = -(q1 + q2) * L**2 / 16
-    assert abs(mid.min[0] - (m_b / 2 + q2 * L**2 / 8)) <= 1e-9 * abs(m_b)
+    assert abs(mid.min[0] - (m_b / 2 + q2 * L**2 / 8)) <= SOLVE * abs(m_b)
     assert mid.min_loaded[0] == "1"
     # the support moment still takes both spans fully loaded: -q1 L^2 / 8 (3.2, n = 2)
     sup = envelope_at(a.solved, support_points(a.solved), "moment")
     assert sup is not None
-    assert abs(sup.min[0] + q1 * L**2 / 8) <= 1e-9 * q1 * L**2
+    assert abs(sup.min[0] + q1 * L**2 / 8) <= SOLVE * q1 * L**2
     assert sup.min_loaded[0] == "all"
 
 
@@ -664,10 +633,11 @@ def test_cases_table_lists_the_code_arrangements_of_three_spans() -> None:
     assert all(r["factors"] == '{"L": 1.0}' for r in rows)
 
 
-@pytest.mark.parametrize(("method", "extra"), [("exhaustive", ""), ("segments", "segments = 3")])
-def test_cases_table_says_any_for_the_superposition_methods(method: str, extra: str) -> None:
+@pytest.mark.parametrize(("method", "segments"), [("exhaustive", None), ("segments", 3)])
+def test_cases_table_says_any_for_the_superposition_methods(method: str,
+                                                            segments: int | None) -> None:
     # outputs contract, cases.parquet: "any" where the method envelopes all subsets
-    a = live_analysis(3, method, extra=extra)
+    a = live_analysis(3, method, segments=segments)
     rows = envelope.tables(a)["cases"].to_pylist()
     assert [(r["set"], r["combination"], r["loaded"]) for r in rows] == [
         ("strength", "L only", "any"), ("service", "L service", "any")]
