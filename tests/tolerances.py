@@ -51,3 +51,14 @@ SMALL_SOLVE = 1e-12
 #: An absolute floor for result-table values that cancel to zero (output units:
 #: kN*m, kN, mm, values up to about 1e3): round-off of 1e3 at LONG_SUM.
 NEAR_ZERO = 1e-9
+
+#: A value integrated along elements by another route (a composite quadrature exact
+#: for the integrand's degree, over a few thousand points; a response recovered inside
+#: an element against the same point made a node): round-off of the longer sums, an
+#: order above LONG_SUM.
+INTEGRATED = 1e-11
+
+#: Deflections and rotations of one solve against a closed form: displacements carry
+#: the round-off of the solve times the stiffness matrix's condition (about 1e3 to 1e4
+#: for a few elements of EI = 1), so a digit or two less than forces (SMALL_SOLVE).
+DISPLACEMENT = 1e-10
