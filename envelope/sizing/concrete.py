@@ -58,7 +58,7 @@ def min_steel_width(analysis: Analysis, rows: Rows, h: np.ndarray | None = None
     zone, here of the gross section above its centroid (of depth ``h`` per row, the
     ``[design]`` h where None)."""
     design = analysis.beam.design
-    assert design is not None
+    assert isinstance(design, ConcreteDesign)  # sized as concrete: [design] says so
     b = float(design.b)
     out = np.full(rows.n, b)
     if design.flange_width is None or design.flange_depth is None:
