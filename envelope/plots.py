@@ -30,7 +30,7 @@ from __future__ import annotations
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import matplotlib as mpl
 import numpy as np
@@ -46,6 +46,9 @@ from envelope.files import write_atomic
 from envelope.glyphs import CachedTextCanvas
 from envelope.raster import figure_png
 from envelope.sketch import decode
+
+if TYPE_CHECKING:
+    from matplotlib.typing import RcKeyType
 
 Columns = Mapping[str, Any]
 
@@ -76,9 +79,10 @@ FILL = "#ece6da"
 FACE_COLOUR = "#9a7b4f"
 SIZED_COLOUR = "#3f7f4f"
 CASE_COLOURS = ("#7a6a58", "#b5651d", "#4f7a8a", "#8a4f7a", "#5f7a3a", "#8a7a2f")
-STYLE = {"svg.fonttype": "none", "pdf.fonttype": 42, "ps.fonttype": 42,
-         "svg.hashsalt": "envelope",  # the same ids on every run: reproducible files
-         "font.size": 8, "axes.linewidth": 0.7, "text.usetex": False}
+STYLE: dict[RcKeyType, Any] = {
+    "svg.fonttype": "none", "pdf.fonttype": 42, "ps.fonttype": 42,
+    "svg.hashsalt": "envelope",  # the same ids on every run: reproducible files
+    "font.size": 8, "axes.linewidth": 0.7, "text.usetex": False}
 
 _CONTROL = {c: "?" for c in range(32)} | {0x7f: "?"}
 
@@ -293,7 +297,7 @@ def _panel_axes(fig: Figure, heights: Sequence[float], top: float, bottom: float
     gap = 0.12
     usable = h * fh - top - bottom - gap * (len(heights) - 1)
     scale = usable / sum(heights)
-    axes = []
+    axes: list[Any] = []
     y = y0 * fh + h * fh - top
     for height in heights:
         hh = height * scale
@@ -646,7 +650,9 @@ def _face_values(sk: Mapping[str, Any] | None, code: str) -> bool:
     supports (ACI 318-19 9.4.2.1, EN 1992-1-1 5.3.2.2(3)), not steel over its bearing."""
     if code.startswith("aisc") or code.startswith("en1993"):
         return False
-    return bool(sk) and any(float(s.get("width") or 0.0) > 0.0 for s in sk["supports"])
+    if not sk:
+        return False
+    return any(float(s.get("width") or 0.0) > 0.0 for s in sk["supports"])
 
 
 def _moment_labels(ax: Any, labels: list[Label], env: Columns, design: Columns,
@@ -857,7 +863,7 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
     handles = [Line2D([], [], color=MAX_COLOUR, lw=1.4), Line2D([], [], color=MIN_COLOUR,
                                                                 lw=1.4)]
     names = ["envelope maximum", "envelope minimum"]
-    symbols = {
+    symbols: dict[str, dict[str, Any]] = {
         "pinned": {"marker": PIN, "mfc": "white"},
         "fixed": {"marker": FIXED},
         "vertical spring": {"marker": SPRING, "mfc": "white"},
@@ -875,8 +881,8 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
     for name in used:
         if name in symbols and name not in seen:
             seen.add(name)
-            style = {"color": INK, "markersize": 9, "ls": "none", "mew": 1.0,
-                     **symbols[name]}
+            style: dict[str, Any] = {"color": INK, "markersize": 9, "ls": "none",
+                                     "mew": 1.0, **symbols[name]}
             handles.append(Line2D([], [], **style))
             names.append(name)
     if "free end" in used:
