@@ -32,6 +32,7 @@ from envelope.errors import UnstableBeamError
 from envelope.solved import Solved
 
 from beams import case_reaction_moments, case_reactions, responses, solve_text, toml_value
+from tolerances import DISPLACEMENT, SMALL_SOLVE, SOLVE
 
 REPO = Path(__file__).resolve().parents[1]
 
@@ -400,7 +401,7 @@ def test_a_near_rigid_spring_is_solved_with_a_conditioning_warning(tmp_path: Pat
     tables, lines = run_case(text, tmp_path)
     assert len(lines) == 1 and "the stiffness matrix is badly conditioned" in lines[0]
     np.testing.assert_allclose(tables["reactions"]["unfactored_D"],
-                               [3 * w * L / 8, 10 * w * L / 8, 3 * w * L / 8], rtol=1e-9)
+                               [3 * w * L / 8, 10 * w * L / 8, 3 * w * L / 8], rtol=SOLVE)
     for stem in ("envelope", "reactions", "design", "cases"):
         meta = tables[stem]["__meta__"]
         assert "badly conditioned" in json.loads(meta[b"envelope:warnings"])[0]
@@ -422,7 +423,7 @@ def test_a_near_mechanism_is_solved_with_a_warning_or_refused_clearly(k: float,
         return
     assert result.exit_code == 0, result.output
     tables, lines = run_case(text, tmp_path, name="again")
-    np.testing.assert_allclose(tables["reactions"]["unfactored_D"], [w * L / 2] * 2, rtol=1e-9)
+    np.testing.assert_allclose(tables["reactions"]["unfactored_D"], [w * L / 2] * 2, rtol=SOLVE)
     if k < 1e-8:  # condition number above 1e12
         assert any("badly conditioned" in line for line in lines)
 
@@ -510,7 +511,8 @@ def test_load_ends_given_in_other_units_snap_to_the_span_end() -> None:
                      [{"type": "uniform", "spans": 1, "w": w, "start": "0 ft", "end": "24 ft"},
                       {"type": "point", "spans": 1, "P": 1.0, "at": "24 ft"}])
     s = solve_text(text)
-    np.testing.assert_allclose(case_reactions(s)[:, 0], [w * L / 2, w * L / 2 + 1.0], rtol=1e-12)
+    np.testing.assert_allclose(case_reactions(s)[:, 0], [w * L / 2, w * L / 2 + 1.0],
+                               rtol=SMALL_SOLVE)
 
 
 def test_a_position_just_beyond_the_span_end_is_refused(tmp_path: Path) -> None:
@@ -533,11 +535,11 @@ def test_tiny_partial_loads_match_statics(c: float, tmp_path: Path) -> None:
     s = solve_text(text)
     R_left = w * c_eff * (L - a - c_eff / 2) / L
     R_right = w * c_eff - R_left
-    np.testing.assert_allclose(case_reactions(s)[:, 0], [R_left, R_right], rtol=1e-9)
+    np.testing.assert_allclose(case_reactions(s)[:, 0], [R_left, R_right], rtol=SOLVE)
     x = np.array([3.0, 4.5, 5.9])
-    np.testing.assert_allclose(responses(s, 0, x).moment[:, 0], R_right * (L - x), rtol=1e-9)
+    np.testing.assert_allclose(responses(s, 0, x).moment[:, 0], R_right * (L - x), rtol=SOLVE)
     tables, _ = run_case(text, tmp_path)
-    np.testing.assert_allclose(tables["reactions"]["unfactored_D"], [R_left, R_right], rtol=1e-9)
+    np.testing.assert_allclose(tables["reactions"]["unfactored_D"], [R_left, R_right], rtol=SOLVE)
 
 
 def test_a_tiny_partial_load_against_a_support_goes_into_it() -> None:
@@ -615,7 +617,8 @@ def test_500_partial_loads_tiling_a_span_equal_one_uniform_load(tmp_path: Path) 
     d = tables["design"]
     np.testing.assert_allclose(d["moment_pos"], [w * L**2 / 8], rtol=1e-10)
     np.testing.assert_allclose(d["moment_pos_x"], [L / 2], rtol=1e-6)
-    np.testing.assert_allclose(d["deflection_max"], [5 * w * L**4 / 384 * 1e3], rtol=1e-10)
+    np.testing.assert_allclose(d["deflection_max"], [5 * w * L**4 / 384 * 1e3],
+                               rtol=DISPLACEMENT)
 
 
 # ---------------------------------------------------------------------------
@@ -653,4 +656,4 @@ def test_very_large_and_very_small_loads_scale_exactly(tmp_path: Path) -> None:
                                                        "w": w}], section=CONCRETE)
         tables, _ = run_case(text, tmp_path, name=f"w{w:g}".replace("+", ""))
         np.testing.assert_allclose(tables["reactions"]["unfactored_D"],
-                                   np.array([3, 10, 3]) / 8 * w * 6.0, rtol=1e-12)
+                                   np.array([3, 10, 3]) / 8 * w * 6.0, rtol=SMALL_SOLVE)

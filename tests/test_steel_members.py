@@ -18,6 +18,8 @@ import pytest
 
 from envelope.sizing import ltb, shapes, vibration, web
 
+from tolerances import SOLVE
+
 E, FY = 29_000.0, 50.0
 PG = dict(d=18.0, bf=7.5, tf=0.60, tw=0.36, Ix=823.7, Zx=103.7, Sx=91.5, Iy=42.25,
           ry=1.676, J=1.351, Cw=3198.0, weight=51.2)
@@ -232,8 +234,8 @@ def test_cb_from_exact_moments_simple_span_braced_at_ends_is_1_14() -> None:
     segs = segments(np.array([0.0, 9.0]), np.array([True, True]), "supports", "continuous")
     dem = segment_demands(solved, st, segs)
     # Mu = 1.4 * 10 * 81 / 8 = 141.75 kN*m (wL^2/8, common practice); Cb = 12.5/11 (F1-1)
-    assert dem.mu[0, 0] == pytest.approx(141.75, rel=1e-9)
-    assert dem.cb[0, 0] == pytest.approx(12.5 / 11.0, rel=1e-9)
+    assert dem.mu[0, 0] == pytest.approx(141.75, rel=SOLVE)
+    assert dem.cb[0, 0] == pytest.approx(12.5 / 11.0, rel=SOLVE)
     assert dem.quarter[0, 0] == pytest.approx([0.75 * 141.75, 141.75, 0.75 * 141.75])
 
 
@@ -266,8 +268,8 @@ def test_uniform_moment_segment_has_cb_1() -> None:
     segs = segments(np.array([0.0, 6.0]), np.array([True, True]), ((2.0, 4.0),),
                     "continuous")
     dem = segment_demands(solved, st, segs)
-    assert dem.mu[:, 0] == pytest.approx([60.0, 60.0, 60.0], rel=1e-9)
-    assert dem.cb[:, 0] == pytest.approx([12.5 / 7.5, 1.0, 12.5 / 7.5], rel=1e-9)
+    assert dem.mu[:, 0] == pytest.approx([60.0, 60.0, 60.0], rel=SOLVE)
+    assert dem.cb[:, 0] == pytest.approx([12.5 / 7.5, 1.0, 12.5 / 7.5], rel=SOLVE)
 
 
 def test_superposed_patterning_gives_the_same_demand_as_the_explicit_cases() -> None:
@@ -288,5 +290,5 @@ def test_superposed_patterning_gives_the_same_demand_as_the_explicit_cases() -> 
         dem = segment_demands(solved, st, segs)
         got[method] = dem.mu.max(axis=1)
     # w = 1.2*10 + 1.6*15 = 36 kN/m on both spans: M = -wL^2/8 = -288 kN*m
-    assert got["code"] == pytest.approx([288.0, 288.0], rel=1e-9)
-    assert got["exhaustive"] == pytest.approx(got["code"], rel=1e-9)
+    assert got["code"] == pytest.approx([288.0, 288.0], rel=SOLVE)
+    assert got["exhaustive"] == pytest.approx(got["code"], rel=SOLVE)
