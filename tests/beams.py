@@ -58,6 +58,7 @@ def beam_text(
     patterning: Mapping[str, Any] | None = None,
     output: Mapping[str, Any] | None = None,
     design: Mapping[str, Any] | None = None,
+    top: Mapping[str, Any] | None = None,
 ) -> str:
     """A whole case file (SI unless ``units`` says ``"US"``).
 
@@ -68,11 +69,13 @@ def beam_text(
     ``combinations``: the ``[combinations]`` table, default none for strength and the
     characteristic service set, so every case can be read with ``case_responses``.
     ``patterning``, ``output`` and ``design``: those tables, left out when None.
+    ``top``: other top-level keys (``id``, ``title``), written after ``units``.
     """
     cases = {"D": "dead"} if cases is None else cases
     if combinations is None:
         combinations = {"strength": "none", "service": "characteristic"}
-    parts = [f"units = {toml_value(units)}\n", _table("[section]", section)]
+    head = "".join(f"{k} = {toml_value(v)}\n" for k, v in {"units": units, **(top or {})}.items())
+    parts = [head, _table("[section]", section)]
     for sp in spans:
         table = {"length": sp} if isinstance(sp, int | float) else dict(sp)
         stretches = table.pop("sections", ())

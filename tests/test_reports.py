@@ -25,6 +25,8 @@ from envelope.cli import main
 from envelope.report import checks, collect, schedule, template
 from envelope.report.schema import schema, vocabulary
 
+from beams import beam_text
+
 ROOT = Path(__file__).resolve().parents[1]
 CASES = ROOT / "cases"
 CAUTION = "for checking by a licensed engineer and defer to local codes"
@@ -244,45 +246,14 @@ HEAD = ("id", "title", "units", "spans [m]", "supports", "E", "I", "tributary_wi
 def _equivalent_case(path: Path, beam_id: str) -> Path:
     """The case file of the schedule row ``S1`` written by hand: 5.0 kN/m^2 and 3.0 kN/m^2
     over 4.2 m give 21.0 and 12.6 kN/m (load per area times width, common practice)."""
-    path.write_text(f"""id = "{beam_id}"
-units = "SI"
-[section]
-E = 30000
-I = 8.0e9
-[[spans]]
-length = 6.0
-[[spans]]
-length = 7.5
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "fixed"
-[cases]
-D = {{ kind = "dead" }}
-L = {{ kind = "live" }}
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 21.0
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 12.6
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 2.5
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-[patterning]
-method = "exhaustive"
-""")
+    path.write_text(beam_text(
+        [6.0, 7.5], ["pinned", "pinned", "fixed"],
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 21.0},
+         {"case": "L", "type": "uniform", "spans": "all", "w": 12.6},
+         {"case": "D", "type": "uniform", "spans": "all", "w": 2.5}],
+        section={"E": 30000, "I": 8.0e9}, cases={"D": "dead", "L": "live"},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+        patterning={"method": "exhaustive"}, top={"id": beam_id}))
     return path
 
 

@@ -29,6 +29,7 @@ from envelope.cli import main
 from envelope.files import write_atomic
 
 from bad_inputs import doc
+from beams import beam_text
 
 RESULTS = {"envelope.parquet", "reactions.parquet", "design.parquet", "cases.parquet"}
 TEMP = re.compile(r"^\.(?P<final>[^/]+)\.[^/]+\.tmp$")
@@ -197,46 +198,14 @@ def test_a_run_refused_after_the_analysis_leaves_the_old_results_untouched(
 def big_case(w_live: float) -> str:
     """Three spans, 5000 stations a span, LRFD with code patterning: with --all-cases,
     stations.parquet has about 0.6 million rows, so writing takes a while."""
-    return f"""id = "big"
-units = "SI"
-[section]
-E = 30000
-I = 8.0e9
-[[spans]]
-length = 6.0
-[[spans]]
-length = 7.0
-[[spans]]
-length = 6.5
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "fixed"
-[cases]
-D = {{ kind = "dead" }}
-L = {{ kind = "live" }}
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 12.0
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = {w_live!r}
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-[patterning]
-method = "code"
-[output]
-stations_per_span = 5000
-"""
+    return beam_text(
+        [6.0, 7.0, 6.5], ["pinned", "pinned", "pinned", "fixed"],
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 12.0},
+         {"case": "L", "type": "uniform", "spans": "all", "w": w_live}],
+        section={"E": 30000, "I": 8.0e9}, cases={"D": "dead", "L": "live"},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+        patterning={"method": "code"}, output={"stations_per_span": 5000},
+        top={"id": "big"})
 
 
 def command(case: Path, out: Path) -> list[str]:
