@@ -52,41 +52,19 @@ from envelope.batch import (
 from envelope.batch.cluster import _check_cluster
 from envelope.cli import main
 
+from beams import beam_text
+
 REPO = Path(__file__).resolve().parents[1]
 #: Guard against a hung subprocess or cluster (not a timing check).
 HANG_GUARD = 300.0
 
 # An invented one-span beam: 6 m, pinned both ends, dead load 10 kN/m, factor 1.0.
-REFERENCE = """\
-id = "ref-simple"
-title = "Reference: simple span, uniform load"
-units = "SI"
-[section]
-E = 30000
-I = 8.0e9
-[[spans]]
-length = 6.0
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-D = { kind = "dead" }
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 10.0
-[combinations]
-[[combinations.custom]]
-name = "1.0D"
-set = "strength"
-factors = { D = 1.0 }
-[[combinations.custom]]
-name = "D"
-set = "service"
-factors = { D = 1.0 }
-"""
+REFERENCE = beam_text(
+    [6.0], ["pinned", "pinned"], [{"case": "D", "type": "uniform", "spans": "all", "w": 10.0}],
+    section={"E": 30000, "I": 8.0e9},
+    combinations={"custom": [{"name": "1.0D", "set": "strength", "factors": {"D": 1.0}},
+                             {"name": "D", "set": "service", "factors": {"D": 1.0}}]},
+    top={"id": "ref-simple", "title": "Reference: simple span, uniform load"})
 
 #: Broken files: name -> (bytes, phrase the failure message must contain, id recorded).
 BROKEN: dict[str, tuple[bytes, str, str]] = {
