@@ -22,21 +22,22 @@ from envelope.casefile import load_case
 from envelope.cli import main
 from envelope.limits import WorkLimits, check, estimate
 
+import beams
+
 REPO = Path(__file__).resolve().parent.parent
 
 
 def beam_text(n: int, segments: int = 1, stations: int = 21) -> str:
     """An invented beam of ``n`` equal 6 m spans, dead and live uniform loads."""
-    spans = "".join("[[spans]]\nlength = 6.0\n" for _ in range(n))
-    supports = "".join('[[supports]]\ntype = "pinned"\n' for _ in range(n + 1))
-    method = "segments" if segments > 1 else "code"
-    return (f'units = "SI"\n[section]\nE = 30000\nI = 8.0e9\n{spans}{supports}'
-            '[cases]\nD = { kind = "dead" }\nL = { kind = "live" }\n'
-            '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 8.0\n'
-            '[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = 5.0\n'
-            '[combinations]\nstrength = "asce7-lrfd"\nservice = "characteristic"\n'
-            f'[patterning]\nmethod = "{method}"\nsegments = {max(segments, 1)}\n'
-            f"[output]\nstations_per_span = {stations}\n")
+    return beams.beam_text(
+        [6.0] * n, ["pinned"] * (n + 1),
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 8.0},
+         {"case": "L", "type": "uniform", "spans": "all", "w": 5.0}],
+        section={"E": 30000, "I": 8.0e9}, cases={"D": "dead", "L": "live"},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+        patterning={"method": "segments" if segments > 1 else "code",
+                    "segments": max(segments, 1)},
+        output={"stations_per_span": stations})
 
 
 def write(tmp_path: Path, text: str, name: str = "big.toml") -> Path:
