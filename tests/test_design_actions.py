@@ -22,6 +22,7 @@ from __future__ import annotations
 import json
 import math
 import tomllib
+from collections.abc import Callable
 from functools import cache
 
 import numpy as np
@@ -33,6 +34,9 @@ from envelope.casefile import parse_case
 from envelope.recovery import make_points
 from envelope.solved import envelope_at
 
+from beams import beam_text
+from tolerances import REARRANGED, SMALL_SOLVE, ULPS
+
 DENSE = 100_001
 FINE = 4001
 METHODS = ["none", "code", "exhaustive"]
@@ -42,155 +46,48 @@ CONTRACT_COLUMNS = [
     "shear_right", "deflection_max", "deflection_live", "span_over_deflection",
 ]
 
-# Invented beams.  {method} is filled in per test.
-BEAMS = {
+# Invented beams, each a function of the patterning method.
+BEAMS: dict[str, Callable[[str], str]] = {
     # Three unequal spans, point loads inside spans 2 (dead) and 3 (live), wide
     # interior supports and a narrower right end support.
-    "unequal-points": """
-units = "SI"
-[section]
-E = 30000
-I = 4.5e9
-[[spans]]
-length = 5.4
-[[spans]]
-length = 7.5
-[[spans]]
-length = 4.8
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-width = 0.4
-[[supports]]
-type = "pinned"
-width = 0.4
-[[supports]]
-type = "pinned"
-width = 0.3
-[cases]
-D = {{ kind = "dead" }}
-L = {{ kind = "live" }}
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 12.0
-[[loads]]
-case = "D"
-type = "point"
-spans = 2
-P = 140.0
-at = 3.0
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 9.0
-[[loads]]
-case = "L"
-type = "point"
-spans = 3
-P = 15.0
-at = 1.6
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-[patterning]
-method = "{method}"
-""",
+    "unequal-points": lambda method: beam_text(
+        [5.4, 7.5, 4.8],
+        ["pinned", {"type": "pinned", "width": 0.4}, {"type": "pinned", "width": 0.4},
+         {"type": "pinned", "width": 0.3}],
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 12.0},
+         {"case": "D", "type": "point", "spans": 2, "P": 140.0, "at": 3.0},
+         {"case": "L", "type": "uniform", "spans": "all", "w": 9.0},
+         {"case": "L", "type": "point", "spans": 3, "P": 15.0, "at": 1.6}],
+        section={"E": 30000, "I": 4.5e9},
+        cases={"D": "dead", "L": "live"},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+        patterning={"method": method}),
     # A back span with a cantilever overhang: the overhang only hogs, so its
     # moment_pos is 0 with no position, and its free tip carries no moment.
-    "overhang": """
-units = "SI"
-[section]
-E = 30000
-I = 3.2e9
-[[spans]]
-length = 6.5
-[[spans]]
-length = 2.0
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-width = 0.35
-[[supports]]
-type = "free"
-[cases]
-D = {{ kind = "dead" }}
-L = {{ kind = "live" }}
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 8.0
-[[loads]]
-case = "D"
-type = "point"
-spans = 2
-P = 10.0
-at = 2.0
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 6.0
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-[patterning]
-method = "{method}"
-""",
+    "overhang": lambda method: beam_text(
+        [6.5, 2.0], ["pinned", {"type": "pinned", "width": 0.35}, "free"],
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 8.0},
+         {"case": "D", "type": "point", "spans": 2, "P": 10.0, "at": 2.0},
+         {"case": "L", "type": "uniform", "spans": "all", "w": 6.0}],
+        section={"E": 30000, "I": 3.2e9},
+        cases={"D": "dead", "L": "live"},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+        patterning={"method": method}),
     # US units: a fixed left end, two unequal spans, a live point load in span 1.
-    "us-fixed-end": """
-units = "US"
-[section]
-E = 29000
-I = 800
-[[spans]]
-length = 24
-[[spans]]
-length = 18
-[[supports]]
-type = "fixed"
-width = 1.0
-[[supports]]
-type = "pinned"
-width = 1.0
-[[supports]]
-type = "pinned"
-[cases]
-D = {{ kind = "dead" }}
-L = {{ kind = "live" }}
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 1.1
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 1.6
-[[loads]]
-case = "L"
-type = "point"
-spans = 1
-P = 6.0
-at = 8.0
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-[patterning]
-method = "{method}"
-""",
+    "us-fixed-end": lambda method: beam_text(
+        [24, 18], [{"type": "fixed", "width": 1.0}, {"type": "pinned", "width": 1.0}, "pinned"],
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 1.1},
+         {"case": "L", "type": "uniform", "spans": "all", "w": 1.6},
+         {"case": "L", "type": "point", "spans": 1, "P": 6.0, "at": 8.0}],
+        units="US", section={"E": 29000, "I": 800}, cases={"D": "dead", "L": "live"},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+        patterning={"method": method}),
 }
 
 
 @cache
 def analysis(name: str, method: str) -> Analysis:
-    text = BEAMS[name].format(method=method)
+    text = BEAMS[name](method)
     return analyse(parse_case(tomllib.loads(text), f"{name}.toml"))
 
 
@@ -272,7 +169,7 @@ def test_deflection_max_and_live_are_the_span_maxima_of_their_envelopes(
             check_not_below_nor_above(float(d[key][j]), best, scale, f"{key} span {j + 1}")
         if d["deflection_max"][j] > 0.0:
             assert d["span_over_deflection"][j] == pytest.approx(
-                a.beam.spans[j].length / d["deflection_max"][j], rel=1e-15)
+                a.beam.spans[j].length / d["deflection_max"][j], rel=ULPS)
         else:
             # a span that never deflects downward has no ratio (the contract is silent;
             # the engine reports NaN, null in design.parquet, rather than infinity)
@@ -311,9 +208,10 @@ def test_support_moments_faces_and_end_shears_come_from_the_envelope(
         ext = envelope_at(a.solved, faces, "moment", labels=False)
         assert ext is not None
         assert d["moment_neg_left_face"][j] == pytest.approx(min(ext.min[0], 0.0),
-                                                             rel=1e-12, abs=1e-12 * scale)
+                                                             rel=REARRANGED, abs=REARRANGED * scale)
         assert d["moment_neg_right_face"][j] == pytest.approx(min(ext.min[1], 0.0),
-                                                              rel=1e-12, abs=1e-12 * scale)
+                                                              rel=REARRANGED,
+                                                              abs=REARRANGED * scale)
         if half_l == 0.0:
             assert d["moment_neg_left_face"][j] == d["moment_neg_left"][j]
         if half_r == 0.0:
@@ -352,56 +250,22 @@ def test_design_of_three_equal_spans_matches_handbook_patterns() -> None:
     # max +M in spans 1 and 3 from 1+3 loaded: 81/800 at 0.45 L (0.55 L in span 3);
     # in span 2 from 2 loaded: 0.075 at midspan; max -M at B and C from 1+2 (2+3):
     # -7/60; V_BA = 37/60; largest deflection of span 1 from 1+3: 0.00992 wL^4/EI.
-    text = """
-units = "SI"
-[section]
-E = "1 kN/m^2"
-I = "1 m^4"
-[[spans]]
-length = 1
-[[spans]]
-length = 1
-[[spans]]
-length = 1
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-L = { kind = "live" }
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 1
-[combinations]
-strength = "none"
-service = "none"
-  [[combinations.custom]]
-  name = "L only"
-  set = "strength"
-  factors = { L = 1.0 }
-  [[combinations.custom]]
-  name = "L service"
-  set = "service"
-  factors = { L = 1.0 }
-[patterning]
-method = "exhaustive"
-[output]
-stations_per_span = 8
-"""
+    text = beam_text(
+        [1, 1, 1], ["pinned"] * 4, [{"case": "L", "type": "uniform", "spans": "all", "w": 1}],
+        cases={"L": "live"},
+        combinations={"strength": "none", "service": "none",
+                      "custom": [{"name": "L only", "set": "strength", "factors": {"L": 1.0}},
+                                 {"name": "L service", "set": "service",
+                                  "factors": {"L": 1.0}}]},
+        patterning={"method": "exhaustive"}, output={"stations_per_span": 8})
     a = analyse(parse_case(tomllib.loads(text), "three-equal.toml"))
     d = a.design_actions
-    assert d["moment_pos"] == pytest.approx([81 / 800, 3 / 40, 81 / 800], rel=1e-12)
+    assert d["moment_pos"] == pytest.approx([81 / 800, 3 / 40, 81 / 800], rel=SMALL_SOLVE)
     assert d["moment_pos_x"] == pytest.approx([0.45, 0.5, 0.55], abs=1e-6)
-    assert d["moment_neg_right"][0] == pytest.approx(-7 / 60, rel=1e-12)
-    assert d["moment_neg_left"][2] == pytest.approx(-7 / 60, rel=1e-12)
-    assert d["moment_neg_left"][0] == pytest.approx(0.0, abs=1e-12)
-    assert d["shear_right"][0] == pytest.approx(37 / 60, rel=1e-12)
+    assert d["moment_neg_right"][0] == pytest.approx(-7 / 60, rel=SMALL_SOLVE)
+    assert d["moment_neg_left"][2] == pytest.approx(-7 / 60, rel=SMALL_SOLVE)
+    assert d["moment_neg_left"][0] == pytest.approx(0.0, abs=SMALL_SOLVE)
+    assert d["shear_right"][0] == pytest.approx(37 / 60, rel=SMALL_SOLVE)
     for key in ("deflection_max", "deflection_live"):
         assert abs(d[key][0] - 0.00992) <= 0.5e-5, key
         assert abs(d[key][1] - 0.00677) <= 0.5e-5, key  # 3.3: 3 spans, 2 loaded
@@ -429,7 +293,7 @@ def test_design_table_has_the_contract_columns_and_deflections_in_mm_or_in(
         assert row["span"] == j + 1
         assert row["length"] == a.beam.spans[j].length
         for key in ("deflection_max", "deflection_live"):
-            assert row[key] == pytest.approx(d[key][j] * factor, rel=1e-15)
+            assert row[key] == pytest.approx(d[key][j] * factor, rel=ULPS)
         # dimensionless: length over deflection in the same unit
         assert row["span_over_deflection"] == pytest.approx(
             row["length"] / (row["deflection_max"] / factor), rel=1e-12)
