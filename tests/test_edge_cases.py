@@ -31,13 +31,18 @@ from envelope.cli import main
 from envelope.errors import UnstableBeamError
 from envelope.solved import Solved
 
-from beams import case_reaction_moments, case_reactions, responses, solve_text, toml_value
+from beams import (
+    UNIT_EI,
+    beam_text,
+    case_reaction_moments,
+    case_reactions,
+    responses,
+    solve_text,
+)
 from tolerances import DISPLACEMENT, SMALL_SOLVE, SOLVE
 
 REPO = Path(__file__).resolve().parents[1]
 
-#: EI = 1 kN*m^2 (unit strings, so no MPa / mm^4 scaling).
-UNIT_EI = {"E": "1 kN/m^2", "I": "1 m^4"}
 #: A concrete floor beam: E = 30000 MPa, I = 8e9 mm^4, so EI = 2.4e5 kN*m^2.
 CONCRETE = {"E": 30000, "I": 8.0e9}
 EI_CONCRETE = 30000e3 * 8.0e9 * 1e-12
@@ -56,29 +61,14 @@ def case_text(spans: Sequence[float | Mapping[str, Any]],
     """An SI case file with one dead case D.  Combinations: the custom strength
     combination "1.0D" (or the rule set ``strength``), and the characteristic service
     set, so envelopes equal the response to D alone when ``strength`` is not given."""
-    parts = [f'id = "{beam_id}"\nunits = "SI"\n[section]\n'
-             + "".join(f"{k} = {toml_value(v)}\n" for k, v in section.items())]
-    for sp in spans:
-        table = {"length": sp} if isinstance(sp, int | float) else dict(sp)
-        parts.append("[[spans]]\n" + "".join(f"{k} = {toml_value(v)}\n"
-                                             for k, v in table.items()))
-    for su in supports:
-        table = {"type": su} if isinstance(su, str) else dict(su)
-        parts.append("[[supports]]\n" + "".join(f"{k} = {toml_value(v)}\n"
-                                                for k, v in table.items()))
-    parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }\n')
-    for ld in loads:
-        parts.append("[[loads]]\n" + "".join(f"{k} = {toml_value(v)}\n"
-                                             for k, v in {"case": "D", **ld}.items()))
-    combos = '[combinations]\nservice = "characteristic"\n'
+    combinations: dict[str, Any] = {"service": "characteristic"}
     if strength:
-        combos += f'strength = "{strength}"\n'
+        combinations["strength"] = strength
     else:
-        combos += ('[[combinations.custom]]\nname = "1.0D"\nset = "strength"\n'
-                   "factors = { D = 1.0 }\n")
-    parts.append(combos)
-    parts.append(f"[output]\nstations_per_span = {stations}\n")
-    return "\n".join(parts)
+        combinations["custom"] = [{"name": "1.0D", "set": "strength", "factors": {"D": 1.0}}]
+    return beam_text(spans, supports, loads, section=section,
+                     cases={"D": "dead", "L": "live"}, combinations=combinations,
+                     output={"stations_per_span": stations}, top={"id": beam_id})
 
 
 def finite(table: pa.Table, name: str) -> None:
