@@ -12,6 +12,7 @@ Fy = 50 ksi, E = 29,000 ksi.
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 import pytest
@@ -185,27 +186,26 @@ def test_shapes_derive_rts_ho_aw_and_mark_old_tables() -> None:
 
 # ------------------------------------------------- segments and their exact moments
 
-def _beam(spans: tuple[float, ...], supports: tuple[str, ...], loads: str,
-          extra_cases: str = "", strength: str = "{ D = 1.4 }",
+def _beam(spans: tuple[float, ...], supports: tuple[str, ...], loads: list[dict[str, Any]],
+          live: bool = False, strength: dict[str, float] | None = None,
           patterning: str = "none"):  # type: ignore[no-untyped-def]
     from envelope.recovery import stations
     from envelope.solved import solve_beam
-    from tests.beams import parse_text
+    from tests.beams import beam_text, parse_text
 
-    text = ['units = "SI"\n[section]\nE = 200000\nI = 4.0e8\n']
-    text += [f"[[spans]]\nlength = {L}\n" for L in spans]
-    text += [f'[[supports]]\ntype = "{s}"\n' for s in supports]
-    text.append(f'[cases]\nD = {{ kind = "dead" }}\n{extra_cases}\n')
-    text.append(loads)
-    text.append(f'[combinations]\nstrength = "none"\nservice = "characteristic"\n'
-                f'[[combinations.custom]]\nname = "s"\nset = "strength"\n'
-                f'factors = {strength}\n[patterning]\nmethod = "{patterning}"\n')
-    beam = parse_text("\n".join(text))
+    text = beam_text(
+        list(spans), list(supports), loads, section={"E": 200000, "I": 4.0e8},
+        cases={"D": "dead", "L": "live"} if live else {"D": "dead"},
+        combinations={"strength": "none", "service": "characteristic",
+                      "custom": [{"name": "s", "set": "strength",
+                                  "factors": strength or {"D": 1.4}}]},
+        patterning={"method": patterning})
+    beam = parse_text(text)
     solved = solve_beam(beam)
     return solved, stations(beam, solved.mesh, solved.unit_cases)
 
 
-UDL = '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 10.0\n'
+UDL = {"case": "D", "type": "uniform", "spans": "all", "w": 10.0}
 
 
 def test_segments_from_bracing_keys() -> None:
@@ -230,7 +230,7 @@ def test_cb_from_exact_moments_simple_span_braced_at_ends_is_1_14() -> None:
     from envelope.sizing.bracing import segments
     from envelope.sizing.unbraced import segment_demands
 
-    solved, st = _beam((9.0,), ("pinned", "pinned"), UDL)
+    solved, st = _beam((9.0,), ("pinned", "pinned"), [UDL])
     segs = segments(np.array([0.0, 9.0]), np.array([True, True]), "supports", "continuous")
     dem = segment_demands(solved, st, segs)
     # Mu = 1.4 * 10 * 81 / 8 = 141.75 kN*m (wL^2/8, common practice); Cb = 12.5/11 (F1-1)
@@ -245,7 +245,7 @@ def test_cb_third_point_bracing_1_46_1_01_1_46() -> None:
     from envelope.sizing.bracing import segments
     from envelope.sizing.unbraced import segment_demands
 
-    solved, st = _beam((9.0,), ("pinned", "pinned"), UDL)
+    solved, st = _beam((9.0,), ("pinned", "pinned"), [UDL])
     segs = segments(np.array([0.0, 9.0]), np.array([True, True]), ((3.0, 6.0),),
                     "continuous")
     dem = segment_demands(solved, st, segs)
@@ -262,9 +262,9 @@ def test_uniform_moment_segment_has_cb_1() -> None:
     from envelope.sizing.bracing import segments
     from envelope.sizing.unbraced import segment_demands
 
-    loads = ('[[loads]]\ncase = "D"\ntype = "point"\nspans = 1\nP = 30.0\nat = 2.0\n'
-             '[[loads]]\ncase = "D"\ntype = "point"\nspans = 1\nP = 30.0\nat = 4.0\n')
-    solved, st = _beam((6.0,), ("pinned", "pinned"), loads, strength="{ D = 1.0 }")
+    loads = [{"case": "D", "type": "point", "spans": 1, "P": 30.0, "at": 2.0},
+             {"case": "D", "type": "point", "spans": 1, "P": 30.0, "at": 4.0}]
+    solved, st = _beam((6.0,), ("pinned", "pinned"), loads, strength={"D": 1.0})
     segs = segments(np.array([0.0, 6.0]), np.array([True, True]), ((2.0, 4.0),),
                     "continuous")
     dem = segment_demands(solved, st, segs)
@@ -279,12 +279,11 @@ def test_superposed_patterning_gives_the_same_demand_as_the_explicit_cases() -> 
     from envelope.sizing.bracing import segments
     from envelope.sizing.unbraced import segment_demands
 
-    loads = UDL + '[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = 15.0\n'
+    loads = [UDL, {"case": "L", "type": "uniform", "spans": "all", "w": 15.0}]
     got = {}
     for method in ("code", "exhaustive"):
         solved, st = _beam((8.0, 8.0), ("pinned", "pinned", "pinned"), loads,
-                           extra_cases='L = { kind = "live" }',
-                           strength="{ D = 1.2, L = 1.6 }", patterning=method)
+                           live=True, strength={"D": 1.2, "L": 1.6}, patterning=method)
         segs = segments(np.array([0.0, 8.0, 16.0]), np.ones(3, bool), "continuous",
                         "supports")
         dem = segment_demands(solved, st, segs)
