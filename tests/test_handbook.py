@@ -33,6 +33,7 @@ import pytest
 import sympy as sp
 
 from beams import beam_text, case_reaction_moments, case_reactions, peak, responses, solve_text
+from tolerances import SMALL_SOLVE
 
 EXACT = 1e-9  # relative tolerance for exact (rational or closed-form) values
 XTOL = 1e-6  # position of a flat extremum (value error ~ (dx)^2 fixes x only to ~sqrt(eps))
@@ -87,7 +88,7 @@ def test_equal_spans_support_moments(n: int) -> None:
     assert m_left == pytest.approx(expected, rel=EXACT)
     assert m_right == pytest.approx(expected, rel=EXACT)
     ends = responses(s, [0, n - 1], [0.0, 1.0]).moment[:, 0]
-    assert ends == pytest.approx([0.0, 0.0], abs=1e-12)  # pinned ends: statics
+    assert ends == pytest.approx([0.0, 0.0], abs=SMALL_SOLVE)  # pinned ends: statics
 
 
 @pytest.mark.parametrize("n", [2, 3, 4])
@@ -326,7 +327,7 @@ def test_cantilever_udl_and_tip_point(fixed_left: bool) -> None:
     j_fix = 0 if fixed_left else 1
     r = case_reactions(s)
     assert r[j_fix] == pytest.approx([W * L, P], rel=EXACT)
-    assert r[1 - j_fix] == pytest.approx([0.0, 0.0], abs=1e-12)
+    assert r[1 - j_fix] == pytest.approx([0.0, 0.0], abs=SMALL_SOLVE)
     m = responses(s, 0, root).moment[0]
     assert m == pytest.approx([-W * L**2 / 2, -P * L], rel=EXACT)
     d = responses(s, 0, tip).deflection[0]
@@ -344,7 +345,7 @@ def test_overhang_tip_point() -> None:
                  [{"type": "point", "spans": 2, "P": P, "at": A_OH}], spans=[L, A_OH])
     r = case_reactions(s)[:, 0]
     assert r[:2] == pytest.approx([-P * A_OH / L, P * (L + A_OH) / L], rel=EXACT)
-    assert r[2] == pytest.approx(0.0, abs=1e-12)
+    assert r[2] == pytest.approx(0.0, abs=SMALL_SOLVE)
     assert responses(s, 1, 0.0).moment[0, 0] == pytest.approx(-P * A_OH, rel=EXACT)
     tip = responses(s, 1, A_OH).deflection[0, 0]
     assert tip == pytest.approx(P * A_OH**2 * (L + A_OH) / (3 * EI), rel=EXACT)
@@ -361,7 +362,7 @@ def test_overhang_udl_on_overhang() -> None:
                  [{"type": "uniform", "spans": 2, "w": W}], spans=[L, A_OH])
     r = case_reactions(s)[:, 0]
     far = -W * A_OH**2 / (2 * L)
-    assert r == pytest.approx([far, W * A_OH - far, 0.0], rel=EXACT, abs=1e-12)
+    assert r == pytest.approx([far, W * A_OH - far, 0.0], rel=EXACT, abs=SMALL_SOLVE)
     assert responses(s, 1, 0.0).moment[0, 0] == pytest.approx(-W * A_OH**2 / 2, rel=EXACT)
     tip = responses(s, 1, A_OH).deflection[0, 0]
     assert tip == pytest.approx(W * A_OH**3 * (4 * L + 3 * A_OH) / (24 * EI), rel=EXACT)
@@ -597,7 +598,7 @@ def test_central_spring_support(k: float) -> None:
                              section=SPRING_SECTION))
     rc = centre_spring_reaction(k)
     re = (2 * WS * LS - rc) / 2
-    assert case_reactions(s)[:, 0] == pytest.approx([re, rc, re], rel=EXACT, abs=1e-12)
+    assert case_reactions(s)[:, 0] == pytest.approx([re, rc, re], rel=EXACT, abs=SMALL_SOLVE)
     r = responses(s, [0, 0], [LS, LS / 2], right=[False, True])
     expected_centre = rc / k if k else 5 * WS * (2 * LS) ** 4 / (384 * EIS)
     assert r.deflection[0, 0] == pytest.approx(expected_centre, rel=EXACT)
