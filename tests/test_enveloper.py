@@ -15,7 +15,7 @@ import itertools
 import numpy as np
 import pytest
 
-from envelope.enveloper import reduce
+from envelope.enveloper import ExplicitCaseSet, SuperposedCaseSet, reduce
 from envelope.recovery import evaluate, make_points
 from envelope.solved import Solved, solve_beam
 
@@ -28,13 +28,14 @@ def _solved(method: str, favourable: float) -> Solved:
                      [{"case": "D", "type": "uniform", "spans": "all", "w": 3.0},
                       {"case": "L", "type": "uniform", "spans": "all", "w": 4.0},
                       {"case": "L", "type": "point", "spans": [2], "P": 9.0, "at": 2.0}],
-                     cases={"D": "dead", "L": "live"})
-    text += ('\n[[combinations.custom]]\nname = "U1"\nset = "strength"\n'
-             'factors = { D = 1.2, L = 1.6 }\n'
-             '[[combinations.custom]]\nname = "U2"\nset = "strength"\n'
-             'factors = { D = 1.4 }\n')
-    text += (f'\n[patterning]\nmethod = "{method}"\nsegments = 2\n'
-             f"favourable_dead = {favourable}\n")
+                     cases={"D": "dead", "L": "live"},
+                     combinations={"strength": "none", "service": "characteristic",
+                                   "custom": [{"name": "U1", "set": "strength",
+                                               "factors": {"D": 1.2, "L": 1.6}},
+                                              {"name": "U2", "set": "strength",
+                                               "factors": {"D": 1.4}}]},
+                     patterning={"method": method, "segments": 2,
+                                 "favourable_dead": favourable})
     return solve_beam(parse_text(text))
 
 
@@ -78,3 +79,31 @@ def test_superposition_equals_enumerating_every_pattern(method: str,
         scale = float(np.abs(R).sum(axis=1).max()) * 1.6
         np.testing.assert_allclose(got.max, want_max, rtol=0.0, atol=LONG_SUM * scale)
         np.testing.assert_allclose(got.min, want_min, rtol=0.0, atol=LONG_SUM * scale)
+
+
+@pytest.mark.parametrize(("method", "kind"), [
+    ("none", ExplicitCaseSet), ("code", ExplicitCaseSet),
+    ("exhaustive", SuperposedCaseSet), ("segments", SuperposedCaseSet)])
+def test_the_kind_of_case_set_follows_the_patterning_method(method: str, kind: type) -> None:
+    # case-format contract: none and code run explicit arrangements, exhaustive and
+    # segments take every subset of cells at once by superposition
+    solved = _solved(method, 1.0)
+    assert type(solved.strength) is kind and type(solved.service) is kind
+
+
+def test_every_span_loaded_is_one_case_in_both_kinds_of_set() -> None:
+    # "none" runs each combination with every span loaded; a superposed set's explicit
+    # cases are each combination with every cell loaded (case-format contract, cases
+    # "all"): with favourable_dead 1 both are the combination's own factors, unit case
+    # by unit case, exactly
+    explicit = _solved("none", 1.0).strength
+    superposed = _solved("exhaustive", 1.0).strength
+    coef_e, combo_e, text_e = explicit.explicit_cases()
+    coef_s, combo_s, text_s = superposed.explicit_cases()
+    np.testing.assert_array_equal(coef_e, coef_s)
+    np.testing.assert_array_equal(combo_e, combo_s)
+    assert text_e == text_s == ("all", "all")
+    assert [r["loaded"] for r in superposed.case_rows()] == ["any", "any"]
+    assert [r["loaded"] for r in superposed.case_rows(explicit=True)] == [
+        "any", "any", "all", "all"]
+    assert [r["loaded"] for r in explicit.case_rows()] == ["all", "all"]
