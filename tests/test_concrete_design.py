@@ -732,3 +732,21 @@ def test_en_cracked_deflection_of_a_span_with_a_deeper_stretch() -> None:
     # the deeper stretch is stiffer: less deflection than the 600 mm beam
     flat = case(EN, (L,), g, q)
     assert cols["deflection_immediate"][i] < flat["deflection_immediate"][i]
+
+
+def test_summary_names_the_depths_of_stretches() -> None:
+    # the console summary states the [design] section and each other depth a stretch gives
+    from envelope.sizing.table import sizing_summary
+    text = ('units = "SI"\n[section]\nE = 30000\nI = 5.4e9\n'
+            '[[spans]]\nlength = 8.0\n  [[spans.sections]]\n  from = 6.8\n  to = 8.0\n'
+            '  I = 1.8225e10\n  h = 900.0\n[[spans]]\nlength = 8.0\n'
+            + '[[supports]]\ntype = "pinned"\n' * 3
+            + '[cases]\nD = { kind = "dead" }\n'
+            '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 30.0\n'
+            '[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+            '[[combinations.custom]]\nname = "U"\nset = "strength"\nfactors = { D = 1.4 }\n'
+            '[design]\nmaterial = "concrete"\ncode = "aci318-19"\nb = 300\nh = 600\n'
+            'cover_to_bar_centre = 60\nfc = 30\nfy = 420\n')
+    first = sizing_summary(analyse(parse_case(tomllib.loads(text), "t.toml"))).splitlines()[0]
+    assert "300 x 600 mm" in first
+    assert first.endswith("h = 900 mm at the sections in stretches that give their own depth")

@@ -102,6 +102,10 @@ def sizing_summary(analysis: Analysis) -> str:
                  f"{su['length']}, d = {design.d:g} "
                  f"{su['length']}, {fc_name} = {design.fc:g}, {fy_name} = "
                  f"{design.fy:g} {su['stress']}"]
+        other = sorted({float(v) for v in cols["h"]} - {float(design.h)})
+        if other:
+            lines[0] += (f"; h = {', '.join(f'{v:g}' for v in other)} {su['length']} at "
+                         f"the sections in stretches that give their own depth")
         head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'As req':>8} {'As':>8} "
                 f"{'V':>8} {'Av/s':>7} {'s max':>6} {'util d':>6}  status")
         units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {su['area']:>8} "
