@@ -121,6 +121,8 @@ def build_unit_cases(beam: Beam, mesh: Mesh, cells: Cells) -> UnitCases:
         if load.type == "settlement":
             settles.append((unit(c, span_cells[j][0]), load.support, load.delta))
             continue
+        if load.is_moving:
+            continue  # placed at its worst position by influence lines, not a unit case
         elems = list(range(mesh.span_first[j], mesh.span_first[j] + mesh.span_count[j]))
         e_bounds = [(float(mesh.start[e]), float(mesh.end[e])) for e in elems]
         g_list = span_cells[j]

@@ -26,7 +26,8 @@ from envelope.units import UnitSystem
 # in this order) from these types.
 SupportKind = Literal["pinned", "fixed", "free", "spring"]
 Seat = Literal["monolithic", "bearing"]
-LoadType = Literal["uniform", "linear", "point", "moment", "self_weight", "settlement"]
+LoadType = Literal["uniform", "linear", "point", "moment", "self_weight", "settlement",
+                   "concentrated", "train"]
 CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind", "settlement"]
 #: EN 1990 Table A1.1 categories of imposed load (psi factors).
 Category = Literal["A", "B", "C", "D", "E", "F", "G", "H"]
@@ -178,7 +179,8 @@ class Load:
     ``point`` uses ``P`` at ``at``; ``moment`` uses ``M`` at ``at``;
     ``self_weight`` uses ``start`` and ``end`` and the span's sections;
     ``settlement`` moves the support of joint ``support`` (0-based) down by ``delta``
-    (its ``span`` is a span beside that joint).
+    (its ``span`` is a span beside that joint); ``concentrated`` and ``train`` are
+    loads placed at their worst position on ``moving_spans`` (``span`` is the first).
     ``key`` is where the item came from in the case file, e.g. ``loads[3]``.
     """
 
@@ -195,6 +197,17 @@ class Load:
     key: str = ""
     support: int = -1
     delta: float = 0.0
+    #: ``concentrated`` and ``train``: the spans (0-based) the loads move over, the
+    #: loads and their offsets from the first ((P, offset), downward, offsets >= 0),
+    #: and whether they act together with the other cases of their kind.
+    moving_spans: tuple[int, ...] = ()
+    axles: tuple[tuple[float, float], ...] = ()
+    with_uniform: bool = False
+
+    @property
+    def is_moving(self) -> bool:
+        """A load placed at its worst position (``concentrated``, ``train``)."""
+        return self.type in ("concentrated", "train")
 
 
 @dataclass(frozen=True, slots=True)

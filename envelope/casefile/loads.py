@@ -19,7 +19,12 @@ LOAD_KEYS: dict[str, tuple[str, ...]] = {
     "moment": ("case", "type", "spans", "M", "at"),
     "self_weight": ("case", "type", "spans", "start", "end"),
     "settlement": ("case", "type", "support", "delta"),
+    "concentrated": ("case", "type", "spans", "P", "with_uniform"),
+    "train": ("case", "type", "spans", "axles", "with_uniform"),
 }
+AXLE_KEYS = ("P", "offset")
+#: Most loads in one train: each adds a set of breakpoints to the worst-position search.
+MAX_AXLES = 64
 ALL_LOAD_KEYS = tuple(sorted({k for keys in LOAD_KEYS.values() for k in keys}))
 #: Each load magnitude and the quantity its unit strings are read as.
 MAGNITUDES = (("w", "line_load"), ("w_start", "line_load"), ("w_end", "line_load"),
@@ -53,14 +58,26 @@ def check_settled_supports(r: Reader, items: tuple[Load, ...],
 
 
 def check_case_contents(r: Reader, items: list[Load], cases: tuple[LoadCase, ...]) -> None:
-    """Settlements stand in cases of kind ``settlement``, and only there."""
+    """A moving load (concentrated, train) is its case's only item, in a variable case;
+    settlements stand in cases of their own kind, and only there."""
     kinds = {c.name: c.kind for c in cases}
+    by_case: dict[str, list[Load]] = {}
     for ld in items:
-        if (ld.type == "settlement") != (kinds[ld.case] == "settlement"):
-            what = ("a settlement needs a case of kind 'settlement'"
-                    if ld.type == "settlement" else
-                    f"a case of kind 'settlement' holds settlements only, not {ld.type}")
-            r.fail(join(ld.key, "case"), f"{what} (case {ld.case!r})")
+        by_case.setdefault(ld.case, []).append(ld)
+    for name, group in by_case.items():
+        moving = [ld for ld in group if ld.is_moving]
+        if moving and len(group) > 1:
+            r.fail(moving[0].key, f"case {name!r} holds a {moving[0].type} load, which is "
+                                  "placed at its worst position: give it a case of its own")
+        if moving and kinds[name] in ("dead", "settlement"):
+            r.fail(join(moving[0].key, "case"), f"a {moving[0].type} load is a variable "
+                   f"action: its case {name!r} must not be of kind {kinds[name]!r}")
+        for ld in group:
+            if (ld.type == "settlement") != (kinds[name] == "settlement"):
+                what = ("a settlement needs a case of kind 'settlement'"
+                        if ld.type == "settlement" else
+                        f"a case of kind 'settlement' holds settlements only, not {ld.type}")
+                r.fail(join(ld.key, "case"), f"{what} (case {name!r})")
 
 
 def load_spans(r: Reader, value: object, key: str, n_spans: int) -> list[int]:
@@ -129,6 +146,8 @@ def load(r: Reader, table: dict[str, Any], key: str, spans: tuple[Span, ...],
     for name, quantity in MAGNITUDES:
         if name in allowed:
             values[name] = r.number(r.required(table, key, name), join(key, name), quantity)
+    if load_type in ("concentrated", "train"):
+        return [moving(r, table, key, load_type, case, indices, values)]
     out = []
     for index in indices:
         span = spans[index]
@@ -165,6 +184,34 @@ def settlement(r: Reader, table: dict[str, Any], key: str, spans: tuple[Span, ..
     joint = number - 1
     return Load(case=case, type="settlement", span=min(joint, len(spans) - 1), key=key,
                 support=joint, delta=delta)
+
+
+def moving(r: Reader, table: dict[str, Any], key: str, load_type: str, case: str,
+           indices: list[int], values: dict[str, float]) -> Load:
+    """A concentrated load or a train of loads, placed at its worst position."""
+    if load_type == "concentrated":
+        axles: tuple[tuple[float, float], ...] = ((values["P"], 0.0),)
+    else:
+        akey = join(key, "axles")
+        entries = r.array_of_tables(r.required(table, key, "axles"), akey)
+        if not entries:
+            r.fail(akey, "a train needs at least one load")
+        if len(entries) > MAX_AXLES:
+            r.fail(akey, f"at most {MAX_AXLES} loads in one train, got {len(entries)}")
+        found = []
+        for i, entry in enumerate(entries):
+            ikey = item(akey, i)
+            r.known_keys(entry, ikey, AXLE_KEYS)
+            p = r.number(r.required(entry, ikey, "P"), join(ikey, "P"), "force")
+            off = r.non_negative(r.required(entry, ikey, "offset"), join(ikey, "offset"),
+                                 "length")
+            found.append((p, off))
+        first = min(off for _, off in found)
+        axles = tuple(sorted((p, off - first) for p, off in found))
+        axles = tuple(sorted(axles, key=lambda a: a[1]))
+    with_uniform = r.optional(table, key, "with_uniform", r.boolean, False)
+    return Load(case=case, type=load_type, span=indices[0], key=key,  # type: ignore[arg-type]
+                moving_spans=tuple(sorted(indices)), axles=axles, with_uniform=with_uniform)
 
 
 def extent(r: Reader, table: dict[str, Any], key: str, span: Span,
