@@ -13,6 +13,7 @@ from envelope.enveloper import CaseSet, Extremes, SuperposedCaseSet, reduce
 from envelope.limits import WorkLimits
 from envelope.limits import check as check_work
 from envelope.model import Beam
+from envelope.moving import MovingEffect, moving_loads, reaction_effects
 from envelope.recovery import Points, evaluate, evaluate_some, stations
 from envelope.redistribution import requested
 from envelope.solved import Solved, envelopes_at, solve_beam
@@ -27,7 +28,8 @@ class Analysis:
     station_envelopes: dict[str, Extremes | None]  # moment, shear (strength); deflection (service)
     support_joints: np.ndarray  # 0-based joints that restrain something
     reaction_envelopes: dict[str, Extremes | None]  # reaction, service_reaction, support_moment
-    unfactored_reactions: np.ndarray  # (n_support_joints, n_cases): each case alone, every span
+    unfactored_reactions: np.ndarray  # (n_support_joints, n_cases): each case alone, every
+    # span (a moving case: its largest reaction)
     design_actions: dict[str, np.ndarray]  # per span, see envelope.actions
     #: sizings it took to settle redistribution = "max" (0: not asked for)
     redistribution_sizings: int = 0
@@ -74,12 +76,17 @@ def analyse_solved(solved: Solved) -> Analysis:
     joints = np.array([j for j, s in enumerate(beam.supports) if s.is_restrained], dtype=int)
     support_moment = support_moments(sol.reaction_moment)
     strength = solved.solution_for("strength")
+    moving = reaction_effects(beam, joints) if moving_loads(beam) else (None, None)
     reactions: dict[str, Extremes | None] = {
-        "reaction": _reduce_rows(strength.reaction[joints], solved.strength),
-        "service_reaction": _reduce_rows(sol.reaction[joints], solved.service),
-        "support_moment": _reduce_rows(support_moment[joints], solved.strength),
+        "reaction": _reduce_rows(strength.reaction[joints], solved.strength, moving[0]),
+        "service_reaction": _reduce_rows(sol.reaction[joints], solved.service, moving[0]),
+        "support_moment": _reduce_rows(support_moment[joints], solved.strength, moving[1]),
     }
     unfactored = sol.reaction[joints] @ solved.per_case
+    if moving[0] is not None:  # a moving case alone: its largest reaction
+        index = {c.name: i for i, c in enumerate(beam.cases)}
+        for m, name in enumerate(moving[0].names):
+            unfactored[:, index[name]] = moving[0].max[:, m]
     return Analysis(solved, pts, env, joints, reactions, unfactored,
                     design_actions(solved, pts, env))
 
@@ -96,8 +103,9 @@ def support_moments(reaction_moment: np.ndarray) -> np.ndarray:
     return out
 
 
-def _reduce_rows(R: np.ndarray, cs: CaseSet) -> Extremes | None:
-    return None if cs.is_empty else reduce(R, cs)
+def _reduce_rows(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
+                 ) -> Extremes | None:
+    return None if cs.is_empty else reduce(R, cs, moving=moving)
 
 
 def explicit_case_blocks(analysis: Analysis) -> Iterator[dict[str, np.ndarray]]:

@@ -37,13 +37,16 @@ from __future__ import annotations
 
 import json
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from envelope.loading import Cells, UnitCases
 from envelope.model import Beam, Combination, Patterning
 from envelope.patterns import arrangements, loaded_label
+
+if TYPE_CHECKING:
+    from envelope.moving import MovingEffect
 
 #: A case's loaded cells, by case name.
 Masks = tuple[tuple[str, tuple[bool, ...]], ...]
@@ -428,7 +431,28 @@ def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float
     return value, chosen, loaded
 
 
-def column_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]:
+def moving_factors(cs: CaseSet, names: tuple[str, ...]) -> np.ndarray:
+    """(moving cases x columns) factor of each moving case in each column's combination."""
+    per_combo = np.array([[c.factor(n) for c in cs.combinations] for n in names],
+                         dtype=float).reshape(len(names), len(cs.combinations))
+    return per_combo[:, cs.col_combo]
+
+
+def _add_moving(vmax: np.ndarray, vmin: np.ndarray, cs: CaseSet,
+                moving: MovingEffect | None) -> None:
+    """Add the moving cases' worst effects to every column, in place: factor f >= 0
+    adds f W+ to the largest value and f W- to the least (a moving load acts only where
+    unfavourable, W+ >= 0 >= W-); a negative factor swaps them."""
+    if moving is None or not moving.n:
+        return
+    F = moving_factors(cs, moving.names)
+    fp, fn = np.maximum(F, 0.0), np.minimum(F, 0.0)
+    vmax += moving.max @ fp + moving.min @ fn
+    vmin += moving.min @ fp + moving.max @ fn
+
+
+def column_extremes(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
+                    ) -> tuple[np.ndarray, np.ndarray]:
     """Largest and smallest value of every column over all subsets of its on/off parts:
     two (rows x columns) arrays.
 
@@ -437,18 +461,20 @@ def column_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]
     max(a, 0) = (a + |a|) / 2 term by term: two matrix products.  Groups add
     max(R @ G, 0) summed by column (one more product).  Columns with a
     pattern-dependent (favourable) dead load take the cell-by-cell choice of
-    :func:`_superposed_values`."""
-    return _column_bounds(R, cs, True)
+    :func:`_superposed_values`.  ``moving`` adds the moving cases' worst effects at
+    each row (:mod:`envelope.moving`)."""
+    return _column_bounds(R, cs, True, moving)
 
 
-def column_max(R: np.ndarray, cs: CaseSet) -> np.ndarray:
+def column_max(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
+               ) -> np.ndarray:
     """The largest value of every column (rows x columns): the first array of
     :func:`column_extremes`, without the cost of the smallest (for searches)."""
-    return _column_bounds(R, cs, False)[0]
+    return _column_bounds(R, cs, False, moving)[0]
 
 
-def _column_bounds(R: np.ndarray, cs: CaseSet, smallest: bool
-                   ) -> tuple[np.ndarray, np.ndarray]:
+def _column_bounds(R: np.ndarray, cs: CaseSet, smallest: bool,
+                   moving: MovingEffect | None = None) -> tuple[np.ndarray, np.ndarray]:
     """:func:`column_extremes`; with ``smallest`` False the second array is not the
     smallest value where dead load is pattern-dependent (left undone)."""
     base = R @ cs.fixed
@@ -472,13 +498,15 @@ def _column_bounds(R: np.ndarray, cs: CaseSet, smallest: bool
         cols, starts = np.unique(cs.group_col, return_index=True)
         vmax[:, cols] += np.add.reduceat(np.maximum(gv, 0.0), starts, axis=1)
         vmin[:, cols] += np.add.reduceat(np.minimum(gv, 0.0), starts, axis=1)
+    _add_moving(vmax, vmin, cs, moving)
     return vmax, vmin
 
 
-def superposed_extremes(R: np.ndarray, cs: CaseSet) -> tuple[np.ndarray, np.ndarray]:
+def superposed_extremes(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
+                        ) -> tuple[np.ndarray, np.ndarray]:
     """Largest and smallest value of every combination (rows x combinations): the
     extreme over its columns (its arrangements) of :func:`column_extremes`."""
-    vmax, vmin = column_extremes(R, cs)
+    vmax, vmin = column_extremes(R, cs, moving)
     n_k = len(cs.combinations)
     out_max = np.full((R.shape[0], n_k), -np.inf)
     out_min = np.full((R.shape[0], n_k), np.inf)
@@ -515,13 +543,23 @@ def _choices(R: np.ndarray, cs: CaseSet, col: np.ndarray, sign: float
     return units, cells, groups
 
 
-def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
+def governing_columns(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
+                      ) -> np.ndarray:
+    """The column governing the maximum at each row (moving cases included)."""
+    return np.argmax(column_max(R, cs, moving), axis=1)
+
+
+def governing_coefficients(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
+                           ) -> np.ndarray:
     """Coefficients over unit cases (rows x units) of the case that governs the maximum
     at each row: the column with its chosen subset of on/off parts.  The response of
     that one fixed case is smooth where the envelope is, so its derivative locates the
     envelope's extreme exactly.  ``R`` is (rows x units) in any units; the
-    coefficients are dimensionless (a response is ``R @ coef[i]``)."""
-    col = np.argmax(column_max(R, cs), axis=1)
+    coefficients are dimensionless (a response is ``R @ coef[i]``).  With ``moving``,
+    the column is chosen with the moving cases' worst effects included (their own part
+    is not a unit-case coefficient: see :func:`moving_factors` for the factor of each
+    in the column)."""
+    col = np.argmax(column_max(R, cs, moving), axis=1)
     units, cells, groups = _choices(R, cs, col, 1.0)
     coef = cs.fixed.T[col]
     if isinstance(cs, SuperposedCaseSet):
@@ -535,7 +573,8 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet) -> np.ndarray:
 
 
 def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True,
-           known: dict[bytes, str] | None = None) -> Extremes:
+           known: dict[bytes, str] | None = None,
+           moving: MovingEffect | None = None) -> Extremes:
     """Envelope of the responses ``R`` over a case set, exact by superposition.
 
     Parameters
@@ -552,6 +591,9 @@ def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True,
         Governing choice -> ``_loaded`` text, for this case set: shared by the calls
         over the blocks of rows of one beam, so that each distinct text is built once
         and held once.
+    moving : MovingEffect, optional
+        The worst effects of the moving cases (concentrated loads, trains) at each
+        row (:mod:`envelope.moving`), added to every combination at its factor.
 
     Returns
     -------
@@ -560,13 +602,16 @@ def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True,
         governing combination (an index into ``cs.combinations``) and the loaded
         text of each.
     """
-    vmax, vmin = column_extremes(R, cs)
+    vmax, vmin = column_extremes(R, cs, moving)
     rows = np.arange(R.shape[0])
     c_max, c_min = np.argmax(vmax, axis=1), np.argmin(vmin, axis=1)
     if labels:
         known = {} if known is None else known
         t_max = _labels(cs, c_max, *_choices(R, cs, c_max, 1.0), known)
         t_min = _labels(cs, c_min, *_choices(R, cs, c_min, -1.0), known)
+        if moving is not None and moving.n:
+            t_max = _moving_labels(t_max, cs, c_max, moving, 1.0)
+            t_min = _moving_labels(t_min, cs, c_min, moving, -1.0)
     else:
         t_max = t_min = np.full(R.shape[0], "", dtype=object)
     return Extremes(vmax[rows, c_max], vmin[rows, c_min], cs.col_combo[c_max],
@@ -635,6 +680,22 @@ def _mark_empty_cells(by_case: dict[str, list[bool]], present: dict[str, set[int
             empty = [n for n in pat if int(g) not in present[n]]
             if empty:
                 by_case[empty[0]][int(g)] = True
+
+
+def _moving_labels(text: np.ndarray, cs: CaseSet, col: np.ndarray, moving: MovingEffect,
+                   sign: float) -> np.ndarray:
+    """``text`` with the governing position of each moving case that acts in the row's
+    column ("...; Lc at x=3.20 m")."""
+    F = moving_factors(cs, moving.names)[:, col].T  # rows x moving
+    worse = np.where(sign * F >= 0.0, moving.max if sign > 0 else moving.min,
+                     moving.min if sign > 0 else moving.max)
+    acts = (F != 0.0) & (worse != 0.0)
+    out = text.copy()
+    for row in np.flatnonzero(acts.any(axis=1)):
+        parts = [moving.text(int(row), int(m), sign * float(np.sign(F[row, m])))
+                 for m in np.flatnonzero(acts[row])]
+        out[row] = "; ".join([str(text[row]), *parts])
+    return out
 
 
 def _cells_by_case(case_names: list[str], unit_case: np.ndarray, unit_cell: np.ndarray,

@@ -29,6 +29,8 @@ Seat = Literal["monolithic", "bearing"]
 LoadType = Literal["uniform", "linear", "point", "moment", "self_weight", "settlement",
                    "concentrated", "train"]
 CaseKind = Literal["dead", "live", "roof_live", "snow", "rain", "wind", "settlement"]
+#: How a moving load combines with the other cases of its kind (envelope.moving).
+WithUniform = Literal["alternative", "added"]
 #: EN 1990 Table A1.1 categories of imposed load (psi factors).
 Category = Literal["A", "B", "C", "D", "E", "F", "G", "H"]
 CombinationSet = Literal["strength", "service"]
@@ -199,10 +201,11 @@ class Load:
     delta: float = 0.0
     #: ``concentrated`` and ``train``: the spans (0-based) the loads move over, the
     #: loads and their offsets from the first ((P, offset), downward, offsets >= 0),
-    #: and whether they act together with the other cases of their kind.
+    #: and whether they replace the other cases of their kind ("alternative", ASCE 7-22
+    #: 4.4.1, EN 1991-1-1 6.3.1.2(5)) or act together with them ("added").
     moving_spans: tuple[int, ...] = ()
     axles: tuple[tuple[float, float], ...] = ()
-    with_uniform: bool = False
+    with_uniform: WithUniform = "alternative"
 
     @property
     def is_moving(self) -> bool:

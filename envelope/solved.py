@@ -20,6 +20,7 @@ from envelope.geometry import Geometry
 from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
 from envelope.mesh import Mesh, build_mesh
 from envelope.model import Beam, Combination
+from envelope.moving import alternatives, moving_loads, point_effects
 from envelope.recovery import Points, Response, evaluate, evaluate_some
 from envelope.redistribution import redistribute, requested
 from envelope.solver import Solution, solve
@@ -86,7 +87,7 @@ class Solved:
 def live_combination(beam: Beam) -> tuple[Combination, ...]:
     """Each variable kind alone at 1.0, every case acting only where it deflects the beam
     more (for ``deflection_live``); empty with no variable case."""
-    return variable_alone(beam.cases)
+    return alternatives(beam, variable_alone(beam.cases))
 
 
 def solve_beam(beam: Beam) -> Solved:
@@ -95,7 +96,7 @@ def solve_beam(beam: Beam) -> Solved:
     cells = build_cells(beam)
     units = build_unit_cases(beam, mesh, cells)
     solution = solve(mesh, beam.supports, units, beam.source)
-    combos = build_combinations(beam.cases, beam.combinations)
+    combos = alternatives(beam, build_combinations(beam.cases, beam.combinations))
     strength = tuple(c for c in combos if c.set == "strength")
     service = tuple(c for c in combos if c.set == "service")
     rules = tuple(dict.fromkeys(c.rule for c in service))
@@ -117,9 +118,10 @@ def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
                  labels: bool = True) -> dict[str, Extremes | None]:
     """Envelopes at ``points`` for each ``quantity -> case set`` of ``requests``, in
     blocks of rows (:func:`chunk_rows`), each block's response computed once for all
-    quantities; None for an empty case set.  ``labels=False`` skips the ``_loaded``
-    texts (for searches that need values only); each distinct text is built once per
-    case set, whichever block and quantity it governs."""
+    quantities (with the worst effects of the moving cases, from the influence lines at
+    the block's points); None for an empty case set.  ``labels=False`` skips the
+    ``_loaded`` texts (for searches that need values only); each distinct text is built
+    once per case set, whichever block and quantity it governs."""
     sets = {q: solved.case_set(name) for q, name in requests.items()}
     wanted = tuple(q for q, cs in sets.items() if not cs.is_empty)
     parts: dict[str, list[Extremes]] = {q: [] for q in wanted}
@@ -133,10 +135,13 @@ def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
     if wanted:
         for lo in range(0, max(points.n, 1), step):
             chunk = points.take(slice(lo, lo + step))
+            moving = (point_effects(solved.beam, chunk, wanted) if moving_loads(solved.beam)
+                      else {})
             for sol, names in by_solution.values():
                 resp = evaluate_some(solved.mesh, solved.unit_cases, sol, chunk, names)
                 for q in names:
-                    parts[q].append(reduce(resp[q], sets[q], labels, known[requests[q]]))
+                    parts[q].append(reduce(resp[q], sets[q], labels, known[requests[q]],
+                                           moving.get(q)))
     return {q: Extremes.concat(parts[q]) if q in parts else None for q in requests}
 
 

@@ -9,9 +9,11 @@ from __future__ import annotations
 from typing import Any, get_args
 
 from envelope.casefile.reader import Reader, describe, item, join, suggest
-from envelope.model import Load, LoadCase, LoadType, Span, Support
+from envelope.model import Load, LoadCase, LoadType, Span, Support, WithUniform
 
 LOAD_TYPES: tuple[LoadType, ...] = get_args(LoadType)
+#: How a moving load combines with the other cases of its kind (the first is the default).
+WITH_UNIFORM: tuple[WithUniform, ...] = get_args(WithUniform)
 LOAD_KEYS: dict[str, tuple[str, ...]] = {
     "uniform": ("case", "type", "spans", "w", "start", "end"),
     "linear": ("case", "type", "spans", "w_start", "w_end", "start", "end"),
@@ -209,9 +211,13 @@ def moving(r: Reader, table: dict[str, Any], key: str, load_type: str, case: str
         first = min(off for _, off in found)
         axles = tuple(sorted((p, off - first) for p, off in found))
         axles = tuple(sorted(axles, key=lambda a: a[1]))
-    with_uniform = r.optional(table, key, "with_uniform", r.boolean, False)
+    with_uniform: WithUniform = WITH_UNIFORM[0]
+    if "with_uniform" in table:
+        with_uniform = r.choice(table["with_uniform"], join(key, "with_uniform"),
+                                WITH_UNIFORM, "with_uniform")
     return Load(case=case, type=load_type, span=indices[0], key=key,  # type: ignore[arg-type]
-                moving_spans=tuple(sorted(indices)), axles=axles, with_uniform=with_uniform)
+                moving_spans=tuple(sorted(indices)), axles=axles,
+                with_uniform=with_uniform)
 
 
 def extent(r: Reader, table: dict[str, Any], key: str, span: Span,
