@@ -34,9 +34,13 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope.combinations import combination_name
+from envelope.enveloper import CaseSet, moving_factors
 from envelope.influence import InfluenceLines, influence_lines, train_worst
+from envelope.loading import POINT, UnitCases
+from envelope.mesh import Mesh, locate
 from envelope.model import Beam, Combination, Load
 from envelope.recovery import Points, make_points
+from envelope.solver import Solution, solve
 
 
 def moving_loads(beam: Beam) -> tuple[Load, ...]:
@@ -75,6 +79,12 @@ class MovingEffect:
         return dataclasses.replace(self, **{f: getattr(self, f)[idx] for f in
                                             ("max", "min", "x_max", "x_min", "rev_max",
                                              "rev_min")})
+
+    def negated(self) -> MovingEffect:
+        """The effects on the quantity's negative (largest and least swapped)."""
+        return dataclasses.replace(self, max=-self.min, min=-self.max, x_max=self.x_min,
+                                   x_min=self.x_max, rev_max=self.rev_min,
+                                   rev_min=self.rev_max)
 
     def text(self, row: int, m: int, sign: float) -> str:
         """``"Lc at x=3.20 m"``: where case ``m`` governs the max (sign +1) or min (-1)
@@ -153,6 +163,16 @@ def reaction_effects(beam: Beam, joints: np.ndarray) -> tuple[MovingEffect, Movi
     return reaction, support_moment
 
 
+def moment_and_reaction_effect(beam: Beam, points: Points, joint: int, weight: float
+                               ) -> MovingEffect:
+    """Worst effects of every moving case on the moment at ``points`` plus ``weight``
+    times the reaction of ``joint`` (a bearing support's reduced moment)."""
+    lines = influence_lines(beam, points)
+    both = lines.coef["moment"] + weight * lines.reaction[joint][None, :, :]
+    own = InfluenceLines(lines.bounds, lines.span, {"moment": both}, lines.reaction)
+    return _worst(own, "moment", moving_loads(beam), None, beam.units.consistent("length"))
+
+
 def _kinds(beam: Beam) -> dict[str, str]:
     return {c.name: c.kind for c in beam.cases}
 
@@ -220,3 +240,106 @@ def _without(combo: Combination, drop: set[str]) -> Combination | None:
     return dataclasses.replace(combo, name=name, factors=factors,
                                optional=frozenset(combo.optional) - drop,
                                derivation=derivation)
+
+
+# --------------------------------------------------------------------------
+# The moving loads placed where they govern, as ordinary unit cases
+# --------------------------------------------------------------------------
+
+#: One moving case placed: its index in ``beam.cases`` and its loads (P unfactored,
+#: global x) where they stand.
+Placed = tuple[int, tuple[tuple[float, float], ...]]
+
+
+def placements(beam: Beam, cs: CaseSet, col: np.ndarray, effect: MovingEffect
+               ) -> list[list[tuple[float, Placed]]]:
+    """Per row: each moving case that acts in the row's column ``col[row]``, with its
+    factor there, placed where it gives that column's largest value (``effect`` of the
+    quantity maximised).  A train's loads that fall off its spans are left out, as the
+    influence lines leave them (they act on nothing)."""
+    by_name = {ld.case: ld for ld in moving_loads(beam)}
+    case_index = {c.name: i for i, c in enumerate(beam.cases)}
+    joint_x = np.asarray(beam.joint_x)
+    F = moving_factors(cs, effect.names)[:, col].T  # rows x moving cases
+    out: list[list[tuple[float, Placed]]] = []
+    for row in range(col.size):
+        items: list[tuple[float, Placed]] = []
+        for m, name in enumerate(effect.names):
+            f = float(F[row, m])
+            use_max = f > 0.0
+            value = effect.max[row, m] if use_max else effect.min[row, m]
+            if f == 0.0 or value == 0.0:
+                continue
+            x = float((effect.x_max if use_max else effect.x_min)[row, m])
+            rev = bool((effect.rev_max if use_max else effect.rev_min)[row, m])
+            ld = by_name[name]
+            loads = []
+            for p, off in ld.axles:
+                at = x - off if rev else x + off
+                if any(joint_x[j] <= at <= joint_x[j + 1] for j in ld.moving_spans):
+                    loads.append((p, at))
+            if loads:
+                items.append((f, (case_index[name], tuple(loads))))
+        out.append(items)
+    return out
+
+
+def with_placed(beam: Beam, mesh: Mesh, units: UnitCases, sol: Solution,
+                placed: list[Placed]) -> tuple[UnitCases, Solution, np.ndarray]:
+    """``units`` and ``sol`` with one more unit case per distinct placed moving case (its
+    point loads at their positions, of its load case; one solve for all of them), and
+    the index of the unit case of each of ``placed``."""
+    distinct: dict[Placed, int] = {}
+    index = np.zeros(len(placed), dtype=np.int64)
+    for i, p in enumerate(placed):
+        index[i] = units.n_units + distinct.setdefault(p, len(distinct))
+    if not distinct:
+        return units, sol, index
+    joint_x = np.asarray(beam.joint_x)
+    unit, p_val, x_val = [], [], []
+    first_case = np.array([p[0] for p in distinct], dtype=np.int64)
+    for k, p in enumerate(distinct):
+        for force, at in p[1]:
+            unit.append(k)
+            p_val.append(force)
+            x_val.append(at)
+    xs = np.asarray(x_val)
+    span = np.clip(np.searchsorted(joint_x, xs, side="right") - 1, 0, beam.n_spans - 1)
+    x_span = np.clip(xs - joint_x[span], 0.0, np.asarray(beam.geometry.span_length)[span])
+    elem = locate(mesh, span, x_span, np.ones(span.shape, dtype=bool))
+    a = x_span - mesh.start[elem]
+    n_new = len(distinct)
+    extra = UnitCases(
+        case=first_case, cell=np.zeros(n_new, dtype=np.int64),
+        item_unit=np.asarray(unit, dtype=np.int64), item_elem=elem,
+        item_kind=np.full(elem.size, POINT, dtype=np.int64), item_a=a, item_b=a.copy(),
+        item_wa=np.zeros(elem.size), item_wb=np.zeros(elem.size),
+        item_p=np.asarray(p_val), elem_first=np.zeros(0, dtype=np.int64))
+    order = np.argsort(np.r_[units.item_elem, extra.item_elem], kind="stable")
+
+    def cat(field: str, shift: int = 0) -> np.ndarray:
+        return np.r_[getattr(units, field), getattr(extra, field) + shift][order]
+
+    item_elem = cat("item_elem")
+    settlement = (None if units.settlement is None else
+                  np.c_[units.settlement, np.zeros((units.settlement.shape[0], n_new))])
+    merged = UnitCases(
+        case=np.r_[units.case, extra.case], cell=np.r_[units.cell, extra.cell],
+        item_unit=cat("item_unit", units.n_units), item_elem=item_elem,
+        item_kind=cat("item_kind"), item_a=cat("item_a"), item_b=cat("item_b"),
+        item_wa=cat("item_wa"), item_wb=cat("item_wb"), item_p=cat("item_p"),
+        elem_first=np.searchsorted(item_elem, np.arange(mesh.n_elements + 1)),
+        settlement=settlement)
+    srt = np.argsort(elem, kind="stable")
+    own = UnitCases(
+        case=extra.case, cell=extra.cell, item_unit=extra.item_unit[srt],
+        item_elem=elem[srt], item_kind=extra.item_kind, item_a=a[srt], item_b=a[srt],
+        item_wa=extra.item_wa, item_wb=extra.item_wb, item_p=extra.item_p[srt],
+        elem_first=np.searchsorted(elem[srt], np.arange(mesh.n_elements + 1)))
+    new = solve(mesh, beam.supports, own, beam.source)
+    def joined(field: str) -> np.ndarray:
+        return np.c_[getattr(sol, field), getattr(new, field)]
+
+    both = Solution(joined("V0"), joined("M0"), joined("theta1"), joined("v1"),
+                    joined("reaction"), joined("reaction_moment"), sol.condition)
+    return merged, both, index

@@ -22,6 +22,7 @@ import pytest
 
 from envelope.analysis import analyse
 from envelope.errors import CaseError
+from envelope.recovery import make_points
 from envelope.solved import case_responses, solve_beam
 
 from beams import beam_text, parse_text
@@ -295,3 +296,146 @@ def test_a_moving_load_needs_a_case_of_its_own() -> None:
                  extra=[{"case": "Q", "type": "uniform", "spans": "all", "w": 1.0}])
     with pytest.raises(CaseError, match="case of its own"):
         parse_text(text)
+
+
+def test_unbraced_segment_takes_the_moving_load_where_it_governs() -> None:
+    """A simple span braced at its ends, 1.4D + 1.6Q with a concentrated Q: the candidate
+    case with the load at midspan has M = 1.4 w L^2/8 + 1.6 P L/4 there (common practice)
+    and its own quarter-point moments and Cb by AISC 360-22 Eq. (F1-1)."""
+    from envelope.sizing.bracing import segments
+    from envelope.sizing.unbraced import segment_demands
+
+    L, w, P = 9.0, 10.0, 20.0
+    text = _text({"type": "concentrated", "spans": "all", "P": P},
+                 'strength = "none"\n[[combinations.custom]]\nname = "s"\nset = "strength"\n'
+                 'factors = { D = 1.4, Q = 1.6 }\n', [L], ["pinned", "pinned"])
+    text = text.replace('w = 4.0', f'w = {w}')
+    a = analyse(parse_text(text))
+    segs = segments(np.array([0.0, L]), np.array([True, True]), "supports", "continuous")
+    dem = segment_demands(a.solved, a.stations, segs)
+    best = int(np.argmax(dem.mu[0]))
+    m_mid = 1.4 * w * L**2 / 8 + 1.6 * P * L / 4
+    assert dem.mu[0, best] == pytest.approx(m_mid, rel=SOLVE)
+    q = L / 4
+    m_q = 1.4 * w * q * (L - q) / 2 + 1.6 * P * q / 2
+    assert dem.quarter[0, best] == pytest.approx([m_q, m_mid, m_q], rel=SOLVE)
+    cb = 12.5 * m_mid / (2.5 * m_mid + 3 * m_q + 4 * m_mid + 3 * m_q)
+    assert dem.cb[0, best] == pytest.approx(cb, rel=SOLVE)
+
+
+SCHOOL = '''title = "Invented single-span classroom beam"
+units = "SI"
+[section]
+E = 33000
+I = 7.6e9
+A = 276000
+unit_weight = 25.0
+[[spans]]
+length = 6.6
+[[supports]]
+type = "pinned"
+width = 0.215
+[[supports]]
+type = "pinned"
+width = 0.215
+[cases]
+G = { kind = "dead" }
+Q = { kind = "live", category = "C" }
+Qc = { kind = "live", category = "C" }
+[[loads]]
+case = "G"
+type = "self_weight"
+spans = "all"
+[[loads]]
+case = "G"
+type = "uniform"
+spans = "all"
+w = 7.0
+[[loads]]
+case = "Q"
+type = "uniform"
+spans = "all"
+w = 10.5
+LOAD
+[combinations]
+strength = "en1990-6.10"
+service = "characteristic"
+[design]
+material = "concrete"
+code = "en1992-1-1"
+b = 300
+h = 600
+cover_to_bar_centre = 55
+flange_width = 1300
+flange_depth = 120
+fc = 30
+fy = 500
+bars = [12, 16, 20, 25]
+aggregate = 20
+crack_width = 0.3
+long_term = { creep = 2.5 }
+'''
+
+
+def test_cracked_deflection_takes_the_moving_load_at_its_worst_position() -> None:
+    """EN 1992-1-1 7.4.3 deflections of a simple span: a concentrated load deflects it
+    most at midspan (by symmetry, common practice), so the beam with the moving load
+    gives the same immediate, long-term and incremental deflections as the beam with an
+    ordinary point load there (each with psi_2 of category C as its sustained part)."""
+    import envelope
+
+    moving = '[[loads]]\ncase = "Qc"\ntype = "concentrated"\nspans = "all"\nP = 40.0\n' \
+             'with_uniform = "added"'
+    fixed = '[[loads]]\ncase = "Qc"\ntype = "point"\nspans = "all"\nP = 40.0\nat = 3.3'
+    got = []
+    for load in (moving, fixed):
+        beam = parse_text(SCHOOL.replace("LOAD", load))
+        table = envelope.tables(envelope.analyse(beam))["sizing"].to_pydict()
+        got.append({k: table[k][1] for k in ("deflection_immediate", "deflection_long_term",
+                                             "deflection_incremental")})
+    for key, value in got[1].items():
+        assert got[0][key] == pytest.approx(value, rel=SOLVE), key
+
+
+def test_bearing_seat_reduced_moment_takes_the_moving_load() -> None:
+    """EN 1992-1-1 5.3.2.2(4): on a bearing support the centreline moment is reduced by
+    F t / 8; with a moving load the reduced moment M + R t / 8 is enveloped over its
+    positions, against a sweep of point-load cases and the (6.10) rows (1.35 or 1.00 G,
+    1.5 Q only where unfavourable, EN 1990:2002 Table A1.2(B))."""
+    import envelope
+
+    t = 0.4
+    text = SCHOOL.replace("[[spans]]\nlength = 6.6\n",
+                          "[[spans]]\nlength = 6.6\n[[spans]]\nlength = 5.0\n")
+    text = text.replace("[[supports]]\ntype = \"pinned\"\nwidth = 0.215\n",
+                        "[[supports]]\ntype = \"pinned\"\nwidth = 0.215\n[[supports]]\n"
+                        f"type = \"pinned\"\nwidth = {t}\nseat = \"bearing\"\n", 1)
+    text = text.replace('Q = { kind = "live", category = "C" }\n', "")
+    text = text.replace('[[loads]]\ncase = "Q"\ntype = "uniform"\nspans = "all"\nw = 10.5\n', "")
+    text = text.replace("LOAD", '[[loads]]\ncase = "Qc"\ntype = "concentrated"\n'
+                                'spans = "all"\nP = 40.0')
+    a = envelope.analyse(parse_text(text))
+    table = envelope.tables(a)["sizing"].to_pydict()
+    row = [i for i, (s, sec) in enumerate(zip(table["span"], table["section"], strict=True))
+           if s == 1 and sec == "right"][0]
+    spans, supports = [6.6, 5.0], ["pinned", "pinned", "pinned"]
+    dead = {"case": "D", "type": "uniform", "spans": "all", "w": 0.276 * 25.0 + 7.0}
+    ref_beam = parse_text(beam_text(spans, supports, [dead]))
+    xs = _positions(ref_beam)
+    loads: list[dict[str, Any]] = [dead]
+    cases = {"D": "dead"}
+    for k, x in enumerate(xs):
+        j = 0 if x < 6.6 else 1
+        cases[f"P{k}"] = "dead"
+        loads.append({"case": f"P{k}", "type": "point", "spans": j + 1, "P": 1.0,
+                      "at": float(x - 6.6 * j)})
+    ref = solve_beam(parse_text(beam_text(spans, supports, loads, cases=cases)))
+    m = case_responses(ref, make_points(ref.beam, np.array([0]), np.array([6.6]),
+                                        np.array([False]))).moment[0]
+    reduced = m + (ref.solution.reaction[1] @ ref.per_case) * t / 8.0
+    hi, lo = _train_sweep(reduced[None, 1:], xs, [(40.0, 0.0)],
+                          np.ones(xs.size, dtype=bool))
+    want = min(1.35 * reduced[0], 1.0 * reduced[0]) + 1.5 * lo[0]
+    got = table["moment_design"][row]
+    assert abs(got) >= abs(want) * (1 - SOLVE)
+    assert abs(got) - abs(want) <= SWEEP_RTOL * abs(want)

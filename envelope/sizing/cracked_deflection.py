@@ -40,14 +40,16 @@ MPa; lb, in, psi for ACI in US units); results come back in section units (mm / 
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
 
 from envelope import config
 from envelope.combinations import PERMANENT_KINDS
-from envelope.enveloper import governing_coefficients, reduce
-from envelope.recovery import evaluate_some, make_points
+from envelope.enveloper import governing_coefficients, governing_columns, reduce
+from envelope.moving import moving_loads, placements, point_effects, with_placed
+from envelope.recovery import Points, evaluate_some, make_points
 from envelope.sizing import cracked, curvature
 from envelope.solved import Solved
 
@@ -413,6 +415,29 @@ def _lambda_delta(inputs: Inputs, kind: str, j: int) -> float:
     return float(cracked.lambda_delta(inputs.months, rho))
 
 
+def _governing_case(solved: Solved, pts: Points, r_def: np.ndarray
+                    ) -> tuple[Solved, np.ndarray]:
+    """The case governing the largest service deflection among ``pts`` (responses
+    ``r_def``): coefficients over the unit cases, and the solved beam they refer to.
+    With moving loads, each moving case placed where it governs becomes one more unit
+    case (of its load case, so it keeps its own sustained fraction) at its factor."""
+    beam, cs = solved.beam, solved.service
+    if not moving_loads(beam):
+        env = reduce(r_def, cs, labels=False)
+        k = int(np.argmax(env.max))
+        return solved, governing_coefficients(r_def[k:k + 1], cs)[0]
+    effect = point_effects(beam, pts, ("deflection",))["deflection"]
+    env = reduce(r_def, cs, labels=False, moving=effect)
+    k = int(np.argmax(env.max))
+    row = effect.rows(np.array([k]))
+    coef = governing_coefficients(r_def[k:k + 1], cs, row)[0]
+    placed = placements(beam, cs, governing_columns(r_def[k:k + 1], cs, row), row)[0]
+    units, sol, _ = with_placed(beam, solved.mesh, solved.unit_cases, solved.solution,
+                                [p for _, p in placed])
+    coef = np.r_[coef, [f for f, _ in placed]]
+    return dataclasses.replace(solved, unit_cases=units, solution=sol), coef
+
+
 def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
     """Per span (arrays of n_spans, section units): ``immediate``, ``immediate_live``
     (ACI; NaN for EN), ``long_term``, ``incremental``, ``lambda_delta`` (ACI), and per
@@ -430,8 +455,6 @@ def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
             failures[j].append("cracked deflection not checked: no service combinations")
         return {**res, "notes": notes, "failures": failures}
     frac = sustained_fractions(solved, inputs.code, inputs.sustained)
-    unit_case = solved.unit_cases.case
-    permanent = np.array([c.kind in PERMANENT_KINDS for c in beam.cases])[unit_case]
     aci = inputs.code == "aci318-19"
     for j in range(n):
         kind = _kind(solved, j)
@@ -446,14 +469,14 @@ def span_deflections(solved: Solved, inputs: Inputs) -> dict[str, object]:
         pts = make_points(beam, np.full(x_c.size, j), x_c)
         r_def = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
                               ("deflection",))["deflection"]
-        env = reduce(r_def, cs, labels=False)
-        k = int(np.argmax(env.max))
-        coef_t = governing_coefficients(r_def[k:k + 1], cs)[0]
+        solved_j, coef_t = _governing_case(solved, pts, r_def)
+        unit_case = solved_j.unit_cases.case
+        permanent = np.array([c.kind in PERMANENT_KINDS for c in beam.cases])[unit_case]
         loaded = coef_t != 0.0
         coef_p = np.where(permanent, coef_t, 0.0)
         coef_s = np.where(permanent, coef_t, np.where(loaded, frac[unit_case], 0.0))
         coef = np.c_[coef_t, coef_p, coef_s]
-        spans = _Spans(solved, inputs, coef)
+        spans = _Spans(solved_j, inputs, coef)
         if aci:
             stages = [(0, 0.0, 1.0), (1, 0.0, 1.0), (2, 0.0, 1.0)]
         else:

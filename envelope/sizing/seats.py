@@ -23,6 +23,7 @@ import numpy as np
 from envelope import config
 from envelope.analysis import Analysis
 from envelope.enveloper import reduce
+from envelope.moving import moment_and_reaction_effect, moving_loads
 from envelope.recovery import evaluate_some, make_points
 from envelope.sizing.layout import Rows
 
@@ -56,16 +57,19 @@ def seat_rows(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[int, str
             strength = solved.solution_for("strength")
             m_u = evaluate_some(solved.mesh, solved.unit_cases, strength, pts,
                                 ("moment",))["moment"]
+            weight = sup.width / 8.0 if design.code == "en1992-1-1" else 0.0
+            moving = (moment_and_reaction_effect(beam, pts, joint, weight)
+                      if moving_loads(beam) else None)
             if design.code == "en1992-1-1":
                 r_u = strength.reaction[joint][None, :]
-                reduced = m_u + r_u * sup.width / 8.0
+                reduced = m_u + r_u * weight
                 text = ("bearing support: centreline moment less F t/8 (EN 1992-1-1 "
                         "5.3.2.2(4))")
             else:
                 reduced = m_u
                 text = ("bearing support: centreline moment (ACI 318-19 9.4.2.1 takes the "
                         "face only for supports built integrally)")
-            low = float(reduce(reduced, solved.strength, labels=False).min[0])
+            low = float(reduce(reduced, solved.strength, labels=False, moving=moving).min[0])
             moment[i] = min(low, 0.0)
             x_span[i] = x
             notes.append((i, text))

@@ -24,11 +24,14 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope import config
-from envelope.enveloper import ExplicitCaseSet, governing_coefficients
+from envelope.enveloper import ExplicitCaseSet, governing_coefficients, governing_columns
+from envelope.loading import UnitCases
+from envelope.moving import moving_loads, placements, point_effects, with_placed
 from envelope.recovery import Points, evaluate_some, make_points
 from envelope.sizing.bracing import Segments, locate
 from envelope.sizing.ltb import cb as cb_f1_1
 from envelope.solved import Solved
+from envelope.solver import Solution
 
 #: Equally spaced points per segment, ends included; 33 puts points on the quarter points
 #: (indices 8, 16, 24).
@@ -64,6 +67,31 @@ def _points(solved: Solved, stations: Points, x0: float, x1: float) -> Points:
     return make_points(beam, span, x_span, side)
 
 
+def _governing(solved: Solved, pts: Points, sign: float
+               ) -> tuple[UnitCases, Solution, dict[str, np.ndarray], np.ndarray]:
+    """Unit cases, solution, moment and shear responses at ``pts`` and the coefficients
+    of the case governing ``sign`` x moment at each point (rows).  With moving loads,
+    each governing placement of them becomes one more unit case (at its factor), so each
+    candidate is still one fixed case."""
+    beam, cs = solved.beam, solved.strength
+    units, sol = solved.unit_cases, solved.solution
+    r = evaluate_some(solved.mesh, units, sol, pts, ("moment", "shear"))
+    if not moving_loads(beam):
+        return units, sol, r, governing_coefficients(sign * r["moment"], cs)
+    effect = point_effects(beam, pts, ("moment",))["moment"]
+    effect = effect if sign > 0 else effect.negated()
+    gov = governing_coefficients(sign * r["moment"], cs, effect)
+    col = governing_columns(sign * r["moment"], cs, effect)
+    rows = placements(beam, cs, col, effect)
+    flat = [(i, f, placed) for i, row in enumerate(rows) for f, placed in row]
+    units, sol, index = with_placed(beam, solved.mesh, units, sol, [p for _, _, p in flat])
+    extra = np.zeros((pts.n, units.n_units - gov.shape[1]))
+    for (i, f, _), u in zip(flat, index, strict=True):
+        extra[i, u - gov.shape[1]] += f
+    r = evaluate_some(solved.mesh, units, sol, pts, ("moment", "shear"))
+    return units, sol, r, np.c_[gov, extra]
+
+
 def segment_demands(solved: Solved, stations: Points, segs: Segments) -> SegmentDemand:
     """Demand, Cb and quarter-point moments of every segment for its candidate cases."""
     cs = solved.strength
@@ -71,14 +99,16 @@ def segment_demands(solved: Solved, stations: Points, segs: Segments) -> Segment
     for s in range(segs.n):
         sign = float(segs.sign[s])
         pts = _points(solved, stations, float(segs.x0[s]), float(segs.x1[s]))
-        r = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
-                          ("moment", "shear"))
         # the cases governing at some point of the segment (each combination with the
-        # arrangement and the variable actions it takes there); with explicit
-        # arrangements also every one of them with all its cases acting
-        coef = np.unique(governing_coefficients(sign * r["moment"], cs), axis=0).T
+        # arrangement and the variable actions it takes there, moving loads where they
+        # stand for that point); with explicit arrangements also every one of them with
+        # all its cases acting
+        units, sol, r, gov = _governing(solved, pts, sign)
+        coef = np.unique(gov, axis=0).T
         if isinstance(cs, ExplicitCaseSet):
-            coef = np.hstack([cs.explicit_cases()[0], coef])
+            explicit = cs.explicit_cases()[0]
+            coef = np.hstack([np.r_[explicit, np.zeros((units.n_units - explicit.shape[0],
+                                                        explicit.shape[1]))], coef])
         m = r["moment"] @ coef          # points x cases
         v = r["shear"] @ coef
         quarter = m[list(QUARTERS)].T   # cases x 3
@@ -99,8 +129,8 @@ def segment_demands(solved: Solved, stations: Points, segs: Segments) -> Segment
             t = va[ii, cc] / (va[ii, cc] - vb[ii, cc])
             xr = x[ii] + t * dx[ii]
             span, xs = locate(np.asarray(solved.beam.joint_x), xr, np.ones(xr.size, bool))
-            rr = evaluate_some(solved.mesh, solved.unit_cases, solved.solution,
-                               make_points(solved.beam, span, xs), ("moment",))["moment"]
+            rr = evaluate_some(solved.mesh, units, sol, make_points(solved.beam, span, xs),
+                               ("moment",))["moment"]
             m_root = np.einsum("ij,ji->i", rr, coef[:, cc])
             for k in range(ii.size):
                 c = cc[k]
