@@ -316,6 +316,28 @@ NEW_ROWS: list[Row] = [
     ("case_kind_suggestion", cases('D = { kind = "dead" }\nL = { kind = "lve" }\n'),
      f"{FILE}: cases.L.kind: unknown case kind 'lve'; did you mean 'live'?"),
     # -- [[loads]] ----------------------------------------------------------
+    ("moving_with_uniform_unknown",
+     one_load('case = "L"\ntype = "concentrated"\nspans = "all"\nP = 9.0\n'
+              'with_uniform = "both"\n'),
+     f"{FILE}: loads[1].with_uniform: unknown with_uniform 'both' (valid: alternative, added)"),
+    ("train_without_axles", one_load('case = "L"\ntype = "train"\nspans = "all"\naxles = []\n'),
+     f"{FILE}: loads[1].axles: a train needs at least one load"),
+    ("train_negative_offset",
+     one_load('case = "L"\ntype = "train"\nspans = "all"\n'
+              'axles = [ { P = 30.0, offset = -1.0 } ]\n'),
+     f"{FILE}: loads[1].axles[1].offset: must not be negative, got -1 m"),
+    ("train_axle_unknown_key",
+     one_load('case = "L"\ntype = "train"\nspans = "all"\naxles = [ { P = 30.0, at = 1.0 } ]\n'),
+     f"{FILE}: loads[1].axles[1].at: unknown key 'at' (valid: P, offset)"),
+    ("concentrated_in_dead_case",
+     one_load('case = "D"\ntype = "concentrated"\nspans = "all"\nP = 9.0\n'),
+     f"{FILE}: loads[1].case: a concentrated load is a variable action: its case 'D' must "
+     "not be of kind 'dead'"),
+    ("concentrated_sharing_its_case",
+     one_load('case = "L"\ntype = "concentrated"\nspans = "all"\nP = 9.0\n[[loads]]\n'
+              'case = "L"\ntype = "uniform"\nspans = "all"\nw = 1.0\n'),
+     f"{FILE}: loads[1]: case 'L' holds a concentrated load, which is placed at its worst "
+     "position: give it a case of its own"),
     ("loads_a_table", doc(loads='[loads]\ncase = "D"\ntype = "uniform"\nspans = "all"\n'
                                 "w = 10.0\n"),
      f"{FILE}: loads: expected an array of tables ([[loads]]), got a table"),
