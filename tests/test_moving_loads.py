@@ -416,8 +416,9 @@ def test_bearing_seat_reduced_moment_takes_the_moving_load() -> None:
                                 'spans = "all"\nP = 40.0')
     a = envelope.analyse(parse_text(text))
     table = envelope.tables(a)["sizing"].to_pydict()
-    row = [i for i, (s, sec) in enumerate(zip(table["span"], table["section"], strict=True))
-           if s == 1 and sec == "right"][0]
+    row = next(i for i, (s, sec) in enumerate(zip(table["span"], table["section"],
+                                                  strict=True))
+               if s == 1 and sec == "right")
     spans, supports = [6.6, 5.0], ["pinned", "pinned", "pinned"]
     dead = {"case": "D", "type": "uniform", "spans": "all", "w": 0.276 * 25.0 + 7.0}
     ref_beam = parse_text(beam_text(spans, supports, [dead]))
@@ -433,7 +434,7 @@ def test_bearing_seat_reduced_moment_takes_the_moving_load() -> None:
     m = case_responses(ref, make_points(ref.beam, np.array([0]), np.array([6.6]),
                                         np.array([False]))).moment[0]
     reduced = m + (ref.solution.reaction[1] @ ref.per_case) * t / 8.0
-    hi, lo = _train_sweep(reduced[None, 1:], xs, [(40.0, 0.0)],
+    _, lo = _train_sweep(reduced[None, 1:], xs, [(40.0, 0.0)],
                           np.ones(xs.size, dtype=bool))
     want = min(1.35 * reduced[0], 1.0 * reduced[0]) + 1.5 * lo[0]
     got = table["moment_design"][row]
