@@ -440,3 +440,28 @@ def test_bearing_seat_reduced_moment_takes_the_moving_load() -> None:
     got = table["moment_design"][row]
     assert abs(got) >= abs(want) * (1 - SOLVE)
     assert abs(got) - abs(want) <= SWEEP_RTOL * abs(want)
+
+
+def test_steel_web_is_checked_under_the_moving_load_on_its_spans(tmp_path: Any) -> None:
+    """AISC 360-22 J10.2 and J10.3 under a concentrated live load on span 2 of the
+    invented office beam: the force is its largest factor in the strength set times P
+    (ASCE 7-22 2.3.1 combination 2, 1.6L); span 1 keeps its post load (1.2 x 12 kN SDL,
+    combination 1 gives 1.4 x 12)."""
+    import shutil
+    from pathlib import Path
+
+    import envelope
+
+    repo = Path(__file__).resolve().parent.parent
+    text = (repo / "cases" / "floor-beam-si.toml").read_text(encoding="utf-8")
+    text = text.replace('L = { kind = "live" }', 'L = { kind = "live" }\nLc = { kind = "live" }')
+    text = text.replace("[combinations]", '[[loads]]\ncase = "Lc"\ntype = "concentrated"\n'
+                                          'spans = 2\nP = 40.0\n\n[combinations]')
+    shutil.copy(repo / "cases" / "sections-si.csv", tmp_path / "sections-si.csv")
+    (tmp_path / "fb.toml").write_text(text, encoding="utf-8")
+    table = envelope.tables(envelope.analyse(envelope.load_case(tmp_path / "fb.toml")))
+    sizing = table["sizing"].to_pydict()
+    force = dict(zip(zip(sizing["span"], sizing["section"], strict=True),
+                     sizing["bearing_force"], strict=True))
+    assert force[(2, "span")] == pytest.approx(1.6 * 40.0, rel=SOLVE)
+    assert force[(1, "span")] == pytest.approx(1.4 * 12.0, rel=SOLVE)

@@ -15,6 +15,7 @@ the deflection, the vibration and the camber.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -22,6 +23,7 @@ import numpy as np
 from envelope import config
 from envelope.analysis import Analysis
 from envelope.enveloper import reduce
+from envelope.moving import moving_loads
 from envelope.recovery import evaluate_some, make_points
 from envelope.sizing import ltb, vibration, web
 from envelope.sizing.bracing import BracingSpec, Segments, segments
@@ -223,7 +225,37 @@ def _bearing(analysis: Analysis, rows: Rows, shapes: Shapes, inp: SteelInput,
                 ru = max(float(ext.max[i]), 0.0)
                 x = joint_x[j] + a - joint_x[0]
                 check(3 * j + 1, ru, lb_sec, min(x, total - x) / to_cons)
+    _moving_bearing(analysis, inp, to_cons, check)
     return out
+
+
+def _moving_bearing(analysis: Analysis, inp: SteelInput, to_cons: float,
+                    check: Callable[[int, float, float, float], None]) -> None:
+    """J10.2 and J10.3 under the loads of each moving case on each span it runs on: the
+    largest factored load of the case (its largest factor in the strength set) plus the
+    largest factored fixed point load of the span (the moving load may stand on it),
+    nearest the beam's end that the span reaches (0 on an end span)."""
+    beam = analysis.beam
+    combos = analysis.solved.strength.combinations
+    loads = moving_loads(beam)
+    if not loads or not combos:
+        return
+    joint_x = np.asarray(beam.joint_x) - beam.joint_x[0]
+    total = float(joint_x[-1])
+    point_max = np.zeros(beam.n_spans)
+    for ld in beam.loads:
+        if ld.type == "point":
+            f = max((c.factor(ld.case) for c in combos), default=0.0)
+            point_max[ld.span] = max(point_max[ld.span], f * ld.P)
+    lb_sec = inp.bearing_length or 0.0
+    for ld in loads:
+        f = max(c.factor(ld.case) for c in combos)
+        if f <= 0.0:
+            continue
+        p = max(a[0] for a in ld.axles)
+        for j in ld.moving_spans:
+            from_end = min(float(joint_x[j]), total - float(joint_x[j + 1]))
+            check(3 * j + 1, f * p + point_max[j], lb_sec, from_end / to_cons)
 
 
 def _serviceability(analysis: Analysis, rows: Rows, shapes: Shapes, inp: SteelInput,
