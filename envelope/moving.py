@@ -184,8 +184,9 @@ def alternatives(beam: Beam, combos: tuple[Combination, ...]) -> tuple[Combinati
     A combination holding such a case becomes: one without any of them (the
     distributed loads), and one per such case with it and without the other cases of
     its kind; variants that lose their leading action, that have no factor left, or
-    that repeat an earlier combination of the same rule set are dropped.  Names stay
-    unique (a taken name gets the moving case appended)."""
+    that repeat an earlier combination of the same rule set are dropped.  Custom
+    combinations are kept as given.  Names stay unique (a taken name gets its rule set
+    appended)."""
     alt = [ld for ld in moving_loads(beam) if ld.with_uniform == "alternative"]
     if not alt:
         return combos
@@ -197,28 +198,29 @@ def alternatives(beam: Beam, combos: tuple[Combination, ...]) -> tuple[Combinati
     for combo in combos:
         names = {n for n, _ in combo.factors}
         present = [ld.case for ld in alt if ld.case in names]
-        variants: list[tuple[Combination | None, str]] = []
+        variants: list[Combination | None] = []
         if not present or combo.rule == "custom":
-            variants.append((combo, ""))
+            variants.append(combo)
         else:
             drop_all = set(present)
-            variants.append((_without(combo, drop_all), ""))
+            variants.append(_without(combo, drop_all))
             for name in present:
                 same_kind = {n for n in names if kinds[n] == kinds[name] and n != name
                              and (n not in moving_names or n in drop_all)}
-                variants.append((_without(combo, same_kind), name))
-        for variant, moving in variants:
+                variants.append(_without(combo, same_kind))
+        for variant in variants:
             if variant is None:
                 continue
             key = (variant.set, variant.rule, variant.factors)
-            if key in seen:
+            if key in seen and variant.rule != "custom":
                 continue
             seen.add(key)
-            name = variant.name
+            name, number = variant.name, 2
             if name in taken:
-                name = f"{name} ({moving or 'distributed'})"
+                name = f"{variant.name} ({combo.rule})"
             while name in taken:
-                name += "'"
+                name = f"{variant.name} ({combo.rule} {number})"
+                number += 1
             taken.add(name)
             out.append(dataclasses.replace(variant, name=name))
     return tuple(out)

@@ -465,3 +465,25 @@ def test_steel_web_is_checked_under_the_moving_load_on_its_spans(tmp_path: Any) 
                      sizing["bearing_force"], strict=True))
     assert force[(2, "span")] == pytest.approx(1.6 * 40.0, rel=SOLVE)
     assert force[(1, "span")] == pytest.approx(1.4 * 12.0, rel=SOLVE)
+
+
+def test_en_rows_with_the_alternative_keep_each_leading_action_whole() -> None:
+    """EN 1990:2002 (6.10) with Q (distributed) and Qc (concentrated) of one kind, taken
+    as alternatives (EN 1991-1-1:2002 6.3.1.2(5)): each leads alone at gamma_Q 1.5
+    (Table A1.2(B)); neither accompanies the other, and each variable kind alone (the
+    deflection rows) lists them apart."""
+    from envelope.solved import live_combination
+
+    spans, supports = [6.0, 4.0], ["pinned", "pinned", "pinned"]
+    uniform = {"case": "L", "type": "uniform", "spans": "all", "w": 3.0}
+    text = _text({"type": "concentrated", "spans": "all", "P": 12.0},
+                 'strength = "en1990-6.10"\nservice = "characteristic"\n', spans, supports,
+                 extra=[uniform], cases={"D": "dead", "L": "live", "Q": "live"})
+    beam = parse_text(text)
+    solved = solve_beam(beam)
+    rows = {c.name: dict(c.factors) for c in solved.strength.combinations}
+    assert all(not {"L", "Q"} <= set(f) for f in rows.values())
+    assert {"D": 1.35, "L": 1.5} in rows.values() and {"D": 1.35, "Q": 1.5} in rows.values()
+    assert {"D": 1.0, "L": 1.5} in rows.values() and {"D": 1.0, "Q": 1.5} in rows.values()
+    assert len(rows) == len(solved.strength.combinations)  # names unique
+    assert [dict(c.factors) for c in live_combination(beam)] == [{"L": 1.0}, {"Q": 1.0}]
