@@ -38,6 +38,11 @@ SOLVE_CHUNK_VALUES = 1 << 18
 #: Spans of stations in one row group of envelope.parquet: each row group is built and
 #: written on its own, with its own dictionary of ``_loaded`` texts.
 ENVELOPE_ROW_GROUP_SPANS = 64
+#: Rows of points whose influence lines are found at once for the moving loads: the
+#: lines cut the beam at every point of the chunk, so the solve has 4 x (elements +
+#: rows) right-hand sides and the worst-position search holds rows x (axles x pieces)
+#: cubics; 256 rows keep both to tens of MiB for beams of a thousand elements.
+MOVING_CHUNK_ROWS = 256
 
 #: Rows per Parquet row group of stations.parquet (all cases, long format).
 STATIONS_ROW_GROUP = 1_000_000

@@ -33,6 +33,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from envelope import config
 from envelope.combinations import combination_name
 from envelope.enveloper import CaseSet, moving_factors
 from envelope.influence import InfluenceLines, influence_lines, train_worst
@@ -120,11 +121,29 @@ def _worst(lines: InfluenceLines, quantity: str, loads: tuple[Load, ...],
 def point_effects(beam: Beam, points: Points, quantities: tuple[str, ...]
                   ) -> dict[str, MovingEffect]:
     """Worst effects of every moving case on each of ``quantities`` (shear, moment,
-    rotation, deflection) at ``points``: one influence-line solve for all of them."""
+    rotation, deflection) at ``points``: one influence-line solve for all of them per
+    :data:`envelope.config.MOVING_CHUNK_ROWS` points."""
     loads = moving_loads(beam)
-    lines = influence_lines(beam, points)
     unit = beam.units.consistent("length")
-    return {q: _worst(lines, q, loads, None, unit) for q in quantities}
+    step = config.MOVING_CHUNK_ROWS
+    parts: dict[str, list[MovingEffect]] = {q: [] for q in quantities}
+    for lo in range(0, max(points.n, 1), step):
+        lines = influence_lines(beam, points.take(slice(lo, lo + step)))
+        for q in quantities:
+            parts[q].append(_worst(lines, q, loads, None, unit))
+    return {q: _concat(parts[q]) for q in quantities}
+
+
+def _concat(parts: list[MovingEffect]) -> MovingEffect:
+    """The effects of consecutive blocks of rows as one."""
+    if len(parts) == 1:
+        return parts[0]
+    def cat(field: str) -> np.ndarray:
+        return np.concatenate([getattr(p, field) for p in parts])
+
+    first = parts[0]
+    return MovingEffect(first.names, first.trains, cat("max"), cat("min"), cat("x_max"),
+                        cat("x_min"), cat("rev_max"), cat("rev_min"), first.unit)
 
 
 def reaction_effects(beam: Beam, joints: np.ndarray) -> tuple[MovingEffect, MovingEffect]:

@@ -487,3 +487,21 @@ def test_en_rows_with_the_alternative_keep_each_leading_action_whole() -> None:
     assert {"D": 1.0, "L": 1.5} in rows.values() and {"D": 1.0, "Q": 1.5} in rows.values()
     assert len(rows) == len(solved.strength.combinations)  # names unique
     assert [dict(c.factors) for c in live_combination(beam)] == [{"L": 1.0}, {"Q": 1.0}]
+
+
+def test_influence_lines_in_chunks_of_points_give_the_same_envelope(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    """The moving effects found a few points at a time equal those found for all the
+    stations at once (each chunk cuts the beam at its own points only)."""
+    from envelope import config
+
+    moving = {"type": "train", "spans": "all",
+              "axles": [{"P": 30.0, "offset": 0.0}, {"P": 20.0, "offset": 1.8}]}
+    beam = parse_text(_text(moving, 'strength = "asce7-lrfd"\n'))
+    whole = analyse(beam).station_envelopes["moment"]
+    monkeypatch.setattr(config, "MOVING_CHUNK_ROWS", 7)
+    chunked = analyse(beam).station_envelopes["moment"]
+    assert whole is not None and chunked is not None
+    scale = float(np.abs(whole.max).max())
+    assert np.abs(chunked.max - whole.max).max() <= SOLVE * scale
+    assert np.abs(chunked.min - whole.min).max() <= SOLVE * scale
