@@ -27,6 +27,7 @@ import numpy as np
 
 from envelope import config
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients
+from envelope.moving import MovingEffect, moving_loads, point_effects
 from envelope.recovery import (
     Combined,
     Points,
@@ -248,9 +249,19 @@ class _Search:
             for t, rows in self._each_task(task[part]):
                 for r0 in range(0, rows.size, step):
                     sel = rows[r0: r0 + step]
-                    vmax = column_max(resp[t][sel], self.sets[t])
+                    vmax = column_max(resp[t][sel], self.sets[t],
+                                      self.moving_at(t, span[part][sel], x[part][sel]))
                     out[lo + sel] = vmax.max(axis=1)
         return out
+
+    def moving_at(self, t: int, span: np.ndarray, x: np.ndarray) -> MovingEffect | None:
+        """The moving cases' worst effects on request ``t``'s quantity at the points
+        (None without moving loads): part of the envelope the search maximises."""
+        beam = self.solved.beam
+        if not moving_loads(beam):
+            return None
+        q = self.quantity[t]
+        return point_effects(beam, make_points(beam, span, x), (q,))[q]
 
     def root_of_governing(self, task: np.ndarray, span: np.ndarray, length: np.ndarray,
                           x: np.ndarray, lo: np.ndarray, hi: np.ndarray

@@ -238,8 +238,8 @@ def test_point_load_on_a_simple_span_gives_pl_over_4_and_its_deflection() -> Non
 def test_two_axles_give_the_absolute_maximum_moment_of_a_simple_span() -> None:
     """Common practice: two loads P at spacing s, the absolute maximum moment
     P (L - s/2)^2 / (2L) where the span's centre halves the distance between one load and
-    the resultant; the design actions find it between stations."""
-    L, P, s = 10.0, 20.0, 2.0
+    the resultant; the design actions find it between stations (every 0.5 m here)."""
+    L, P, s = 10.0, 20.0, 2.2  # the maximum at x = 4.45 m, between stations
     axles = [{"P": P, "offset": 0.0}, {"P": P, "offset": s}]
     a = _simple_span({"type": "train", "spans": "all", "axles": axles}, L)
     want = P * (L - s / 2) ** 2 / (2 * L)
