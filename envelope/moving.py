@@ -192,6 +192,17 @@ def moment_and_reaction_effect(beam: Beam, points: Points, joint: int, weight: f
     return _worst(own, "moment", moving_loads(beam), None, beam.units.consistent("length"))
 
 
+def moment_functional_effect(beam: Beam, points: Points, weights: np.ndarray
+                             ) -> MovingEffect:
+    """Worst effects of every moving case on ``weights @ M`` (rows of a linear
+    functional of the moments at ``points``, e.g. a fixed-end moment), from the same
+    functional of the moment influence lines."""
+    lines = influence_lines(beam, points)
+    table = np.tensordot(np.asarray(weights, dtype=float), lines.coef["moment"], axes=(1, 0))
+    own = InfluenceLines(lines.bounds, lines.span, {"moment": table}, lines.reaction)
+    return _worst(own, "moment", moving_loads(beam), None, beam.units.consistent("length"))
+
+
 def _kinds(beam: Beam) -> dict[str, str]:
     return {c.name: c.kind for c in beam.cases}
 

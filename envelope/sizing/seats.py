@@ -23,8 +23,13 @@ import numpy as np
 from envelope import config
 from envelope.analysis import Analysis
 from envelope.enveloper import reduce
-from envelope.moving import moment_and_reaction_effect, moving_loads
-from envelope.recovery import evaluate_some, make_points
+from envelope.moving import (
+    MovingEffect,
+    moment_and_reaction_effect,
+    moment_functional_effect,
+    moving_loads,
+)
+from envelope.recovery import Points, evaluate_some, make_points
 from envelope.sizing.layout import Rows
 
 #: EN 1992-1-1 5.3.2.2(3) note: the face moment of a monolithic support is at least
@@ -97,8 +102,19 @@ def fixed_end_moments(analysis: Analysis, span: int) -> np.ndarray:
     integrated by Simpson's rule piecewise between stretch ends and point loads (exact
     for uniform and point loads, whose integrands are cubic at most there).  A prismatic
     span under w gives -w L^2 / 12 at each end."""
-    beam = analysis.beam
     solved = analysis.solved
+    pts, weights = fem_functional(analysis, span)
+    m = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
+                      ("moment",))["moment"]
+    return weights @ m
+
+
+def fem_functional(analysis: Analysis, span: int) -> tuple[Points, np.ndarray]:
+    """The points of :func:`fixed_end_moments` (its Simpson grid, then the span's two
+    ends) and the (2, points) weights that take the moments there to the fixed-end
+    moments: the solve is linear in the moments, so any load's fixed-end moments are
+    these weights on its moments (a moving load's, on its influence lines)."""
+    beam = analysis.beam
     sp = beam.spans[span]
     length = sp.length
     loads = np.array([ld.at for ld in beam.loads
@@ -118,15 +134,18 @@ def fixed_end_moments(analysis: Analysis, span: int) -> np.ndarray:
     w = np.concatenate(weights)
     pts = make_points(beam, np.full(x.size + 2, span), np.r_[x, 0.0, length],
                       np.r_[x < length, True, False])
-    m = evaluate_some(solved.mesh, solved.unit_cases, solved.solution, pts,
-                      ("moment",))["moment"]
-    xi = (x / length)[:, None]
-    m0 = m[:-2] - m[-2][None, :] * (1.0 - xi) - m[-1][None, :] * xi
-    a, b = (1.0 - xi)[:, 0], xi[:, 0]
+    return pts, _fem_weights(x, w, length)
+
+
+def _fem_weights(x: np.ndarray, w: np.ndarray, length: float) -> np.ndarray:
+    """(2, n + 2) weights taking the moments at the grid ``x`` and the two span ends to
+    the fixed-end moments (the solve of :func:`fixed_end_moments`, linear in them)."""
+    xi = x / length
+    a, b = 1.0 - xi, xi
     f = np.array([[np.sum(w * a * a), np.sum(w * a * b)],
                   [np.sum(w * a * b), np.sum(w * b * b)]])
-    rhs = -np.vstack([(w * a) @ m0, (w * b) @ m0])
-    return np.asarray(np.linalg.solve(f, rhs))
+    A = np.vstack([w * a, w * b])  # M0 = M - Ma (1 - xi) - Mb xi at the grid
+    return np.asarray(np.linalg.solve(f, np.c_[-A, A @ a, A @ b]))
 
 
 def _built_in(analysis: Analysis, joint: int) -> bool:
@@ -156,6 +175,7 @@ def fixed_end_floor(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[in
     lab = beam.units.labels["moment"]
     for j in range(beam.n_spans):
         fem = None
+        moving: MovingEffect | None = None
         for k, (end, joint) in enumerate((("left", j), ("right", j + 1))):
             i = 3 * j + (0 if end == "left" else 2)
             sup = beam.supports[joint]
@@ -167,7 +187,11 @@ def fixed_end_floor(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[in
                 continue
             if fem is None:
                 fem = fixed_end_moments(analysis, j)
-            low = float(reduce(fem[k:k + 1], solved.strength, labels=False).min[0])
+                moving = (moment_functional_effect(beam, *fem_functional(analysis, j))
+                          if moving_loads(beam) else None)
+            low = float(reduce(fem[k:k + 1], solved.strength, labels=False,
+                               moving=None if moving is None else
+                               moving.rows(np.array([k]))).min[0])
             floor = FIXED_END_SHARE * min(low, 0.0)
             if floor < moment[i]:
                 notes.append((i, f"face moment raised to 0.65 of the fixed-end moment "
