@@ -67,8 +67,8 @@ ACI_LARGEST = 0.20
 ACI_EPS_T_MIN = 0.0075
 #: ACI 318-19 6.6.5: the reduction, in percent, is at most 1000 eps_t (a fraction 10 eps_t).
 ACI_PER_STRAIN = 10.0
-#: EN 1992-1-1:2004 5.5(4), recommended values: k1 (fck <= 50 MPa), k3 (fck > 50 MPa),
-#: k5 (steel class B or C), k6 (class A).
+#: EN 1992-1-1:2004 5.5(4), recommended values: k1 (fck <= 50 MPa), k3 (fck > 50 MPa,
+#: from memory), k5 (steel class B or C), k6 (class A).
 EN_K1 = 0.44
 EN_K3 = 0.54
 EN_K5 = 0.7

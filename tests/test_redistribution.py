@@ -9,9 +9,9 @@ References, named beside each check:
   eps_t < 0.0075; the reduced moments used for the span moments and the shears and
   reactions from statics, for each loading arrangement;
 - EN 1992-1-1:2004 5.5(4) with the recommended values: delta >= k1 + k2 xu/d,
-  k1 = 0.44, k2 = 1.25 (0.6 + 0.0014/eps_cu2) for fck <= 50 MPa, k3 = 0.54 and
-  k4 = k2 above, eps_cu2 of Table 3.1; delta >= k5 = 0.7 (class B, C) or k6 = 0.8
-  (class A); adjacent spans within a ratio of 0.5 to 2;
+  k1 = 0.44, k2 = 1.25 (0.6 + 0.0014/eps_cu2) for fck <= 50 MPa; delta >= k5 = 0.7
+  (class B, C) or k6 = 0.8 (class A); adjacent spans within a ratio of 0.5 to 2; above
+  fck = 50 MPa k3 = 0.54, k4 = k2 and eps_cu2 of Table 3.1 are from memory;
 - the brute-force reference of tests/reference.py (each case on each cell solved
   alone, every arrangement listed), each arrangement redistributed here by hand.
 """
@@ -211,7 +211,7 @@ def test_aci_allowed_fraction_from_eps_t(eps_t: float, allowed: float) -> None:
     (0.10, 30.0, "B", 0.7),                   # k5 governs
     (0.10, 30.0, "C", 0.7),                   # k5 for class C too
     (0.10, 30.0, "A", 0.8),                   # k6, class A
-    # fck = 70: eps_cu2 = 2.6 + 35 (0.2)^4 = 2.656 per mille (Table 3.1),
+    # fck = 70 (from memory): eps_cu2 = 2.6 + 35 (0.2)^4 = 2.656 per mille (Table 3.1),
     # k4 = 1.25 (0.6 + 1.4 / 2.656), k3 = 0.54
     (0.25, 70.0, "B", 0.54 + 1.25 * (0.6 + 1.4 / 2.656) * 0.25),
 ])
