@@ -173,9 +173,33 @@ class Label:
     colour: str = INK
 
 
-def _overlaps(box: Bbox, boxes: Sequence[Bbox]) -> bool:
-    return any(box.x0 < b.x1 and b.x0 < box.x1 and box.y0 < b.y1 and b.y0 < box.y1
-               for b in boxes)
+#: Where a label may go, nearest first: rises (points) above or below its anchor, the
+#: preferred side first at each rise, then shifts along (label widths) at each.
+_RISES = np.array([4.0, 12.0, 22.0, 34.0, 48.0, 64.0, 84.0, 108.0])
+_SHIFTS = np.array([-0.5, -0.1, -0.9, 0.3, -1.3, 0.8, -1.8])
+
+
+def _first_free(ax_x: float, ax_y: float, w: float, h: float, up: float, px_per_pt: float,
+                frame: Bbox, placed: np.ndarray) -> tuple[float, float] | None:
+    """The lower-left corner (pixels) of the first place, in the order of ``_RISES``
+    and ``_SHIFTS``, where a ``w`` x ``h`` label lies inside ``frame`` and overlaps no
+    box of ``placed`` (rows x0, y0, x1, y1); None where there is none.  Every place is
+    tested at once."""
+    sides = np.array([up, -up])
+    y0 = (ax_y + sides[None, :] * _RISES[:, None] * px_per_pt
+          - np.where(sides > 0, 0.0, h)[None, :])[:, :, None]       # rise, side, 1
+    x0 = (ax_x + _SHIFTS * w)[None, None, :]                            # 1, 1, shift
+    x0, y0 = np.broadcast_arrays(x0, y0)
+    x1, y1 = x0 + w, y0 + h
+    free = (x0 >= frame.x0) & (x1 <= frame.x1) & (y0 >= frame.y0) & (y1 <= frame.y1)
+    if placed.size:
+        b = placed.T[:, None, None, None, :]
+        free &= ~((x0[..., None] < b[2]) & (b[0] < x1[..., None]) & (y0[..., None] < b[3])
+                  & (b[1] < y1[..., None])).any(axis=-1)
+    first = np.flatnonzero(free)
+    if not first.size:
+        return None
+    return float(x0.flat[first[0]]), float(y0.flat[first[0]])
 
 
 def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
@@ -187,7 +211,7 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
     renderer = fig.canvas.get_renderer() if hasattr(fig.canvas, "get_renderer") else \
         fig._get_renderer()  # type: ignore[attr-defined]
     px_per_pt = fig.dpi / 72.0
-    placed: list[Bbox] = []
+    placed: list[tuple[float, float, float, float]] = []
     frames: dict[Any, Bbox] = {}
     dropped = 0
     # one text, never drawn, measures every label: its extent at the anchor is the
@@ -208,26 +232,13 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
         probe.set_text(lab.text)
         size = probe.get_window_extent(renderer)
         w, h = size.width, size.height
-        best = None
-        up = 1.0 if lab.above else -1.0
-        for dy in (4, 12, 22, 34, 48, 64, 84, 108):
-            for side in (up, -up):
-                y0 = ax_y + side * dy * px_per_pt - (0.0 if side > 0 else h)
-                for dx in (-0.5 * w, -0.1 * w, -0.9 * w, 0.3 * w, -1.3 * w, 0.8 * w,
-                           -1.8 * w):
-                    box = Bbox.from_bounds(ax_x + dx, y0, w, h)
-                    if (box.x0 >= frame.x0 and box.x1 <= frame.x1 and box.y0 >= frame.y0
-                            and box.y1 <= frame.y1 and not _overlaps(box, placed)):
-                        best = box
-                        break
-                if best is not None:
-                    break
-            if best is not None:
-                break
-        if best is None:
+        corner = _first_free(ax_x, ax_y, w, h, 1.0 if lab.above else -1.0, px_per_pt,
+                             frame, np.array(placed))
+        if corner is None:
             dropped += 1
             continue
-        placed.append(Bbox.from_extents(best.x0 - 1, best.y0 - 1, best.x1 + 1, best.y1 + 1))
+        best = Bbox.from_bounds(corner[0], corner[1], w, h)
+        placed.append((best.x0 - 1, best.y0 - 1, best.x1 + 1, best.y1 + 1))
         # offset by the pixels between the anchor (the measured extent's corner) and
         # where the label goes
         offset = ((best.x0 - ax_x - size.x0) / px_per_pt,
@@ -345,8 +356,7 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
         fig, axes = _KEPT[key]
         for text in list(fig.texts):
             text.remove()
-        for legend in list(fig.legends):
-            legend.remove()
+        # the key stays: :func:`_key` keeps it where the next beam's is the same
         for a in axes:
             for artist in [*a.lines, *a.patches, *a.texts, *a.collections, *a.artists]:
                 artist.remove()
@@ -888,10 +898,16 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
     if "free end" in used:
         names.append("free end: no symbol")
         handles.append(Line2D([], [], ls="none"))
-    fig.legend(handles, names, loc="lower left", ncol=min(len(names), 7), fontsize=6.5,
-               frameon=False, bbox_to_anchor=(_LEFT / fig.get_figwidth() - 0.01,
-                                              0.45 / fig.get_figheight()),
-               handlelength=1.6, columnspacing=1.2, borderaxespad=0.0)
+    # a kept figure keeps its key while the symbols are the same (most beams of a batch)
+    if [getattr(legend, "_envelope_names", None) for legend in fig.legends] != [names]:
+        for legend in list(fig.legends):
+            legend.remove()
+        legend = fig.legend(handles, names, loc="lower left", ncol=min(len(names), 7),
+                            fontsize=6.5, frameon=False,
+                            bbox_to_anchor=(_LEFT / fig.get_figwidth() - 0.01,
+                                            0.45 / fig.get_figheight()),
+                            handlelength=1.6, columnspacing=1.2, borderaxespad=0.0)
+        legend._envelope_names = list(names)
     note = (f"Units {units.get('length', '')}, {units.get('force', '')}, "
             f"{units.get('moment', '')}, deflection {units.get('deflection', '')}.  "
             "Labels: value, governing combination, loaded spans; CL at the centreline.")
