@@ -14,8 +14,9 @@ tick numbers, key, caution and label words figure after figure, so here
 A new string is laid out from the glyphs' advances and pair kerning, which is what the
 shaper does for the fonts and characters of :data:`_SIMPLE` (checked pair by pair
 against matplotlib's own layout and extents in tests/test_glyphs.py); any other string
-(another font, a character outside that set, the f-ligatures ff, fi, fl, a rotated or
-math text) takes matplotlib's own layout, kept per string, or matplotlib's own drawing.
+(another font, a character outside that set, the f-ligatures ff, fi, fl) takes
+matplotlib's own layout, kept per string.  Level and upright (y label) lines are drawn
+so; text at another angle, math text or text with font features as matplotlib draws it.
 Only the raster canvas changes: SVG and PDF keep their text as text.
 """
 
@@ -254,27 +255,37 @@ class CachedTextRenderer(RendererAgg):
 
     def draw_text(self, gc: Any, x: float, y: float, s: str, prop: Any, angle: float,
                   ismath: Any = False, mtext: Any = None) -> None:
-        """Draw one line of text from cached glyphs (level text, no math, no font
-        features); anything else as matplotlib draws it."""
-        if (ismath or angle % 360 or not _GLYPH_API or not gc.get_antialiased()
+        """Draw one line of text from cached glyphs (level or upright text, no math, no
+        font features); anything else as matplotlib draws it."""
+        turn = angle % 360
+        if (ismath or turn not in (0, 90) or not _GLYPH_API or not gc.get_antialiased()
                 or (mtext is not None and (mtext.get_fontfeatures() is not None
                                            or mtext.get_language() is not None))):
             super().draw_text(gc, x, y, s, prop, angle, ismath, mtext)
             return
         flags = get_hinting_flag()
         fkey = _font_key(prop)
-        # the origin in 1/64 px (FreeType's y upwards), kept to whole position steps
-        ox, fx = divmod(round(round(64 * x) / _STEP) * _STEP, 64)
-        oy, fy = divmod(round(round(64 * (self.height - y)) / _STEP) * _STEP, 64)
+        # the origin in 1/64 px along and across the line (FreeType's y upwards), kept
+        # to whole position steps; an upright line is laid out level with the canvas
+        # turned a quarter clockwise (along = canvas up, across = canvas left)
+        along, across = (x, self.height - y) if turn == 0 else (self.height - y, -x)
+        ox, fx = divmod(round(round(64 * along) / _STEP) * _STEP, 64)
+        oy, fy = divmod(round(round(64 * across) / _STEP) * _STEP, 64)
         line = self._line(s, prop, fkey, flags, fx, fy)
         if line is None:
             super().draw_text(gc, x, y, s, prop, angle, ismath, mtext)
             return
         image, left, top = line
-        if image.size:
-            # draw_text_image takes the bitmap's bottom edge, y downwards
+        if not image.size:
+            return
+        if turn == 0:
+            # draw_text_image takes the bitmap's left and bottom edges, y downwards
             self._renderer.draw_text_image(image, ox + left,
                                            int(self.height) - (oy + top) + image.shape[0],
+                                           0, gc)
+        else:  # turned back a quarter anticlockwise onto the canvas
+            self._renderer.draw_text_image(np.ascontiguousarray(np.rot90(image)),
+                                           -(oy + top), int(self.height) - (ox + left),
                                            0, gc)
 
 

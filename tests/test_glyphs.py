@@ -101,15 +101,18 @@ def _pixels(cols: dict, canvas: type) -> np.ndarray:
 @needs_glyph_api
 def test_figure_drawn_from_cached_glyphs_matches_matplotlib(monkeypatch: pytest.MonkeyPatch
                                                            ) -> None:
-    """At unrounded glyph positions the drawing is matplotlib's, pixel for pixel, but
+    """At unrounded glyph positions the level text is matplotlib's, pixel for pixel, but
     where two glyphs' edges share a pixel (taken as the darker of the two instead of
-    blended twice); at quarter-pixel positions only faint edge pixels change."""
+    blended twice), and the upright y labels (rendered level and turned, where
+    matplotlib renders them turned) differ by a few grey levels at their edges; at
+    quarter-pixel positions only faint edge pixels change."""
     cols = _office_columns()
     reference = _pixels(cols, FigureCanvasAgg)
     _clear_caches()
     monkeypatch.setattr(glyphs, "_STEP", 1)
     exact = np.abs(_pixels(cols, glyphs.CachedTextCanvas) - reference).max(axis=2)
-    assert np.count_nonzero(exact) < 100 and exact.max() < 128
+    assert np.count_nonzero(exact > 16) < 20 and exact.max() < 128
+    assert np.count_nonzero(exact) < 1000
     monkeypatch.undo()
     _clear_caches()
     rounded = np.abs(_pixels(cols, glyphs.CachedTextCanvas) - reference).max(axis=2)
