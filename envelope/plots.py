@@ -31,6 +31,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
+from weakref import WeakKeyDictionary
 
 import matplotlib as mpl
 import numpy as np
@@ -868,6 +869,10 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
 # --------------------------------------------------------------------------- the key
 
 
+#: The names in each key drawn (a kept figure keeps its key while they stay the same).
+_KEY_NAMES: WeakKeyDictionary[Any, list[str]] = WeakKeyDictionary()
+
+
 def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str]) -> None:
     """A key to the symbols drawn, in one row under the panels."""
     handles = [Line2D([], [], color=MAX_COLOUR, lw=1.4), Line2D([], [], color=MIN_COLOUR,
@@ -899,7 +904,7 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
         names.append("free end: no symbol")
         handles.append(Line2D([], [], ls="none"))
     # a kept figure keeps its key while the symbols are the same (most beams of a batch)
-    if [getattr(legend, "_envelope_names", None) for legend in fig.legends] != [names]:
+    if [_KEY_NAMES.get(legend) for legend in fig.legends] != [names]:
         for legend in list(fig.legends):
             legend.remove()
         legend = fig.legend(handles, names, loc="lower left", ncol=min(len(names), 7),
@@ -907,7 +912,7 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
                             bbox_to_anchor=(_LEFT / fig.get_figwidth() - 0.01,
                                             0.45 / fig.get_figheight()),
                             handlelength=1.6, columnspacing=1.2, borderaxespad=0.0)
-        legend._envelope_names = list(names)
+        _KEY_NAMES[legend] = list(names)
     note = (f"Units {units.get('length', '')}, {units.get('force', '')}, "
             f"{units.get('moment', '')}, deflection {units.get('deflection', '')}.  "
             "Labels: value, governing combination, loaded spans; CL at the centreline.")
