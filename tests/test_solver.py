@@ -15,6 +15,7 @@ import pytest
 from envelope.banded import NotPositiveDefinite, cholesky_upper, solve_upper
 from envelope.solver import element_end_forces, element_end_forces_exact
 
+from beams import beam_text
 from tolerances import REARRANGED, ROUND_OFF, SAME_ALGORITHM, ULPS
 
 
@@ -118,62 +119,18 @@ def test_banded_cholesky_refuses_a_singular_matrix() -> None:
         cholesky_upper(ab)
 
 
-_SETTLED_HINGED = """
-id = "blocks"
-units = "SI"
-[section]
-E = "1 kN/m^2"
-I = "1 m^4"
-[[spans]]
-length = 5.0
-[[spans]]
-length = 4.0
-hinges = [{ at = 1.5 }]
-[[spans]]
-length = 6.0
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "spring"
-k_vertical = 2.0
-[[supports]]
-type = "fixed"
-[cases]
-D = { kind = "dead" }
-L = { kind = "live" }
-S = { kind = "settlement" }
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 2.0
-[[loads]]
-case = "L"
-type = "point"
-spans = [1, 3]
-P = 3.0
-at = 2.0
-[[loads]]
-case = "L"
-type = "moment"
-spans = 2
-M = 1.5
-at = 0.5
-[[loads]]
-case = "S"
-type = "settlement"
-support = 2
-delta = 0.01
-[[combinations.custom]]
-name = "U"
-set = "strength"
-factors = { D = 1.2, L = 1.6, S = 1.0 }
-[patterning]
-method = "segments"
-segments = 3
-"""
+_SETTLED_HINGED = beam_text(
+    [5.0, {"length": 4.0, "hinges": [{"at": 1.5}]}, 6.0],
+    ["pinned", "pinned", {"type": "spring", "k_vertical": 2.0}, "fixed"],
+    [{"case": "D", "type": "uniform", "spans": "all", "w": 2.0},
+     {"case": "L", "type": "point", "spans": [1, 3], "P": 3.0, "at": 2.0},
+     {"case": "L", "type": "moment", "spans": 2, "M": 1.5, "at": 0.5},
+     {"case": "S", "type": "settlement", "support": 2, "delta": 0.01}],
+    cases={"D": "dead", "L": "live", "S": "settlement"},
+    combinations={"custom": [{"name": "U", "set": "strength",
+                              "factors": {"D": 1.2, "L": 1.6, "S": 1.0}}]},
+    patterning={"method": "segments", "segments": 3},
+    top={"id": "blocks"})
 
 
 @pytest.mark.parametrize("per_block", [1, 2, 5])

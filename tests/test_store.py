@@ -18,6 +18,8 @@ from envelope.store import (
     string_column,
 )
 
+from beams import beam_text
+
 
 def test_columns_round_trip_with_nulls() -> None:
     f = float_column(np.array([1.5, 2.0, -3.25]), np.array([False, True, False]))
@@ -39,63 +41,17 @@ def test_nan_and_infinity_are_refused_but_nulls_pass() -> None:
             check_finite(table, "t")
 
 
-_SEGMENTED = """
-id = "chunks"
-units = "SI"
-[section]
-E = "1 kN/m^2"
-I = "1 m^4"
-[[spans]]
-length = 5.0
-[[spans]]
-length = 4.0
-[[spans]]
-length = 6.0
-[[spans]]
-length = 4.5
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "fixed"
-[cases]
-D = { kind = "dead" }
-L = { kind = "live" }
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 2.0
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 3.0
-[[loads]]
-case = "L"
-type = "point"
-spans = [2, 4]
-P = 5.0
-at = 1.5
-[[combinations.custom]]
-name = "1.2D+1.6L"
-set = "strength"
-factors = { D = 1.2, L = 1.6 }
-[[combinations.custom]]
-name = "D+L"
-set = "service"
-factors = { D = 1.0, L = 1.0 }
-[patterning]
-method = "segments"
-segments = 3
-[output]
-stations_per_span = 9
-"""
+_SEGMENTED = beam_text(
+    [5.0, 4.0, 6.0, 4.5], ["pinned"] * 4 + ["fixed"],
+    [{"case": "D", "type": "uniform", "spans": "all", "w": 2.0},
+     {"case": "L", "type": "uniform", "spans": "all", "w": 3.0},
+     {"case": "L", "type": "point", "spans": [2, 4], "P": 5.0, "at": 1.5}],
+    cases={"D": "dead", "L": "live"},
+    combinations={"custom": [
+        {"name": "1.2D+1.6L", "set": "strength", "factors": {"D": 1.2, "L": 1.6}},
+        {"name": "D+L", "set": "service", "factors": {"D": 1.0, "L": 1.0}}]},
+    patterning={"method": "segments", "segments": 3}, output={"stations_per_span": 9},
+    top={"id": "chunks"})
 
 
 def _envelope_file(tmp_path, name: str, text: str):  # type: ignore[no-untyped-def]
