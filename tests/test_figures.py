@@ -21,61 +21,28 @@ import envelope
 from envelope import plots, store
 from envelope.sketch import MAX_LOADS
 
+from beams import beam_text
+
 ROOT = Path(__file__).resolve().parents[1]
 CASES = sorted((ROOT / "cases").glob("*.toml"))
 DEMO = Path(str(files("envelope") / "data" / "demo.toml"))
 
-TEN_SPANS = """
-title = "Ten bays, unequal spans"
-units = "SI"
-[section]
-E = 30000
-I = 2.0e10
-A = 400000
-unit_weight = 25.0
-""" + "".join(f"[[spans]]\nlength = {L}\n" for L in (6.0, 5.0, 3.5, 7.0, 2.5, 6.5, 4.0, 3.0,
-                                                     5.5, 4.5)) + "".join(
-    f"[[supports]]\n{s}\n" for s in (
-        'type = "pinned"\nwidth = 0.4', 'type = "pinned"\nwidth = 0.4',
-        'type = "spring"\nk_vertical = 80000', 'type = "pinned"\nwidth = 0.4',
-        'type = "pinned"\nwidth = 0.4', 'type = "fixed"', 'type = "pinned"\nwidth = 0.4',
-        'type = "pinned"', 'type = "pinned"\nwidth = 0.3', 'type = "pinned"\nwidth = 0.4',
-        'type = "pinned"')) + """
-[cases]
-D = { kind = "dead" }
-L = { kind = "live" }
-[[loads]]
-case = "D"
-type = "self_weight"
-spans = "all"
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 20.0
-[[loads]]
-case = "L"
-type = "uniform"
-spans = "all"
-w = 15.0
-[[loads]]
-case = "L"
-type = "point"
-spans = 4
-P = 60.0
-at = 3.0
-[[loads]]
-case = "D"
-type = "moment"
-spans = 6
-M = 40.0
-at = 2.0
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-[patterning]
-method = "exhaustive"
-"""
+TEN_SPANS = beam_text(
+    [6.0, 5.0, 3.5, 7.0, 2.5, 6.5, 4.0, 3.0, 5.5, 4.5],
+    [{"type": "pinned", "width": 0.4}, {"type": "pinned", "width": 0.4},
+     {"type": "spring", "k_vertical": 80000}, {"type": "pinned", "width": 0.4},
+     {"type": "pinned", "width": 0.4}, "fixed", {"type": "pinned", "width": 0.4}, "pinned",
+     {"type": "pinned", "width": 0.3}, {"type": "pinned", "width": 0.4}, "pinned"],
+    [{"case": "D", "type": "self_weight", "spans": "all"},
+     {"case": "D", "type": "uniform", "spans": "all", "w": 20.0},
+     {"case": "L", "type": "uniform", "spans": "all", "w": 15.0},
+     {"case": "L", "type": "point", "spans": 4, "P": 60.0, "at": 3.0},
+     {"case": "D", "type": "moment", "spans": 6, "M": 40.0, "at": 2.0}],
+    section={"E": 30000, "I": 2.0e10, "A": 400000, "unit_weight": 25.0},
+    cases={"D": "dead", "L": "live"},
+    combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+    patterning={"method": "exhaustive"},
+    top={"title": "Ten bays, unequal spans"})
 
 
 def _analysis(path: Path) -> envelope.api.Analysis:
@@ -352,36 +319,13 @@ def test_the_sketch_keeps_at_most_its_limit_of_load_items() -> None:
     assert sk["loads_omitted"] > 0
 
 
-HINGED = """
-title = "Two spans, a hinge in the first, the middle support settling"
-units = "SI"
-[section]
-E = 30000
-I = 1.0e10
-[[spans]]
-length = 6.0
-[[spans.hinges]]
-at = 4.5
-[[spans]]
-length = 6.0
-[[supports]]
-type = "fixed"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-D = { kind = "dead" }
-S = { kind = "dead" }
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 10.0
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-"""
+HINGED = beam_text(
+    [{"length": 6.0, "hinges": [{"at": 4.5}]}, 6.0], ["fixed", "pinned", "pinned"],
+    [{"case": "D", "type": "uniform", "spans": "all", "w": 10.0}],
+    section={"E": 30000, "I": 1.0e10},
+    cases={"D": "dead", "S": "dead"},
+    combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+    top={"title": "Two spans, a hinge in the first, the middle support settling"})
 
 
 def test_hinges_and_settlement_of_a_case_are_drawn(tmp_path: Path) -> None:
