@@ -62,3 +62,8 @@ INTEGRATED = 1e-11
 #: the round-off of the solve times the stiffness matrix's condition (about 1e3 to 1e4
 #: for a few elements of EI = 1), so a digit or two less than forces (SMALL_SOLVE).
 DISPLACEMENT = 1e-10
+
+#: Hundreds to thousands of load items summed into one result (500 abutting partial
+#: loads, 5000 point loads on a span): each item exact to round-off, the sum losing up
+#: to n * eps of its largest term for n in the thousands, a hundred times LONG_SUM.
+MANY_LOADS = 1e-10
