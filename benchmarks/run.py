@@ -16,7 +16,9 @@ f. start-up to the floor: ``envelope run --no-plots`` of a 2-span beam with unit
    and ``envelope check`` against ``python -c "import numpy, pyarrow.parquet"``, with the
    costliest imports that remain;
 g. a long segmented beam (4 segments a span, 41 stations a span): time and peak memory
-   as the spans grow, and the growth of each doubling against the inherent n^2.
+   as the spans grow, and the growth of each doubling against the inherent n^2;
+h. the same beams stage by stage (:mod:`stages`, one child process a beam): CPU time of
+   each stage and its growth per doubling against n^2, and the peak memory.
 
 The machine may be shared and noisy: each timing is the best of several repeats, and
 the two sides of each ratio are interleaved (A B B A A B ...), so that a slow spell
@@ -29,6 +31,7 @@ from __future__ import annotations
 import argparse
 import datetime
 import importlib.util
+import itertools
 import json
 import os
 import platform
@@ -762,11 +765,52 @@ def bench_long(plan: Plan, work: Path, targets: list[Target]) -> dict[str, Any]:
     return {"rows": rows}
 
 
+# -- (h) the stages of a long segmented beam ------------------------------------------
+
+
+def bench_stages(plan: Plan, work: Path, targets: list[Target]) -> dict[str, Any]:
+    say("(h) stages of the long segmented beam: CPU s per stage, growth per doubling / n^2")
+    rows: list[dict[str, Any]] = []
+    for n in plan.long_spans:
+        case = work / f"long-{n}.toml"
+        case.write_text(segmented_beam(n))
+        out = work / "out-h"
+        proc = subprocess.run([sys.executable, str(HERE / "stages.py"), str(case), str(out)],
+                              capture_output=True, text=True, check=True)
+        shutil.rmtree(out, ignore_errors=True)
+        rows.append(json.loads(proc.stdout.strip().splitlines()[-1]))
+    names = list(rows[0]["seconds"])
+    say(row("  stage", *(f"{r['spans']} spans" for r in rows),
+            widths=(14, *(12,) * len(rows))))
+    for name in names:
+        say(row(f"  {name}", *(r["seconds"][name] for r in rows),
+                widths=(14, *(12,) * len(rows))))
+    say(row("  peak MiB", *(r["peak_mib"] for r in rows), widths=(14, *(12,) * len(rows))))
+    worst: dict[str, float] = {}
+    for name in names:
+        for a, b in itertools.pairwise(rows):
+            n2 = (b["spans"] / a["spans"]) ** 2
+            # stages under 10 ms a run are timing noise, not growth
+            if a["seconds"][name] >= 0.01:
+                growth = b["seconds"][name] / a["seconds"][name] / n2
+                worst[name] = max(worst.get(name, 0.0), growth)
+    say("  worst doubling / n^2: " + ", ".join(f"{k} {v:.2f}" for k, v in worst.items()))
+    top = max(worst.values(), default=float("nan"))
+    targets.append(Target("(h) worst stage doubling: CPU growth / n^2", top, "<= 1", top <= 1.0,
+                          f"up to {rows[-1]['spans']} spans"))
+    last = rows[-1]
+    judged = last["spans"] >= 512
+    targets.append(Target(f"(h) peak MiB in-process, {last['spans']} spans", last["peak_mib"],
+                          "<= 512", last["peak_mib"] <= 512 if judged else None,
+                          "" if judged else "target is for 512 spans"))
+    return {"rows": rows, "worst_growth_over_n2": worst}
+
+
 # -- main --------------------------------------------------------------------------
 
 SECTIONS: dict[str, Callable[[Plan, Path, list[Target]], dict[str, Any]]] = {
     "a": bench_loop, "b": bench_growth, "c": bench_startup, "d": bench_batch,
-    "e": bench_memory, "f": bench_floor, "g": bench_long}
+    "e": bench_memory, "f": bench_floor, "g": bench_long, "h": bench_stages}
 
 
 def source_state() -> str:
@@ -793,14 +837,14 @@ def main(argv: Sequence[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--quick", action="store_true", help="a reduced run (about 2 minutes)")
     parser.add_argument("--json", type=Path, help="write every figure to this JSON file")
-    parser.add_argument("--only", default="abcdefg", help="sections to run, e.g. a,c")
+    parser.add_argument("--only", default="abcdefgh", help="sections to run, e.g. a,c")
     parser.add_argument("--work", type=Path, help="scratch folder (default: a temporary one)")
     opts = parser.parse_args(argv)
     plan = QUICK if opts.quick else FULL
     chosen = [s for s in opts.only.replace(",", "") if s.strip()]
     unknown = sorted(set(chosen) - set(SECTIONS))
     if unknown:
-        parser.error(f"--only: no section {', '.join(unknown)} (sections: a to g)")
+        parser.error(f"--only: no section {', '.join(unknown)} (sections: a to h)")
 
     work = opts.work or Path(tempfile.mkdtemp(prefix="envelope-bench-"))
     work.mkdir(parents=True, exist_ok=True)

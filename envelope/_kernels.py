@@ -1,7 +1,13 @@
 """numba kernels: arrays in, arrays out, nothing else of the package imported.
 
-One kernel: the particular (load) terms of every load item at every point on the
-same element, accumulated straight into the (points x unit cases) response
+Three kernels.  :func:`column_sums`: the enveloper's superposition sums (fixed,
+positive and negative per-unit parts, groups) in one pass over the responses, each
+row by itself (see :func:`envelope.enveloper.column_extremes`, whose matrix products
+are the tested reference).  :func:`responses`: the whole response of every unit case
+at the points in one pass (start state, load terms, signs; the numpy path of
+:func:`envelope.recovery.evaluate_some` is the tested reference).
+:func:`particular_terms`: the particular (load) terms of every load item at every
+point on the same element, accumulated straight into the (points x unit cases) response
 arrays.  The numpy path of :func:`envelope.recovery.evaluate_some` builds every
 (point, item) pair as arrays first, which for thousands of load items on one
 element costs memory and time in proportion to points x items; this kernel
@@ -47,6 +53,39 @@ def pack_items(unit: np.ndarray, kind: np.ndarray, a: np.ndarray, b: np.ndarray,
             np.stack([a, b, wa, wb, p]).astype(np.float64))
 
 
+@njit(cache=True, fastmath=False)
+def _item_terms(kind: int, a: float, b: float, wa: float, wb: float, pv: float,
+                sp: float, right: float, gx: np.ndarray, gw: np.ndarray
+                ) -> tuple[bool, float, float, float, float]:  # pragma: no cover
+    """One load item's terms (acting?, Q, m, m1, m2) at local position ``sp``: what
+    :func:`envelope.loadterms.load_terms` computes for one (point, item) pair."""
+    if kind == 0:  # distributed, linear from wa at a to wb at b
+        c = min(max(sp, a), b)
+        half = 0.5 * (c - a)
+        width = b - a
+        slope = (wb - wa) / width if width > 0.0 else 0.0
+        q0 = 0.0
+        q1 = 0.0
+        q2 = 0.0
+        q3 = 0.0
+        for g in range(3):
+            t = a + half * (1.0 + gx[g])
+            wq = gw[g] * half * (wa + slope * (t - a))
+            r = sp - t
+            q0 += wq
+            q1 += wq * r
+            q2 += wq * r * r / 2.0
+            q3 += wq * r * r * r / 6.0
+        return True, q0, q1, q2, q3
+    d = sp - a
+    on = d > 0.0 or (d == 0.0 and right != 0.0)
+    if not on:
+        return False, 0.0, 0.0, 0.0, 0.0
+    if kind == 1:  # point force
+        return True, pv, pv * d, pv * d * d / 2.0, pv * d * d * d / 6.0
+    return True, 0.0, -pv, -pv * d, -pv * d * d / 2.0  # clockwise point moment
+
+
 @njit(cache=True, parallel=True, fastmath=False)
 def particular_terms(point_elem: np.ndarray, point: np.ndarray, first_item: np.ndarray,
                      item_int: np.ndarray, item: np.ndarray, gauss: np.ndarray,
@@ -61,64 +100,129 @@ def particular_terms(point_elem: np.ndarray, point: np.ndarray, first_item: np.n
     s = point[POINT_S]
     point_ei = point[POINT_EI]
     right = point[POINT_RIGHT]
-    item_unit = item_int[ITEM_UNIT]
-    item_kind = item_int[ITEM_KIND]
-    item_a = item[ITEM_A]
-    item_b = item[ITEM_B]
-    item_wa = item[ITEM_WA]
-    item_wb = item[ITEM_WB]
-    item_p = item[ITEM_P]
-    gx = gauss[0]
-    gw = gauss[1]
-    n_points = s.size
-    for p in prange(n_points):
+    for p in prange(s.size):
         e = point_elem[p]
-        sp = s[p]
         ei = point_ei[p]
         for it in range(first_item[e], first_item[e + 1]):
-            u = item_unit[it]
-            kind = item_kind[it]
-            a = item_a[it]
-            if kind == 0:  # distributed, linear from wa at a to wb at b
-                b = item_b[it]
-                c = min(max(sp, a), b)
-                half = 0.5 * (c - a)
-                width = b - a
-                slope = (item_wb[it] - item_wa[it]) / width if width > 0.0 else 0.0
-                q0 = 0.0
-                q1 = 0.0
-                q2 = 0.0
-                q3 = 0.0
-                for g in range(3):
-                    t = a + half * (1.0 + gx[g])
-                    wq = gw[g] * half * (item_wa[it] + slope * (t - a))
-                    r = sp - t
-                    q0 += wq
-                    q1 += wq * r
-                    q2 += wq * r * r / 2.0
-                    q3 += wq * r * r * r / 6.0
-            else:
-                d = sp - a
-                on = d > 0.0 or (d == 0.0 and right[p] != 0.0)
-                if not on:
-                    continue
-                pv = item_p[it]
-                if kind == 1:  # point force
-                    q0 = pv
-                    q1 = pv * d
-                    q2 = pv * d * d / 2.0
-                    q3 = pv * d * d * d / 6.0
-                else:  # clockwise point moment
-                    q0 = 0.0
-                    q1 = -pv
-                    q2 = -pv * d
-                    q3 = -pv * d * d / 2.0
+            on, q0, q1, q2, q3 = _item_terms(
+                item_int[ITEM_KIND, it], item[ITEM_A, it], item[ITEM_B, it],
+                item[ITEM_WA, it], item[ITEM_WB, it], item[ITEM_P, it], s[p], right[p],
+                gauss[0], gauss[1])
+            if not on:
+                continue
+            u = item_int[ITEM_UNIT, it]
             out[0, p, u] -= q0
             out[1, p, u] -= q1
             out[2, p, u] -= q2 / ei
             out[3, p, u] -= q3 / ei
 
 
+@njit(cache=True, fastmath=False)
+def _start_state(state: np.ndarray, e: int, sp: float, ei: float, slot: np.ndarray,
+                 out: np.ndarray, p: int) -> None:  # pragma: no cover
+    """Element e's start state carried to local ``sp``, every unit case, into the
+    wanted rows of ``out`` (see :func:`responses`): upward slope and deflection."""
+    k_v, k_m, k_r, k_d = slot[0], slot[1], slot[2], slot[3]
+    s2 = sp * sp
+    s3 = s2 * sp
+    for u in range(state.shape[2]):
+        v0 = state[0, e, u]
+        m0 = state[1, e, u]
+        th1 = state[2, e, u]
+        if k_v >= 0:
+            out[k_v, p, u] = v0
+        if k_m >= 0:
+            out[k_m, p, u] = m0 + v0 * sp
+        if k_r >= 0:
+            out[k_r, p, u] = th1 + (m0 * sp + v0 * s2 / 2.0) / ei
+        if k_d >= 0:
+            out[k_d, p, u] = state[3, e, u] + th1 * sp + (m0 * s2 / 2.0 + v0 * s3 / 6.0) / ei
+
+
+@njit(cache=True, fastmath=False)
+def _less_terms(q: tuple[float, float, float, float], u: int, ei: float, slot: np.ndarray,
+                out: np.ndarray, p: int) -> None:  # pragma: no cover
+    """Subtract one item's (Q, m, m1, m2) from unit case u's wanted rows at point p."""
+    for k in range(4):
+        if slot[k] >= 0:
+            out[slot[k], p, u] -= q[k] if k < 2 else q[k] / ei
+
+
+@njit(cache=True, parallel=True, fastmath=False)
+def responses(point_elem: np.ndarray, point: np.ndarray, first_item: np.ndarray,
+              item_int: np.ndarray, item: np.ndarray, gauss: np.ndarray,
+              state: np.ndarray, slot: np.ndarray, out: np.ndarray
+              ) -> None:  # pragma: no cover
+    """Shear, moment, rotation and deflection of every unit case at every point, in one
+    pass: the element's start state carried to the point, less the load terms of the
+    element's items, in the contract's signs (deflection downward, rotation clockwise).
+
+    ``state`` (4, n_elements, n_units) is V0, M0, theta1, v1 (``Solution.state``);
+    ``slot`` (4,) int64 gives, for shear, moment, rotation and deflection, the index in
+    ``out`` (n_wanted, n_points, n_units) to write, or -1 for a quantity not wanted.
+    The other arguments are those of :func:`particular_terms`.  The same arithmetic as
+    :func:`envelope.recovery.evaluate_some`'s numpy path, which the tests compare
+    with it; each point is computed by itself."""
+    s = point[POINT_S]
+    point_ei = point[POINT_EI]
+    right = point[POINT_RIGHT]
+    for p in prange(s.size):
+        e = point_elem[p]
+        ei = point_ei[p]
+        _start_state(state, e, s[p], ei, slot, out, p)
+        for it in range(first_item[e], first_item[e + 1]):
+            on, q0, q1, q2, q3 = _item_terms(
+                item_int[ITEM_KIND, it], item[ITEM_A, it], item[ITEM_B, it],
+                item[ITEM_WA, it], item[ITEM_WB, it], item[ITEM_P, it], s[p], right[p],
+                gauss[0], gauss[1])
+            if on:
+                _less_terms((q0, q1, q2, q3), item_int[ITEM_UNIT, it], ei, slot, out, p)
+        for k in (2, 3):  # downward deflection, clockwise rotation
+            if slot[k] >= 0:
+                out[slot[k], p] *= -1.0
+
+
 def gauss_rule() -> np.ndarray:
     """(2, 3): the three-point Gauss-Legendre abscissae and weights on [-1, 1]."""
     return np.stack([_GX, _GW])
+
+
+#: Layout of the packed shape argument of :func:`column_sums`: fixed columns, patterned
+#: (on/off per unit) columns, distinct group vectors.
+SUM_FIXED, SUM_PATTERNED, SUM_GROUPS = 0, 1, 2
+
+
+@njit(cache=True, parallel=True, fastmath=False)
+def column_sums(R: np.ndarray, coef: np.ndarray, shape: np.ndarray,
+                out: np.ndarray) -> None:  # pragma: no cover
+    """The enveloper's superposition sums in one pass over the responses, row by row.
+
+    ``R`` (rows, units) responses; ``coef`` (units, f + p + g) the fixed, patterned and
+    group coefficients side by side; ``shape`` (3,) int64 = (f, p, g).  Writes ``out``
+    (rows, f + 2 p + g): sum_u R c for each fixed column, then sum_u max(R c, 0) and
+    sum_u min(R c, 0) for each patterned column, then sum_u R c for each group.
+
+    Each row is summed in unit order, by itself: its values do not depend on which
+    other rows are in the block (a matrix product's may), so an envelope computed in
+    blocks of any size is the same, bit for bit."""
+    n_rows, n_units = R.shape
+    n_f = shape[SUM_FIXED]
+    n_p = shape[SUM_PATTERNED]
+    n_g = shape[SUM_GROUPS]
+    for r in prange(n_rows):
+        acc = np.zeros(n_f + 2 * n_p + n_g)
+        for u in range(n_units):
+            a = R[r, u]
+            c = coef[u]
+            for j in range(n_f):
+                acc[j] += a * c[j]
+            for j in range(n_p):
+                t = a * c[n_f + j]
+                if t > 0.0:
+                    acc[n_f + j] += t
+                else:
+                    acc[n_f + n_p + j] += t
+            for j in range(n_g):
+                acc[n_f + 2 * n_p + j] += a * c[n_f + n_p + j]
+        for j in range(n_f + 2 * n_p + n_g):
+            out[r, j] = acc[j]

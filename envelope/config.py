@@ -31,9 +31,17 @@ STATION_CHUNK_ROWS = 2048
 #: unit cases: 128 rows a block).
 ENVELOPE_CHUNK_VALUES = 1 << 19
 
+#: From this many unit cases on (and whenever the stations are enveloped in more than
+#: one block) the enveloper's sums are made by the numba kernel: one pass over the
+#: responses instead of three matrix products, and each row's value independent of
+#: the block it is computed in.  Below it numpy's products are quicker than importing
+#: numba.
+REDUCE_KERNEL_MIN_UNITS = 512
+
 #: Most (elements x unit cases) values in one block of columns of the solve: its
-#: working arrays are (elements x 4 x unit cases) float64, 8 MiB each at this size.
-SOLVE_CHUNK_VALUES = 1 << 18
+#: working arrays are (elements x 4 x unit cases) float64, 2 MiB each at this size
+#: (a dozen of them live at once).
+SOLVE_CHUNK_VALUES = 1 << 16
 
 #: Spans of stations in one row group of envelope.parquet: each row group is built and
 #: written on its own, with its own dictionary of ``_loaded`` texts.

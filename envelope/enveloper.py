@@ -451,10 +451,28 @@ def _add_moving(vmax: np.ndarray, vmin: np.ndarray, cs: CaseSet,
     vmin += moving.min @ fp + moving.max @ fn
 
 
-def column_extremes(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
+def column_extremes(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None,
+                    kernel: bool = False
                     ) -> tuple[np.ndarray, np.ndarray]:
     """Largest and smallest value of every column over all subsets of its on/off parts:
-    two (rows x columns) arrays.
+    two (rows x columns) arrays (``moving``, ``kernel``: see :func:`_extremes`)."""
+    vmax, vmin, _ = _extremes(R, cs, kernel, moving=moving)
+    return vmax, vmin
+
+
+def column_max(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None,
+               kernel: bool = False) -> np.ndarray:
+    """The largest value of every column (rows x columns): the first array of
+    :func:`column_extremes`, without the cost of the smallest (for searches)."""
+    return _extremes(R, cs, kernel, smallest=False, moving=moving)[0]
+
+
+def _extremes(R: np.ndarray, cs: CaseSet, kernel: bool = False, smallest: bool = True,
+              moving: MovingEffect | None = None
+              ) -> tuple[np.ndarray, np.ndarray, np.ndarray | None]:
+    """:func:`column_extremes` and the groups' values (rows x groups, None without
+    groups); with ``smallest`` False the second array is not the smallest value where
+    dead load is pattern-dependent (left undone).
 
     For the per-unit parts, where dead load does not depend on the pattern, the sum of
     positive parts is sum(max(R_u p_u, 0)) = (R @ P + |R| @ |P|) / 2, since
@@ -462,27 +480,23 @@ def column_extremes(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = No
     max(R @ G, 0) summed by column (one more product).  Columns with a
     pattern-dependent (favourable) dead load take the cell-by-cell choice of
     :func:`_superposed_values`.  ``moving`` adds the moving cases' worst effects at
-    each row (:mod:`envelope.moving`)."""
-    return _column_bounds(R, cs, True, moving)
+    each row (:mod:`envelope.moving`).
 
-
-def column_max(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
-               ) -> np.ndarray:
-    """The largest value of every column (rows x columns): the first array of
-    :func:`column_extremes`, without the cost of the smallest (for searches)."""
-    return _column_bounds(R, cs, False, moving)[0]
-
-
-def _column_bounds(R: np.ndarray, cs: CaseSet, smallest: bool,
-                   moving: MovingEffect | None = None) -> tuple[np.ndarray, np.ndarray]:
-    """:func:`column_extremes`; with ``smallest`` False the second array is not the
-    smallest value where dead load is pattern-dependent (left undone)."""
-    base = R @ cs.fixed
+    With ``kernel`` the sums are those of :func:`envelope._kernels.column_sums`: one
+    pass over ``R``, each row summed by itself in unit order (the same to round-off as
+    the matrix products, which stay the reference; a row's value then does not depend
+    on the block of rows it is computed in)."""
+    gv: np.ndarray | None = None
+    if kernel:
+        base, vmax, vmin, gv = _kernel_sums(R, cs)
+    else:
+        base = R @ cs.fixed
     if isinstance(cs, SuperposedCaseSet):
-        signed = R @ cs.patterned
-        spread = np.abs(R) @ np.abs(cs.patterned)
-        vmax = base + 0.5 * (signed + spread)
-        vmin = base + 0.5 * (signed - spread)
+        if not kernel:
+            signed = R @ cs.patterned
+            spread = np.abs(R) @ np.abs(cs.patterned)
+            vmax = base + 0.5 * (signed + spread)
+            vmin = base + 0.5 * (signed - spread)
         fav = np.flatnonzero(cs.dead_var.any(axis=0))
         if fav.size:
             onehot = _cell_onehot(cs)
@@ -493,13 +507,37 @@ def _column_bounds(R: np.ndarray, cs: CaseSet, smallest: bool,
     else:
         vmax, vmin = base, base.copy()
     if cs.group_col.size:
-        gv = (R @ cs.groups)[:, cs.group_src]
+        gv = (R @ cs.groups if gv is None else gv)[:, cs.group_src]
         # groups are stored column by column: sum each column's run of groups
         cols, starts = np.unique(cs.group_col, return_index=True)
         vmax[:, cols] += np.add.reduceat(np.maximum(gv, 0.0), starts, axis=1)
         vmin[:, cols] += np.add.reduceat(np.minimum(gv, 0.0), starts, axis=1)
+    else:
+        gv = None
     _add_moving(vmax, vmin, cs, moving)
-    return vmax, vmin
+    return vmax, vmin, gv
+
+
+def _kernel_sums(R: np.ndarray, cs: CaseSet
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """By :func:`envelope._kernels.column_sums`: R @ fixed, R @ fixed plus the sum of
+    the positive and of the negative per-unit parts (rows x columns; the per-unit parts
+    of an explicit set are none), and R @ groups (rows x distinct groups)."""
+    from envelope import _kernels  # numba is imported only here
+
+    patterned = cs.patterned if isinstance(cs, SuperposedCaseSet) else cs.fixed[:, :0]
+    n_f, n_p, n_g = cs.fixed.shape[1], patterned.shape[1], cs.groups.shape[1]
+    coef = np.ascontiguousarray(np.concatenate([cs.fixed, patterned, cs.groups], axis=1))
+    out = np.empty((R.shape[0], n_f + 2 * n_p + n_g))
+    _kernels.column_sums(np.ascontiguousarray(R, dtype=np.float64), coef,
+                         np.array([n_f, n_p, n_g], dtype=np.int64), out)
+    base = out[:, :n_f]
+    if n_p:
+        vmax = base + out[:, n_f:n_f + n_p]
+        vmin = base + out[:, n_f + n_p:n_f + 2 * n_p]
+    else:
+        vmax, vmin = base.copy(), base.copy()
+    return base, vmax, vmin, out[:, n_f + 2 * n_p:]
 
 
 def superposed_extremes(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
@@ -517,14 +555,15 @@ def superposed_extremes(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None 
     return out_max, out_min
 
 
-def _choices(R: np.ndarray, cs: CaseSet, col: np.ndarray, sign: float
+def _choices(R: np.ndarray, cs: CaseSet, col: np.ndarray, sign: float,
+             gv: np.ndarray | None = None
              ) -> tuple[np.ndarray, np.ndarray | None, np.ndarray]:
     """The governing choice at each row for its own column: chosen patterned units
     (rows x units), where dead load is pattern-dependent the loaded cells, and the
-    groups acting (rows x groups)."""
+    groups acting (rows x groups; ``gv``: their values, when already known)."""
     groups = np.zeros((R.shape[0], cs.group_col.size), dtype=bool)
     if cs.group_col.size:
-        gv = (R @ cs.groups)[:, cs.group_src]
+        gv = (R @ cs.groups)[:, cs.group_src] if gv is None else gv
         groups = ((sign * gv) > 0.0) & (cs.group_col[None, :] == col[:, None])
     if not isinstance(cs, SuperposedCaseSet):  # explicit: no unit is switched
         return np.zeros(R.shape, dtype=bool), None, groups
@@ -574,7 +613,7 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet, moving: MovingEffect | No
 
 def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True,
            known: dict[bytes, str] | None = None,
-           moving: MovingEffect | None = None) -> Extremes:
+           moving: MovingEffect | None = None, kernel: bool = False) -> Extremes:
     """Envelope of the responses ``R`` over a case set, exact by superposition.
 
     Parameters
@@ -594,6 +633,8 @@ def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True,
     moving : MovingEffect, optional
         The worst effects of the moving cases (concentrated loads, trains) at each
         row (:mod:`envelope.moving`), added to every combination at its factor.
+    kernel : bool
+        Make the sums by the numba kernel (see :func:`column_extremes`).
 
     Returns
     -------
@@ -602,13 +643,13 @@ def reduce(R: np.ndarray, cs: CaseSet, labels: bool = True,
         governing combination (an index into ``cs.combinations``) and the loaded
         text of each.
     """
-    vmax, vmin = column_extremes(R, cs, moving)
+    vmax, vmin, gv = _extremes(R, cs, kernel, moving=moving)
     rows = np.arange(R.shape[0])
     c_max, c_min = np.argmax(vmax, axis=1), np.argmin(vmin, axis=1)
     if labels:
         known = {} if known is None else known
-        t_max = _labels(cs, c_max, *_choices(R, cs, c_max, 1.0), known)
-        t_min = _labels(cs, c_min, *_choices(R, cs, c_min, -1.0), known)
+        t_max = _labels(cs, c_max, *_choices(R, cs, c_max, 1.0, gv), known)
+        t_min = _labels(cs, c_min, *_choices(R, cs, c_min, -1.0, gv), known)
         if moving is not None and moving.n:
             t_max = _moving_labels(t_max, cs, c_max, moving, 1.0)
             t_min = _moving_labels(t_min, cs, c_min, moving, -1.0)

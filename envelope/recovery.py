@@ -145,6 +145,14 @@ def _pairs(pt_elem: np.ndarray, elem_first: np.ndarray) -> tuple[np.ndarray, np.
     return pt_idx, np.repeat(lo, count) + offsets
 
 
+def pair_count(mesh: Mesh, units: UnitCases, points: Points) -> int:
+    """Number of (point, load item) pairs with the point and the item on the same
+    element: the work of the load terms at ``points``."""
+    elem = locate(mesh, points.span, points.x_span, points.right)
+    first = units.elem_first
+    return int((first[elem + 1] - first[elem]).sum())
+
+
 QUANTITIES = ("shear", "moment", "rotation", "deflection")
 
 
@@ -160,10 +168,21 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
 
     The load terms are summed by numpy over (point, item) pairs, or, where there are
     more than :data:`envelope.config.KERNEL_MIN_PAIRS` pairs (or ``kernel=True``), by
-    the numba kernel of :mod:`envelope._kernels`, which needs no pair arrays."""
+    a numba kernel of :mod:`envelope._kernels`, which needs no pair arrays: with the
+    solution's packed states (``Solution.state``) the whole response in one pass
+    (``responses``), else the load terms alone."""
     elem = locate(mesh, points.span, points.x_span, points.right)
     s = points.x_span - mesh.start[elem]
     s = np.clip(s, 0.0, mesh.length[elem])
+    first = units.elem_first
+    n_pairs = int((first[elem + 1] - first[elem]).sum())
+    if kernel is None:
+        kernel = n_pairs > config.KERNEL_MIN_PAIRS
+    state = sol.state
+    if kernel and state is not None and all(
+            getattr(sol, name).base is state for name in ("V0", "M0", "theta1", "v1")):
+        # (a solution whose states were replaced, e.g. redistributed, has its own arrays)
+        return _kernel_responses(mesh, units, state, points, elem, s, quantities)
     EI = mesh.EI[elem][:, None]
     V0, M0 = sol.V0[elem], sol.M0[elem]
     sc = s[:, None]
@@ -179,10 +198,6 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
         out["deflection"] = (sol.v1[elem] + sol.theta1[elem] * sc
                              + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
 
-    first = units.elem_first
-    n_pairs = int((first[elem + 1] - first[elem]).sum())
-    if kernel is None:
-        kernel = n_pairs > config.KERNEL_MIN_PAIRS
     if n_pairs and kernel:
         _kernel_terms(mesh, units, points, elem, s, out)
     elif n_pairs:
@@ -202,6 +217,27 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
         if name in out:
             out[name] = -out[name]
     return out
+
+
+def _kernel_responses(mesh: Mesh, units: UnitCases, state: np.ndarray, points: Points,
+                      elem: np.ndarray, s: np.ndarray, quantities: tuple[str, ...]
+                      ) -> dict[str, np.ndarray]:
+    """The wanted quantities by the fused numba kernel (one pass: start state, load
+    terms, signs) from the packed element states ``state`` (``Solution.state``)."""
+    from envelope import _kernels  # numba is imported only here
+
+    wanted = [q for q in QUANTITIES if q in quantities]
+    slot = np.array([wanted.index(q) if q in wanted else -1 for q in QUANTITIES],
+                    dtype=np.int64)
+    block = np.empty((len(wanted), points.n, units.n_units))
+    item_int, item = _kernels.pack_items(units.item_unit, units.item_kind, units.item_a,
+                                         units.item_b, units.item_wa, units.item_wb,
+                                         units.item_p)
+    _kernels.responses(elem.astype(np.int64),
+                       _kernels.pack_points(s, mesh.EI[elem], points.right),
+                       units.elem_first.astype(np.int64), item_int, item,
+                       _kernels.gauss_rule(), state, slot, block)
+    return {q: block[i] for i, q in enumerate(wanted)}
 
 
 def _kernel_terms(mesh: Mesh, units: UnitCases, points: Points, elem: np.ndarray,

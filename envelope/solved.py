@@ -21,7 +21,7 @@ from envelope.loading import Cells, UnitCases, build_cells, build_unit_cases
 from envelope.mesh import Mesh, build_mesh
 from envelope.model import Beam, Combination
 from envelope.moving import alternatives, moving_loads, point_effects
-from envelope.recovery import Points, Response, evaluate, evaluate_some
+from envelope.recovery import Points, Response, evaluate, evaluate_some, pair_count
 from envelope.redistribution import redistribute, requested
 from envelope.solver import Solution, solve
 
@@ -131,17 +131,23 @@ def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
         sol = solved.solution_for(requests[q])
         by_solution[id(sol)] = (sol, by_solution.get(id(sol), (sol, ()))[1] + (q,))
     known: dict[str, dict[bytes, str]] = {name: {} for name in requests.values()}
-    step = chunk_rows(solved.unit_cases.n_units)
+    n_units = solved.unit_cases.n_units
+    step = chunk_rows(n_units)
+    # one way of summing for every block, so that a row's values do not depend on the
+    # block it falls in (see envelope.enveloper.column_extremes)
+    sums = points.n > step or n_units >= config.REDUCE_KERNEL_MIN_UNITS
+    terms = sums or pair_count(solved.mesh, solved.unit_cases, points) > config.KERNEL_MIN_PAIRS
     if wanted:
         for lo in range(0, max(points.n, 1), step):
             chunk = points.take(slice(lo, lo + step))
             moving = (point_effects(solved.beam, chunk, wanted) if moving_loads(solved.beam)
                       else {})
             for sol, names in by_solution.values():
-                resp = evaluate_some(solved.mesh, solved.unit_cases, sol, chunk, names)
+                resp = evaluate_some(solved.mesh, solved.unit_cases, sol, chunk, names,
+                                     kernel=terms)
                 for q in names:
                     parts[q].append(reduce(resp[q], sets[q], labels, known[requests[q]],
-                                           moving.get(q)))
+                                           moving.get(q), sums))
     return {q: Extremes.concat(parts[q]) if q in parts else None for q in requests}
 
 

@@ -36,7 +36,9 @@ class Solution:
     sagging moment just right of each element's left end, ``theta1`` rotation
     (counter-clockwise, rad) and ``v1`` deflection (upward) there.
     ``reaction`` and ``reaction_moment`` are (n_joints, n_units): upward force
-    and counter-clockwise moment on the beam from each support.
+    and counter-clockwise moment on the beam from each support.  ``state``, where
+    given, is (4, n_elements, n_units): V0, M0, theta1, v1 packed in one array (the
+    four are views of it), as the recovery kernel reads them.
     """
 
     V0: np.ndarray
@@ -46,6 +48,7 @@ class Solution:
     reaction: np.ndarray
     reaction_moment: np.ndarray
     condition: float = 1.0  # estimate of the stiffness matrix's condition number
+    state: np.ndarray | None = None
 
     @property
     def warnings(self) -> tuple[str, ...]:
@@ -218,28 +221,25 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     all unit cases are solved at once."""
     n_u = units.n_units
     step = max(1, config.SOLVE_CHUNK_VALUES // max(mesh.n_elements, 1))
-    if n_u <= step:
-        return _own_arrays(_solve_block(mesh, supports, units, source))
     n_e, n_j = mesh.n_elements, mesh.joint_node.size
-    out = {name: np.empty((n_e, n_u)) for name in ("V0", "M0", "theta1", "v1")}
+    # the element states packed in one array (see Solution.state); copies, so that no
+    # view keeps a block's (elements x 4 x unit cases) working arrays alive
+    state = np.empty((4, n_e, n_u))
+    out = dict(zip(_STATES, state, strict=True))
     out |= {name: np.empty((n_j, n_u)) for name in ("reaction", "reaction_moment")}
     condition = 1.0
+    factor: dict[str, np.ndarray] = {}
     for lo in range(0, n_u, step):
         hi = min(n_u, lo + step)
-        block = _solve_block(mesh, supports, unit_block(units, lo, hi), source, lo)
+        block = _solve_block(mesh, supports, unit_block(units, lo, hi), source, lo, factor)
         for name, arr in out.items():
             arr[:, lo:hi] = getattr(block, name)
         condition = block.condition  # the same factor for every block
-    return Solution(**out, condition=condition)
+    return Solution(**out, condition=condition, state=state)
 
 
-def _own_arrays(sol: Solution) -> Solution:
-    """``sol`` with each array its own contiguous copy (a view would keep the whole
-    (elements x 4 x unit cases) working array it was cut from alive)."""
-    return Solution(V0=np.ascontiguousarray(sol.V0), M0=np.ascontiguousarray(sol.M0),
-                    theta1=np.ascontiguousarray(sol.theta1), v1=np.ascontiguousarray(sol.v1),
-                    reaction=sol.reaction, reaction_moment=sol.reaction_moment,
-                    condition=sol.condition)
+#: The element start states in the order of ``Solution.state``.
+_STATES = ("V0", "M0", "theta1", "v1")
 
 
 def unit_block(units: UnitCases, lo: int, hi: int) -> UnitCases:
@@ -259,9 +259,12 @@ def unit_block(units: UnitCases, lo: int, hi: int) -> UnitCases:
 
 
 def _solve_block(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
-                 source: str = "", first_unit: int = 0) -> Solution:
+                 source: str = "", first_unit: int = 0,
+                 factor: dict[str, np.ndarray] | None = None) -> Solution:
     """:func:`solve` of the unit cases ``units`` in one block (``first_unit``: the number
-    of the block's first unit case, for messages)."""
+    of the block's first unit case, for messages; ``factor``: shared by the blocks of
+    one solve, holds the stiffness matrix's factor once made)."""
+    factor = {} if factor is None else factor
     n_e = mesh.n_elements
     n_dof = 2 * mesh.n_nodes
     ke = element_stiffness(mesh.length, mesh.EI)
@@ -318,7 +321,9 @@ def _solve_block(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     F[rigid] = 0.0
 
     try:
-        chol = cholesky_upper(ab)
+        chol = factor.get("chol")  # the same matrix for every block: factorised once
+        if chol is None:
+            chol = factor["chol"] = cholesky_upper(ab)
     except NotPositiveDefinite:
         raise UnstableBeamError(source, "supports",
                                 "unstable beam: the stiffness matrix is singular "

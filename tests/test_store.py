@@ -68,16 +68,18 @@ def _envelope_file(tmp_path, name: str, text: str):  # type: ignore[no-untyped-d
                                   "carpark-3span-overhang-si.toml", "mezzanine-us.toml"])
 def test_envelope_in_small_blocks_and_row_groups_is_the_same_file_content(
         tmp_path, monkeypatch, demo) -> None:
-    """envelope.parquet solved in blocks of a few unit cases and written one span per
-    row group holds exactly the values and texts of one solve and one row group: the
-    same floats bit for bit."""
+    """envelope.parquet enveloped in blocks of 3 stations, solved in blocks of a few
+    unit cases and written one span per row group holds exactly the values and texts
+    of one block, one solve and one row group: the same floats bit for bit."""
     from pathlib import Path
 
     from envelope import config
 
     root = Path(__file__).resolve().parent.parent
     text = _SEGMENTED if demo == "segmented" else (root / "cases" / demo).read_text()
+    monkeypatch.setattr(config, "REDUCE_KERNEL_MIN_UNITS", 0)  # one way of summing
     whole = _envelope_file(tmp_path, "whole", text)
+    monkeypatch.setattr(config, "STATION_CHUNK_ROWS", 3)
     monkeypatch.setattr(config, "SOLVE_CHUNK_VALUES", 8)
     monkeypatch.setattr(config, "ENVELOPE_ROW_GROUP_SPANS", 1)
     small = _envelope_file(tmp_path, "small", text)
