@@ -37,7 +37,7 @@ from envelope.recovery import (
     make_points,
 )
 from envelope.search import golden_max, illinois_root
-from envelope.solved import QUANTITY_SET, Solved, envelope_at
+from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
 
 #: The derivative of each quantity along the beam: dM/dx = V, d(deflection)/dx = rotation.
@@ -235,14 +235,14 @@ class _Search:
     def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray
                      ) -> np.ndarray:
         """Envelope maximum of each point's own request (its quantity over its case set),
-        in chunks of :data:`envelope.config.STATION_CHUNK_ROWS` rows a request; NaN at
+        in chunks of :func:`envelope.solved.chunk_rows` rows a request; NaN at
         a NaN position (a bracket whose search has finished)."""
         out = np.full(x.size, np.nan)
         if np.isnan(x).any():
             keep = np.flatnonzero(~np.isnan(x))
             out[keep] = self.envelope_max(task[keep], span[keep], x[keep])
             return out
-        step = config.STATION_CHUNK_ROWS
+        step = chunk_rows(self.solved.unit_cases.n_units)
         for lo in range(0, x.size, step):
             part = slice(lo, lo + step)
             resp = self.responses(task[part], span[part], x[part])
@@ -272,7 +272,21 @@ class _Search:
         Returns the root, the envelope there, and whether that is a true maximum of the
         envelope: the slope changed sign from + to - (or, with ``x`` at an end of its
         bracket, falls away from it) and the same case still governs there.  Elsewhere
-        the root and value are ``x`` and the envelope at ``x``."""
+        the root and value are ``x`` and the envelope at ``x``.  The brackets are
+        searched in blocks of :func:`envelope.solved.chunk_rows` (each holds a row of
+        responses and of coefficients over every unit case), so memory stays bounded."""
+        step = chunk_rows(self.solved.unit_cases.n_units)
+        if x.size <= step:
+            return self._root_block(task, span, length, x, lo, hi)
+        parts = [self._root_block(*(a[i:i + step] for a in (task, span, length, x, lo, hi)))
+                 for i in range(0, x.size, step)]
+        root, value, found = (np.concatenate(p) for p in zip(*parts, strict=True))
+        return root, value, found
+
+    def _root_block(self, task: np.ndarray, span: np.ndarray, length: np.ndarray,
+                    x: np.ndarray, lo: np.ndarray, hi: np.ndarray
+                    ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """:meth:`root_of_governing` of one block of brackets."""
         s = self.solved
         beam = s.beam
         resp = self.responses(task, span, x)

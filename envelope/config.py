@@ -32,11 +32,11 @@ STATION_CHUNK_ROWS = 2048
 ENVELOPE_CHUNK_VALUES = 1 << 19
 
 #: From this many unit cases on (and whenever the stations are enveloped in more than
-#: one block) the enveloper's sums are made by the numba kernel: one pass over the
-#: responses instead of three matrix products, and each row's value independent of
-#: the block it is computed in.  Below it numpy's products are quicker than importing
-#: numba.
-REDUCE_KERNEL_MIN_UNITS = 512
+#: one block) the enveloper's sums and the responses at points are made by the numba
+#: kernels: one pass over memory instead of several numpy passes and temporaries, and
+#: each row's values independent of the block it is computed in.  Below it numpy is
+#: quicker than importing numba (which also holds about 130 MiB once loaded).
+KERNEL_MIN_UNITS = 512
 
 #: Most (elements x unit cases) values in one block of columns of the solve: its
 #: working arrays are (elements x 4 x unit cases) float64, 2 MiB each at this size

@@ -41,6 +41,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from envelope import config
 from envelope.loading import Cells, UnitCases
 from envelope.model import Beam, Combination, Patterning
 from envelope.patterns import arrangements, loaded_label
@@ -597,8 +598,29 @@ def governing_coefficients(R: np.ndarray, cs: CaseSet, moving: MovingEffect | No
     coefficients are dimensionless (a response is ``R @ coef[i]``).  With ``moving``,
     the column is chosen with the moving cases' worst effects included (their own part
     is not a unit-case coefficient: see :func:`moving_factors` for the factor of each
-    in the column)."""
-    col = np.argmax(column_max(R, cs, moving), axis=1)
+    in the column).
+
+    Made in blocks of rows of at most :data:`envelope.config.ENVELOPE_CHUNK_VALUES`
+    values, so that the working arrays stay bounded on a long beam; there (and from
+    :data:`envelope.config.KERNEL_MIN_UNITS` unit cases on) the sums are the
+    kernel's, whose rows do not depend on the block."""
+    n_rows, n_units = R.shape
+    step = max(1, config.ENVELOPE_CHUNK_VALUES // max(n_units, 1))
+    kernel = n_rows > step or n_units >= config.KERNEL_MIN_UNITS
+    if n_rows <= step:
+        return _governing_block(R, cs, moving, kernel)
+    out = np.empty((n_rows, n_units))
+    for lo in range(0, n_rows, step):
+        rows = np.arange(lo, min(lo + step, n_rows))
+        part = None if moving is None else moving.rows(rows)
+        out[rows] = _governing_block(R[rows], cs, part, kernel)
+    return out
+
+
+def _governing_block(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None,
+                     kernel: bool) -> np.ndarray:
+    """:func:`governing_coefficients` of one block of rows."""
+    col = np.argmax(column_max(R, cs, moving, kernel), axis=1)
     units, cells, groups = _choices(R, cs, col, 1.0)
     coef = cs.fixed.T[col]
     if isinstance(cs, SuperposedCaseSet):

@@ -167,7 +167,8 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
     """Only the named quantities of :func:`evaluate` (the rest is not computed).
 
     The load terms are summed by numpy over (point, item) pairs, or, where there are
-    more than :data:`envelope.config.KERNEL_MIN_PAIRS` pairs (or ``kernel=True``), by
+    more than :data:`envelope.config.KERNEL_MIN_PAIRS` pairs or at least
+    :data:`envelope.config.KERNEL_MIN_UNITS` unit cases (or ``kernel=True``), by
     a numba kernel of :mod:`envelope._kernels`, which needs no pair arrays: with the
     solution's packed states (``Solution.state``) the whole response in one pass
     (``responses``), else the load terms alone."""
@@ -177,7 +178,7 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
     first = units.elem_first
     n_pairs = int((first[elem + 1] - first[elem]).sum())
     if kernel is None:
-        kernel = n_pairs > config.KERNEL_MIN_PAIRS
+        kernel = n_pairs > config.KERNEL_MIN_PAIRS or units.n_units >= config.KERNEL_MIN_UNITS
     state = sol.state
     if kernel and state is not None and all(
             getattr(sol, name).base is state for name in ("V0", "M0", "theta1", "v1")):

@@ -135,7 +135,7 @@ def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
     step = chunk_rows(n_units)
     # one way of summing for every block, so that a row's values do not depend on the
     # block it falls in (see envelope.enveloper.column_extremes)
-    sums = points.n > step or n_units >= config.REDUCE_KERNEL_MIN_UNITS
+    sums = points.n > step or n_units >= config.KERNEL_MIN_UNITS
     terms = sums or pair_count(solved.mesh, solved.unit_cases, points) > config.KERNEL_MIN_PAIRS
     if wanted:
         for lo in range(0, max(points.n, 1), step):

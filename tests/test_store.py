@@ -77,7 +77,7 @@ def test_envelope_in_small_blocks_and_row_groups_is_the_same_file_content(
 
     root = Path(__file__).resolve().parent.parent
     text = _SEGMENTED if demo == "segmented" else (root / "cases" / demo).read_text()
-    monkeypatch.setattr(config, "REDUCE_KERNEL_MIN_UNITS", 0)  # one way of summing
+    monkeypatch.setattr(config, "KERNEL_MIN_UNITS", 0)  # one way of summing
     whole = _envelope_file(tmp_path, "whole", text)
     monkeypatch.setattr(config, "STATION_CHUNK_ROWS", 3)
     monkeypatch.setattr(config, "SOLVE_CHUNK_VALUES", 8)
