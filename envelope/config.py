@@ -40,8 +40,14 @@ KERNEL_MIN_UNITS = 512
 
 #: Most (elements x unit cases) values in one block of columns of the solve: its
 #: working arrays are (elements x 4 x unit cases) float64, 2 MiB each at this size
-#: (a dozen of them live at once).
+#: (a dozen of them live at once)...
 SOLVE_CHUNK_VALUES = 1 << 16
+
+#: ... but at least this many unit cases a block: each block costs a pass of Python
+#: steps down and up the banded factor (in proportion to the elements), so blocks of
+#: ever fewer columns would make the solve grow faster than elements x unit cases; a
+#: block of this many columns is a fixed small share of the solution it fills.
+SOLVE_CHUNK_UNITS = 256
 
 #: Spans of stations in one row group of envelope.parquet: each row group is built and
 #: written on its own, with its own dictionary of ``_loaded`` texts.

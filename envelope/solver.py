@@ -215,12 +215,14 @@ def solve(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     """Assemble, factorise, solve every unit case, recover element start states.
 
     The unit cases are solved in blocks of columns (at most
-    :data:`envelope.config.SOLVE_CHUNK_VALUES` elements x unit cases each), so that the
+    :data:`envelope.config.SOLVE_CHUNK_VALUES` elements x unit cases each, at least
+    :data:`envelope.config.SOLVE_CHUNK_UNITS` unit cases), so that the
     (elements x 4 x unit cases) working arrays stay bounded as the beam grows; every
     step is column by column, so a block's columns are the same, bit for bit, as when
     all unit cases are solved at once."""
     n_u = units.n_units
-    step = max(1, config.SOLVE_CHUNK_VALUES // max(mesh.n_elements, 1))
+    step = max(1, config.SOLVE_CHUNK_UNITS,
+               config.SOLVE_CHUNK_VALUES // max(mesh.n_elements, 1))
     n_e, n_j = mesh.n_elements, mesh.joint_node.size
     # the element states packed in one array (see Solution.state); copies, so that no
     # view keeps a block's (elements x 4 x unit cases) working arrays alive

@@ -145,6 +145,7 @@ def test_solve_in_blocks_of_unit_cases_equals_one_solve_bit_for_bit(monkeypatch,
     beam = parse_text(_SETTLED_HINGED)
     whole = solve_beam(beam).solution
     monkeypatch.setattr(config, "SOLVE_CHUNK_VALUES", per_block * beam.n_spans)
+    monkeypatch.setattr(config, "SOLVE_CHUNK_UNITS", 1)
     solved = solve_beam(beam)
     assert solved.unit_cases.n_units > per_block  # really in several blocks
     blocks = solved.solution

@@ -81,6 +81,7 @@ def test_envelope_in_small_blocks_and_row_groups_is_the_same_file_content(
     whole = _envelope_file(tmp_path, "whole", text)
     monkeypatch.setattr(config, "STATION_CHUNK_ROWS", 3)
     monkeypatch.setattr(config, "SOLVE_CHUNK_VALUES", 8)
+    monkeypatch.setattr(config, "SOLVE_CHUNK_UNITS", 1)
     monkeypatch.setattr(config, "ENVELOPE_ROW_GROUP_SPANS", 1)
     small = _envelope_file(tmp_path, "small", text)
     n_spans = len(set(whole.read(columns=["span"]).column("span").to_pylist()))
