@@ -448,7 +448,11 @@ def _en1990(cases: tuple[LoadCase, ...], table: tuple[EnRow, ...], clause: str,
 
 def _generate(cases: tuple[LoadCase, ...], rule: str, spec: CombinationSpec
               ) -> list[_Generated]:
-    """The generated rows of one rule set, before naming (none for ``"none"``)."""
+    """The generated rows of one rule set, before naming (none for ``"none"``).
+    Settlement cases take no part here: :func:`_with_settlements` adds them to every
+    row at their own factor (they are neither the rows' permanent nor their variable
+    actions, and have no psi)."""
+    cases = tuple(c for c in cases if c.kind != "settlement")
     if rule == "asce7-lrfd":
         return _asce(cases, ASCE7_LRFD, ASCE7_LRFD_CLAUSE, spec.reduced_companion_live)
     if rule == "asce7-asd":
