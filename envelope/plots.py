@@ -457,6 +457,34 @@ def _lanes(sk: Mapping[str, Any]) -> list[str]:
     return cases
 
 
+def _moving(ax: Any, it: Mapping[str, Any], joint_x: np.ndarray, base: float,
+            colour: str) -> None:
+    """A load placed at its worst position: a dashed double-headed line over each run
+    of the spans it moves over (either way), its axles drawn at the run's start."""
+    spans = sorted(int(j) - 1 for j in it["spans"] if 0 < int(j) < joint_x.size)
+    if not spans:
+        return
+    runs: list[list[int]] = []
+    for j in spans:
+        if runs and runs[-1][-1] == j - 1:
+            runs[-1].append(j)
+        else:
+            runs.append([j])
+    axles = it.get("axles") or [[it.get("P", 0.0), 0.0]]
+    top = max(abs(p) for p, _ in axles) or 1.0
+    for run in runs:
+        a, b = float(joint_x[run[0]]), float(joint_x[run[-1] + 1])
+        ax.annotate("", (a, base + 0.85), (b, base + 0.85), arrowprops={
+            "arrowstyle": "<->", "color": colour, "lw": 0.8, "ls": "--",
+            "shrinkA": 0, "shrinkB": 0, "mutation_scale": 6}, annotation_clip=False)
+        for p, offset in axles:
+            at = min(a + float(offset), b)
+            length = 0.7 * abs(p) / top
+            ax.annotate("", (at, base), (at, base + length), arrowprops={
+                "arrowstyle": "-|>", "color": colour, "lw": 1.0, "shrinkA": 0,
+                "shrinkB": 0, "mutation_scale": 7}, annotation_clip=False)
+
+
 def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[str, str],
            n_lanes: int) -> list[str]:
     """Every load, one lane per case, each lane to its own scale."""
@@ -507,6 +535,11 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
                         "mutation_scale": 7}, annotation_clip=False)
                     if "settlement" not in used:
                         used.append("settlement")
+            elif kind in ("concentrated", "train") and it.get("spans"):
+                _moving(ax, it, joint_x, base, colour)
+                p_max = max([p_max] + [abs(p) for p, _ in it.get("axles", [])])
+                if "moving load" not in used:
+                    used.append("moving load")
             else:
                 other += 1
         name = literal(c, 10)
@@ -888,6 +921,7 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
         "value at support face": {"marker": "|", "color": FACE_COLOUR},
         "applied moment": {"marker": COIL, "mfc": "none", "color": CASE_COLOURS[0]},
         "settlement": {"marker": "v", "color": CASE_COLOURS[0]},
+        "moving load": {"marker": "$\\leftrightarrow$", "color": CASE_COLOURS[0]},
         "spring settlement": {"marker": SPRING, "mfc": "white"},
         "deflection, sized section": {"marker": "D", "color": SIZED_COLOUR,
                                       "markersize": 4},

@@ -59,13 +59,30 @@ def _load(beam: Beam, load: Any) -> list[dict[str, Any]]:
         value = getattr(load, name, None)
         if isinstance(value, int | float) and math.isfinite(value):
             item[name] = float(value)
-    if kind == "settlement":  # the support as numbered in the case file (from 1)
-        support, delta = getattr(load, "support", None), getattr(load, "delta", None)
-        if isinstance(support, int) and support >= 0:
-            item["support"] = support + 1
-        if isinstance(delta, int | float) and math.isfinite(delta):
-            item["delta"] = float(delta)
+    if kind == "settlement":
+        item.update(_settlement(load))
+    if getattr(load, "is_moving", False):
+        item.update(_moving(load))
     return [item]
+
+
+def _settlement(load: Any) -> dict[str, Any]:
+    """A settlement's support as numbered in the case file (from 1) and its delta."""
+    out: dict[str, Any] = {}
+    support, delta = getattr(load, "support", None), getattr(load, "delta", None)
+    if isinstance(support, int) and support >= 0:
+        out["support"] = support + 1
+    if isinstance(delta, int | float) and math.isfinite(delta):
+        out["delta"] = float(delta)
+    return out
+
+
+def _moving(load: Any) -> dict[str, Any]:
+    """A moving load's spans (numbered from 1) and its axles as [P, offset] pairs (a
+    concentrated load is one axle at offset 0)."""
+    axles = getattr(load, "axles", ()) or ((float(getattr(load, "P", 0.0)), 0.0),)
+    return {"spans": [int(j) + 1 for j in getattr(load, "moving_spans", ())],
+            "axles": [[float(p), float(o)] for p, o in axles]}
 
 
 def sketch(beam: Beam) -> dict[str, Any]:

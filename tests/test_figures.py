@@ -21,7 +21,7 @@ import envelope
 from envelope import plots, store
 from envelope.sketch import MAX_LOADS
 
-from beams import beam_text
+from beams import beam_text, parse_text
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES = sorted((ROOT / "cases").glob("*.toml"))
@@ -375,3 +375,32 @@ def test_a_reused_figure_draws_the_same_file_as_a_new_one(tmp_path: Path) -> Non
     first = (tmp_path / "first.svg").read_text(encoding="utf-8")
     assert first == (tmp_path / "again.svg").read_text(encoding="utf-8")
     assert len(plots._KEPT) >= 1
+
+
+def test_moving_loads_are_drawn_over_their_spans_with_their_axles() -> None:
+    """A concentrated load and a two-axle train: a double-headed line over the spans
+    each moves along (either way) and an arrow per axle at its start, at the axle's
+    offset; the key names the symbol and no lane says "other"."""
+    text = beam_text(
+        [5.0, 5.0, 4.0], ["pinned", "pinned", "pinned", "pinned"],
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 5.0},
+         {"case": "Lc", "type": "concentrated", "spans": [2, 3], "P": 9.0},
+         {"case": "T", "type": "train", "spans": "all",
+          "axles": [{"P": 30.0, "offset": 0.0}, {"P": 20.0, "offset": 1.8}]}],
+        section={"E": 30000, "I": 2.0e9},
+        cases={"D": "dead", "Lc": "live", "T": "live"},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"})
+    fig = envelope.plot(envelope.analyse(parse_text(text)))
+    strip = fig.axes[0]
+    spans = [a for a in strip.texts if getattr(a, "arrow_patch", None) is not None
+             and a.arrowprops.get("arrowstyle") == "<->"]
+    extents = sorted((round(min(a.xy[0], a.xyann[0]), 9), round(max(a.xy[0], a.xyann[0]), 9))
+                     for a in spans)
+    assert extents == [(0.0, 14.0), (5.0, 14.0)]
+    downs = sorted(round(a.xy[0], 9) for a in strip.texts
+                   if getattr(a, "arrow_patch", None) is not None
+                   and a.arrowprops.get("arrowstyle") == "-|>")
+    assert downs == [0.0, 1.8, 5.0]   # the train's two axles, the concentrated load
+    key = [t.get_text() for t in fig.legends[0].get_texts()]
+    assert "moving load" in key
+    assert not any("other" in t.get_text() for t in strip.texts)
