@@ -34,6 +34,10 @@ BYTES_PER_CELL = 48.0
 BYTES_PER_ELEMENT_UNIT = 64.0
 #: Memory of the engine itself (interpreter, numpy, pyarrow), bytes.
 BASE_BYTES = 160e6
+#: Memory numba holds once its kernels are loaded, bytes (measured about 130 MiB); the
+#: kernels run on large beams (:data:`envelope.config.KERNEL_MIN_UNITS`, or stations
+#: enveloped in more than one block of :data:`envelope.config.ENVELOPE_CHUNK_VALUES`).
+KERNEL_BYTES = 140e6
 #: CPU seconds per (station x unit case) and per station, and a fixed start.
 SECONDS_PER_CELL = 1.0e-6
 SECONDS_PER_STATION = 1.0e-4
@@ -95,8 +99,10 @@ def estimate(beam: Beam) -> Estimate:
     items = len(beam.loads)
     stations = n * (beam.output.stations_per_span + parts + 3) + 4 * items + 2 * stretches
     elements = stretches + n * parts + 2 * items
+    kernels = (units >= config.KERNEL_MIN_UNITS
+               or stations * units > config.ENVELOPE_CHUNK_VALUES)
     memory = (BASE_BYTES + BYTES_PER_CELL * stations * units
-              + BYTES_PER_ELEMENT_UNIT * elements * units)
+              + BYTES_PER_ELEMENT_UNIT * elements * units + KERNEL_BYTES * kernels)
     seconds = BASE_SECONDS + SECONDS_PER_CELL * stations * units \
         + SECONDS_PER_STATION * stations
     return Estimate(n, parts, stations, units, elements, items, memory, seconds)
