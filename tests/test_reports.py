@@ -307,6 +307,28 @@ def test_a_schedule_with_an_unknown_heading_is_refused_with_its_column(tmp_path:
     assert "Traceback" not in run.output
 
 
+def test_check_reads_a_schedule_as_batch_would_and_writes_nothing(tmp_path: Path) -> None:
+    """`envelope check` on a schedule: every row checked by the case reader (the same
+    messages as `batch`), a repeated id refused, exit 2, no OUT or case files written."""
+    rows = [HEAD,
+            ("G1", "", "SI", "6 7.5", "pinned", 30000, 8.0e9, 4.2, 5.0, 3.0, 0, "code"),
+            ("G2", "", "SI", "6 7.5", "pinned", 30000, 8.0e9, 4.2, "five", 3.0, 0, "code"),
+            ("G1", "", "SI", "6", "pinned", 30000, 8.0e9, 4.2, 5.0, 3.0, 0, "code")]
+    sheet = schedule.write_schedule(tmp_path / "beams.xlsx", rows)
+    before = sorted(p.name for p in tmp_path.iterdir())
+    run = _invoke("check", "-v", str(sheet))
+    assert run.exit_code == 2
+    assert "ok: " in run.output and "row 2 (G1)" in run.output
+    assert "sheet beams, row 3, column dead_area (I): expected a number, got 'five'" \
+        in run.output
+    assert "row 4, column id (A): id 'G1' is already used by" in run.output
+    assert "3 schedule rows, 2 bad" in run.output
+    assert "Traceback" not in run.output
+    assert sorted(p.name for p in tmp_path.iterdir()) == before
+    good = schedule.write_schedule(tmp_path / "good.xlsx", rows[:2])
+    assert _invoke("check", str(good)).exit_code == 0
+
+
 # -- the combined tables of a batch keep units per row system or convert ---------------------
 
 LBF_KN = 4.4482216152605e-3   # kN per lbf, exact (NIST SP 811)

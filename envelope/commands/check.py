@@ -24,16 +24,22 @@ def check(paths: tuple[str, ...], sections: str | None, max_memory: float | None
     """Check case files without analysing them; exit 2 if any is bad.
 
     PATHs are case files, folders (every case file inside, as `envelope batch` finds
-    them) or glob patterns."""
+    them), glob patterns or beam schedules (.csv, .xlsx: every row checked as
+    `envelope batch` reads it)."""
     from envelope.batch.discovery import discover
     from envelope.casefile import load_case
     from envelope.design import SteelDesign
     from envelope.errors import EnvelopeError
     from envelope.limits import check as check_work
     from envelope.limits import from_options
+    rows = bad_rows = 0
+    if any(p.lower().endswith((".csv", ".xlsx")) for p in paths):  # spare the import
+        from envelope.report.schedule import is_schedule
 
+        rows, bad_rows = _check_schedules([p for p in paths if is_schedule(p)])
+        paths = tuple(p for p in paths if not is_schedule(p))
     skipped: list[tuple[str, str]] = []
-    cases = discover(paths, skipped)
+    cases = discover(paths, skipped) if paths else []
     for path, reason in skipped:
         say(f"skipped: {path} ({reason})", err=True)
     bad = 0
@@ -54,6 +60,45 @@ def check(paths: tuple[str, ...], sections: str | None, max_memory: float | None
             bad += 1
             continue
         say(f"ok: {path} ({beam.id}, {beam.n_spans} spans, {len(beam.loads)} load items)")
-    say(f"check: {len(cases)} case files, {bad} bad", at=1)
-    if bad:
+    if rows or bad_rows:
+        say(f"check: {len(cases)} case files, {bad} bad; {rows} schedule rows, "
+            f"{bad_rows} bad", at=1)
+    else:
+        say(f"check: {len(cases)} case files, {bad} bad", at=1)
+    if bad or bad_rows:
         sys.exit(2)
+
+
+def _check_schedules(schedules: list[str]) -> tuple[int, int]:
+    """Check every beam row of the beam schedules (.csv, .xlsx) as ``envelope batch``
+    would read them: each row's case, its id unique over the schedules.  Returns the
+    number of rows and of bad ones; a schedule that cannot be read counts as one bad."""
+    from envelope.errors import EnvelopeError
+    from envelope.report.schedule import ScheduleError, _text, check_row, read_rows
+
+    rows = bad = 0
+    seen: dict[str, str] = {}
+    for path in schedules:
+        try:
+            found = read_rows(path)
+        except EnvelopeError as exc:
+            click.echo(f"error: {exc}", err=True)
+            bad += 1
+            continue
+        for row in found:
+            rows += 1
+            beam_id = _text(row, "id") or ""
+            try:
+                if beam_id and beam_id in seen:
+                    raise ScheduleError(f"{row.where('id')}: id {beam_id!r} is already "
+                                        f"used by {seen[beam_id]}")
+                check_row(row)
+            except EnvelopeError as exc:
+                click.echo(f"error: {exc}", err=True)
+                bad += 1
+                continue
+            finally:
+                if beam_id:
+                    seen.setdefault(beam_id, row.where())
+            say(f"ok: {row.where()} ({beam_id})")
+    return rows, bad
