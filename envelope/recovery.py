@@ -231,14 +231,20 @@ def _kernel_responses(mesh: Mesh, units: UnitCases, state: np.ndarray, points: P
     slot = np.array([wanted.index(q) if q in wanted else -1 for q in QUANTITIES],
                     dtype=np.int64)
     block = np.empty((len(wanted), points.n, units.n_units))
-    item_int, item = _kernels.pack_items(units.item_unit, units.item_kind, units.item_a,
-                                         units.item_b, units.item_wa, units.item_wb,
-                                         units.item_p)
+    item_int, item = _packed_items(units)
     _kernels.responses(elem.astype(np.int64),
                        _kernels.pack_points(s, mesh.EI[elem], points.right),
                        units.elem_first.astype(np.int64), item_int, item,
                        _kernels.gauss_rule(), state, slot, block)
     return {q: block[i] for i, q in enumerate(wanted)}
+
+
+def _packed_items(units: UnitCases) -> tuple[np.ndarray, np.ndarray]:
+    """The unit cases' load items packed for the kernels (integer and float parts)."""
+    from envelope import _kernels  # numba is imported only here
+
+    return _kernels.pack_items(units.item_unit, units.item_kind, units.item_a, units.item_b,
+                               units.item_wa, units.item_wb, units.item_p)
 
 
 def _kernel_terms(mesh: Mesh, units: UnitCases, points: Points, elem: np.ndarray,
@@ -247,9 +253,7 @@ def _kernel_terms(mesh: Mesh, units: UnitCases, points: Points, elem: np.ndarray
     from envelope import _kernels  # numba is imported only here
 
     block = np.zeros((4, points.n, units.n_units))
-    item_int, item = _kernels.pack_items(units.item_unit, units.item_kind, units.item_a,
-                                         units.item_b, units.item_wa, units.item_wb,
-                                         units.item_p)
+    item_int, item = _packed_items(units)
     _kernels.particular_terms(elem.astype(np.int64),
                               _kernels.pack_points(s, mesh.EI[elem], points.right),
                               units.elem_first.astype(np.int64), item_int, item,

@@ -11,9 +11,12 @@ rotation = d(deflection)/dx.
 
 from __future__ import annotations
 
+import importlib.util
 import json
 import tomllib
 from collections.abc import Mapping, Sequence
+from pathlib import Path
+from types import ModuleType
 from typing import Any
 
 import numpy as np
@@ -141,3 +144,13 @@ def peak(solved: Solved, span: int, quantity: str, case: int = 0, sign: float = 
         step = xs[1] - xs[0]
         lo, hi = max(0.0, xs[i] - step), min(length, xs[i] + step)
     return float(xs[i]), float(getattr(responses(solved, span, xs[i]), quantity)[0, case])
+
+
+def make_cases_module() -> ModuleType:
+    """benchmarks/make_cases.py (the generator of invented beams) loaded as a module."""
+    path = Path(__file__).resolve().parents[1] / "benchmarks" / "make_cases.py"
+    spec = importlib.util.spec_from_file_location("make_cases", path)
+    assert spec is not None and spec.loader is not None
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module

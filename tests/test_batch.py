@@ -20,7 +20,6 @@ What is checked, and against what:
 from __future__ import annotations
 
 import csv
-import importlib.util
 import io
 import json
 import os
@@ -52,7 +51,7 @@ from envelope.batch import (
 from envelope.batch.cluster import _check_cluster
 from envelope.cli import main
 
-from beams import beam_text
+from beams import beam_text, make_cases_module
 from tolerances import SOLVE
 
 REPO = Path(__file__).resolve().parents[1]
@@ -83,12 +82,7 @@ BROKEN: dict[str, tuple[bytes, str, str]] = {
 
 
 def _make_cases_module() -> ModuleType:
-    spec = importlib.util.spec_from_file_location("make_cases",
-                                                  REPO / "benchmarks" / "make_cases.py")
-    assert spec is not None and spec.loader is not None
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
-    return module
+    return make_cases_module()
 
 
 make_cases = _make_cases_module().make_cases

@@ -13,7 +13,6 @@ equal the unit-case responses times the coefficients (superposition, round-off).
 
 from __future__ import annotations
 
-import importlib.util
 import math
 from pathlib import Path
 from types import ModuleType
@@ -29,18 +28,14 @@ from envelope.recovery import combine, evaluate_combined, evaluate_some, make_po
 from envelope.search import golden_max, illinois_root
 from envelope.solved import envelopes_at
 
+from beams import make_cases_module
 from tolerances import LONG_SUM
 
 REPO = Path(__file__).resolve().parents[1]
 
 
 def _make_cases() -> ModuleType:
-    spec = importlib.util.spec_from_file_location("make_cases",
-                                                  REPO / "benchmarks" / "make_cases.py")
-    assert spec is not None and spec.loader is not None
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
-    return module
+    return make_cases_module()
 
 
 @pytest.fixture(scope="module")
