@@ -115,6 +115,42 @@ def test_aci_simple_span_immediate_long_term_and_incremental() -> None:
         assert "span/480" in cols["status"][i] and "Table 24.2.2" in cols["status"][i]
 
 
+#: ASTM A615 nominal bar areas, in^2 (from memory), by size.
+BAR_IN2 = {"#3": 0.11, "#4": 0.20, "#5": 0.31, "#6": 0.44, "#7": 0.60, "#8": 0.79,
+           "#9": 1.00, "#10": 1.27, "#11": 1.56}
+
+
+def test_aci_doubly_reinforced_span_counts_its_compression_bars_in_icr() -> None:
+    # 8 m simple span, D = L = 30 kN/m: Mu = (1.4 * 30 + 1.7 * 30) 8^2 / 8 = 744 kN*m is
+    # above the tension-controlled strength of 300 x 600, so compression bars are
+    # provided.  Icr of the transformed section with (n - 1) As' at 60 mm from the top
+    # (common practice; ACI 318-19 24.2.3.5 takes Icr), Ie of Table 24.2.3.5 at
+    # Ma = 60 * 8^2 / 8, immediate deflection 5 w L^4 / (384 Ec Ie).
+    L, w = 8.0, 60.0
+    cols = case(ACI, (L,), 30.0, 30.0)
+    i = row(cols, 1, "span")
+    assert cols["as_compression"][i] > 0
+    count, size_ = cols["bars_compression"][i].split()
+    as2 = int(count) * BAR_IN2[size_] * 25.4**2
+    b, d, d2, As = 300.0, cols["d"][i], 60.0, cols["as_provided"][i]
+    ec = 4700 * math.sqrt(30)                              # 19.2.2.1(b)
+    n = 200_000 / ec
+    # b c^2 / 2 + (n - 1) As' (c - d2) = n As (d - c)
+    qa, qb, qc = b / 2, (n - 1) * as2 + n * As, -((n - 1) * as2 * d2 + n * As * d)
+    c = (-qb + math.sqrt(qb * qb - 4 * qa * qc)) / (2 * qa)
+    assert c > d2
+    icr = b * c**3 / 3 + (n - 1) * as2 * (c - d2) ** 2 + n * As * (d - c) ** 2
+    ig = b * 600**3 / 12
+    mcr = 0.62 * math.sqrt(30) * ig / 300 / 1e6            # 19.2.3.1, kN*m
+    ie = ie_aci(w * L * L / 8, mcr, ig, icr)
+    delta = 5 * w * (L * 1000) ** 4 / (384 * ec * ie)
+    assert cols["deflection_immediate"][i] == pytest.approx(delta, rel=1e-5)
+    # the bare tension steel alone would give a larger deflection
+    bare = 5 * w * (L * 1000) ** 4 / (384 * ec * ie_aci(w * L * L / 8, mcr, ig,
+                                                          icr_rect(b, d, As, n)))
+    assert bare > delta * 1.02
+
+
 def test_aci_nonstructural_and_member_keys_choose_the_table_24_2_2_row() -> None:
     base = case(ACI, (8.0,), 20.0, 15.0)
     roof = case(ACI, (8.0,), 20.0, 15.0, extra={"member": "roof",

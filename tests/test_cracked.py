@@ -67,6 +67,44 @@ def test_compression_steel_enters_at_n_minus_1() -> None:
     assert b * c * c / 2 + (n - 1) * As2 * (c - d2) == pytest.approx(n * As * (d - c))
 
 
+def test_doubly_reinforced_icr_matches_a_hand_transformed_section() -> None:
+    # Transformed cracked section of a doubly reinforced rectangle and tee (common
+    # practice; the Icr of ACI 318-19 24.2.3.5 and the cracked state of EN 1992-1-1:2004
+    # 7.4.3): concrete above the axis, (n - 1) As' for the compression bars (they displace
+    # concrete already counted), n As for the tension bars.  The axis solved by SymPy
+    # from the first moments, Icr integrated about it.
+    import sympy as sp
+    c = sp.symbols("c", positive=True)
+    for b, bf, hf, d, d2, As, As2, n in ((300, 300, 0, 515, 60, 4516, 1290, 7.8),
+                                         (300, 600, 100, 540, 50, 5000, 1600, 7.0)):
+        first = (sp.Rational(b, 2) * c**2 + (bf - b) * hf * (c - sp.Rational(hf, 2))
+                 + (n - 1) * As2 * (c - d2) - n * As * (d - c))
+        root = [r for r in sp.solve(first, c) if r > hf]
+        assert len(root) == 1
+        x = float(root[0])
+        icr = (b * x**3 / 3 + (bf - b) * hf**3 / 12 + (bf - b) * hf * (x - hf / 2) ** 2
+               + (n - 1) * As2 * (x - d2) ** 2 + n * As * (d - x) ** 2)
+        got = cracked.cracked(b, bf, hf, As, d, n, As2, d2)
+        assert float(got["c"]) == pytest.approx(x, rel=1e-12)
+        assert float(got["icr"]) == pytest.approx(icr, rel=1e-12)
+        # without the compression bars the axis drops and Icr falls
+        bare = cracked.cracked(b, bf, hf, As, d, n)
+        assert float(bare["c"]) > x and float(bare["icr"]) < icr
+
+
+def test_compression_bars_below_the_axis_count_as_tension_steel_at_n() -> None:
+    # lightly reinforced with the top bars deep: the axis (about 0.2 d) lies above them,
+    # so they are in the cracked tension zone, displace no compressed concrete and count
+    # at n As' (transformed section, common practice)
+    b, d, d2, As, As2, n = 1000.0, 540.0, 150.0, 600.0, 600.0, 7.0
+    got = cracked.cracked(b, b, 0.0, As, d, n, As2, d2)
+    c = float(got["c"])
+    assert c < d2
+    assert b * c * c / 2 == pytest.approx(n * As * (d - c) + n * As2 * (d2 - c), rel=1e-12)
+    icr = b * c**3 / 3 + n * As * (d - c) ** 2 + n * As2 * (d2 - c) ** 2
+    assert float(got["icr"]) == pytest.approx(icr, rel=1e-12)
+
+
 def test_aci_modulus_and_rupture_19_2_2_1_and_19_2_3_1() -> None:
     # 4000 psi: Ec = 57000 sqrt(4000) = 3.605e6 psi; fr = 7.5 sqrt(4000) = 474.3 psi
     assert cracked.ec_aci(4000.0, "US") == pytest.approx(3_604_997, rel=1e-6)

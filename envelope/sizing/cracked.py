@@ -83,9 +83,23 @@ def cracked(bw: np.ndarray | float, bf: np.ndarray | float, hf: np.ndarray | flo
     The first moments balance: S_c(c) + (n - 1) As2 (c - d2) = n As (d - c), with the
     compression zone the web bw over c plus the flange overhang (bf - bw) over min(c, hf).
     Solved as a quadratic in each of the two cases (c <= hf, c > hf) and the consistent
-    root taken.  Without tension steel c and icr are NaN."""
+    root taken.  Where that c is above ``d2`` the compression steel lies in the cracked
+    tension zone: it displaces no concrete in compression and counts at n As2 (solved
+    again).  Without tension steel c and icr are NaN."""
     bw, bf, hf, As, d, n, As2, d2 = _arrays(bw, bf, hf, As, d, n, As2, d2)
-    ns, nc = n * As, (n - 1.0) * As2
+    first = _cracked(bw, bf, hf, As, d, n, (n - 1.0) * As2, d2)
+    below = (As2 > 0) & (first["c"] < d2)
+    if np.any(below):
+        again = _cracked(bw, bf, hf, As, d, n, n * As2, d2)
+        first = {k: np.where(below, again[k], v) for k, v in first.items()}
+    return first
+
+
+def _cracked(bw: np.ndarray, bf: np.ndarray, hf: np.ndarray, As: np.ndarray,
+             d: np.ndarray, n: np.ndarray, nc: np.ndarray, d2: np.ndarray
+             ) -> dict[str, np.ndarray]:
+    """:func:`cracked` with the transformed area of the second layer ``nc`` given."""
+    ns = n * As
 
     def root(a: np.ndarray, b: np.ndarray, k: np.ndarray) -> np.ndarray:
         with np.errstate(invalid="ignore", divide="ignore"):

@@ -20,7 +20,9 @@ with Ma its largest hogging moment and the top steel at that face (Mcr = fr Ig /
 19.2.3.1; Ig of the gross section; Icr of the cracked transformed section, n = Es/Ec).
 Immediate live = total - permanent; long-term = total + lambda_Delta x sustained
 (24.2.4.1.1, rho' of the compression steel required at mid-span, at the support of a
-cantilever; the compression steel is left out of Icr, on the safe side);
+cantilever).  The compression bars of a doubly reinforced section (``bars_compression``)
+count in its cracked transformed section at (n - 1) As' (common practice; n As' where
+they fall below the neutral axis), for both codes;
 incremental = lambda_Delta x sustained + immediate live (the deflection after the
 nonstructural elements are attached, Table 24.2.2 note, common practice).
 
@@ -99,6 +101,15 @@ class Inputs:
     #: per span: stretch starts, stretch ends (base length, span-local) and depths
     #: (base length); None: ``h`` all along
     profiles: tuple[tuple[np.ndarray, np.ndarray, np.ndarray], ...] | None = None
+    #: compression steel provided per span (arrays of n_spans, base area; None: none) and
+    #: the depth of its centroid from the compression face (base length): top bars of
+    #: the sagging section, bottom bars of each hogging face (doubly reinforced rows)
+    as2_bottom: np.ndarray | None = None
+    d2_bottom: np.ndarray | None = None
+    as2_top_left: np.ndarray | None = None
+    d2_top_left: np.ndarray | None = None
+    as2_top_right: np.ndarray | None = None
+    d2_top_right: np.ndarray | None = None
 
 
 def sustained_fractions(solved: Solved, code: str, sustained: dict[str, float]
@@ -172,17 +183,27 @@ def _section(inputs: Inputs, n_modular: float, j: int, x: np.ndarray
     def d_at(d: np.ndarray, h_row: np.ndarray | None) -> np.ndarray:
         return h - (inputs.h - d[j] if h_row is None else h_row[j] - d[j])
 
+    def comp(area: np.ndarray | None, depth: np.ndarray | None) -> tuple[float, float]:
+        if area is None or depth is None:
+            return 0.0, 0.0
+        return float(area[j]), float(depth[j])
+
     g = cracked.gross(inputs.bw, h, inputs.bf, inputs.hf)
     d_sag = d_at(inputs.d_bottom, inputs.h_bottom)
     d_left = d_at(inputs.d_top_left, inputs.h_top_left)
     d_right = d_at(inputs.d_top_right, inputs.h_top_right)
+    c_sag = comp(inputs.as2_bottom, inputs.d2_bottom)
+    c_left = comp(inputs.as2_top_left, inputs.d2_top_left)
+    c_right = comp(inputs.as2_top_right, inputs.d2_top_right)
     sag = cracked.cracked(inputs.bw, inputs.bf, inputs.hf, inputs.as_bottom[j], d_sag,
-                          n_modular)
+                          n_modular, *c_sag)
     left = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_left[j], d_left,
-                           n_modular)
+                           n_modular, *c_left)
     right = cracked.cracked(inputs.bw, inputs.bw, 0.0, inputs.as_top_right[j], d_right,
-                            n_modular)
+                            n_modular, *c_right)
     return {"ig": g["ig"], "yt_sag": g["yt"], "yt_hog": g["y_comp"],
+            "as2": np.array([c_sag[0], c_left[0], c_right[0]]),
+            "d2": np.array([c_sag[1], c_left[1], c_right[1]]),
             "icr_sag": sag["icr"], "icr_left": left["icr"], "icr_right": right["icr"],
             "c_sag": sag["c"], "c_left": left["c"], "c_right": right["c"],
             "d_sag": d_sag, "d_left": d_left, "d_right": d_right, "y_comp": g["y_comp"],
@@ -203,18 +224,21 @@ def _shrinkage_en(inputs: Inputs, j: int, x: np.ndarray, length: float, m: np.nd
     ig = props["ig"]
     out = np.zeros(m.shape)
     steel = (inputs.as_bottom[j], inputs.as_top_left[j], inputs.as_top_right[j])
-    for mask, sign, yt, icr, c, d, area, yc in zip(
+    for mask, sign, yt, icr, c, d, area, yc, area2, d2 in zip(
             _regions(x, length, m, root), (1.0, -1.0, -1.0),
             (props["yt_sag"], props["yt_hog"], props["yt_hog"]),
             (props["icr_sag"], props["icr_left"], props["icr_right"]),
             (props["c_sag"], props["c_left"], props["c_right"]),
             (props["d_sag"], props["d_left"], props["d_right"]), steel,
             (props["y_comp"], props["h"] - props["y_comp"], props["h"] - props["y_comp"]),
-            strict=True):
+            props["as2"], props["d2"], strict=True):
         if not area > 0:
             continue
         zeta = cracked.zeta_en(m, (fctm * ig / yt)[:, None], beta)
-        s1, s2 = area * (d - yc), area * (d - c)
+        # S of all the reinforcement about each section's centroid (compression steel
+        # on the other side of it counts negative)
+        s1 = area * (d - yc) - area2 * (yc - d2)
+        s2 = area * (d - c) - area2 * (c - d2)
         with np.errstate(invalid="ignore", divide="ignore"):
             k = (zeta * (s2 / icr)[:, None] + (1.0 - zeta) * (s1 / ig)[:, None])
         out = np.where(mask, sign * eps * alpha * k, out)

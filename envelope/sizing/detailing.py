@@ -195,8 +195,8 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
             notes[i].append(f"two layers of bars: d = {chosen['d'][i]:.4g} {su['length']} "
                             f"to their centroid")
     cols["bars"] = chosen["label"]
-    cols["bars_compression"] = _compression_bars(rows, p, cols, bw, side, bar_set, system,
-                                                 notes, failures)
+    cols["bars_compression"], comp_area, comp_depth = _compression_bars(
+        rows, p, cols, bw, side, bar_set, system, notes, failures)
     cols["as_provided"] = chosen["area"]
     cols["bar_layers"] = chosen["layers"]
     units["bar_layers"] = "1"
@@ -222,7 +222,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
                            "at 75 mm / 3 in spacing or more: widen the section")
 
     # deflections per span
-    inputs = _inputs(analysis, p, cols, bw, bf, hf)
+    inputs = _inputs(analysis, p, cols, bw, bf, hf, comp_area, comp_depth)
     defl = cdefl.span_deflections(analysis.solved, inputs)
     _crack(analysis, rows, p, cols, units, failures, chosen, side, crack)
     _deflection_columns(analysis, p, defl, cols, units, notes, failures)
@@ -236,13 +236,16 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
 
 def _compression_bars(rows: Rows, p: Params, cols: dict[str, np.ndarray], bw: float,
                       side: float, bar_set: bar_mod.BarSet, system: str,
-                      notes: list[list[str]], failures: list[list[str]]) -> np.ndarray:
+                      notes: list[list[str]], failures: list[list[str]]
+                      ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Bars for the compression steel of doubly reinforced rows (``as_compression``), by
     the same rules as the tension bars (one or two layers, clear spacing), at the
-    compression face; "" elsewhere."""
+    compression face; "" elsewhere.  Also their area (0 where none) and the depth of
+    their centroid from the compression face (section units), for the cracked section."""
     comp = np.nan_to_num(np.asarray(cols["as_compression"], dtype=float))
     if not np.any(comp > 0):
-        return np.full(rows.n, "", dtype=object)
+        return (np.full(rows.n, "", dtype=object), np.zeros(rows.n),
+                np.full(rows.n, side))
     d0 = np.asarray(cols["d"], dtype=float)
     chosen = bar_mod.choose(lambda d: np.where(comp > 0, comp, 0.0), d0,
                             np.full(rows.n, bw), side, np.full(rows.n, np.inf), bar_set,
@@ -257,7 +260,11 @@ def _compression_bars(rows: Rows, p: Params, cols: dict[str, np.ndarray], bw: fl
         elif p.code == "aci318-19":
             notes[i].append("compression bars to be enclosed by stirrups or ties (ACI "
                             "318-19 9.7.6.4)")
-    return np.asarray(chosen["label"], dtype=object)
+    placed = (comp > 0) & np.asarray(chosen["fits"], dtype=bool)
+    area = np.where(placed, np.asarray(chosen["area"], dtype=float), 0.0)
+    # a second layer moves the centroid away from the face by what it moves d
+    depth = side + (d0 - np.asarray(chosen["d"], dtype=float))
+    return np.asarray(chosen["label"], dtype=object), area, np.where(placed, depth, side)
 
 
 def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]]) -> None:
@@ -321,7 +328,8 @@ def _spacing_clause(code: str) -> str:
 
 
 def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: float,
-            bf: np.ndarray, hf: np.ndarray) -> cdefl.Inputs:
+            bf: np.ndarray, hf: np.ndarray, comp_area: np.ndarray,
+            comp_depth: np.ndarray) -> cdefl.Inputs:
     beam = analysis.beam
     system = beam.units.name
     s = ACI_SCALES[system] if p.code == "aci318-19" else EN_SCALES[system]
@@ -354,6 +362,9 @@ def _inputs(analysis: Analysis, p: Params, cols: dict[str, np.ndarray], bw: floa
         as_top_right=area[right], d_top_right=d[right], sustained=p.sustained,
         months=p.months, creep=p.creep, shrinkage=p.shrinkage,
         rho_prime=rho_prime, to_base_length=to_base_length,
+        as2_bottom=comp_area[mid] / s.area, d2_bottom=comp_depth[mid] * L,
+        as2_top_left=comp_area[left] / s.area, d2_top_left=comp_depth[left] * L,
+        as2_top_right=comp_area[right] / s.area, d2_top_right=comp_depth[right] * L,
         to_base_moment=s.moment, to_section=1.0 / L)
 
 
