@@ -22,6 +22,7 @@ forms, never from the engine's own code, so that a change that breaks one fails 
 from __future__ import annotations
 
 import math
+import tomllib
 from pathlib import Path
 
 import numpy as np
@@ -29,7 +30,7 @@ import pytest
 from scipy.optimize import minimize_scalar
 
 from envelope.analysis import analyse
-from envelope.casefile import load_case
+from envelope.casefile import load_case, parse_case
 from envelope.sizing import size
 from tests.tolerances import SOLVE
 
@@ -248,3 +249,31 @@ def test_demo_school_support_face_steel_min_steel_and_shear_match_hand_check(
     assert school["shear_design"][i] > school["VRdc"][i]
     need = school["shear_design"][i] * 1e3 / (0.9 * d * fyk / 1.15 * 2.5)   # eq. 6.8
     assert need < school["av_over_s_min"][i] == school["av_over_s_required"][i]
+
+
+# ------------------------------------------------- checks that cannot be made say so
+
+@pytest.mark.parametrize(("fck", "why"), [
+    (60, "above C50/60"),                       # 3.1.7(3) block, Table 3.1 eps_cu
+    (95, "outside the strength classes of EN 1992-1-1 Table 3.1"),
+    (10, "outside the strength classes of EN 1992-1-1 Table 3.1")])
+def test_en_concrete_outside_the_c50_block_or_table_3_1_is_not_checked_and_says_so(
+        fck: int, why: str) -> None:
+    text = (CASES / "school-2span-en.toml").read_text().replace("fc = 30", f"fc = {fck}")
+    beam = parse_case(tomllib.loads(text), str(CASES / "school-2span-en.toml"))
+    cols = size(analyse(beam))
+    for status in cols["status"]:
+        assert status.startswith("not checked: ") and why in status
+
+
+def test_steel_demo_without_the_shape_dimensions_says_what_it_did_not_check() -> None:
+    # the strength-only set (name, Zx, Ix, Aw): no F2/F3, J10 or DG11 without the shape
+    text = (CASES / "mezzanine-us.toml").read_text()
+    start = text.index("section = {")
+    end = text.index("\n", start)
+    text = text[:start] + 'section = { name = "MZ", Zx = 141.1, Ix = 1298, Aw = 8.4 }' \
+        + text[end:]
+    cols = size(analyse(parse_case(tomllib.loads(text), str(CASES / "mezzanine-us.toml"))))
+    for status in cols["status"]:
+        assert status.startswith("not checked: lateral-torsional buckling (F2)")
+        assert "web local yielding and crippling (J10.2, J10.3)" in status

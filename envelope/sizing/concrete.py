@@ -247,6 +247,10 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: np.ndarray, d: np.ndarray,
     fywk = float(design.stirrup_strength) * s.stress
     m = np.abs(rows.moment) * s.moment
     bm, dm, hm = b * L, d * L, h * L
+    outside = en.outside_scope(fck)
+    if outside:
+        for i in range(rows.n):
+            failures[i].append(outside)
     # T-section: the flange width where the block (depth 0.8x) stays in the flange,
     # else the web alone (on the safe side: the rectangular method does not cover it)
     width = bf * L

@@ -30,6 +30,28 @@ K_LIM = 0.167
 AS_MAX_RATIO = 0.04
 
 
+#: Strength classes of EN 1992-1-1 Table 3.1: C12/15 to C90/105 (fck in MPa).
+FCK_RANGE = (12.0, 90.0)
+#: The simplified block of 3.1.7(3) with lambda = 0.8, eta = 1 and eps_cu = 0.0035
+#: (Table 3.1) used here holds up to C50/60; above it lambda, eta and eps_cu3 fall.
+FCK_BLOCK_MAX = 50.0
+
+
+def outside_scope(fck: float) -> str:
+    """The status text where ``fck`` (MPa) is outside what this sizing covers, else "":
+    outside the classes of Table 3.1, or above C50/60 where the stress block, K' and
+    the strain limits used here no longer hold (3.1.7(3), Table 3.1)."""
+    lo, hi = FCK_RANGE
+    if not lo <= fck <= hi:
+        return (f"not checked: fck = {fck:g} MPa is outside the strength classes of EN "
+                f"1992-1-1 Table 3.1 (C12/15 to C90/105)")
+    if fck > FCK_BLOCK_MAX:
+        return (f"not checked: fck = {fck:g} MPa is above C50/60; the stress block "
+                f"(lambda = 0.8, eta = 1, EN 1992-1-1 3.1.7(3)), eps_cu = 0.0035 (Table "
+                f"3.1) and K' used here hold up to fck = 50 MPa only")
+    return ""
+
+
 def fctm(fck: np.ndarray | float) -> np.ndarray:
     """Mean axial tensile strength (Table 3.1): 0.30 fck^(2/3) up to C50/60, else
     2.12 ln(1 + fcm/10) with fcm = fck + 8 (MPa)."""
