@@ -329,6 +329,32 @@ def test_check_reads_a_schedule_as_batch_would_and_writes_nothing(tmp_path: Path
     assert _invoke("check", str(good)).exit_code == 0
 
 
+
+def test_check_and_batch_refuse_a_repeated_id_with_the_same_message(tmp_path: Path) -> None:
+    """One row reader serves `envelope check` and `envelope batch`: an id repeated in a
+    second schedule, and one repeated by a bad row, give the very same lines in both."""
+    good = ("SI", "6", "pinned", 30000, 8.0e9, 4.2, 5.0, 3.0, 0, "code")
+    first = schedule.write_schedule(tmp_path / "a.csv", [
+        HEAD, ("G1", "", *good), ("G2", "", "SI", "6", "hinged", *good[3:])])
+    second = schedule.write_schedule(tmp_path / "b.xlsx", [
+        HEAD, ("G1", "", *good), ("G2", "", *good), ("G3", "", *good)])
+    run = _invoke("check", "-v", str(first), str(second))
+    assert run.exit_code == 2
+    said = [line.removeprefix("error: ") for line in run.output.splitlines()
+            if line.startswith("error: ")]
+    files, failures = schedule.expand_schedules([str(first), str(second)], tmp_path / "out")
+    assert said == [f.error for f in failures]
+    items = list(schedule.checked_rows([str(first), str(second)]))
+    assert said == [str(i.error) for i in items if i.error is not None]
+    assert [i.beam_id for i in items if i.doc is not None] == ["G1", "G3"]
+    assert len(said) == 3
+    assert f"{second}: sheet beams, row 2, column id (A): id 'G1' is already used by " \
+        f"{first}: row 2" in said
+    assert f"{second}: sheet beams, row 3, column id (A): id 'G2' is already used by " \
+        f"{first}: row 3" in said  # the bad row that used it first keeps it
+    assert [Path(f).stem for f in files] == ["G1", "G3"]
+    assert "5 schedule rows, 3 bad" in run.output
+
 # -- the combined tables of a batch keep units per row system or convert ---------------------
 
 LBF_KN = 4.4482216152605e-3   # kN per lbf, exact (NIST SP 811)

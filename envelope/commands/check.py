@@ -71,34 +71,16 @@ def check(paths: tuple[str, ...], sections: str | None, max_memory: float | None
 
 def _check_schedules(schedules: list[str]) -> tuple[int, int]:
     """Check every beam row of the beam schedules (.csv, .xlsx) as ``envelope batch``
-    would read them: each row's case, its id unique over the schedules.  Returns the
-    number of rows and of bad ones; a schedule that cannot be read counts as one bad."""
-    from envelope.errors import EnvelopeError
-    from envelope.report.schedule import ScheduleError, _text, check_row, read_rows
+    reads them (:func:`envelope.report.schedule.checked_rows`, shared with it).  Returns
+    the number of rows and of bad ones; a schedule that cannot be read counts as one bad."""
+    from envelope.report.schedule import checked_rows
 
     rows = bad = 0
-    seen: dict[str, str] = {}
-    for path in schedules:
-        try:
-            found = read_rows(path)
-        except EnvelopeError as exc:
-            click.echo(f"error: {exc}", err=True)
+    for item in checked_rows(schedules):
+        rows += item.row is not None
+        if item.error is not None:
+            click.echo(f"error: {item.error}", err=True)
             bad += 1
-            continue
-        for row in found:
-            rows += 1
-            beam_id = _text(row, "id") or ""
-            try:
-                if beam_id and beam_id in seen:
-                    raise ScheduleError(f"{row.where('id')}: id {beam_id!r} is already "
-                                        f"used by {seen[beam_id]}")
-                check_row(row)
-            except EnvelopeError as exc:
-                click.echo(f"error: {exc}", err=True)
-                bad += 1
-                continue
-            finally:
-                if beam_id:
-                    seen.setdefault(beam_id, row.where())
-            say(f"ok: {row.where()} ({beam_id})")
+        elif item.row is not None:
+            say(f"ok: {item.row.where()} ({item.beam_id})")
     return rows, bad
