@@ -26,16 +26,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from envelope import config
+from envelope.contracted import SpanCases, contract, response
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients
 from envelope.moving import MovingEffect, moving_loads, point_effects
-from envelope.recovery import (
-    Combined,
-    Points,
-    combine,
-    evaluate_combined,
-    evaluate_some,
-    make_points,
-)
+from envelope.recovery import Points, evaluate_some, make_points
 from envelope.search import golden_max, illinois_root
 from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
@@ -143,6 +137,7 @@ class _Search:
         # strength sets read the redistributed solution (where moment is redistributed),
         # service sets the elastic one
         self.solution = [solved.solution_for(name) for _, name in tasks]
+        self.is_deflection = np.array([q == "deflection" for q, _ in tasks], dtype=bool)
 
     def refine(self, br: _Brackets) -> tuple[np.ndarray, np.ndarray]:
         """Position and value of the maximum in each bracket (see the module docstring)."""
@@ -215,22 +210,12 @@ class _Search:
                 out[t] = full
         return out
 
-    def combine(self, task: np.ndarray, coef: np.ndarray) -> Combined:
-        """The cases ``coef`` (one row per bracket) contracted with each bracket's own
-        solution (:func:`envelope.recovery.combine`)."""
+    def contract(self, task: np.ndarray, span: np.ndarray, coef: np.ndarray) -> SpanCases:
+        """The cases ``coef`` (one row per bracket) contracted on each bracket's span
+        with the bracket's own solution (:func:`envelope.contracted.contract`)."""
         s = self.solved
-        groups = self._by_solution(task)
-        if len(groups) == 1:
-            return combine(s.unit_cases, groups[0][0], coef)
-        n_elem = s.solution.V0.shape[0]
-        states = [np.zeros((coef.shape[0], n_elem)) for _ in range(4)]
-        for sol, _, rows in groups:
-            part = combine(s.unit_cases, sol, coef[rows])
-            for full, got in zip(states, (part.V0, part.M0, part.theta1, part.v1),
-                                 strict=True):
-                full[rows] = got
-        V0, M0, theta1, v1 = states
-        return Combined(V0, M0, theta1, v1, coef[:, s.unit_cases.item_unit])
+        groups = [(sol, rows) for sol, _, rows in self._by_solution(task)]
+        return contract(s.mesh, s.unit_cases, groups, span, coef)
 
     def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray
                      ) -> np.ndarray:
@@ -288,39 +273,20 @@ class _Search:
                     ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """:meth:`root_of_governing` of one block of brackets."""
         s = self.solved
-        beam = s.beam
         resp = self.responses(task, span, x)
         coef = np.empty((x.size, s.unit_cases.n_units))
         for t, rows in self._each_task(task):
             coef[rows] = governing_coefficients(resp[t][rows], self.sets[t])
-        comb = self.combine(task, coef)
-        owner = np.arange(x.size)
-        quantity = np.array([self.quantity[t] for t in task.tolist()], dtype=object)
-        slope_name = np.array([_SLOPE[q] for q in quantity], dtype=object)
-
-        def own(xs: np.ndarray, names: np.ndarray, which: np.ndarray | None = None,
-                right: np.ndarray | None = None) -> np.ndarray:
-            """The governing case of bracket ``which`` (default: each bracket once) at
-            ``xs``: the quantity ``names`` names (NaN at a NaN position: a bracket whose
-            search has finished)."""
-            which = owner if which is None else which
-            got = np.full(xs.size, np.nan)
-            at = np.flatnonzero(~np.isnan(xs))
-            side = None if right is None else right[at]
-            vals = evaluate_combined(s.mesh, s.unit_cases, comb,
-                                     make_points(beam, span[which[at]], xs[at], side),
-                                     which[at], tuple(dict.fromkeys(names[which[at]].tolist())))
-            for name, v in vals.items():
-                mine = names[which[at]] == name
-                got[at[mine]] = v[mine]
-            return got
+        gov = self.contract(task, span, coef)
+        deflection = self.is_deflection[task]
+        n = x.size
 
         def slope(xs: np.ndarray) -> np.ndarray:
-            return own(xs, slope_name)
+            return response(gov, xs, deflection, slope=True)
 
-        n = x.size
-        four = own(np.r_[lo, hi, x, x], slope_name, np.tile(owner, 4),
-                   np.repeat([True, True, False, True], n))
+        four = response(gov.take(np.tile(np.arange(n), 4)), np.r_[lo, hi, x, x],
+                        np.tile(deflection, 4), slope=True,
+                        right=np.repeat([True, True, False, True], n))
         f_lo, f_hi, left, right = four[:n], four[n: 2 * n], four[2 * n: 3 * n], four[3 * n:]
         ok = (f_lo > 0.0) & (f_hi < 0.0)
         # the slope just left and right of the station itself: through zero there (a
@@ -336,20 +302,24 @@ class _Search:
                              ok & ~at_x, tol, group=task)
         # a maximum at an end of its bracket (a span end): the case falls away inwards and
         # the envelope is lower at probes inside the bracket (several cases may tie at a
-        # support, so the governing one alone does not decide)
+        # support, so the governing one alone does not decide); the envelope at the
+        # probes is evaluated with the envelope at the roots
         at_end = ~ok & (((x == lo) & (f_lo <= 0.0)) | ((x == hi) & (f_hi >= 0.0)))
-        value = self.envelope_max(task, span, root)
-        if at_end.any():
-            ends = np.flatnonzero(at_end)
-            probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
-            k = probes.shape[1]
-            inside = self.envelope_max(np.repeat(task[ends], k), np.repeat(span[ends], k),
-                                       probes.ravel()).reshape(probes.shape)
+        ends = np.flatnonzero(at_end)
+        probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
+        k = probes.shape[1]
+        both = self.envelope_max(np.r_[task, np.repeat(task[ends], k)],
+                                 np.r_[span, np.repeat(span[ends], k)],
+                                 np.r_[root, probes.ravel()])
+        value = both[:n]
+        if ends.size:
+            inside = both[n:].reshape(probes.shape)
             at_end[ends] = np.all(inside < value[ends, None], axis=1)
         # round-off of the sums is relative to the envelope's size (a value near zero,
         # e.g. at a free end, is compared with its noise, not with itself)
         scale = np.maximum(np.maximum(np.abs(value), self.scale[task]), np.finfo(float).tiny)
-        governs = value <= own(root, quantity) + config.GOVERNS_RTOL * scale
+        governs = value <= (response(gov, root, deflection, slope=False)
+                            + config.GOVERNS_RTOL * scale)
         return root, value, (ok | at_end) & governs
 
 

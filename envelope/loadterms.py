@@ -30,8 +30,8 @@ from envelope.loading import DISTRIBUTED, MOMENT, POINT
 #: Three-point Gauss-Legendre rule on [-1, 1]: the values numpy.polynomial.legendre.leggauss(3)
 #: gives (+-sqrt(3/5), 0; 5/9, 8/9, 5/9), written out so that numpy.polynomial is not
 #: imported at start-up.
-_GAUSS_X = np.array([-0.7745966692414834, 0.0, 0.7745966692414834])
-_GAUSS_W = np.array([0.5555555555555557, 0.8888888888888888, 0.5555555555555557])
+GAUSS_X = np.array([-0.7745966692414834, 0.0, 0.7745966692414834])
+GAUSS_W = np.array([0.5555555555555557, 0.8888888888888888, 0.5555555555555557])
 
 
 def load_terms(
@@ -58,16 +58,17 @@ def load_terms(
         half = 0.5 * (c - ad)
         width = bd - ad
         slope = np.divide(wbd - wad, width, out=np.zeros_like(width), where=width > 0.0)
-        q_sum = np.zeros((4, sd.size))
-        for xi, wi in zip(_GAUSS_X, _GAUSS_W, strict=True):
-            t = ad + half * (1.0 + xi)
-            wq = wi * half * (wad + slope * (t - ad))
-            r = sd - t
-            q_sum[0] += wq
-            q_sum[1] += wq * r
-            q_sum[2] += wq * r * r / 2.0
-            q_sum[3] += wq * r * r * r / 6.0
-        Q[dist], m[dist], m1[dist], m2[dist] = q_sum
+        # the three Gauss points of every item at once (items x points), each term the
+        # same product as point by point; summed over the points in their order
+        t = ad[:, None] + half[:, None] * (1.0 + GAUSS_X)
+        wq = GAUSS_W * half[:, None] * (wad[:, None] + slope[:, None] * (t - ad[:, None]))
+        r = sd[:, None] - t
+        wr = wq * r
+        wrr = wr * r
+        Q[dist] = wq.sum(axis=1)
+        m[dist] = wr.sum(axis=1)
+        m1[dist] = (wrr / 2.0).sum(axis=1)
+        m2[dist] = (wrr * r / 6.0).sum(axis=1)
 
     conc = (kind == POINT) | (kind == MOMENT)
     if conc.any():

@@ -24,6 +24,7 @@ import reference_actions
 from envelope.actions import design_actions, refine_max, refine_maxima
 from envelope.analysis import analyse
 from envelope.casefile import load_case
+from envelope.contracted import contract, response
 from envelope.recovery import combine, evaluate_combined, evaluate_some, make_points
 from envelope.search import golden_max, illinois_root
 from envelope.solved import envelopes_at
@@ -143,6 +144,43 @@ def test_contracted_response_is_the_unit_responses_times_the_coefficients(
             want = np.einsum("iu,iu->i", unit[q], coef)
             scale = np.abs(unit[q]).max() * np.abs(coef).sum(axis=1).max()
             np.testing.assert_allclose(comb[q], want, rtol=0, atol=LONG_SUM * scale)
+
+
+def test_case_contracted_on_its_span_equals_the_case_contracted_on_the_whole_beam(
+        generated: list[Path]) -> None:
+    # envelope.contracted (the search's steps) against envelope.recovery.evaluate_combined
+    # (every element's state, every item): the same response of the same combined case
+    rng = np.random.default_rng(5)
+    several = 0
+    for path in generated[:24]:
+        s = analyse(load_case(path)).solved
+        several += int(s.mesh.span_count.max() > 1)
+        n = 60
+        span = rng.integers(0, s.beam.n_spans, n)
+        length = np.asarray(s.beam.geometry.span_length)[span]
+        x = rng.random(n) * length
+        x[:6] = [0.0, 0.0, length[2], length[3], x[4], x[4]]  # ends; both sides of a point
+        right = rng.random(n) < 0.5
+        coef = rng.normal(size=(n, s.unit_cases.n_units))
+        coef[:, rng.random(s.unit_cases.n_units) < 0.3] = 0.0  # cases not loaded
+        pts = make_points(s.beam, span, x, right)
+        names = ("shear", "moment", "rotation", "deflection")
+        want = evaluate_combined(s.mesh, s.unit_cases, combine(s.unit_cases, s.solution, coef),
+                                 pts, np.arange(n), names)
+        sc = contract(s.mesh, s.unit_cases, [(s.solution, np.arange(n))], span, coef)
+        for q, defl, slope in (("shear", False, True), ("rotation", True, True),
+                               ("moment", False, False), ("deflection", True, False)):
+            got = response(sc, x, np.full(n, defl), slope, right)
+            scale = np.abs(want[q]).max()
+            np.testing.assert_allclose(got, want[q], rtol=0, atol=LONG_SUM * scale,
+                                       err_msg=f"{path.name} {q}")
+            # a finished bracket (NaN position) gives NaN and leaves the others alone
+            x_nan = np.where(np.arange(n) % 7 == 0, np.nan, x)
+            got_nan = response(sc, x_nan, np.full(n, defl), slope, right)
+            assert np.all(np.isnan(got_nan[::7]))
+            keep = np.arange(n) % 7 != 0
+            assert np.array_equal(got_nan[keep], got[keep])
+    assert several  # some beams have spans of several elements (stretches, hinges)
 
 
 def _peaks(x: np.ndarray, centre: np.ndarray) -> np.ndarray:
