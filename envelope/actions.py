@@ -65,27 +65,28 @@ class _Brackets:
     b: np.ndarray
 
 
-def _station_maxima(pts: Points, env_max: np.ndarray, n_spans: int
-                    ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray,
-                               np.ndarray]:
-    """Best station of each span (value, x_span: the first best row), and each local
-    maximum among the distinct station positions of a span: its span and position with
-    the neighbouring positions (a, x, b); a plateau counts once, at its start."""
-    best = np.full(n_spans, -np.inf)
-    best_x = np.zeros(n_spans)
-    rows = np.arange(pts.n)
-    first_best = np.lexsort((rows, -env_max, pts.span))  # per span: largest, first row
-    head = first_best[np.r_[True, pts.span[first_best][1:] != pts.span[first_best][:-1]]]
-    best[pts.span[head]], best_x[pts.span[head]] = env_max[head], pts.x_span[head]
+def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
+                    n_groups: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray,
+                                            np.ndarray, np.ndarray]:
+    """Best station of each group of rows (``span``: a group per span and request; value,
+    x_span: the first best row), and each local maximum among the distinct station
+    positions of a group: its group and position with the neighbouring positions (a, x,
+    b); a plateau counts once, at its start."""
+    best = np.full(n_groups, -np.inf)
+    best_x = np.zeros(n_groups)
+    rows = np.arange(span.size)
+    first_best = np.lexsort((rows, -values, span))  # per group: largest, first row
+    head = first_best[np.r_[True, span[first_best][1:] != span[first_best][:-1]]]
+    best[span[head]], best_x[span[head]] = values[head], x_span[head]
 
-    order = np.lexsort((rows, pts.x_span, pts.span))
-    sp, xs, vals = pts.span[order], pts.x_span[order], env_max[order]
+    order = np.lexsort((rows, x_span, span))
+    sp, xs, vals = span[order], x_span[order], values[order]
     new_span = np.r_[True, sp[1:] != sp[:-1]]
     first = new_span | np.r_[True, xs[1:] != xs[:-1]]
     starts = np.flatnonzero(first)
     uv = np.maximum.reduceat(vals, starts)  # the largest at each distinct position
     us, ux, opens = sp[starts], xs[starts], new_span[starts]
-    closes = np.r_[opens[1:], True]  # the last position of its span
+    closes = np.r_[opens[1:], True]  # the last position of its group
     left = np.where(opens, -np.inf, np.r_[-np.inf, uv[:-1]])
     right = np.where(closes, -np.inf, np.r_[uv[1:], -np.inf])
     i = np.flatnonzero((uv > left) & (uv >= right))
@@ -101,25 +102,30 @@ def refine_maxima(solved: Solved, pts: Points, requests: Sequence[Request]
     together; each request's brackets stop when its own are done, so each answer is the
     one its search alone would give (to round-off)."""
     n_spans = solved.beam.n_spans
-    out: list[tuple[np.ndarray, np.ndarray]] = []
-    parts: list[tuple[np.ndarray, ...]] = []
-    for t, (env_max, _, _) in enumerate(requests):
-        best, best_x, span, a, x, b = _station_maxima(pts, env_max, n_spans)
-        out.append((best, best_x))
-        parts.append((np.full(span.size, t, dtype=np.int64), span, a, x, b))
-    if not parts or not sum(p[0].size for p in parts):
+    n_req = len(requests)
+    if not n_req:
+        return []
+    # every request's stations at once: a group of rows per (request, span)
+    best, best_x, group, a, x, b = _station_maxima(
+        (np.arange(n_req)[:, None] * n_spans + pts.span).ravel(),
+        np.tile(pts.x_span, n_req), np.concatenate([env_max for env_max, _, _ in requests]),
+        n_req * n_spans)
+    out = [(best[t * n_spans:(t + 1) * n_spans], best_x[t * n_spans:(t + 1) * n_spans])
+           for t in range(n_req)]
+    if not group.size:
         return out
-    task, span, a, x, b = (np.concatenate(col) for col in zip(*parts, strict=True))
+    task, span = np.divmod(group, n_spans)
     length = np.asarray(solved.beam.geometry.span_length, dtype=float)[span]
     br = _Brackets(task, span.astype(np.int64), length, x, a, b)
     scale = [float(np.max(np.abs(env_max), initial=0.0)) for env_max, _, _ in requests]
     search = _Search(solved, [(q, c or QUANTITY_SET[q]) for _, q, c in requests], scale)
     xm, vm = search.refine(br)
-    for i in range(task.size):
-        best, best_x = out[int(task[i])]
-        j = int(span[i])
-        if vm[i] > best[j]:
-            best[j], best_x[j] = vm[i], xm[i]
+    # per (request, span): the first of its largest refined maxima, where above the best
+    # station
+    order = np.lexsort((np.arange(group.size), -vm, group))
+    head = order[np.r_[True, group[order][1:] != group[order][:-1]]]
+    up = head[vm[head] > best[group[head]]]
+    best[group[up]], best_x[group[up]] = vm[up], xm[up]
     return out
 
 
@@ -325,12 +331,9 @@ class _Search:
 
 def _at_span_ends(pts: Points, n_spans: int) -> tuple[np.ndarray, np.ndarray]:
     """Station rows of each span's left end (x_span = 0) and right end (x_span = L)."""
-    left = np.zeros(n_spans, dtype=np.int64)
-    right = np.zeros(n_spans, dtype=np.int64)
-    for j in range(n_spans):
-        rows = np.flatnonzero(pts.span == j)
-        left[j], right[j] = rows[0], rows[-1]
-    return left, right
+    order = np.argsort(pts.span, kind="stable")  # each span's rows in their order
+    bounds = np.searchsorted(pts.span[order], np.arange(n_spans + 1))
+    return order[bounds[:-1]], order[bounds[1:] - 1]
 
 
 def design_actions(solved: Solved, pts: Points,

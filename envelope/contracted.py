@@ -94,13 +94,14 @@ def contract(mesh: Mesh, units: UnitCases, solutions: list[tuple[Solution, np.nd
     k = np.arange(n_elem)
     elem = first[:, None] + np.minimum(k, count[:, None] - 1)
     start = np.where(k < count[:, None], mesh.start[elem], np.inf)
-    states = {name: np.empty((n, n_elem)) for name in ("V0", "M0", "theta1", "v1")}
+    states = np.empty((4, n, n_elem))
     for sol, rows in solutions:
+        packed = sol.state if sol.state is not None and all(
+            getattr(sol, name).base is sol.state for name in _ELEM[3:]) else np.stack(
+            [getattr(sol, name) for name in _ELEM[3:]])
         c = coef[rows]
-        for name, full in states.items():
-            per_elem = getattr(sol, name)
-            for j in range(n_elem):
-                full[rows, j] = np.einsum("ru,ru->r", per_elem[elem[rows, j]], c)
+        for j in range(n_elem):
+            states[:, rows, j] = np.einsum("sru,ru->sr", packed[:, elem[rows, j]], c)
 
     # the load items of each row's span, then only those the case loads
     lo = units.elem_first[first]
@@ -123,8 +124,8 @@ def contract(mesh: Mesh, units: UnitCases, solutions: list[tuple[Solution, np.nd
     c = _padded(row[conc], n, [at[conc], a[conc], units.item_p[item][conc],
                                (kind[conc] == POINT).astype(float), w[conc]],
                 [-1, 0.0, 0.0, 0.0, 0.0])
-    elem_arrays = np.stack([start, mesh.length[elem], mesh.EI[elem], states["V0"],
-                            states["M0"], states["theta1"], states["v1"]])
+    elem_arrays = np.concatenate([np.stack([start, mesh.length[elem], mesh.EI[elem]]),
+                                  states])
     return SpanCases(elem_arrays, d[0][..., None], *(v[..., None] for v in d[1:]), *c)
 
 
