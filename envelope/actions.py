@@ -189,38 +189,40 @@ class _Search:
         return [(t, np.flatnonzero(task == t)) for t in range(len(self.sets))
                 if np.any(task == t)]
 
-    def _by_solution(self, task: np.ndarray) -> list[tuple[Solution, list[int], np.ndarray]]:
+    def _by_solution(self, task: np.ndarray
+                     ) -> list[tuple[Solution, list[tuple[int, np.ndarray]]]]:
         """The tasks present in ``task`` grouped by the solution they read: each
-        solution, its tasks and their rows."""
-        groups: dict[int, tuple[Solution, list[int], list[np.ndarray]]] = {}
+        solution, and its tasks with their rows."""
+        groups: dict[int, tuple[Solution, list[tuple[int, np.ndarray]]]] = {}
         for t, rows in self._each_task(task):
             sol = self.solution[t]
-            groups.setdefault(id(sol), (sol, [], []))
-            groups[id(sol)][1].append(t)
-            groups[id(sol)][2].append(rows)
-        return [(sol, ts, np.sort(np.concatenate(rs))) for sol, ts, rs in groups.values()]
+            groups.setdefault(id(sol), (sol, []))[1].append((t, rows))
+        return list(groups.values())
 
     def responses(self, task: np.ndarray, span: np.ndarray, x: np.ndarray
-                  ) -> dict[int, np.ndarray]:
-        """Every unit case's response at the points (rows x units), for each task
-        present: its quantity from its solution (rows of other tasks are left zero)."""
+                  ) -> list[tuple[int, np.ndarray, np.ndarray]]:
+        """Every unit case's response at the points, for each task present: the task,
+        its rows and their responses (rows x units: its quantity from its solution), in
+        task order."""
         s = self.solved
-        out: dict[int, np.ndarray] = {}
-        for sol, tasks, rows in self._by_solution(task):
-            names = tuple(dict.fromkeys(self.quantity[t] for t in tasks))
-            pts = make_points(s.beam, span[rows], x[rows])
-            resp = evaluate_some(s.mesh, s.unit_cases, sol, pts, names)
-            for t in tasks:
-                full = np.zeros((x.size, s.unit_cases.n_units))
-                full[rows] = resp[self.quantity[t]]
-                out[t] = full
-        return out
+        out: list[tuple[int, np.ndarray, np.ndarray]] = []
+        for sol, tasks in self._by_solution(task):
+            names = tuple(dict.fromkeys(self.quantity[t] for t, _ in tasks))
+            rows = np.concatenate([r for _, r in tasks]) if len(tasks) > 1 else tasks[0][1]
+            resp = evaluate_some(s.mesh, s.unit_cases, sol,
+                                 make_points(s.beam, span[rows], x[rows]), names)
+            at = 0
+            for t, r in tasks:
+                out.append((t, r, resp[self.quantity[t]][at: at + r.size]))
+                at += r.size
+        return sorted(out, key=lambda part: part[0])
 
     def contract(self, task: np.ndarray, span: np.ndarray, coef: np.ndarray) -> SpanCases:
         """The cases ``coef`` (one row per bracket) contracted on each bracket's span
         with the bracket's own solution (:func:`envelope.contracted.contract`)."""
         s = self.solved
-        groups = [(sol, rows) for sol, _, rows in self._by_solution(task)]
+        groups = [(sol, np.concatenate([r for _, r in tasks]))
+                  for sol, tasks in self._by_solution(task)]
         return contract(s.mesh, s.unit_cases, groups, span, coef)
 
     def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray
@@ -236,13 +238,10 @@ class _Search:
         step = chunk_rows(self.solved.unit_cases.n_units)
         for lo in range(0, x.size, step):
             part = slice(lo, lo + step)
-            resp = self.responses(task[part], span[part], x[part])
-            for t, rows in self._each_task(task[part]):
-                for r0 in range(0, rows.size, step):
-                    sel = rows[r0: r0 + step]
-                    vmax = column_max(resp[t][sel], self.sets[t],
-                                      self.moving_at(t, span[part][sel], x[part][sel]))
-                    out[lo + sel] = vmax.max(axis=1)
+            for t, rows, resp in self.responses(task[part], span[part], x[part]):
+                vmax = column_max(resp, self.sets[t],
+                                  self.moving_at(t, span[part][rows], x[part][rows]))
+                out[lo + rows] = vmax.max(axis=1)
         return out
 
     def moving_at(self, t: int, span: np.ndarray, x: np.ndarray) -> MovingEffect | None:
@@ -279,10 +278,9 @@ class _Search:
                     ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """:meth:`root_of_governing` of one block of brackets."""
         s = self.solved
-        resp = self.responses(task, span, x)
         coef = np.empty((x.size, s.unit_cases.n_units))
-        for t, rows in self._each_task(task):
-            coef[rows] = governing_coefficients(resp[t][rows], self.sets[t])
+        for t, rows, resp in self.responses(task, span, x):
+            coef[rows] = governing_coefficients(resp, self.sets[t])
         gov = self.contract(task, span, coef)
         deflection = self.is_deflection[task]
         n = x.size
