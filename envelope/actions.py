@@ -34,8 +34,9 @@ from envelope.search import golden_max, illinois_root
 from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
 
-#: The derivative of each quantity along the beam: dM/dx = V, d(deflection)/dx = rotation.
-_SLOPE = {"moment": "shear", "deflection": "rotation"}
+#: Machine epsilon and the smallest normal number of a float (round-off scales).
+_EPS = float(np.finfo(float).eps)
+_TINY = float(np.finfo(float).tiny)
 
 #: One maximum to refine: the envelope maximum at the stations, the quantity (moment or
 #: deflection) and the case set (None: the quantity's own, see ``QUANTITY_SET``).
@@ -300,7 +301,7 @@ class _Search:
         inner = ok & ~at_x & (x > lo) & (x < hi)
         up = inner & (left > 0.0) & (right > 0.0)
         down = inner & (left < 0.0) & (right < 0.0)
-        tol = config.ROOT_XTOL_EPS * np.finfo(float).eps * np.maximum(length, 1.0)
+        tol = config.ROOT_XTOL_EPS * _EPS * np.maximum(length, 1.0)
         root = illinois_root(slope, np.where(up, x, lo), np.where(down, x, hi),
                              np.where(up, right, f_lo), np.where(down, left, f_hi), x,
                              ok & ~at_x, tol, group=task)
@@ -321,7 +322,7 @@ class _Search:
             at_end[ends] = np.all(inside < value[ends, None], axis=1)
         # round-off of the sums is relative to the envelope's size (a value near zero,
         # e.g. at a free end, is compared with its noise, not with itself)
-        scale = np.maximum(np.maximum(np.abs(value), self.scale[task]), np.finfo(float).tiny)
+        scale = np.maximum(np.maximum(np.abs(value), self.scale[task]), _TINY)
         governs = value <= (response(gov, root, deflection, slope=False)
                             + config.GOVERNS_RTOL * scale)
         return root, value, (ok | at_end) & governs

@@ -74,29 +74,35 @@ def illinois_root(f: Function, lo: np.ndarray, hi: np.ndarray, f_lo: np.ndarray,
     """The root of ``f`` in each active bracket [lo, hi] where ``f_lo > 0 > f_hi``
     (the values at its ends), to ``xtol``; ``start`` where a bracket is not active.
 
-    ``f`` is called with one position per bracket (inactive ones at ``start``, those of
-    a finished ``group`` NaN), at most :data:`envelope.config.ROOT_MAX_STEPS` times."""
+    ``f`` is called with one position per bracket (inactive ones at ``start`` without
+    groups, NaN with groups, as are those of a finished ``group``), at most
+    :data:`envelope.config.ROOT_MAX_STEPS` times."""
     root = np.array(start, dtype=float)
     if not np.any(active):
         return root
-    last = np.zeros(root.size)
-    step = np.ones(root.size, dtype=bool)
+    # an inactive bracket stays at its start: the bracket [start, start] with values
+    # (1, -1) puts its regula falsi point there
+    lo = np.where(active, lo, root)
+    hi = np.where(active, hi, root)
+    f_lo = np.where(active, f_lo, 1.0)
+    f_hi = np.where(active, f_hi, -1.0)
+    stale = np.zeros(root.size, dtype=np.int8)  # +1: lo moved last, -1: hi moved last
+    step = np.array(active, dtype=bool)  # an inactive bracket never steps
     for _ in range(config.ROOT_MAX_STEPS):
-        denom = np.where(active, f_hi - f_lo, -1.0)
-        c = np.clip(np.where(active, (lo * f_hi - hi * f_lo) / denom, start), lo, hi)
+        c = np.minimum(np.maximum((lo * f_hi - hi * f_lo) / (f_hi - f_lo), lo), hi)
         f_c = f(c if group is None else np.where(step, c, np.nan))
         done = np.abs(c - root) <= xtol
-        root = np.where(step, np.where(active, c, start), root)
-        step = step & _running(done | ~active, group)
+        root = np.where(step, c, root)
+        step = step & _running(done, group)
         if not step.any():
             break
-        move_lo = f_c > 0.0
         # a finished group keeps its bracket: its root no longer moves
-        move_lo, move_hi = step & move_lo, step & ~move_lo
+        move_lo = step & (f_c > 0.0)
+        move_hi = step & ~move_lo
         lo, f_lo = np.where(move_lo, c, lo), np.where(move_lo, f_c, f_lo)
         hi, f_hi = np.where(move_hi, c, hi), np.where(move_hi, f_c, f_hi)
         # Illinois: halve the stale end's value when the same end moves twice
-        f_hi = np.where(move_lo & (last > 0), 0.5 * f_hi, f_hi)
-        f_lo = np.where(move_hi & (last < 0), 0.5 * f_lo, f_lo)
-        last = np.where(move_lo, 1.0, np.where(move_hi, -1.0, last))
+        f_hi = np.where(move_lo & (stale > 0), 0.5 * f_hi, f_hi)
+        f_lo = np.where(move_hi & (stale < 0), 0.5 * f_lo, f_lo)
+        stale = np.where(step, move_lo.view(np.int8) - move_hi.view(np.int8), stale)
     return root
