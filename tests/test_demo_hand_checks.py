@@ -16,13 +16,21 @@ forms, never from the engine's own code, so that a change that breaks one fails 
   with fyd = fyk / 1.15 (3.1.7(3), 6.1), minimum steel with bt the mean width of the
   tension zone (9.2.1.1(1)), VRd,c (6.2.2(1)) and the minimum links (9.2.2(5), (6)).
 - floor-beam-si.toml (AISC 360-22; AISC Design Guide 11): M at the support by the
-  three-moment equation, Cb and phi_b Mn of the hogging segments, DG11 walking.
+  three-moment equation, Cb and phi_b Mn of the hogging segments (F2-2 and F2-3), DG11
+  walking.
+- mezzanine-us.toml (AISC 360-22 J10.2, J10.3): web local yielding and crippling at an
+  end, over the interior support and under a joist seat.
+- school-2span-en.toml crack control (EN 1992-1-1 7.3.3, Table 7.3N): the steel stress of
+  the cracked section under the quasi-permanent face moment and the bar spacing limit.
+- What cannot be checked says so: EN concrete outside C12/15 to C50/60, and a steel
+  section given without the dimensions of its shape.
 """
 
 from __future__ import annotations
 
 import math
 import tomllib
+from collections.abc import Callable
 from pathlib import Path
 
 import numpy as np
@@ -32,7 +40,7 @@ from scipy.optimize import minimize_scalar
 from envelope.analysis import analyse
 from envelope.casefile import load_case, parse_case
 from envelope.sizing import size
-from tests.tolerances import SOLVE
+from tests.tolerances import SOLVE, STATION_PEAK
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
 
@@ -277,3 +285,131 @@ def test_steel_demo_without_the_shape_dimensions_says_what_it_did_not_check() ->
     for status in cols["status"]:
         assert status.startswith("not checked: lateral-torsional buckling (F2)")
         assert "web local yielding and crippling (J10.2, J10.3)" in status
+
+
+# ------------------------------------------------------ floor beam (AISC, SI; DG11)
+
+def test_demo_floor_beam_hogging_segments_and_walking_match_hand_check() -> None:
+    cols = _sized("floor-beam-si.toml")
+    l1, l2, p, a = 9.0, 7.2, 12.0, 3.0            # the post: SDL, 3.0 m into span 1
+    dead = 77.0 * 9000e-6 + 10.5 + 3.0            # self weight of A = 9000 mm^2, D, SDL
+    w, pu = 1.2 * dead + 1.6 * 9.0, 1.2 * p       # 1.2D + 1.6L, live on both spans
+    # three-moment equation: the point load's term uses its distance from the far end
+    b = l1 - a
+    mb = -(w * l1**3 / 4 + w * l2**3 / 4 + pu * a * b * (l1 + a) / l1) / (2 * (l1 + l2))
+    i = _row(cols, 1, "right")
+    assert cols["moment_design"][i] == pytest.approx(mb, rel=SOLVE)
+    ra = w * l1 / 2 + pu * b / l1 + mb / l1
+    vb = w * l2 / 2 - mb / l2
+
+    def m1(x: float) -> float:
+        return ra * x - w * x * x / 2 - pu * max(x - a, 0.0)
+
+    def m2(x: float) -> float:
+        return mb + vb * x - w * x * x / 2
+
+    def cb(m: Callable[[float], float], x0: float, x1: float) -> float:   # Eq. F1-1
+        q = [abs(m(x0 + f * (x1 - x0))) for f in (0.25, 0.5, 0.75)]
+        return 12.5 * abs(mb) / (2.5 * abs(mb) + 3 * q[0] + 4 * q[1] + 3 * q[2])
+
+    # WP-500x77 of sections-si.csv, Fy = 345 MPa, E = 200 000 MPa
+    d, tf, zx, sx, iy, ry, jt, cw = 500.0, 14.0, 1.862e6, 1.639e6, 1.87e7, 43.57, 4.84e5, \
+        1.104e12
+    es, fy = 200_000.0, 345.0
+    mp = fy * zx / 1e6
+    lp = 1.76 * ry * math.sqrt(es / fy)                                    # F2-5
+    rts = math.sqrt(math.sqrt(iy * cw) / sx)                               # F2-7
+    jc = jt / (sx * (d - tf))
+    lr = 1.95 * rts * es / (0.7 * fy) * math.sqrt(
+        jc + math.sqrt(jc**2 + 6.76 * (0.7 * fy / es) ** 2))              # F2-6
+    for row, c, lb in ((_row(cols, 1, "right"), cb(m1, 4.5, l1), 4500.0),
+                       (_row(cols, 2, "left"), cb(m2, 0.0, l2), 7200.0)):
+        if lb <= lr:                                                       # F2-2
+            mn = c * (mp - (mp - 0.7 * fy * sx / 1e6) * (lb - lp) / (lr - lp))
+        else:                                                              # F2-3, F2-4
+            mn = c * math.pi**2 * es / (lb / rts) ** 2 * math.sqrt(
+                1 + 0.078 * jc * (lb / rts) ** 2) * sx / 1e6
+        mn = min(mn, mp)
+        assert cols["cb"][row] == pytest.approx(c, rel=SOLVE)
+        assert cols["phi_mn"][row] == pytest.approx(0.9 * mn, rel=SOLVE)
+        assert cols["utilisation_moment"][row] == pytest.approx(abs(mb) / (0.9 * mn),
+                                                                rel=SOLVE)
+    assert lp < 4500.0 < lr < 7200.0   # one inelastic, one elastic segment
+    # DG11 walking on span 1: dead deflection of the continuous beam (all dead cases at
+    # 1.0, Ix of WP-500x77) by the handbook closed forms of a simple span with the end
+    # moment, fn = 0.18 sqrt(g / delta) (Eq. 3-3) with delta grown by (W + live)/W, ap/g =
+    # P0 exp(-0.35 fn) / (beta W) (Eq. 4-1), W over the effective width (from memory)
+    ei = es * 4.096e8 * 1e-9                       # kN*m^2
+    md = -(dead * l1**3 / 4 + dead * l2**3 / 4 + p * a * b * (l1 + a) / l1) / (2 * (l1 + l2))
+
+    def down(x: float) -> float:
+        u = dead * x * (l1**3 - 2 * l1 * x * x + x**3) / 24
+        pt = (p * b * x * (l1**2 - b**2 - x**2) / (6 * l1) if x <= a else
+              p * a * (l1 - x) * (l1**2 - a**2 - (l1 - x) ** 2) / (6 * l1))
+        end = -md * x * (l1 - x) * (l1 + x) / (6 * l1)
+        return (u + pt - end) / ei * 1000.0        # mm
+
+    delta = -float(minimize_scalar(lambda x: -down(x), bounds=(0.0, l1), method="bounded",
+                                   options={"xatol": 1e-10}).fun)
+    weight = dead * l1 + p
+    live = 0.5 * 3.0 * l1
+    fn = 0.18 * math.sqrt(9806.65 / (delta * (weight + live) / weight))
+    ap = 0.29 * math.exp(-0.35 * fn) / (0.03 * (weight + live) * 6.0 / 3.0)
+    k = _row(cols, 1, "span")
+    assert cols["frequency"][k] == pytest.approx(fn, rel=STATION_PEAK)
+    assert cols["acceleration"][k] == pytest.approx(ap, rel=STATION_PEAK)
+
+
+# ----------------------------------------------------- mezzanine (AISC J10, US units)
+
+def test_demo_mezzanine_web_yielding_and_crippling_match_hand_check() -> None:
+    cols = _sized("mezzanine-us.toml")
+    d, tf, tw, fy, e = 21.0, 0.61, 0.40, 50.0, 29000.0
+    k = tf                                         # no fillet: k = tf (docs)
+
+    def crippling(lb: float, coef: float) -> float:    # J10-4 / J10-5a, Qf = 1
+        return coef * tw**2 * (1 + 3 * (lb / d) * (tw / tf) ** 1.5) * math.sqrt(
+            e * fy * tf / tw)
+    # interior support 2: 10 in wide column cap, farther than d from the member end
+    i = _row(cols, 1, "right")
+    yielding = fy * tw * (5 * k + 10.0)                                   # J10-2
+    assert cols["phi_rn"][i] == pytest.approx(min(1.0 * yielding,
+                                                  0.75 * crippling(10.0, 0.80)), rel=SOLVE)
+    # end support 1, no width given: lb = 0 within d of the end
+    j = _row(cols, 1, "left")
+    yielding = fy * tw * (2.5 * k + 0.0)                                  # J10-3
+    assert cols["phi_rn"][j] == pytest.approx(min(1.0 * yielding,
+                                                  0.75 * crippling(0.0, 0.40)), rel=SOLVE)
+    assert "no support width given" in cols["note"][j]
+    # a joist seat on span 1 (4 in bearing): 1.2 * 4.2 + 1.6 * 9.0 kip
+    m = _row(cols, 1, "span")
+    assert cols["bearing_force"][m] == pytest.approx(1.2 * 4.2 + 1.6 * 9.0, rel=SOLVE)
+    assert cols["phi_rn"][m] == pytest.approx(fy * tw * (5 * k + 4.0), rel=SOLVE)
+
+
+# ------------------------------------------------- school crack control (EN 7.3.3)
+
+def test_demo_school_crack_control_spacing_matches_table_7_3n(
+        school: dict[str, np.ndarray]) -> None:
+    # quasi-permanent G + 0.6 Q on both spans (EN 1990 6.5.3, psi_2 = 0.6 for category
+    # C), elastic (service moments are not redistributed), at the column face by statics
+    g = 25.0 * 0.276 + 7.0
+    q = g + 0.6 * 10.5
+    l1, l2 = 6.6, 7.2
+    mb = -q * (l1**3 + l2**3) / (8 * (l1 + l2))
+    v = q * l1 / 2 - mb / l1
+    m_face = mb + v * 0.2 - q * 0.2**2 / 2
+    # cracked rectangle (web in compression), alpha_e = Es / Ecm (Table 3.1)
+    ecm = 22_000 * ((30 + 8) / 10) ** 0.3
+    n = 200_000 / ecm
+    b, d, As = 300.0, 545.0, 4 * math.pi * 16**2 / 4        # 4 H16
+    rn = As / (b * d) * n
+    kd = d * (math.sqrt(2 * rn + rn * rn) - rn)
+    sigma = abs(m_face) * 1e6 / (As * (d - kd / 3))
+    i = _row(school, 1, "right")
+    assert school["bars"][i] == "4 H16"
+    assert school["steel_stress"][i] == pytest.approx(sigma, rel=SOLVE)
+    # Table 7.3N, wk = 0.3 mm: 200 mm at 240 MPa, 150 mm at 280 MPa, linear between
+    assert 240 < sigma < 280
+    limit = 200 - (sigma - 240) / 40 * 50
+    assert school["bar_spacing_max"][i] == pytest.approx(limit, rel=SOLVE)
