@@ -35,12 +35,13 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from scipy.optimize import minimize_scalar
+from scipy.integrate import quad
+from scipy.optimize import brentq, minimize_scalar
 
 from envelope.analysis import analyse
 from envelope.casefile import load_case, parse_case
 from envelope.sizing import size
-from tests.tolerances import SOLVE, STATION_PEAK
+from tests.tolerances import CRACKED_GRID, SOLVE, STATION_PEAK
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
 
@@ -413,3 +414,79 @@ def test_demo_school_crack_control_spacing_matches_table_7_3n(
     assert 240 < sigma < 280
     limit = 200 - (sigma - 240) / 40 * 50
     assert school["bar_spacing_max"][i] == pytest.approx(limit, rel=SOLVE)
+
+
+# ------------------------------------------- school long-term deflection (EN 7.4.3)
+
+def test_demo_school_long_term_deflection_matches_quadrature_across_the_cracking_jump(
+        school: dict[str, np.ndarray]) -> None:
+    # Span 2 under the quasi-permanent load G + 0.6 Q on both spans (EN 1990 6.5.3,
+    # psi_2 = 0.6), elastic moments by statics.  Curvature of EN 1992-1-1:2004 7.4.3:
+    # eq. 7.18 with zeta of eq. 7.19 at beta = 0.5 (it jumps from 0 to 0.5 where |M|
+    # reaches Mcr), Ec,eff = Ecm / (1 + 2.5) (eq. 7.20), plus the shrinkage curvature
+    # eps_cs alpha_e S / I of eq. 7.21 (it changes sign with the region's steel where M
+    # does).  Deflection by the unit-load method with scipy's adaptive quad, every jump a
+    # breakpoint; the peak by a bounded search.
+    g = 25.0 * 0.276 + 7.0
+    q = g + 0.6 * 10.5
+    l1, l2 = 6.6, 7.2
+    mb = -q * (l1**3 + l2**3) / (8 * (l1 + l2))
+    vb = q * l2 / 2 - mb / l2
+
+    def moment(x: float) -> float:                 # kN*m, x in m from the column
+        return mb + vb * x - q * x * x / 2
+
+    fck, eps_cs = 30.0, 0.0004
+    e = 22_000 * ((fck + 8) / 10) ** 0.3 / (1 + 2.5)          # Table 3.1, eq. 7.20
+    n = 200_000 / e
+    fctm = 0.30 * fck ** (2 / 3)
+    bw, h, bf, hf, d = 300.0, 600.0, 1300.0, 120.0, 545.0
+    area = bw * h + (bf - bw) * hf
+    yc = (bw * h * h / 2 + (bf - bw) * hf * hf / 2) / area
+    ig = (bw * h**3 / 12 + bw * h * (h / 2 - yc) ** 2 + (bf - bw) * hf**3 / 12
+          + (bf - bw) * hf * (hf / 2 - yc) ** 2)
+    steel = 4 * math.pi * 16**2 / 4                           # 4 H16 top and bottom
+    assert school["bars"][_row(school, 2, "span")] == "4 H16"
+    assert school["bars"][_row(school, 2, "left")] == "4 H16"
+
+    def cracked_rect(width: float) -> tuple[float, float]:
+        rn = steel / (width * d) * n
+        c = d * (math.sqrt(2 * rn + rn * rn) - rn)
+        return c, width * c**3 / 3 + n * steel * (d - c) ** 2
+
+    c_sag, icr_sag = cracked_rect(bf)              # the axis stays in the flange
+    assert c_sag <= hf
+    c_hog, icr_hog = cracked_rect(bw)
+    mcr_sag, mcr_hog = fctm * ig / (h - yc) / 1e6, fctm * ig / yc / 1e6
+
+    def kappa(xmm: float) -> float:                # 1/mm
+        m = moment(xmm / 1000)
+        if m >= 0:
+            icr, mcr, s1, s2 = icr_sag, mcr_sag, steel * (d - yc), steel * (d - c_sag)
+        else:
+            icr, mcr = icr_hog, mcr_hog
+            s1, s2 = -steel * (d - (h - yc)), -steel * (d - c_hog)
+        z = 1 - 0.5 * (mcr / abs(m)) ** 2 if abs(m) > mcr else 0.0
+        return (m * 1e6 * (z / (e * icr) + (1 - z) / (e * ig))
+                + eps_cs * n * (z * s2 / icr + (1 - z) * s1 / ig))
+
+    span = l2 * 1000
+    jumps = []
+    for f in (lambda x: moment(x) - mcr_sag, lambda x: -moment(x) - mcr_hog, moment):
+        xs = np.linspace(0.0, l2, 721)
+        vals = np.array([f(x) for x in xs])
+        for k in np.flatnonzero(np.sign(vals[:-1]) * np.sign(vals[1:]) < 0):
+            jumps.append(1000 * brentq(f, xs[k], xs[k + 1], xtol=1e-13))
+    assert len(jumps) == 3   # cracking in sagging and hogging, and the contraflexure
+
+    def down(a: float) -> float:
+        left = quad(lambda s: kappa(s) * s * (span - a) / span, 0.0, a,
+                    points=[p for p in jumps if p < a] or None, limit=200)[0]
+        right = quad(lambda s: kappa(s) * a * (span - s) / span, a, span,
+                     points=[p for p in jumps if p > a] or None, limit=200)[0]
+        return left + right
+
+    peak = -float(minimize_scalar(lambda a: -down(a), bounds=(0.0, span), method="bounded",
+                                  options={"xatol": 1e-6}).fun)
+    i = _row(school, 2, "span")
+    assert school["deflection_long_term"][i] == pytest.approx(peak, rel=CRACKED_GRID)

@@ -162,6 +162,25 @@ def _diagrams(solved: Solved, span: int, x: np.ndarray, coef: np.ndarray
     return r["moment"][:n] @ coef, r["deflection"][n:] @ coef
 
 
+def _cracking_points(inputs: Inputs, j: int, x: np.ndarray, m: np.ndarray, fctm: float
+                     ) -> np.ndarray:
+    """Points (the units of ``x``) that cut each interval of the grid ``x`` in which |M|
+    of any diagram ``m`` (base units) crosses Mcr = fctm Ig / yt (EN 1992-1-1 7.4.3:
+    zeta, and with it the curvature, jumps there when beta < 1) or changes sign (the
+    shrinkage curvature of 7.4.3(6) jumps there) into :data:`config.CRACKING_SPLIT`
+    parts."""
+    g = cracked.gross(inputs.bw, _depth(inputs, j, x * inputs.to_base_length), inputs.bf,
+                      inputs.hf)
+    mcr = np.where(m >= 0.0, (fctm * g["ig"] / g["yt"])[:, None],
+                   (fctm * g["ig"] / g["y_comp"])[:, None])
+    above = np.abs(m) > mcr
+    sags = m >= 0.0   # the shrinkage curvature changes sign with the region's steel
+    idx = np.flatnonzero(np.any((above[:-1] != above[1:]) | (sags[:-1] != sags[1:]),
+                                axis=1))
+    t = np.linspace(0.0, 1.0, config.CRACKING_SPLIT + 1)[1:-1]
+    return (x[idx, None] + (x[idx + 1] - x[idx])[:, None] * t[None, :]).ravel()
+
+
 def _depth(inputs: Inputs, j: int, x: np.ndarray) -> np.ndarray:
     """The depth h at the points ``x`` (base length) of span ``j``: the stretch's, the
     shallower one at the common end of two stretches."""
@@ -354,6 +373,25 @@ class _Spans:
                     float(cracked.e_eff_en(self.ecm, phi)), beta, self.fctm, root)
         return out
 
+    def _moments(self, j: int, cols: list[int]
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """The grid of span ``j`` (consistent units), the moments of the diagrams
+        ``cols`` on it (base units) and their end deflections (consistent); for EN
+        1992-1-1 the grid is cut finer where |M| crosses Mcr (:func:`_cracking_points`)."""
+        solved, inputs = self.solved, self.inputs
+        x_c = _grid(solved, j)
+        m_c, w_ends = _diagrams(solved, j, x_c, self.coef[:, cols])
+        m = m_c * inputs.to_base_moment
+        if inputs.code != "aci318-19":
+            for _ in range(config.CRACKING_PASSES):
+                extra = _cracking_points(inputs, j, x_c, m, self.fctm)
+                if extra.size == 0:
+                    break
+                x_c = np.unique(np.r_[x_c, extra])
+                m_c, w_ends = _diagrams(solved, j, x_c, self.coef[:, cols])
+                m = m_c * inputs.to_base_moment
+        return x_c, m, w_ends
+
     def deflect(self, j: int, stages: list[tuple[int, float, float]],
                 slope_end: str | None = None
                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
@@ -362,12 +400,9 @@ class _Spans:
         slopes (2, n_stages) and a mask of stages that could not be computed."""
         solved, inputs = self.solved, self.inputs
         length_c = solved.beam.spans[j].length
-        x_c = _grid(solved, j)
-        cols = [s[0] for s in stages]
-        m_c, w_ends = _diagrams(solved, j, x_c, self.coef[:, cols])
+        x_c, m, w_ends = self._moments(j, [s[0] for s in stages])
         x = x_c * inputs.to_base_length
         length = length_c * inputs.to_base_length
-        m = m_c * inputs.to_base_moment
         if inputs.code == "aci318-19":
             flex, missing = _flex_aci(inputs, j, x, length, m, self.ec, self.fr)
         else:
@@ -388,12 +423,9 @@ class _Spans:
         """Cantilever ``j`` with its root at the left (``root_left``) or right end."""
         solved, inputs = self.solved, self.inputs
         beam = solved.beam
-        x_c = _grid(solved, j)
-        cols = [s[0] for s in stages]
-        m_c, w_ends = _diagrams(solved, j, x_c, self.coef[:, cols])
+        x_c, m, w_ends = self._moments(j, [s[0] for s in stages])
         x = x_c * inputs.to_base_length
         length = beam.spans[j].length * inputs.to_base_length
-        m = m_c * inputs.to_base_moment
         root_end = "left" if root_left else "right"
         if inputs.code == "aci318-19":
             flex, missing = _flex_aci(inputs, j, x, length, m, self.ec, self.fr, root_end)
