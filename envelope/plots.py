@@ -244,9 +244,14 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
         # where the label goes
         offset = ((best.x0 - ax_x - size.x0) / px_per_pt,
                   (best.y0 - ax_y - size.y0) / px_per_pt)
-        far = min(abs(best.y0 - ax_y), abs(best.y1 - ax_y)) > 6 * px_per_pt
+        # a label more than 6 points from its value, up or sideways, draws a leader to
+        # it (from the nearest side), so that it never reads as a neighbouring peak's
+        dx = max(best.x0 - ax_x, ax_x - best.x1, 0.0)
+        dy = max(best.y0 - ax_y, ax_y - best.y1, 0.0)
+        far = max(dx, dy) > 6 * px_per_pt
+        side = 0.5 if dx <= 6 * px_per_pt else (0.0 if ax_x < best.x0 else 1.0)
         arrow = {"arrowstyle": "-", "color": SOFT, "lw": 0.5, "shrinkA": 0, "shrinkB": 0,
-                 "relpos": (0.5, 0.0 if best.y0 > ax_y else 1.0)} if far else None
+                 "relpos": (side, 0.0 if best.y0 > ax_y else 1.0)} if far else None
         ax.annotate(lab.text, (lab.x, lab.y), xytext=offset, textcoords="offset points",
                     fontsize=7, color=lab.colour, ha="left", va="bottom", linespacing=1.05,
                     parse_math=False, zorder=8, gid="value-label", annotation_clip=False,

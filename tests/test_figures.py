@@ -101,9 +101,84 @@ def test_every_demo_figure_renders_with_labels_clear_of_each_other_and_the_axes(
     assert assert_labels_clear(fig) >= 4
 
 
+def _as_written(cols: dict) -> Figure:
+    """The figure exactly as ``envelope run`` and batches write it: a kept figure at the
+    file's resolution (text measured by the cached-glyph canvas)."""
+    import matplotlib as mpl
+
+    with mpl.rc_context(plots.STYLE):
+        return plots._build(cols, None, reuse=True)
+
+
+@pytest.mark.parametrize("case", _figure_cases(), ids=[c.stem for c in _figure_cases()])
+def test_every_demo_figure_as_written_to_its_file_has_labels_clear(case: Path) -> None:
+    fig = _as_written(_columns(_analysis(case)))
+    assert fig.dpi == plots.DPI
+    assert assert_labels_clear(fig) >= 4
+
+
+def test_the_overlap_check_fails_on_labels_laid_over_one_another() -> None:
+    """The check measures the drawn extents: a demo figure passes, and fails once one
+    value label is moved onto another, or out of its panel."""
+    fig = envelope.plot(_analysis(CASES[0]))
+    assert_labels_clear(fig)
+    first, second = [t for t in fig.axes[1].texts if t.get_gid() == "value-label"][:2]
+    second.xy = first.xy
+    second.xyann = first.xyann
+    with pytest.raises(AssertionError, match="overlaps"):
+        assert_labels_clear(fig)
+    fig = envelope.plot(_analysis(CASES[0]))
+    label = next(t for t in fig.axes[1].texts if t.get_gid() == "value-label")
+    label.xyann = (label.xyann[0], label.xyann[1] + 2000.0)  # points: far above the panel
+    with pytest.raises(AssertionError):
+        assert_labels_clear(fig)
+
+
+def test_the_overlap_check_fails_on_two_plain_texts_that_touch() -> None:
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    fig = Figure(figsize=(4, 3))
+    FigureCanvasAgg(fig)
+    ax = fig.add_axes((0.1, 0.1, 0.8, 0.8))
+    ax.text(0.5, 0.5, "first label", gid="value-label")
+    ax.text(0.52, 0.51, "second label", gid="value-label")
+    with pytest.raises(AssertionError, match="overlaps"):
+        assert_labels_clear(fig)
+
+
 def test_ten_span_figure_labels_are_clear(ten_spans: Path) -> None:
     fig = envelope.plot(_analysis(ten_spans))
     assert assert_labels_clear(fig) >= 20
+
+
+def assert_labels_point_at_their_values(fig: Figure) -> None:
+    """Every value label either lies beside its point (within 6 points of its drawn
+    extent) or draws a leader line to it, so no label reads as another peak's."""
+    fig.canvas.draw()
+    renderer = fig.canvas.get_renderer()
+    near = 6 * fig.dpi / 72
+    for ax in fig.axes:
+        for t in ax.texts:
+            if t.get_gid() != "value-label" or not t.get_text().strip():
+                continue
+            box = Text.get_window_extent(t, renderer)
+            px, py = ax.transData.transform(t.xy)
+            dx = max(box.x0 - px, px - box.x1, 0.0)
+            dy = max(box.y0 - py, py - box.y1, 0.0)
+            assert (dx <= near and dy <= near) or t.arrow_patch is not None, \
+                (t.get_text(), dx, dy)
+
+
+def test_a_label_away_from_its_point_draws_a_leader_to_it(ten_spans: Path) -> None:
+    """Ten crowded spans push labels sideways: each still points at its own value."""
+    for fig in (envelope.plot(_analysis(ten_spans)), _as_written(_columns(_analysis(
+            ten_spans)))):
+        assert_labels_point_at_their_values(fig)
+
+
+@pytest.mark.parametrize("case", _figure_cases(), ids=[c.stem for c in _figure_cases()])
+def test_every_demo_figure_label_points_at_its_value(case: Path) -> None:
+    assert_labels_point_at_their_values(envelope.plot(_analysis(case)))
 
 
 def test_tension_side_moments_keep_the_labels_clear() -> None:
