@@ -556,7 +556,7 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
         if other:
             scale.append(f"+{other} other")
         if cases.index(c) < n_lanes:
-            label = f"{name} {literal(kinds.get(c, ''), 9)}".strip()
+            label = f"{name} {literal(kinds.get(c, ''), 10)}".strip()
             if scale:
                 label += "\n" + "\n".join(scale[:2])
             ax.text(-0.012, (base + 0.35 - ax.get_ylim()[0]) /

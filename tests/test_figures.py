@@ -479,3 +479,35 @@ def test_moving_loads_are_drawn_over_their_spans_with_their_axles() -> None:
     key = [t.get_text() for t in fig.legends[0].get_texts()]
     assert "moving load" in key
     assert not any("other" in t.get_text() for t in strip.texts)
+
+
+SPRINGS = beam_text(
+    [6.0, 6.0, 4.5],
+    [{"type": "pinned", "width": 0.4}, {"type": "spring", "k_vertical": 4.0e4, "width": 0.4},
+     {"type": "spring", "k_vertical": 9.0e4, "width": 0.4}, {"type": "pinned", "width": 0.4}],
+    [{"case": "D", "type": "uniform", "spans": "all", "w": 22.0},
+     {"case": "L", "type": "uniform", "spans": "all", "w": 14.0},
+     {"case": "D", "type": "moment", "spans": 2, "M": -60.0, "at": 2.0},
+     {"case": "T", "type": "settlement", "support": 3, "delta": 0.006}],
+    section={"E": 30000, "I": 9.0e9},
+    cases={"D": "dead", "L": "live", "T": "settlement"},
+    combinations={"strength": "en1990-6.10", "service": "characteristic"},
+    patterning={"method": "exhaustive"}, output={"moment_plot": "tension-side"},
+    top={"title": "Two springs, one settling 6 mm, a point moment, tension side"})
+
+
+def test_springs_with_a_settlement_case_and_a_point_moment_on_the_tension_side() -> None:
+    """Both springs drawn where they settle, the settlement case's lane named in full,
+    the point moment drawn and keyed, every label clear and pointing at its value."""
+    fig = envelope.plot(envelope.analyse(parse_text(SPRINGS)))
+    strip = fig.axes[0]
+    lanes = [t.get_text() for t in strip.texts]
+    assert any(t.startswith("T settlement") for t in lanes), lanes
+    key = [t.get_text() for t in fig.legends[0].get_texts()]
+    for name in ("vertical spring", "applied moment", "settlement", "spring settlement"):
+        assert name in key
+    assert sum(t.startswith("spring settles") for t in _label_texts(fig)) == 2
+    assert fig.axes[1].yaxis_inverted()
+    assert assert_labels_clear(fig) >= 10
+    assert_labels_point_at_their_values(fig)
+
