@@ -511,3 +511,18 @@ def test_springs_with_a_settlement_case_and_a_point_moment_on_the_tension_side()
     assert assert_labels_clear(fig) >= 10
     assert_labels_point_at_their_values(fig)
 
+
+def test_the_readme_figure_is_the_bundled_demo_as_drawn_now(tmp_path: Path) -> None:
+    """README shows docs/demo-envelope.png: it must be the figure `envelope run` draws
+    for the bundled demo with this code, pixel for pixel."""
+    import matplotlib.image as mpimg
+
+    folder = envelope.write(envelope.analyse(envelope.load_case(str(DEMO))), tmp_path,
+                            plots=True)
+    drawn = mpimg.imread(folder / "envelope.png")
+    shown = mpimg.imread(ROOT / "docs" / "demo-envelope.png")
+    assert "docs/demo-envelope.png" in (ROOT / "README.md").read_text(encoding="utf-8")
+    assert drawn.shape == shown.shape and np.array_equal(drawn, shown), (
+        "docs/demo-envelope.png is out of date: python -m envelope run -o OUT -q, then copy "
+        "OUT/demo-office-4span/envelope.png to docs/demo-envelope.png")
+
