@@ -32,10 +32,24 @@ if TYPE_CHECKING:
 __all__ = ["Analysis", "analyse", "load_case", "plot", "redraw", "summary_text", "tables",
            "write"]
 
-#: Result files a run writes into OUT/<id>/; any of them an earlier run left and this
-#: one did not write is removed, so a folder never mixes two runs.
+#: Result files a run writes into OUT/<id>/, and files made from them (the report, the
+#: exports, influence lines); any of them an earlier run or command left and this run
+#: did not write is removed, so a folder never mixes two runs.
 _RESULT_SUFFIXES = (".parquet",)
 _FIGURE = "envelope.png"
+_DERIVED = (_FIGURE, "report.html", "report.pdf", "results.xlsx")
+#: The folder ``envelope export --format csv`` writes by default, and what it holds.
+_CSV_FOLDER = "csv"
+_CSV_FILES = (".csv", "CAUTION.txt")
+
+
+def is_result_file(name: str) -> bool:
+    """Whether a file named ``name`` in OUT/<id>/ is a result of a run or made from one
+    (so that a new run replaces it): tables, figures, the report, a workbook export."""
+    if name.startswith("."):
+        return False
+    return (name.endswith(_RESULT_SUFFIXES) or name in _DERIVED
+            or (name.startswith("influence-") and name.endswith(".png")))
 
 
 def analyse(beam: Beam, limits: WorkLimits | None = None) -> Analysis:
@@ -153,8 +167,9 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
 
     All tables are built and checked before the first file is written, so a failure in
     the analysis or the tables writes nothing.  Result files an earlier run left in the
-    folder and this one did not write (``stations.parquet``, ``envelope.png``...) are
-    removed afterwards.
+    folder and this one did not write (``stations.parquet``, ``envelope.png``...), and
+    files made from the earlier results (``report.html``, ``report.pdf``, exports,
+    influence lines), are removed afterwards.
 
     Parameters
     ----------
@@ -232,15 +247,30 @@ def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.Path
 
 
 def _remove_stale(folder: Path, written: set[str]) -> None:
-    """Remove result files of an earlier run that this run did not write."""
+    """Remove result files of an earlier run that this run did not write, and what was
+    made from them (the report, exports, influence lines); never through a link."""
     with os.scandir(folder) as entries:
         for entry in entries:
             name = entry.name
-            if name in written or name.startswith(".") or not entry.is_file(
-                    follow_symlinks=False):
+            if name == _CSV_FOLDER and entry.is_dir(follow_symlinks=False):
+                _remove_csv_export(Path(entry.path))
+            if name in written or not entry.is_file(follow_symlinks=False):
                 continue
-            if name.endswith(_RESULT_SUFFIXES) or name == _FIGURE:
+            if is_result_file(name):
                 Path(entry.path).unlink(missing_ok=True)
+
+
+def _remove_csv_export(folder: Path) -> None:
+    """Remove OUT/<id>/csv when it holds only what ``envelope export`` writes there."""
+    with os.scandir(folder) as entries:
+        items = list(entries)
+    if not all(e.is_file(follow_symlinks=False) and e.name.endswith(_CSV_FILES)
+               for e in items):
+        return  # something of the user's: left alone
+    for e in items:
+        Path(e.path).unlink(missing_ok=True)
+    with contextlib.suppress(OSError):
+        folder.rmdir()
 
 
 def redraw(folder: str | os.PathLike[str], output: str | os.PathLike[str] | None = None) -> Path:

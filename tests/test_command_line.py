@@ -144,6 +144,40 @@ def test_a_rerun_removes_result_files_it_no_longer_writes(tmp_path: Path) -> Non
     assert (folder / "notes.txt").read_text() == "mine"  # not a result file: kept
 
 
+def test_a_rerun_removes_the_report_exports_and_influence_lines_of_earlier_results(
+        tmp_path: Path) -> None:
+    """Files made from earlier results (the report, a workbook or CSV export, influence
+    lines, table and figure alike) must not stand beside new ones; a folder of the
+    user's inside OUT/<id> is left alone."""
+    from envelope import api
+
+    runner = CliRunner()
+    assert runner.invoke(main, ["run", str(CASES[0]), "-o", str(tmp_path), "-q"]).exit_code == 0
+    (folder,) = tmp_path.iterdir()
+    assert runner.invoke(main, ["influence", str(CASES[0]), "--at", "1.0", "-o",
+                                str(tmp_path), "-q"]).exit_code == 0
+    assert runner.invoke(main, ["export", str(folder), "--format", "csv"]).exit_code == 0
+    assert runner.invoke(main, ["export", str(folder)]).exit_code == 0
+    made = {p.name for p in folder.iterdir()}
+    assert {"csv", "results.xlsx"} <= made
+    assert any(n.startswith("influence-") and n.endswith(".png") for n in made)
+    for name in ("report.html", "report.pdf"):  # as `envelope report` leaves them
+        (folder / name).write_text("earlier")
+    (folder / "mine").mkdir()
+    (folder / "mine" / "notes.csv").write_text("kept")
+    api.write(envelope_analysis(CASES[0]), tmp_path)
+    left = {p.name for p in folder.iterdir()}
+    assert not any(n.startswith("influence-") for n in left), left
+    assert not {"csv", "results.xlsx", "report.html", "report.pdf", "envelope.png"} & left
+    assert (folder / "mine" / "notes.csv").read_text() == "kept"
+
+
+def envelope_analysis(case: Path):  # type: ignore[no-untyped-def]
+    import envelope
+
+    return envelope.analyse(envelope.load_case(str(case)))
+
+
 def test_output_into_a_closed_pipe_exits_without_a_traceback(tmp_path: Path) -> None:
     proc = subprocess.Popen([sys.executable, "-m", "envelope", "run", str(CASES[0]),
                              "-o", str(tmp_path), "--no-plots"], stdout=subprocess.PIPE,

@@ -20,9 +20,11 @@ from envelope.files import is_link, real_folder, sync_file, write_atomic
 
 
 def _is_result(name: str) -> bool:
-    """A file name that a beam run writes (removed when a rerun no longer writes it)."""
-    return not name.startswith(".") and (name.endswith(".parquet") or name in
-                                         ("envelope.png", "report.html", "report.pdf"))
+    """A file name that a beam run writes or makes from its results (removed when a
+    rerun no longer writes it): :func:`envelope.api.is_result_file`."""
+    from envelope.api import is_result_file
+
+    return is_result_file(name)
 
 
 def _snapshot(folder: Path) -> dict[str, tuple[int, int, int]]:

@@ -67,12 +67,9 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
     files = sorted(p.name for p in Path(folder).iterdir() if not p.name.startswith("."))
     say(f"{beam.id}: {beam.n_spans} spans, {result.stations.n} stations, "
         f"{len(beam.loads)} load items; files: {', '.join(files)}", at=1)
-    if report:
+    if report:  # (a report of earlier results was removed by the write)
         from envelope.report.build import write_report
 
         for written in write_report(folder):
             click.echo(f"wrote {written}")
-    else:  # a report of earlier results must not stand beside these
-        for name in ("report.html", "report.pdf"):
-            (Path(folder) / name).unlink(missing_ok=True)
     say(api.summary_text(result))  # each summary ends with its caution line
