@@ -76,6 +76,27 @@ def test_quiet_run_prints_only_the_folder_and_verbose_check_counts(tmp_path: Pat
     assert result.exit_code == 0 and result.stdout == ""
 
 
+def test_quiet_prints_only_what_each_command_made(tmp_path: Path) -> None:
+    """With -q every command prints the files it wrote and nothing else (the report's
+    caution is in the report itself)."""
+    runner = CliRunner()
+    out = tmp_path / "out"
+    case = str(CASES[0])
+    result = runner.invoke(main, ["run", case, "-o", str(out), "--no-plots", "-q"])
+    (folder,) = out.iterdir()
+    commands = [["plot", str(folder), "-q"], ["report", str(folder), "--no-pdf", "-q"],
+                ["export", str(folder), "-q"], ["new", str(tmp_path / "n.toml"), "-q"],
+                ["influence", case, "--at", "1.0", "-o", str(out), "--no-plots", "-q"],
+                ["schema", "-o", str(tmp_path / "s.json"), "-q"]]
+    for args in commands:
+        result = runner.invoke(main, args)
+        assert result.exit_code == 0, (args, result.output)
+        lines = result.stdout.strip().splitlines()
+        assert lines and all(line.startswith("wrote ") for line in lines), (args, lines)
+    result = runner.invoke(main, ["report", str(folder), "--no-pdf"])
+    assert "licensed engineer" in result.stdout  # without -q the caution is printed
+
+
 def test_check_takes_folders_and_skips_a_toml_file_that_is_not_a_case(tmp_path: Path) -> None:
     folder = tmp_path / "cases"
     folder.mkdir()

@@ -40,7 +40,9 @@ def report(folders: tuple[str, ...], pdf: bool) -> None:
                 click.echo(f"wrote {p}")
     except EnvelopeError as exc:
         _fail(exc)
-    click.echo("Results are for checking by a licensed engineer and defer to local codes.")
+    from envelope.commands.common import say
+
+    say("Results are for checking by a licensed engineer and defer to local codes.")
 
 
 @click.command("export")
