@@ -78,7 +78,14 @@ def test_completion_finds_the_public_names() -> None:
 
 
 def test_public_functions_have_numpydoc_sections() -> None:
-    for name in ("analyse", "tables", "summary_text", "plot", "write", "redraw"):
+    """Every public name of the package and of envelope.api, one docstring style."""
+    names = sorted({*(n for n in envelope.__all__ if n != "__version__"), *api.__all__}
+                   - {"Analysis"})
+    for name in names:
+        obj = getattr(envelope, name, None) or getattr(api, name)
+        doc = inspect.getdoc(obj) or ""
+        assert "Returns\n-------" in doc, name
+    for name in ("analyse", "tables", "summary_text", "plot", "write", "redraw", "load_case"):
         doc = inspect.getdoc(getattr(api, name)) or ""
         assert "Parameters\n----------" in doc, name
         assert "Returns\n-------" in doc, name
@@ -91,6 +98,27 @@ def test_the_package_ships_py_typed() -> None:
     assert (Path(envelope.__file__).parent / "py.typed").is_file()
     text = (ROOT / "pyproject.toml").read_text(encoding="utf-8")
     assert '"py.typed"' in text
+
+
+def test_the_built_wheel_ships_py_typed_and_the_package_data(tmp_path: Path) -> None:
+    """What a user installs: the wheel pip builds from a copy of the source tree."""
+    import shutil
+    import subprocess
+    import sys
+    import zipfile
+
+    source = tmp_path / "src"
+    skip = shutil.ignore_patterns(".*", "__pycache__", "build", "*.egg-info", "results")
+    shutil.copytree(ROOT, source, ignore=skip)
+    proc = subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "-q", str(source),
+                           "-w", str(tmp_path / "dist")], capture_output=True, text=True,
+                          check=False)
+    assert proc.returncode == 0, proc.stderr
+    (wheel,) = (tmp_path / "dist").glob("envelope-*.whl")
+    names = set(zipfile.ZipFile(wheel).namelist())
+    assert "envelope/py.typed" in names
+    assert "envelope/data/demo.toml" in names and "envelope/__main__.py" in names
+    assert any(n.startswith("envelope/report/templates/") for n in names)
 
 
 def test_the_summary_text_is_a_function_even_after_the_summary_module_loads(

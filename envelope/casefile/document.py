@@ -37,6 +37,21 @@ def load_case(path: str | os.PathLike[str]) -> Beam:
     ``config.CASE_FILE_MAX_BYTES`` is read (a FIFO or a device is refused without
     waiting on it), and values nested more than ``config.CASE_NESTING_MAX`` deep are
     refused.
+
+    Parameters
+    ----------
+    path : str or path-like
+        A TOML case file (docs/case-format.md).
+
+    Returns
+    -------
+    Beam
+        The checked beam, frozen, in the consistent units of its system.
+
+    Raises
+    ------
+    envelope.errors.CaseError
+        For any bad input, naming the file, the key path and the problem.
     """
     source = os.fspath(path)
     try:
