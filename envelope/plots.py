@@ -680,7 +680,8 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False) 
         _limits(d_ax, [dmax, dmin], flip=True)
         used += springs
     if s_ax is not None:
-        _sizing_panel(s_ax, labels, sizing, size_panel, units)  # type: ignore[arg-type]
+        _sizing_panel(s_ax, labels, sizing, size_panel, units,  # type: ignore[arg-type]
+                      results.get("bars"))
         used.append("sized")
     for a in axes[1:]:
         _support_lines(a, joint_x)
@@ -862,8 +863,50 @@ def _sizing_kind(sizing: Columns | None) -> str:
     return ""
 
 
+def bar_area(text: object, metric: bool) -> float:
+    """The area of a bar mark's ``bars`` text, ``"3 #8"`` (ASTM A615 areas) or
+    ``"2 H16"`` (pi d^2 / 4, d in mm), in mm2 when ``metric`` else in2; NaN for any
+    other text."""
+    from envelope.sizing.bars import IN_MM, US_BARS
+
+    parts = str(text).split()
+    if len(parts) != 2 or not parts[0].isdigit():
+        return float("nan")
+    count, size = int(parts[0]), parts[1]
+    if size in US_BARS:
+        one = US_BARS[size][1] * (IN_MM * IN_MM if metric else 1.0)
+    else:
+        try:
+            d = float(size.lstrip("HhTt"))
+        except ValueError:
+            return float("nan")
+        one = np.pi * d * d / 4.0 / (1.0 if metric else IN_MM * IN_MM)
+    return count * one
+
+
+def provided_along(bars: Columns, position: str, metric: bool
+                   ) -> tuple[np.ndarray, np.ndarray] | None:
+    """Steel area provided along the beam by the bar marks at ``position`` (``"top"``
+    or ``"bottom"``): (edges, values) of a step line, each step between two bar ends,
+    so every cut-off shows as a step.  None when no mark is there."""
+    pos = np.asarray(bars.get("position", []), dtype=object)
+    rows = np.flatnonzero(pos == position)
+    if not rows.size:
+        return None
+    start, end = _finite(bars["start"])[rows], _finite(bars["end"])[rows]
+    area = np.array([bar_area(bars["bars"][i], metric) for i in rows])
+    ok = np.isfinite(start) & np.isfinite(end) & np.isfinite(area) & (end > start)
+    if not np.any(ok):
+        return None
+    start, end, area = start[ok], end[ok], area[ok]
+    edges = np.unique(np.r_[start, end])
+    mid = 0.5 * (edges[:-1] + edges[1:])
+    covered = (start[None, :] <= mid[:, None]) & (mid[:, None] < end[None, :])
+    return edges, covered.astype(float) @ area
+
+
 def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
-                  units: Mapping[str, str]) -> None:
+                  units: Mapping[str, str], bars: Columns | None = None) -> None:
     x = _finite(sizing["x"])
     section = np.asarray(sizing.get("section", np.array([""] * x.size)), dtype=object)
     order = np.argsort(x, kind="stable")
@@ -872,13 +915,25 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
         provided_col = "as_provided" if "as_provided" in sizing else "as_design"
         prov = _finite(sizing.get(provided_col, req))
         top = section != "span"
-        for mask, name, colour in ((top, "top (hogging)", MIN_COLOUR),
-                                   (~top, "bottom (sagging)", MAX_COLOUR)):
+        metric = units.get("length") == "m"
+        peaks: list[float] = []
+        for mask, name, colour, position in (
+                (top, "top (hogging)", MIN_COLOUR, "top"),
+                (~top, "bottom (sagging)", MAX_COLOUR, "bottom")):
             idx = order[mask[order]]
+            # with the bars drawn along the beam, the required steel is shown where it
+            # is known, at the design sections (a line between them would read as a
+            # requirement where the bars stop)
             ax.plot(x[idx], req[idx], marker="o", mfc="white", color=colour, lw=0.9,
-                    markersize=4, ls="-", zorder=4, label=f"required, {name}")
+                    markersize=4, ls="none" if bars else "-", zorder=4,
+                    label=f"required, {name}")
             ax.plot(x[idx], prov[idx], marker="s", color=colour, lw=0, markersize=4,
                     zorder=5, label=f"provided, {name}")
+            steps = provided_along(bars, position, metric) if bars else None
+            if steps is not None:  # every bar mark as cut off, along the beam
+                ax.stairs(steps[1], steps[0], color=colour, lw=0.9, alpha=0.6, zorder=3,
+                          baseline=None, label=f"{position} bars as cut off")
+                peaks.append(float(steps[1].max()))
         if "bars" in sizing:
             bars = sizing["bars"]
             for i in order:
@@ -886,9 +941,10 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
                     labels.append(Label(ax, x[i], prov[i], literal(bars[i], 14), True, 4))
         area = "mm2" if units.get("length") == "m" else "in2"
         _style_panel(ax, f"Steel area\n[{area}]")
-        top_value = float(np.nanmax(np.r_[req, prov, 0.0]))
+        top_value = float(np.nanmax(np.r_[req, prov, peaks, 0.0]))
         ax.set_ylim(0.0, 1.45 * top_value if top_value > 0 else 1.0)
-        ax.legend(fontsize=6, frameon=False, loc="upper right", ncol=4)
+        ax.legend(fontsize=6, frameon=False, loc="upper right", ncol=6 if peaks else 4,
+                  columnspacing=1.0, handlelength=1.6)
     else:
         names = [k for k in sizing if str(k).startswith("utilisation_")]
         colours = (MAX_COLOUR, MIN_COLOUR, SIZED_COLOUR, FACE_COLOUR, SOFT)

@@ -464,12 +464,12 @@ def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
 
 
 def result_columns(result_tables: Mapping[str, pa.Table]) -> dict[str, dict[str, object]]:
-    """The envelope, design and reactions tables (and sizing, where present) as plain
-    columns (numpy arrays; strings as object arrays) plus the metadata of all of them
-    under ``"meta"`` (``units`` decoded)."""
+    """The envelope, design and reactions tables (and sizing and bars, where present)
+    as plain columns (numpy arrays; strings as object arrays) plus the metadata of all
+    of them under ``"meta"`` (``units`` decoded)."""
     out: dict[str, dict[str, object]] = {}
     meta: dict[str, object] = {}
-    for stem in ("envelope", "design", "reactions", "sizing"):
+    for stem in ("envelope", "design", "reactions", "sizing", "bars"):
         table = result_tables.get(stem)
         if table is None:
             continue
@@ -508,9 +508,8 @@ def dictionary_values(column: pa.ChunkedArray | pa.Array) -> np.ndarray:
 
 def read_results(folder: str | os.PathLike) -> dict[str, dict[str, object]]:
     """:func:`result_columns` of the Parquet files in one beam's result folder
-    (sizing.parquet where the folder has one)."""
+    (sizing.parquet and bars.parquet where the folder has them)."""
     folder = Path(folder)
     stems = ["envelope", "design", "reactions"]
-    if (folder / "sizing.parquet").is_file():
-        stems.append("sizing")
+    stems += [s for s in ("sizing", "bars") if (folder / f"{s}.parquet").is_file()]
     return result_columns({stem: pq.read_table(folder / f"{stem}.parquet") for stem in stems})

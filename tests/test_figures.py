@@ -323,6 +323,48 @@ def test_concrete_sizing_draws_required_and_provided_steel() -> None:
     assert any(n.startswith("provided") for n in names)
 
 
+@pytest.mark.parametrize("stem", ["office", "school"])
+def test_concrete_sizing_draws_the_bars_as_cut_off_covering_the_required_steel(
+        stem: str, tmp_path: Path) -> None:
+    """Item by item from bars.parquet: the provided steel steps at every bar's end
+    (each cut-off is an edge of the step line), and at every design section it covers
+    the steel the section requires (ACI 318-19 9.7.3 / EN 1992-1-1 9.2.1.3: the bars
+    as cut off still carry the section's tension).  The figure redrawn from the files
+    draws the same."""
+    from matplotlib.patches import StepPatch
+
+    case = next(c for c in CASES if c.stem.startswith(stem))
+    result = _analysis(case)
+    built = envelope.tables(result)
+    bars, sizing = built["bars"].to_pydict(), built["sizing"].to_pydict()
+    folder = envelope.write(result, tmp_path)
+    for fig in (envelope.plot(result), plots.figure(store.read_results(folder))):
+        steps = {p.get_label(): p for p in fig.axes[-1].patches if isinstance(p, StepPatch)}
+        assert set(steps) == {"top bars as cut off", "bottom bars as cut off"}
+        for position in ("top", "bottom"):
+            values, edges = steps[f"{position} bars as cut off"].get_data()[:2]
+            ends = [v for p, a, b in zip(bars["position"], bars["start"], bars["end"],
+                                         strict=True) if p == position for v in (a, b)]
+            assert np.allclose(np.unique(ends), edges, rtol=0, atol=1e-12)
+            for sec, x, need in zip(sizing["section"], sizing["x"], sizing["as_required"],
+                                    strict=True):
+                if x is None or (sec == "span") != (position == "bottom"):
+                    continue
+                k = min(np.searchsorted(edges, x, side="right") - 1, values.size - 1)
+                assert values[k] >= need * (1 - 1e-9), (position, sec, x, values[k], need)
+
+
+def test_bar_areas_of_the_two_bar_families() -> None:
+    """ASTM A615/A615M Table 1 nominal areas (#8: 0.79 in2) and pi d^2 / 4 for a
+    metric diameter (16 mm: 201.06 mm2), in either system's panel unit."""
+    assert plots.bar_area("3 #8", metric=False) == pytest.approx(3 * 0.79, rel=1e-12)
+    assert plots.bar_area("3 #8", metric=True) == pytest.approx(3 * 0.79 * 645.16, rel=1e-12)
+    assert plots.bar_area("2 H16", metric=True) == pytest.approx(2 * np.pi * 64.0, rel=1e-12)
+    assert plots.bar_area("2 H16", metric=False) == pytest.approx(
+        2 * np.pi * 64.0 / 645.16, rel=1e-12)
+    assert np.isnan(plots.bar_area("two bars", metric=True))
+
+
 def test_steel_sizing_draws_utilisation_along_the_beam() -> None:
     mezz = next(c for c in CASES if c.stem.startswith("mezz"))
     fig = envelope.plot(_analysis(mezz))
