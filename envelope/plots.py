@@ -12,7 +12,8 @@ API on the Agg canvas: no pyplot, no window, no layout engine (fixed margins).
   a support width) and at the centreline otherwise, each saying which;
 * shear: the envelope, both end shears of every span;
 * deflection: the service envelope, the largest of each span, springs drawn where they
-  settle; the deflection of the section sizing chose where sizing reports one;
+  settle; the deflection of the member sizing chose where sizing reports one (concrete:
+  cracked, with the chosen bars), labelled;
 * sizing, where sizing.parquet exists: steel area required and provided along the
   beam (concrete) or utilisation along the beam (steel), read generically from the
   columns there are;
@@ -677,7 +678,7 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False) 
         _envelope(d_ax, x, dmax, dmin, pixels)
         _style_panel(d_ax, f"Deflection [{units.get('deflection', '')}]\ndown, service")
         springs = _deflection_labels(d_ax, labels, env, design, sizing, sk, joint_x, n_spans)
-        _limits(d_ax, [dmax, dmin], flip=True)
+        _limits(d_ax, [dmax, dmin, sized_deflection(sizing)[1]], flip=True)
         used += springs
     if s_ax is not None:
         _sizing_panel(s_ax, labels, sizing, size_panel, units,  # type: ignore[arg-type]
@@ -838,15 +839,33 @@ def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Colum
         labels.append(Label(ax, joint_x[j], d, f"{what} {_num(d, 2)}", False, rank=3))
         if "spring settlement" not in used and spring:
             used.append("spring settlement")
-    # the deflection of the section sizing chose, where it reports one
-    if sizing is not None and "deflection_total" in sizing and "x" in sizing:
-        sx, sd = _finite(sizing["x"]), _finite(sizing["deflection_total"])
-        ok = np.isfinite(sx) & np.isfinite(sd)
-        if np.any(ok):
-            ax.plot(sx[ok], sd[ok], marker="D", markersize=4, color=SIZED_COLOUR, ls="none",
-                    zorder=6)
-            used.append("deflection, sized section")
+    # the deflection of the member sizing chose, where it reports one, labelled
+    sx, sd, what = sized_deflection(sizing)
+    if sx.size:
+        ax.plot(sx, sd, marker="D", markersize=4, color=SIZED_COLOUR, ls="none", zorder=6)
+        for xs, ds in zip(sx, sd, strict=True):
+            labels.append(Label(ax, float(xs), float(ds), f"{_num(ds, 2)} {what}", False,
+                                rank=3, colour=SIZED_COLOUR))
+        used.append("deflection, sized section")
     return used
+
+
+def sized_deflection(sizing: Columns | None) -> tuple[np.ndarray, np.ndarray, str]:
+    """(x, deflection, what) of the member sizing chose, at its span sections: for
+    concrete the cracked immediate deflection with the chosen bars
+    (``deflection_immediate``, under the arrangement of the span's largest analysed
+    deflection: comparable with the curve's peak), for steel the chosen section's
+    (``deflection_total``); empty where sizing reports neither."""
+    empty = np.zeros(0)
+    if not sizing or "x" not in sizing:
+        return empty, empty, ""
+    column, what = (("deflection_immediate", "cracked") if "deflection_immediate" in sizing
+                    else ("deflection_total", "sized"))
+    if column not in sizing:
+        return empty, empty, ""
+    sx, sd = _finite(sizing["x"]), _finite(sizing[column])
+    ok = np.isfinite(sx) & np.isfinite(sd)
+    return sx[ok], sd[ok], what
 
 
 # --------------------------------------------------------------------------- sizing

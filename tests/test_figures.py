@@ -354,6 +354,28 @@ def test_concrete_sizing_draws_the_bars_as_cut_off_covering_the_required_steel(
                 assert values[k] >= need * (1 - 1e-9), (position, sec, x, values[k], need)
 
 
+@pytest.mark.parametrize(("stem", "column", "word"), [
+    ("office", "deflection_immediate", "cracked"), ("mezz", "deflection_total", "sized")])
+def test_the_deflection_of_the_sized_member_is_drawn_labelled_and_inside_the_panel(
+        stem: str, column: str, word: str) -> None:
+    """Concrete: the cracked deflection with the chosen bars (several times the gross
+    curve of the analysis); steel: the chosen section's.  Each span's value is marked,
+    labelled and within the panel's limits."""
+    case = next(c for c in CASES if c.stem.startswith(stem))
+    result = _analysis(case)
+    sizing = envelope.tables(result)["sizing"].to_pydict()
+    want = sorted(round(v, 9) for v in sizing[column] if v is not None)
+    fig = envelope.plot(result)
+    d_ax = next(a for a in fig.axes if a.get_ylabel().startswith("Deflection"))
+    (marks,) = [ln for ln in d_ax.lines if ln.get_marker() == "D"]
+    assert sorted(round(float(v), 9) for v in marks.get_ydata()) == want
+    lo, hi = sorted(d_ax.get_ylim())
+    assert all(lo < v < hi for v in want)
+    texts = [t.get_text() for t in d_ax.texts if t.get_gid() == "value-label"]
+    assert sum(t.endswith(f" {word}") for t in texts) == len(want)
+    assert_labels_clear(fig)
+
+
 def test_bar_areas_of_the_two_bar_families() -> None:
     """ASTM A615/A615M Table 1 nominal areas (#8: 0.79 in2) and pi d^2 / 4 for a
     metric diameter (16 mm: 201.06 mm2), in either system's panel unit."""
