@@ -149,7 +149,10 @@ def plot(result: Analysis, ax: Axes | None = None) -> Figure:
         From :func:`analyse`.
     ax : matplotlib.axes.Axes, optional
         Draw into the space this Axes takes in its figure (it is replaced by the
-        figure's panels); by default a new figure.
+        figure's panels); by default a new figure, whose ``savefig`` keeps the text
+        editable (TrueType in PDF, text in SVG).  A figure of your own saves with your
+        rc settings: save it within ``matplotlib.rc_context(envelope.plots.STYLE)``
+        for the same.
 
     Returns
     -------

@@ -354,6 +354,17 @@ _KEPT: dict[tuple[float, ...], tuple[Figure, list[Any]]] = {}
 _KEEP_AT_MOST = 4
 
 
+class StyledCanvas(CachedTextCanvas):
+    """The figure's canvas: it saves with the figure's style whatever the rc settings
+    are when ``savefig`` is called (a notebook's ``fig.savefig("f.pdf")`` keeps the
+    text editable: TrueType in PDF, text in SVG)."""
+
+    def print_figure(self, *args: Any, **kwargs: Any) -> Any:
+        """:meth:`FigureCanvasBase.print_figure` within the figure's style."""
+        with mpl.rc_context(STYLE):
+            return super().print_figure(*args, **kwargs)
+
+
 def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
                    reuse: bool) -> tuple[Figure, list[Any]]:
     """A figure with its panel axes: a kept one emptied of the last beam's artists when
@@ -376,7 +387,7 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
     # text extents measured for placing the labels) serve every beam's file
     fig = Figure(figsize=(WIDTH, sum(heights) + top + bottom + 0.12 * len(heights)),
                  facecolor="white", dpi=DPI if reuse else None)
-    CachedTextCanvas(fig)
+    StyledCanvas(fig)
     axes = _panel_axes(fig, heights, top, bottom)
     if reuse:
         if len(_KEPT) >= _KEEP_AT_MOST:

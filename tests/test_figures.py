@@ -423,6 +423,23 @@ def test_text_is_literal_and_editable_in_svg_and_pdf(tmp_path: Path) -> None:
     assert b"/FontFile2" in pdf and b"/Type3" not in pdf
 
 
+def test_a_figure_saved_from_a_notebook_keeps_its_text_editable(tmp_path: Path) -> None:
+    """``envelope.plot(result).savefig(...)`` outside any style context (as in a
+    notebook, default rc settings): TrueType in PDF, text in SVG, never Type 3."""
+    import matplotlib as mpl
+
+    storage = next(c for c in CASES if c.stem.startswith("storage"))  # a mathtext key
+    fig = envelope.plot(_analysis(storage))
+    with mpl.rc_context({"pdf.fonttype": 3, "svg.fonttype": "path"}):
+        fig.savefig(tmp_path / "f.pdf")
+        fig.savefig(tmp_path / "f.svg")
+        assert mpl.rcParams["pdf.fonttype"] == 3  # the user's settings are left as they were
+    pdf = (tmp_path / "f.pdf").read_bytes()
+    assert b"/FontFile2" in pdf and b"/Type3" not in pdf
+    svg = (tmp_path / "f.svg").read_text(encoding="utf-8")
+    assert "<text" in svg and "checking by a licensed engineer" in svg
+
+
 def test_a_huge_title_is_cut_and_costs_little_memory() -> None:
     cols = _columns(_analysis(CASES[0]))
     cols["meta"]["envelope:title"] = "T" * 10_000_000
