@@ -66,5 +66,10 @@ def __getattr__(name: str) -> Any:
 
 
 def __dir__() -> list[str]:
-    # the public names load on first use; completion in a notebook still finds them
-    return sorted({*globals(), *__all__})
+    # the public names load on first use; completion in a notebook finds them, and
+    # the submodules loaded so far, not the names this file uses itself
+    import types
+
+    modules = {name for name, value in globals().items()
+               if isinstance(value, types.ModuleType)}
+    return sorted({*__all__, *modules})

@@ -314,6 +314,14 @@ class Beam:
     def __post_init__(self) -> None:
         object.__setattr__(self, "geometry", geometry_of(self.spans, self.supports))
 
+    def __repr__(self) -> str:
+        # one line a notebook can show (the fields' own repr runs to thousands of
+        # characters); every value is still an attribute
+        title = self.title if len(self.title) <= 40 else self.title[:39] + "…"
+        return (f"<Beam {self.id!r}{f' {title!r}' if title else ''}: {self.n_spans} spans, "
+                f"{len(self.loads)} load items, {len(self.cases)} cases, "
+                f"{self.units.name}{', sized' if self.design else ''}>")
+
     @property
     def n_spans(self) -> int:
         """Number of spans."""

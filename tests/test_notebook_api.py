@@ -75,6 +75,14 @@ def test_completion_finds_the_public_names() -> None:
     for name in ("analyse", "load_case", "plot", "summary_text", "tables", "write",
                  "engine_version"):
         assert name in names
+    assert not {"Any", "TYPE_CHECKING", "annotations"} & set(names)  # not our names
+
+
+def test_a_beam_has_a_short_repr() -> None:
+    beam = envelope.load_case(str(next(c for c in CASES if c.stem.startswith("office"))))
+    text = repr(beam)
+    assert len(text) < 200 and "\n" not in text
+    assert text.startswith(f"<Beam {beam.id!r}") and f"{beam.n_spans} spans" in text
 
 
 def test_public_functions_have_numpydoc_sections() -> None:
