@@ -41,6 +41,7 @@ from scipy.optimize import brentq, minimize_scalar
 from envelope.analysis import analyse
 from envelope.casefile import load_case, parse_case
 from envelope.sizing import size
+from envelope.store import live_reduction_by_span
 from tests.tolerances import CRACKED_GRID, SOLVE, STATION_PEAK
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
@@ -490,3 +491,29 @@ def test_demo_school_long_term_deflection_matches_quadrature_across_the_cracking
                                   options={"xatol": 1e-6}).fun)
     i = _row(school, 2, "span")
     assert school["deflection_long_term"][i] == pytest.approx(peak, rel=CRACKED_GRID)
+
+
+# ------------------------------------------- live load reduction (ASCE 7-22 4.7.3)
+
+def test_demo_office_with_live_load_reduction_matches_eq_4_7_1() -> None:
+    # The office demo with its live case reduced (tributary width 6.0 m, KLL = 2, Table
+    # 4.7-1 interior beams): per span L/Lo = 0.25 + 4.57 / sqrt(KLL AT), AT = span x
+    # width in m^2, not below 0.50 (one floor), none where KLL AT < 37.16 m^2 (400 ft^2)
+    text = (CASES / "office-4span-si.toml").read_text().replace(
+        'L = { kind = "live" }',
+        'L = { kind = "live", reduction = { tributary_width = 6.0, kll = 2 } }')
+    a = analyse(parse_case(tomllib.loads(text), str(CASES / "office-4span-si.toml")))
+    factors = []
+    for length in (7.2, 8.4, 8.4, 7.2):
+        kll_at = 2 * length * 6.0
+        factors.append(max(0.25 + 4.57 / math.sqrt(kll_at), 0.5) if kll_at >= 37.16
+                       else 1.0)
+    assert np.allclose(live_reduction_by_span(a.beam), factors, rtol=SOLVE, atol=0.0)
+    d = a.design_actions
+    # the face of support 2 by statics from span 1's centreline values, the live load
+    # of span 1 reduced by its own factor (spans 1, 2 and 4 loaded govern)
+    q = 1.2 * (24.5 * 0.28 + 29.4 + 7.2) + 1.6 * 24.0 * factors[0]
+    m_face = d["moment_neg_right"][0] + d["shear_right"][0] * 0.225 - q * 0.225**2 / 2
+    cols = size(a)
+    assert cols["moment_design"][_row(cols, 1, "right")] == pytest.approx(m_face, rel=SOLVE)
+    assert m_face == pytest.approx(-482.0139, rel=1e-6)   # independent stiffness solve
