@@ -358,6 +358,10 @@ def test_demo_floor_beam_hogging_segments_and_walking_match_hand_check() -> None
     fn = 0.18 * math.sqrt(9806.65 / (delta * (weight + live) / weight))
     ap = 0.29 * math.exp(-0.35 * fn) / (0.03 * (weight + live) * 6.0 / 3.0)
     k = _row(cols, 1, "span")
+    # the analysis took the self weight of [section] A = 9000 mm^2; the chosen section's
+    # plates have 2 * 200 * 14 + (500 - 2 * 14) * 9 = 9848 mm^2: the note says so
+    assert ("self weight analysed with A = 9000 mm2, the chosen section's plates have "
+            "9848 mm2 (9.4 % more)") in cols["note"][k]
     assert cols["frequency"][k] == pytest.approx(fn, rel=STATION_PEAK)
     assert cols["acceleration"][k] == pytest.approx(ap, rel=STATION_PEAK)
 

@@ -127,6 +127,35 @@ def model_inertia(analysis: Analysis) -> np.ndarray:
                     ) / to_section
 
 
+def _self_weight_notes(analysis: Analysis, rows: Rows, shapes: Shapes, k: int,
+                       notes: list[list[str]], su: dict[str, str]) -> None:
+    """On the span rows of every span whose self weight was analysed with a smaller area
+    than the chosen shape's plates (2 bf tf + (d - 2 tf) tw, no fillets): the analysis
+    is not repeated with the chosen section, so its dead load is that much low."""
+    if not shapes.full:
+        return
+    beam = analysis.beam
+    plates = float(2 * shapes.bf[k] * shapes.tf[k]
+                   + (shapes.d[k] - 2 * shapes.tf[k]) * shapes.tw[k])
+    to_section = 1.0 / beam.units.to_consistent("area")
+    for j, sp in enumerate(beam.spans):
+        if not any(ld.type == "self_weight" and ld.span == j for ld in beam.loads):
+            continue
+        areas = [st.section.A for st in sp.stretches
+                 if st.section.A is not None and st.section.unit_weight]
+        if not areas:
+            continue
+        analysed = min(areas) * to_section
+        if plates > analysed * (1.0 + 1e-3):
+            for i in np.flatnonzero((rows.span == j) & rows.is_span).tolist():
+                notes[i].append(
+                    f"self weight analysed with A = {_g(analysed)} {su['area']}, the "
+                    f"chosen section's plates have {_g(plates)} {su['area']} "
+                    f"({100 * (plates / analysed - 1):.1f} % more): the analysed self "
+                    f"weight is that much low; give [section] A = {_g(plates)} "
+                    f"{su['area']} and run again")
+
+
 def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     """Columns, units, notes and failures of every design row of a steel beam.
 
@@ -175,6 +204,7 @@ def size_steel(analysis: Analysis, defl: dict[str, np.ndarray]) -> Sized:
     name = shapes.name[k]
     _row_messages(rows, shapes, checks, inp, k, notes, failures, source,
                   bool(compact_web[k]), u, su)
+    _self_weight_notes(analysis, rows, shapes, k, notes, su)
     Zx, Aw, Ix = float(shapes.Zx[k]), float(shapes.Aw[k]), float(shapes.Ix[k])
     u_d = np.where(mid, checks.deflection[:, k], np.nan)
     u_live = np.repeat(defl["utilisation_live"], 3) * np.repeat(i_model, 3) / Ix
