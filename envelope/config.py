@@ -64,6 +64,10 @@ STATIONS_ROW_GROUP = 1_000_000
 #: Zero crossings of the envelope (detailing extents) are found to this fraction of the
 #: span length.
 DESIGN_XTOL = 1e-10
+#: The detailing extents bracket those crossings on a grid of this many equal steps per
+#: span (plus the stations): fine enough that no region narrower than a step is missed
+#: on a floor span.
+EXTENT_SAMPLES = 200
 
 #: Golden-section search on the envelope brackets each design maximum to this fraction
 #: of the span; the root of the governing case's slope then fixes it to round-off.

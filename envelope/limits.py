@@ -10,7 +10,13 @@ grows with two counts that the file fixes before anything is solved:
   at every point load, support and load edge.
 
 The responses at the stations are S x U numbers per quantity, handled in blocks, with
-several temporaries each; the unit-case solution is (elements x U).  The constants below
+several temporaries each; the unit-case solution is (elements x U).  Moment
+redistribution keeps a second, strength solution of every unit case beside it.  A
+moving load (concentrated, train) is placed by influence lines: a solve with 4 x
+(elements + rows) unit loads for a block of rows (at most
+``config.MOVING_CHUNK_ROWS`` stations, or the 2 x spans rows beside the supports for
+the reactions), whose solution and responses are held together, and that solve is
+large enough to load numba's kernels.  The constants below
 were fitted to peak memory and CPU time measured on beams of 2 to 400 spans, up to 50
 segments and 200 000 stations (an x86-64 machine; they overestimate, which is the safe
 side).  A beam whose estimate exceeds the limits is refused with exit status 2, naming
@@ -25,6 +31,7 @@ import os
 from dataclasses import dataclass
 
 from envelope import config
+from envelope.design import ConcreteDesign
 from envelope.errors import CaseError
 from envelope.model import Beam
 
@@ -38,6 +45,14 @@ BASE_BYTES = 160e6
 #: kernels run on large beams (:data:`envelope.config.KERNEL_MIN_UNITS`, or stations
 #: enveloped in more than one block of :data:`envelope.config.ENVELOPE_CHUNK_VALUES`).
 KERNEL_BYTES = 140e6
+#: Bytes per (element x unit case) of the strength solution that moment redistribution
+#: keeps beside the elastic one: new element start moments and shears and their changes.
+BYTES_PER_REDISTRIBUTED = 32.0
+#: Bytes per (influence unit load x (elements + rows + joints)) of one influence-line
+#: solve of a moving load: its solution, the responses of the rows and their cubics.
+BYTES_PER_INFLUENCE_VALUE = 24.0
+#: CPU seconds per (influence unit load x (elements + rows + joints)) and solve.
+SECONDS_PER_INFLUENCE_VALUE = 4.0e-6
 #: CPU seconds per (station x unit case) and per station, and a fixed start.
 SECONDS_PER_CELL = 1.0e-6
 SECONDS_PER_STATION = 1.0e-4
@@ -86,6 +101,7 @@ class Estimate:
     load_items: int
     memory: float
     seconds: float
+    influence_loads: int = 0  # unit loads of one influence-line solve (moving loads)
 
 
 def estimate(beam: Beam) -> Estimate:
@@ -102,10 +118,29 @@ def estimate(beam: Beam) -> Estimate:
     kernels = (units >= config.KERNEL_MIN_UNITS
                or stations * units > config.ENVELOPE_CHUNK_VALUES)
     memory = (BASE_BYTES + BYTES_PER_CELL * stations * units
-              + BYTES_PER_ELEMENT_UNIT * elements * units + KERNEL_BYTES * kernels)
+              + BYTES_PER_ELEMENT_UNIT * elements * units)
     seconds = BASE_SECONDS + SECONDS_PER_CELL * stations * units \
         + SECONDS_PER_STATION * stations
-    return Estimate(n, parts, stations, units, elements, items, memory, seconds)
+    if beam.design is not None:
+        # member sizing envelopes each span on the extents' grid (sizing.extents) in
+        # blocks of envelope.solved.chunk_rows: more than one block loads the kernels
+        grid = n * (config.EXTENT_SAMPLES + 1 + beam.output.stations_per_span)
+        block = max(1, min(config.STATION_CHUNK_ROWS,
+                           config.ENVELOPE_CHUNK_VALUES // units))
+        kernels = kernels or grid > block
+    if isinstance(beam.design, ConcreteDesign) and beam.design.redistribution is not None:
+        memory += BYTES_PER_REDISTRIBUTED * elements * units
+    influence = 0
+    if any(load.is_moving for load in beam.loads):
+        rows = max(min(stations, config.MOVING_CHUNK_ROWS), 2 * n)
+        influence = 4 * (elements + rows)
+        values = influence * (elements + rows + n + 1)
+        memory += BYTES_PER_INFLUENCE_VALUE * values
+        kernels = kernels or influence >= config.KERNEL_MIN_UNITS
+        solves = 1 + math.ceil(stations / config.MOVING_CHUNK_ROWS)
+        seconds += SECONDS_PER_INFLUENCE_VALUE * values * solves
+    memory += KERNEL_BYTES * kernels
+    return Estimate(n, parts, stations, units, elements, items, memory, seconds, influence)
 
 
 def _driver(beam: Beam, est: Estimate) -> str:

@@ -40,6 +40,8 @@ SLOW_TESTS: dict[str, frozenset[str]] = {
     "test_determinism.py": frozenset({
         "test_a_fresh_process_with_another_hash_seed_in_another_folder_writes_the_same_bytes"}),
     "test_notebook_api.py": frozenset({"test_the_built_wheel_ships_py_typed_and_the_package_data"}),
+    "test_work_limits.py": frozenset({
+        "test_the_memory_estimate_bounds_redistribution_and_moving_loads"}),
     "test_cli.py": frozenset({
         "test_run_without_arguments_writes_the_bundled_demo",
         "test_plot_redraws_from_the_parquet_files_in_each_format"}),

@@ -40,7 +40,7 @@ def _envelope(analysis: Analysis, span: np.ndarray, x: np.ndarray,
     return ext.max, ext.min
 
 
-def extents(analysis: Analysis, samples: int = 200) -> dict[str, np.ndarray]:
+def extents(analysis: Analysis, samples: int = config.EXTENT_SAMPLES) -> dict[str, np.ndarray]:
     """Hogging and sagging extents per span (see the module docstring); consistent
     length units; all NaN where there is no strength set."""
     beam = analysis.beam
