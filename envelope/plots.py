@@ -173,6 +173,9 @@ class Label:
     above: bool
     rank: int = 0      # lower is placed first
     colour: str = INK
+    #: > 0: not a label but a marker drawn at the anchor, this many points each way,
+    #: that the labels keep clear of (the text is not drawn)
+    clear: float = 0.0
 
 
 #: Where a label may go, nearest first: rises (points) above or below its anchor, the
@@ -215,7 +218,7 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
     px_per_pt = fig.dpi / 72.0
     placed: list[tuple[float, float, float, float]] = []
     frames: dict[Any, Bbox] = {}
-    dropped = 0
+    dropped = markers = 0
     # one text, never drawn, measures every label: its extent at the anchor is the
     # label's (left and bottom aligned, so the anchor is the extent's corner)
     probe = Text(0.0, 0.0, "", fontsize=7, ha="left", va="bottom", linespacing=1.05,
@@ -228,6 +231,12 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
             frames[ax] = Bbox.from_extents(b.x0 + 3, b.y0 + 3, b.x1 - 3, b.y1 - 3)
         frame = frames[ax]
         ax_x, ax_y = ax.transData.transform((lab.x, lab.y))
+        if lab.clear > 0.0:  # a marker: kept clear, never drawn here
+            markers += 1
+            if np.isfinite(ax_x) and np.isfinite(ax_y):
+                r = lab.clear * px_per_pt
+                placed.append((ax_x - r, ax_y - r, ax_x + r, ax_y + r))
+            continue
         if not (np.isfinite(ax_x) and np.isfinite(ax_y)):
             dropped += 1
             continue
@@ -258,7 +267,7 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
                     parse_math=False, zorder=8, gid="value-label", annotation_clip=False,
                     arrowprops=arrow, bbox={"boxstyle": "square,pad=0.08", "fc": PAPER,
                                             "ec": "none", "alpha": 0.8})
-    return len(labels) - dropped, dropped
+    return len(labels) - markers - dropped, dropped
 
 
 # --------------------------------------------------------------------------- helpers
@@ -847,6 +856,8 @@ def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Colum
         ax.plot([joint_x[j]], [d], marker=symbol, markersize=18 if spring else 12, color=INK,
                 mew=1.0, mfc="white", ls="none", zorder=6)
         what = "spring settles" if spring else "support settles"
+        labels.append(Label(ax, joint_x[j], d, "", False, rank=-1, clear=6.0 if spring
+                            else 4.0))
         labels.append(Label(ax, joint_x[j], d, f"{what} {_num(d, 2)}", False, rank=3))
         if "spring settlement" not in used and spring:
             used.append("spring settlement")
@@ -855,6 +866,7 @@ def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Colum
     if sx.size:
         ax.plot(sx, sd, marker="D", markersize=4, color=SIZED_COLOUR, ls="none", zorder=6)
         for xs, ds in zip(sx, sd, strict=True):
+            labels.append(Label(ax, float(xs), float(ds), "", False, rank=-1, clear=3.0))
             labels.append(Label(ax, float(xs), float(ds), f"{_num(ds, 2)} {what}", False,
                                 rank=3, colour=SIZED_COLOUR))
         used.append("deflection, sized section")

@@ -379,6 +379,26 @@ def test_the_deflection_of_the_sized_member_is_drawn_labelled_and_inside_the_pan
     assert_labels_clear(fig)
 
 
+@pytest.mark.parametrize("case", _figure_cases(), ids=[c.stem for c in _figure_cases()])
+def test_labels_keep_clear_of_the_marked_deflections_and_springs(case: Path) -> None:
+    """No value label covers a sized member's deflection mark or a settled spring (the
+    platform's 0.95 in mark sat under its span's peak label)."""
+    fig = envelope.plot(_analysis(case))
+    fig.canvas.draw()
+    renderer = fig.canvas.get_renderer()
+    for ax in fig.axes:
+        points = [ax.transData.transform(xy) for line in ax.lines
+                  if line.get_marker() == "D" or line.get_marker() is plots.SPRING
+                  for xy in line.get_xydata()]
+        for t in ax.texts:
+            if t.get_gid() != "value-label":
+                continue
+            box = Text.get_window_extent(t, renderer)
+            for px, py in points:
+                assert not (box.x0 < px < box.x1 and box.y0 < py < box.y1), \
+                    (t.get_text(), px, py)
+
+
 def test_bar_areas_of_the_two_bar_families() -> None:
     """ASTM A615/A615M Table 1 nominal areas (#8: 0.79 in2) and pi d^2 / 4 for a
     metric diameter (16 mm: 201.06 mm2), in either system's panel unit."""
