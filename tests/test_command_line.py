@@ -212,9 +212,10 @@ def test_output_into_a_closed_pipe_exits_without_a_traceback(tmp_path: Path) -> 
     assert "internal error" not in err
 
 
-@pytest.mark.parametrize("case", CASES, ids=[c.stem for c in CASES])
-def test_no_negative_zero_in_the_console_tables(case: Path, tmp_path: Path) -> None:
-    result = CliRunner().invoke(main, ["run", str(case), "-o", str(tmp_path), "--no-plots"])
+@pytest.mark.parametrize("case", [*CASES, None], ids=[*(c.stem for c in CASES), "demo"])
+def test_no_negative_zero_in_the_console_tables(case: Path | None, tmp_path: Path) -> None:
+    given = [str(case)] if case else []  # None: the bundled demo
+    result = CliRunner().invoke(main, ["run", *given, "-o", str(tmp_path), "--no-plots"])
     assert result.exit_code == 0
     assert all(word not in ("-0", "-0.0", "-0.00", "-0.000") for word in result.stdout.split())
 
