@@ -70,7 +70,8 @@ def write_atomic(path: Path, write: Callable[[BinaryIO], object],
     The rename alone makes the file safe against the process being killed; the fsync
     also makes it safe against the machine losing power.  ``durable=False`` skips the
     fsync where something else verifies the files later (the batch runner's manifest)."""
-    path.parent.mkdir(parents=True, exist_ok=True)
+    if not os.path.isdir(path.parent):  # a stat: most writes go to a folder that exists
+        path.parent.mkdir(parents=True, exist_ok=True)
     fd, tmp = temporary_file(path.parent, f".{path.name}.", ".tmp")
     try:
         os.fchmod(fd, _MODE)

@@ -9,11 +9,12 @@ crash never leaves a half-written file under a final name.
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import itertools
 import json
 import os
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from pathlib import Path
 
 import numpy as np
@@ -64,12 +65,29 @@ def string_column(values: np.ndarray | list[str], null: np.ndarray | None = None
     codes = np.fromiter((index.setdefault(v, len(index)) for v in map(str, values)),
                         dtype=np.int64, count=len(values))
     encoded = [v.encode() for v in index]
+    # every row distinct: the codes are 0, 1, 2... and the rows' bytes one join
+    return _coded_strings(encoded, codes, null, codes.size == len(encoded))
+
+
+def coded_string_column(texts: Sequence[str], codes: np.ndarray,
+                        null: np.ndarray | None = None) -> pa.Array:
+    """The string column of ``texts[codes]`` (a combination's name per row, "left" or
+    "right"...): each text encoded once, no Python step per row; the same column as
+    :func:`string_column` of those strings."""
+    return _coded_strings([t.encode() for t in texts], np.asarray(codes, dtype=np.int64),
+                          null, False)
+
+
+def _coded_strings(encoded: list[bytes], codes: np.ndarray, null: np.ndarray | None,
+                   in_order: bool) -> pa.Array:
+    """The string column whose row i holds ``encoded[codes[i]]`` (``in_order``: the
+    codes are 0, 1, 2...)."""
     lengths = np.fromiter(map(len, encoded), dtype=np.int64, count=len(encoded))
     offsets = np.zeros(codes.size + 1, dtype=np.int64)
     np.cumsum(lengths[codes], out=offsets[1:])
     total = int(offsets[-1])
     # the rows' bytes: one join of references to the distinct encodings
-    data = b"".join(encoded) if codes.size == len(encoded) else b"".join(
+    data = b"".join(encoded) if in_order else b"".join(
         [encoded[c] for c in codes.tolist()])
     bufs = [None, pa.py_buffer(offsets.astype(np.int32) if total < 2**31 else offsets),
             pa.py_buffer(data)]
@@ -106,7 +124,7 @@ def dictionary_column(values: np.ndarray | list[str],
 
 def repeated_string(value: str, n: int) -> pa.Array:
     """A string column holding one value n times (the beam id)."""
-    return string_column([value] * n)
+    return coded_string_column((value,), np.zeros(n, dtype=np.int64))
 
 
 def make_table(cols: Mapping[str, pa.Array]) -> pa.Table:
@@ -141,22 +159,22 @@ def _extreme_columns(prefix: str, ext: Extremes | None, cs: CaseSet, n: int,
         return {f"{prefix}_max": null_f, f"{prefix}_min": null_f,
                 f"{prefix}_max_combo": null_s, f"{prefix}_max_loaded": null_d,
                 f"{prefix}_min_combo": null_s, f"{prefix}_min_loaded": null_d}
-    names = np.array([c.name for c in cs.combinations], dtype=object)
+    names = [c.name for c in cs.combinations]
     valid = None if mask is None else ~np.asarray(mask, dtype=bool)[rows]
 
     def f(v: np.ndarray) -> pa.Array:
         return float_column(v[rows] * scale, valid)
 
     def s(v: np.ndarray) -> pa.Array:
-        return string_column(list(v[rows]), valid)
+        return coded_string_column(names, v[rows], valid)
 
     def d(v: np.ndarray) -> pa.Array:
         return dictionary_column(list(v[rows]), valid)
 
     return {f"{prefix}_max": f(ext.max), f"{prefix}_min": f(ext.min),
-            f"{prefix}_max_combo": s(names[ext.max_combo]),
+            f"{prefix}_max_combo": s(ext.max_combo),
             f"{prefix}_max_loaded": d(ext.max_loaded),
-            f"{prefix}_min_combo": s(names[ext.min_combo]),
+            f"{prefix}_min_combo": s(ext.min_combo),
             f"{prefix}_min_loaded": d(ext.min_loaded)}
 
 
@@ -188,7 +206,7 @@ def envelope_table(analysis: Analysis) -> pa.Table:
             "span": int_column(pts.span + 1),
             "x": float_column(pts.x),
             "x_span": float_column(pts.x_span),
-            "side": string_column(np.where(pts.right, "right", "left")),
+            "side": coded_string_column(("left", "right"), pts.right),
         }
         for q, scale in _ENVELOPE_QUANTITIES:
             cs = solved.strength if q != "deflection" else solved.service
@@ -390,30 +408,58 @@ def numeric_values(column: pa.ChunkedArray | pa.Array) -> np.ndarray:
     return np.where(valid, values, np.nan)
 
 
+def _all_finite(column: pa.ChunkedArray) -> bool:
+    """Whether every entry of a float64 column, nulls' slots included, is finite: read
+    from the buffers, one numpy test per chunk (the quick answer for nearly every
+    table; a column that fails is looked at again with its nulls left out)."""
+    for a in column.chunks:
+        n = len(a)
+        if n and not np.isfinite(np.frombuffer(a.buffers()[1], dtype=np.float64)[
+                a.offset:a.offset + n]).all():
+            return False
+    return True
+
+
 def check_finite(table: pa.Table, name: str) -> None:
     """Refuse NaN or infinity in any float column (nulls are allowed: they mean "none")."""
-    for field in table.schema:
+    for i, field in enumerate(table.schema):
         if pa.types.is_floating(field.type):
-            values, valid = _values_and_validity(table.column(field.name))
+            if pa.types.is_float64(field.type) and _all_finite(table.column(i)):
+                continue
+            values, valid = _values_and_validity(table.column(i))
             values = values[valid]
             if not np.all(np.isfinite(values)):
                 raise StaticsError(f"{name}: column {field.name} holds a non-finite value; "
                                    "result withheld")
 
 
+@functools.lru_cache(maxsize=64)
+def _field_units(names: tuple[str, ...], labels_json: bytes, own_json: bytes
+                 ) -> dict[str, dict[bytes, bytes]] | None:
+    """The field metadata (``{b"unit": ...}``) of each column of ``names`` that has a
+    unit, from the file metadata's ``envelope:units`` and ``envelope:sizing_units``
+    texts; None where the units are of several systems.  Cached: a batch writes tables
+    of the same columns and units beam after beam (the caller never changes the
+    dictionaries it gets)."""
+    from envelope.columnunits import column_units
+
+    labels = json.loads(labels_json)
+    if labels and all(isinstance(v, dict) for v in labels.values()):
+        return None
+    units = column_units(names, labels, json.loads(own_json))
+    return {name: {b"unit": unit.encode()} for name, unit in units.items()}
+
+
 def with_field_units(table: pa.Table) -> pa.Table:
     """The table with each numeric column's unit in its field metadata (key ``unit``),
     from the file metadata (``envelope:units``, ``envelope:sizing_units``) and the column
     names (:mod:`envelope.columnunits`); readers that drop file metadata keep these."""
-    from envelope.columnunits import column_units
-
     meta = table.schema.metadata or {}
-    labels = json.loads(meta.get(b"envelope:units", b"{}"))
-    own = json.loads(meta.get(b"envelope:sizing_units", b"{}"))
-    if labels and all(isinstance(v, dict) for v in labels.values()):
+    units = _field_units(tuple(table.column_names), meta.get(b"envelope:units", b"{}"),
+                         meta.get(b"envelope:sizing_units", b"{}"))
+    if units is None:
         return table  # several systems in one table: see the batch's combined files
-    units = column_units(table.column_names, labels, own)
-    fields = [f.with_metadata({b"unit": units[f.name].encode()}) if f.name in units else f
+    fields = [f.with_metadata(units[f.name]) if f.name in units else f
               for f in table.schema]
     # the same columns under the new schema (only field metadata differs): no cast, so no
     # pyarrow.compute import

@@ -10,6 +10,7 @@ import pytest
 from envelope.errors import StaticsError
 from envelope.store import (
     check_finite,
+    coded_string_column,
     float_column,
     int_column,
     make_table,
@@ -39,6 +40,36 @@ def test_nan_and_infinity_are_refused_but_nulls_pass() -> None:
         table = make_table({"x": float_column([1.0, bad])})
         with pytest.raises(StaticsError, match="column x holds a non-finite value"):
             check_finite(table, "t")
+
+
+def test_nan_in_a_null_slot_passes_and_in_a_sliced_column_is_found() -> None:
+    # the quick test reads every slot; a column it doubts is read again without nulls
+    check_finite(make_table({"x": float_column([1.0, np.nan], np.array([False, True]))}),
+                 "t")
+    with pytest.raises(StaticsError, match="column y holds a non-finite value"):
+        check_finite(make_table({"y": float_column([np.nan, np.inf, 2.0],
+                                                   np.array([True, False, False]))}), "t")
+    table = make_table({"z": float_column([np.inf, 1.0, 2.0])})
+    check_finite(table.slice(1), "t")  # the infinity lies before the slice
+    with pytest.raises(StaticsError, match="column z"):
+        check_finite(table.slice(0, 2), "t")
+
+
+def test_coded_strings_are_the_column_of_their_strings() -> None:
+    """A column built from texts and codes has the same buffers as the one built from
+    the strings row by row (so the files do not change)."""
+    texts = ("1.2D+1.6L", "D+L", "é", "")
+    codes = np.array([1, 1, 0, 2, 3, 0, 1])
+    null = np.array([False, True, False, False, False, False, True])
+    rows = [texts[c] for c in codes]
+    for mask in (None, null):
+        coded = coded_string_column(texts, codes, mask)
+        plain = string_column(rows, mask)
+        assert coded.equals(plain) and coded.type == plain.type == pa.string()
+        assert [b.to_pybytes() if b is not None else None for b in coded.buffers()] == [
+            b.to_pybytes() if b is not None else None for b in plain.buffers()]
+    assert coded_string_column(texts, np.zeros(0, dtype=int)).equals(string_column([]))
+    assert repeated_string("B-7", 4).buffers()[1:] == string_column(["B-7"] * 4).buffers()[1:]
 
 
 _SEGMENTED = beam_text(

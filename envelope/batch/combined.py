@@ -128,15 +128,16 @@ def write_partition(out: Path, beam_id: str, system: str, envelope: Any = None) 
     from ``envelope`` (the table just written as envelope.parquet) when given, else read
     back.  Not fsynced: :func:`combine` checks every partition's stamp and writes a
     missing or unreadable one again."""
-    import pyarrow as pa
-
-    if envelope is not None:
-        from envelope.store import with_field_units
+    if envelope is not None:  # in a worker: the engine is loaded
+        from envelope.store import repeated_string, with_field_units
 
         table = with_field_units(envelope)  # as envelope.parquet holds it
+        column = repeated_string(system, table.num_rows)
     else:
+        import pyarrow as pa
+
         table = _read(out / beam_id / "envelope.parquet")
-    column = pa.array([system] * table.num_rows, pa.string())
+        column = pa.array([system] * table.num_rows, pa.string())
     table = table.drop_columns(["beam"]).append_column("system", column)
     folder = real_folder(out, out / COMBINED / "envelope" / f"beam={beam_id}")
     _write(folder / "part-0.parquet", table, durable=False)
