@@ -415,10 +415,11 @@ def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float
     # best single patterned unit per cell where nothing helps (may be negative)
     Xm = np.where(is_pat, X, -np.inf)
     best_single = np.full(A.shape, -np.inf)
-    for g in range(onehot.shape[1]):  # cells: few compared with rows x units
-        cols = np.flatnonzero(onehot[:, g] > 0)
-        if cols.size:
-            best_single[:, g] = Xm[:, cols].max(axis=1)
+    # the units of each cell side by side, then one maximum over each cell's run
+    order = np.argsort(cs.unit_cell, kind="stable")
+    cells_present, starts = np.unique(cs.unit_cell[order], return_index=True)
+    if cells_present.size:
+        best_single[:, cells_present] = np.maximum.reduceat(Xm[:, order], starts, axis=1)
     can_zero = n_pat_in_cell < n_pat_cases  # some patterned case puts nothing here
     best = np.where(any_pos, pos, np.where(can_zero[None, :], 0.0, best_single))
     loaded_val = A + best

@@ -10,7 +10,7 @@ import json
 import os
 import shutil
 import stat
-from collections.abc import Sequence
+from collections.abc import Collection, Sequence
 from pathlib import Path
 from typing import Any
 
@@ -22,10 +22,11 @@ from envelope.files import real_folder, write_atomic
 
 def _read(path: Path) -> Any:
     """One Parquet file as a pyarrow Table (ParquetFile: no dataset discovery, which
-    costs several times the read of a small file)."""
+    costs several times the read of a small file; nor threads or read-ahead, which cost
+    more than they save on the small files of one beam)."""
     import pyarrow.parquet as pq
 
-    return pq.ParquetFile(path).read()
+    return pq.ParquetFile(path, pre_buffer=False).read(use_threads=False)
 
 
 def _write(path: Path, table: Any, durable: bool = True) -> None:
@@ -143,11 +144,13 @@ def write_partition(out: Path, beam_id: str, system: str, envelope: Any = None) 
     _write(folder / "part-0.parquet", table, durable=False)
 
 
-def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = None) -> None:
+def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = None,
+            fresh: Collection[str] = ()) -> None:
     """Refresh ``OUT/_all/`` for the beams in ``done`` (id -> manifest): each beam's
     partition checked (written again when missing or stamped with another input hash or
-    engine version), partitions of other beams removed, design.parquet and sizing.parquet
-    rebuilt (converted to ``to_system`` when given, see :func:`_combine_table`).
+    engine version; not read for the beams of ``fresh``, whose workers wrote it in this
+    batch before their manifests), partitions of other beams removed, design.parquet and
+    sizing.parquet rebuilt (converted to ``to_system`` when given, see :func:`_combine_table`).
     ``envelope:input_sha256`` of a combined file is the SHA-256 of the sorted
     ``<id> <input hash>`` lines of its beams."""
     root = real_folder(out, out / COMBINED)
@@ -167,6 +170,8 @@ def combine(out: Path, done: dict[str, dict[str, Any]], to_system: str | None = 
             else:  # a file or a link where a partition folder belongs
                 child.unlink()
     for beam_id in ids:
+        if beam_id in fresh:
+            continue
         part = dataset / f"beam={beam_id}" / "part-0.parquet"
         if not _stamped(part, done[beam_id]["input_sha256"]):
             write_partition(out, beam_id, systems[beam_id])

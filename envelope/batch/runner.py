@@ -130,7 +130,11 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
         ids = {e.beam_id for e in entries} | {o.beam_id for o in summary.outcomes}
         for beam_id in sorted(i for i in ids if i and i != COMBINED):
             _remove_temporaries(out_path / beam_id)
-        combine(out_path, done, units)
+        # the beams written in this batch: each worker wrote the partition before the
+        # manifest, so their partitions need no second look
+        fresh = {o.beam_id for o in summary.outcomes
+                 if o.error is None and o.manifest is not None}
+        combine(out_path, done, units, fresh)
         write_failures(out_path, summary.failed, {e.path: e.index for e in entries})
     summary.seconds = time.perf_counter() - started
     return summary
