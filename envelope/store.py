@@ -454,16 +454,35 @@ def with_field_units(table: pa.Table) -> pa.Table:
     """The table with each numeric column's unit in its field metadata (key ``unit``),
     from the file metadata (``envelope:units``, ``envelope:sizing_units``) and the column
     names (:mod:`envelope.columnunits`); readers that drop file metadata keep these."""
-    meta = table.schema.metadata or {}
-    units = _field_units(tuple(table.column_names), meta.get(b"envelope:units", b"{}"),
-                         meta.get(b"envelope:sizing_units", b"{}"))
-    if units is None:
+    schema = table.schema
+    meta = schema.metadata or {}
+    key = (schema.remove_metadata(), meta.get(b"envelope:units", b"{}"),
+           meta.get(b"envelope:sizing_units", b"{}"))
+    # fields with metadata of their own are not looked up (the cache ignores it)
+    unit_fields = _unit_fields if any(f.metadata for f in schema) else _cached_unit_fields
+    fields = unit_fields(*key)
+    if fields is None:
         return table  # several systems in one table: see the batch's combined files
-    fields = [f.with_metadata(units[f.name]) if f.name in units else f
-              for f in table.schema]
     # the same columns under the new schema (only field metadata differs): no cast, so no
     # pyarrow.compute import
-    return pa.Table.from_arrays(table.columns, schema=pa.schema(fields, metadata=meta))
+    return pa.Table.from_arrays(table.columns, schema=fields.with_metadata(meta))
+
+
+def _unit_fields(schema: pa.Schema, labels_json: bytes, own_json: bytes
+                 ) -> pa.Schema | None:
+    """``schema`` (no file metadata) with each numeric column's unit in its field
+    metadata (see :func:`with_field_units`); None where the units are of several
+    systems."""
+    units = _field_units(tuple(schema.names), labels_json, own_json)
+    if units is None:
+        return None
+    return pa.schema([f.with_metadata(units[f.name]) if f.name in units else f
+                      for f in schema])
+
+
+#: :func:`_unit_fields` kept per column layout and units: a batch writes tables of the
+#: same columns beam after beam (Arrow schemas are immutable, so sharing one is safe).
+_cached_unit_fields = functools.lru_cache(maxsize=64)(_unit_fields)
 
 
 def write_parquet(path: Path, table: pa.Table, durable: bool = True,

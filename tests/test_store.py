@@ -17,6 +17,7 @@ from envelope.store import (
     numeric_values,
     repeated_string,
     string_column,
+    with_field_units,
 )
 
 from beams import beam_text
@@ -70,6 +71,25 @@ def test_coded_strings_are_the_column_of_their_strings() -> None:
             b.to_pybytes() if b is not None else None for b in plain.buffers()]
     assert coded_string_column(texts, np.zeros(0, dtype=int)).equals(string_column([]))
     assert repeated_string("B-7", 4).buffers()[1:] == string_column(["B-7"] * 4).buffers()[1:]
+
+
+def test_unit_metadata_is_the_same_cached_and_keeps_a_fields_own_metadata() -> None:
+    meta = {b"envelope:units": b'{"length": "m", "moment": "kN*m"}'}
+    cols = {"x": float_column([1.0]), "moment_max": float_column([2.0]),
+            "side": string_column(["left"])}
+    first = with_field_units(make_table(cols).replace_schema_metadata(meta))
+    again = with_field_units(make_table(cols).replace_schema_metadata(meta))
+    assert first.schema.equals(again.schema, check_metadata=True)
+    assert first.schema.field("moment_max").metadata == {b"unit": b"kN*m"}
+    assert first.schema.field("side").metadata is None
+    assert first.schema.metadata == meta
+    # a field with metadata of its own keeps it (the unit replaces a numeric one's)
+    table = make_table(cols).replace_schema_metadata(meta)
+    schema = pa.schema([table.schema.field(0), table.schema.field(1),
+                        table.schema.field(2).with_metadata({b"note": b"n"})], metadata=meta)
+    own = with_field_units(pa.Table.from_arrays(table.columns, schema=schema))
+    assert own.schema.field("side").metadata == {b"note": b"n"}
+    assert own.schema.field("x").metadata == {b"unit": b"m"}
 
 
 _SEGMENTED = beam_text(
