@@ -38,15 +38,9 @@ def engine_version() -> str:
     """
     global _ENGINE_VERSION
     if _ENGINE_VERSION is None:
-        import hashlib
-        from pathlib import Path
+        from envelope.fingerprint import fingerprint  # kept between runs, see there
 
-        digest = hashlib.sha256()
-        root = Path(__file__).resolve().parent
-        for path in sorted(root.rglob("*.py")) + sorted(root.rglob("*.toml")):
-            digest.update(path.relative_to(root).as_posix().encode())
-            digest.update(path.read_bytes())
-        _ENGINE_VERSION = f"{__version__}+{digest.hexdigest()[:12]}"
+        _ENGINE_VERSION = f"{__version__}+{fingerprint()}"
     return _ENGINE_VERSION
 
 
