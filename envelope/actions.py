@@ -21,7 +21,6 @@ a step of the slope root costs the load items at its point, not every unit case.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -33,6 +32,7 @@ from envelope.recovery import Points, evaluate_some, make_points
 from envelope.search import golden_max, illinois_root
 from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
+from envelope.values import dataclass
 
 #: Machine epsilon and the smallest normal number of a float (round-off scales).
 _EPS = float(np.finfo(float).eps)

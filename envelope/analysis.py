@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 from collections.abc import Iterator
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -17,6 +16,7 @@ from envelope.moving import MovingEffect, moving_loads, reaction_effects
 from envelope.recovery import Points, evaluate, evaluate_some, stations
 from envelope.redistribution import requested
 from envelope.solved import Solved, envelopes_at, solve_beam
+from envelope.values import dataclass
 
 
 @dataclass(frozen=True, slots=True)

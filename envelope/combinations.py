@@ -40,7 +40,6 @@ from __future__ import annotations
 
 import dataclasses
 from collections.abc import Iterable, Mapping
-from dataclasses import dataclass
 from typing import get_args
 
 from envelope.model import (
@@ -51,6 +50,7 @@ from envelope.model import (
     ServiceRuleSet,
     StrengthRuleSet,
 )
+from envelope.values import dataclass
 
 STRENGTH_SETS: tuple[str, ...] = get_args(StrengthRuleSet)
 SERVICE_SETS: tuple[str, ...] = get_args(ServiceRuleSet)

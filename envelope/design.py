@@ -13,8 +13,9 @@ class it belongs to, read it in :mod:`envelope.casefile.design` and name it in
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import ClassVar, Literal
+
+from envelope.values import dataclass
 
 Material = Literal["concrete", "steel"]
 ConcreteCode = Literal["aci318-19", "en1992-1-1"]

@@ -36,7 +36,6 @@ where.
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -45,6 +44,7 @@ from envelope import config
 from envelope.loading import Cells, UnitCases
 from envelope.model import Beam, Combination, Patterning
 from envelope.patterns import arrangements, loaded_label
+from envelope.values import dataclass
 
 if TYPE_CHECKING:
     from envelope.moving import MovingEffect

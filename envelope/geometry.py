@@ -9,10 +9,11 @@ the consistent unit (m or ft); arrays are read-only.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
+
+from envelope.values import dataclass
 
 if TYPE_CHECKING:
     from envelope.model import Span, Support

@@ -23,7 +23,6 @@ Units are the beam's consistent units (m, kN; ft, kip), downward loads positive.
 from __future__ import annotations
 
 import itertools
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -33,6 +32,7 @@ from envelope.mesh import Mesh, build_mesh, locate
 from envelope.model import Beam
 from envelope.recovery import Points, evaluate
 from envelope.solver import solve
+from envelope.values import dataclass
 
 #: Sample positions inside a piece (Chebyshev points of the first kind on [0, 1]):
 #: interior, so a sample never sits on an element end or a point, and well spread, so

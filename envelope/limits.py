@@ -28,12 +28,12 @@ from __future__ import annotations
 
 import math
 import os
-from dataclasses import dataclass
 
 from envelope import config
 from envelope.design import ConcreteDesign
 from envelope.errors import CaseError
 from envelope.model import Beam
+from envelope.values import dataclass
 
 #: Bytes per (station x unit case) at peak: responses, products and choices together.
 BYTES_PER_CELL = 48.0

@@ -15,13 +15,13 @@ clockwise positive):
 from __future__ import annotations
 
 import itertools
-from dataclasses import dataclass
 
 import numpy as np
 
 from envelope.mesh import Mesh
 from envelope.model import Beam, Load
 from envelope.reduction import span_factors
+from envelope.values import dataclass
 
 DISTRIBUTED, POINT, MOMENT = 0, 1, 2
 

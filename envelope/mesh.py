@@ -9,11 +9,11 @@ consistent unit (m or ft) and EI in force*length^2.
 from __future__ import annotations
 
 import itertools
-from dataclasses import dataclass
 
 import numpy as np
 
 from envelope.model import Beam
+from envelope.values import dataclass
 
 
 @dataclass(frozen=True, slots=True)

@@ -29,7 +29,6 @@ Units are the beam's consistent units (m, kN; ft, kip), downward loads positive.
 from __future__ import annotations
 
 import dataclasses
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -42,6 +41,7 @@ from envelope.mesh import Mesh, locate
 from envelope.model import Beam, Combination, Load
 from envelope.recovery import Points, make_points
 from envelope.solver import Solution, solve
+from envelope.values import dataclass
 
 
 def moving_loads(beam: Beam) -> tuple[Load, ...]:

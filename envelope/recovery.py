@@ -13,8 +13,6 @@ rotation = d(deflection)/dx, clockwise positive (rad).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 from envelope import config
@@ -23,6 +21,7 @@ from envelope.loadterms import load_terms
 from envelope.mesh import Mesh, locate
 from envelope.model import Beam
 from envelope.solver import Solution
+from envelope.values import dataclass
 
 
 @dataclass(frozen=True, slots=True)

@@ -8,7 +8,6 @@ quantity at any points, in chunks of rows so that memory stays bounded.
 from __future__ import annotations
 
 import dataclasses
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -24,6 +23,7 @@ from envelope.moving import alternatives, moving_loads, point_effects
 from envelope.recovery import Points, Response, evaluate, evaluate_some, pair_count
 from envelope.redistribution import redistribute, requested
 from envelope.solver import Solution, solve
+from envelope.values import dataclass
 
 #: Which combination set envelopes which quantity (outputs contract).
 QUANTITY_SET = {"moment": "strength", "shear": "strength", "deflection": "service",

@@ -14,7 +14,6 @@ against :data:`envelope.config.STATICS_RTOL`.  A failed check raises
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -26,6 +25,7 @@ from envelope.loading import UnitCases
 from envelope.loadterms import load_terms
 from envelope.mesh import Mesh
 from envelope.model import Support
+from envelope.values import dataclass
 
 
 @dataclass(frozen=True, slots=True)

@@ -17,10 +17,11 @@ imported only for a spelling the table does not hold, and named constants (``pi`
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from fractions import Fraction
 from functools import cache
 from typing import Any
+
+from envelope.values import dataclass
 
 #: quantity -> (customary unit, consistent unit), as pint unit expressions.
 _SI: dict[str, tuple[str, str]] = {
