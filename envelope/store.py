@@ -10,7 +10,6 @@ crash never leaves a half-written file under a final name.
 from __future__ import annotations
 
 import functools
-import hashlib
 import itertools
 import json
 import os
@@ -25,7 +24,7 @@ from envelope import config, engine_version
 from envelope.analysis import Analysis, explicit_case_blocks
 from envelope.enveloper import CaseSet, Extremes
 from envelope.errors import StaticsError
-from envelope.files import write_atomic
+from envelope.files import sha256_hex, write_atomic
 from envelope.model import Beam
 from envelope.reduction import span_factors
 
@@ -335,7 +334,7 @@ def input_text(beam: Beam) -> str | None:
         raw = Path(beam.source).read_bytes()
     except OSError:
         return None
-    if hashlib.sha256(raw).hexdigest() != beam.input_sha256:
+    if sha256_hex(raw) != beam.input_sha256:
         return None
     try:
         return raw.decode("utf-8-sig")

@@ -1,7 +1,8 @@
 """The engine fingerprint (``envelope.engine_version``) is the hash of the package's
 sources, and the copy kept between runs never outlives a change to them: a source
 written (even to the same size with its modification time put back), added or removed
-gives a new fingerprint."""
+gives a new fingerprint.  The case file's own hash (``input_sha256``) is SHA-256 as
+hashlib computes it."""
 
 from __future__ import annotations
 
@@ -133,3 +134,11 @@ def test_the_cache_lives_beside_the_package_bytecode() -> None:
     where = fp.cache_path()
     assert where.parent == Path(cache_from_source(str(fp.PACKAGE / "__init__.py"))).parent
     assert where.suffix not in (".py", ".toml")
+
+
+@pytest.mark.parametrize("size", [0, 1, 55, 56, 64, 1000, 1 << 20])
+def test_the_input_hash_is_hashlibs_sha256(size: int) -> None:
+    from envelope.files import sha256_hex
+
+    data = bytes((i * 7 + size) % 256 for i in range(size))
+    assert sha256_hex(data) == hashlib.sha256(data).hexdigest()

@@ -8,7 +8,6 @@ loads, options, design) and the beam is checked for stability last.
 
 from __future__ import annotations
 
-import hashlib
 import os
 import re
 import tomllib
@@ -19,7 +18,7 @@ from envelope import config, stability
 from envelope.casefile import design, geometry, loads, options, redistribution
 from envelope.casefile.reader import Reader, TomlReader, misplaced_hint, one_line
 from envelope.errors import CaseError
-from envelope.files import UnreadableFile, read_regular
+from envelope.files import UnreadableFile, read_regular, sha256_hex
 from envelope.model import Beam
 from envelope.units import SYSTEMS, UnitSystem
 
@@ -58,7 +57,7 @@ def load_case(path: str | os.PathLike[str]) -> Beam:
         raw = read_regular(source, config.CASE_FILE_MAX_BYTES)
     except UnreadableFile as exc:
         raise CaseError(source, "", str(exc)) from None
-    sha256 = hashlib.sha256(raw).hexdigest()
+    sha256 = sha256_hex(raw)
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
