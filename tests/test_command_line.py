@@ -229,14 +229,19 @@ def test_numbers_that_round_to_zero_print_without_a_sign() -> None:
     assert _num(-0.05 - 1e-12) == "-0.1"
 
 
-def test_run_without_plots_imports_neither_matplotlib_nor_the_batch_machinery(
-        tmp_path: Path) -> None:
+def test_run_without_plots_imports_only_what_a_plain_run_needs(tmp_path: Path) -> None:
+    # a case with unit strings and without [design]: no figure, no batch machinery, no
+    # sizing or report, no pint (the common spellings are in the built-in table), no
+    # scipy or numba (a small beam), no pyarrow.compute, tempfile or shutil
+    assert "[design" not in CASES[0].read_text() and '"' in CASES[0].read_text()
     code = ("import sys\nfrom envelope.cli import main\n"
             "try:\n"
             f"    main(['run', {str(CASES[0])!r}, '-o', {str(tmp_path)!r}, '--no-plots', '-q'])\n"
             "except SystemExit as e:\n    assert not e.code, e.code\n"
             "bad = [m for m in sys.modules if m.startswith(('matplotlib', 'envelope.batch',"
-            " 'envelope.commands.plot', 'envelope.commands.check'))]\n"
+            " 'envelope.commands.plot', 'envelope.commands.check', 'envelope.sizing',"
+            " 'envelope.report', 'pint', 'scipy', 'numba', 'pandas', 'dask',"
+            " 'pyarrow.compute')) or m in ('tempfile', 'shutil')]\n"
             "print(bad)\n")
     proc = _python("-c", code)
     assert proc.returncode == 0, proc.stderr
