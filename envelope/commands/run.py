@@ -8,7 +8,7 @@ from pathlib import Path
 
 import click
 
-from envelope.commands.common import guard, say
+from envelope.commands.common import guard, level, resume_collection, say
 
 
 @click.command()
@@ -40,6 +40,8 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
     from envelope.errors import EnvelopeWarning
     from envelope.limits import from_options
 
+    resume_collection()  # the engine is loaded (see envelope.cli.LazyGroup)
+
     with ExitStack() as stack:
         if case is None:
             from importlib import resources
@@ -64,12 +66,17 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
                                      warning.lineno)
         folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
     click.echo(f"wrote {Path(folder)}")
-    files = sorted(p.name for p in Path(folder).iterdir() if not p.name.startswith("."))
-    say(f"{beam.id}: {beam.n_spans} spans, {result.stations.n} stations, "
-        f"{len(beam.loads)} load items; files: {', '.join(files)}", at=1)
+    if level() >= 1:
+        files = sorted(p.name for p in Path(folder).iterdir() if not p.name.startswith("."))
+        say(f"{beam.id}: {beam.n_spans} spans, {result.stations.n} stations, "
+            f"{len(beam.loads)} load items; files: {', '.join(files)}", at=1)
     if report:  # (a report of earlier results was removed by the write)
         from envelope.report.build import write_report
 
         for written in write_report(folder):
             click.echo(f"wrote {written}")
-    say(api.summary_text(result))  # each summary ends with its caution line
+    if level() >= 0:  # built only to be printed (-q prints the folder alone)
+        say(api.summary_text(result))  # each summary ends with its caution line
+
+
+run.resumes_collection = True  # type: ignore[attr-defined]  # after its imports (above)
