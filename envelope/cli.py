@@ -15,10 +15,18 @@ Set ENVELOPE_DEBUG=1 to see a traceback of an unexpected error.
 from __future__ import annotations
 
 import importlib
+from typing import Any
 
 import click
 
-from envelope.commands.common import CONTEXT, add_common_options, verbosity_options
+from envelope.commands.common import (
+    CONTEXT,
+    add_common_options,
+    end_pause,
+    pause_collection,
+    resume_collection,
+    verbosity_options,
+)
 
 #: Subcommands: name -> ("module:attribute" of the click command, one-line help).
 COMMANDS: dict[str, tuple[str, str]] = {
@@ -44,7 +52,22 @@ COMMANDS: dict[str, tuple[str, str]] = {
 
 
 class LazyGroup(click.Group):
-    """A click group whose subcommands are imported on first use from :data:`COMMANDS`."""
+    """A click group whose subcommands are imported on first use from :data:`COMMANDS`.
+
+    Cyclic garbage collection is paused while the modules load (see
+    :func:`envelope.commands.common.pause_collection`): a command whose callback
+    imports what it needs (``run``) resumes it itself once they are loaded (its
+    ``resumes_collection`` attribute is True); any other resumes as soon as its module
+    is imported."""
+
+    def main(self, *args: Any, **kwargs: Any) -> Any:
+        """Run the command line (as click does), collection paused while modules load."""
+        paused = pause_collection()
+        try:
+            return super().main(*args, **kwargs)
+        finally:
+            if paused:
+                end_pause()
 
     def list_commands(self, ctx: click.Context) -> list[str]:
         """Every subcommand's name, without importing any."""
@@ -59,6 +82,8 @@ class LazyGroup(click.Group):
         target, _ = COMMANDS[cmd_name]
         module, _, attribute = target.partition(":")
         command = getattr(importlib.import_module(module), attribute)
+        if not getattr(command, "resumes_collection", False):
+            resume_collection()
         add_common_options(command)
         self.commands[cmd_name] = command
         return command

@@ -256,3 +256,33 @@ def test_help_imports_no_subcommand() -> None:
     proc = _python("-c", code)
     assert proc.returncode == 0, proc.stderr
     assert proc.stdout.strip().splitlines()[-1] == "[]"
+
+
+@pytest.mark.parametrize("command", ["run", "check", "help"])
+def test_collection_is_paused_only_while_modules_load_and_restored_after(
+        command: str, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    import gc
+
+    from envelope import api
+
+    seen: list[bool] = []
+    real = api.analyse
+
+    def analyse(*args: object, **kwargs: object) -> object:
+        seen.append(gc.isenabled())  # the analysis runs with collection on
+        return real(*args, **kwargs)  # type: ignore[arg-type]
+
+    monkeypatch.setattr(api, "analyse", analyse)
+    args = {"run": ["run", str(CASES[0]), "-o", str(tmp_path), "--no-plots", "-q"],
+            "check": ["check", str(CASES[0])], "help": ["-h"]}[command]
+    assert gc.isenabled()
+    result = CliRunner().invoke(main, args)
+    assert result.exit_code == 0, result.output
+    assert seen == ([True] if command == "run" else [])
+    assert gc.isenabled() and gc.get_freeze_count() == 0  # as it was before
+    gc.disable()  # a caller that keeps collection off keeps it off
+    try:
+        assert CliRunner().invoke(main, args).exit_code == 0
+        assert not gc.isenabled()
+    finally:
+        gc.enable()
