@@ -214,11 +214,13 @@ def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.Path
     # all are written, so a failure (a full disk, a figure that cannot be drawn, an
     # interrupt) leaves the folder as it was; a staging folder a kill leaves behind is
     # removed by the next write of the beam or batch run over OUT (its name ends in .tmp).
-    for old in folder.glob(".staging-*.tmp"):  # left by a killed write (one writer a folder)
-        if old.is_dir() and not old.is_symlink():
-            import shutil  # rarely needed: not imported at start-up
+    with os.scandir(folder) as entries:  # (not Path.glob: no pattern compiled each run)
+        left = [Path(e.path) for e in entries if e.name.startswith(".staging-")
+                and e.name.endswith(".tmp") and e.is_dir(follow_symlinks=False)]
+    for old in left:  # left by a killed write (one writer a folder)
+        import shutil  # rarely needed: not imported at start-up
 
-            shutil.rmtree(old, ignore_errors=True)
+        shutil.rmtree(old, ignore_errors=True)
     stage = temporary_folder(folder, ".staging-", ".tmp")
     written = {f"{stem}.parquet" for stem in built}
     try:

@@ -320,3 +320,30 @@ def test_sigkill_at_random_moments_leaves_only_complete_files(tmp_path: Path) ->
     redraw = CliRunner().invoke(main, ["plot", str(out / "big"), "-o",
                                        str(tmp_path / "fig.png")])
     assert redraw.exit_code == 0, redraw.output
+
+
+def test_a_staging_folder_left_by_a_killed_write_is_removed_and_nothing_else(
+        tmp_path: Path) -> None:
+    from envelope import api
+
+    case = tmp_path / "b.toml"
+    case.write_text(with_id("staged"), encoding="utf-8")
+    beam = api.load_case(case)
+    result = api.analyse(beam)
+    folder = tmp_path / "out" / beam.id
+    left = folder / ".staging-0123abcd.tmp"
+    left.mkdir(parents=True)
+    (left / "envelope.parquet").write_bytes(b"half")
+    elsewhere = tmp_path / "keep"
+    elsewhere.mkdir()
+    (elsewhere / "x").write_text("kept")
+    (folder / ".staging-link.tmp").symlink_to(elsewhere, target_is_directory=True)
+    (folder / ".staging-file.tmp").write_text("a file, not a folder")
+    (folder / ".staging-other").mkdir()  # not a staging name
+    api.write(result, tmp_path / "out", plots=False)
+    names = {p.name for p in folder.iterdir()}
+    assert ".staging-0123abcd.tmp" not in names
+    assert {".staging-link.tmp", ".staging-file.tmp", ".staging-other"} <= names
+    assert (elsewhere / "x").read_text() == "kept"
+    assert not [n for n in names if n.startswith(".staging-") and n.endswith(".tmp")
+                and (folder / n).is_dir() and not (folder / n).is_symlink()]
