@@ -29,19 +29,22 @@ Units are the beam's consistent units (m, kN; ft, kip), downward loads positive.
 from __future__ import annotations
 
 import dataclasses
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from envelope import config
 from envelope.combinations import combination_name
 from envelope.enveloper import CaseSet, moving_factors
-from envelope.influence import InfluenceLines, influence_lines, train_worst
 from envelope.loading import POINT, UnitCases
 from envelope.mesh import Mesh, locate
 from envelope.model import Beam, Combination, Load
 from envelope.recovery import Points, make_points
 from envelope.solver import Solution, solve
 from envelope.values import dataclass
+
+if TYPE_CHECKING:  # the influence lines are loaded only for a beam with moving loads
+    from envelope.influence import InfluenceLines
 
 
 def moving_loads(beam: Beam) -> tuple[Load, ...]:
@@ -101,6 +104,8 @@ class MovingEffect:
 def _worst(lines: InfluenceLines, quantity: str, loads: tuple[Load, ...],
            take: np.ndarray | None, unit: str) -> MovingEffect:
     """Worst effects of every moving load on ``quantity`` of ``lines`` (rows ``take``)."""
+    from envelope.influence import train_worst
+
     parts = []
     for ld in loads:
         p = np.array([a[0] for a in ld.axles])
@@ -123,6 +128,8 @@ def point_effects(beam: Beam, points: Points, quantities: tuple[str, ...]
     """Worst effects of every moving case on each of ``quantities`` (shear, moment,
     rotation, deflection) at ``points``: one influence-line solve for all of them per
     :data:`envelope.config.MOVING_CHUNK_ROWS` points."""
+    from envelope.influence import influence_lines
+
     loads = moving_loads(beam)
     unit = beam.units.consistent("length")
     step = config.MOVING_CHUNK_ROWS
@@ -150,6 +157,8 @@ def reaction_effects(beam: Beam, joints: np.ndarray) -> tuple[MovingEffect, Movi
     """Worst effects of every moving case on the upward reaction and on the support
     moment (:func:`envelope.analysis.support_moments` sign: the beam's end moment at an
     end support, M(right) - M(left) at an interior one) of each joint in ``joints``."""
+    from envelope.influence import InfluenceLines, influence_lines
+
     loads = moving_loads(beam)
     n_j = len(beam.supports)
     n_s = beam.n_spans
@@ -186,6 +195,8 @@ def moment_and_reaction_effect(beam: Beam, points: Points, joint: int, weight: f
                                ) -> MovingEffect:
     """Worst effects of every moving case on the moment at ``points`` plus ``weight``
     times the reaction of ``joint`` (a bearing support's reduced moment)."""
+    from envelope.influence import InfluenceLines, influence_lines
+
     lines = influence_lines(beam, points)
     both = lines.coef["moment"] + weight * lines.reaction[joint][None, :, :]
     own = InfluenceLines(lines.bounds, lines.span, {"moment": both}, lines.reaction)
@@ -197,6 +208,8 @@ def moment_functional_effect(beam: Beam, points: Points, weights: np.ndarray
     """Worst effects of every moving case on ``weights @ M`` (rows of a linear
     functional of the moments at ``points``, e.g. a fixed-end moment), from the same
     functional of the moment influence lines."""
+    from envelope.influence import InfluenceLines, influence_lines
+
     lines = influence_lines(beam, points)
     table = np.tensordot(np.asarray(weights, dtype=float), lines.coef["moment"], axes=(1, 0))
     own = InfluenceLines(lines.bounds, lines.span, {"moment": table}, lines.reaction)
