@@ -30,7 +30,6 @@ import math
 import os
 
 from envelope import config
-from envelope.design import ConcreteDesign
 from envelope.errors import CaseError
 from envelope.model import Beam
 from envelope.values import dataclass
@@ -122,14 +121,16 @@ def estimate(beam: Beam) -> Estimate:
     seconds = BASE_SECONDS + SECONDS_PER_CELL * stations * units \
         + SECONDS_PER_STATION * stations
     if beam.design is not None:
+        from envelope.design import ConcreteDesign  # (loaded only for a case with [design])
+
         # member sizing envelopes each span on the extents' grid (sizing.extents) in
         # blocks of envelope.solved.chunk_rows: more than one block loads the kernels
         grid = n * (config.EXTENT_SAMPLES + 1 + beam.output.stations_per_span)
         block = max(1, min(config.STATION_CHUNK_ROWS,
                            config.ENVELOPE_CHUNK_VALUES // units))
         kernels = kernels or grid > block
-    if isinstance(beam.design, ConcreteDesign) and beam.design.redistribution is not None:
-        memory += BYTES_PER_REDISTRIBUTED * elements * units
+        if isinstance(beam.design, ConcreteDesign) and beam.design.redistribution is not None:
+            memory += BYTES_PER_REDISTRIBUTED * elements * units
     influence = 0
     if any(load.is_moving for load in beam.loads):
         rows = max(min(stations, config.MOVING_CHUNK_ROWS), 2 * n)

@@ -14,12 +14,14 @@ applied point moments clockwise positive, reactions upward positive.
 from __future__ import annotations
 
 import math
-from typing import Literal, get_args
+from typing import TYPE_CHECKING, Literal, get_args
 
-from envelope.design import Design
 from envelope.geometry import Geometry, geometry_of
 from envelope.units import UnitSystem
 from envelope.values import dataclass, field
+
+if TYPE_CHECKING:  # [design] is read (and envelope.design loaded) only when given
+    from envelope.design import Design
 
 # The allowed choices of the case file.  Each Literal is the single list of its
 # choices: the case-file readers derive what they accept (and list in messages,

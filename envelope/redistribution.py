@@ -52,10 +52,10 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from envelope.design import ConcreteDesign
 from envelope.recovery import evaluate_some, make_points
 
 if TYPE_CHECKING:
+    from envelope.design import ConcreteDesign
     from envelope.loading import UnitCases
     from envelope.mesh import Mesh
     from envelope.model import Beam, Span, Support
@@ -123,6 +123,10 @@ def requested(beam: Beam) -> tuple[np.ndarray, np.ndarray]:
     n = len(beam.supports)
     fraction = np.zeros(n)
     as_max = np.zeros(n, dtype=bool)
+    if design is None:  # (envelope.design is loaded only for a case with [design])
+        return fraction, as_max
+    from envelope.design import ConcreteDesign
+
     if not isinstance(design, ConcreteDesign) or design.redistribution is None:
         return fraction, as_max
     given = design.redistribution

@@ -232,8 +232,8 @@ def test_numbers_that_round_to_zero_print_without_a_sign() -> None:
 def test_run_without_plots_imports_only_what_a_plain_run_needs(tmp_path: Path) -> None:
     # a case with unit strings and without [design]: no figure, no batch machinery, no
     # sizing or report, no pint (the common spellings are in the built-in table), no
-    # scipy or numba (a small beam), no influence lines (no moving loads), no
-    # pyarrow.compute, tempfile or shutil
+    # scipy or numba (a small beam), no influence lines (no moving loads), no [design]
+    # readers or values, no pyarrow.compute, tempfile or shutil
     assert "[design" not in CASES[0].read_text() and '"' in CASES[0].read_text()
     code = ("import sys\nfrom envelope.cli import main\n"
             "try:\n"
@@ -243,7 +243,8 @@ def test_run_without_plots_imports_only_what_a_plain_run_needs(tmp_path: Path) -
             " 'envelope.commands.plot', 'envelope.commands.check', 'envelope.sizing',"
             " 'envelope.report', 'envelope.influence', 'pint', 'scipy', 'numba', 'pandas',"
             " 'dask',"
-            " 'pyarrow.compute')) or m in ('tempfile', 'shutil')]\n"
+            " 'pyarrow.compute')) or m in ('tempfile', 'shutil', 'envelope.design',"
+            " 'envelope.casefile.design')]\n"
             "print(bad)\n")
     proc = _python("-c", code)
     assert proc.returncode == 0, proc.stderr

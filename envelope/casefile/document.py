@@ -15,7 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from envelope import config, stability
-from envelope.casefile import design, geometry, loads, options, redistribution
+from envelope.casefile import geometry, loads, options, redistribution
 from envelope.casefile.reader import Reader, TomlReader, misplaced_hint, one_line
 from envelope.errors import CaseError
 from envelope.files import UnreadableFile, read_regular, sha256_hex
@@ -114,7 +114,11 @@ def parse_case(data: dict[str, Any], source: str, sha256: str = "") -> Beam:
     options.check_reductions(r, cases, combinations)
     patterning = options.patterning(r, data)
     output = options.output(r, data)
-    design_table = design.design(r, data, tuple(sp.length for sp in spans))
+    design_table = None
+    if "design" in data:  # its readers (and envelope.design) load only when needed
+        from envelope.casefile.design import design
+
+        design_table = design(r, data, tuple(sp.length for sp in spans))
     redistribution.check_supports(r, design_table, spans, supports)
     geometry.check_depths(r, spans, design_table)
     stability.check(spans, supports, source, length_unit=r.length_unit())

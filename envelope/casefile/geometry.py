@@ -9,11 +9,13 @@ from __future__ import annotations
 
 import itertools
 import math
-from typing import Any, get_args
+from typing import TYPE_CHECKING, Any, get_args
 
 from envelope.casefile.reader import Reader, item, join, suggest
-from envelope.design import ConcreteDesign, Design
 from envelope.model import RESTRAINTS, Seat, Section, Span, Stretch, Support, SupportKind
+
+if TYPE_CHECKING:
+    from envelope.design import Design
 
 SECTION_KEYS = ("E", "I", "A", "unit_weight")
 #: Each section property and the quantity its unit strings are read as.
@@ -194,6 +196,8 @@ def check_depths(r: Reader, spans: tuple[Span, ...], design: Design | None) -> N
             if st.h is None:
                 continue
             where = f"the stretch from {r.fmt_len(st.start)} to {r.fmt_len(st.end)}"
+            from envelope.design import ConcreteDesign  # only where a depth is given
+
             if not isinstance(design, ConcreteDesign):
                 r.fail(key, f"{where} gives h, which only concrete sizing reads "
                             f"([design] material = \"concrete\")")
