@@ -61,13 +61,19 @@ class LazyGroup(click.Group):
     is imported."""
 
     def main(self, *args: Any, **kwargs: Any) -> Any:
-        """Run the command line (as click does), collection paused while modules load."""
+        """Run the command line (as click does), collection paused while modules load.
+
+        Run as the program (no ``args``: the process's own command line), the loaded
+        objects stay set aside to the end: the process exits next, and its last
+        collection need not walk them.  Called with ``args`` (in-process, as the tests
+        do) everything is as it was before on return."""
         paused = pause_collection()
+        program = (args[0] if args else kwargs.get("args")) is None
         try:
             return super().main(*args, **kwargs)
         finally:
             if paused:
-                end_pause()
+                end_pause(keep_frozen=program)
 
     def list_commands(self, ctx: click.Context) -> list[str]:
         """Every subcommand's name, without importing any."""

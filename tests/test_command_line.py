@@ -289,3 +289,14 @@ def test_collection_is_paused_only_while_modules_load_and_restored_after(
         assert not gc.isenabled()
     finally:
         gc.enable()
+
+
+def test_run_as_the_program_leaves_the_loaded_objects_aside_to_the_exit(tmp_path: Path) -> None:
+    code = ("import gc, sys\nfrom envelope.cli import main\n"
+            f"sys.argv = ['envelope', 'run', {str(CASES[0])!r}, '-o', {str(tmp_path)!r},"
+            " '--no-plots', '-q']\n"
+            "try:\n    main()\nexcept SystemExit as e:\n    assert not e.code, e.code\n"
+            "print(gc.isenabled(), gc.get_freeze_count() > 10000)\n")
+    proc = _python("-c", code)
+    assert proc.returncode == 0, proc.stderr
+    assert proc.stdout.strip().splitlines()[-1] == "True True"

@@ -113,6 +113,8 @@ def guard(fn: F) -> F:
 # and over as they are made (about 30 ms of CPU, a tenth of a small run).  So the
 # command line pauses it while the modules load and, once a command has what it needs,
 # sets those objects aside for good (``gc.freeze``) and collects as usual from then on.
+# Run as the program, the process exits with them still aside, so the collection of
+# the interpreter's exit does not walk them either.
 _PAUSE: dict[str, bool] = {"paused": False, "frozen": False}
 
 
@@ -136,12 +138,14 @@ def resume_collection() -> None:
         gc.enable()
 
 
-def end_pause() -> None:
+def end_pause(keep_frozen: bool = False) -> None:
     """The command is over: collection as it was before :func:`pause_collection`
-    (every object back under it, for a caller that goes on in the same process)."""
+    (every object back under it, for a caller that goes on in the same process; with
+    ``keep_frozen``, for a process about to exit, the set-aside objects stay aside)."""
     if _PAUSE["frozen"]:
         _PAUSE["frozen"] = False
-        gc.unfreeze()
+        if not keep_frozen:
+            gc.unfreeze()
     if _PAUSE["paused"]:
         _PAUSE["paused"] = False
         gc.enable()
