@@ -136,3 +136,22 @@ def test_the_summary_text_is_a_function_even_after_the_summary_module_loads(
     text = envelope.summary_text(office)
     assert text.splitlines()[-1].startswith("Sizing is a first check") or \
         "licensed engineer" in text
+
+
+def test_the_declared_matplotlib_floor_has_the_typing_the_figure_uses() -> None:
+    """plots.py types its rc settings with matplotlib.typing.RcKeyType, which matplotlib
+    first ships in 3.9 (from memory; 3.8 has matplotlib.typing without it): the floor in
+    pyproject.toml must be at least that, or mypy fails on the oldest allowed version."""
+    import re
+    import tomllib
+
+    import matplotlib.typing
+
+    root = Path(envelope.__file__).resolve().parent.parent
+    deps = tomllib.loads((root / "pyproject.toml").read_text())["project"]["dependencies"]
+    floor = next(re.fullmatch(r"matplotlib>=(\d+)\.(\d+)", d) for d in deps
+                 if d.startswith("matplotlib"))
+    assert floor is not None
+    assert (int(floor[1]), int(floor[2])) >= (3, 9)
+    assert "RcKeyType" in (root / "envelope" / "plots.py").read_text()
+    assert hasattr(matplotlib.typing, "RcKeyType")
