@@ -535,8 +535,18 @@ def test_en_floor_leaves_a_face_moment_above_065_fem_alone() -> None:
     cols = case(EN, (6.0, 6.0), 20.0, 15.0)
     i = row(cols, 1, "right")
     assert "fixed-end moment" not in cols["note"][i]
-    assert "floor of EN 1992-1-1 5.3.2.2(3) not applied" in cols["note"][row(cols, 1, "left")]
     assert cols["moment_design"][row(cols, 1, "left")] == 0.0
+    assert cols["moment_design"][row(cols, 2, "right")] == 0.0
+
+
+def test_en_floor_not_applied_at_free_ends_is_said_once_per_beam() -> None:
+    # three spans on pinned (monolithic by default) supports: both end supports are free
+    # to rotate, so the EN 1992-1-1:2004 5.3.2.2(3) floor is not applied there; one note
+    # for the beam names them both, on the first end's row, and no other row repeats it
+    cols = case(EN, (6.0, 7.0, 6.0), 20.0, 15.0)
+    said = [i for i, note in enumerate(cols["note"]) if "5.3.2.2(3) not applied" in note]
+    assert said == [row(cols, 1, "left")]
+    assert "end supports 1 and 4 free to rotate in the analysis" in cols["note"][said[0]]
 
 
 def test_fixed_end_moments_of_a_stepped_span_match_sympy() -> None:

@@ -165,7 +165,7 @@ def fixed_end_floor(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[in
     value over the strength set is exact; each built-in face row (:func:`_built_in`) is
     raised to 0.65 of it where its own hogging moment is smaller, with a note.  End
     supports modelled free to rotate carry no moment in the analysis and are left as
-    they are (a note says so)."""
+    they are (one note for the beam, on the first such end's row, lists them)."""
     beam = analysis.beam
     solved = analysis.solved
     moment = rows.moment.copy()
@@ -173,6 +173,7 @@ def fixed_end_floor(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[in
     if solved.strength.is_empty:
         return rows, notes
     lab = beam.units.labels["moment"]
+    free: list[tuple[int, int]] = []  # (row, joint) of each end free to rotate
     for j in range(beam.n_spans):
         fem = None
         moving: MovingEffect | None = None
@@ -181,9 +182,7 @@ def fixed_end_floor(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[in
             sup = beam.supports[joint]
             if not _built_in(analysis, joint):
                 if sup.seat == "monolithic" and sup.restrains_vertical:
-                    notes.append((i, "end support free to rotate in the analysis: the "
-                                     "0.65 fixed-end moment floor of EN 1992-1-1 "
-                                     "5.3.2.2(3) not applied"))
+                    free.append((i, joint))
                 continue
             if fem is None:
                 fem = fixed_end_moments(analysis, j)
@@ -197,4 +196,10 @@ def fixed_end_floor(analysis: Analysis, rows: Rows) -> tuple[Rows, list[tuple[in
                 notes.append((i, f"face moment raised to 0.65 of the fixed-end moment "
                                  f"{low:.1f} {lab} (EN 1992-1-1 5.3.2.2(3))"))
                 moment[i] = floor
+    if free:  # said once for the beam, on the first such end's row
+        which = " and ".join(str(joint + 1) for _, joint in free)
+        notes.append((free[0][0], f"end support{'s' if len(free) > 1 else ''} {which} "
+                                  "free to rotate in the analysis: the 0.65 fixed-end "
+                                  "moment floor of EN 1992-1-1 5.3.2.2(3) not applied "
+                                  f"{'at either' if len(free) > 1 else 'there'}"))
     return dataclasses.replace(rows, moment=moment), notes
