@@ -551,6 +551,23 @@ def test_dask_cluster_gives_the_same_outputs(cluster, cases60: Path, clean60: Pa
     assert summary_counts(again.stdout) == {"written": 0, "skipped": 60, "failed": 0}
 
 
+def test_the_time_limit_stops_beams_on_a_dask_cluster(cluster, cases60: Path,  # type: ignore[no-untyped-def]
+                                                      tmp_path: Path) -> None:
+    """Dask runs beams in its workers' threads: --time-limit stops them there too (no
+    beam is read, analysed and written in a microsecond), each listed as failed."""
+    local, _ = cluster
+    out = tmp_path / "out"
+    chosen = sorted(cases60.glob("*.toml"))[:3]
+    result = batch(*map(str, chosen), "-o", str(out), "--scheduler",
+                   local.scheduler_address, "--time-limit", "0.000001")
+    assert result.exit_code == 2, result.output
+    assert summary_counts(result.stdout) == {"written": 0, "skipped": 0, "failed": 3}
+    with (out / "_all" / "failures.csv").open() as fh:
+        errors = [r["error"] for r in csv.DictReader(fh)]
+    assert len(errors) == 3
+    assert all("stopped after the time limit of 1e-06 s per beam" in e for e in errors)
+
+
 def test_dask_batch_completes_when_a_worker_is_killed(cluster, cases60: Path,  # type: ignore[no-untyped-def]
                                                       clean60: Path, tmp_path: Path) -> None:
     local, client = cluster

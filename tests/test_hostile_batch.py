@@ -193,6 +193,50 @@ def test_a_beam_past_the_time_limit_is_stopped_and_the_batch_goes_on(
     assert not (tmp_path / "out").exists()
 
 
+def test_the_time_limit_stops_a_beam_run_in_a_thread_as_on_a_cluster(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """A Dask worker runs beams in threads, where no interval timer can be set: the
+    limit still stops the beam (at its next Python step) and records it as failed, and
+    nothing is raised in the thread after the beam is done."""
+    import threading
+    import time
+
+    case = good(tmp_path, "slow")
+
+    def slow_read(path: str) -> None:
+        for _ in range(6000):  # a minute of short steps
+            time.sleep(0.01)
+
+    outcomes: list[object] = []
+
+    def run(limit: float, out: str) -> None:
+        outcomes.append(run_beam((str(case), str(case), "slow", limit, None), out, False))
+        time.sleep(0.3)  # past any limit: a late raise would end the thread here
+        outcomes.append("after")
+
+    monkeypatch.setattr(api, "load_case", slow_read)
+    worker = threading.Thread(target=run, args=(0.2, str(tmp_path / "out")))
+    worker.start()
+    worker.join()
+    assert outcomes[0].error == f"{case}: stopped after the time limit of 0.2 s per " \
+                                "beam (--time-limit)"
+    assert outcomes[1] == "after"
+    assert not (tmp_path / "out").exists()
+    from envelope.batch.worker import _time_limit
+
+    def quick() -> None:  # a block done well inside its limit: no raise comes later
+        with _time_limit(0.2):
+            outcomes.append("done")
+        time.sleep(0.4)
+        outcomes.append("after")
+
+    outcomes.clear()
+    worker = threading.Thread(target=quick)
+    worker.start()
+    worker.join()
+    assert outcomes == ["done", "after"]
+
+
 def test_the_time_limit_option_fails_each_beam_that_exceeds_it(tmp_path: Path) -> None:
     """End to end on the local pool: no beam can be read, analysed and written in a
     microsecond, so every beam is stopped and listed; the batch still ends normally."""

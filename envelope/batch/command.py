@@ -38,7 +38,7 @@ def _limits(max_memory: float | None, max_seconds: float | None) -> object:
               help="Convert the combined OUT/_all tables to one unit system  "
                    "[default: each row in its beam's own, named per row]")
 @click.option("--time-limit", type=click.FloatRange(min=0, min_open=True), metavar="SECONDS",
-              help="Stop a beam that runs longer and record it as failed (local pool). "
+              help="Stop a beam that runs longer and record it as failed. "
                    " [default: no limit]")
 @click.option("--max-memory", type=click.FloatRange(min=0, min_open=True), metavar="GIB",
               help="Refuse a beam estimated to need more memory  [default: half of the "

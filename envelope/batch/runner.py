@@ -61,7 +61,7 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
     the paths, the ids or the cluster are wrong; failures of single beams are in the
     summary and in ``OUT/_all/failures.csv``, among them the paths that are not regular
     files (FIFOs, devices, link loops, dangling links).  A beam that runs longer than
-    ``time_limit`` seconds is stopped and recorded as failed (local pool only); one whose
+    ``time_limit`` seconds is stopped and recorded as failed (local pool or cluster); one whose
     estimated work exceeds ``work_limits`` (:class:`envelope.limits.WorkLimits`) is
     refused.  Nothing
     is written or deleted through a symbolic link inside OUT.  Progress goes to

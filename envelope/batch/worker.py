@@ -54,12 +54,18 @@ class TimeLimitExceeded(Exception):
 
 @contextmanager
 def _time_limit(seconds: float | None) -> Iterator[None]:
-    """Raise :class:`TimeLimitExceeded` in this thread after ``seconds`` (an interval
-    timer; only in a process's main thread, as in the local pool's workers: a cluster
-    runs beams in threads, where its own limits apply)."""
-    if not seconds or threading.current_thread() is not threading.main_thread() \
-            or not hasattr(signal, "setitimer"):
+    """Raise :class:`TimeLimitExceeded` in this thread after ``seconds``: by an interval
+    timer in a process's main thread (the local pool's workers), else (a Dask worker
+    runs beams in threads) by a timer thread that raises it asynchronously in this
+    one, which takes effect the next time the beam's Python code runs (between numpy
+    operations, so a single long library call finishes first)."""
+    if not seconds:
         yield
+        return
+    if threading.current_thread() is not threading.main_thread() \
+            or not hasattr(signal, "setitimer"):
+        with _thread_time_limit(seconds):
+            yield
         return
 
     def expired(signum: int, frame: object) -> None:
@@ -72,6 +78,35 @@ def _time_limit(seconds: float | None) -> Iterator[None]:
     finally:
         signal.setitimer(signal.ITIMER_REAL, 0)
         signal.signal(signal.SIGALRM, previous)
+
+
+@contextmanager
+def _thread_time_limit(seconds: float) -> Iterator[None]:
+    """:func:`_time_limit` for a thread other than the main one.  The timer raises only
+    while the block runs (a lock and a flag), and a raise that has not yet reached the
+    thread when the block ends is withdrawn, so nothing escapes past the block."""
+    import ctypes
+
+    ident = ctypes.c_ulong(threading.get_ident())
+    raise_in = ctypes.pythonapi.PyThreadState_SetAsyncExc
+    lock = threading.Lock()
+    running = [True]
+
+    def expired() -> None:
+        with lock:
+            if running[0]:
+                raise_in(ident, ctypes.py_object(TimeLimitExceeded))
+
+    timer = threading.Timer(seconds, expired)
+    timer.daemon = True
+    timer.start()
+    try:
+        yield
+    finally:
+        with lock:
+            running[0] = False
+            raise_in(ident, None)  # withdraw one not yet delivered
+        timer.cancel()
 
 
 def _clear_results(folder: Path) -> None:
