@@ -108,11 +108,20 @@ def _reduce_rows(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
     return None if cs.is_empty else reduce(R, cs, moving=moving)
 
 
+def left_out_of_explicit_cases(beam: Beam) -> tuple[str, ...]:
+    """The moving cases (concentrated loads, trains) that the explicit cases of
+    stations.parquet leave out: a moving load has no one position for every station (its
+    worst position differs at each), so it is no part of a case; it is in the envelopes
+    and the design values only."""
+    return tuple(ld.case for ld in moving_loads(beam))
+
+
 def explicit_case_blocks(analysis: Analysis) -> Iterator[dict[str, np.ndarray]]:
     """Every explicit case (strength, then service; see ``explicit_cases`` of the case sets) at
     every station, in blocks of stations, long format: case index (rows of
     cases.parquet with ``all_cases``), span (1-based), x, x_span, shear, moment,
-    rotation and deflection in output units.  One block is in memory at a time."""
+    rotation and deflection in output units.  One block is in memory at a time.  The
+    moving cases are left out (:func:`left_out_of_explicit_cases`)."""
     solved = analysis.solved
     beam = solved.beam
     sets = [s for s in (solved.strength, solved.service)]

@@ -21,7 +21,7 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 
 from envelope import config, engine_version
-from envelope.analysis import Analysis, explicit_case_blocks
+from envelope.analysis import Analysis, explicit_case_blocks, left_out_of_explicit_cases
 from envelope.enveloper import CaseSet, Extremes
 from envelope.errors import StaticsError
 from envelope.files import sha256_hex, write_atomic
@@ -351,8 +351,11 @@ STATIONS_SCHEMA = pa.schema([("beam", pa.string()), ("case", pa.int32()),
 
 def write_stations(path: Path, analysis: Analysis, durable: bool = True) -> None:
     """stations.parquet: every explicit case at every station, long format, written in
-    row groups as the blocks are computed, so the whole table is never in memory."""
+    row groups as the blocks are computed, so the whole table is never in memory.  Its
+    ``envelope:left_out`` metadata lists the moving cases the rows leave out."""
     meta = _metadata(analysis)
+    meta[b"envelope:left_out"] = json.dumps(list(left_out_of_explicit_cases(
+        analysis.beam))).encode()
     schema = with_field_units(STATIONS_SCHEMA.with_metadata(meta).empty_table()).schema
     beam_id = analysis.beam.id
 

@@ -75,3 +75,43 @@ def test_explicit_cases_bound_the_envelope_of_code_patterning(tmp_path: Path) ->
                                atol=NEAR_ZERO)
     np.testing.assert_allclose(by_case.min(axis=1), env["moment_min"], rtol=LONG_SUM,
                                atol=NEAR_ZERO)
+
+
+def test_moving_cases_left_out_of_stations_are_said_so(tmp_path: Path) -> None:
+    """A concentrated load has its worst position at each station, so it is no part of
+    an explicit case: stations.parquet leaves it out and says so, in its metadata and
+    on the console; the rows are the fixed cases of each combination."""
+    import beams
+
+    text = beams.beam_text(
+        [6.0, 7.5], ["pinned"] * 3,
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 8.0},
+         {"case": "Q", "type": "concentrated", "spans": "all", "P": 25.0}],
+        section={"E": 30000, "I": 8.0e9}, cases={"D": "dead", "Q": "live"},
+        combinations={"strength": "none", "service": "none", "custom": [
+            {"name": "U", "set": "strength", "factors": {"D": 1.2, "Q": 1.6}}]},
+        top={"id": "crane"})
+    path = tmp_path / "crane.toml"
+    path.write_text(text, encoding="utf-8")
+    result = CliRunner().invoke(main, ["run", str(path), "-o", str(tmp_path / "out"),
+                                       "--no-plots", "--all-cases", "-q"])
+    assert result.exit_code == 0, result.output
+    assert ("note: stations.parquet leaves out the moving case Q: a moving load's worst "
+            "position differs at every station") in result.stderr
+    table = pq.read_table(tmp_path / "out" / "crane" / "stations.parquet")
+    assert json.loads(table.schema.metadata[b"envelope:left_out"]) == ["Q"]
+    a = analyse(load_case(path))
+    per_case = case_responses(a.solved, a.stations)
+    names = [c.name for c in a.beam.cases]
+    np.testing.assert_allclose(np.asarray(table.column("moment")),
+                               per_case.moment[:, names.index("D")] * 1.2,
+                               rtol=LONG_SUM, atol=NEAR_ZERO)
+    # a beam without moving loads: nothing left out, nothing said
+    fixed = tmp_path / "fixed.toml"
+    fixed.write_text(text.replace('type = "concentrated"', 'type = "uniform"')
+                     .replace("P = 25.0", "w = 2.0"), encoding="utf-8")
+    result = CliRunner().invoke(main, ["run", str(fixed), "-o", str(tmp_path / "out2"),
+                                       "--no-plots", "--all-cases", "-q"])
+    assert result.exit_code == 0 and "leaves out" not in result.stderr
+    table = pq.read_table(tmp_path / "out2" / "crane" / "stations.parquet")
+    assert json.loads(table.schema.metadata[b"envelope:left_out"]) == []

@@ -5,10 +5,14 @@ from __future__ import annotations
 import warnings
 from contextlib import ExitStack
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import click
 
 from envelope.commands.common import guard, level, resume_collection, say
+
+if TYPE_CHECKING:
+    from envelope.model import Beam
 
 
 @click.command()
@@ -66,6 +70,8 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
                                      warning.lineno)
         folder = api.write(result, out, plots=plots, all_cases=all_cases or None)
     click.echo(f"wrote {Path(folder)}")
+    if all_cases or beam.output.all_cases:
+        _note_left_out(beam)
     if level() >= 1:
         files = sorted(p.name for p in Path(folder).iterdir() if not p.name.startswith("."))
         say(f"{beam.id}: {beam.n_spans} spans, {result.stations.n} stations, "
@@ -80,3 +86,15 @@ def run(case: str | None, out: str, plots: bool, all_cases: bool | None,
 
 
 run.resumes_collection = True  # type: ignore[attr-defined]  # after its imports (above)
+
+
+def _note_left_out(beam: Beam) -> None:
+    """Say which moving cases stations.parquet leaves out (none: say nothing)."""
+    from envelope.analysis import left_out_of_explicit_cases
+
+    moving = left_out_of_explicit_cases(beam)
+    if moving:
+        click.echo(f"note: stations.parquet leaves out the moving case"
+                   f"{'s' if len(moving) > 1 else ''} {', '.join(moving)}: a moving "
+                   "load's worst position differs at every station, so it is in the "
+                   "envelopes and design values only", err=True)
