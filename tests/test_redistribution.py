@@ -18,20 +18,18 @@ References, named beside each check:
 
 from __future__ import annotations
 
-import tomllib
-
 import numpy as np
 import pytest
 
 from envelope import config
 from envelope import redistribution as rd
 from envelope.analysis import analyse
-from envelope.casefile import parse_case
 from envelope.combinations import build as build_combinations
 from envelope.errors import CaseError
 from envelope.model import Beam
 from envelope.sizing import size
 
+import beams
 import reference as ref
 from tolerances import ROUND_OFF, SOLVE
 
@@ -41,33 +39,21 @@ EN = {"material": "concrete", "code": "en1992-1-1", "b": 300, "h": 600,
       "cover_to_bar_centre": 60, "fc": 30, "fy": 500}
 
 
-def _value(v: object) -> str:
-    if isinstance(v, list | tuple):
-        return "[" + ", ".join(_value(x) for x in v) + "]"
-    return f'"{v}"' if isinstance(v, str) else repr(v)
-
-
 def beam(spans: tuple[float, ...], dead: float, live: float = 0.0,
          design: dict | None = None, supports: tuple[str, ...] | None = None,
          method: str = "code") -> Beam:
     """A concrete beam (SI) under uniform dead and (patterned) live load on every span,
     one strength combination U = 1.0 D + 1.0 L and the characteristic service set."""
-    sup = supports or ("pinned",) * (len(spans) + 1)
-    parts = ['units = "SI"', "[section]\nE = 30000\nI = 5.4e9"]
-    parts += [f"[[spans]]\nlength = {L!r}" for L in spans]
-    parts += [f'[[supports]]\ntype = "{s}"' for s in sup]
-    parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }')
-    parts.append(f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {dead!r}')
+    loads = [{"case": "D", "type": "uniform", "spans": "all", "w": dead}]
     if live:
-        parts.append(f'[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = {live!r}')
-    parts.append(f'[patterning]\nmethod = "{method}"')
-    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n'
-                 '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
-                 'factors = { D = 1.0, L = 1.0 }')
-    if design is not None:
-        parts.append("[design]\n" + "\n".join(f"{k} = {_value(v)}"
-                                              for k, v in design.items()))
-    return parse_case(tomllib.loads("\n\n".join(parts) + "\n"), "t.toml")
+        loads.append({"case": "L", "type": "uniform", "spans": "all", "w": live})
+    return beams.parse_text(beams.beam_text(
+        list(spans), list(supports or ("pinned",) * (len(spans) + 1)), loads,
+        section={"E": 30000, "I": 5.4e9}, cases={"D": "dead", "L": "live"},
+        patterning={"method": method},
+        combinations={"strength": "none", "service": "characteristic", "custom": [
+            {"name": "U", "set": "strength", "factors": {"D": 1.0, "L": 1.0}}]},
+        design=design), "t.toml")
 
 
 def _moment_at(a, span: int, x: float) -> tuple[float, float]:

@@ -30,6 +30,8 @@ from envelope.sizing import deflection, shapes, size, steel_aisc
 from envelope.sizing.sections import parse_sections
 from envelope.sizing.table import sizing_summary, sizing_table
 
+import beams
+
 REPO = Path(__file__).resolve().parents[1]
 
 # --------------------------------------------------------------------------- helpers
@@ -40,39 +42,30 @@ US_CONCRETE = {"material": "concrete", "code": "aci318-19", "b": 12, "h": 24,
                "cover_to_bar_centre": 2.5, "fc": 4, "fy": 60}
 
 
-def _value(v: object) -> str:
-    if isinstance(v, dict):
-        return "{ " + ", ".join(f"{k} = {_value(x)}" for k, x in v.items()) + " }"
-    if isinstance(v, str):
-        return f'"{v}"'
-    return repr(v)
-
-
 def case_text(design: dict, *, units: str = "SI", spans: tuple[float, ...] = (8.0,),
               widths: tuple[float, ...] | None = None, dead: float = 30.0,
               live: float = 0.0, point: tuple[int, float, float] | None = None,
-              section: str = "E = 30000\nI = 5.4e9", strength: str | None = None) -> str:
+              section: dict | None = None, strength: dict | None = None,
+              supports: tuple[str, ...] | None = None) -> str:
     """A case file: equal uniform dead (and live) load on every span, knife-edge pinned
-    supports (or the given widths), strength set = one custom combination (1.0 D + 1.0 L
-    unless ``strength`` gives the factors), characteristic service set."""
-    sup = widths or (0.0,) * (len(spans) + 1)
-    parts = [f'units = "{units}"', "[section]", section]
-    parts += [f"[[spans]]\nlength = {L!r}" for L in spans]
-    parts += [f'[[supports]]\ntype = "pinned"\nwidth = {w!r}' if w else
-              '[[supports]]\ntype = "pinned"' for w in sup]
-    parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }')
-    parts.append(f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {dead!r}')
+    supports (or the given widths and types), strength set = one custom combination
+    (1.0 D + 1.0 L unless ``strength`` gives the factors), characteristic service set."""
+    n = len(spans) + 1
+    loads: list[dict[str, object]] = [{"case": "D", "type": "uniform", "spans": "all",
+                                       "w": dead}]
     if live:
-        parts.append(f'[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = {live!r}')
+        loads.append({"case": "L", "type": "uniform", "spans": "all", "w": live})
     if point is not None:
         span, P, at = point
-        parts.append(f'[[loads]]\ncase = "D"\ntype = "point"\nspans = {span}\nP = {P!r}\n'
-                     f"at = {at!r}")
-    factors = strength or "{ D = 1.0, L = 1.0 }"
-    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n'
-                 f'[[combinations.custom]]\nname = "U"\nset = "strength"\nfactors = {factors}')
-    parts.append("[design]\n" + "\n".join(f"{k} = {_value(v)}" for k, v in design.items()))
-    return "\n\n".join(parts) + "\n"
+        loads.append({"case": "D", "type": "point", "spans": span, "P": P, "at": at})
+    sup = [{"type": t, **({"width": w} if w else {})}
+           for t, w in zip(supports or ("pinned",) * n, widths or (0.0,) * n, strict=True)]
+    return beams.beam_text(
+        list(spans), sup, loads, units=units,
+        section=section or {"E": 30000, "I": 5.4e9}, cases={"D": "dead", "L": "live"},
+        combinations={"strength": "none", "service": "characteristic", "custom": [
+            {"name": "U", "set": "strength", "factors": strength or {"D": 1.0, "L": 1.0}}]},
+        design=design)
 
 
 def run(text: str, source: str = "test.toml") -> tuple[Analysis, dict[str, np.ndarray]]:
@@ -291,7 +284,7 @@ def test_end_to_end_flexure_si_and_us_units() -> None:
     assert si["x_span"][i] == pytest.approx(4.0, rel=1e-6)
     assert si["as_required"][i] == pytest.approx(rect_as(240e6, 300, 540, 30, 420), rel=1e-9)
     us_text = case_text(US_CONCRETE, units="US", spans=(24.0,), dead=2.5,
-                        section="E = 3600\nI = 13824")
+                        section={"E": 3600, "I": 13824})
     _, us = run(us_text)
     i = row(us, 1, "span")
     assert us["moment_design"][i] == pytest.approx(180.0, rel=1e-9)
@@ -477,7 +470,7 @@ def test_en_end_to_end_si_and_us() -> None:
     # US input is converted to mm and MPa and back to in^2: 12 x 24 in, 4 ksi, 72.5 ksi
     us = {**US_CONCRETE, "code": "en1992-1-1", "fy": 72.5}
     _, cols = run(case_text(us, units="US", spans=(24.0,), dead=2.5,
-                            section="E = 3600\nI = 13824"))
+                            section={"E": 3600, "I": 13824}))
     i = row(cols, 1, "span")
     M = 180 * 4448.2216152605 * 304.8  # kip*ft -> N*mm
     r = en.flexure(M, 12 * 25.4, 21.5 * 25.4, 4 * 6.894757293168361,
@@ -506,7 +499,7 @@ def _steel_us(tmp: Path, sections: str | None, section: dict | None = None) -> s
     else:
         design["section"] = section
     return case_text(design, units="US", spans=(24.0,), dead=0.5, live=1.5,
-                     section="E = 29000\nI = 500", strength="{ D = 1.2, L = 1.6 }")
+                     section={"E": 29000, "I": 500}, strength={"D": 1.2, "L": 1.6})
 
 
 def _steel_needs() -> tuple[float, float, float]:
@@ -560,7 +553,7 @@ def test_given_steel_section_si_utilisation_and_message(tmp_path: Path) -> None:
     design = {"material": "steel", "code": "aisc360-22", "Fy": 345,
               "section": {"name": "my-beam", "Zx": 5.0e5, "Ix": 4.0e8, "Aw": 3000}}
     _, cols = run(case_text(design, spans=(6.0,), dead=40.0,
-                            section="E = 200000\nI = 4.0e8"))
+                            section={"E": 200000, "I": 4.0e8}))
     i = row(cols, 1, "span")
     zx = 180e6 / (0.9 * 345)
     assert cols["zx_required"][i] == pytest.approx(zx, rel=1e-9)
@@ -602,7 +595,7 @@ def test_deflection_limits_span_over_360_and_240() -> None:
     # (gross) deflections.  8 m, I = 1e9 mm^4, E = 30 000 MPa: 5 w L^4 / (384 E I)
     # (references.md 3.1 [D]).  A concrete beam's status is decided by its cracked
     # deflections (tests/test_concrete_design.py), not by these.
-    text = case_text(SI_CONCRETE, dead=10.0, live=20.0, section="E = 30000\nI = 1.0e9")
+    text = case_text(SI_CONCRETE, dead=10.0, live=20.0, section={"E": 30000, "I": 1.0e9})
     _, cols = run(text)
     i = row(cols, 1, "span")
     EI = 30e6 * 1e-3  # kN*m^2
@@ -619,8 +612,7 @@ def test_deflection_limits_span_over_360_and_240() -> None:
 
 def test_cantilever_ratio_is_taken_over_twice_the_overhang() -> None:
     # footnote to IBC Table 1604.3 [M]: for cantilevers, l = 2 x overhang
-    text = case_text(SI_CONCRETE, spans=(6.0, 2.0)).replace(
-        '[[supports]]\ntype = "pinned"\n\n[cases]', '[[supports]]\ntype = "free"\n\n[cases]')
+    text = case_text(SI_CONCRETE, spans=(6.0, 2.0), supports=("pinned", "pinned", "free"))
     beam = parse_case(tomllib.loads(text), "t.toml")
     np.testing.assert_allclose(deflection.ratio_lengths(beam), [6.0, 4.0])
     out = deflection.check(np.array([6.0]), np.array([0.02]), np.array([0.02]), 360, 240)
@@ -760,7 +752,7 @@ def test_en_design_on_the_carpark_case_with_its_cantilever() -> None:
 def test_without_a_service_set_the_cracked_deflection_is_not_checked_and_says_so() -> None:
     # the live kinds alone are always enveloped (deflection_live, gross); the cracked
     # deflections need the service arrangements, and their absence fails the status
-    text = case_text(SI_CONCRETE, dead=10.0, live=20.0, section="E = 30000\nI = 1.0e9")
+    text = case_text(SI_CONCRETE, dead=10.0, live=20.0, section={"E": 30000, "I": 1.0e9})
     _, cols = run(text.replace('service = "characteristic"', 'service = "none"'))
     i = row(cols, 1, "span")
     assert "total-load deflection not checked" in cols["note"][i]
@@ -772,8 +764,8 @@ def test_without_a_service_set_the_cracked_deflection_is_not_checked_and_says_so
 
 
 def test_sizing_without_strength_combinations_is_a_case_error() -> None:
-    text = case_text(SI_CONCRETE)
-    text = text[:text.index("[[combinations.custom]]")] + text[text.index("[design]"):]
+    text = "\n".join(line for line in case_text(SI_CONCRETE).splitlines()
+                     if not line.startswith("custom = "))  # no strength combination left
     a = analyse(parse_case(tomllib.loads(text), "t.toml"))
     with pytest.raises(CaseError, match=r"t\.toml: design: member sizing needs strength"):
         size(a)
