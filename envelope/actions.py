@@ -28,7 +28,7 @@ from envelope import config
 from envelope.contracted import SpanCases, contract, response
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients
 from envelope.moving import MovingEffect, moving_loads, point_effects
-from envelope.recovery import Points, evaluate_some, make_points
+from envelope.recovery import Points, evaluate_some, make_points, pair_count
 from envelope.search import golden_max, illinois_root
 from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
@@ -335,6 +335,30 @@ def _at_span_ends(pts: Points, n_spans: int) -> tuple[np.ndarray, np.ndarray]:
     return order[bounds[:-1]], order[bounds[1:] - 1]
 
 
+def _least_moment(solved: Solved, points: Points) -> np.ndarray:
+    """The strength envelope's least moment at ``points``: ``envelope_at(...).min``, the
+    same numbers, as the negated largest value of the negated responses (negation is
+    exact in every sum and product), without the largest values, the governing
+    combinations or the texts.  Blocks of rows and the way of summing are those of
+    :func:`envelope.solved.envelopes_at`; with moving loads it is that function."""
+    if moving_loads(solved.beam):
+        face = envelope_at(solved, points, "moment", labels=False)
+        assert face is not None
+        return face.min
+    cs = solved.case_set(QUANTITY_SET["moment"])
+    sol = solved.solution_for(QUANTITY_SET["moment"])
+    mesh, units = solved.mesh, solved.unit_cases
+    step = chunk_rows(units.n_units)
+    sums = points.n > step or units.n_units >= config.KERNEL_MIN_UNITS
+    terms = sums or pair_count(mesh, units, points) > config.KERNEL_MIN_PAIRS
+    out = np.empty(points.n)
+    for lo in range(0, points.n, step):
+        chunk = points.take(slice(lo, lo + step))
+        R = evaluate_some(mesh, units, sol, chunk, ("moment",), kernel=terms)["moment"]
+        out[lo: lo + chunk.n] = -column_max(-R, cs, None, sums).max(axis=1)
+    return out
+
+
 def design_actions(solved: Solved, pts: Points,
                    env: dict[str, Extremes | None]) -> dict[str, np.ndarray]:
     """Per-span design actions in consistent units (the design.parquet columns)."""
@@ -365,10 +389,9 @@ def design_actions(solved: Solved, pts: Points,
         faces = make_points(beam, np.r_[np.arange(n), np.arange(n)],
                             np.r_[geometry.face_left, geometry.face_right],
                             np.r_[np.ones(n, bool), np.zeros(n, bool)])
-        face = envelope_at(solved, faces, "moment", labels=False)
-        assert face is not None
-        out["moment_neg_left_face"] = np.minimum(face.min[:n], 0.0)
-        out["moment_neg_right_face"] = np.minimum(face.min[n:], 0.0)
+        face = _least_moment(solved, faces)
+        out["moment_neg_left_face"] = np.minimum(face[:n], 0.0)
+        out["moment_neg_right_face"] = np.minimum(face[n:], 0.0)
     else:
         for key in ("moment_pos", "moment_pos_x", "moment_neg_left", "moment_neg_right",
                     "moment_neg_left_face", "moment_neg_right_face"):

@@ -21,13 +21,13 @@ import numpy as np
 import pytest
 import reference_actions
 
-from envelope.actions import design_actions, refine_max, refine_maxima
+from envelope.actions import _least_moment, design_actions, refine_max, refine_maxima
 from envelope.analysis import analyse
 from envelope.casefile import load_case
 from envelope.contracted import contract, response
 from envelope.recovery import combine, evaluate_combined, evaluate_some, make_points
 from envelope.search import golden_max, illinois_root
-from envelope.solved import envelopes_at
+from envelope.solved import envelope_at, envelopes_at
 
 from beams import make_cases_module
 from tolerances import LONG_SUM
@@ -181,6 +181,17 @@ def test_case_contracted_on_its_span_equals_the_case_contracted_on_the_whole_bea
             keep = np.arange(n) % 7 != 0
             assert np.array_equal(got_nan[keep], got[keep])
     assert several  # some beams have spans of several elements (stretches, hinges)
+
+
+def test_least_face_moment_is_the_envelope_minimum_bit_for_bit(generated: list[Path]) -> None:
+    # the negated maximum of the negated responses: negation is exact in every product
+    # and sum, so the same numbers as the full envelope's minimum
+    for path in generated[:16]:
+        a = analyse(load_case(path))
+        env = envelope_at(a.solved, a.stations, "moment", labels=False)
+        if env is None:
+            continue
+        assert np.array_equal(_least_moment(a.solved, a.stations), env.min), path.name
 
 
 def _peaks(x: np.ndarray, centre: np.ndarray) -> np.ndarray:
