@@ -66,6 +66,14 @@ class _Brackets:
     b: np.ndarray
 
 
+def _starts(v: np.ndarray) -> np.ndarray:
+    """Where each run of equal values of ``v`` starts (True at its first element)."""
+    out = np.empty(v.size, dtype=bool)
+    out[:1] = True
+    np.not_equal(v[1:], v[:-1], out=out[1:])
+    return out
+
+
 def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
                     n_groups: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray,
                                             np.ndarray, np.ndarray]:
@@ -77,19 +85,19 @@ def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
     best_x = np.zeros(n_groups)
     rows = np.arange(span.size)
     first_best = np.lexsort((rows, -values, span))  # per group: largest, first row
-    head = first_best[np.r_[True, span[first_best][1:] != span[first_best][:-1]]]
+    head = first_best[_starts(span[first_best])]
     best[span[head]], best_x[span[head]] = values[head], x_span[head]
 
     order = np.lexsort((rows, x_span, span))
     sp, xs, vals = span[order], x_span[order], values[order]
-    new_span = np.r_[True, sp[1:] != sp[:-1]]
-    first = new_span | np.r_[True, xs[1:] != xs[:-1]]
+    new_span = _starts(sp)
+    first = new_span | _starts(xs)
     starts = np.flatnonzero(first)
     uv = np.maximum.reduceat(vals, starts)  # the largest at each distinct position
     us, ux, opens = sp[starts], xs[starts], new_span[starts]
-    closes = np.r_[opens[1:], True]  # the last position of its group
-    left = np.where(opens, -np.inf, np.r_[-np.inf, uv[:-1]])
-    right = np.where(closes, -np.inf, np.r_[uv[1:], -np.inf])
+    closes = np.concatenate((opens[1:], [True]))  # the last position of its group
+    left = np.where(opens, -np.inf, np.concatenate(([-np.inf], uv[:-1])))
+    right = np.where(closes, -np.inf, np.concatenate((uv[1:], [-np.inf])))
     i = np.flatnonzero((uv > left) & (uv >= right))
     a = np.where(opens[i], ux[i], ux[np.maximum(i - 1, 0)])
     b = np.where(closes[i], ux[i], ux[np.minimum(i + 1, ux.size - 1)])
@@ -124,7 +132,7 @@ def refine_maxima(solved: Solved, pts: Points, requests: Sequence[Request]
     # per (request, span): the first of its largest refined maxima, where above the best
     # station
     order = np.lexsort((np.arange(group.size), -vm, group))
-    head = order[np.r_[True, group[order][1:] != group[order][:-1]]]
+    head = order[_starts(group[order])]
     up = head[vm[head] > best[group[head]]]
     best[group[up]], best_x[group[up]] = vm[up], xm[up]
     return out
@@ -186,9 +194,15 @@ class _Search:
         return xm, vm
 
     def _each_task(self, task: np.ndarray) -> list[tuple[int, np.ndarray]]:
-        """The requests present in ``task`` and their rows, in request order."""
-        return [(t, np.flatnonzero(task == t)) for t in range(len(self.sets))
-                if np.any(task == t)]
+        """The requests present in ``task`` and their rows (ascending), in request
+        order."""
+        count = np.bincount(task, minlength=len(self.sets))
+        present = np.flatnonzero(count).tolist()
+        if len(present) == 1:
+            return [(present[0], np.arange(task.size))]
+        order = np.argsort(task, kind="stable")
+        end = np.cumsum(count).tolist()
+        return [(t, order[end[t] - int(count[t]): end[t]]) for t in present]
 
     def _by_solution(self, task: np.ndarray
                      ) -> list[tuple[Solution, list[tuple[int, np.ndarray]]]]:
@@ -289,7 +303,7 @@ class _Search:
         def slope(xs: np.ndarray) -> np.ndarray:
             return response(gov, xs, deflection, slope=True)
 
-        four = response(gov.take(np.tile(np.arange(n), 4)), np.r_[lo, hi, x, x],
+        four = response(gov.take(np.tile(np.arange(n), 4)), np.concatenate([lo, hi, x, x]),
                         np.tile(deflection, 4), slope=True,
                         right=np.repeat([True, True, False, True], n))
         f_lo, f_hi, left, right = four[:n], four[n: 2 * n], four[2 * n: 3 * n], four[3 * n:]
@@ -313,9 +327,9 @@ class _Search:
         ends = np.flatnonzero(at_end)
         probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
         k = probes.shape[1]
-        both = self.envelope_max(np.r_[task, np.repeat(task[ends], k)],
-                                 np.r_[span, np.repeat(span[ends], k)],
-                                 np.r_[root, probes.ravel()])
+        both = self.envelope_max(np.concatenate([task, np.repeat(task[ends], k)]),
+                                 np.concatenate([span, np.repeat(span[ends], k)]),
+                                 np.concatenate([root, probes.ravel()]))
         value = both[:n]
         if ends.size:
             inside = both[n:].reshape(probes.shape)
