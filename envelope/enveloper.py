@@ -35,6 +35,7 @@ where.
 
 from __future__ import annotations
 
+import itertools
 import json
 from typing import TYPE_CHECKING, Any
 
@@ -410,7 +411,7 @@ def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float
     is_pat = cs.patterned[:, k] != 0.0
     pos = np.where(take, X, 0.0) @ onehot
     any_pos = (take.astype(float) @ onehot) > 0
-    n_pat_cases = len({cs.unit_case_name[u] for u in np.flatnonzero(is_pat)})
+    n_pat_cases = len(set(itertools.compress(cs.unit_case_name, is_pat.tolist())))
     n_pat_in_cell = is_pat.astype(float) @ onehot
     # best single patterned unit per cell where nothing helps (may be negative)
     Xm = np.where(is_pat, X, -np.inf)
