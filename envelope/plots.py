@@ -48,6 +48,7 @@ from envelope.files import write_atomic
 from envelope.glyphs import CachedTextCanvas
 from envelope.raster import figure_png
 from envelope.sketch import decode
+from envelope.ticks import TickLayer, install
 
 if TYPE_CHECKING:
     from matplotlib.typing import RcKeyType
@@ -317,8 +318,10 @@ def _finite(a: Any) -> np.ndarray:
 
 
 def _panel_axes(fig: Figure, heights: Sequence[float], top: float, bottom: float,
-                region: tuple[float, float, float, float] | None = None) -> list[Any]:
-    """Axes stacked top to bottom with the given heights (in), fixed margins."""
+                region: tuple[float, float, float, float] | None = None,
+                fast: bool = False) -> list[Any]:
+    """Axes stacked top to bottom with the given heights (in), fixed margins; with
+    ``fast``, ticks drawn by :mod:`envelope.ticks`."""
     fw, fh = fig.get_size_inches()
     x0, y0, w, h = region or (0.0, 0.0, 1.0, 1.0)
     gap = 0.12
@@ -334,11 +337,11 @@ def _panel_axes(fig: Figure, heights: Sequence[float], top: float, bottom: float
         ax.set_facecolor(PAPER)
         axes.append(ax)
         y -= gap
-    _prepare(axes)
+    _prepare(axes, fast)
     return axes
 
 
-def _prepare(axes: Sequence[Any]) -> None:
+def _prepare(axes: Sequence[Any], fast: bool = False) -> None:
     """What every beam's panels share, set once (a kept figure keeps it): the strip
     without axes, the panels' ticks and spines, x tick labels on the bottom panel only."""
     axes[0].set_facecolor("none")
@@ -355,11 +358,13 @@ def _prepare(axes: Sequence[Any]) -> None:
             # no x label above the bottom panel: a fixed place spares matplotlib
             # measuring the tick labels to put one there at every draw
             ax.xaxis.set_label_coords(0.5, 0.0)
+        if fast:
+            install(ax)
 
 
 #: Figures kept for reuse by :func:`draw_results`, by panel heights: creating the axes
 #: is a third of the cost of a figure, and a batch worker draws many of one layout.
-_KEPT: dict[tuple[float, ...], tuple[Figure, list[Any]]] = {}
+_KEPT: dict[tuple[Any, ...], tuple[Figure, list[Any]]] = {}
 _KEEP_AT_MOST = 4
 
 
@@ -375,10 +380,12 @@ class StyledCanvas(CachedTextCanvas):
 
 
 def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
-                   reuse: bool) -> tuple[Figure, list[Any]]:
+                   reuse: bool, fast: bool = True) -> tuple[Figure, list[Any]]:
     """A figure with its panel axes: a kept one emptied of the last beam's artists when
-    ``reuse`` (the caller saves it and lets it go), else a new one."""
-    key = tuple(round(h, 6) for h in heights)
+    ``reuse`` (the caller saves it and lets it go; ``fast``: drawn by the fast paths,
+    see :func:`draw_results`), else a new one."""
+    fast = fast and reuse
+    key = (*(round(h, 6) for h in heights), fast)
     if reuse and key in _KEPT:
         fig, axes = _KEPT[key]
         for text in list(fig.texts):
@@ -386,7 +393,8 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
         # the key stays: :func:`_key` keeps it where the next beam's is the same
         for a in axes:
             for artist in [*a.lines, *a.patches, *a.texts, *a.collections, *a.artists]:
-                artist.remove()
+                if not isinstance(artist, TickLayer):
+                    artist.remove()
             if a.get_legend() is not None:
                 a.get_legend().remove()
             a.set_ylabel("")
@@ -397,7 +405,7 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
     fig = Figure(figsize=(WIDTH, sum(heights) + top + bottom + 0.12 * len(heights)),
                  facecolor="white", dpi=DPI if reuse else None)
     StyledCanvas(fig)
-    axes = _panel_axes(fig, heights, top, bottom)
+    axes = _panel_axes(fig, heights, top, bottom, fast=fast)
     if reuse:
         if len(_KEPT) >= _KEEP_AT_MOST:
             _KEPT.pop(next(iter(_KEPT)))
@@ -600,13 +608,18 @@ def figure(results: Mapping[str, Mapping], ax: Any = None) -> Figure:
         return _build(results, ax)
 
 
-def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool = True) -> Path:
+def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool = True,
+                 fast: bool = True) -> Path:
     """Draw from :func:`envelope.store.read_results` output to ``path`` (.png, .svg or
-    .pdf by its suffix, with editable text)."""
+    .pdf by its suffix, with editable text), on a figure kept for the next beam.
+
+    ``fast`` draws the parts matplotlib draws slowly its own way (ticks: see
+    :mod:`envelope.ticks`); ``fast=False`` is matplotlib's own drawing, the reference
+    the fast one is compared with in the tests."""
     path = Path(path)
     fmt = path.suffix.lstrip(".").lower() or "png"
     with mpl.rc_context(STYLE):
-        fig = _build(results, None, reuse=True)
+        fig = _build(results, None, reuse=True, fast=fast)
         if fmt == "png" and fig.dpi == DPI:  # the canvas as it is, encoded directly
             write_atomic(path, lambda fh: fh.write(figure_png(fig)), durable)
             return path
@@ -621,7 +634,8 @@ def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool
     return path
 
 
-def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False) -> Figure:
+def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False,
+           fast: bool = False) -> Figure:
     env, design, reac = results["envelope"], results["design"], results["reactions"]
     sizing = results.get("sizing")
     meta = results["meta"]
@@ -652,7 +666,7 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False) 
         heights.append(1.6)
     top, bottom = 0.6, 1.3
     if ax is None:
-        fig, axes = _new_or_reused(heights, top, bottom, reuse)
+        fig, axes = _new_or_reused(heights, top, bottom, reuse, fast)
     else:
         fig = ax.figure
         region = ax.get_position().bounds

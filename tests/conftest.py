@@ -34,6 +34,8 @@ SLOW_TESTS: dict[str, frozenset[str]] = {
         "test_a_bad_schedule_cell_names_sheet_row_and_column_and_the_rest_runs",
         "test_a_failing_section_is_reported_as_failing",
         "test_a_beam_without_design_says_no_check_was_made"}),
+    "test_fast_figure.py": frozenset({
+        "test_fast_figure_of_generated_beams_is_matplotlibs_drawing"}),
     "test_design_actions.py": frozenset({
         "test_deflection_max_and_live_are_the_span_maxima_of_their_envelopes",
         "test_moment_pos_is_the_exact_span_maximum_of_the_envelope"}),

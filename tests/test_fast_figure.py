@@ -1,0 +1,90 @@
+"""The batch figure's fast drawing against matplotlib's own (the slow reference every fast
+path is compared with): for every demo case, generated beams of every kind, moments drawn
+on the tension side, US units, a beam without its sketch and one whose tick numbers need
+an offset, the PNG file drawn the fast way decodes (Pillow) to the pixels of the same
+figure drawn entirely by matplotlib, within the tolerance stated in
+:func:`assert_same_picture`."""
+
+from __future__ import annotations
+
+import io
+from importlib.resources import files
+from pathlib import Path
+
+import numpy as np
+import pytest
+from PIL import Image
+
+import envelope
+from envelope import plots, store, ticks
+
+from beams import make_cases_module
+
+ROOT = Path(__file__).resolve().parents[1]
+CASES = [*sorted((ROOT / "cases").glob("*.toml")),
+         Path(str(files("envelope") / "data" / "demo.toml"))]
+
+
+def _columns(path: Path) -> dict:
+    return store.result_columns(envelope.tables(envelope.analyse(envelope.load_case(str(path)))))
+
+
+def _pixels(cols: dict, folder: Path, fast: bool) -> np.ndarray:
+    path = plots.draw_results(cols, folder / f"{'fast' if fast else 'reference'}.png",
+                              durable=False, fast=fast)
+    return np.asarray(Image.open(io.BytesIO(path.read_bytes())).convert("RGBA")).astype(int)
+
+
+def assert_same_picture(cols: dict, folder: Path) -> None:
+    """The fast drawing is matplotlib's drawing of the same figure: same size, and no
+    pixel differs at all (the fast parts issue the same drawing calls with the same
+    geometry and styles)."""
+    reference = _pixels(cols, folder, fast=False)
+    fast = _pixels(cols, folder, fast=True)
+    assert fast.shape == reference.shape
+    differ = np.abs(fast - reference).max(axis=2)
+    assert np.count_nonzero(differ) == 0, (np.count_nonzero(differ), differ.max())
+
+
+@pytest.mark.parametrize("case", CASES, ids=[c.stem for c in CASES])
+def test_fast_figure_of_every_demo_is_matplotlibs_drawing(case: Path, tmp_path: Path) -> None:
+    assert_same_picture(_columns(case), tmp_path)
+
+
+def test_fast_figure_of_generated_beams_is_matplotlibs_drawing(tmp_path: Path) -> None:
+    """Generated beams (1 to 12 spans, every load type, patterning method and unit
+    system), drawn one after another on the kept figures as a batch worker does."""
+    paths = make_cases_module().make_cases(12, tmp_path / "cases", seed=7)
+    for path in paths:
+        assert_same_picture(_columns(path), tmp_path)
+
+
+def test_fast_figure_with_tension_side_moments_and_no_sketch(tmp_path: Path) -> None:
+    cols = _columns(CASES[0])
+    cols["meta"]["envelope:moment_plot"] = "tension-side"
+    assert_same_picture(cols, tmp_path)
+    del cols["meta"]["envelope:sketch"]
+    assert_same_picture(cols, tmp_path)
+
+
+def test_tick_numbers_with_an_offset_are_drawn_as_matplotlib_draws_them(
+        tmp_path: Path) -> None:
+    """Moments near 1e7 with a small range: the numbers take an offset ("+1e7"), which
+    the tick layer leaves to matplotlib."""
+    cols = _columns(CASES[0])
+    env = cols["envelope"]
+    for name in ("moment_max", "moment_min"):
+        env[name] = np.asarray(env[name], dtype=float) * 1e-3 + 1.0e7
+    assert_same_picture(cols, tmp_path)
+
+
+def test_the_fast_figure_draws_no_tick_objects(tmp_path: Path) -> None:
+    """The kept figure's panels draw their ticks with one layer each: matplotlib's axis
+    artists are hidden, and the y labels are still the axes' own (readable as such)."""
+    plots._KEPT.clear()
+    plots.draw_results(_columns(CASES[0]), tmp_path / "f.png", durable=False)
+    (_, axes), = plots._KEPT.values()
+    for ax in axes[1:]:
+        assert not ax.xaxis.get_visible() and not ax.yaxis.get_visible()
+        assert sum(isinstance(a, ticks.TickLayer) for a in ax.artists) == 1
+    assert axes[1].get_ylabel().startswith("Moment")
