@@ -36,13 +36,14 @@ from weakref import WeakKeyDictionary
 
 import matplotlib as mpl
 import numpy as np
+from matplotlib.collections import LineCollection, PolyCollection
 from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.patches import Polygon, Rectangle
 from matplotlib.path import Path as MPath
 from matplotlib.text import Text
 from matplotlib.ticker import MaxNLocator
-from matplotlib.transforms import Bbox
+from matplotlib.transforms import Affine2D, Bbox
 
 from envelope.files import write_atomic
 from envelope.glyphs import CachedTextCanvas
@@ -179,6 +180,11 @@ class Label:
     clear: float = 0.0
 
 
+#: Value labels: font size (points) and the pale box's margin round the text (a fraction
+#: of the font size).
+_LABEL_SIZE = 7.0
+_LABEL_PAD = 0.08
+
 #: Where a label may go, nearest first: rises (points) above or below its anchor, the
 #: preferred side first at each rise, then shifts along (label widths) at each.
 _RISES = np.array([4.0, 12.0, 22.0, 34.0, 48.0, 64.0, 84.0, 108.0])
@@ -213,17 +219,26 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
     every label placed before it (candidates near to far, preferred side first); a
     label with no free place is left out.  Offsets are in points from the anchor, so the
     layout is the same at any resolution and in every format.  Returns (placed, left
-    out)."""
+    out).
+
+    Each label is a text (an annotation at its anchor); the pale boxes behind the texts
+    and the leader lines to far anchors are one collection each per panel (drawn under
+    every text, the leaders under every box), in points from the anchors as the texts
+    are."""
     renderer = fig.canvas.get_renderer() if hasattr(fig.canvas, "get_renderer") else \
         fig._get_renderer()  # type: ignore[attr-defined]
     px_per_pt = fig.dpi / 72.0
     placed: list[tuple[float, float, float, float]] = []
     frames: dict[Any, Bbox] = {}
+    # per axes: anchors (data), boxes and leaders (points from the anchor)
+    drawn: dict[Any, tuple[list[tuple[float, float]], list[np.ndarray], list[tuple[float, float]],
+                           list[np.ndarray]]] = {}
     dropped = markers = 0
+    pad = _LABEL_PAD * _LABEL_SIZE  # the box beyond the text's extent (points)
     # one text, never drawn, measures every label: its extent at the anchor is the
     # label's (left and bottom aligned, so the anchor is the extent's corner)
-    probe = Text(0.0, 0.0, "", fontsize=7, ha="left", va="bottom", linespacing=1.05,
-                 parse_math=False)
+    probe = Text(0.0, 0.0, "", fontsize=_LABEL_SIZE, ha="left", va="bottom",
+                 linespacing=1.05, parse_math=False)
     probe.set_figure(fig)
     for lab in sorted(labels, key=lambda lb: lb.rank):
         ax = lab.ax
@@ -255,19 +270,36 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
         # where the label goes
         offset = ((best.x0 - ax_x - size.x0) / px_per_pt,
                   (best.y0 - ax_y - size.y0) / px_per_pt)
+        anchors, boxes, starts, leaders = drawn.setdefault(ax, ([], [], [], []))
+        x0, y0 = (best.x0 - ax_x) / px_per_pt - pad, (best.y0 - ax_y) / px_per_pt - pad
+        x1, y1 = (best.x1 - ax_x) / px_per_pt + pad, (best.y1 - ax_y) / px_per_pt + pad
+        anchors.append((lab.x, lab.y))
+        boxes.append(np.array([(x0, y0), (x1, y0), (x1, y1), (x0, y1), (x0, y0)]))
         # a label more than 6 points from its value, up or sideways, draws a leader to
         # it (from the nearest side), so that it never reads as a neighbouring peak's
         dx = max(best.x0 - ax_x, ax_x - best.x1, 0.0)
         dy = max(best.y0 - ax_y, ax_y - best.y1, 0.0)
-        far = max(dx, dy) > 6 * px_per_pt
-        side = 0.5 if dx <= 6 * px_per_pt else (0.0 if ax_x < best.x0 else 1.0)
-        arrow = {"arrowstyle": "-", "color": SOFT, "lw": 0.5, "shrinkA": 0, "shrinkB": 0,
-                 "relpos": (side, 0.0 if best.y0 > ax_y else 1.0)} if far else None
+        if max(dx, dy) > 6 * px_per_pt:
+            side = 0.5 if dx <= 6 * px_per_pt else (0.0 if ax_x < best.x0 else 1.0)
+            edge = best.y0 if best.y0 > ax_y else best.y1
+            starts.append((lab.x, lab.y))
+            leaders.append(np.array([((best.x0 + side * w - ax_x) / px_per_pt,
+                                      (edge - ax_y) / px_per_pt), (0.0, 0.0)]))
         ax.annotate(lab.text, (lab.x, lab.y), xytext=offset, textcoords="offset points",
-                    fontsize=7, color=lab.colour, ha="left", va="bottom", linespacing=1.05,
-                    parse_math=False, zorder=8, gid="value-label", annotation_clip=False,
-                    arrowprops=arrow, bbox={"boxstyle": "square,pad=0.08", "fc": PAPER,
-                                            "ec": "none", "alpha": 0.8})
+                    fontsize=_LABEL_SIZE, color=lab.colour, ha="left", va="bottom",
+                    linespacing=1.05, parse_math=False, zorder=8, gid="value-label",
+                    annotation_clip=False)
+    points = Affine2D().scale(1.0 / 72.0) + fig.dpi_scale_trans
+    for ax, (anchors, boxes, starts, leaders) in drawn.items():
+        ax.add_collection(PolyCollection(
+            boxes, offsets=anchors, offset_transform=ax.transData, transform=points,
+            facecolors=PAPER, edgecolors="none", linewidths=0.0, alpha=0.8, zorder=7.9,
+            clip_on=False, gid="value-label-boxes"), autolim=False)
+        if leaders:
+            ax.add_collection(LineCollection(
+                leaders, offsets=starts, offset_transform=ax.transData, transform=points,
+                colors=SOFT, linewidths=0.5, capstyle="butt", zorder=7.8, clip_on=False,
+                gid="value-label-leaders"), autolim=False)
     return len(labels) - markers - dropped, dropped
 
 
