@@ -143,6 +143,10 @@ TEXT_SUBPIXEL_STEPS = 4
 #: emptied and starts again.
 TEXT_CACHE_ENTRIES = 10_000
 
+#: Keys to the symbols kept as pixels by a batch worker (envelope.stamp): a key is a few
+#: hundred kilobytes, and a few dozen sets of symbols cover most beams of a batch.
+KEY_STAMPS = 32
+
 #: Largest sections table (CSV) read, in bytes: a full catalogue of rolled shapes with
 #: every column is well under 1 MB.
 SECTIONS_MAX_BYTES = 4 * 1024 * 1024

@@ -36,8 +36,10 @@ from weakref import WeakKeyDictionary
 
 import matplotlib as mpl
 import numpy as np
+from matplotlib.axis import GRIDLINE_INTERPOLATION_STEPS
 from matplotlib.collections import LineCollection, PolyCollection
 from matplotlib.figure import Figure
+from matplotlib.legend import Legend
 from matplotlib.lines import Line2D
 from matplotlib.patches import Polygon, Rectangle
 from matplotlib.path import Path as MPath
@@ -49,6 +51,7 @@ from envelope.files import write_atomic
 from envelope.glyphs import CachedTextCanvas
 from envelope.raster import figure_png
 from envelope.sketch import decode
+from envelope.stamp import Stamp
 from envelope.ticks import TickLayer, install
 
 if TYPE_CHECKING:
@@ -438,6 +441,10 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
                  facecolor="white", dpi=DPI if reuse else None)
     StyledCanvas(fig)
     axes = _panel_axes(fig, heights, top, bottom, fast=fast)
+    if fast:
+        stamp = Stamp(zorder=Legend.zorder)
+        fig.add_artist(stamp)
+        _KEY_STAMPS[fig] = stamp
     if reuse:
         if len(_KEPT) >= _KEEP_AT_MOST:
             _KEPT.pop(next(iter(_KEPT)))
@@ -450,12 +457,29 @@ def _style_panel(ax: Any, ylabel: str) -> None:
     ax.set_ylabel(ylabel, fontsize=7.5, color=INK, labelpad=3)
 
 
+def _line(ax: Any, x: Any, y: Any, **style: Any) -> Line2D:
+    """A line (or markers) added to ``ax`` as ``Axes.plot`` adds it, without updating the
+    data limits: every panel's limits are set explicitly, and the update is most of the
+    cost of a small line."""
+    line = Line2D(np.asarray(x, dtype=float), np.asarray(y, dtype=float), **style)
+    ax.add_artist(line)
+    return line
+
+
+def _hline(ax: Any, y: float, **style: Any) -> Line2D:
+    """A line across the axes at ``y`` (data), as ``Axes.axhline`` draws it."""
+    line = _line(ax, [0.0, 1.0], [y, y], transform=ax.get_yaxis_transform(which="grid"),
+                 **style)
+    line.get_path()._interpolation_steps = GRIDLINE_INTERPOLATION_STEPS  # type: ignore[attr-defined]
+    return line
+
+
 def _envelope(ax: Any, x: np.ndarray, hi: np.ndarray, lo: np.ndarray, pixels: int) -> None:
     xt, ht, lt = _thin(x, hi, lo, pixels)
     ax.fill_between(xt, lt, ht, color=FILL, lw=0, zorder=1)
-    ax.plot(xt, ht, color=MAX_COLOUR, lw=1.2, zorder=3)
-    ax.plot(xt, lt, color=MIN_COLOUR, lw=1.2, zorder=3)
-    ax.axhline(0.0, color=INK, lw=0.6, zorder=2)
+    _line(ax, xt, ht, color=MAX_COLOUR, lw=1.2, zorder=3)
+    _line(ax, xt, lt, color=MIN_COLOUR, lw=1.2, zorder=3)
+    _hline(ax, 0.0, color=INK, lw=0.6, zorder=2)
 
 
 def _limits(ax: Any, values: Sequence[np.ndarray], flip: bool = False,
@@ -471,9 +495,8 @@ def _limits(ax: Any, values: Sequence[np.ndarray], flip: bool = False,
 def _support_lines(ax: Any, joint_x: np.ndarray) -> None:
     """Dotted lines at the supports, all in one artist (x in data, y across the axes)."""
     n = joint_x.size
-    ax.plot(np.repeat(joint_x, 3), np.tile([0.0, 1.0, np.nan], n), color="#d8d2c6", lw=0.6,
-            ls=(0, (2, 2)), zorder=0, transform=ax.get_xaxis_transform(), scalex=False,
-            scaley=False)
+    _line(ax, np.repeat(joint_x, 3), np.tile([0.0, 1.0, np.nan], n), color="#d8d2c6", lw=0.6,
+          ls=(0, (2, 2)), zorder=0, transform=ax.get_xaxis_transform())
 
 
 def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Sequence[str],
@@ -481,20 +504,20 @@ def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Se
     """The beam strip; returns the symbols it used (for the key)."""
     used: list[str] = []
     total = float(joint_x[-1]) if joint_x.size else 1.0
-    ax.plot([0.0, total], [0.0, 0.0], color=INK, lw=2.6, solid_capstyle="butt", zorder=4)
+    _line(ax, [0.0, total], [0.0, 0.0], color=INK, lw=2.6, solid_capstyle="butt", zorder=4)
     ax.set_ylim(-1.3, 0.45 + max(n_lanes, 1) * 1.0)
     supports = (sk or {}).get("supports") or [{"type": k, "width": 0.0} for k in kinds]
     for j, (xj, sup) in enumerate(zip(joint_x, supports, strict=False)):
         width = float(sup.get("width") or 0.0)
         if width > 0.0:
-            ax.add_patch(Rectangle((xj - width / 2, -0.22), width, 0.44, fc="#e9dfcc",
+            ax.add_artist(Rectangle((xj - width / 2, -0.22), width, 0.44, fc="#e9dfcc",
                                    ec=FACE_COLOUR, lw=0.6, zorder=3))
             if "support face" not in used:
                 used.append("support face")
         marker = _support_marker(sup)
         if marker is not None:
             path, name = marker
-            ax.plot([xj], [-0.16], marker=path, markersize=20, color=INK, mew=1.1,
+            _line(ax, [xj], [-0.16], marker=path, markersize=20, color=INK, mew=1.1,
                     mfc="white", ls="none", zorder=5, clip_on=False)
             if name not in used:
                 used.append(name)
@@ -506,7 +529,7 @@ def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Se
         ax.text(0.5 * (joint_x[j] + joint_x[j + 1]), -0.55, f"span {j + 1}", ha="center",
                 va="center", fontsize=7, color=SOFT, parse_math=False)
     for xh in (sk or {}).get("hinges", []) or []:
-        ax.plot([xh], [0.0], marker="o", markersize=5, mfc="white", mec=INK, mew=1.0,
+        _line(ax, [xh], [0.0], marker="o", markersize=5, mfc="white", mec=INK, mew=1.0,
                 ls="none", zorder=6)
         if "hinge" not in used:
             used.append("hinge")
@@ -575,7 +598,7 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
                 a, b = x0 + it.get("start", 0.0), x0 + it.get("end", 0.0)
                 h0 = 0.75 * it.get("w_start", 0.0) / w_max
                 h1 = 0.75 * it.get("w_end", 0.0) / w_max
-                ax.add_patch(Polygon([(a, base), (a, base + h0), (b, base + h1), (b, base)],
+                ax.add_artist(Polygon([(a, base), (a, base + h0), (b, base + h1), (b, base)],
                                      closed=True, fc=colour, alpha=0.28, ec=colour, lw=0.7,
                                      zorder=2))
             elif kind == "point" and x0 is not None and p_max > 0:
@@ -588,7 +611,7 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
                     "shrinkB": 0, "mutation_scale": 7}, annotation_clip=False)
             elif kind == "moment" and x0 is not None:
                 at = x0 + it.get("at", 0.0)
-                ax.plot([at], [base + 0.35], marker=COIL, markersize=11, color=colour,
+                _line(ax, [at], [base + 0.35], marker=COIL, markersize=11, color=colour,
                         mew=1.0, mfc="none", ls="none", zorder=5)
                 if "applied moment" not in used:
                     used.append("applied moment")
@@ -824,7 +847,7 @@ def _moment_labels(ax: Any, labels: list[Label], env: Columns, design: Columns,
             if faces and width > 0.0:
                 value, direction = min(candidates, key=lambda c: c[0])
                 xf = xj + direction * width / 2
-                ax.plot([xf], [value], marker="|", markersize=7, color=FACE_COLOUR, mew=1.2,
+                _line(ax, [xf], [value], marker="|", markersize=7, color=FACE_COLOUR, mew=1.2,
                         ls="none", zorder=6)
                 faces_drawn = True
                 labels.append(Label(ax, xf, value, f"{_num(value)} at face" +
@@ -898,8 +921,8 @@ def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Colum
         d = float(np.nanmax(dmax[near]))
         if not np.isfinite(d):
             continue
-        ax.plot([joint_x[j], joint_x[j]], [0.0, d], color=INK, lw=0.7, ls=":", zorder=5)
-        ax.plot([joint_x[j]], [d], marker=symbol, markersize=18 if spring else 12, color=INK,
+        _line(ax, [joint_x[j], joint_x[j]], [0.0, d], color=INK, lw=0.7, ls=":", zorder=5)
+        _line(ax, [joint_x[j]], [d], marker=symbol, markersize=18 if spring else 12, color=INK,
                 mew=1.0, mfc="white", ls="none", zorder=6)
         what = "spring settles" if spring else "support settles"
         labels.append(Label(ax, joint_x[j], d, "", False, rank=-1, clear=6.0 if spring
@@ -910,7 +933,7 @@ def _deflection_labels(ax: Any, labels: list[Label], env: Columns, design: Colum
     # the deflection of the member sizing chose, where it reports one, labelled
     sx, sd, what = sized_deflection(sizing)
     if sx.size:
-        ax.plot(sx, sd, marker="D", markersize=4, color=SIZED_COLOUR, ls="none", zorder=6)
+        _line(ax, sx, sd, marker="D", markersize=4, color=SIZED_COLOUR, ls="none", zorder=6)
         for xs, ds in zip(sx, sd, strict=True):
             labels.append(Label(ax, float(xs), float(ds), "", False, rank=-1, clear=3.0))
             labels.append(Label(ax, float(xs), float(ds), f"{_num(ds, 2)} {what}", False,
@@ -1053,49 +1076,69 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
 
 #: The names in each key drawn (a kept figure keeps its key while they stay the same).
 _KEY_NAMES: WeakKeyDictionary[Any, list[str]] = WeakKeyDictionary()
+#: The key of each kept figure drawn the fast way: kept as pixels per set of symbols.
+_KEY_STAMPS: WeakKeyDictionary[Any, Stamp] = WeakKeyDictionary()
+
+#: The symbols a key can show, in the order it shows them (line styles of the handles).
+_SYMBOLS: dict[str, dict[str, Any]] = {
+    "pinned": {"marker": PIN, "mfc": "white"},
+    "fixed": {"marker": FIXED},
+    "vertical spring": {"marker": SPRING, "mfc": "white"},
+    "rotational spring": {"marker": COIL, "mfc": "none"},
+    "hinge": {"marker": "o", "mfc": "white", "markersize": 5},
+    "support face": {"marker": "s", "mfc": "#e9dfcc", "mec": FACE_COLOUR},
+    "value at support face": {"marker": "|", "color": FACE_COLOUR},
+    "applied moment": {"marker": COIL, "mfc": "none", "color": CASE_COLOURS[0]},
+    "settlement": {"marker": "v", "color": CASE_COLOURS[0]},
+    "moving load": {"marker": "$\\leftrightarrow$", "color": CASE_COLOURS[0]},
+    "spring settlement": {"marker": SPRING, "mfc": "white"},
+    "deflection, sized section": {"marker": "D", "color": SIZED_COLOUR, "markersize": 4},
+}
+
+
+def _key_names(used: Sequence[str]) -> list[str]:
+    """The key's entries: the envelope's two lines, then the symbols used in the order
+    of :data:`_SYMBOLS` (the same symbols always give the same key), then free ends."""
+    names = ["envelope maximum", "envelope minimum"]
+    names += [name for name in _SYMBOLS if name in used]
+    if "free end" in used:
+        names.append("free end: no symbol")
+    return names
+
+
+def _key_legend(fig: Figure, names: Sequence[str], add: bool) -> Any:
+    """The key as a legend in one row under the panels (added to ``fig`` when ``add``)."""
+    handles = [Line2D([], [], color=MAX_COLOUR, lw=1.4), Line2D([], [], color=MIN_COLOUR,
+                                                                lw=1.4)]
+    for name in names[2:]:
+        if name in _SYMBOLS:
+            style: dict[str, Any] = {"color": INK, "markersize": 9, "ls": "none",
+                                     "mew": 1.0, **_SYMBOLS[name]}
+            handles.append(Line2D([], [], **style))
+        else:
+            handles.append(Line2D([], [], ls="none"))
+    options: dict[str, Any] = {
+        "loc": "lower left", "ncol": min(len(names), 7), "fontsize": 6.5, "frameon": False,
+        "bbox_to_anchor": (_LEFT / fig.get_figwidth() - 0.01, 0.45 / fig.get_figheight()),
+        "handlelength": 1.6, "columnspacing": 1.2, "borderaxespad": 0.0}
+    if add:
+        return fig.legend(handles, names, **options)
+    return Legend(fig, handles, list(names), **options)
 
 
 def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str]) -> None:
-    """A key to the symbols drawn, in one row under the panels."""
-    handles = [Line2D([], [], color=MAX_COLOUR, lw=1.4), Line2D([], [], color=MIN_COLOUR,
-                                                                lw=1.4)]
-    names = ["envelope maximum", "envelope minimum"]
-    symbols: dict[str, dict[str, Any]] = {
-        "pinned": {"marker": PIN, "mfc": "white"},
-        "fixed": {"marker": FIXED},
-        "vertical spring": {"marker": SPRING, "mfc": "white"},
-        "rotational spring": {"marker": COIL, "mfc": "none"},
-        "hinge": {"marker": "o", "mfc": "white", "markersize": 5},
-        "support face": {"marker": "s", "mfc": "#e9dfcc", "mec": FACE_COLOUR},
-        "value at support face": {"marker": "|", "color": FACE_COLOUR},
-        "applied moment": {"marker": COIL, "mfc": "none", "color": CASE_COLOURS[0]},
-        "settlement": {"marker": "v", "color": CASE_COLOURS[0]},
-        "moving load": {"marker": "$\\leftrightarrow$", "color": CASE_COLOURS[0]},
-        "spring settlement": {"marker": SPRING, "mfc": "white"},
-        "deflection, sized section": {"marker": "D", "color": SIZED_COLOUR,
-                                      "markersize": 4},
-    }
-    seen = set()
-    for name in used:
-        if name in symbols and name not in seen:
-            seen.add(name)
-            style: dict[str, Any] = {"color": INK, "markersize": 9, "ls": "none",
-                                     "mew": 1.0, **symbols[name]}
-            handles.append(Line2D([], [], **style))
-            names.append(name)
-    if "free end" in used:
-        names.append("free end: no symbol")
-        handles.append(Line2D([], [], ls="none"))
-    # a kept figure keeps its key while the symbols are the same (most beams of a batch)
-    if [_KEY_NAMES.get(legend) for legend in fig.legends] != [names]:
+    """A key to the symbols drawn, in one row under the panels, and a note on units."""
+    names = _key_names(used)
+    stamp = _KEY_STAMPS.get(fig)
+    if stamp is not None:
+        # the fast way: built and drawn once per set of symbols, then pasted
+        stamp.show((tuple(names), tuple(fig.get_size_inches()), fig.dpi),
+                   lambda: _key_legend(fig, names, add=False))
+    elif [_KEY_NAMES.get(legend) for legend in fig.legends] != [names]:
+        # a kept figure keeps its key while the symbols are the same
         for legend in list(fig.legends):
             legend.remove()
-        legend = fig.legend(handles, names, loc="lower left", ncol=min(len(names), 7),
-                            fontsize=6.5, frameon=False,
-                            bbox_to_anchor=(_LEFT / fig.get_figwidth() - 0.01,
-                                            0.45 / fig.get_figheight()),
-                            handlelength=1.6, columnspacing=1.2, borderaxespad=0.0)
-        _KEY_NAMES[legend] = list(names)
+        _KEY_NAMES[_key_legend(fig, names, add=True)] = list(names)
     note = (f"Units {units.get('length', '')}, {units.get('force', '')}, "
             f"{units.get('moment', '')}, deflection {units.get('deflection', '')}.  "
             "Labels: value, governing combination, loaded spans; CL at the centreline.")

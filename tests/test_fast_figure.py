@@ -16,7 +16,7 @@ import pytest
 from PIL import Image
 
 import envelope
-from envelope import plots, store, ticks
+from envelope import plots, stamp, store, ticks
 
 from beams import make_cases_module
 
@@ -38,12 +38,14 @@ def _pixels(cols: dict, folder: Path, fast: bool) -> np.ndarray:
 def assert_same_picture(cols: dict, folder: Path) -> None:
     """The fast drawing is matplotlib's drawing of the same figure: same size, and no
     pixel differs at all (the fast parts issue the same drawing calls with the same
-    geometry and styles)."""
+    geometry and styles, or paste the pixels such calls gave).  Drawn twice, so that
+    the second time the key is pasted from kept pixels."""
     reference = _pixels(cols, folder, fast=False)
-    fast = _pixels(cols, folder, fast=True)
-    assert fast.shape == reference.shape
-    differ = np.abs(fast - reference).max(axis=2)
-    assert np.count_nonzero(differ) == 0, (np.count_nonzero(differ), differ.max())
+    for _ in range(2):
+        fast = _pixels(cols, folder, fast=True)
+        assert fast.shape == reference.shape
+        differ = np.abs(fast - reference).max(axis=2)
+        assert np.count_nonzero(differ) == 0, (np.count_nonzero(differ), differ.max())
 
 
 @pytest.mark.parametrize("case", CASES, ids=[c.stem for c in CASES])
@@ -88,3 +90,28 @@ def test_the_fast_figure_draws_no_tick_objects(tmp_path: Path) -> None:
         assert not ax.xaxis.get_visible() and not ax.yaxis.get_visible()
         assert sum(isinstance(a, ticks.TickLayer) for a in ax.artists) == 1
     assert axes[1].get_ylabel().startswith("Moment")
+
+
+def test_the_key_is_pasted_from_kept_pixels_only_over_the_same_background(
+        tmp_path: Path) -> None:
+    """A second beam with the same symbols pastes the key's pixels; the key over any
+    other background (here the paper darkened under it) is drawn again, as matplotlib
+    draws it, so a paste never leaves another picture's pixels behind."""
+    cols = _columns(CASES[0])
+    stamp._STAMPS.clear()
+    first = _pixels(cols, tmp_path, fast=True)
+    assert len(stamp._STAMPS) == 1
+    ((x0, y0, background, pixels, changed),) = stamp._STAMPS.values()
+    assert changed.any() and not changed.all()
+    drawn = []
+    original = plots.Legend.draw
+    try:
+        plots.Legend.draw = lambda self, renderer: drawn.append(self) or original(
+            self, renderer)
+        again = _pixels(cols, tmp_path, fast=True)
+        assert not drawn and np.array_equal(first, again)
+        background[...] = 0   # as if something else had been drawn under the key
+        _pixels(cols, tmp_path, fast=True)
+        assert drawn
+    finally:
+        plots.Legend.draw = original
