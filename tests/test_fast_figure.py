@@ -101,7 +101,7 @@ def test_the_key_is_pasted_from_kept_pixels_only_over_the_same_background(
     stamp._STAMPS.clear()
     first = _pixels(cols, tmp_path, fast=True)
     assert len(stamp._STAMPS) == 1
-    ((x0, y0, background, pixels, changed),) = stamp._STAMPS.values()
+    ((_, _, background, _, changed),) = stamp._STAMPS.values()
     assert changed.any() and not changed.all()
     drawn = []
     original = plots.Legend.draw
