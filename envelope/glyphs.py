@@ -17,7 +17,9 @@ against matplotlib's own layout and extents in tests/test_glyphs.py); any other 
 (another font, a character outside that set, the f-ligatures ff, fi, fl) takes
 matplotlib's own layout, kept per string.  Level and upright (y label) lines are drawn
 so; text at another angle, math text or text with font features as matplotlib draws it.
-Only the raster canvas changes: SVG and PDF keep their text as text.
+Only the raster canvas changes: SVG and PDF keep their text as text.  The figure's own
+texts (:class:`KeptText`, :class:`KeptAnnotation`) also keep their layout per string
+and style on this canvas.
 """
 
 from __future__ import annotations
@@ -28,6 +30,7 @@ from typing import Any
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg, RendererAgg, get_hinting_flag
 from matplotlib.font_manager import fontManager, get_font
+from matplotlib.text import Annotation, Text
 
 from envelope.config import TEXT_CACHE_ENTRIES, TEXT_SUBPIXEL_STEPS
 
@@ -304,3 +307,36 @@ class CachedTextCanvas(FigureCanvasAgg):
             self.renderer = CachedTextRenderer(w, h, self.figure.dpi)
             self._lastKey = key
         return self.renderer
+
+
+#: (string, font, alignment, rotation, line spacing, dpi, ...) -> ``Text._get_layout``.
+_TEXT_LAYOUTS: dict[_Key, Any] = {}
+
+
+class _KeptLayout:
+    """A text whose layout (extent, lines and their offsets from its position) is kept
+    per string and style on the raster canvas: matplotlib lays a text out again at each
+    draw and each measurement (a third of the time of drawing a small text)."""
+
+    def _get_layout(self, renderer: Any) -> Any:
+        text: Any = self
+        if type(renderer) is not CachedTextRenderer or text.get_wrap():
+            return super()._get_layout(renderer)  # type: ignore[misc]
+        key = (text.get_text(), _font_key(text._fontproperties), text._horizontalalignment,
+               text._verticalalignment, text._multialignment, text.get_rotation(),
+               text.get_rotation_mode(), text._linespacing, text.get_usetex(),
+               text._parse_math, renderer.dpi, text.get_figure(root=True).dpi,
+               get_hinting_flag())
+        hit = _TEXT_LAYOUTS.get(key)
+        if hit is None:
+            hit = _bounded(_TEXT_LAYOUTS).setdefault(
+                key, super()._get_layout(renderer))  # type: ignore[misc]
+        return hit
+
+
+class KeptText(_KeptLayout, Text):
+    """:class:`matplotlib.text.Text` with its layout kept (see :class:`_KeptLayout`)."""
+
+
+class KeptAnnotation(_KeptLayout, Annotation):
+    """:class:`matplotlib.text.Annotation` with its layout kept."""

@@ -43,12 +43,12 @@ from matplotlib.legend import Legend
 from matplotlib.lines import Line2D
 from matplotlib.patches import Polygon, Rectangle
 from matplotlib.path import Path as MPath
-from matplotlib.text import Text
+from matplotlib.text import Annotation, Text
 from matplotlib.ticker import MaxNLocator
-from matplotlib.transforms import Affine2D, Bbox
+from matplotlib.transforms import Affine2D, Bbox, IdentityTransform
 
 from envelope.files import write_atomic
-from envelope.glyphs import CachedTextCanvas
+from envelope.glyphs import CachedTextCanvas, KeptAnnotation, KeptText
 from envelope.raster import figure_png
 from envelope.sketch import decode
 from envelope.stamp import Stamp
@@ -240,7 +240,7 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
     pad = _LABEL_PAD * _LABEL_SIZE  # the box beyond the text's extent (points)
     # one text, never drawn, measures every label: its extent at the anchor is the
     # label's (left and bottom aligned, so the anchor is the extent's corner)
-    probe = Text(0.0, 0.0, "", fontsize=_LABEL_SIZE, ha="left", va="bottom",
+    probe = KeptText(0.0, 0.0, "", fontsize=_LABEL_SIZE, ha="left", va="bottom",
                  linespacing=1.05, parse_math=False)
     probe.set_figure(fig)
     for lab in sorted(labels, key=lambda lb: lb.rank):
@@ -288,10 +288,10 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
             starts.append((lab.x, lab.y))
             leaders.append(np.array([((best.x0 + side * w - ax_x) / px_per_pt,
                                       (edge - ax_y) / px_per_pt), (0.0, 0.0)]))
-        ax.annotate(lab.text, (lab.x, lab.y), xytext=offset, textcoords="offset points",
-                    fontsize=_LABEL_SIZE, color=lab.colour, ha="left", va="bottom",
-                    linespacing=1.05, parse_math=False, zorder=8, gid="value-label",
-                    annotation_clip=False)
+        _annotate(ax, lab.text, (lab.x, lab.y), offset, textcoords="offset points",
+                  fontsize=_LABEL_SIZE, color=lab.colour, ha="left", va="bottom",
+                  linespacing=1.05, parse_math=False, zorder=8, gid="value-label",
+                  annotation_clip=False)
     points = Affine2D().scale(1.0 / 72.0) + fig.dpi_scale_trans
     for ax, (anchors, boxes, starts, leaders) in drawn.items():
         ax.add_collection(PolyCollection(
@@ -457,6 +457,30 @@ def _style_panel(ax: Any, ylabel: str) -> None:
     ax.set_ylabel(ylabel, fontsize=7.5, color=INK, labelpad=3)
 
 
+def _text(ax: Any, x: float, y: float, s: str, **style: Any) -> Text:
+    """A text added to ``ax`` as ``Axes.text`` adds it (its layout kept on the raster
+    canvas: :class:`envelope.glyphs.KeptText`)."""
+    text = KeptText(x, y, s, **{"verticalalignment": "baseline",
+                                "horizontalalignment": "left", "transform": ax.transData,
+                                "clip_on": False, **style})
+    if text.get_clip_path() is None:
+        text.set_clip_path(ax.patch)
+    ax._add_text(text)
+    return text
+
+
+def _annotate(ax: Any, s: str, xy: tuple[float, float], xytext: tuple[float, float],
+              **style: Any) -> Annotation:
+    """An annotation added to ``ax`` as ``Axes.annotate`` adds it (its layout kept on
+    the raster canvas: :class:`envelope.glyphs.KeptAnnotation`)."""
+    note = KeptAnnotation(s, xy, xytext=xytext, **style)
+    note.set_transform(IdentityTransform())
+    if style.get("clip_on", False) and note.get_clip_path() is None:
+        note.set_clip_path(ax.patch)
+    ax._add_text(note)
+    return note
+
+
 def _line(ax: Any, x: Any, y: Any, **style: Any) -> Line2D:
     """A line (or markers) added to ``ax`` as ``Axes.plot`` adds it, without updating the
     data limits: every panel's limits are set explicitly, and the update is most of the
@@ -523,10 +547,10 @@ def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Se
                 used.append(name)
         elif "free end" not in used:
             used.append("free end")
-        ax.text(xj, -1.25, str(j + 1), ha="center", va="bottom", fontsize=6.5, color=SOFT,
+        _text(ax, xj, -1.25, str(j + 1), ha="center", va="bottom", fontsize=6.5, color=SOFT,
                 parse_math=False)
     for j in range(len(joint_x) - 1):
-        ax.text(0.5 * (joint_x[j] + joint_x[j + 1]), -0.55, f"span {j + 1}", ha="center",
+        _text(ax, 0.5 * (joint_x[j] + joint_x[j + 1]), -0.55, f"span {j + 1}", ha="center",
                 va="center", fontsize=7, color=SOFT, parse_math=False)
     for xh in (sk or {}).get("hinges", []) or []:
         _line(ax, [xh], [0.0], marker="o", markersize=5, mfc="white", mec=INK, mew=1.0,
@@ -643,7 +667,7 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
             label = f"{name} {literal(kinds.get(c, ''), 10)}".strip()
             if scale:
                 label += "\n" + "\n".join(scale[:2])
-            ax.text(-0.012, (base + 0.35 - ax.get_ylim()[0]) /
+            _text(ax, -0.012, (base + 0.35 - ax.get_ylim()[0]) /
                     (ax.get_ylim()[1] - ax.get_ylim()[0]), label, ha="right", va="center",
                     fontsize=6, color=colour, parse_math=False, clip_on=False,
                     transform=ax.transAxes, linespacing=1.0)

@@ -22,8 +22,9 @@ from typing import Any
 import numpy as np
 from matplotlib.artist import Artist
 from matplotlib.lines import Line2D
-from matplotlib.text import Text
 from matplotlib.transforms import Bbox
+
+from envelope.glyphs import KeptText
 
 
 class _Side:
@@ -37,7 +38,7 @@ class _Side:
         self.marks.update_from(tick.tick1line)
         self.marks.set_linestyle("none")
         self.marks.set_figure(axis.get_figure(root=False))
-        self.number = Text(0.0, 0.0, "", parse_math=False)
+        self.number = KeptText(0.0, 0.0, "", parse_math=False)
         self.number.update_from(tick.label1)
         self.number.set_figure(axis.get_figure(root=False))
         self.show_marks = tick.tick1line.get_visible()

@@ -16,6 +16,7 @@ import pytest
 from matplotlib.backends.backend_agg import FigureCanvasAgg, RendererAgg, get_hinting_flag
 from matplotlib.figure import Figure
 from matplotlib.font_manager import FontProperties, fontManager, get_font
+from matplotlib.text import Text
 from PIL import Image
 
 import envelope
@@ -31,7 +32,8 @@ needs_glyph_api = pytest.mark.skipif(not glyphs._GLYPH_API,
 
 def _clear_caches() -> None:
     for cache in (glyphs._EXTENTS, glyphs._LAYOUTS, glyphs._GLYPHS, glyphs._LINES,
-                  glyphs._CHARS, glyphs._METRICS, glyphs._KERNING, glyphs._HEIGHTS):
+                  glyphs._CHARS, glyphs._METRICS, glyphs._KERNING, glyphs._HEIGHTS,
+                  glyphs._TEXT_LAYOUTS):
         cache.clear()
 
 
@@ -190,3 +192,40 @@ def test_text_caches_stay_bounded(monkeypatch: pytest.MonkeyPatch) -> None:
     for i in range(400):
         renderer.get_text_width_height_descent(f"{i * 1.7:.1f}", prop, False)
     assert 0 < len(glyphs._EXTENTS) <= 50
+
+
+def _layout_values(layout: tuple) -> tuple:
+    bbox, lines, ((x, y), (w, h)) = layout
+    return (tuple(np.round(bbox.bounds, 9)),
+            tuple((s, tuple(np.round(wad, 9)), tuple(np.round(xy, 9))) for s, wad, xy in lines),
+            tuple(np.round((x, y, w, h), 9)))
+
+
+def test_kept_text_layout_is_matplotlibs_for_every_style_and_follows_changes() -> None:
+    """The layout a kept text reuses is the one matplotlib computes for the same string
+    and style (alignments, rotation, line spacing, size, weight, one or more lines), and
+    a changed string or style is laid out afresh."""
+    fig = Figure(dpi=plots.DPI)
+    canvas = glyphs.CachedTextCanvas(fig)
+    renderer = canvas.get_renderer()
+    glyphs._TEXT_LAYOUTS.clear()
+    styles = [dict(ha="left", va="bottom"), dict(ha="right", va="center_baseline"),
+              dict(ha="center", va="top", rotation=90), dict(ha="center", va="center",
+                                                             linespacing=1.05),
+              dict(ha="left", va="baseline", fontsize=10.5, weight="bold")]
+    strings = ["-1250", "span 3", "+12.4\nD + L, loaded 1 3", "Moment [kN*m]\nsagging up"]
+    kept = glyphs.KeptText(0.0, 0.0, "", parse_math=False)
+    kept.set_figure(fig)
+    for style in styles:
+        full = {"ha": "left", "va": "baseline", "rotation": 0, "linespacing": 1.2,
+                "fontsize": 7, "weight": "normal", **style}
+        kept.update(full)
+        plain = Text(0.0, 0.0, "", parse_math=False, **full)
+        plain.set_figure(fig)
+        for s in strings:
+            kept.set_text(s)
+            plain.set_text(s)
+            for _ in range(2):  # laid out, then reused
+                assert _layout_values(kept._get_layout(renderer)) == \
+                    _layout_values(Text._get_layout(plain, renderer)), (style, s)
+    assert len(glyphs._TEXT_LAYOUTS) == len(styles) * len(strings)
