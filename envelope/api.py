@@ -225,9 +225,9 @@ def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.Path
     written = {f"{stem}.parquet" for stem in built}
     try:
         if all_cases:
-            store.write_stations(stage / "stations.parquet", result, durable)
+            store.write_stations(stage / "stations.parquet", result, durable, staged=True)
             written.add("stations.parquet")
-        store.write_tables(stage, built, durable, checked=True)
+        store.write_tables(stage, built, durable, checked=True, staged=True)
         if plots:
             from envelope import plots as figures
 

@@ -86,6 +86,26 @@ def write_atomic(path: Path, write: Callable[[BinaryIO], object],
         raise
 
 
+def write_new(path: Path, write: Callable[[BinaryIO], object], durable: bool = True) -> None:
+    """Call ``write(fh)`` on ``path`` created anew (exclusively, no link followed) and
+    fsync it unless ``durable`` is False; a failure removes it.  Not atomic by itself:
+    for a folder that no reader looks into until it is complete (the staging folder of
+    a beam's results, whose files are renamed into place once all are written), where a
+    temporary name per file would only cost a rename more."""
+    flags = (os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_NOFOLLOW", 0)
+             | getattr(os, "O_CLOEXEC", 0) | getattr(os, "O_BINARY", 0))
+    fd = os.open(path, flags, 0o666)  # the umask applies, as for an ordinary new file
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            write(fh)
+            fh.flush()
+            if durable:
+                os.fsync(fh.fileno())
+    except BaseException:
+        Path(path).unlink(missing_ok=True)
+        raise
+
+
 def sync_file(path: Path) -> None:
     """Flush to disk (fsync) a file written earlier without it; nothing if it is gone."""
     try:

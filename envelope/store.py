@@ -24,7 +24,7 @@ from envelope import config, engine_version
 from envelope.analysis import Analysis, explicit_case_blocks, left_out_of_explicit_cases
 from envelope.enveloper import CaseSet, Extremes
 from envelope.errors import StaticsError
-from envelope.files import sha256_hex, write_atomic
+from envelope.files import sha256_hex, write_atomic, write_new
 from envelope.model import Beam
 from envelope.reduction import span_factors
 
@@ -349,10 +349,12 @@ STATIONS_SCHEMA = pa.schema([("beam", pa.string()), ("case", pa.int32()),
                              ("deflection", pa.float64())])
 
 
-def write_stations(path: Path, analysis: Analysis, durable: bool = True) -> None:
+def write_stations(path: Path, analysis: Analysis, durable: bool = True,
+                   staged: bool = False) -> None:
     """stations.parquet: every explicit case at every station, long format, written in
     row groups as the blocks are computed, so the whole table is never in memory.  Its
-    ``envelope:left_out`` metadata lists the moving cases the rows leave out."""
+    ``envelope:left_out`` metadata lists the moving cases the rows leave out
+    (``staged``: see :func:`write_parquet`)."""
     meta = _metadata(analysis)
     meta[b"envelope:left_out"] = json.dumps(list(left_out_of_explicit_cases(
         analysis.beam))).encode()
@@ -370,7 +372,7 @@ def write_stations(path: Path, analysis: Analysis, durable: bool = True) -> None
                 check_finite(part, str(path))
                 writer.write_table(part, row_group_size=config.STATIONS_ROW_GROUP)
 
-    write_atomic(path, write, durable)
+    (write_new if staged else write_atomic)(path, write, durable)
 
 
 def tables(analysis: Analysis, all_cases: bool = False) -> dict[str, pa.Table]:
@@ -488,14 +490,17 @@ _cached_unit_fields = functools.lru_cache(maxsize=64)(_unit_fields)
 
 
 def write_parquet(path: Path, table: pa.Table, durable: bool = True,
-                  checked: bool = False) -> None:
+                  checked: bool = False, staged: bool = False) -> None:
     """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only
     (``checked``: the caller has checked already), each numeric column's unit in its
-    field metadata (:func:`with_field_units`)."""
+    field metadata (:func:`with_field_units`).  ``staged``: ``path`` is in a staging
+    folder that is renamed into place only when complete, so the file is written under
+    its own name (:func:`envelope.files.write_new`), with no temporary name of its own."""
     if not checked:
         check_finite(table, str(path))
     table = with_field_units(table)
-    write_atomic(path, lambda fh: _write_row_groups(table, fh), durable)
+    (write_new if staged else write_atomic)(path, lambda fh: _write_row_groups(table, fh),
+                                            durable)
 
 
 def _write_row_groups(table: pa.Table, fh: object) -> None:
@@ -516,16 +521,18 @@ def check_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> None:
 
 
 def write_tables(out_dir: Path, result_tables: Mapping[str, pa.Table],
-                 durable: bool = True, checked: bool = False) -> list[Path]:
+                 durable: bool = True, checked: bool = False, staged: bool = False
+                 ) -> list[Path]:
     """Write each table as ``<stem>.parquet`` in ``out_dir``; returns the paths.  Every
     table is checked before the first file is written, so a refusal writes nothing
-    (``checked=True``: the caller has already run :func:`check_tables`)."""
+    (``checked=True``: the caller has already run :func:`check_tables`; ``staged``: see
+    :func:`write_parquet`)."""
     if not checked:
         check_tables(out_dir, result_tables)
     paths = []
     for stem, table in result_tables.items():
         path = out_dir / f"{stem}.parquet"
-        write_parquet(path, table, durable, checked=True)
+        write_parquet(path, table, durable, checked=True, staged=staged)
         paths.append(path)
     return paths
 
