@@ -319,6 +319,33 @@ def test_resume_skips_unchanged_beams_and_reruns_a_changed_one(tmp_path: Path) -
     assert beams == {"beam-00000", "beam-00001", "beam-00002"}
 
 
+@pytest.mark.parametrize("units", [None, "US"])
+def test_combined_tables_from_the_workers_equal_those_read_back(tmp_path: Path,
+                                                                units: str | None) -> None:
+    """The design, sizing and bars tables each worker returns with its outcome (Arrow
+    IPC, the fast path) combine to the same bytes as the beams' Parquet files read back
+    (the reference path, which a resumed batch takes for the beams it skips)."""
+    from envelope.batch.combined import COMBINED_STEMS, combine
+    from envelope.batch.runner import run_batch
+
+    cases = tmp_path / "cases"
+    make_cases(3, cases, seed=14, max_spans=3)
+    for name in ("office-4span-si.toml", "mezzanine-us.toml"):  # sizing, bars
+        shutil.copy(REPO / "cases" / name, cases / name)
+    out = tmp_path / "out"
+    summary = run_batch([str(cases)], out, workers=1, units=units)
+    given = {o.beam_id: o.tables for o in summary.written}
+    assert all(t is not None and "design" in t for t in given.values())
+    assert any(t is not None and "bars" in t for t in given.values())
+    fast = {stem: (out / "_all" / f"{stem}.parquet").read_bytes() for stem in COMBINED_STEMS}
+    done = {o.beam_id: o.manifest for o in summary.written}
+    assert all(m is not None for m in done.values())
+    combine(out, done, units, fresh=set(done))  # nothing given: every table read back
+    read_back = {stem: (out / "_all" / f"{stem}.parquet").read_bytes()
+                 for stem in COMBINED_STEMS}
+    assert fast == read_back
+
+
 def test_a_folder_with_old_and_new_files_is_not_taken_as_done(tmp_path: Path) -> None:
     cases = tmp_path / "cases"
     make_cases(3, cases, seed=12, max_spans=2)

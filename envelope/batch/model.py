@@ -64,6 +64,9 @@ class Outcome:
     analyse_seconds: float = 0.0      # reading, checking and analysing the case
     write_seconds: float = 0.0        # api.write: the beam's own files
     batch_seconds: float = 0.0        # the batch's own writes: partition and manifest
+    #: the beam's tables of the combined files (design, sizing, bars: those it wrote), by
+    #: file stem, as Arrow IPC streams: combining reads none of them back
+    tables: dict[str, bytes] | None = None
 
 
 @dataclass

@@ -134,7 +134,10 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
         # manifest, so their partitions need no second look
         fresh = {o.beam_id for o in summary.outcomes
                  if o.error is None and o.manifest is not None}
-        combine(out_path, done, units, fresh)
+        # and their design, sizing and bars tables came with their outcomes
+        given = {o.beam_id: o.tables for o in summary.outcomes
+                 if o.beam_id in fresh and o.tables is not None}
+        combine(out_path, done, units, fresh, given)
         write_failures(out_path, summary.failed, {e.path: e.index for e in entries})
     summary.seconds = time.perf_counter() - started
     return summary

@@ -13,7 +13,7 @@ from contextlib import contextmanager
 from pathlib import Path
 
 from envelope import engine_version
-from envelope.batch.combined import write_partition
+from envelope.batch.combined import COMBINED_STEMS, to_ipc, write_partition
 from envelope.batch.model import COMBINED, MANIFEST, BatchError, Outcome, Task
 from envelope.errors import EnvelopeError, EnvelopeWarning
 from envelope.files import is_link, real_folder, sync_file, write_atomic
@@ -172,9 +172,10 @@ def run_beam(task: Task, out: str, plots: bool, unsynced: list[Path] | None = No
             write_atomic(folder / MANIFEST, lambda fh: fh.write(data), unsynced is None)
             if unsynced is not None:
                 unsynced.append(folder / MANIFEST)
+            combined = {stem: to_ipc(built[stem]) for stem in COMBINED_STEMS if stem in built}
         done = time.perf_counter()
         return Outcome(shown, beam.id, None, manifest, analysed - start, written - analysed,
-                       done - written)
+                       done - written, combined)
     except Exception as exc:
         if folder is not None:
             _clear_results(folder)
