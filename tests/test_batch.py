@@ -346,6 +346,29 @@ def test_combined_tables_from_the_workers_equal_those_read_back(tmp_path: Path,
     assert fast == read_back
 
 
+def test_the_worker_takes_the_quick_read_s_document_only_for_the_same_bytes(
+        tmp_path: Path) -> None:
+    """A batch parses each case file once: the worker's read of the file takes the
+    document the coordinator's quick read parsed (the fast path) when the file still
+    holds the same bytes, and the beam equals the one from parsing the file (the
+    reference path); a file changed in between is parsed again."""
+    from envelope.batch import identify
+    from envelope.casefile import load_case
+
+    cases = tmp_path / "cases"
+    paths = make_cases(6, cases, seed=15)
+    paths += [REPO / "cases" / n for n in ("office-4span-si.toml", "mezzanine-us.toml")]
+    for path in paths:
+        parsed = identify(0, str(path)).task()[5]
+        assert parsed is not None
+        assert load_case(path, parsed) == load_case(path)
+    parsed = identify(0, str(paths[0])).task()[5]
+    assert parsed is not None
+    paths[0].write_text(paths[0].read_text().replace('title = "', 'title = "changed: ', 1))
+    beam = load_case(paths[0], parsed)
+    assert beam == load_case(paths[0]) and beam.title.startswith("changed: ")
+
+
 def test_a_folder_with_old_and_new_files_is_not_taken_as_done(tmp_path: Path) -> None:
     cases = tmp_path / "cases"
     make_cases(3, cases, seed=12, max_spans=2)

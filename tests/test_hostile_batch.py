@@ -183,7 +183,7 @@ def test_a_beam_past_the_time_limit_is_stopped_and_the_batch_goes_on(
 
     case = good(tmp_path, "slow")
 
-    def slow_read(path: str) -> None:
+    def slow_read(path: str, parsed: object = None) -> None:
         time.sleep(60)
 
     monkeypatch.setattr(api, "load_case", slow_read)
@@ -203,7 +203,7 @@ def test_the_time_limit_stops_a_beam_run_in_a_thread_as_on_a_cluster(
 
     case = good(tmp_path, "slow")
 
-    def slow_read(path: str) -> None:
+    def slow_read(path: str, parsed: object = None) -> None:
         for _ in range(6000):  # a minute of short steps
             time.sleep(0.01)
 

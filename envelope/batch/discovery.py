@@ -135,7 +135,23 @@ def identify(index: int, path: str, absolute: bool = False) -> Entry:
     if not isinstance(beam_id, str) or not ID_PATTERN.fullmatch(beam_id) \
             or beam_id in (".", ".."):
         beam_id = None
-    return Entry(index, path, target, beam_id, sha256)
+    return Entry(index, path, target, beam_id, sha256, _packed(data))
+
+
+def _packed(data: dict[str, object]) -> bytes | None:
+    """The parsed document, pickled for the worker (:func:`envelope.casefile.load_case`
+    takes it instead of parsing the file again); None for one nested deeper than a case
+    file may be (the worker's own parse refuses it with its message)."""
+    import pickle
+
+    from envelope.casefile.document import nesting
+
+    if nesting(data) > config.CASE_NESTING_MAX:
+        return None
+    try:
+        return pickle.dumps(data, protocol=pickle.HIGHEST_PROTOCOL)
+    except Exception:  # nothing a TOML parser returns should fail; never stop the batch
+        return None
 
 
 def check_duplicates(entries: Sequence[Entry]) -> None:

@@ -15,8 +15,11 @@ MANIFEST = ".complete.json"
 COMBINED = "_all"
 
 #: A task: (path the worker opens, path shown to the user, id from a quick read or None,
-#: time limit in seconds or None, work limits (envelope.limits.WorkLimits) or None).
-Task = tuple[str, str, str | None, float | None, Any]
+#: time limit in seconds or None, work limits (envelope.limits.WorkLimits) or None, and
+#: optionally the file's hash and TOML document as the quick read found them, see
+#: :attr:`Entry.parsed`).
+Task = tuple[str, str, str | None, float | None, Any] | tuple[
+    str, str, str | None, float | None, Any, tuple[str, bytes] | None]
 
 
 class BatchError(EnvelopeError):
@@ -47,10 +50,16 @@ class Entry:
     target: str           # as opened by a worker (absolute for a cluster)
     beam_id: str | None   # from a quick read of the file; None when it cannot be told
     sha256: str | None    # of the raw bytes; None when the file cannot be read
+    #: the TOML document of those bytes, pickled (the worker's read of the file takes it
+    #: when the file has not changed, instead of parsing it again); None when not parsed
+    document: bytes | None = None
 
     def task(self, time_limit: float | None = None, work_limits: Any = None) -> Task:
-        """The task this file is run as: target, path, id and the limits of its run."""
-        return (self.target, self.path, self.beam_id, time_limit, work_limits)
+        """The task this file is run as: target, path, id, the limits of its run and
+        the document the quick read parsed."""
+        parsed = None if self.sha256 is None or self.document is None else (
+            self.sha256, self.document)
+        return (self.target, self.path, self.beam_id, time_limit, work_limits, parsed)
 
 
 @dataclass(frozen=True, slots=True)

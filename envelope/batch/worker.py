@@ -128,13 +128,14 @@ def run_beam(task: Task, out: str, plots: bool, unsynced: list[Path] | None = No
     added to that list, for the caller to fsync (:func:`run_chunk`: once a chunk)."""
     from envelope import api
 
-    target, shown, quick_id, limit, work_limits = task
+    target, shown, quick_id, limit, work_limits = task[:5]
+    parsed = task[5] if len(task) > 5 else None
     start = time.perf_counter()
     beam_id = quick_id or ""
     folder: Path | None = None
     try:
         with _time_limit(limit):
-            beam = api.load_case(target)
+            beam = api.load_case(target, parsed)
             beam_id = beam.id
             if beam.id == COMBINED:
                 raise BatchError(f"{target}: id: {COMBINED!r} is reserved for the combined "

@@ -27,7 +27,7 @@ TOP_KEYS = ("id", "title", "units", "section", "spans", "supports", "cases", "lo
 ID_PATTERN = re.compile(r"[A-Za-z0-9._-]{1,64}")
 
 
-def load_case(path: str | os.PathLike[str]) -> Beam:
+def load_case(path: str | os.PathLike[str], parsed: tuple[str, bytes] | None = None) -> Beam:
     """Read, check and convert the case file at ``path``.
 
     ``Beam.input_sha256`` is the SHA-256 of the file's raw bytes, so a result
@@ -41,6 +41,11 @@ def load_case(path: str | os.PathLike[str]) -> Beam:
     ----------
     path : str or path-like
         A TOML case file (docs/case-format.md).
+    parsed : (str, bytes), optional
+        The SHA-256 of a file's bytes and their TOML document, pickled, as a batch's
+        coordinator read them (:func:`envelope.batch.discovery.identify`): taken instead
+        of parsing the file again when the file still holds those bytes (the same
+        hash), so a batch parses each file once.
 
     Returns
     -------
@@ -66,7 +71,12 @@ def load_case(path: str | os.PathLike[str]) -> Beam:
             f"the file is not UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
         ) from None
     try:
-        data = tomllib.loads(text)
+        if parsed is not None and parsed[0] == sha256:
+            import pickle  # a document the batch's own coordinator parsed from these bytes
+
+            data = pickle.loads(parsed[1])
+        else:
+            data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise CaseError(source, "", f"not valid TOML: {one_line(str(exc))}") from None
     except RecursionError:  # the parser recurses once per level of nesting
