@@ -69,8 +69,10 @@ def analyse_solved(solved: Solved) -> Analysis:
     """:func:`analyse` of a beam already solved (with its redistribution, if any)."""
     beam = solved.beam
     pts = stations(beam, solved.mesh, solved.unit_cases)
+    # each distinct _loaded text built once per case set, at the stations and supports
+    known: dict[str, dict[bytes, str]] = {"strength": {}, "service": {}}
     env = envelopes_at(solved, pts, {"moment": "strength", "shear": "strength",
-                                     "deflection": "service"})
+                                     "deflection": "service"}, known=known)
 
     sol = solved.solution
     joints = np.array([j for j, s in enumerate(beam.supports) if s.is_restrained], dtype=int)
@@ -78,9 +80,12 @@ def analyse_solved(solved: Solved) -> Analysis:
     strength = solved.solution_for("strength")
     moving = reaction_effects(beam, joints) if moving_loads(beam) else (None, None)
     reactions: dict[str, Extremes | None] = {
-        "reaction": _reduce_rows(strength.reaction[joints], solved.strength, moving[0]),
-        "service_reaction": _reduce_rows(sol.reaction[joints], solved.service, moving[0]),
-        "support_moment": _reduce_rows(support_moment[joints], solved.strength, moving[1]),
+        "reaction": _reduce_rows(strength.reaction[joints], solved.strength, moving[0],
+                                 known["strength"]),
+        "service_reaction": _reduce_rows(sol.reaction[joints], solved.service, moving[0],
+                                         known["service"]),
+        "support_moment": _reduce_rows(support_moment[joints], solved.strength, moving[1],
+                                       known["strength"]),
     }
     unfactored = sol.reaction[joints] @ solved.per_case
     if moving[0] is not None:  # a moving case alone: its largest reaction
@@ -103,9 +108,9 @@ def support_moments(reaction_moment: np.ndarray) -> np.ndarray:
     return out
 
 
-def _reduce_rows(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
-                 ) -> Extremes | None:
-    return None if cs.is_empty else reduce(R, cs, moving=moving)
+def _reduce_rows(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None,
+                 known: dict[bytes, str] | None = None) -> Extremes | None:
+    return None if cs.is_empty else reduce(R, cs, known=known, moving=moving)
 
 
 def left_out_of_explicit_cases(beam: Beam) -> tuple[str, ...]:

@@ -115,13 +115,16 @@ def solve_beam(beam: Beam) -> Solved:
 
 
 def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
-                 labels: bool = True) -> dict[str, Extremes | None]:
+                 labels: bool = True, known: dict[str, dict[bytes, str]] | None = None
+                 ) -> dict[str, Extremes | None]:
     """Envelopes at ``points`` for each ``quantity -> case set`` of ``requests``, in
     blocks of rows (:func:`chunk_rows`), each block's response computed once for all
     quantities (with the worst effects of the moving cases, from the influence lines at
     the block's points); None for an empty case set.  ``labels=False`` skips the
     ``_loaded`` texts (for searches that need values only); each distinct text is built
-    once per case set, whichever block and quantity it governs."""
+    once per case set, whichever block and quantity it governs (``known``: the texts
+    built so far, by case set name, shared with other calls for the same beam and
+    added to; see :func:`envelope.enveloper.reduce`)."""
     sets = {q: solved.case_set(name) for q, name in requests.items()}
     wanted = tuple(q for q, cs in sets.items() if not cs.is_empty)
     parts: dict[str, list[Extremes]] = {q: [] for q in wanted}
@@ -130,7 +133,9 @@ def envelopes_at(solved: Solved, points: Points, requests: dict[str, str],
     for q in wanted:
         sol = solved.solution_for(requests[q])
         by_solution[id(sol)] = (sol, by_solution.get(id(sol), (sol, ()))[1] + (q,))
-    known: dict[str, dict[bytes, str]] = {name: {} for name in requests.values()}
+    known = {} if known is None else known
+    for name in requests.values():
+        known.setdefault(name, {})
     n_units = solved.unit_cases.n_units
     step = chunk_rows(n_units)
     # one way of summing for every block, so that a row's values do not depend on the

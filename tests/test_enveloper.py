@@ -11,6 +11,7 @@ favourable part of a permanent action; the module docstring states the rule).
 from __future__ import annotations
 
 import itertools
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -107,3 +108,34 @@ def test_every_span_loaded_is_one_case_in_both_kinds_of_set() -> None:
     assert [r["loaded"] for r in superposed.case_rows(explicit=True)] == [
         "any", "any", "all", "all"]
     assert [r["loaded"] for r in explicit.case_rows()] == ["all", "all"]
+
+
+def test_loaded_texts_shared_between_stations_and_supports_equal_texts_built_alone(
+        tmp_path: Path) -> None:
+    """The analysis builds each distinct ``_loaded`` text once per case set for the
+    stations and the supports together (the fast path); the support envelopes equal
+    those reduced on their own, every text built afresh (the reference path)."""
+    from envelope.analysis import analyse, support_moments
+    from envelope.casefile import load_case
+    from envelope.enveloper import reduce
+
+    from beams import make_cases_module
+
+    paths = make_cases_module().make_cases(12, tmp_path, 21)
+    for path in paths:
+        result = analyse(load_case(path))
+        solved, joints = result.solved, result.support_joints
+        rows = {"reaction": (solved.solution_for("strength").reaction, solved.strength),
+                "service_reaction": (solved.solution.reaction, solved.service),
+                "support_moment": (support_moments(solved.solution_for(
+                    "strength").reaction_moment), solved.strength)}
+        for name, (R, cs) in rows.items():
+            got = result.reaction_envelopes[name]
+            if cs.is_empty:
+                assert got is None
+                continue
+            alone = reduce(R[joints], cs)
+            assert got is not None
+            assert list(got.max_loaded) == list(alone.max_loaded), (path, name)
+            assert list(got.min_loaded) == list(alone.min_loaded), (path, name)
+            np.testing.assert_array_equal(got.max, alone.max)
