@@ -47,6 +47,7 @@ from matplotlib.text import Annotation, Text
 from matplotlib.ticker import MaxNLocator
 from matplotlib.transforms import Affine2D, Bbox, IdentityTransform
 
+from envelope import drawlist
 from envelope.files import write_atomic
 from envelope.glyphs import CachedTextCanvas, KeptAnnotation, KeptText
 from envelope.raster import figure_png
@@ -288,21 +289,25 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
             starts.append((lab.x, lab.y))
             leaders.append(np.array([((best.x0 + side * w - ax_x) / px_per_pt,
                                       (edge - ax_y) / px_per_pt), (0.0, 0.0)]))
-        _annotate(ax, lab.text, (lab.x, lab.y), offset, textcoords="offset points",
-                  fontsize=_LABEL_SIZE, color=lab.colour, ha="left", va="bottom",
-                  linespacing=1.05, parse_math=False, zorder=8, gid="value-label",
-                  annotation_clip=False)
+        style = {"fontsize": _LABEL_SIZE, "color": lab.colour, "ha": "left", "va": "bottom",
+                 "linespacing": 1.05, "parse_math": False, "zorder": 8, "gid": "value-label"}
+        panel = drawlist.panel_of(ax)
+        if panel is not None:
+            panel.label((lab.x, lab.y), offset, lab.text, **style)
+        else:
+            _annotate(ax, lab.text, (lab.x, lab.y), offset, textcoords="offset points",
+                      annotation_clip=False, **style)
     points = Affine2D().scale(1.0 / 72.0) + fig.dpi_scale_trans
     for ax, (anchors, boxes, starts, leaders) in drawn.items():
-        ax.add_collection(PolyCollection(
+        _collection(ax, PolyCollection(
             boxes, offsets=anchors, offset_transform=ax.transData, transform=points,
             facecolors=PAPER, edgecolors="none", linewidths=0.0, alpha=0.8, zorder=7.9,
-            clip_on=False, gid="value-label-boxes"), autolim=False)
+            clip_on=False, gid="value-label-boxes"))
         if leaders:
-            ax.add_collection(LineCollection(
+            _collection(ax, LineCollection(
                 leaders, offsets=starts, offset_transform=ax.transData, transform=points,
                 colors=SOFT, linewidths=0.5, capstyle="butt", zorder=7.8, clip_on=False,
-                gid="value-label-leaders"), autolim=False)
+                gid="value-label-leaders"))
     return len(labels) - markers - dropped, dropped
 
 
@@ -395,6 +400,9 @@ def _prepare(axes: Sequence[Any], fast: bool = False) -> None:
             ax.xaxis.set_label_coords(0.5, 0.0)
         if fast:
             install(ax)
+    if fast:
+        for ax in axes:
+            drawlist.install(ax)
 
 
 #: Figures kept for reuse by :func:`draw_results`, by panel heights: creating the axes
@@ -428,8 +436,11 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
         # the key stays: :func:`_key` keeps it where the next beam's is the same
         for a in axes:
             for artist in [*a.lines, *a.patches, *a.texts, *a.collections, *a.artists]:
-                if not isinstance(artist, TickLayer):
+                if not isinstance(artist, (TickLayer, drawlist.DrawList)):
                     artist.remove()
+            panel = drawlist.panel_of(a)
+            if panel is not None:
+                panel.clear()
             if a.get_legend() is not None:
                 a.get_legend().remove()
             a.set_ylabel("")
@@ -457,9 +468,13 @@ def _style_panel(ax: Any, ylabel: str) -> None:
     ax.set_ylabel(ylabel, fontsize=7.5, color=INK, labelpad=3)
 
 
-def _text(ax: Any, x: float, y: float, s: str, **style: Any) -> Text:
+def _text(ax: Any, x: float, y: float, s: str, **style: Any) -> Text | None:
     """A text added to ``ax`` as ``Axes.text`` adds it (its layout kept on the raster
-    canvas: :class:`envelope.glyphs.KeptText`)."""
+    canvas: :class:`envelope.glyphs.KeptText`); on a display list, recorded there."""
+    panel = drawlist.panel_of(ax)
+    if panel is not None:
+        panel.text(x, y, s, **style)
+        return None
     text = KeptText(x, y, s, **{"verticalalignment": "baseline",
                                 "horizontalalignment": "left", "transform": ax.transData,
                                 "clip_on": False, **style})
@@ -481,26 +496,74 @@ def _annotate(ax: Any, s: str, xy: tuple[float, float], xytext: tuple[float, flo
     return note
 
 
-def _line(ax: Any, x: Any, y: Any, **style: Any) -> Line2D:
+def _line(ax: Any, x: Any, y: Any, steps: int | None = None, **style: Any) -> None:
     """A line (or markers) added to ``ax`` as ``Axes.plot`` adds it, without updating the
     data limits: every panel's limits are set explicitly, and the update is most of the
-    cost of a small line."""
+    cost of a small line (``steps``: its path's interpolation steps); on a display list,
+    recorded there."""
+    panel = drawlist.panel_of(ax)
+    if panel is not None:
+        panel.line(x, y, steps, **style)
+        return
     line = Line2D(np.asarray(x, dtype=float), np.asarray(y, dtype=float), **style)
+    if steps is not None:
+        line.get_path()._interpolation_steps = steps  # type: ignore[attr-defined]
     ax.add_artist(line)
-    return line
 
 
-def _hline(ax: Any, y: float, **style: Any) -> Line2D:
+def _hline(ax: Any, y: float, **style: Any) -> None:
     """A line across the axes at ``y`` (data), as ``Axes.axhline`` draws it."""
-    line = _line(ax, [0.0, 1.0], [y, y], transform=ax.get_yaxis_transform(which="grid"),
-                 **style)
-    line.get_path()._interpolation_steps = GRIDLINE_INTERPOLATION_STEPS  # type: ignore[attr-defined]
-    return line
+    _line(ax, [0.0, 1.0], [y, y], GRIDLINE_INTERPOLATION_STEPS,
+          transform=ax.get_yaxis_transform(which="grid"), **style)
+
+
+def _collection(ax: Any, collection: Any) -> None:
+    """A collection added to ``ax`` without updating the data limits; on a display
+    list, drawn from there."""
+    panel = drawlist.panel_of(ax)
+    if panel is not None:
+        panel.artist(panel.adopt(collection))
+    else:
+        ax.add_collection(collection, autolim=False)
+
+
+def _polygon(ax: Any, xy: Any, **style: Any) -> None:
+    """A closed polygon added to ``ax`` (or to its display list)."""
+    panel = drawlist.panel_of(ax)
+    if panel is not None:
+        panel.polygon(xy, **style)
+    else:
+        ax.add_artist(Polygon(xy, closed=True, **style))
+
+
+def _rectangle(ax: Any, xy: tuple[float, float], width: float, height: float,
+               **style: Any) -> None:
+    """A rectangle added to ``ax`` (or to its display list)."""
+    panel = drawlist.panel_of(ax)
+    if panel is not None:
+        panel.rectangle(xy, width, height, **style)
+    else:
+        ax.add_artist(Rectangle(xy, width, height, **style))
+
+
+def _arrow(ax: Any, xy: tuple[float, float], xytext: tuple[float, float],
+           **arrowprops: Any) -> None:
+    """An arrow from ``xytext`` to ``xy`` (data), as ``Axes.annotate`` with an empty
+    text draws it (or recorded on the display list)."""
+    panel = drawlist.panel_of(ax)
+    if panel is not None:
+        panel.arrow(xy, xytext, arrowprops)
+    else:
+        ax.annotate("", xy, xytext, arrowprops=arrowprops, annotation_clip=False)
 
 
 def _envelope(ax: Any, x: np.ndarray, hi: np.ndarray, lo: np.ndarray, pixels: int) -> None:
     xt, ht, lt = _thin(x, hi, lo, pixels)
-    ax.fill_between(xt, lt, ht, color=FILL, lw=0, zorder=1)
+    panel = drawlist.panel_of(ax)
+    if panel is not None:
+        panel.fill_between(xt, lt, ht, color=FILL, lw=0, zorder=1)
+    else:
+        ax.fill_between(xt, lt, ht, color=FILL, lw=0, zorder=1)
     _line(ax, xt, ht, color=MAX_COLOUR, lw=1.2, zorder=3)
     _line(ax, xt, lt, color=MIN_COLOUR, lw=1.2, zorder=3)
     _hline(ax, 0.0, color=INK, lw=0.6, zorder=2)
@@ -534,8 +597,8 @@ def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Se
     for j, (xj, sup) in enumerate(zip(joint_x, supports, strict=False)):
         width = float(sup.get("width") or 0.0)
         if width > 0.0:
-            ax.add_artist(Rectangle((xj - width / 2, -0.22), width, 0.44, fc="#e9dfcc",
-                                   ec=FACE_COLOUR, lw=0.6, zorder=3))
+            _rectangle(ax, (xj - width / 2, -0.22), width, 0.44, fc="#e9dfcc",
+                       ec=FACE_COLOUR, lw=0.6, zorder=3)
             if "support face" not in used:
                 used.append("support face")
         marker = _support_marker(sup)
@@ -587,15 +650,13 @@ def _moving(ax: Any, it: Mapping[str, Any], joint_x: np.ndarray, base: float,
     top = max(abs(p) for p, _ in axles) or 1.0
     for run in runs:
         a, b = float(joint_x[run[0]]), float(joint_x[run[-1] + 1])
-        ax.annotate("", (a, base + 0.85), (b, base + 0.85), arrowprops={
-            "arrowstyle": "<->", "color": colour, "lw": 0.8, "ls": "--",
-            "shrinkA": 0, "shrinkB": 0, "mutation_scale": 6}, annotation_clip=False)
+        _arrow(ax, (a, base + 0.85), (b, base + 0.85), arrowstyle="<->", color=colour,
+               lw=0.8, ls="--", shrinkA=0, shrinkB=0, mutation_scale=6)
         for p, offset in axles:
             at = min(a + float(offset), b)
             length = 0.7 * abs(p) / top
-            ax.annotate("", (at, base), (at, base + length), arrowprops={
-                "arrowstyle": "-|>", "color": colour, "lw": 1.0, "shrinkA": 0,
-                "shrinkB": 0, "mutation_scale": 7}, annotation_clip=False)
+            _arrow(ax, (at, base), (at, base + length), arrowstyle="-|>", color=colour,
+                   lw=1.0, shrinkA=0, shrinkB=0, mutation_scale=7)
 
 
 def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[str, str],
@@ -622,17 +683,15 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
                 a, b = x0 + it.get("start", 0.0), x0 + it.get("end", 0.0)
                 h0 = 0.75 * it.get("w_start", 0.0) / w_max
                 h1 = 0.75 * it.get("w_end", 0.0) / w_max
-                ax.add_artist(Polygon([(a, base), (a, base + h0), (b, base + h1), (b, base)],
-                                     closed=True, fc=colour, alpha=0.28, ec=colour, lw=0.7,
-                                     zorder=2))
+                _polygon(ax, [(a, base), (a, base + h0), (b, base + h1), (b, base)],
+                         fc=colour, alpha=0.28, ec=colour, lw=0.7, zorder=2)
             elif kind == "point" and x0 is not None and p_max > 0:
                 at = x0 + it.get("at", 0.0)
                 length = 0.8 * abs(it.get("P", 0.0)) / p_max
                 down = it.get("P", 0.0) >= 0
                 tip, tail = (base, base + length) if down else (base + length, base)
-                ax.annotate("", (at, tip), (at, tail), arrowprops={
-                    "arrowstyle": "-|>", "color": colour, "lw": 1.0, "shrinkA": 0,
-                    "shrinkB": 0, "mutation_scale": 7}, annotation_clip=False)
+                _arrow(ax, (at, tip), (at, tail), arrowstyle="-|>", color=colour, lw=1.0,
+                       shrinkA=0, shrinkB=0, mutation_scale=7)
             elif kind == "moment" and x0 is not None:
                 at = x0 + it.get("at", 0.0)
                 _line(ax, [at], [base + 0.35], marker=COIL, markersize=11, color=colour,
@@ -643,9 +702,8 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
                 sup = int(it.get("support", 0)) - 1
                 if 0 <= sup < joint_x.size:
                     xs = float(joint_x[sup])
-                    ax.annotate("", (xs, -1.0), (xs, -0.45), arrowprops={
-                        "arrowstyle": "-|>", "color": colour, "lw": 1.0, "ls": "--",
-                        "mutation_scale": 7}, annotation_clip=False)
+                    _arrow(ax, (xs, -1.0), (xs, -0.45), arrowstyle="-|>", color=colour,
+                           lw=1.0, ls="--", mutation_scale=7)
                     if "settlement" not in used:
                         used.append("settlement")
             elif kind in ("concentrated", "train") and it.get("spans"):
@@ -672,8 +730,8 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
                     fontsize=6, color=colour, parse_math=False, clip_on=False,
                     transform=ax.transAxes, linespacing=1.0)
     if sk.get("loads_omitted"):
-        ax.text(0.0, 0.45 + n_lanes, f"{sk['loads_omitted']} more load items not drawn",
-                fontsize=6, color=SOFT, parse_math=False, va="bottom")
+        _text(ax, 0.0, 0.45 + n_lanes, f"{sk['loads_omitted']} more load items not drawn",
+              fontsize=6, color=SOFT, parse_math=False, va="bottom")
     return used
 
 
@@ -697,6 +755,7 @@ def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool
     the fast one is compared with in the tests."""
     path = Path(path)
     fmt = path.suffix.lstrip(".").lower() or "png"
+    fast = fast and fmt == "png"  # SVG and PDF keep matplotlib's artists (editable text)
     with mpl.rc_context(STYLE):
         fig = _build(results, None, reuse=True, fast=fast)
         if fmt == "png" and fig.dpi == DPI:  # the canvas as it is, encoded directly

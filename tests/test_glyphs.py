@@ -20,7 +20,7 @@ from matplotlib.text import Text
 from PIL import Image
 
 import envelope
-from envelope import glyphs, plots, raster, store
+from envelope import drawlist, glyphs, plots, raster, store
 
 ROOT = Path(__file__).resolve().parents[1]
 OFFICE = next((ROOT / "cases").glob("office*.toml"))
@@ -149,16 +149,26 @@ def test_png_of_a_figure_is_its_canvas(tmp_path: Path) -> None:
 
 
 def _labels(fig: Figure) -> list[tuple[str, tuple[float, float], tuple[float, float]]]:
-    """Every value label of ``fig``: text, anchor (data) and offset (points)."""
-    return sorted((t.get_text(), tuple(np.round(t.xy, 9)), tuple(np.round(t.xyann, 6)))
-                  for ax in fig.axes for t in ax.texts if t.get_gid() == "value-label")
+    """Every value label of ``fig``: text, anchor (data) and offset (points), whether an
+    annotation or an item of a display list."""
+    found = [(t.get_text(), tuple(np.round(t.xy, 9)), tuple(np.round(t.xyann, 6)))
+             for ax in fig.axes for t in ax.texts if t.get_gid() == "value-label"]
+    for ax in fig.axes:
+        panel = drawlist.panel_of(ax)
+        found += [(s, tuple(np.round(xy, 9)), tuple(np.round(offset, 6)))
+                  for s, xy, offset, style in (panel.labels() if panel else [])
+                  if style.get_gid() == "value-label"]
+    return sorted(found)
 
 
 def _draw(cols: dict, path: Path) -> tuple[bytes, list, int]:
-    """The PNG file, the value labels and the artists of the kept figure, once drawn."""
+    """The PNG file, the value labels and the artists of the kept figure, once drawn
+    (the items of its display lists counted as artists, their lists not)."""
     data = plots.draw_results(cols, path).read_bytes()
     (fig, axes), = plots._KEPT.values()
-    artists = sum(len(a.get_children()) for a in axes) + len(fig.texts) + len(fig.legends)
+    artists = sum(len([c for c in a.get_children() if not isinstance(c, drawlist.DrawList)])
+                  + (drawlist.panel_of(a).count() if drawlist.panel_of(a) else 0)
+                  for a in axes) + len(fig.texts) + len(fig.legends)
     return data, _labels(fig), artists
 
 
