@@ -123,15 +123,23 @@ def test_figure_drawn_from_cached_glyphs_matches_matplotlib(monkeypatch: pytest.
     assert rounded.mean() < 1.0
 
 
+_DEFLATES = {"zlib": raster._zlib, "isal": raster._isal_deflate if raster._isal else None}
+
+
+@pytest.mark.parametrize("deflate", sorted(_DEFLATES))
 @pytest.mark.parametrize("alpha", [255, 128])
-def test_png_file_decodes_to_the_canvas_pixels(alpha: int) -> None:
-    """Reference: Pillow's PNG decoder (an independent implementation of ISO/IEC 15948)."""
+def test_png_file_decodes_to_the_canvas_pixels(alpha: int, deflate: str) -> None:
+    """Reference: Pillow's PNG decoder (an independent implementation of ISO/IEC 15948),
+    for the file deflated by zlib and by ISA-L (the optional ``isal`` package, in the
+    test extra)."""
+    if _DEFLATES[deflate] is None:
+        pytest.skip("isal is not installed (pip install envelope[fast])")
     rng = np.random.default_rng(5)
     rgba = rng.integers(0, 256, size=(37, 53, 4), dtype=np.uint8)
     rgba[..., 3] = alpha
     rgba[10:20] = 255  # a run of paper, as most of a figure is
     rgba[10:20, :, 3] = alpha
-    image = Image.open(io.BytesIO(raster.png_bytes(rgba, 110)))
+    image = Image.open(io.BytesIO(raster.png_bytes(rgba, 110, _DEFLATES[deflate])))
     assert image.mode == "RGBA"
     assert np.array_equal(np.asarray(image.convert("RGBA")), rgba)
     assert round(image.info["dpi"][0]) == 110
