@@ -27,6 +27,7 @@ drawings pixel for pixel.
 from __future__ import annotations
 
 from collections.abc import Callable, Hashable
+from numbers import Real
 from typing import Any
 from weakref import WeakKeyDictionary
 
@@ -34,9 +35,10 @@ import matplotlib.colors as mcolors
 import numpy as np
 from matplotlib import cbook
 from matplotlib.artist import Artist
-from matplotlib.collections import FillBetweenPolyCollection
+from matplotlib.collections import FillBetweenPolyCollection, LineCollection
 from matplotlib.lines import Line2D
 from matplotlib.patches import FancyArrowPatch, Polygon, Rectangle
+from matplotlib.path import Path
 from matplotlib.transforms import Affine2D
 
 from envelope.glyphs import KeptText
@@ -105,6 +107,18 @@ class Panel:
         """Draw ``artist`` as it is, at its z-order."""
         self.add(artist.get_zorder(), _draw_artist, artist)
 
+    def collection(self, kind: type, paths: Any, offsets: Any, **style: Any) -> None:
+        """A :class:`~matplotlib.collections.PolyCollection` or
+        :class:`~matplotlib.collections.LineCollection` of ``paths`` (polygons or lines)
+        at ``offsets``, not clipped (``clip_on=False``), as ``Axes.add_collection``
+        adds it: one kept per style, given each item's paths and offsets."""
+        key = ("collection", kind, _key(style))
+        drawn = self.templates.get(key)
+        if drawn is None:
+            drawn = self.templates[key] = self.adopt(kind(paths, offsets=offsets, **style),
+                                                     clip=False)
+        self.add(drawn.get_zorder(), _draw_collection, drawn, paths, offsets)
+
     def labels(self) -> list[tuple[str, tuple[float, float], tuple[float, float], Any]]:
         """Every label recorded: (text, anchor in data, offset in points, its styled
         text), for tests and tools that read the figure."""
@@ -126,7 +140,7 @@ class Panel:
             if steps is not None:
                 line.get_path()._interpolation_steps = steps
             self.templates[key] = line
-        self.add(line.get_zorder(), _draw_line, line, np.asarray(x, dtype=float),
+        self.add(line.get_zorder(), draw_line, line, np.asarray(x, dtype=float),
                  np.asarray(y, dtype=float))
 
     def polygon(self, xy: Any, **style: Any) -> None:
@@ -184,7 +198,6 @@ class Panel:
                 text.set_clip_path(self.ax.patch)
             text.set_figure(self.ax.get_figure(root=False))
             text.axes = self.ax
-            text._rgba = mcolors.to_rgba(text.get_color())  # type: ignore[attr-defined]
             self.templates[key] = text
         return text
 
@@ -211,14 +224,113 @@ def _draw_artist(renderer: Any, artist: Artist) -> None:
     artist.draw(renderer)
 
 
-def _draw_line(renderer: Any, line: Line2D, x: np.ndarray, y: np.ndarray) -> None:
-    line.set_data(x, y)
-    line.draw(renderer)
+#: Lines longer than this are drawn by their template (``Line2D`` then draws only the
+#: part in view of a long sorted line: its "subslice").
+_SHORT: int = Line2D._subslice_optim_min_size  # type: ignore[attr-defined]
 
 
-def _draw_polygon(renderer: Any, patch: Polygon, xy: np.ndarray) -> None:
+def draw_line(renderer: Any, line: Any, x: np.ndarray, y: np.ndarray) -> None:
+    """``Line2D.draw`` of ``line`` with the data (x, y): the same path, styles and calls
+    (a solid or dashed line, then its markers), without the artist's bookkeeping."""
+    if (x.size > _SHORT or line._drawstyle != "default" or line.get_path_effects()
+            or line.get_sketch_params() is not None or line._gapcolor is not None
+            or line.get_markevery() is not None):
+        line.set_data(x, y)
+        line.draw(renderer)
+        return
+    path = Path(np.column_stack((x, y)),
+                _interpolation_steps=line.get_path()._interpolation_steps)
+    affine = line.get_transform().get_affine().frozen()
+    if line._lineStyles[line._linestyle] != "_draw_nothing" and x.size:
+        gc = renderer.new_gc()
+        line._set_gc_clip(gc)
+        gc.set_url(line.get_url())
+        gc.set_antialiased(line._antialiased)
+        gc.set_linewidth(line._linewidth)
+        dashed = line.is_dashed()
+        gc.set_joinstyle(line._dashjoinstyle if dashed else line._solidjoinstyle)
+        gc.set_capstyle(line._dashcapstyle if dashed else line._solidcapstyle)
+        gc.set_snap(line.get_snap())
+        gc.set_foreground(mcolors.to_rgba(line._color, line._alpha), isRGBA=True)
+        if line._linewidth > 0:
+            gc.set_dashes(*line._dash_pattern)
+        else:
+            gc.set_dashes(0, None)
+        renderer.draw_path(gc, path, affine)
+        gc.restore()
+    marker = line._marker
+    if marker and line._markersize > 0 and x.size:
+        gc = renderer.new_gc()
+        line._set_gc_clip(gc)
+        gc.set_url(line.get_url())
+        gc.set_linewidth(line._markeredgewidth)
+        gc.set_antialiased(line._antialiased)
+        ec_rgba = mcolors.to_rgba(line.get_markeredgecolor(), line._alpha)
+        fc_rgba = mcolors.to_rgba(line._get_markerfacecolor(), line._alpha)
+        fcalt_rgba = mcolors.to_rgba(line._get_markerfacecolor(alt=True), line._alpha)
+        if (cbook._str_equal(line._markeredgecolor, "auto")
+                and not cbook._str_lower_equal(line.get_markerfacecolor(), "none")):
+            ec_rgba = (*ec_rgba[:3], fc_rgba[3])
+        gc.set_foreground(ec_rgba, isRGBA=True)
+        snap = marker.get_snap_threshold()
+        if isinstance(snap, Real):
+            snap = renderer.points_to_pixels(line._markersize) >= snap
+        gc.set_snap(snap)
+        gc.set_joinstyle(marker.get_joinstyle())
+        gc.set_capstyle(marker.get_capstyle())
+        marker_trans = marker.get_transform()
+        w = renderer.points_to_pixels(line._markersize)
+        if cbook._str_equal(marker.get_marker(), ","):
+            gc.set_linewidth(0)
+        else:
+            marker_trans = marker_trans.scale(w)
+        renderer.draw_markers(gc, marker.get_path(), marker_trans, path, affine, fc_rgba)
+        alt = marker.get_alt_path()
+        if alt:
+            renderer.draw_markers(gc, alt, marker.get_alt_transform().scale(w), path,
+                                  affine, fcalt_rgba)
+        gc.restore()
+
+
+def _draw_collection(renderer: Any, drawn: Any, paths: Any, offsets: Any) -> None:
+    if isinstance(drawn, LineCollection):
+        drawn.set_segments(paths)
+    else:
+        drawn.set_verts(paths)
+    drawn.set_offsets(offsets)
+    drawn.draw(renderer)
+
+
+def _draw_polygon(renderer: Any, patch: Any, xy: np.ndarray) -> None:
+    """``Patch.draw`` of the polygon ``xy`` in ``patch``'s style (a plain patch: no
+    hatch, sketch, path effects or gap colour; those are drawn by the patch)."""
     patch.set_xy(xy)
-    patch.draw(renderer)
+    if (patch._hatch or patch.get_sketch_params() is not None or patch.get_path_effects()
+            or patch._gapcolor is not None or not patch.get_visible()):
+        patch.draw(renderer)
+        return
+    # a polygon's own transform is the identity: its path drawn through the axes'
+    affine = patch.get_transform().get_affine()
+    gc = renderer.new_gc()
+    lw = patch._linewidth
+    if patch._edgecolor[3] == 0 or patch._linestyle == "None":
+        lw = 0
+    gc.set_linewidth(lw)
+    gc.set_capstyle(patch._capstyle)
+    gc.set_joinstyle(patch._joinstyle)
+    gc.set_antialiased(patch._antialiased)
+    patch._set_gc_clip(gc)
+    gc.set_url(patch._url)
+    gc.set_snap(patch.get_snap())
+    gc.set_alpha(patch._alpha)
+    gc.set_foreground(patch._edgecolor, isRGBA=True)
+    if lw > 0:
+        gc.set_dashes(*patch._dash_pattern)
+    else:
+        gc.set_dashes(0, None)
+    renderer.draw_path(gc, patch.get_path(), affine,
+                       patch._facecolor if patch._facecolor[3] else None)
+    gc.restore()
 
 
 def _draw_rectangle(renderer: Any, patch: Rectangle, xy: tuple[float, float],
@@ -254,7 +366,7 @@ def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> None:
     _, info, _ = text._get_layout(renderer)
     canvash = renderer.get_canvas_width_height()[1]
     gc = renderer.new_gc()
-    gc.set_foreground(text._rgba, isRGBA=True)
+    gc.set_foreground(mcolors.to_rgba(text.get_color()), isRGBA=True)
     gc.set_alpha(text.get_alpha())
     gc.set_url(None)
     gc.set_antialiased(text._antialiased)
@@ -267,6 +379,15 @@ def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> None:
         renderer.draw_text(gc, x + posx, canvash - (y + posy), line, prop, angle,
                            ismath=False, mtext=mtext)
     gc.restore()
+
+
+def draw_text(renderer: Any, text: Any) -> None:
+    """``Text.draw`` of a level or upright text without a box, math or path effects,
+    as it stands (position, string, style): the same ``draw_text`` calls."""
+    if not text.get_visible() or not text.get_text():
+        return
+    posx, posy = text.get_transform().transform((float(text._x), float(text._y)))
+    _draw_lines_of(renderer, text, posx, posy)
 
 
 def _draw_text(renderer: Any, text: Any, x: float, y: float, s: str) -> None:

@@ -299,15 +299,13 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
                       annotation_clip=False, **style)
     points = Affine2D().scale(1.0 / 72.0) + fig.dpi_scale_trans
     for ax, (anchors, boxes, starts, leaders) in drawn.items():
-        _collection(ax, PolyCollection(
-            boxes, offsets=anchors, offset_transform=ax.transData, transform=points,
-            facecolors=PAPER, edgecolors="none", linewidths=0.0, alpha=0.8, zorder=7.9,
-            clip_on=False, gid="value-label-boxes"))
+        _collection(ax, PolyCollection, boxes, anchors, offset_transform=ax.transData,
+                    transform=points, facecolors=PAPER, edgecolors="none", linewidths=0.0,
+                    alpha=0.8, zorder=7.9, clip_on=False, gid="value-label-boxes")
         if leaders:
-            _collection(ax, LineCollection(
-                leaders, offsets=starts, offset_transform=ax.transData, transform=points,
-                colors=SOFT, linewidths=0.5, capstyle="butt", zorder=7.8, clip_on=False,
-                gid="value-label-leaders"))
+            _collection(ax, LineCollection, leaders, starts, offset_transform=ax.transData,
+                        transform=points, colors=SOFT, linewidths=0.5, capstyle="butt",
+                        zorder=7.8, clip_on=False, gid="value-label-leaders")
     return len(labels) - markers - dropped, dropped
 
 
@@ -517,14 +515,14 @@ def _hline(ax: Any, y: float, **style: Any) -> None:
           transform=ax.get_yaxis_transform(which="grid"), **style)
 
 
-def _collection(ax: Any, collection: Any) -> None:
-    """A collection added to ``ax`` without updating the data limits; on a display
-    list, drawn from there."""
+def _collection(ax: Any, kind: type, paths: Any, offsets: Any, **style: Any) -> None:
+    """A collection (``kind``) of ``paths`` at ``offsets``, unclipped, added to ``ax``
+    without updating the data limits; on a display list, recorded there."""
     panel = drawlist.panel_of(ax)
     if panel is not None:
-        panel.artist(panel.adopt(collection))
+        panel.collection(kind, paths, offsets, **style)
     else:
-        ax.add_collection(collection, autolim=False)
+        ax.add_collection(kind(paths, offsets=offsets, **style), autolim=False)
 
 
 def _polygon(ax: Any, xy: Any, **style: Any) -> None:

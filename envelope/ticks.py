@@ -24,6 +24,7 @@ from matplotlib.artist import Artist
 from matplotlib.lines import Line2D
 from matplotlib.transforms import Bbox
 
+from envelope.drawlist import draw_line, draw_text
 from envelope.glyphs import KeptText
 
 
@@ -65,8 +66,7 @@ class _Side:
         """Draw the marks and numbers; the numbers' extents (pixels)."""
         zeros = np.zeros(locs.size)
         if self.show_marks and locs.size:
-            self.marks.set_data((locs, zeros) if self.level else (zeros, locs))
-            self.marks.draw(renderer)
+            draw_line(renderer, self.marks, *((locs, zeros) if self.level else (zeros, locs)))
         boxes: list[Bbox] = []
         if not self.show_numbers:
             return boxes
@@ -77,7 +77,7 @@ class _Side:
             else:
                 number.set_y(loc)
             number.set_text(text)
-            number.draw(renderer)
+            draw_text(renderer, number)
             if text:
                 boxes.append(number.get_window_extent(renderer))
         return boxes
