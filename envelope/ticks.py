@@ -18,6 +18,7 @@ non-linear scale) is drawn by matplotlib.
 from __future__ import annotations
 
 from typing import Any
+from weakref import WeakKeyDictionary
 
 import numpy as np
 from matplotlib.artist import Artist
@@ -49,10 +50,22 @@ class _Side:
 
     def values(self) -> tuple[np.ndarray, list[str]] | None:
         """The tick values inside the view and their numbers, as matplotlib's
-        ``Axis._update_ticks`` chooses them; None where matplotlib must draw."""
+        ``Axis._update_ticks`` chooses them; None where matplotlib must draw.  Panels
+        sharing their x axis share its locator and formatter: the values found for one
+        serve the others while the view and the axis length are the same."""
         axis = self.axis
         if axis.get_scale() != "linear":
             return None
+        key = (tuple(axis.get_view_interval()), axis.axes.bbox.width, axis.axes.bbox.height)
+        last = _LAST.get(axis.major)
+        if last is not None and last[0] == key:
+            return last[1]
+        found = self._values(axis)
+        _LAST[axis.major] = (key, found)
+        return found
+
+    @staticmethod
+    def _values(axis: Any) -> tuple[np.ndarray, list[str]] | None:
         locs = np.asarray(axis.get_majorticklocs(), dtype=float)
         labels = axis.major.formatter.format_ticks(locs)
         if axis.major.formatter.get_offset():
@@ -81,6 +94,14 @@ class _Side:
             if text:
                 boxes.append(number.get_window_extent(renderer))
         return boxes
+
+
+#: The last values found per ticker (locator and formatter), with what they depend on.
+_LAST: WeakKeyDictionary[Any, tuple[Any, tuple[np.ndarray, list[str]] | None]] = \
+    WeakKeyDictionary()
+#: The spines' drawn extents (pixels) per spine and axes position: with the axis hidden
+#: a spine's extent is its line along the whole side of the axes, whatever the view.
+_FRAMES: WeakKeyDictionary[Any, tuple[Any, Bbox]] = WeakKeyDictionary()
 
 
 class TickLayer(Artist):
@@ -125,7 +146,11 @@ class TickLayer(Artist):
         """The axis label ``labelpad`` beyond the numbers and the spine with its marks,
         as ``Axis._update_label_position`` places it (left and bottom axes)."""
         spine = self.ax.spines["bottom" if side.level else "left"]
-        frame = spine.get_window_extent().frozen()
+        key = tuple(self.ax.bbox.bounds)
+        kept = _FRAMES.get(spine)
+        if kept is None or kept[0] != key:
+            kept = _FRAMES[spine] = (key, spine.get_window_extent().frozen())
+        frame = kept[1].frozen()
         if ticks and side.show_marks:
             reach = side.size_px if side.out else 0.0
             if side.level:
