@@ -67,6 +67,11 @@ def _key(style: dict[str, Any]) -> Hashable:
                         for k, v in style.items()))
 
 
+#: At most this many templates are kept per panel (a style that varies without end,
+#: such as a new transform object per item, empties the templates, never grows them).
+_TEMPLATES = 256
+
+
 class Panel:
     """One axes' display lists and kept templates (see the module docstring)."""
 
@@ -79,6 +84,8 @@ class Panel:
         """Empty every list (the next beam's figure)."""
         for drawn in self.lists.values():
             drawn.items.clear()
+        if len(self.templates) > _TEMPLATES:
+            self.templates.clear()
 
     def _list(self, zorder: float) -> DrawList:
         drawn = self.lists.get(zorder)

@@ -261,7 +261,9 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
             dropped += 1
             continue
         probe.set_text(lab.text)
-        size = probe.get_window_extent(renderer)
+        # the extent as ``Text.get_window_extent`` gives it at the origin (its layout)
+        size = probe._get_layout(renderer)[0] if lab.text else \
+            probe.get_window_extent(renderer)
         w, h = size.width, size.height
         corner = _first_free(ax_x, ax_y, w, h, 1.0 if lab.above else -1.0, px_per_pt,
                              frame, np.array(placed))
@@ -297,7 +299,7 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
         else:
             _annotate(ax, lab.text, (lab.x, lab.y), offset, textcoords="offset points",
                       annotation_clip=False, **style)
-    points = Affine2D().scale(1.0 / 72.0) + fig.dpi_scale_trans
+    points = _points(fig)
     for ax, (anchors, boxes, starts, leaders) in drawn.items():
         _collection(ax, PolyCollection, boxes, anchors, offset_transform=ax.transData,
                     transform=points, facecolors=PAPER, edgecolors="none", linewidths=0.0,
@@ -307,6 +309,19 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
                         transform=points, colors=SOFT, linewidths=0.5, capstyle="butt",
                         zorder=7.8, clip_on=False, gid="value-label-leaders")
     return len(labels) - markers - dropped, dropped
+
+
+#: Each figure's points-to-pixels transform (one object per figure, so that a display
+#: list keeps one template per style).
+_POINTS: WeakKeyDictionary[Any, Any] = WeakKeyDictionary()
+
+
+def _points(fig: Figure) -> Any:
+    """The transform from points to pixels of ``fig`` (kept per figure)."""
+    points = _POINTS.get(fig)
+    if points is None:
+        points = _POINTS[fig] = Affine2D().scale(1.0 / 72.0) + fig.dpi_scale_trans
+    return points
 
 
 # --------------------------------------------------------------------------- helpers

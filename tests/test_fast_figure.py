@@ -16,7 +16,7 @@ import pytest
 from PIL import Image
 
 import envelope
-from envelope import plots, stamp, store, ticks
+from envelope import drawlist, plots, stamp, store, ticks
 
 from beams import make_cases_module
 
@@ -115,3 +115,20 @@ def test_the_key_is_pasted_from_kept_pixels_only_over_the_same_background(
         assert drawn
     finally:
         plots.Legend.draw = original
+
+
+def test_the_display_lists_keep_one_template_per_style(tmp_path: Path) -> None:
+    """Beams drawn one after another on the kept figure record their items on the same
+    display lists and reuse the templates of the styles seen before: drawing a beam
+    again adds no template (a style rebuilt per item, such as a new transform object
+    each time, would add one per item and beam)."""
+    plots._KEPT.clear()
+    cols = _columns(CASES[0])
+    plots.draw_results(cols, tmp_path / "a.png", durable=False)
+    (_, axes), = plots._KEPT.values()
+    panels = [drawlist.panel_of(ax) for ax in axes]
+    assert all(panels)
+    counts = [(len(p.templates), p.count()) for p in panels]
+    assert sum(c for _, c in counts) > 50  # the panels' contents are on the lists
+    plots.draw_results(cols, tmp_path / "b.png", durable=False)
+    assert [(len(p.templates), p.count()) for p in panels] == counts
