@@ -39,9 +39,9 @@ from matplotlib.collections import FillBetweenPolyCollection, LineCollection
 from matplotlib.lines import Line2D
 from matplotlib.patches import FancyArrowPatch, Polygon, Rectangle
 from matplotlib.path import Path
-from matplotlib.transforms import Affine2D
+from matplotlib.transforms import Affine2D, Bbox
 
-from envelope.glyphs import KeptText
+from envelope.glyphs import KeptText, kept_layout
 
 Item = tuple[Callable[..., None], tuple[Any, ...]]
 
@@ -366,16 +366,21 @@ def _draw_arrow(renderer: Any, ax: Any, patch: FancyArrowPatch, xy: tuple[float,
     patch.draw(renderer)
 
 
-def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> None:
-    """``Text.draw`` of ``text`` at (posx, posy) pixels (its layout kept)."""
+def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> Bbox | None:
+    """``Text.draw`` of ``text`` at (posx, posy) pixels (its layout kept); its extent
+    there, as ``Text.get_window_extent`` gives it (None where nothing is drawn)."""
     if not (np.isfinite(posx) and np.isfinite(posy)):
-        return
-    _, info, _ = text._get_layout(renderer)
+        return None
+    if (text._bbox_patch or text.get_path_effects() or text.get_usetex()
+            or any(text._preprocess_math(line)[1] for line in text.get_text().split("\n"))):
+        text.draw(renderer)  # a box, path effects, TeX or math: as matplotlib draws it
+        return text.get_window_extent(renderer)
+    bbox, info, _ = kept_layout(text, renderer)
     canvash = renderer.get_canvas_width_height()[1]
     gc = renderer.new_gc()
     gc.set_foreground(mcolors.to_rgba(text.get_color()), isRGBA=True)
     gc.set_alpha(text.get_alpha())
-    gc.set_url(None)
+    gc.set_url(text._url)
     gc.set_antialiased(text._antialiased)
     gc.set_snap(text.get_snap())
     text._set_gc_clip(gc)
@@ -383,18 +388,21 @@ def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> None:
     prop = text._fontproperties
     mtext = text if len(info) == 1 else None
     for line, _, (x, y) in info:
-        renderer.draw_text(gc, x + posx, canvash - (y + posy), line, prop, angle,
+        clean, _ = text._preprocess_math(line)
+        renderer.draw_text(gc, x + posx, canvash - (y + posy), clean, prop, angle,
                            ismath=False, mtext=mtext)
     gc.restore()
+    return bbox.translated(posx, posy)
 
 
-def draw_text(renderer: Any, text: Any) -> None:
-    """``Text.draw`` of a level or upright text without a box, math or path effects,
-    as it stands (position, string, style): the same ``draw_text`` calls."""
+def draw_text(renderer: Any, text: Any) -> Bbox | None:
+    """``Text.draw`` of ``text`` as it stands (position, string, style): the same
+    ``draw_text`` calls, its layout kept; its extent (pixels), or None where nothing is
+    drawn.  A text with a box, path effects, TeX or math is drawn by matplotlib."""
     if not text.get_visible() or not text.get_text():
-        return
+        return None
     posx, posy = text.get_transform().transform((float(text._x), float(text._y)))
-    _draw_lines_of(renderer, text, posx, posy)
+    return _draw_lines_of(renderer, text, posx, posy)
 
 
 def _draw_text(renderer: Any, text: Any, x: float, y: float, s: str) -> None:

@@ -313,25 +313,30 @@ class CachedTextCanvas(FigureCanvasAgg):
 _TEXT_LAYOUTS: dict[_Key, Any] = {}
 
 
+def kept_layout(text: Any, renderer: Any) -> Any:
+    """``Text._get_layout`` of ``text``, kept per string and style on the raster canvas
+    (see :class:`_KeptLayout`); elsewhere matplotlib's, computed."""
+    if type(renderer) is not CachedTextRenderer or text.get_wrap():
+        return Text._get_layout(text, renderer)  # type: ignore[attr-defined]
+    key = (text.get_text(), _font_key(text._fontproperties), text._horizontalalignment,
+           text._verticalalignment, text._multialignment, text.get_rotation(),
+           text.get_rotation_mode(), text._linespacing, text.get_usetex(),
+           text._parse_math, renderer.dpi, text.get_figure(root=True).dpi,
+           get_hinting_flag())
+    hit = _TEXT_LAYOUTS.get(key)
+    if hit is None:
+        hit = _bounded(_TEXT_LAYOUTS).setdefault(
+            key, Text._get_layout(text, renderer))  # type: ignore[attr-defined]
+    return hit
+
+
 class _KeptLayout:
     """A text whose layout (extent, lines and their offsets from its position) is kept
     per string and style on the raster canvas: matplotlib lays a text out again at each
     draw and each measurement (a third of the time of drawing a small text)."""
 
     def _get_layout(self, renderer: Any) -> Any:
-        text: Any = self
-        if type(renderer) is not CachedTextRenderer or text.get_wrap():
-            return super()._get_layout(renderer)  # type: ignore[misc]
-        key = (text.get_text(), _font_key(text._fontproperties), text._horizontalalignment,
-               text._verticalalignment, text._multialignment, text.get_rotation(),
-               text.get_rotation_mode(), text._linespacing, text.get_usetex(),
-               text._parse_math, renderer.dpi, text.get_figure(root=True).dpi,
-               get_hinting_flag())
-        hit = _TEXT_LAYOUTS.get(key)
-        if hit is None:
-            hit = _bounded(_TEXT_LAYOUTS).setdefault(
-                key, super()._get_layout(renderer))  # type: ignore[misc]
-        return hit
+        return kept_layout(self, renderer)
 
 
 class KeptText(_KeptLayout, Text):

@@ -38,7 +38,7 @@ import matplotlib as mpl
 import numpy as np
 from matplotlib.axis import GRIDLINE_INTERPOLATION_STEPS
 from matplotlib.collections import LineCollection, PolyCollection
-from matplotlib.figure import Figure
+from matplotlib.figure import Figure, _stale_figure_callback  # type: ignore[attr-defined]
 from matplotlib.legend import Legend
 from matplotlib.lines import Line2D
 from matplotlib.patches import Polygon, Rectangle
@@ -497,6 +497,18 @@ def _text(ax: Any, x: float, y: float, s: str, **style: Any) -> Text | None:
     return text
 
 
+def _fig_text(fig: Figure, x: float, y: float, s: str, **style: Any) -> Text:
+    """A text added to ``fig`` as ``Figure.text`` adds it (its layout kept on the raster
+    canvas: :class:`envelope.glyphs.KeptText`)."""
+    text = KeptText(x, y, s, **{"transform": fig.transSubfigure, **style})
+    text.set_figure(fig)
+    text.stale_callback = _stale_figure_callback
+    fig.texts.append(text)
+    text._remove_method = fig.texts.remove  # type: ignore[attr-defined]
+    fig.stale = True
+    return text
+
+
 def _annotate(ax: Any, s: str, xy: tuple[float, float], xytext: tuple[float, float],
               **style: Any) -> Annotation:
     """An annotation added to ``ax`` as ``Axes.annotate`` adds it (its layout kept on
@@ -833,11 +845,11 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False,
 
     # the title, the caution, the key
     fx0 = axes[1].get_position().x0
-    fig.text(fx0, axes[0].get_position().y1 + 0.28 / fig.get_figheight(),
-             literal(title or "Envelopes", TITLE_CHARS), fontsize=10.5, color=INK,
-             weight="bold", ha="left", va="bottom", parse_math=False)
-    fig.text(fx0, 0.1 / fig.get_figheight(), CAUTION, fontsize=7, color=MAX_COLOUR,
-             ha="left", va="bottom", parse_math=False)
+    _fig_text(fig, fx0, axes[0].get_position().y1 + 0.28 / fig.get_figheight(),
+              literal(title or "Envelopes", TITLE_CHARS), fontsize=10.5, color=INK,
+              weight="bold", ha="left", va="bottom", parse_math=False)
+    _fig_text(fig, fx0, 0.1 / fig.get_figheight(), CAUTION, fontsize=7, color=MAX_COLOUR,
+              ha="left", va="bottom", parse_math=False)
 
     used = _strip(strip, sk, joint_x, kinds, units, n_lanes)
     strip.set_xlim(m_ax.get_xlim())
@@ -1240,5 +1252,5 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
             "Labels: value, governing combination, loaded spans; CL at the centreline.")
     if dropped:
         note += f" {dropped} labels left out for want of room (see design.parquet)."
-    fig.text(_LEFT / fig.get_figwidth(), 0.27 / fig.get_figheight(), note, fontsize=6.5,
-             color=SOFT, ha="left", va="bottom", parse_math=False)
+    _fig_text(fig, _LEFT / fig.get_figwidth(), 0.27 / fig.get_figheight(), note,
+              fontsize=6.5, color=SOFT, ha="left", va="bottom", parse_math=False)

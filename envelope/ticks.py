@@ -90,9 +90,9 @@ class _Side:
             else:
                 number.set_y(loc)
             number.set_text(text)
-            draw_text(renderer, number)
+            box = draw_text(renderer, number)
             if text:
-                boxes.append(number.get_window_extent(renderer))
+                boxes.append(box if box is not None else number.get_window_extent(renderer))
         return boxes
 
 
@@ -138,7 +138,7 @@ class TickLayer(Artist):
                 continue
             if axis._autolabelpos:
                 self._place_label(axis, side, boxes, bool(locs.size))
-            label.draw(renderer)
+            draw_text(renderer, label)
         renderer.close_group("ticks")
         self.stale = False
 
