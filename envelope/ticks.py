@@ -56,7 +56,10 @@ class _Side:
         axis = self.axis
         if axis.get_scale() != "linear":
             return None
-        key = (tuple(axis.get_view_interval()), axis.axes.bbox.width, axis.axes.bbox.height)
+        # the locator's tick space is the axis' length (and the numbers' size, the same
+        # in every panel)
+        box = axis.axes.bbox
+        key = (tuple(axis.get_view_interval()), box.width if self.level else box.height)
         last = _LAST.get(axis.major)
         if last is not None and last[0] == key:
             return last[1]
