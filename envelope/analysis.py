@@ -110,7 +110,37 @@ def support_moments(reaction_moment: np.ndarray) -> np.ndarray:
 
 def _reduce_rows(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None,
                  known: dict[bytes, str] | None = None) -> Extremes | None:
-    return None if cs.is_empty else reduce(R, cs, known=known, moving=moving)
+    """Envelope of the support rows ``R`` (supports x unit cases, consistent units) over
+    ``cs`` (None for an empty set), in blocks of at most
+    :data:`envelope.config.SUPPORT_CHUNK_VALUES` values, so that each block's arrays and
+    the reduction's temporaries stay near the processor's cache on a long beam; each
+    distinct ``_loaded`` text is built once for all blocks (and once with ``known``'s).
+    Each row's values are those of :func:`envelope.enveloper.reduce` of all rows at once,
+    to round-off (the matrix products may sum a block differently)."""
+    if cs.is_empty:
+        return None
+    return reduce_blocks(R, cs, moving, known=known)
+
+
+def reduce_blocks(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None,
+                  values: int | None = None, known: dict[bytes, str] | None = None
+                  ) -> Extremes:
+    """:func:`envelope.enveloper.reduce` of ``R`` (rows x unit cases) in blocks of rows
+    of at most ``values`` values (default :data:`envelope.config.SUPPORT_CHUNK_VALUES`;
+    at least one row a block), the blocks' results joined in row order; ``known``: the
+    ``_loaded`` texts already built for ``cs`` (shared with the blocks and added to)."""
+    n_rows, n_units = R.shape
+    step = max(1, (config.SUPPORT_CHUNK_VALUES if values is None else values)
+               // max(n_units, 1))
+    known = {} if known is None else known
+    if n_rows <= step:
+        return reduce(R, cs, known=known, moving=moving)
+    parts = []
+    for lo in range(0, n_rows, step):
+        rows = np.arange(lo, min(lo + step, n_rows))
+        parts.append(reduce(R[rows], cs, known=known,
+                            moving=None if moving is None else moving.rows(rows)))
+    return Extremes.concat(parts)
 
 
 def left_out_of_explicit_cases(beam: Beam) -> tuple[str, ...]:

@@ -38,6 +38,14 @@ ENVELOPE_CHUNK_VALUES = 1 << 19
 #: quicker than importing numba (which also holds about 130 MiB once loaded).
 KERNEL_MIN_UNITS = 512
 
+#: Most (supports x unit cases) values in one block of the support envelopes (reactions
+#: and support moments): 512 KiB of float64 a block, so that the block and the few arrays
+#: of its size that the reduction makes (the governing choice, its products and signs)
+#: stay near a core's 1 MiB second-level cache.  All support rows at once left the
+#: cache from 256 spans with 4 segments a span (257 x 2048 values, 4 MiB an array) and
+#: grew faster than supports x unit cases; of 2^13 to 2^17 values a block this size was
+#: quickest at 128 to 512 spans (benchmarks/supports_bench.py).
+SUPPORT_CHUNK_VALUES = 1 << 16
 #: Most (elements x unit cases) values in one block of columns of the solve: its
 #: working arrays are (elements x 4 x unit cases) float64, 2 MiB each at this size
 #: (a dozen of them live at once)...

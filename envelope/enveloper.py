@@ -37,6 +37,7 @@ from __future__ import annotations
 
 import itertools
 import json
+from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -66,6 +67,8 @@ class _Columns:
     combinations: tuple[Combination, ...]
     cell_labels: tuple[str, ...]
     unit_case_name: tuple[str, ...]  # per unit
+    case_names: tuple[str, ...]  # the distinct case names of the units, in order of appearance
+    unit_case: np.ndarray  # per unit: the index of its case name in ``case_names``
     unit_cell: np.ndarray  # per unit
     col_combo: np.ndarray  # (columns,) combination index
     fixed: np.ndarray  # factors always applied
@@ -324,10 +327,19 @@ def _common(combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
     """The fields every case set has, from its columns."""
     n_u = units.n_units
     return {"combinations": combos, "cell_labels": cells.label,
-            "unit_case_name": tuple(inp.names), "unit_cell": units.cell,
+            "unit_case_name": tuple(inp.names), "case_names": tuple(dict.fromkeys(inp.names)),
+            "unit_case": _first_seen(inp.names),
+            "unit_cell": units.cell,
             "col_combo": np.array(col_combo, dtype=np.int64), "fixed": _stack(fixed, n_u),
             **groups.fields(n_u, cells.n), "switchable": inp.switchable,
             "all_patterned": inp.all_patterned}
+
+
+def _first_seen(names: Sequence[str]) -> np.ndarray:
+    """Per name, the index of its value among the distinct values in order of first
+    appearance (``list(dict.fromkeys(names)).index(name)``)."""
+    index: dict[str, int] = {}
+    return np.array([index.setdefault(n, len(index)) for n in names], dtype=np.int64)
 
 
 def _superposed(combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
@@ -699,8 +711,8 @@ def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray |
     text = np.empty(first.size, dtype=object)
     n_g = len(cs.cell_labels)
     present: dict[int, dict[str, set[int]]] = {}
-    case_names = list(dict.fromkeys(cs.unit_case_name))
-    unit_case = np.array([case_names.index(n) for n in cs.unit_case_name], dtype=np.int64)
+    case_names = list(cs.case_names)
+    unit_case = cs.unit_case
     for i, row in enumerate(first):
         seen = known.get(raw[row].tobytes())
         if seen is not None:
