@@ -127,14 +127,16 @@ def reduce_blocks(R: np.ndarray, cs: CaseSet, moving: MovingEffect | None = None
                   ) -> Extremes:
     """:func:`envelope.enveloper.reduce` of ``R`` (rows x unit cases) in blocks of rows
     of at most ``values`` values (default :data:`envelope.config.SUPPORT_CHUNK_VALUES`;
-    at least one row a block), the blocks' results joined in row order; ``known``: the
-    ``_loaded`` texts already built for ``cs`` (shared with the blocks and added to)."""
+    at least one row a block; the blocks as equal as the rows allow), the blocks' results
+    joined in row order; ``known``: the ``_loaded`` texts already built for ``cs``
+    (shared with the blocks and added to)."""
     n_rows, n_units = R.shape
     step = max(1, (config.SUPPORT_CHUNK_VALUES if values is None else values)
                // max(n_units, 1))
     known = {} if known is None else known
     if n_rows <= step:
         return reduce(R, cs, known=known, moving=moving)
+    step = -(-n_rows // -(-n_rows // step))  # blocks of equal size, none a few rows long
     parts = []
     for lo in range(0, n_rows, step):
         rows = np.arange(lo, min(lo + step, n_rows))
