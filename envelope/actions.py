@@ -26,7 +26,7 @@ import numpy as np
 
 from envelope import config
 from envelope.contracted import SpanCases, contract, response
-from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients
+from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients, reduce
 from envelope.moving import MovingEffect, moving_loads, point_effects
 from envelope.recovery import Points, evaluate_some, make_points, pair_count
 from envelope.search import golden_max, illinois_root
@@ -74,19 +74,36 @@ def _starts(v: np.ndarray) -> np.ndarray:
     return out
 
 
+@dataclass(frozen=True, slots=True)
+class _StationMaxima:
+    """Per group of rows (a span of a request): the best station's value, x_span and row
+    (the first best; -1 for a group without rows).  Per local maximum among the distinct
+    station positions of a group: its group, position with the neighbouring positions (a,
+    x, b), and the last row at that position (the right-side limit at a jump)."""
+
+    best: np.ndarray
+    best_x: np.ndarray
+    best_row: np.ndarray
+    group: np.ndarray
+    a: np.ndarray
+    x: np.ndarray
+    b: np.ndarray
+    row: np.ndarray
+
+
 def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
-                    n_groups: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray,
-                                            np.ndarray, np.ndarray]:
-    """Best station of each group of rows (``span``: a group per span and request; value,
-    x_span: the first best row), and each local maximum among the distinct station
-    positions of a group: its group and position with the neighbouring positions (a, x,
-    b); a plateau counts once, at its start."""
+                    n_groups: int) -> _StationMaxima:
+    """The best station of each group of rows (``span``: a group per span and request)
+    and each local maximum among the distinct station positions of a group (see
+    :class:`_StationMaxima`); a plateau counts once, at its start."""
     best = np.full(n_groups, -np.inf)
     best_x = np.zeros(n_groups)
+    best_row = np.full(n_groups, -1, dtype=np.int64)
     rows = np.arange(span.size)
     first_best = np.lexsort((rows, -values, span))  # per group: largest, first row
     head = first_best[_starts(span[first_best])]
-    best[span[head]], best_x[span[head]] = values[head], x_span[head]
+    best[span[head]], best_x[span[head]], best_row[span[head]] = (values[head], x_span[head],
+                                                                  head)
 
     order = np.lexsort((rows, x_span, span))
     sp, xs, vals = span[order], x_span[order], values[order]
@@ -101,7 +118,8 @@ def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
     i = np.flatnonzero((uv > left) & (uv >= right))
     a = np.where(opens[i], ux[i], ux[np.maximum(i - 1, 0)])
     b = np.where(closes[i], ux[i], ux[np.minimum(i + 1, ux.size - 1)])
-    return best, best_x, us[i], a, ux[i], b
+    last = order[np.append(starts[1:], order.size) - 1]  # the last row at each position
+    return _StationMaxima(best, best_x, best_row, us[i], a, ux[i], b, last[i])
 
 
 def refine_maxima(solved: Solved, pts: Points, requests: Sequence[Request]
@@ -110,32 +128,127 @@ def refine_maxima(solved: Solved, pts: Points, requests: Sequence[Request]
     value in each span and its x_span.  Each step evaluates the points of every request
     together; each request's brackets stop when its own are done, so each answer is the
     one its search alone would give (to round-off)."""
+    return [(f.value, f.x) for f in _refine(solved, pts, requests)]
+
+
+@dataclass(frozen=True, slots=True)
+class _Found:
+    """One request's answer per span: the largest value and its x_span; the station row
+    where the best station stands (-1 where a refined maximum is above it); the
+    combination of the request's case set governing a refined maximum (-1 where not
+    known, or at a station)."""
+
+    value: np.ndarray
+    x: np.ndarray
+    row: np.ndarray
+    combo: np.ndarray
+
+
+def _refine(solved: Solved, pts: Points, requests: Sequence[Request],
+            block: _Block | None = None) -> list[_Found]:
+    """:func:`refine_maxima`, each answer with where it came from (:class:`_Found`);
+    ``block``: the unit responses at the stations, where one evaluation holds them all
+    (the governing cases at the bracket stations are then read from it)."""
     n_spans = solved.beam.n_spans
     n_req = len(requests)
     if not n_req:
         return []
     # every request's stations at once: a group of rows per (request, span)
-    best, best_x, group, a, x, b = _station_maxima(
+    sm = _station_maxima(
         (np.arange(n_req)[:, None] * n_spans + pts.span).ravel(),
         np.tile(pts.x_span, n_req), np.concatenate([env_max for env_max, _, _ in requests]),
         n_req * n_spans)
-    out = [(best[t * n_spans:(t + 1) * n_spans], best_x[t * n_spans:(t + 1) * n_spans])
-           for t in range(n_req)]
-    if not group.size:
-        return out
-    task, span = np.divmod(group, n_spans)
-    length = np.asarray(solved.beam.geometry.span_length, dtype=float)[span]
-    br = _Brackets(task, span.astype(np.int64), length, x, a, b)
-    scale = [float(np.max(np.abs(env_max), initial=0.0)) for env_max, _, _ in requests]
-    search = _Search(solved, [(q, c or QUANTITY_SET[q]) for _, q, c in requests], scale)
-    xm, vm = search.refine(br)
-    # per (request, span): the first of its largest refined maxima, where above the best
-    # station
-    order = np.lexsort((np.arange(group.size), -vm, group))
-    head = order[_starts(group[order])]
-    up = head[vm[head] > best[group[head]]]
-    best[group[up]], best_x[group[up]] = vm[up], xm[up]
-    return out
+    best, best_x = sm.best, sm.best_x
+    best_row = np.where(sm.best_row >= 0, sm.best_row % max(pts.n, 1), -1)
+    combo = np.full(best.size, -1, dtype=np.int64)
+    group = sm.group
+    if group.size:
+        task, span = np.divmod(group, n_spans)
+        length = np.asarray(solved.beam.geometry.span_length, dtype=float)[span]
+        br = _Brackets(task, span.astype(np.int64), length, sm.x, sm.a, sm.b)
+        scale = [float(np.max(np.abs(env_max), initial=0.0)) for env_max, _, _ in requests]
+        search = _Search(solved, [(q, c or QUANTITY_SET[q]) for _, q, c in requests], scale)
+        coef = None if block is None else block.governing(search, task, sm.row % pts.n, span)
+        xm, vm, cm = search.refine(br, coef)
+        # per (request, span): the first of its largest refined maxima, where above the
+        # best station
+        order = np.lexsort((np.arange(group.size), -vm, group))
+        head = order[_starts(group[order])]
+        up = head[vm[head] > best[group[head]]]
+        best[group[up]], best_x[group[up]] = vm[up], xm[up]
+        best_row[group[up]], combo[group[up]] = -1, cm[up]
+    return [_Found(*(v[t * n_spans:(t + 1) * n_spans] for v in (best, best_x, best_row, combo)))
+            for t in range(n_req)]
+
+
+@dataclass(frozen=True, slots=True)
+class _Block:
+    """Every unit case's response at the stations (``n_stations`` rows), then at each
+    span's right end as a right-side limit (a row per span), then at the support faces
+    (left faces, then right faces), all in one evaluation per solution: per (quantity,
+    ``id`` of the solution) its rows x unit cases, in the units of
+    :mod:`envelope.recovery`.  ``right``: the stations' side.  ``sums``: whether the
+    column sums are the kernel's (as :func:`envelope.solved.envelopes_at` makes them for
+    these stations)."""
+
+    n_stations: int
+    n_spans: int
+    right: np.ndarray
+    responses: dict[tuple[str, int], np.ndarray]
+    sums: bool
+
+    def rows_at(self, station_rows: np.ndarray, span: np.ndarray) -> np.ndarray:
+        """The rows of the points (span, x_span of ``station_rows``) as right-side limits,
+        as :func:`envelope.recovery.make_points` makes them: the station's own row, or
+        the span's end row where the station is a left-side limit (at x_span = L)."""
+        return np.where(self.right[station_rows], station_rows, self.n_stations + span)
+
+    def faces(self, quantity: str, solution: Solution) -> np.ndarray:
+        """The responses at the faces (left faces of every span, then right faces)."""
+        return self.responses[(quantity, id(solution))][self.n_stations + self.n_spans:]
+
+    def governing(self, search: _Search, task: np.ndarray, station_rows: np.ndarray,
+                  span: np.ndarray) -> np.ndarray | None:
+        """The coefficients of the case governing each bracket's own request at its
+        station (rows x unit cases, :func:`envelope.enveloper.governing_coefficients`),
+        or None where the block lacks a request's quantity."""
+        rows = self.rows_at(station_rows, span)
+        coef = np.empty((task.size, search.solved.unit_cases.n_units))
+        for t, mine in search._each_task(task):
+            R = self.responses.get((search.quantity[t], id(search.solution[t])))
+            if R is None:
+                return None
+            coef[mine] = governing_coefficients(R[rows[mine]], search.sets[t])
+        return coef
+
+
+def _one_block(solved: Solved, pts: Points, faces: Points | None) -> _Block | None:
+    """The moment (strength solution) and deflection (service solution) of every unit
+    case at the stations, the spans' right ends and ``faces`` (:class:`_Block`), where
+    they fit in one block of :func:`envelope.solved.chunk_rows` rows and the beam has no
+    moving loads; else None.  The responses are those :func:`envelope.solved.envelopes_at`
+    makes at the stations (the same way of summing)."""
+    beam = solved.beam
+    n_units = solved.unit_cases.n_units
+    n = beam.n_spans
+    n_faces = 0 if faces is None else faces.n
+    if moving_loads(beam) or pts.n + n + n_faces > chunk_rows(n_units):
+        return None
+    ends = make_points(beam, np.arange(n), np.asarray(beam.geometry.span_length, float))
+    parts = [pts, ends] if faces is None else [pts, ends, faces]
+    points = Points(*(np.concatenate([getattr(p, f) for p in parts])
+                      for f in ("span", "x_span", "right", "x")))
+    sums = n_units >= config.KERNEL_MIN_UNITS
+    terms = sums or pair_count(solved.mesh, solved.unit_cases, pts) > config.KERNEL_MIN_PAIRS
+    wanted: dict[int, tuple[Solution, tuple[str, ...]]] = {}
+    for q in ("moment", "deflection"):
+        sol = solved.solution_for(QUANTITY_SET[q])
+        wanted[id(sol)] = (sol, wanted.get(id(sol), (sol, ()))[1] + (q,))
+    responses: dict[tuple[str, int], np.ndarray] = {}
+    for key, (sol, names) in wanted.items():
+        resp = evaluate_some(solved.mesh, solved.unit_cases, sol, points, names, kernel=terms)
+        responses.update({(q, key): resp[q] for q in names})
+    return _Block(pts.n, n, pts.right, responses, sums)
 
 
 class _Search:
@@ -154,11 +267,16 @@ class _Search:
         self.solution = [solved.solution_for(name) for _, name in tasks]
         self.is_deflection = np.array([q == "deflection" for q, _ in tasks], dtype=bool)
 
-    def refine(self, br: _Brackets) -> tuple[np.ndarray, np.ndarray]:
-        """Position and value of the maximum in each bracket (see the module docstring)."""
+    def refine(self, br: _Brackets, coef: np.ndarray | None = None
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Position and value of the maximum in each bracket (see the module docstring),
+        and the combination governing the envelope there (-1 where not known: a
+        maximum left by golden section).  ``coef``: the case governing each bracket at
+        its station, where already known."""
         # a smooth maximum: the case governing at the station has a slope root between the
         # neighbouring stations and still governs there -> exact at once
-        xm, vm, done = self.root_of_governing(br.task, br.span, br.length, br.x, br.a, br.b)
+        xm, vm, done, cm = self.root_of_governing(br.task, br.span, br.length, br.x, br.a,
+                                                  br.b, coef)
         if not np.all(done):
             # a vertex at the station itself (under a point load, at a span end): the
             # envelope is lower on both sides, near and far
@@ -185,13 +303,14 @@ class _Search:
             xg, vg = golden_max(f, br.a[rest], br.b[rest], config.GOLDEN_XTOL * length,
                                 group=task)
             h = config.ROOT_BRACKET * length
-            xr, vr, _ = self.root_of_governing(task, span, length, xg,
-                                               np.maximum(xg - h, 0.0),
-                                               np.minimum(xg + h, length))
+            xr, vr, _, cr = self.root_of_governing(task, span, length, xg,
+                                                   np.maximum(xg - h, 0.0),
+                                                   np.minimum(xg + h, length))
             better = vr >= vg - config.ZERO_RTOL * np.abs(vg)
             xm[rest] = np.where(better, xr, xg)
             vm[rest] = np.where(better, np.maximum(vr, vg), vg)
-        return xm, vm
+            cm[rest] = np.where(better, cr, -1)
+        return xm, vm, cm
 
     def _each_task(self, task: np.ndarray) -> list[tuple[int, np.ndarray]]:
         """The requests present in ``task`` and their rows (ascending), in request
@@ -240,15 +359,21 @@ class _Search:
                   for sol, tasks in self._by_solution(task)]
         return contract(s.mesh, s.unit_cases, groups, span, coef)
 
-    def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray
-                     ) -> np.ndarray:
+    def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray,
+                     combo: np.ndarray | None = None) -> np.ndarray:
         """Envelope maximum of each point's own request (its quantity over its case set),
         in chunks of :func:`envelope.solved.chunk_rows` rows a request; NaN at
-        a NaN position (a bracket whose search has finished)."""
+        a NaN position (a bracket whose search has finished).  ``combo``, where given, is
+        filled with the combination (index into the request's case set) governing each
+        point, the first where several give the largest value (as
+        :func:`envelope.enveloper.reduce` names it)."""
         out = np.full(x.size, np.nan)
         if np.isnan(x).any():
             keep = np.flatnonzero(~np.isnan(x))
-            out[keep] = self.envelope_max(task[keep], span[keep], x[keep])
+            part_combo = None if combo is None else np.full(keep.size, -1, dtype=np.int64)
+            out[keep] = self.envelope_max(task[keep], span[keep], x[keep], part_combo)
+            if combo is not None and part_combo is not None:
+                combo[keep] = part_combo
             return out
         step = chunk_rows(self.solved.unit_cases.n_units)
         for lo in range(0, x.size, step):
@@ -257,6 +382,8 @@ class _Search:
                 vmax = column_max(resp, self.sets[t],
                                   self.moving_at(t, span[part][rows], x[part][rows]))
                 out[lo + rows] = vmax.max(axis=1)
+                if combo is not None:
+                    combo[lo + rows] = self.sets[t].col_combo[np.argmax(vmax, axis=1)]
         return out
 
     def moving_at(self, t: int, span: np.ndarray, x: np.ndarray) -> MovingEffect | None:
@@ -269,33 +396,39 @@ class _Search:
         return point_effects(beam, make_points(beam, span, x), (q,))[q]
 
     def root_of_governing(self, task: np.ndarray, span: np.ndarray, length: np.ndarray,
-                          x: np.ndarray, lo: np.ndarray, hi: np.ndarray
-                          ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                          x: np.ndarray, lo: np.ndarray, hi: np.ndarray,
+                          coef: np.ndarray | None = None
+                          ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """The root in [lo, hi] of the slope (shear for moment, rotation for deflection)
         of the case governing at ``x``, by Illinois regula falsi, exact to round-off.
 
         Returns the root, the envelope there, and whether that is a true maximum of the
         envelope: the slope changed sign from + to - (or, with ``x`` at an end of its
         bracket, falls away from it) and the same case still governs there.  Elsewhere
-        the root and value are ``x`` and the envelope at ``x``.  The brackets are
+        the root and value are ``x`` and the envelope at ``x``.  Last, the combination
+        governing the envelope at the root (see :meth:`envelope_max`).  The brackets are
         searched in blocks of :func:`envelope.solved.chunk_rows` (each holds a row of
-        responses and of coefficients over every unit case), so memory stays bounded."""
+        responses and of coefficients over every unit case), so memory stays bounded.
+        ``coef``: the case governing at each ``x`` (rows x unit cases), where already
+        known (one block only)."""
         step = chunk_rows(self.solved.unit_cases.n_units)
         if x.size <= step:
-            return self._root_block(task, span, length, x, lo, hi)
+            return self._root_block(task, span, length, x, lo, hi, coef)
         parts = [self._root_block(*(a[i:i + step] for a in (task, span, length, x, lo, hi)))
                  for i in range(0, x.size, step)]
-        root, value, found = (np.concatenate(p) for p in zip(*parts, strict=True))
-        return root, value, found
+        root, value, found, combo = (np.concatenate(p) for p in zip(*parts, strict=True))
+        return root, value, found, combo
 
     def _root_block(self, task: np.ndarray, span: np.ndarray, length: np.ndarray,
-                    x: np.ndarray, lo: np.ndarray, hi: np.ndarray
-                    ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                    x: np.ndarray, lo: np.ndarray, hi: np.ndarray,
+                    coef: np.ndarray | None = None
+                    ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """:meth:`root_of_governing` of one block of brackets."""
         s = self.solved
-        coef = np.empty((x.size, s.unit_cases.n_units))
-        for t, rows, resp in self.responses(task, span, x):
-            coef[rows] = governing_coefficients(resp, self.sets[t])
+        if coef is None:
+            coef = np.empty((x.size, s.unit_cases.n_units))
+            for t, rows, resp in self.responses(task, span, x):
+                coef[rows] = governing_coefficients(resp, self.sets[t])
         gov = self.contract(task, span, coef)
         deflection = self.is_deflection[task]
         n = x.size
@@ -327,9 +460,10 @@ class _Search:
         ends = np.flatnonzero(at_end)
         probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
         k = probes.shape[1]
+        combo = np.full(n + ends.size * k, -1, dtype=np.int64)
         both = self.envelope_max(np.concatenate([task, np.repeat(task[ends], k)]),
                                  np.concatenate([span, np.repeat(span[ends], k)]),
-                                 np.concatenate([root, probes.ravel()]))
+                                 np.concatenate([root, probes.ravel()]), combo)
         value = both[:n]
         if ends.size:
             inside = both[n:].reshape(probes.shape)
@@ -339,7 +473,7 @@ class _Search:
         scale = np.maximum(np.maximum(np.abs(value), self.scale[task]), _TINY)
         governs = value <= (response(gov, root, deflection, slope=False)
                             + config.GOVERNS_RTOL * scale)
-        return root, value, (ok | at_end) & governs
+        return root, value, (ok | at_end) & governs, combo[:n]
 
 
 def _at_span_ends(pts: Points, n_spans: int) -> tuple[np.ndarray, np.ndarray]:
@@ -369,8 +503,38 @@ def _least_moment(solved: Solved, points: Points) -> np.ndarray:
     for lo in range(0, points.n, step):
         chunk = points.take(slice(lo, lo + step))
         R = evaluate_some(mesh, units, sol, chunk, ("moment",), kernel=terms)["moment"]
-        out[lo: lo + chunk.n] = -column_max(-R, cs, None, sums).max(axis=1)
+        out[lo: lo + chunk.n] = _least(R, cs, sums)
     return out
+
+
+def _least(R: np.ndarray, cs: CaseSet, sums: bool) -> np.ndarray:
+    """The least value over ``cs`` of each row of ``R`` (rows x unit cases), as the
+    negated largest of the negated responses (``sums``: the kernel's column sums)."""
+    return -column_max(-R, cs, None, sums).max(axis=1)
+
+
+def _live_at_stations(solved: Solved, block: _Block) -> Extremes | None:
+    """The live deflection envelope at the stations from ``block``: the values of
+    ``envelope_at(solved, pts, "deflection", "live", labels=False)``, the same sums."""
+    cs = solved.case_set("live")
+    if cs.is_empty:
+        return None
+    R = block.responses[("deflection", id(solved.solution_for("live")))][:block.n_stations]
+    return reduce(R, cs, labels=False, kernel=block.sums)
+
+
+def _live_combo(solved: Solved, live: Extremes, found: _Found) -> np.ndarray:
+    """Per span, the live combination governing at the span's largest live deflection:
+    the station envelope's where that is at a station, the search's where it found it,
+    else the envelope evaluated there."""
+    combo = np.where(found.row >= 0, live.max_combo[np.maximum(found.row, 0)], found.combo)
+    unknown = np.flatnonzero(combo < 0)
+    if unknown.size:
+        at = envelope_at(solved, make_points(solved.beam, unknown, found.x[unknown]),
+                         "deflection", "live", labels=False)
+        assert at is not None
+        combo[unknown] = at.max_combo
+    return combo
 
 
 def design_actions(solved: Solved, pts: Points,
@@ -385,14 +549,22 @@ def design_actions(solved: Solved, pts: Points,
     out: dict[str, np.ndarray] = {"span": np.arange(1, n + 1), "length": length}
 
     moment, shear, deflection = env["moment"], env["shear"], env["deflection"]
-    live = envelope_at(solved, pts, "deflection", "live", labels=False)
+    faces = None if moment is None else make_points(
+        beam, np.r_[np.arange(n), np.arange(n)], np.r_[geometry.face_left, geometry.face_right],
+        np.r_[np.ones(n, bool), np.zeros(n, bool)])
+    # a beam whose stations fit one block: every unit case at the stations, span ends and
+    # faces in one evaluation, read by the live envelope, the governing cases at the
+    # bracket stations and the faces' least moment
+    block = _one_block(solved, pts, faces)
+    live = _live_at_stations(solved, block) if block is not None else envelope_at(
+        solved, pts, "deflection", "live", labels=False)
     # one search for the three maxima: sagging moment, service and live deflection
     wanted = {"moment": (moment, "moment", None), "deflection": (deflection, "deflection", None),
               "live": (live, "deflection", "live")}
     asked = {key: (ext.max, q, c) for key, (ext, q, c) in wanted.items() if ext is not None}
-    found = dict(zip(asked, refine_maxima(solved, pts, list(asked.values())), strict=True))
-    if moment is not None:
-        pos, pos_x = found["moment"]
+    found = dict(zip(asked, _refine(solved, pts, list(asked.values()), block), strict=True))
+    if moment is not None and faces is not None:
+        pos, pos_x = found["moment"].value, found["moment"].x
         # round-off at a free end is not a sagging moment
         zero = config.ZERO_RTOL * max(float(np.abs(moment.max).max()),
                                       float(np.abs(moment.min).max()))
@@ -400,10 +572,9 @@ def design_actions(solved: Solved, pts: Points,
         out["moment_pos_x"] = np.where(pos > zero, pos_x, np.nan)
         out["moment_neg_left"] = np.minimum(moment.min[left], 0.0)
         out["moment_neg_right"] = np.minimum(moment.min[right], 0.0)
-        faces = make_points(beam, np.r_[np.arange(n), np.arange(n)],
-                            np.r_[geometry.face_left, geometry.face_right],
-                            np.r_[np.ones(n, bool), np.zeros(n, bool)])
-        face = _least_moment(solved, faces)
+        face = _least_moment(solved, faces) if block is None else _least(
+            block.faces("moment", solved.solution_for(QUANTITY_SET["moment"])),
+            solved.case_set(QUANTITY_SET["moment"]), block.sums)
         out["moment_neg_left_face"] = np.minimum(face[:n], 0.0)
         out["moment_neg_right_face"] = np.minimum(face[n:], 0.0)
     else:
@@ -417,20 +588,18 @@ def design_actions(solved: Solved, pts: Points,
         out["shear_left"] = out["shear_right"] = nan
 
     if deflection is not None:
-        dmax, _ = found["deflection"]
-        out["deflection_max"] = np.maximum(dmax, 0.0)
+        out["deflection_max"] = np.maximum(found["deflection"].value, 0.0)
     else:
         out["deflection_max"] = nan
     out["deflection_live_combo"] = np.full(n, "", dtype=object)
     if live is not None:
-        lmax, lx = found["live"]
+        lmax = found["live"].value
         out["deflection_live"] = np.maximum(lmax, 0.0)
         # which variable action alone governs, at the span's largest deflection
-        at = envelope_at(solved, make_points(beam, np.arange(n), lx), "deflection", "live",
-                         labels=False)
-        assert at is not None
         names = np.array([c.name for c in solved.live.combinations], dtype=object)
-        out["deflection_live_combo"] = np.where(lmax > 0.0, names[at.max_combo], "")
+        out["deflection_live_combo"] = np.where(lmax > 0.0,
+                                                names[_live_combo(solved, live, found["live"])],
+                                                "")
     else:
         out["deflection_live"] = np.zeros(n)
     with np.errstate(divide="ignore", invalid="ignore"):
