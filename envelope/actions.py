@@ -29,7 +29,7 @@ from envelope.contracted import SpanCases, contract, response
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients, reduce
 from envelope.moving import MovingEffect, moving_loads, point_effects
 from envelope.recovery import Points, evaluate_some, make_points, pair_count
-from envelope.search import golden_max, illinois_root
+from envelope.search import anderson_bjorck_root, golden_max
 from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
 from envelope.values import dataclass
@@ -239,7 +239,11 @@ def _one_block(solved: Solved, pts: Points, faces: Points | None) -> _Block | No
     points = Points(*(np.concatenate([getattr(p, f) for p in parts])
                       for f in ("span", "x_span", "right", "x")))
     sums = n_units >= config.KERNEL_MIN_UNITS
-    terms = sums or pair_count(solved.mesh, solved.unit_cases, pts) > config.KERNEL_MIN_PAIRS
+    # (the pairs are counted only where they might be that many: at most every station
+    # with the most items any element holds)
+    most = int(np.diff(solved.unit_cases.elem_first).max(initial=0))
+    terms = sums or (pts.n * most > config.KERNEL_MIN_PAIRS and pair_count(
+        solved.mesh, solved.unit_cases, pts) > config.KERNEL_MIN_PAIRS)
     wanted: dict[int, tuple[Solution, tuple[str, ...]]] = {}
     for q in ("moment", "deflection"):
         sol = solved.solution_for(QUANTITY_SET[q])
@@ -266,6 +270,7 @@ class _Search:
         # service sets the elastic one
         self.solution = [solved.solution_for(name) for _, name in tasks]
         self.is_deflection = np.array([q == "deflection" for q, _ in tasks], dtype=bool)
+        self.moving = bool(moving_loads(solved.beam))  # asked once, not at every step
 
     def refine(self, br: _Brackets, coef: np.ndarray | None = None
                ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -390,7 +395,7 @@ class _Search:
         """The moving cases' worst effects on request ``t``'s quantity at the points
         (None without moving loads): part of the envelope the search maximises."""
         beam = self.solved.beam
-        if not moving_loads(beam):
+        if not self.moving:
             return None
         q = self.quantity[t]
         return point_effects(beam, make_points(beam, span, x), (q,))[q]
@@ -449,7 +454,7 @@ class _Search:
         up = inner & (left > 0.0) & (right > 0.0)
         down = inner & (left < 0.0) & (right < 0.0)
         tol = config.ROOT_XTOL_EPS * _EPS * np.maximum(length, 1.0)
-        root = illinois_root(slope, np.where(up, x, lo), np.where(down, x, hi),
+        root = anderson_bjorck_root(slope, np.where(up, x, lo), np.where(down, x, hi),
                              np.where(up, right, f_lo), np.where(down, left, f_hi), x,
                              ok & ~at_x, tol, group=task)
         # a maximum at an end of its bracket (a span end): the case falls away inwards and

@@ -89,6 +89,11 @@ GOLDEN_MAX_STEPS = 200
 #: about ten steps to round-off, so the limit only guards against a pathological case.
 ROOT_MAX_STEPS = 60
 
+#: Up to this many brackets, the steps of the design search's root (Anderson-Bjorck)
+#: keep their bookkeeping in Python floats: a step of the array version is some forty
+#: numpy calls of a few microseconds each whatever the size, about as long as the
+#: response it waits for; Python's float steps cost about a microsecond a bracket.
+ROOT_SCALAR_BRACKETS = 48
 #: A slope root is final when a step moves it by at most this many machine epsilons of
 #: the span length (at least of 1 length unit): round-off.
 ROOT_XTOL_EPS = 4.0

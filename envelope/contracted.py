@@ -31,6 +31,11 @@ from envelope.solver import Solution
 _GAUSS_1X = 1.0 + GAUSS_X
 
 
+#: sums along axes without the Python layer of ``ndarray.sum`` (the same reduction: a
+#: step of the search makes a dozen of them on small arrays)
+_sum = np.add.reduce
+
+
 #: the element arrays of a row, in the order of the first axis of ``SpanCases.elem``
 _ELEM = ("start", "length", "EI", "V0", "M0", "theta1", "v1")
 
@@ -169,22 +174,22 @@ def response(sc: SpanCases, x_span: np.ndarray, deflection: np.ndarray, slope: b
     pc = sc.c_p * h
     pcd = pc * dc
     if slope:
-        q = (d_w * wq.sum(axis=2, keepdims=True)).sum(axis=(1, 2))
-        shear = V0 - (q + (c_w * (pc * sc.c_force)).sum(axis=1))
+        q = _sum(d_w * _sum(wq, axis=2, keepdims=True), axis=(1, 2))
+        shear = V0 - (q + _sum(c_w * (pc * sc.c_force), axis=1))
         wqr = wq * r
-        m1 = (d_w * ((wqr * r / 2.0).sum(axis=2, keepdims=True) / ei[..., None])).sum(
-            axis=(1, 2))
+        m1 = _sum(d_w * (_sum(wqr * r / 2.0, axis=2, keepdims=True) / ei[..., None]),
+                  axis=(1, 2))
         c1 = pcd * (0.5 * sc.c_force * dc + (sc.c_force - 1.0))
         rotation = theta1 + (M0 * s + V0 * s**2 / 2.0) / EI - (
-            m1 + (c_w * (c1 / ei)).sum(axis=1))
+            m1 + _sum(c_w * (c1 / ei), axis=1))
         return np.where(deflection, -rotation, shear)
     wqr = wq * r
-    m = (d_w * wqr.sum(axis=2, keepdims=True)).sum(axis=(1, 2))
+    m = _sum(d_w * _sum(wqr, axis=2, keepdims=True), axis=(1, 2))
     c0 = np.where(sc.c_force > 0.0, pcd, -pc)
-    moment = M0 + V0 * s - (m + (c_w * c0).sum(axis=1))
-    m2 = (d_w * ((wqr * r * r / 6.0).sum(axis=2, keepdims=True) / ei[..., None])).sum(
-        axis=(1, 2))
+    moment = M0 + V0 * s - (m + _sum(c_w * c0, axis=1))
+    m2 = _sum(d_w * (_sum(wqr * r * r / 6.0, axis=2, keepdims=True) / ei[..., None]),
+              axis=(1, 2))
     c2 = np.where(sc.c_force > 0.0, pcd * dc * dc / 6.0, -pcd * dc / 2.0)
     v = v1 + theta1 * s + (M0 * s**2 / 2.0 + V0 * s**3 / 6.0) / EI - (
-        m2 + (c_w * (c2 / ei)).sum(axis=1))
+        m2 + _sum(c_w * (c2 / ei), axis=1))
     return np.where(deflection, -v, moment)

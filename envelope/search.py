@@ -106,3 +106,124 @@ def illinois_root(f: Function, lo: np.ndarray, hi: np.ndarray, f_lo: np.ndarray,
         f_lo = np.where(move_hi & (stale < 0), 0.5 * f_lo, f_lo)
         stale = np.where(step, move_lo.view(np.int8) - move_hi.view(np.int8), stale)
     return root
+
+
+def anderson_bjorck_root(f: Function, lo: np.ndarray, hi: np.ndarray, f_lo: np.ndarray,
+                         f_hi: np.ndarray, start: np.ndarray, active: np.ndarray,
+                         xtol: np.ndarray, group: np.ndarray | None = None) -> np.ndarray:
+    """:func:`illinois_root` with the Anderson-Bjorck modification: when the same end
+    moves twice running, the value at the other (stale) end is scaled by
+    ``1 - f_c / f_old`` (the new value over the value it replaces; a half where that is
+    not positive) instead of halved.  The scale follows the function's curvature, so a
+    smooth slope needs fewer steps (about 5.6 against 7 a search on the design search's
+    deflection slopes); the root is the same to ``xtol``.
+
+    Arguments, calls of ``f`` and groups as in :func:`illinois_root`.  Up to
+    :data:`envelope.config.ROOT_SCALAR_BRACKETS` brackets the bookkeeping of each step
+    is done with Python floats (the same IEEE operations, so the same numbers as the
+    array version, which takes more brackets): on a few brackets numpy's fixed cost per
+    call (some forty calls a step) is most of a step's time."""
+    root = np.array(start, dtype=float)
+    if not np.any(active):
+        return root
+    # an inactive bracket stays at its start: the bracket [start, start] with values
+    # (1, -1) puts its regula falsi point there
+    lo = np.where(active, lo, root)
+    hi = np.where(active, hi, root)
+    f_lo = np.where(active, f_lo, 1.0)
+    f_hi = np.where(active, f_hi, -1.0)
+    xtol = np.broadcast_to(np.asarray(xtol, dtype=float), root.shape)
+    if root.size <= config.ROOT_SCALAR_BRACKETS:
+        return _ab_scalar(f, lo, hi, f_lo, f_hi, root, np.asarray(active, dtype=bool), xtol,
+                          group)
+    return _ab_arrays(f, lo, hi, f_lo, f_hi, root, np.asarray(active, dtype=bool), xtol,
+                      group)
+
+
+def _ab_arrays(f: Function, lo: np.ndarray, hi: np.ndarray, f_lo: np.ndarray,
+               f_hi: np.ndarray, root: np.ndarray, active: np.ndarray, xtol: np.ndarray,
+               group: np.ndarray | None) -> np.ndarray:
+    """The steps of :func:`anderson_bjorck_root` on arrays."""
+    stale = np.zeros(root.size, dtype=np.int8)  # +1: lo moved last, -1: hi moved last
+    step = active.copy()  # an inactive bracket never steps
+    for _ in range(config.ROOT_MAX_STEPS):
+        c = np.minimum(np.maximum((lo * f_hi - hi * f_lo) / (f_hi - f_lo), lo), hi)
+        f_c = f(c if group is None else np.where(step, c, np.nan))
+        done = np.abs(c - root) <= xtol
+        root = np.where(step, c, root)
+        step = step & _running(done, group)
+        if not step.any():
+            break
+        # a finished group keeps its bracket: its root no longer moves
+        move_lo = step & (f_c > 0.0)
+        move_hi = step & ~move_lo
+        with np.errstate(divide="ignore", invalid="ignore"):
+            m = 1.0 - f_c / np.where(move_lo, f_lo, f_hi)  # the new value over the old
+        m = np.where(m > 0.0, m, 0.5)
+        lo, f_lo = np.where(move_lo, c, lo), np.where(move_lo, f_c, f_lo)
+        hi, f_hi = np.where(move_hi, c, hi), np.where(move_hi, f_c, f_hi)
+        f_hi = np.where(move_lo & (stale > 0), m * f_hi, f_hi)
+        f_lo = np.where(move_hi & (stale < 0), m * f_lo, f_lo)
+        stale = np.where(step, move_lo.view(np.int8) - move_hi.view(np.int8), stale)
+    return root
+
+
+def _ab_scalar(f: Function, lo_a: np.ndarray, hi_a: np.ndarray, f_lo_a: np.ndarray,
+               f_hi_a: np.ndarray, root_a: np.ndarray, active: np.ndarray,
+               xtol_a: np.ndarray, group: np.ndarray | None) -> np.ndarray:
+    """The steps of :func:`anderson_bjorck_root` with Python floats, bracket by bracket
+    (the operations of :func:`_ab_arrays`, in the same order)."""
+    n = root_a.size
+    lo, hi, f_lo, f_hi = lo_a.tolist(), hi_a.tolist(), f_lo_a.tolist(), f_hi_a.tolist()
+    root, xtol = root_a.tolist(), xtol_a.tolist()
+    step = active.tolist()
+    stale = [0] * n  # +1: lo moved last, -1: hi moved last
+    owner = [0] * n if group is None else group.tolist()
+    nan = float("nan")
+    for _ in range(config.ROOT_MAX_STEPS):
+        c = [min(max((lo[i] * f_hi[i] - hi[i] * f_lo[i]) / (f_hi[i] - f_lo[i]), lo[i]), hi[i])
+             for i in range(n)]
+        x = c if group is None else [c[i] if step[i] else nan for i in range(n)]
+        f_c = f(np.array(x)).tolist()
+        # a group steps while any of its brackets is not done (without groups: all)
+        running = set()
+        for i in range(n):
+            if abs(c[i] - root[i]) > xtol[i]:
+                running.add(owner[i])
+            if step[i]:
+                root[i] = c[i]
+        step = [step[i] and owner[i] in running for i in range(n)]
+        if not any(step):
+            break
+        # a finished group keeps its bracket: its root no longer moves
+        for i in (i for i in range(n) if step[i]):
+            _ab_move(i, c[i], f_c[i], lo, hi, f_lo, f_hi, stale)
+    return np.array(root, dtype=float)
+
+
+def _ab_move(i: int, c: float, f_c: float, lo: list[float], hi: list[float],
+             f_lo: list[float], f_hi: list[float], stale: list[int]) -> None:
+    """One bracket's move to its new point ``c`` (value ``f_c``), in place: the end of
+    the same sign moves, the other end's value is scaled where it is stale."""
+    if f_c > 0.0:
+        m = 1.0 - _divide(f_c, f_lo[i])
+        lo[i], f_lo[i] = c, f_c
+        if stale[i] > 0:
+            f_hi[i] = (m if m > 0.0 else 0.5) * f_hi[i]
+        stale[i] = 1
+    else:
+        m = 1.0 - _divide(f_c, f_hi[i])
+        hi[i], f_hi[i] = c, f_c
+        if stale[i] < 0:
+            f_lo[i] = (m if m > 0.0 else 0.5) * f_lo[i]
+        stale[i] = -1
+
+
+def _divide(a: float, b: float) -> float:
+    """``a / b`` as numpy divides floats: infinite (or NaN for 0 / 0) where ``b`` is 0
+    (a value reaching exactly 0 at a root)."""
+    if b != 0.0:
+        return a / b
+    if a == 0.0 or math.isnan(a):
+        return math.nan
+    return math.copysign(math.inf, a) * math.copysign(1.0, b)
