@@ -26,7 +26,7 @@ from envelope.analysis import analyse
 from envelope.casefile import load_case
 from envelope.contracted import contract, response
 from envelope.recovery import combine, evaluate_combined, evaluate_some, make_points
-from envelope.search import golden_max, illinois_root
+from envelope.search import anderson_bjorck_root, golden_max, illinois_root
 from envelope.solved import envelope_at, envelopes_at
 
 from beams import make_cases_module
@@ -242,3 +242,73 @@ def test_grouped_root_search_gives_each_group_its_own_answer() -> None:
     np.testing.assert_allclose(root[:3], [math.pi / 2, 3 * math.pi / 2, 2.0 ** (1 / 3)],
                                rtol=4e-16, atol=0)
     assert root[3] == start[3]
+
+
+def _slope(centre: np.ndarray, power: np.ndarray):  # type: ignore[no-untyped-def]
+    """Per bracket, of the distance d to ``centre`` (a simple root there, positive left of
+    it): d (power 1), d^3 + d / 10 (power 2), exp(d) - 1 (power 3)."""
+    def f(x: np.ndarray) -> np.ndarray:
+        d = centre - x
+        return np.where(power == 1.0, d, np.where(power == 2.0, d ** 3 + 0.1 * d,
+                                                  np.expm1(d)))
+    return f
+
+
+@pytest.mark.parametrize("n", [5, 40, 200])
+def test_anderson_bjorck_root_finds_the_roots_with_its_python_and_array_steps(
+        n: int, monkeypatch: pytest.MonkeyPatch) -> None:
+    """The design search's root (Anderson-Bjorck regula falsi): the same root as the
+    Illinois reference to round-off, each group's answer as if alone, and the same numbers
+    bit for bit whether a step's bookkeeping is in Python floats or in arrays."""
+    rng = np.random.default_rng(n)
+    centre = rng.uniform(0.5, 4.5, n)
+    power = rng.choice([1.0, 2.0, 3.0], n)
+    lo = centre - rng.uniform(0.01, 2.0, n)
+    hi = centre + rng.uniform(0.01, 2.0, n)
+    active = rng.random(n) < 0.85
+    start = (lo + hi) / 2
+    group = rng.integers(0, 3, n)
+    xtol = 4 * np.finfo(float).eps * np.maximum(hi, 1.0)
+    f = _slope(centre, power)
+    args = (lo, hi, f(lo), f(hi), start, active, xtol)
+    root = anderson_bjorck_root(f, *args, group=group)
+    ref = illinois_root(f, *args, group=group)
+    np.testing.assert_allclose(root[active], centre[active], rtol=0, atol=1e-13)
+    np.testing.assert_allclose(root, ref, rtol=0, atol=1e-13)
+    assert np.array_equal(root[~active], start[~active])
+    for g in range(3):
+        m = group == g
+        alone = anderson_bjorck_root(_slope(centre[m], power[m]), *(v[m] for v in args))
+        assert np.array_equal(root[m], alone)
+    for limit in (0, 10_000):  # every step in arrays, then every step in Python floats
+        monkeypatch.setattr("envelope.config.ROOT_SCALAR_BRACKETS", limit)
+        assert np.array_equal(anderson_bjorck_root(f, *args, group=group), root)
+        np.testing.assert_allclose(anderson_bjorck_root(f, *args), root, rtol=0, atol=1e-13)
+
+
+def test_anderson_bjorck_root_reaches_a_value_of_exactly_zero() -> None:
+    """A slope that is exactly 0 at a regula falsi point (a line through the origin):
+    the root is that point, with no division by zero in the Python-float steps."""
+    lo, hi = np.array([-1.0, -3.0]), np.array([1.0, 1.0])
+
+    def f(x: np.ndarray) -> np.ndarray:
+        return -x
+
+    root = anderson_bjorck_root(f, lo, hi, f(lo), f(hi), np.zeros(2), np.ones(2, bool),
+                                np.full(2, 1e-15))
+    assert np.all(root == 0.0)
+
+
+def test_design_actions_without_the_one_block_matches_the_reference(
+        generated: list[Path], monkeypatch: pytest.MonkeyPatch) -> None:
+    """Where the stations do not fit one block (here the block made one row), the search
+    evaluates the live envelope, the governing cases and the faces on its own: the same
+    answers as the reference, and as with the block, to round-off."""
+    for path in generated[:12]:
+        a = analyse(load_case(path))
+        with_block = a.design_actions
+        monkeypatch.setattr("envelope.config.STATION_CHUNK_ROWS", 1)
+        without = design_actions(a.solved, a.stations, a.station_envelopes)
+        monkeypatch.undo()
+        _assert_same_actions(without, _reference(a), path.name)
+        _assert_same_actions(without, with_block, path.name)
