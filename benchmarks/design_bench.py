@@ -1,14 +1,17 @@
 """Benchmark of the design-action search: CPU time per beam of ``design_actions`` against
 the three-search reference it replaced (tests/reference_actions.py, kept for the tests).
 
-    python benchmarks/design_bench.py [N] [--repeats R] [--json OUT.json]
+    python benchmarks/design_bench.py [N] [--repeats R] [--json OUT.json] [--before REV]
 
 Generates ``N`` invented beams (benchmarks/make_cases.py, seed 11; default 100), solves
 each and envelopes its stations once, then times only the design actions of every beam,
 the two paths interleaved (A B B A ...), ``R`` rounds (default 5); the figure is the
 median of the rounds' CPU time (user + system of this process) per beam.  The largest
 difference between the two answers is printed too (relative to each column's largest
-value in its beam).  A benchmark, not a test: nothing is asserted.
+value in its beam).  With ``--before REV``, ``envelope/actions.py`` as it was at the git
+revision REV (run on today's other modules) is timed as a third side, interleaved with the
+two: the change of the search module itself.  A benchmark, not a test: nothing is
+asserted.
 """
 
 from __future__ import annotations
@@ -19,9 +22,11 @@ import importlib.util
 import json
 import os
 import statistics
+import subprocess
 import sys
 import tempfile
 import time
+import types
 from pathlib import Path
 from typing import Any
 
@@ -46,6 +51,22 @@ def _make_cases():  # type: ignore[no-untyped-def]
     return module.make_cases
 
 
+def _git(*args: str) -> str:
+    return subprocess.run(["git", "-C", str(HERE.parent), *args], capture_output=True,
+                          text=True, check=True).stdout
+
+
+def _actions_at(rev: str) -> types.ModuleType:
+    """``envelope/actions.py`` as it was at git revision ``rev``, as a module of its own
+    (importing today's other modules)."""
+    module = types.ModuleType("actions_before")
+    module.__file__ = f"actions.py@{rev}"
+    sys.modules[module.__name__] = module  # its dataclasses look their module up
+    exec(compile(_git("show", f"{rev}:envelope/actions.py"), module.__file__, "exec"),
+         module.__dict__)
+    return module
+
+
 def _worst(fast: dict[str, np.ndarray], slow: dict[str, np.ndarray]) -> float:
     """Largest difference over the numeric columns, relative to the column's largest."""
     worst = 0.0
@@ -63,6 +84,7 @@ def main(argv: list[str] | None = None) -> None:
     parser.add_argument("n", type=int, nargs="?", default=100)
     parser.add_argument("--repeats", type=int, default=5)
     parser.add_argument("--json", type=Path)
+    parser.add_argument("--before", metavar="REV")
     args = parser.parse_args(argv)
     load_start = os.getloadavg()
     with tempfile.TemporaryDirectory(prefix="envelope-design-") as tmp:
@@ -76,6 +98,8 @@ def main(argv: list[str] | None = None) -> None:
             beams.append((solved, pts, env))
     sides: dict[str, Any] = {"combined": design_actions,
                              "reference": reference_actions.design_actions}
+    if args.before:
+        sides["before"] = _actions_at(args.before).design_actions
     cpu: dict[str, list[float]] = {k: [] for k in sides}
     wall: dict[str, list[float]] = {k: [] for k in sides}
     for r in range(args.repeats):
@@ -92,12 +116,17 @@ def main(argv: list[str] | None = None) -> None:
           f"reference {med['reference'] * 1e3:.2f} ms CPU per beam (median of "
           f"{args.repeats}); ratio {ratio:.3f} (target <= 0.25); largest difference "
           f"{worst:.2g} of the column's largest value")
+    if args.before:
+        print(f"actions.py at {args.before}: {med['before'] * 1e3:.2f} ms (ratio "
+              f"{med['before'] / med['reference']:.3f}); combined / before "
+              f"{med['combined'] / med['before']:.3f}")
     if args.json:
         args.json.write_text(json.dumps({
             "date": datetime.datetime.now().astimezone().isoformat(timespec="seconds"),
             "beams": len(beams), "seed": 11, "repeats": args.repeats,
             "cpu_per_beam_s": cpu, "wall_per_beam_s": wall, "median_cpu_s": med,
             "ratio": ratio, "largest_relative_difference": worst,
+            "before": args.before, "source": _git("rev-parse", "--short", "HEAD").strip(),
             "load_average_start": load_start, "load_average_end": os.getloadavg(),
         }, indent=1) + "\n")
 

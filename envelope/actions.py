@@ -32,6 +32,7 @@ from envelope.recovery import Points, evaluate_some, make_points, pair_count
 from envelope.search import anderson_bjorck_root, golden_max
 from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
+from envelope.unitpoints import ElementItems, element_items, evaluate_points
 from envelope.values import dataclass
 
 #: Machine epsilon and the smallest normal number of a float (round-off scales).
@@ -145,10 +146,12 @@ class _Found:
 
 
 def _refine(solved: Solved, pts: Points, requests: Sequence[Request],
-            block: _Block | None = None) -> list[_Found]:
+            block: _Block | None = None, items: ElementItems | None = None
+            ) -> list[_Found]:
     """:func:`refine_maxima`, each answer with where it came from (:class:`_Found`);
     ``block``: the unit responses at the stations, where one evaluation holds them all
-    (the governing cases at the bracket stations are then read from it)."""
+    (the governing cases at the bracket stations are then read from it); ``items``: the
+    load items laid out by element (:func:`envelope.unitpoints.element_items`)."""
     n_spans = solved.beam.n_spans
     n_req = len(requests)
     if not n_req:
@@ -167,7 +170,8 @@ def _refine(solved: Solved, pts: Points, requests: Sequence[Request],
         length = np.asarray(solved.beam.geometry.span_length, dtype=float)[span]
         br = _Brackets(task, span.astype(np.int64), length, sm.x, sm.a, sm.b)
         scale = [float(np.max(np.abs(env_max), initial=0.0)) for env_max, _, _ in requests]
-        search = _Search(solved, [(q, c or QUANTITY_SET[q]) for _, q, c in requests], scale)
+        search = _Search(solved, [(q, c or QUANTITY_SET[q]) for _, q, c in requests], scale,
+                         items)
         coef = None if block is None else block.governing(search, task, sm.row % pts.n, span)
         xm, vm, cm = search.refine(br, coef)
         # per (request, span): the first of its largest refined maxima, where above the
@@ -222,7 +226,8 @@ class _Block:
         return coef
 
 
-def _one_block(solved: Solved, pts: Points, faces: Points | None) -> _Block | None:
+def _one_block(solved: Solved, pts: Points, faces: Points | None, items: ElementItems
+               ) -> _Block | None:
     """The moment (strength solution) and deflection (service solution) of every unit
     case at the stations, the spans' right ends and ``faces`` (:class:`_Block`), where
     they fit in one block of :func:`envelope.solved.chunk_rows` rows and the beam has no
@@ -250,7 +255,8 @@ def _one_block(solved: Solved, pts: Points, faces: Points | None) -> _Block | No
         wanted[id(sol)] = (sol, wanted.get(id(sol), (sol, ()))[1] + (q,))
     responses: dict[tuple[str, int], np.ndarray] = {}
     for key, (sol, names) in wanted.items():
-        resp = evaluate_some(solved.mesh, solved.unit_cases, sol, points, names, kernel=terms)
+        resp = evaluate_points(solved.mesh, solved.unit_cases, items, sol, points, names,
+                               kernel=terms)
         responses.update({(q, key): resp[q] for q in names})
     return _Block(pts.n, n, pts.right, responses, sums)
 
@@ -261,8 +267,11 @@ class _Search:
     of each request's envelope at the stations, the size of its round-off)."""
 
     def __init__(self, solved: Solved, tasks: list[tuple[str, str]],
-                 scale: list[float]) -> None:
+                 scale: list[float], items: ElementItems | None = None) -> None:
         self.solved = solved
+        # the load items laid out by element once, for the evaluations at a few points
+        self.items = items if items is not None else element_items(
+            solved.unit_cases, solved.mesh.n_elements)
         self.scale = np.array(scale, dtype=float)
         self.quantity = [q for q, _ in tasks]
         self.sets: list[CaseSet] = [solved.case_set(name) for _, name in tasks]
@@ -348,8 +357,8 @@ class _Search:
         for sol, tasks in self._by_solution(task):
             names = tuple(dict.fromkeys(self.quantity[t] for t, _ in tasks))
             rows = np.concatenate([r for _, r in tasks]) if len(tasks) > 1 else tasks[0][1]
-            resp = evaluate_some(s.mesh, s.unit_cases, sol,
-                                 make_points(s.beam, span[rows], x[rows]), names)
+            resp = evaluate_points(s.mesh, s.unit_cases, self.items, sol,
+                                   make_points(s.beam, span[rows], x[rows]), names)
             at = 0
             for t, r in tasks:
                 out.append((t, r, resp[self.quantity[t]][at: at + r.size]))
@@ -560,14 +569,16 @@ def design_actions(solved: Solved, pts: Points,
     # a beam whose stations fit one block: every unit case at the stations, span ends and
     # faces in one evaluation, read by the live envelope, the governing cases at the
     # bracket stations and the faces' least moment
-    block = _one_block(solved, pts, faces)
+    items = element_items(solved.unit_cases, solved.mesh.n_elements)
+    block = _one_block(solved, pts, faces, items)
     live = _live_at_stations(solved, block) if block is not None else envelope_at(
         solved, pts, "deflection", "live", labels=False)
     # one search for the three maxima: sagging moment, service and live deflection
     wanted = {"moment": (moment, "moment", None), "deflection": (deflection, "deflection", None),
               "live": (live, "deflection", "live")}
     asked = {key: (ext.max, q, c) for key, (ext, q, c) in wanted.items() if ext is not None}
-    found = dict(zip(asked, _refine(solved, pts, list(asked.values()), block), strict=True))
+    found = dict(zip(asked, _refine(solved, pts, list(asked.values()), block, items),
+                     strict=True))
     if moment is not None and faces is not None:
         pos, pos_x = found["moment"].value, found["moment"].x
         # round-off at a free end is not a sagging moment
