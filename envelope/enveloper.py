@@ -77,6 +77,8 @@ class _Columns:
     group_col: np.ndarray  # (groups,) column of each group, ascending
     group_case: tuple[str, ...]  # case name of each group
     group_mask: np.ndarray  # (groups, cells) bool: where the group's case acts when on
+    group_runs: np.ndarray  # the distinct columns of ``group_col``, ascending
+    group_run_start: np.ndarray  # the first group of each of them
     switchable: tuple[tuple[str, ...], ...]  # per combination: cases named in _loaded
     all_patterned: tuple[bool, ...]  # per combination: every switchable case patterned
 
@@ -148,6 +150,10 @@ class SuperposedCaseSet(_Columns):
     patterned: np.ndarray  # per-unit on/off factors
     dead_var: np.ndarray  # dead factors that depend on the pattern
     favourable_dead: float  # dead-load factor multiplier on cells left unloaded
+    #: the columns whose dead load depends on the pattern, and of each what its
+    #: cell-by-cell choice needs that does not depend on the responses
+    fav_cols: np.ndarray
+    fav_parts: tuple[_FavParts, ...]
 
     def case_rows(self, explicit: bool = False) -> list[dict[str, str]]:
         """What was run: one row per combination (``loaded`` ``"any"``); with
@@ -275,9 +281,11 @@ class _Groups:
 
     def fields(self, n_u: int, n_g: int) -> dict[str, Any]:
         """The group fields of a case set."""
+        col = np.array(self.col, dtype=np.int64)
+        runs, run_start = np.unique(col, return_index=True)  # col is ascending
         return {"groups": _stack(self.distinct, n_u),
                 "group_src": np.array(self.src, dtype=np.int64),
-                "group_col": np.array(self.col, dtype=np.int64),
+                "group_col": col, "group_runs": runs, "group_run_start": run_start,
                 "group_case": tuple(self.case),
                 "group_mask": np.array(self.mask, dtype=bool).reshape(len(self.col), n_g)}
 
@@ -342,6 +350,37 @@ def _first_seen(names: Sequence[str]) -> np.ndarray:
     return np.array([index.setdefault(n, len(index)) for n in names], dtype=np.int64)
 
 
+@dataclass(frozen=True, slots=True)
+class _FavParts:
+    """What the cell-by-cell choice of one column with pattern-dependent dead load
+    (:func:`_superposed_values`) needs that does not depend on the responses: its
+    patterned units, the units ordered cell by cell with the cells present and where
+    each starts, and the cells some patterned case of the column leaves unloaded."""
+
+    is_pat: np.ndarray  # (units,) bool
+    order: np.ndarray  # units, cell by cell
+    cells_present: np.ndarray
+    starts: np.ndarray
+    can_zero: np.ndarray  # (cells,) bool
+
+
+def _fav_parts(names: Sequence[str], unit_cell: np.ndarray, n_cells: int,
+               patterned: np.ndarray, dead_var: np.ndarray
+               ) -> tuple[np.ndarray, tuple[_FavParts, ...]]:
+    """The columns with pattern-dependent dead load and their :class:`_FavParts`."""
+    fav = np.flatnonzero(dead_var.any(axis=0))
+    order = np.argsort(unit_cell, kind="stable")
+    cells_present, starts = np.unique(unit_cell[order], return_index=True)
+    parts = []
+    for k in fav.tolist():
+        is_pat = patterned[:, k] != 0.0
+        n_pat_cases = len(set(itertools.compress(names, is_pat.tolist())))
+        n_pat_in_cell = np.bincount(unit_cell, is_pat.astype(float), n_cells)
+        parts.append(_FavParts(is_pat, order, cells_present, starts,
+                               n_pat_in_cell < n_pat_cases))
+    return fav, tuple(parts)
+
+
 def _superposed(combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
                 inp: _Inputs, fav: float) -> SuperposedCaseSet:
     """One column per combination: its patterned unit cases on/off one by one, the
@@ -358,9 +397,12 @@ def _superposed(combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
         fixed.append(np.where(inp.is_patterned | variable_dead | inp.whole[:, k], 0.0, f_k))
         groups.add(k, k, every_cell)
     n_u = units.n_units
+    patterned_a, dead_a = _stack(patterned, n_u), _stack(dead, n_u)
+    fav_cols, fav_parts = _fav_parts(inp.names, units.cell, cells.n, patterned_a, dead_a)
     return SuperposedCaseSet(
         **_common(combos, units, cells, inp, list(range(len(combos))), fixed, groups),
-        patterned=_stack(patterned, n_u), dead_var=_stack(dead, n_u), favourable_dead=fav)
+        patterned=patterned_a, dead_var=dead_a, favourable_dead=fav, fav_cols=fav_cols,
+        fav_parts=fav_parts)
 
 
 def _explicit(beam: Beam, combos: tuple[Combination, ...], units: UnitCases, cells: Cells,
@@ -408,9 +450,11 @@ def _cell_onehot(cs: _Columns) -> np.ndarray:
 
 
 def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float,
-                       onehot: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                       onehot: np.ndarray, part: _FavParts
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Extreme (sign=+1: max, -1: min) of column k over all subsets of cells, fixed and
-    patterned parts, with the cell-by-cell choice that ``favourable_dead`` needs.
+    patterned parts, with the cell-by-cell choice that ``favourable_dead`` needs
+    (``part``: the column's :class:`_FavParts`).
 
     Returns the value per row, the chosen patterned units (rows x units, bool) and
     the loaded cells (rows x cells, bool)."""
@@ -420,20 +464,17 @@ def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float
     dead_k = cs.dead_var[:, k]
     # each cell chooses "unloaded" (fav * A) or "loaded" (A + best non-empty choice)
     A = sign * ((R * dead_k) @ onehot)  # rows x cells, loaded dead effect
-    is_pat = cs.patterned[:, k] != 0.0
+    is_pat = part.is_pat
     pos = np.where(take, X, 0.0) @ onehot
     any_pos = (take.astype(float) @ onehot) > 0
-    n_pat_cases = len(set(itertools.compress(cs.unit_case_name, is_pat.tolist())))
-    n_pat_in_cell = is_pat.astype(float) @ onehot
     # best single patterned unit per cell where nothing helps (may be negative)
     Xm = np.where(is_pat, X, -np.inf)
     best_single = np.full(A.shape, -np.inf)
     # the units of each cell side by side, then one maximum over each cell's run
-    order = np.argsort(cs.unit_cell, kind="stable")
-    cells_present, starts = np.unique(cs.unit_cell[order], return_index=True)
-    if cells_present.size:
-        best_single[:, cells_present] = np.maximum.reduceat(Xm[:, order], starts, axis=1)
-    can_zero = n_pat_in_cell < n_pat_cases  # some patterned case puts nothing here
+    if part.cells_present.size:
+        best_single[:, part.cells_present] = np.maximum.reduceat(Xm[:, part.order],
+                                                                 part.starts, axis=1)
+    can_zero = part.can_zero  # some patterned case puts nothing here
     best = np.where(any_pos, pos, np.where(can_zero[None, :], 0.0, best_single))
     loaded_val = A + best
     unloaded_val = cs.favourable_dead * A
@@ -512,19 +553,18 @@ def _extremes(R: np.ndarray, cs: CaseSet, kernel: bool = False, smallest: bool =
             spread = np.abs(R) @ np.abs(cs.patterned)
             vmax = base + 0.5 * (signed + spread)
             vmin = base + 0.5 * (signed - spread)
-        fav = np.flatnonzero(cs.dead_var.any(axis=0))
-        if fav.size:
+        if cs.fav_cols.size:
             onehot = _cell_onehot(cs)
-            for k in fav:
-                vmax[:, k] = _superposed_values(R, cs, int(k), 1.0, onehot)[0]
+            for k, part in zip(cs.fav_cols.tolist(), cs.fav_parts, strict=True):
+                vmax[:, k] = _superposed_values(R, cs, k, 1.0, onehot, part)[0]
                 if smallest:
-                    vmin[:, k] = _superposed_values(R, cs, int(k), -1.0, onehot)[0]
+                    vmin[:, k] = _superposed_values(R, cs, k, -1.0, onehot, part)[0]
     else:
         vmax, vmin = base, base.copy()
     if cs.group_col.size:
         gv = (R @ cs.groups if gv is None else gv)[:, cs.group_src]
         # groups are stored column by column: sum each column's run of groups
-        cols, starts = np.unique(cs.group_col, return_index=True)
+        cols, starts = cs.group_runs, cs.group_run_start
         vmax[:, cols] += np.add.reduceat(np.maximum(gv, 0.0), starts, axis=1)
         vmin[:, cols] += np.add.reduceat(np.minimum(gv, 0.0), starts, axis=1)
     else:
@@ -584,15 +624,14 @@ def _choices(R: np.ndarray, cs: CaseSet, col: np.ndarray, sign: float,
         return np.zeros(R.shape, dtype=bool), None, groups
     P = cs.patterned.T[col]  # rows x units: each row's own column
     units = (sign * R * P) > 0.0
-    fav = np.flatnonzero(cs.dead_var.any(axis=0))
-    if not fav.size:
+    if not cs.fav_cols.size:
         return units, None, groups
     onehot = _cell_onehot(cs)
     cells = (units.astype(float) @ onehot) > 0
-    for k in fav:
+    for k, part in zip(cs.fav_cols.tolist(), cs.fav_parts, strict=True):
         rows = np.flatnonzero(col == k)
         if rows.size:
-            _, u_k, c_k = _superposed_values(R[rows], cs, int(k), sign, onehot)
+            _, u_k, c_k = _superposed_values(R[rows], cs, k, sign, onehot, part)
             units[rows], cells[rows] = u_k, c_k
     return units, cells, groups
 

@@ -139,3 +139,29 @@ def test_loaded_texts_shared_between_stations_and_supports_equal_texts_built_alo
             assert list(got.max_loaded) == list(alone.max_loaded), (path, name)
             assert list(got.min_loaded) == list(alone.min_loaded), (path, name)
             np.testing.assert_array_equal(got.max, alone.max)
+
+
+@pytest.mark.parametrize("method", ["exhaustive", "segments"])
+def test_parts_of_the_favourable_choice_kept_with_the_case_set_are_its_own(method: str) -> None:
+    """The response-free parts of the cell-by-cell choice (favourable dead load 0.9),
+    made once with the case set, against their definitions: the patterned units of the
+    column, the cells some patterned case of it leaves unloaded (fewer patterned units
+    in the cell than patterned cases), the units ordered cell by cell; and the group runs
+    are the distinct group columns."""
+    cs = _solved(method, 0.9).strength
+    assert isinstance(cs, SuperposedCaseSet)
+    fav = np.flatnonzero(cs.dead_var.any(axis=0))
+    assert fav.size and np.array_equal(cs.fav_cols, fav)
+    n_cells = len(cs.cell_labels)
+    onehot = np.zeros((cs.unit_cell.size, n_cells))
+    onehot[np.arange(cs.unit_cell.size), cs.unit_cell] = 1.0
+    for k, part in zip(fav.tolist(), cs.fav_parts, strict=True):
+        is_pat = cs.patterned[:, k] != 0.0
+        cases = {n for n, p in zip(cs.unit_case_name, is_pat.tolist(), strict=True) if p}
+        assert np.array_equal(part.is_pat, is_pat)
+        assert np.array_equal(part.can_zero, is_pat.astype(float) @ onehot < len(cases))
+        assert np.array_equal(cs.unit_cell[part.order], np.sort(cs.unit_cell))
+        assert np.array_equal(part.cells_present, np.unique(cs.unit_cell))
+    runs, start = np.unique(cs.group_col, return_index=True)
+    assert np.array_equal(cs.group_runs, runs) and np.array_equal(cs.group_run_start, start)
+    assert [cs.case_names[i] for i in cs.unit_case] == list(cs.unit_case_name)
