@@ -458,6 +458,24 @@ def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float
 
     Returns the value per row, the chosen patterned units (rows x units, bool) and
     the loaded cells (rows x cells, bool)."""
+    value, take, Xm, any_pos, best_single, loaded = _cell_choice(R, cs, k, sign, onehot, part)
+    # chosen units: positives in loaded cells, else the single best unit there
+    can_zero, is_pat = part.can_zero, part.is_pat
+    single = (Xm == best_single[:, cs.unit_cell]) & ~any_pos[:, cs.unit_cell] & ~can_zero[
+        cs.unit_cell][None, :]
+    chosen = (take | single) & loaded[:, cs.unit_cell] & is_pat[None, :]
+    return value, chosen, loaded
+
+
+def _cell_choice(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float,
+                 onehot: np.ndarray, part: _FavParts
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray,
+                            np.ndarray]:
+    """The value of :func:`_superposed_values` (per row) and what its choice of units is
+    made from: where the responses are worse (rows x units), those of the patterned
+    units made positive where worse (-inf elsewhere), whether a cell has a positive
+    unit, the best single unit of each cell and the loaded cells (rows x cells).  The value
+    alone (the largest value of a column, as searches want it) needs no more."""
     X = sign * (R * cs.patterned[:, k])  # the worse direction made positive
     take = X > 0.0
     base = R @ cs.fixed[:, k]
@@ -480,11 +498,7 @@ def _superposed_values(R: np.ndarray, cs: SuperposedCaseSet, k: int, sign: float
     unloaded_val = cs.favourable_dead * A
     loaded = loaded_val > unloaded_val
     value = base + sign * np.where(loaded, loaded_val, unloaded_val).sum(axis=1)
-    # chosen units: positives in loaded cells, else the single best unit there
-    single = (Xm == best_single[:, cs.unit_cell]) & ~any_pos[:, cs.unit_cell] & ~can_zero[
-        cs.unit_cell][None, :]
-    chosen = (take | single) & loaded[:, cs.unit_cell] & is_pat[None, :]
-    return value, chosen, loaded
+    return value, take, Xm, any_pos, best_single, loaded
 
 
 def moving_factors(cs: CaseSet, names: tuple[str, ...]) -> np.ndarray:
@@ -556,9 +570,9 @@ def _extremes(R: np.ndarray, cs: CaseSet, kernel: bool = False, smallest: bool =
         if cs.fav_cols.size:
             onehot = _cell_onehot(cs)
             for k, part in zip(cs.fav_cols.tolist(), cs.fav_parts, strict=True):
-                vmax[:, k] = _superposed_values(R, cs, k, 1.0, onehot, part)[0]
+                vmax[:, k] = _cell_choice(R, cs, k, 1.0, onehot, part)[0]
                 if smallest:
-                    vmin[:, k] = _superposed_values(R, cs, k, -1.0, onehot, part)[0]
+                    vmin[:, k] = _cell_choice(R, cs, k, -1.0, onehot, part)[0]
     else:
         vmax, vmin = base, base.copy()
     if cs.group_col.size:
