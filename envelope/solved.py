@@ -101,14 +101,16 @@ def solve_beam(beam: Beam) -> Solved:
     service = tuple(c for c in combos if c.set == "service")
     rules = tuple(dict.fromkeys(c.rule for c in service))
     # favourable_dead is a strength-set option: service sets take every dead load at 1.0
+    every_service = build_case_set(beam, service, units, cells, favourable_dead=1.0)
     solved = Solved(
         beam, mesh, cells, units, solution,
         strength=build_case_set(beam, strength, units, cells),
-        service=build_case_set(beam, service, units, cells, favourable_dead=1.0),
+        service=every_service,
         live=build_case_set(beam, live_combination(beam), units, cells, favourable_dead=1.0),
-        service_sets=tuple((r, build_case_set(beam, tuple(c for c in service if c.rule == r),
-                                              units, cells, favourable_dead=1.0))
-                           for r in rules),
+        # one rule set (the usual case) is the whole service set: built once
+        service_sets=((rules[0], every_service),) if len(rules) == 1 else tuple(
+            (r, build_case_set(beam, tuple(c for c in service if c.rule == r), units, cells,
+                               favourable_dead=1.0)) for r in rules),
     )
     fraction, _ = requested(beam)
     return solved.redistributed(fraction) if fraction.any() else solved

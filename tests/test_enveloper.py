@@ -165,3 +165,45 @@ def test_parts_of_the_favourable_choice_kept_with_the_case_set_are_its_own(metho
     runs, start = np.unique(cs.group_col, return_index=True)
     assert np.array_equal(cs.group_runs, runs) and np.array_equal(cs.group_run_start, start)
     assert [cs.case_names[i] for i in cs.unit_case] == list(cs.unit_case_name)
+
+
+def test_a_single_service_rule_set_is_the_whole_service_set(tmp_path: Path) -> None:
+    """With one service rule set (the usual case) the set of that rule is the whole
+    service set, built once (the fast path); it equals the set built from that rule's
+    combinations (the reference path), field by field."""
+    from envelope.casefile import load_case
+    from envelope.enveloper import build_case_set
+
+    from beams import make_cases_module
+
+    checked = 0
+    for path in make_cases_module().make_cases(10, tmp_path, 22):
+        solved = solve_beam(load_case(path))
+        rules = sorted({c.rule for c in solved.service.combinations})
+        for rule in rules:
+            got = solved.case_set(rule)
+            want = build_case_set(solved.beam, tuple(c for c in solved.service.combinations
+                                                     if c.rule == rule),
+                                  solved.unit_cases, solved.cells, favourable_dead=1.0)
+            _assert_same_fields(got, want)
+            checked += len(rules) == 1
+    assert checked >= 3
+
+
+def _assert_same_fields(got: object, want: object) -> None:
+    """Dataclass instances equal field by field (arrays element by element, tuples and
+    nested dataclasses item by item)."""
+    import dataclasses
+
+    assert type(got) is type(want)
+    if isinstance(want, np.ndarray):
+        np.testing.assert_array_equal(got, want)
+    elif dataclasses.is_dataclass(want):
+        for f in dataclasses.fields(want):
+            _assert_same_fields(getattr(got, f.name), getattr(want, f.name))
+    elif isinstance(want, tuple | list):
+        assert isinstance(got, tuple | list) and len(got) == len(want)
+        for a, b in zip(got, want, strict=True):
+            _assert_same_fields(a, b)
+    else:
+        assert got == want
