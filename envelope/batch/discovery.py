@@ -140,17 +140,13 @@ def identify(index: int, path: str, absolute: bool = False) -> Entry:
 
 def _packed(data: dict[str, object]) -> bytes | None:
     """The parsed document, pickled for the worker (:func:`envelope.casefile.load_case`
-    takes it instead of parsing the file again); None for one nested deeper than a case
-    file may be (the worker's own parse refuses it with its message)."""
+    takes it instead of parsing the file again, and checks its nesting as it would the
+    file's); None when it cannot be pickled (nested too deeply for the pickler)."""
     import pickle
 
-    from envelope.casefile.document import nesting
-
-    if nesting(data) > config.CASE_NESTING_MAX:
-        return None
     try:
         return pickle.dumps(data, protocol=pickle.HIGHEST_PROTOCOL)
-    except Exception:  # nothing a TOML parser returns should fail; never stop the batch
+    except Exception:  # RecursionError and the like: never stop the batch
         return None
 
 
