@@ -126,8 +126,11 @@ class ExplicitCaseSet(_Columns):
         combination, the ``loaded`` text and the factors (JSON).  ``explicit`` is
         accepted for symmetry with :meth:`SuperposedCaseSet.case_rows`: every row
         already is an explicit case."""
-        _, combo, loaded = self.explicit_cases()
-        return [self._row(int(k), text) for k, text in zip(combo, loaded, strict=True)]
+        # the texts of explicit_cases() without its coefficients; each combination's
+        # row made once and copied with each arrangement's text
+        rows = [self._row(k, "") for k in range(len(self.combinations))]
+        return [{**rows[int(self.col_combo[c])], "loaded": self._column_text(c)}
+                for c in range(self.n_columns)]
 
     def explicit_cases(self) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
         """Coefficients (units x cases), combination index and ``loaded`` text of each
@@ -162,7 +165,7 @@ class SuperposedCaseSet(_Columns):
         text and the factors (JSON)."""
         rows = [self._row(k, "any") for k in range(len(self.combinations))]
         if explicit:
-            rows += [self._row(int(k), "all") for k in self.col_combo]
+            rows += [{**rows[int(k)], "loaded": "all"} for k in self.col_combo]
         return rows
 
     def explicit_cases(self) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:

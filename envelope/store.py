@@ -304,17 +304,20 @@ def cases_table(analysis: Analysis, all_cases: bool = False) -> pa.Table:
     cases of stations.parquet, which indexes this table's rows)."""
     rows = []
     solved = analysis.solved
+    reductions = span_factors(analysis.beam)
+    acting: dict[str, str] = {}  # factors (JSON) -> live_reduction: once per combination
     for name, cs in (("strength", solved.strength), ("service", solved.service)):
         by_name = {c.name: c for c in cs.combinations}
+        optional = {c.name: json.dumps([n for n, _ in c.factors if n in c.optional])
+                    for c in cs.combinations}
         for r in cs.case_rows(explicit=all_cases):
             c = by_name[r["combination"]]
+            factors = r["factors"]
+            if factors not in acting:
+                acting[factors] = _reductions_acting(analysis.beam, factors, reductions)
             rows.append({"set": name, **r, "source": c.source, "rule": c.rule,
-                         "leading": c.leading,
-                         "optional": json.dumps([n for n, _ in c.factors if n in c.optional]),
-                         "derivation": c.derivation})
-    reductions = span_factors(analysis.beam)
-    for row in rows:
-        row["live_reduction"] = _reductions_acting(analysis.beam, row["factors"], reductions)
+                         "leading": c.leading, "optional": optional[c.name],
+                         "derivation": c.derivation, "live_reduction": acting[factors]})
     names = ("set", "combination", "loaded", "factors", "source", "live_reduction", "rule",
              "leading", "optional", "derivation")
     table = make_table({k: string_column([r[k] for r in rows]) for k in names})
