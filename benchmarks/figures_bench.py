@@ -8,7 +8,9 @@ times one without).
 --force -q`` with ``--plots`` and with ``--no-plots``, on the first N beams of
 ``make_cases.py`` (seed 7), timed from start to exit (wall time, as a user waits for
 it); the two sides are interleaved (A B B A ...) and the ratio is taken of the medians
-(the best of each side is printed too).  N defaults to 60.
+(the best of each side is printed too).  The CPU time of each batch (user and system,
+the batch and its workers) is recorded beside it: on a machine shared with other work
+it varies less than the wall time.  N defaults to 60.
 
 ``worker``: one batch worker's chunk in this process (:func:`run_chunk`, as a worker
 runs it, so the figure is reused across beams), with and without figures; the CPU time
@@ -25,6 +27,7 @@ import argparse
 import json
 import os
 import platform
+import resource
 import shutil
 import statistics
 import subprocess
@@ -81,32 +84,46 @@ def bench_worker(n: int, repeats: int, work: Path) -> dict:
             "per_beam_cpu_with_s": best["with"][0] / n, "raw_cpu_wall_s": raw}
 
 
-def _batch_once(cases: Path, out: Path, plots: bool) -> float:
+def _batch_once(cases: Path, out: Path, plots: bool) -> tuple[float, float]:
+    """Wall time and CPU time (user and system, of the batch and its workers) of one
+    batch."""
     args = [sys.executable, "-m", "envelope", "batch", str(cases), "-o", str(out),
             "--workers", "2", "--force", "-q", "--plots" if plots else "--no-plots"]
     env = dict(os.environ, PYTHONPATH=str(ROOT), MPLBACKEND="Agg")
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
     subprocess.run(args, check=True, env=env, stdout=subprocess.DEVNULL)
-    return time.perf_counter() - start
+    wall = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
 
 
 def bench_batch(n: int, repeats: int, work: Path) -> dict:
-    """Wall time of whole batches with two workers, with and without figures."""
+    """Wall time of whole batches with two workers, with and without figures (and their
+    CPU time, which a machine shared with other work inflates less)."""
     cases = work / "cases"
     _batch_once(cases, work / "warm", True)  # file cache and compiled modules, untimed
     raw: dict[str, list[float]] = {"without": [], "with": []}
+    cpu: dict[str, list[float]] = {"without": [], "with": []}
     for plots in ([False, True, True, False] * repeats)[: 2 * repeats]:
         out = work / ("with" if plots else "without")
         shutil.rmtree(out, ignore_errors=True)
-        raw["with" if plots else "without"].append(_batch_once(cases, out, plots))
+        wall, used = _batch_once(cases, out, plots)
+        raw["with" if plots else "without"].append(wall)
+        cpu["with" if plots else "without"].append(used)
     median = {k: statistics.median(v) for k, v in raw.items()}
     best = {k: min(v) for k, v in raw.items()}
+    median_cpu = {k: statistics.median(v) for k, v in cpu.items()}
     ratio = median["with"] / median["without"]
     print(f"batch, {n} beams, 2 workers: without figures {median['without']:.2f} s, with "
           f"{median['with']:.2f} s (medians of {repeats}): {ratio:.2f}x "
-          f"(best {best['with'] / best['without']:.2f}x; target at most 1.5x)")
+          f"(best {best['with'] / best['without']:.2f}x; target at most 1.5x); CPU "
+          f"{median_cpu['without']:.2f} s and {median_cpu['with']:.2f} s: "
+          f"{median_cpu['with'] / median_cpu['without']:.2f}x")
     return {"ratio_median_wall": ratio, "ratio_best_wall": best["with"] / best["without"],
-            "median_wall_s": median, "best_wall_s": best, "raw_wall_s": raw}
+            "ratio_median_cpu": median_cpu["with"] / median_cpu["without"],
+            "median_wall_s": median, "best_wall_s": best, "raw_wall_s": raw,
+            "median_cpu_s": median_cpu, "raw_cpu_s": cpu}
 
 
 def main() -> None:

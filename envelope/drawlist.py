@@ -348,9 +348,13 @@ def _draw_rectangle(renderer: Any, patch: Rectangle, xy: tuple[float, float],
     patch.draw(renderer)
 
 
-def _draw_fill(renderer: Any, fill: FillBetweenPolyCollection, x: np.ndarray,
-               y1: np.ndarray, y2: np.ndarray) -> None:
-    fill.set_data(x, y1, y2)
+def _draw_fill(renderer: Any, fill: Any, x: np.ndarray, y1: np.ndarray,
+               y2: np.ndarray) -> None:
+    if np.isfinite(x).all() and np.isfinite(y1).all() and np.isfinite(y2).all():
+        # nothing for ``set_data`` to mask: its polygons straight from the arrays
+        fill.set_verts(fill._make_verts(x, y1, y2, None))
+    else:
+        fill.set_data(x, y1, y2)
     fill.draw(renderer)
 
 
