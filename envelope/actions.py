@@ -25,7 +25,7 @@ from collections.abc import Sequence
 import numpy as np
 
 from envelope import config
-from envelope.contracted import SpanCases, contract, response
+from envelope.contracted import SpanCases, contract, response, slope_at
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients, reduce
 from envelope.moving import MovingEffect, moving_loads, point_effects
 from envelope.recovery import Points, evaluate_some, make_points, pair_count
@@ -447,8 +447,7 @@ class _Search:
         deflection = self.is_deflection[task]
         n = x.size
 
-        def slope(xs: np.ndarray) -> np.ndarray:
-            return response(gov, xs, deflection, slope=True)
+        slope = slope_at(gov, deflection)
 
         four = response(gov.take(np.tile(np.arange(n), 4)), np.concatenate([lo, hi, x, x]),
                         np.tile(deflection, 4), slope=True,
