@@ -25,7 +25,7 @@ from collections.abc import Sequence
 import numpy as np
 
 from envelope import config
-from envelope.contracted import SpanCases, contract, response, slope_at
+from envelope.contracted import SpanCases, contract, item_values, response, slope_at
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients, reduce
 from envelope.moving import MovingEffect, moving_loads, point_effects
 from envelope.recovery import Points, evaluate_some, make_points, pair_count
@@ -272,6 +272,7 @@ class _Search:
         # the load items laid out by element once, for the evaluations at a few points
         self.items = items if items is not None else element_items(
             solved.unit_cases, solved.mesh.n_elements)
+        self.item_values = item_values(solved.unit_cases)  # what a contraction gathers
         self.scale = np.array(scale, dtype=float)
         self.quantity = [q for q, _ in tasks]
         self.sets: list[CaseSet] = [solved.case_set(name) for _, name in tasks]
@@ -371,7 +372,7 @@ class _Search:
         s = self.solved
         groups = [(sol, np.concatenate([r for _, r in tasks]))
                   for sol, tasks in self._by_solution(task)]
-        return contract(s.mesh, s.unit_cases, groups, span, coef)
+        return contract(s.mesh, s.unit_cases, groups, span, coef, self.item_values)
 
     def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray,
                      combo: np.ndarray | None = None) -> np.ndarray:

@@ -74,25 +74,38 @@ class SpanCases:
                                                for name in self.__slots__[1:]))
 
 
-def _padded(row: np.ndarray, n_rows: int, columns: list[np.ndarray],
-            fills: list[float | int | bool]) -> list[np.ndarray]:
-    """Values listed row by row (``row`` non-decreasing) as (n_rows x longest row)
-    arrays, each row's values in their order, ``fills`` after them."""
+def _padded(row: np.ndarray, n_rows: int, index: np.ndarray, values: np.ndarray
+            ) -> tuple[np.ndarray, np.ndarray]:
+    """Items listed row by row (``row`` non-decreasing) as (n_rows x longest row)
+    arrays, each row's items in their order: their ``index`` (-1 after them) and
+    ``values`` (items x k; 0 after them, n_rows x longest row x k)."""
     rank = np.arange(row.size) - np.searchsorted(row, row)
     width = int(rank.max(initial=-1)) + 1
-    out = []
-    for col, fill in zip(columns, fills, strict=True):
-        full = np.full((n_rows, width), fill, dtype=col.dtype)
-        full[row, rank] = col
-        out.append(full)
-    return out
+    where = np.full((n_rows, width), -1, dtype=index.dtype)
+    where[row, rank] = index
+    full = np.zeros((n_rows, width, values.shape[1]))
+    full[row, rank] = values
+    return where, full
+
+
+def item_values(units: UnitCases) -> np.ndarray:
+    """Per load item (items x 5): its start and end (element-local), intensity at the
+    start, slope of the intensity (the load terms' quotient) and force or moment of a
+    point item: what a contraction gathers of each item."""
+    a, b = units.item_a, units.item_b
+    width = b - a
+    slope = np.divide(units.item_wb - units.item_wa, width, out=np.zeros_like(width),
+                      where=width > 0.0)
+    return np.stack([a, b, units.item_wa, slope, units.item_p], axis=1)
 
 
 def contract(mesh: Mesh, units: UnitCases, solutions: list[tuple[Solution, np.ndarray]],
-             span: np.ndarray, coef: np.ndarray) -> SpanCases:
+             span: np.ndarray, coef: np.ndarray, values: np.ndarray | None = None
+             ) -> SpanCases:
     """The cases ``coef`` (rows x unit cases) on the spans ``span`` (one per row), each
     row's states from the solution of its group (``solutions``: each solution and the
-    rows that read it; every row in one group)."""
+    rows that read it; every row in one group).  ``values``: :func:`item_values` of
+    ``units``, where already made."""
     n = span.size
     n_elem = int(mesh.span_count.max(initial=1))
     first = mesh.span_first[span]
@@ -118,21 +131,18 @@ def contract(mesh: Mesh, units: UnitCases, solutions: list[tuple[Solution, np.nd
     keep = w != 0.0
     row, item, w = row[keep], item[keep], w[keep]
     at = units.item_elem[item] - first[row]
+    v = (item_values(units) if values is None else values)[item]
     kind = units.item_kind[item]
-    a, b = units.item_a[item], units.item_b[item]
-    wa, wb = units.item_wa[item], units.item_wb[item]
     dist = kind == DISTRIBUTED
-    width = b - a
-    slope = np.divide(wb - wa, width, out=np.zeros_like(width), where=width > 0.0)
-    d = _padded(row[dist], n, [at[dist], a[dist], b[dist], wa[dist], slope[dist], w[dist]],
-                [-1, 0.0, 0.0, 0.0, 0.0, 0.0])
+    d_elem, d = _padded(row[dist], n, at[dist], np.column_stack([v[dist][:, :4], w[dist]]))
     conc = ~dist
-    c = _padded(row[conc], n, [at[conc], a[conc], units.item_p[item][conc],
-                               (kind[conc] == POINT).astype(float), w[conc]],
-                [-1, 0.0, 0.0, 0.0, 0.0])
+    c_elem, c = _padded(row[conc], n, at[conc], np.column_stack(
+        [v[conc][:, [0, 4]], (kind[conc] == POINT).astype(float), w[conc]]))
     elem_arrays = np.concatenate([np.stack([start, mesh.length[elem], mesh.EI[elem]]),
                                   states])
-    return SpanCases(elem_arrays, d[0][..., None], *(v[..., None] for v in d[1:]), *c)
+    return SpanCases(elem_arrays, d_elem[..., None], d[..., 0:1], d[..., 1:2], d[..., 2:3],
+                     d[..., 3:4], d[..., 4:5], c_elem, c[..., 0], c[..., 1], c[..., 2],
+                     c[..., 3])
 
 
 def response(sc: SpanCases, x_span: np.ndarray, deflection: np.ndarray, slope: bool,
