@@ -375,15 +375,20 @@ class _Search:
         return contract(s.mesh, s.unit_cases, groups, span, coef, self.item_values)
 
     def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray,
-                     combo: np.ndarray | None = None) -> np.ndarray:
+                     combo: np.ndarray | None = None,
+                     own: tuple[np.ndarray, np.ndarray] | None = None) -> np.ndarray:
         """Envelope maximum of each point's own request (its quantity over its case set),
         in chunks of :func:`envelope.solved.chunk_rows` rows a request; NaN at
         a NaN position (a bracket whose search has finished).  ``combo``, where given, is
         filled with the combination (index into the request's case set) governing each
         point, the first where several give the largest value (as
-        :func:`envelope.enveloper.reduce` names it)."""
+        :func:`envelope.enveloper.reduce` names it).  ``own`` (coefficients, out), where
+        given, has the first ``len(out)`` points' responses (none at NaN) times their
+        rows of coefficients (rows x unit cases) written to ``out``: one case's value
+        from the responses the envelope is made of."""
         out = np.full(x.size, np.nan)
         if np.isnan(x).any():
+            assert own is None  # (the points of a case's own value are never NaN)
             keep = np.flatnonzero(~np.isnan(x))
             part_combo = None if combo is None else np.full(keep.size, -1, dtype=np.int64)
             out[keep] = self.envelope_max(task[keep], span[keep], x[keep], part_combo)
@@ -399,6 +404,10 @@ class _Search:
                 out[lo + rows] = vmax.max(axis=1)
                 if combo is not None:
                     combo[lo + rows] = self.sets[t].col_combo[np.argmax(vmax, axis=1)]
+                if own is not None:
+                    mine = np.flatnonzero(lo + rows < own[1].size)
+                    at = lo + rows[mine]
+                    own[1][at] = np.einsum("iu,iu->i", resp[mine], own[0][at])
         return out
 
     def moving_at(self, t: int, span: np.ndarray, x: np.ndarray) -> MovingEffect | None:
@@ -475,9 +484,10 @@ class _Search:
         probes = lo[ends, None] + (hi - lo)[ends, None] * np.array(config.END_PROBES)
         k = probes.shape[1]
         combo = np.full(n + ends.size * k, -1, dtype=np.int64)
+        own = np.empty(n)  # the governing case itself at the roots, from the same responses
         both = self.envelope_max(np.concatenate([task, np.repeat(task[ends], k)]),
                                  np.concatenate([span, np.repeat(span[ends], k)]),
-                                 np.concatenate([root, probes.ravel()]), combo)
+                                 np.concatenate([root, probes.ravel()]), combo, (coef, own))
         value = both[:n]
         if ends.size:
             inside = both[n:].reshape(probes.shape)
@@ -485,8 +495,7 @@ class _Search:
         # round-off of the sums is relative to the envelope's size (a value near zero,
         # e.g. at a free end, is compared with its noise, not with itself)
         scale = np.maximum(np.maximum(np.abs(value), self.scale[task]), _TINY)
-        governs = value <= (response(gov, root, deflection, slope=False)
-                            + config.GOVERNS_RTOL * scale)
+        governs = value <= own + config.GOVERNS_RTOL * scale
         return root, value, (ok | at_end) & governs, combo[:n]
 
 
