@@ -19,7 +19,7 @@ from envelope.analysis import Analysis
 from envelope.analysis import analyse as _analyse
 from envelope.casefile import load_case
 from envelope.errors import EnvelopeError, EnvelopeWarning, OutputError
-from envelope.files import real_folder, temporary_folder
+from envelope.files import final_name, real_folder, temporary_folder
 
 if TYPE_CHECKING:
     import pyarrow as pa
@@ -233,8 +233,8 @@ def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.Path
 
             figures.draw_results(store.result_columns(built), stage / _FIGURE, durable)
             written.add(_FIGURE)
-        for item in sorted(stage.iterdir()):
-            os.replace(item, folder / item.name)
+        for item in sorted(stage.iterdir()):  # (the tables under their staged names)
+            os.replace(item, folder / final_name(item.name))
         stage.rmdir()
     except BaseException as exc:
         import shutil

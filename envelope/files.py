@@ -86,15 +86,31 @@ def write_atomic(path: Path, write: Callable[[BinaryIO], object],
         raise
 
 
+def staged_name(path: Path) -> Path:
+    """Where :func:`write_new` writes the file that is to be named ``path``: a hidden
+    temporary name beside it (``.<name>.tmp``), never a final name."""
+    return path.with_name(f".{path.name}.tmp")
+
+
+def final_name(name: str) -> str:
+    """The final name of a file written by :func:`write_new` (``.<name>.tmp`` ->
+    ``<name>``); any other name as it is."""
+    if name.startswith(".") and name.endswith(".tmp") and len(name) > 5:
+        return name[1:-4]
+    return name
+
+
 def write_new(path: Path, write: Callable[[BinaryIO], object], durable: bool = True) -> None:
-    """Call ``write(fh)`` on ``path`` created anew (exclusively, no link followed) and
-    fsync it unless ``durable`` is False; a failure removes it.  Not atomic by itself:
-    for a folder that no reader looks into until it is complete (the staging folder of
-    a beam's results, whose files are renamed into place once all are written), where a
-    temporary name per file would only cost a rename more."""
+    """Call ``write(fh)`` on a new file at :func:`staged_name` of ``path`` (created
+    exclusively, no link followed) and fsync it unless ``durable`` is False; a failure
+    removes it.  For a staging folder whose files the caller renames into place (to
+    :func:`final_name`) once all are written: one rename a file instead of a
+    temporary name, a rename into the staging folder and a rename out of it, and still
+    nothing half-written under a final name."""
+    target = staged_name(path)
     flags = (os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_NOFOLLOW", 0)
              | getattr(os, "O_CLOEXEC", 0) | getattr(os, "O_BINARY", 0))
-    fd = os.open(path, flags, 0o666)  # the umask applies, as for an ordinary new file
+    fd = os.open(target, flags, 0o666)  # the umask applies, as for an ordinary new file
     try:
         with os.fdopen(fd, "wb") as fh:
             write(fh)
@@ -102,7 +118,7 @@ def write_new(path: Path, write: Callable[[BinaryIO], object], durable: bool = T
             if durable:
                 os.fsync(fh.fileno())
     except BaseException:
-        Path(path).unlink(missing_ok=True)
+        target.unlink(missing_ok=True)
         raise
 
 

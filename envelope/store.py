@@ -497,8 +497,9 @@ def write_parquet(path: Path, table: pa.Table, durable: bool = True,
     """Write one Parquet file atomically (see :mod:`envelope.files`), finite values only
     (``checked``: the caller has checked already), each numeric column's unit in its
     field metadata (:func:`with_field_units`).  ``staged``: ``path`` is in a staging
-    folder that is renamed into place only when complete, so the file is written under
-    its own name (:func:`envelope.files.write_new`), with no temporary name of its own."""
+    folder whose files the caller renames into place once all are written, so the file
+    is written under :func:`envelope.files.staged_name` of ``path`` and not renamed here
+    (:func:`envelope.files.write_new`)."""
     if not checked:
         check_finite(table, str(path))
     table = with_field_units(table)
