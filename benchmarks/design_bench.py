@@ -9,10 +9,10 @@ the two paths interleaved (A B B A ...), ``R`` rounds (default 5); the figure is
 median of the rounds' CPU time (user + system of this process) per beam; each beam's
 best time of the rounds, summed, is printed as a second figure (steadier on a busy
 machine).  The largest difference between the two answers is printed too (relative to
-each column's largest value in its beam).  With ``--before REV``, ``envelope/actions.py`` as it was at the git
-revision REV (run on today's other modules) is timed as a third side, interleaved with the
-two: the change of the search module itself.  A benchmark, not a test: nothing is
-asserted.
+each column's largest value in its beam).  With ``--before REV``,
+``envelope/actions.py`` as it was at the git revision REV (run on today's other
+modules) is timed as a third side, interleaved with the two: the change of the search
+module itself.  A benchmark, not a test: nothing is asserted.
 """
 
 from __future__ import annotations
