@@ -183,20 +183,8 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
             getattr(sol, name).base is state for name in ("V0", "M0", "theta1", "v1")):
         # (a solution whose states were replaced, e.g. redistributed, has its own arrays)
         return _kernel_responses(mesh, units, state, points, elem, s, quantities)
-    EI = mesh.EI[elem][:, None]
-    V0, M0 = sol.V0[elem], sol.M0[elem]
-    sc = s[:, None]
     # upward slope and deflection here; turned to the contract's signs at the end
-    out: dict[str, np.ndarray] = {}
-    if "shear" in quantities:
-        out["shear"] = V0.copy()
-    if "moment" in quantities:
-        out["moment"] = M0 + V0 * sc
-    if "rotation" in quantities:
-        out["rotation"] = sol.theta1[elem] + (M0 * sc + V0 * sc**2 / 2.0) / EI
-    if "deflection" in quantities:
-        out["deflection"] = (sol.v1[elem] + sol.theta1[elem] * sc
-                             + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
+    out = start_responses(mesh, sol, elem, s, quantities)
 
     if n_pairs and kernel:
         _kernel_terms(mesh, units, points, elem, s, out)
@@ -216,6 +204,27 @@ def evaluate_some(mesh: Mesh, units: UnitCases, sol: Solution, points: Points,
     for name in ("rotation", "deflection"):  # downward deflection, clockwise rotation
         if name in out:
             out[name] = -out[name]
+    return out
+
+
+def start_responses(mesh: Mesh, sol: Solution, elem: np.ndarray, s: np.ndarray,
+                    quantities: tuple[str, ...]) -> dict[str, np.ndarray]:
+    """Each unit case's response at distance ``s`` (m or ft) into element ``elem`` from
+    the element's start state alone (shear, moment; rotation and deflection upward, the
+    solver's signs), one row a point: the part before the element's own load terms."""
+    EI = mesh.EI[elem][:, None]
+    V0, M0 = sol.V0[elem], sol.M0[elem]
+    sc = s[:, None]
+    out: dict[str, np.ndarray] = {}
+    if "shear" in quantities:
+        out["shear"] = V0.copy()
+    if "moment" in quantities:
+        out["moment"] = M0 + V0 * sc
+    if "rotation" in quantities:
+        out["rotation"] = sol.theta1[elem] + (M0 * sc + V0 * sc**2 / 2.0) / EI
+    if "deflection" in quantities:
+        out["deflection"] = (sol.v1[elem] + sol.theta1[elem] * sc
+                             + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
     return out
 
 

@@ -23,7 +23,7 @@ from envelope import config
 from envelope.loading import DISTRIBUTED, POINT, UnitCases
 from envelope.loadterms import GAUSS_W, GAUSS_X
 from envelope.mesh import Mesh, locate
-from envelope.recovery import Points, evaluate_some
+from envelope.recovery import Points, evaluate_some, start_responses
 from envelope.solver import Solution
 from envelope.values import dataclass
 
@@ -90,19 +90,7 @@ def evaluate_points(mesh: Mesh, units: UnitCases, items: ElementItems, sol: Solu
     if kernel:
         return evaluate_some(mesh, units, sol, points, quantities, kernel=True)
     s = np.minimum(np.maximum(points.x_span - mesh.start[elem], 0.0), mesh.length[elem])
-    EI = mesh.EI[elem][:, None]
-    V0, M0 = sol.V0[elem], sol.M0[elem]
-    sc = s[:, None]
-    out: dict[str, np.ndarray] = {}
-    if "shear" in quantities:
-        out["shear"] = V0.copy()
-    if "moment" in quantities:
-        out["moment"] = M0 + V0 * sc
-    if "rotation" in quantities:
-        out["rotation"] = sol.theta1[elem] + (M0 * sc + V0 * sc**2 / 2.0) / EI
-    if "deflection" in quantities:
-        out["deflection"] = (sol.v1[elem] + sol.theta1[elem] * sc
-                             + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
+    out = start_responses(mesh, sol, elem, s, quantities)
     if items.width:
         _subtract_terms(units, items, points, elem, s, mesh.EI[elem][:, None], out)
     for name in ("rotation", "deflection"):  # downward deflection, clockwise rotation
