@@ -212,19 +212,25 @@ def start_responses(mesh: Mesh, sol: Solution, elem: np.ndarray, s: np.ndarray,
     """Each unit case's response at distance ``s`` (m or ft) into element ``elem`` from
     the element's start state alone (shear, moment; rotation and deflection upward, the
     solver's signs), one row a point: the part before the element's own load terms."""
-    EI = mesh.EI[elem][:, None]
-    V0, M0 = sol.V0[elem], sol.M0[elem]
-    sc = s[:, None]
+    return state_responses(sol.V0[elem], sol.M0[elem], sol.theta1[elem], sol.v1[elem],
+                           s[:, None], mesh.EI[elem][:, None], quantities)
+
+
+def state_responses(V0: np.ndarray, M0: np.ndarray, theta1: np.ndarray, v1: np.ndarray,
+                    s: np.ndarray, EI: np.ndarray, quantities: tuple[str, ...]
+                    ) -> dict[str, np.ndarray]:
+    """Shear, moment and (upward) rotation and deflection at distance ``s`` from an
+    element's start state (V0, M0, theta1, v1) with flexural rigidity ``EI``, the arrays
+    broadcast together: the element's own load terms not included."""
     out: dict[str, np.ndarray] = {}
     if "shear" in quantities:
         out["shear"] = V0.copy()
     if "moment" in quantities:
-        out["moment"] = M0 + V0 * sc
+        out["moment"] = M0 + V0 * s
     if "rotation" in quantities:
-        out["rotation"] = sol.theta1[elem] + (M0 * sc + V0 * sc**2 / 2.0) / EI
+        out["rotation"] = theta1 + (M0 * s + V0 * s**2 / 2.0) / EI
     if "deflection" in quantities:
-        out["deflection"] = (sol.v1[elem] + sol.theta1[elem] * sc
-                             + (M0 * sc**2 / 2.0 + V0 * sc**3 / 6.0) / EI)
+        out["deflection"] = v1 + theta1 * s + (M0 * s**2 / 2.0 + V0 * s**3 / 6.0) / EI
     return out
 
 
@@ -302,17 +308,8 @@ def evaluate_combined(mesh: Mesh, units: UnitCases, comb: Combined, points: Poin
     elem = locate(mesh, points.span, points.x_span, points.right)
     s = np.clip(points.x_span - mesh.start[elem], 0.0, mesh.length[elem])
     EI = mesh.EI[elem]
-    V0, M0 = comb.V0[owner, elem], comb.M0[owner, elem]
-    theta1, v1 = comb.theta1[owner, elem], comb.v1[owner, elem]
-    out: dict[str, np.ndarray] = {}
-    if "shear" in quantities:
-        out["shear"] = V0.copy()
-    if "moment" in quantities:
-        out["moment"] = M0 + V0 * s
-    if "rotation" in quantities:
-        out["rotation"] = theta1 + (M0 * s + V0 * s**2 / 2.0) / EI
-    if "deflection" in quantities:
-        out["deflection"] = v1 + theta1 * s + (M0 * s**2 / 2.0 + V0 * s**3 / 6.0) / EI
+    out = state_responses(comb.V0[owner, elem], comb.M0[owner, elem],
+                          comb.theta1[owner, elem], comb.v1[owner, elem], s, EI, quantities)
     pt, it = _pairs(elem, units.elem_first)
     if pt.size:
         Q, m, m1, m2 = load_terms(units.item_kind[it], units.item_a[it], units.item_b[it],
