@@ -9,19 +9,23 @@ grows with two counts that the file fixes before anything is solved:
 * stations S: ``stations_per_span`` per span, plus the segment boundaries and two rows
   at every point load, support and load edge.
 
-The responses at the stations are S x U numbers per quantity, handled in blocks, with
-several temporaries each; the unit-case solution is (elements x U).  Moment
+The responses at the stations are S x U numbers per quantity, but they are made and
+reduced in blocks of at most ``config.ENVELOPE_CHUNK_VALUES`` values (the supports in
+smaller ones), so only a block of them lives at once, with several temporaries each;
+what grows with the beam is the unit-case solution (elements x U) and the tables, a
+row per station.  Moment
 redistribution keeps a second, strength solution of every unit case beside it.  A
 moving load (concentrated, train) is placed by influence lines: a solve with 4 x
 (elements + rows) unit loads for a block of rows (at most
 ``config.MOVING_CHUNK_ROWS`` stations, or the 2 x spans rows beside the supports for
 the reactions), whose solution and responses are held together, and that solve is
-large enough to load numba's kernels.  The constants below
-were fitted to peak memory and CPU time measured on beams of 2 to 400 spans, up to 50
-segments and 200 000 stations (an x86-64 machine; they overestimate, which is the safe
-side).  A beam whose estimate exceeds the limits is refused with exit status 2, naming
-the key that drives the size, before any work; ``--max-memory`` and ``--max-seconds``
-raise the limits.
+large enough to load numba's kernels.  The constants below were fitted to peak memory
+and CPU time measured on beams of 2 to 512 spans, up to 50 segments and 200 000
+stations (an x86-64 machine; they overestimate, which is the safe side: by about 2x
+for memory on long segmented beams, where the estimate before the blocks were counted
+was 15x, 7.1 GiB for a 512-span beam that peaks at 486 MiB).  A beam whose estimate
+exceeds the limits is refused with exit status 2, naming the key that drives the
+size, before any work; ``--max-memory`` and ``--max-seconds`` raise the limits.
 """
 
 from __future__ import annotations
@@ -34,10 +38,18 @@ from envelope.errors import CaseError
 from envelope.model import Beam
 from envelope.values import dataclass
 
-#: Bytes per (station x unit case) at peak: responses, products and choices together.
+#: Bytes per (station x unit case) of the block of responses being enveloped:
+#: responses, products and choices together ...
 BYTES_PER_CELL = 48.0
-#: Bytes per (element x unit case): the solution and the element end forces.
-BYTES_PER_ELEMENT_UNIT = 64.0
+#: ... in blocks of at most this many (station x unit case) values (four blocks of the
+#: enveloper, to cover the all-cases table and the sizing's extents beside it).
+BLOCK_CELLS = 4 * config.ENVELOPE_CHUNK_VALUES
+#: Bytes per station: the rows of the tables (envelope, supports' neighbours, service
+#: and design columns) and their Arrow buffers while written; measured about 650.
+BYTES_PER_STATION = 2048.0
+#: Bytes per (element x unit case): the solution and the element end forces (measured
+#: about 13 on segmented beams of 64 to 512 spans).
+BYTES_PER_ELEMENT_UNIT = 32.0
 #: Memory of the engine itself (interpreter, numpy, pyarrow), bytes.
 BASE_BYTES = 160e6
 #: Memory numba holds once its kernels are loaded, bytes (measured about 130 MiB); the
@@ -116,8 +128,8 @@ def estimate(beam: Beam) -> Estimate:
     elements = stretches + n * parts + 2 * items
     kernels = (units >= config.KERNEL_MIN_UNITS
                or stations * units > config.ENVELOPE_CHUNK_VALUES)
-    memory = (BASE_BYTES + BYTES_PER_CELL * stations * units
-              + BYTES_PER_ELEMENT_UNIT * elements * units)
+    memory = (BASE_BYTES + BYTES_PER_CELL * min(stations * units, BLOCK_CELLS)
+              + BYTES_PER_STATION * stations + BYTES_PER_ELEMENT_UNIT * elements * units)
     seconds = BASE_SECONDS + SECONDS_PER_CELL * stations * units \
         + SECONDS_PER_STATION * stations
     if beam.design is not None:
