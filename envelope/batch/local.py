@@ -49,24 +49,29 @@ THREAD_VARIABLES = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS"
                     "VECLIB_MAXIMUM_THREADS", "NUMEXPR_NUM_THREADS")
 
 
-def _init_worker(parent: int) -> None:
+def _init_worker(parent: int, plots: bool = False) -> None:
     """Once per worker process: leave Ctrl-C to the coordinator, die with it, one thread
     per numerical library (set before numpy loads), and import the engine and pyarrow
-    now rather than in the first beam."""
+    (and, for a batch with figures, matplotlib the lean way:
+    :mod:`envelope.leanimport`) now rather than in the first beam."""
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     _watch_parent(parent)
     for name in THREAD_VARIABLES:
         os.environ.setdefault(name, "1")
     import envelope.api
     import envelope.store  # noqa: F401  (pyarrow)
+    if plots:
+        from envelope.leanimport import import_lean
+
+        import_lean()
 
 
-def _pool(workers: int) -> ProcessPoolExecutor:
+def _pool(workers: int, plots: bool = False) -> ProcessPoolExecutor:
     import multiprocessing
 
     # spawn: a clean interpreter, no copy of the coordinator's threads or locks
     return ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context("spawn"),
-                               initializer=_init_worker, initargs=(os.getpid(),))
+                               initializer=_init_worker, initargs=(os.getpid(), plots))
 
 
 Work = Callable[[Sequence[Task], str, bool], list[Outcome]]
@@ -80,7 +85,7 @@ def _drain(chunks: Sequence[list[Task]], workers: int, window: int, out: str, pl
     todo = deque(chunks)
     broken: list[list[Task]] = []
     while todo:
-        pool = _pool(max(1, min(workers, len(todo))))
+        pool = _pool(max(1, min(workers, len(todo))), plots)
         try:
             inflight: dict[Future[list[Outcome]], list[Task]] = {}
             dead = False
