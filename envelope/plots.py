@@ -50,6 +50,7 @@ from matplotlib.transforms import Affine2D, Bbox, IdentityTransform
 from envelope import drawlist
 from envelope.files import write_atomic
 from envelope.glyphs import CachedTextCanvas, KeptAnnotation, KeptText
+from envelope.keyrow import KeyRow
 from envelope.raster import figure_png
 from envelope.sketch import decode
 from envelope.stamp import Stamp
@@ -1214,19 +1215,30 @@ def _key_names(used: Sequence[str]) -> list[str]:
     return names
 
 
+def _key_handle(name: str) -> Line2D:
+    """The key's symbol for ``name``: the envelope's lines, a symbol of
+    :data:`_SYMBOLS`, or none (a text alone, such as the free end's)."""
+    if name in ("envelope maximum", "envelope minimum"):
+        return Line2D([], [], color=MAX_COLOUR if name == "envelope maximum" else MIN_COLOUR,
+                      lw=1.4)
+    if name in _SYMBOLS:
+        style: dict[str, Any] = {"color": INK, "markersize": 9, "ls": "none",
+                                 "mew": 1.0, **_SYMBOLS[name]}
+        return Line2D([], [], **style)
+    return Line2D([], [], ls="none")
+
+
+def _key_columns(names: Sequence[str]) -> int:
+    """The key's columns: one row of up to seven entries."""
+    return min(len(names), 7)
+
+
 def _key_legend(fig: Figure, names: Sequence[str], add: bool) -> Any:
     """The key as a legend in one row under the panels (added to ``fig`` when ``add``)."""
-    handles = [Line2D([], [], color=MAX_COLOUR, lw=1.4), Line2D([], [], color=MIN_COLOUR,
-                                                                lw=1.4)]
-    for name in names[2:]:
-        if name in _SYMBOLS:
-            style: dict[str, Any] = {"color": INK, "markersize": 9, "ls": "none",
-                                     "mew": 1.0, **_SYMBOLS[name]}
-            handles.append(Line2D([], [], **style))
-        else:
-            handles.append(Line2D([], [], ls="none"))
+    handles = [_key_handle(name) for name in names]
     options: dict[str, Any] = {
-        "loc": "lower left", "ncol": min(len(names), 7), "fontsize": 6.5, "frameon": False,
+        "loc": "lower left", "ncol": _key_columns(names), "fontsize": 6.5,
+        "frameon": False,
         "bbox_to_anchor": (_LEFT / fig.get_figwidth() - 0.01, 0.45 / fig.get_figheight()),
         "handlelength": 1.6, "columnspacing": 1.2, "borderaxespad": 0.0}
     if add:
@@ -1239,9 +1251,11 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
     names = _key_names(used)
     stamp = _KEY_STAMPS.get(fig)
     if stamp is not None:
-        # the fast way: built and drawn once per set of symbols, then pasted
+        # the fast way: laid out from entries kept per figure and drawn once per set
+        # of symbols, then pasted
         stamp.show((tuple(names), tuple(fig.get_size_inches()), fig.dpi),
-                   lambda: _key_legend(fig, names, add=False))
+                   lambda: KeyRow(fig, names, _key_columns(names),
+                                  lambda some: _key_legend(fig, some, add=False)))
     elif [_KEY_NAMES.get(legend) for legend in fig.legends] != [names]:
         # a kept figure keeps its key while the symbols are the same
         for legend in list(fig.legends):

@@ -16,7 +16,7 @@ import pytest
 from PIL import Image
 
 import envelope
-from envelope import drawlist, plots, stamp, store, ticks
+from envelope import drawlist, keyrow, plots, stamp, store, ticks
 
 from beams import make_cases_module
 
@@ -104,9 +104,9 @@ def test_the_key_is_pasted_from_kept_pixels_only_over_the_same_background(
     ((_, _, background, _, changed),) = stamp._STAMPS.values()
     assert changed.any() and not changed.all()
     drawn = []
-    original = plots.Legend.draw
+    original = keyrow.KeyRow.draw
     try:
-        plots.Legend.draw = lambda self, renderer: drawn.append(self) or original(
+        keyrow.KeyRow.draw = lambda self, renderer: drawn.append(self) or original(
             self, renderer)
         again = _pixels(cols, tmp_path, fast=True)
         assert not drawn and np.array_equal(first, again)
@@ -114,7 +114,43 @@ def test_the_key_is_pasted_from_kept_pixels_only_over_the_same_background(
         _pixels(cols, tmp_path, fast=True)
         assert drawn
     finally:
-        plots.Legend.draw = original
+        keyrow.KeyRow.draw = original
+
+
+def _key_pixels(fig: plots.Figure, artist: object) -> np.ndarray:
+    renderer = fig.canvas.get_renderer()
+    renderer.clear()
+    artist.draw(renderer)  # type: ignore[attr-defined]
+    return np.asarray(renderer.buffer_rgba()).copy()
+
+
+def test_every_key_is_drawn_as_matplotlibs_legend() -> None:
+    """The key laid out from kept entries (:mod:`envelope.keyrow`) against matplotlib's
+    legend of the same names: every symbol alone, sets of every size in one row, and
+    sets of eight to all fifteen entries in two rows (columns of two and one), on
+    figures of two heights; the same pixels, and the same extent."""
+    everything = plots._key_names([*plots._SYMBOLS, "free end"])
+    rng = np.random.default_rng(5)
+    sets = [[*everything[:2], name] for name in everything[2:]]
+    sets += [everything[:2] + sorted(rng.choice(everything[2:], k, replace=False),
+                                     key=everything.index) for k in range(1, 14)
+             for _ in range(2)]
+    sets.append(everything)
+    with plots.mpl.rc_context(plots.STYLE):
+        for height in (7.0, 9.3):
+            fig = plots.Figure(figsize=(plots.WIDTH, height), dpi=plots.DPI)
+            plots.StyledCanvas(fig)
+            for names in sets:
+                legend = plots._key_legend(fig, names, add=False)
+                key = keyrow.KeyRow(fig, names, plots._key_columns(names),
+                                    lambda some, fig=fig: plots._key_legend(fig, some,
+                                                                            add=False))
+                reference = _key_pixels(fig, legend)
+                assert reference.any()
+                assert np.array_equal(_key_pixels(fig, key), reference), names
+                renderer = fig.canvas.get_renderer()
+                assert key.get_window_extent(renderer).bounds == \
+                    legend.get_window_extent(renderer).bounds
 
 
 def test_the_display_lists_keep_one_template_per_style(tmp_path: Path) -> None:
