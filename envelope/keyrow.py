@@ -5,14 +5,16 @@ The key is a matplotlib legend: for each set of symbols a new ``Legend``, its ha
 texts and some twenty offset boxes are built, and its layout is found by asking every
 box its extent, level by level, each time it is measured or drawn: about 10 ms a
 new set (15 ms where the glyphs are new too), and a batch worker meets a new set every
-beam or two.  Here each entry (a symbol's handle and its name) is built once per figure
-by a legend of that entry alone, and a set's key places the kept entries as the legend
-would place them: the same packing (``matplotlib.offsetbox``'s packers: each entry its
-handle and text side by side on their baseline, entries in columns, columns side by
-side, the legend's border pad round them) computed in the same order from the same
-extents, anchored by the legend's own rule, and each entry drawn by its own handle box
-and its text (as ``Text.draw`` draws it: :func:`envelope.drawlist.draw_text`).  The
-layout of a set costs a few hundred microseconds.
+beam or two.  Here each entry (a symbol's handle and its name) is built once, for every
+figure of the same resolution, by a legend of that entry alone, and a set's key places
+the kept entries as the legend would place them: the same packing
+(``matplotlib.offsetbox``'s packers: each entry its handle and text side by side on
+their baseline, entries in columns, columns side by side, the legend's border pad round
+them) computed in the same order from the same extents, anchored by the legend's own
+rule (a legend without entries kept per figure and size), and each entry drawn by its
+own handle box and its text (as ``Text.draw`` draws it:
+:func:`envelope.drawlist.draw_text`).  The layout of a set costs a few hundred
+microseconds.
 
 ``tests/test_fast_figure.py`` compares the pixels with those of the legend drawn by
 matplotlib, for every set of symbols in one and in two rows.
@@ -31,8 +33,8 @@ from matplotlib.transforms import Bbox
 
 from envelope.drawlist import draw_text
 
-#: An entry: (the legend of it alone, its handle box, its text box).
-_Entry = tuple[Any, Any, Any]
+#: An entry: (its handle box, its text box, the text box's extent per pixels a point).
+_Entry = tuple[Any, Any, dict[float, Bbox]]
 
 
 def _hpack(bboxes: Sequence[Bbox], sep: float, pad: float
@@ -62,13 +64,18 @@ def _vpack(bboxes: Sequence[Bbox], sep: float, pad: float, align: str
             [*zip(xoffsets, yoffsets, strict=True)])
 
 
-#: Each figure's entries by name (see the module docstring).
-_ENTRIES: WeakKeyDictionary[Any, dict[str, _Entry]] = WeakKeyDictionary()
+#: The entries by name and resolution (see the module docstring), made on the first
+#: figure that shows them and drawn on any: an entry's boxes and artists depend on the
+#: figure only through its resolution.
+_ENTRIES: dict[tuple[str, float], _Entry] = {}
+#: Each figure's legend without entries, by figure size: where the legend's anchor is.
+_ANCHORS: WeakKeyDictionary[Any, tuple[tuple[float, ...], Any]] = WeakKeyDictionary()
 
 
 class KeyRow(Artist):
     """The key of ``names`` on ``fig``: ``legend_of(names)`` makes the legend it
-    stands for (given one name, the legend of that entry alone)."""
+    stands for on ``fig`` (given one name, the legend of that entry alone; given none,
+    the legend without entries, whose anchor and spacing serve every key)."""
 
     def __init__(self, fig: Any, names: Sequence[str], ncols: int,
                  legend_of: Callable[[Sequence[str]], Any]) -> None:
@@ -80,16 +87,23 @@ class KeyRow(Artist):
         self._placed: tuple[Any, list[tuple[Any, Any, tuple[float, float],
                                             tuple[float, float]]], Bbox] | None = None
 
-    def _entry(self, name: str) -> _Entry:
-        entries = _ENTRIES.setdefault(self.get_figure(root=True), {})
-        entry = entries.get(name)
+    def _entry(self, name: str, fig: Any) -> _Entry:
+        entry = _ENTRIES.get((name, fig.dpi))
         if entry is None:
             legend = self.legend_of([name])
             ((handlebox, textbox),) = [item.get_children() for column in
                                        legend._legend_handle_box.get_children()
                                        for item in column.get_children()]
-            entry = entries[name] = (legend, handlebox, textbox)
+            entry = _ENTRIES[(name, fig.dpi)] = (handlebox, textbox, {})
         return entry
+
+    def _anchor(self, fig: Any) -> Any:
+        """The figure's legend without entries (its anchor is every key's)."""
+        size = tuple(fig.bbox.bounds)
+        kept = _ANCHORS.get(fig)
+        if kept is None or kept[0] != size:
+            kept = _ANCHORS[fig] = (size, self.legend_of([]))
+        return kept[1]
 
     def _layout(self, renderer: Any) -> tuple[list[tuple[Any, Any, tuple[float, float],
                                                          tuple[float, float]]], Bbox]:
@@ -100,13 +114,15 @@ class KeyRow(Artist):
         if self._placed is not None and self._placed[0] == key:
             return self._placed[1], self._placed[2]
         dpicor = renderer.points_to_pixels(1.0)
-        entries = [self._entry(name) for name in self.names]
-        legend = entries[0][0]
+        legend = self._anchor(fig)
         fontsize = legend._fontsize
         items = []
-        for _, handlebox, textbox in entries:
-            # (the text box's extent also sets its baseline transform)
-            bbox, offsets = _hpack([handlebox.get_bbox(renderer), textbox.get_bbox(renderer)],
+        for name in self.names:
+            handlebox, textbox, extents = self._entry(name, fig)
+            text_box = extents.get(dpicor)
+            if text_box is None:  # (measuring it also sets its baseline transform)
+                text_box = extents[dpicor] = textbox.get_bbox(renderer)
+            bbox, offsets = _hpack([handlebox.get_bbox(renderer), text_box],
                                    legend.handletextpad * fontsize * dpicor, 0.0 * dpicor)
             items.append((bbox, offsets, handlebox, textbox))
         columns = []

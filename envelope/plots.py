@@ -1229,8 +1229,8 @@ def _key_handle(name: str) -> Line2D:
 
 
 def _key_columns(names: Sequence[str]) -> int:
-    """The key's columns: one row of up to seven entries."""
-    return min(len(names), 7)
+    """The key's columns: one row of up to seven entries (one column without any)."""
+    return max(min(len(names), 7), 1)
 
 
 def _key_legend(fig: Figure, names: Sequence[str], add: bool) -> Any:
