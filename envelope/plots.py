@@ -371,26 +371,37 @@ def _finite(a: Any) -> np.ndarray:
 # --------------------------------------------------------------------------- panels
 
 
+def _panel_rects(size: tuple[float, float], heights: Sequence[float], top: float,
+                 bottom: float, region: tuple[float, float, float, float] | None = None
+                 ) -> list[tuple[float, float, float, float]]:
+    """The panels' rectangles (figure fraction) on a figure of ``size`` (in), stacked
+    top to bottom with the given heights (in), fixed margins."""
+    fw, fh = size
+    x0, y0, w, h = region or (0.0, 0.0, 1.0, 1.0)
+    gap = 0.12
+    usable = h * fh - top - bottom - gap * (len(heights) - 1)
+    scale = usable / sum(heights)
+    rects = []
+    y = y0 * fh + h * fh - top
+    for height in heights:
+        hh = height * scale
+        y -= hh
+        rects.append((x0 + _LEFT / fw * w, y / fh, w - (_LEFT + _RIGHT) / fw * w, hh / fh))
+        y -= gap
+    return rects
+
+
 def _panel_axes(fig: Figure, heights: Sequence[float], top: float, bottom: float,
                 region: tuple[float, float, float, float] | None = None,
                 fast: bool = False) -> list[Any]:
     """Axes stacked top to bottom with the given heights (in), fixed margins; with
     ``fast``, ticks drawn by :mod:`envelope.ticks`."""
     fw, fh = fig.get_size_inches()
-    x0, y0, w, h = region or (0.0, 0.0, 1.0, 1.0)
-    gap = 0.12
-    usable = h * fh - top - bottom - gap * (len(heights) - 1)
-    scale = usable / sum(heights)
     axes: list[Any] = []
-    y = y0 * fh + h * fh - top
-    for height in heights:
-        hh = height * scale
-        y -= hh
-        rect = (x0 + _LEFT / fw * w, y / fh, w - (_LEFT + _RIGHT) / fw * w, hh / fh)
+    for rect in _panel_rects((fw, fh), heights, top, bottom, region):
         ax = fig.add_axes(rect, sharex=axes[0] if axes else None)
         ax.set_facecolor(PAPER)
         axes.append(ax)
-        y -= gap
     _prepare(axes, fast)
     return axes
 
@@ -419,10 +430,14 @@ def _prepare(axes: Sequence[Any], fast: bool = False) -> None:
             drawlist.install(ax)
 
 
-#: Figures kept for reuse by :func:`draw_results`, by panel heights: creating the axes
-#: is a third of the cost of a figure, and a batch worker draws many of one layout.
+#: Figures kept for reuse by :func:`draw_results`, by number of panels: creating the
+#: axes is a third of the cost of a figure, and a batch worker draws many beams with
+#: the same panels (a kept figure takes another beam's panel heights by its size and
+#: its axes' positions: the same figure as one made with them, tested).
 _KEPT: dict[tuple[Any, ...], tuple[Figure, list[Any]]] = {}
 _KEEP_AT_MOST = 4
+#: The panel heights (in) each kept figure has now.
+_HEIGHTS: WeakKeyDictionary[Any, tuple[float, ...]] = WeakKeyDictionary()
 
 
 class StyledCanvas(CachedTextCanvas):
@@ -442,9 +457,15 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
     ``reuse`` (the caller saves it and lets it go; ``fast``: drawn by the fast paths,
     see :func:`draw_results`), else a new one."""
     fast = fast and reuse
-    key = (*(round(h, 6) for h in heights), fast)
+    key = (len(heights), fast)
+    size = (WIDTH, sum(heights) + top + bottom + 0.12 * len(heights))
     if reuse and key in _KEPT:
         fig, axes = _KEPT[key]
+        if _HEIGHTS.get(fig) != tuple(heights):  # another beam's panel heights
+            fig.set_size_inches(size)
+            for ax, rect in zip(axes, _panel_rects(size, heights, top, bottom), strict=True):
+                ax.set_position(rect)
+            _HEIGHTS[fig] = tuple(heights)
         for text in list(fig.texts):
             text.remove()
         # the key stays: :func:`_key` keeps it where the next beam's is the same
@@ -462,8 +483,7 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
         return fig, axes
     # a kept figure is drawn at the file's resolution, so that its renderer (and the
     # text extents measured for placing the labels) serve every beam's file
-    fig = Figure(figsize=(WIDTH, sum(heights) + top + bottom + 0.12 * len(heights)),
-                 facecolor="white", dpi=DPI if reuse else None)
+    fig = Figure(figsize=size, facecolor="white", dpi=DPI if reuse else None)
     StyledCanvas(fig)
     axes = _panel_axes(fig, heights, top, bottom, fast=fast)
     if fast:
@@ -474,6 +494,7 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
         if len(_KEPT) >= _KEEP_AT_MOST:
             _KEPT.pop(next(iter(_KEPT)))
         _KEPT[key] = (fig, axes)
+        _HEIGHTS[fig] = tuple(heights)
     return fig, axes
 
 

@@ -168,3 +168,33 @@ def test_the_display_lists_keep_one_template_per_style(tmp_path: Path) -> None:
     assert sum(c for _, c in counts) > 50  # the panels' contents are on the lists
     plots.draw_results(cols, tmp_path / "b.png", durable=False)
     assert [(len(p.templates), p.count()) for p in panels] == counts
+
+
+def test_a_kept_figure_given_other_panel_heights_draws_as_a_new_figure(
+        tmp_path: Path) -> None:
+    """A kept figure takes the next beam's panel heights (a strip with more load lanes,
+    another layout of the same panels) by its size and its axes' positions: each beam
+    drawn on the figure kept from the beam before is the same file, byte for byte, as
+    the beam drawn on a figure made for it, drawn the fast way and by matplotlib."""
+    paths = make_cases_module().make_cases(12, tmp_path / "cases", seed=7)
+    resized = 0
+    for fast in (True, False):
+        previous = None
+        for path in paths:
+            cols = _columns(path)
+            if previous is not None:
+                plots._KEPT.clear()
+                plots.draw_results(previous, tmp_path / "before.png", durable=False,
+                                   fast=fast)
+                (fig, _), = plots._KEPT.values()
+                before = plots._HEIGHTS[fig]
+                kept = plots.draw_results(cols, tmp_path / "kept.png", durable=False,
+                                          fast=fast).read_bytes()
+                if len(plots._KEPT) == 1 and plots._HEIGHTS[fig] != before:
+                    resized += 1
+                plots._KEPT.clear()
+                new = plots.draw_results(cols, tmp_path / "new.png", durable=False,
+                                         fast=fast).read_bytes()
+                assert kept == new, path.name
+            previous = cols
+    assert resized >= 4  # beams whose panels have other heights than the beam before
