@@ -25,11 +25,18 @@ from collections.abc import Sequence
 import numpy as np
 
 from envelope import config
-from envelope.contracted import SpanCases, contract, item_values, response, slope_at
+from envelope.contracted import (
+    SpanCases,
+    breaks_inside,
+    contract,
+    item_values,
+    response,
+    slope_at,
+)
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients, reduce
 from envelope.moving import MovingEffect, moving_loads, point_effects
 from envelope.recovery import Points, evaluate_some, make_points, pair_count
-from envelope.search import anderson_bjorck_root, golden_max
+from envelope.search import LOBATTO_NODES, anderson_bjorck_root, golden_max, quartic_roots
 from envelope.solved import QUANTITY_SET, Solved, chunk_rows, envelope_at
 from envelope.solver import Solution
 from envelope.unitpoints import ElementItems, element_items, evaluate_points
@@ -456,13 +463,19 @@ class _Search:
         gov = self.contract(task, span, coef)
         deflection = self.is_deflection[task]
         n = x.size
-
-        slope = slope_at(gov, deflection)
-
-        four = response(gov.take(np.tile(np.arange(n), 4)), np.concatenate([lo, hi, x, x]),
-                        np.tile(deflection, 4), slope=True,
-                        right=np.repeat([True, True, False, True], n))
-        f_lo, f_hi, left, right = four[:n], four[n: 2 * n], four[2 * n: 3 * n], four[3 * n:]
+        # the slope at the bracket's ends and either side of the station, and at the
+        # inner Chebyshev-Lobatto nodes of [lo, x] and of [x, hi] (with [x, hi]'s end
+        # at hi as a left-side limit): one response for the side test and the root
+        nodes = LOBATTO_NODES[1:4]
+        mid_l, half_l = 0.5 * (lo + x), 0.5 * (x - lo)
+        mid_r, half_r = 0.5 * (x + hi), 0.5 * (hi - x)
+        at = np.concatenate([lo, hi, x, x, hi, (mid_l[:, None] + half_l[:, None] * nodes).T.ravel(),
+                             (mid_r[:, None] + half_r[:, None] * nodes).T.ravel()])
+        sides = np.repeat([True, True, False, True, False, True, True, True, True, True, True],
+                          n)
+        f_all = response(gov.take(np.tile(np.arange(n), 11)), at, np.tile(deflection, 11),
+                         slope=True, right=sides).reshape(11, n)
+        f_lo, f_hi, left, right = f_all[0], f_all[1], f_all[2], f_all[3]
         ok = (f_lo > 0.0) & (f_hi < 0.0)
         # the slope just left and right of the station itself: through zero there (a
         # jump under a point load) is the root at once; else the bracket keeps the side
@@ -472,9 +485,27 @@ class _Search:
         up = inner & (left > 0.0) & (right > 0.0)
         down = inner & (left < 0.0) & (right < 0.0)
         tol = config.ROOT_XTOL_EPS * _EPS * np.maximum(length, 1.0)
-        root = anderson_bjorck_root(slope, np.where(up, x, lo), np.where(down, x, hi),
-                             np.where(up, right, f_lo), np.where(down, left, f_hi), x,
-                             ok & ~at_x, tol, group=task)
+        active = ok & ~at_x
+        # the root's side of the station: [x, hi] going up (or with x at lo), [lo, x]
+        # going down (or with x at hi); on it the slope is one polynomial of degree at
+        # most four where no load edge, point load or element end lies inside
+        use_r = active & (up | (x == lo))
+        use_l = active & ~use_r & (down | (x == hi))
+        a_side, b_side = np.where(use_r, x, lo), np.where(use_r, hi, x)
+        smooth = (use_r | use_l) & ~breaks_inside(gov, a_side, b_side)
+        values = np.where(use_r, f_all[[3, 8, 9, 10, 4]], f_all[[0, 5, 6, 7, 2]]).T
+        half = np.where(use_r, half_r, half_l)
+        u = quartic_roots(values, smooth, tol / np.maximum(half, _TINY),
+                          np.where(use_r, -1.0, 1.0))
+        root = np.where(u == -1.0, a_side, np.where(u == 1.0, b_side, np.minimum(np.maximum(
+            np.where(use_r, mid_r, mid_l) + half * u, a_side), b_side)))
+        root = np.where(smooth, root, x)
+        rest = active & ~smooth
+        if rest.any():
+            root = anderson_bjorck_root(slope_at(gov, deflection), np.where(up, x, lo),
+                                        np.where(down, x, hi), np.where(up, right, f_lo),
+                                        np.where(down, left, f_hi), root, rest, tol,
+                                        group=task)
         # a maximum at an end of its bracket (a span end): the case falls away inwards and
         # the envelope is lower at probes inside the bracket (several cases may tie at a
         # support, so the governing one alone does not decide); the envelope at the

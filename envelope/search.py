@@ -231,3 +231,74 @@ def _divide(a: float, b: float) -> float:
     if a == 0.0 or math.isnan(a):
         return math.nan
     return math.copysign(math.inf, a) * math.copysign(1.0, b)
+
+
+#: The five Chebyshev-Lobatto nodes on [-1, 1], ascending (-cos(j pi / 4)): where
+#: :func:`quartic_roots` takes the values of the polynomial it searches.
+LOBATTO_NODES = -np.cos(np.arange(5) * np.pi / 4.0)
+LOBATTO_NODES[2] = 0.0  # (cos(pi / 2) is 6e-17 in floats)
+#: From the values at :data:`LOBATTO_NODES` to the coefficients of the quartic through
+#: them (constant term first): the inverse of the nodes' Vandermonde matrix, transposed
+#: (values x this = coefficients).  On these nodes its condition is about 20, so the
+#: coefficients carry the values' round-off, hardly more.
+_LOBATTO_TO_POWERS = np.linalg.inv(np.vander(LOBATTO_NODES, 5, increasing=True)).T
+
+
+def quartic_roots(values: np.ndarray, active: np.ndarray, utol: np.ndarray,
+                  start: np.ndarray) -> np.ndarray:
+    """The root in [-1, 1] of the polynomial of degree at most four through each row of
+    ``values`` (rows x 5, its values at :data:`LOBATTO_NODES`), where the polynomial is
+    positive at -1 and negative at +1; -1 where it is not positive at -1, +1 where it
+    is not negative at +1 (the root is then a jump at that end).  ``start`` where a row
+    is not ``active``.
+
+    The root is found as :func:`anderson_bjorck_root` finds it (the same steps, to
+    ``utol`` per row), each row by itself, on the polynomial evaluated with Python floats
+    (Horner's rule): a slope of the design search is exactly such a polynomial between
+    neighbouring stations (its load terms are polynomials of degree at most four there,
+    and the three-point Gauss rule integrates them exactly), so five values replace a
+    response at every step.  At most :data:`envelope.config.ROOT_MAX_STEPS` steps."""
+    out = np.array(start, dtype=float)
+    rows = np.flatnonzero(active)
+    if not rows.size:
+        return out
+    coef = (values[rows] @ _LOBATTO_TO_POWERS).tolist()
+    tols = np.broadcast_to(np.asarray(utol, dtype=float), out.shape)[rows].tolist()
+    roots = [_quartic_root(c, tol, s) for c, tol, s in
+             zip(coef, tols, out[rows].tolist(), strict=True)]
+    out[rows] = roots
+    return out
+
+
+def _quartic_root(c: list[float], tol: float, root: float) -> float:
+    """:func:`quartic_roots` of one polynomial (coefficients ``c``, constant first),
+    from ``root`` (where the first step is measured from)."""
+    c0, c1, c2, c3, c4 = c
+    lo, hi = -1.0, 1.0
+    f_lo = c0 + (-1.0) * (c1 + (-1.0) * (c2 + (-1.0) * (c3 + (-1.0) * c4)))
+    f_hi = c0 + (c1 + (c2 + (c3 + c4)))
+    if not f_lo > 0.0:
+        return lo
+    if not f_hi < 0.0:
+        return hi
+    stale = 0  # +1: lo moved last, -1: hi moved last
+    for _ in range(config.ROOT_MAX_STEPS):
+        u = min(max((lo * f_hi - hi * f_lo) / (f_hi - f_lo), lo), hi)
+        done = abs(u - root) <= tol
+        root = u
+        if done:
+            break
+        f_u = c0 + u * (c1 + u * (c2 + u * (c3 + u * c4)))
+        if f_u > 0.0:
+            m = 1.0 - _divide(f_u, f_lo)
+            lo, f_lo = u, f_u
+            if stale > 0:
+                f_hi = (m if m > 0.0 else 0.5) * f_hi
+            stale = 1
+        else:
+            m = 1.0 - _divide(f_u, f_hi)
+            hi, f_hi = u, f_u
+            if stale < 0:
+                f_lo = (m if m > 0.0 else 0.5) * f_lo
+            stale = -1
+    return root

@@ -335,3 +335,51 @@ def test_slopes_made_for_the_root_steps_are_the_contracted_slopes_bit_for_bit(
             want = response(sc, x, deflection, slope=True)
             assert np.array_equal(slope(x), want, equal_nan=True), path.name
     assert several
+
+
+def test_slope_roots_by_quartics_match_the_regula_falsi_on_the_slopes(
+        generated: list[Path], monkeypatch: pytest.MonkeyPatch) -> None:
+    """The slope roots from five values of each bracket's slope (a quartic between
+    stations) against Anderson-Bjorck regula falsi on the contracted slope itself, every
+    bracket taken as if a break lay inside it: the same answers to round-off."""
+    import envelope.actions
+
+    for path in generated[:16]:
+        a = analyse(load_case(path))
+        monkeypatch.setattr(envelope.actions, "breaks_inside",
+                            lambda sc, lo, hi: np.ones(lo.size, dtype=bool))
+        slow = design_actions(a.solved, a.stations, a.station_envelopes)
+        monkeypatch.undo()
+        _assert_same_actions(a.design_actions, slow, path.name)
+
+
+def test_breaks_inside_are_the_element_starts_and_the_loaded_items_ends() -> None:
+    """A bracket with an element start, a distributed item's end or a point item of the
+    case strictly inside it has a break; one with such a point only at its ends, or with
+    an item the case does not load inside it, has none."""
+    from envelope.contracted import breaks_inside
+
+    for path in sorted((REPO / "cases").glob("*.toml")):
+        s = analyse(load_case(path)).solved
+        units, mesh = s.unit_cases, s.mesh
+        span_of = mesh.span[units.item_elem]
+        at_a = mesh.start[units.item_elem] + units.item_a
+        for j in range(s.beam.n_spans):
+            coef = np.zeros((1, units.n_units))
+            mine = np.flatnonzero(span_of == j)
+            if not mine.size:
+                continue
+            loaded = units.item_unit[mine[0]]
+            coef[0, loaded] = 1.0
+            sc = contract(mesh, units, [(s.solution, np.arange(1))], np.array([j]), coef)
+            p = float(at_a[mine[0]])
+            length = float(s.beam.geometry.span_length[j])
+            lo, hi = np.array([max(p - 1e-3 * length, 0.0)]), np.array([p + 1e-3 * length])
+            assert breaks_inside(sc, lo, hi)[0] == (p > 0.0), path.name
+            assert not breaks_inside(sc, np.array([p]), np.array([p]))[0]
+            # every break of the row is an element start or a loaded item's position
+            want = set(mesh.start[mesh.span == j].tolist()) | {
+                float(v) for i in mine if units.item_unit[i] == loaded
+                for v in (at_a[i], mesh.start[units.item_elem[i]] + units.item_b[i])}
+            got = set(sc.breaks[0][np.isfinite(sc.breaks[0])].tolist()) - {0.0}
+            assert got <= want, path.name

@@ -54,3 +54,34 @@ def test_illinois_root_leaves_inactive_brackets_at_their_start() -> None:
     root = illinois_root(f, lo, hi, f(lo), f(hi), start, np.array([True, False]),
                          np.full(2, 1e-15))
     assert abs(root[0] - math.pi / 2) < 1e-15 and root[1] == 0.25
+
+
+def test_quartic_roots_are_the_roots_sympy_finds() -> None:
+    # polynomials of degree 1 to 4 on [-1, 1] with one sign change from + to -, given by
+    # their values at the Lobatto nodes; the roots against SymPy's exact real roots
+    import sympy
+
+    from envelope.search import LOBATTO_NODES, quartic_roots
+
+    u = sympy.Symbol("u")
+    polys = [sympy.Rational(1, 3) - u,
+             (sympy.Rational(1, 5) - u) * (u + 3),
+             -(u - sympy.Rational(-2, 7)) * (u**2 + 1),
+             -(u + sympy.Rational(1, 2)) * (u - 2) * (u - 3) * (u + 4) / 10]
+    values = np.array([[float(p.subs(u, float(t))) for t in LOBATTO_NODES] for p in polys])
+    want = [float(next(r for r in sympy.real_roots(sympy.Poly(p, u)) if -1 <= r <= 1))
+            for p in polys]
+    got = quartic_roots(values, np.ones(4, bool), np.full(4, 1e-15), np.full(4, -1.0))
+    np.testing.assert_allclose(got, want, rtol=0, atol=1e-14)
+
+
+def test_quartic_roots_at_a_jump_an_inactive_row_and_an_exact_zero() -> None:
+    # not positive at -1: the root is -1; not negative at +1: +1; inactive: its start;
+    # a value of exactly 0 at a regula falsi point: that point
+    from envelope.search import LOBATTO_NODES, quartic_roots
+
+    values = np.stack([-LOBATTO_NODES - 2.0, 2.0 - LOBATTO_NODES, -LOBATTO_NODES,
+                       -LOBATTO_NODES])
+    got = quartic_roots(values, np.array([True, True, False, True]), np.full(4, 1e-15),
+                        np.array([1.0, -1.0, 0.5, -1.0]))
+    assert got.tolist() == [-1.0, 1.0, 0.5, 0.0]
