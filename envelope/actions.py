@@ -32,6 +32,7 @@ from envelope.contracted import (
     item_values,
     response,
     slope_at,
+    span_breaks,
 )
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients, reduce
 from envelope.moving import MovingEffect, moving_loads, point_effects
@@ -288,6 +289,8 @@ class _Search:
         self.solution = [solved.solution_for(name) for _, name in tasks]
         self.is_deflection = np.array([q == "deflection" for q, _ in tasks], dtype=bool)
         self.moving = bool(moving_loads(solved.beam))  # asked once, not at every step
+        # where a slope may not be one polynomial, per span
+        self.breaks = span_breaks(solved.mesh, solved.unit_cases, solved.beam.n_spans)
 
     def refine(self, br: _Brackets, coef: np.ndarray | None = None
                ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -372,6 +375,37 @@ class _Search:
                 out.append((t, r, resp[self.quantity[t]][at: at + r.size]))
                 at += r.size
         return sorted(out, key=lambda part: part[0])
+
+    def unit_slopes(self, task: np.ndarray, span: np.ndarray, coef: np.ndarray,
+                    rows: np.ndarray, x: np.ndarray, right: np.ndarray) -> np.ndarray:
+        """The slope (shear for moment, rotation for deflection) of the cases ``coef``
+        (one row per bracket) at points of their brackets (``rows``: each point's
+        bracket; ``x``, ``right``: its position and side): every unit case's slope there
+        times the case's coefficients (one evaluation per solution, for a beam whose
+        points fit one block; :func:`envelope.contracted.response` of the contracted
+        case is the same to round-off)."""
+        s = self.solved
+        out = np.empty(x.size)
+        deflection = self.is_deflection[task][rows]
+        groups = self._by_solution(task)
+        for sol, tasks in groups:
+            if len(groups) == 1:
+                mine = np.arange(x.size)
+            else:
+                of_sol = np.zeros(task.size, dtype=bool)
+                for _, r in tasks:
+                    of_sol[r] = True
+                mine = np.flatnonzero(of_sol[rows])
+            names = tuple(dict.fromkeys("rotation" if self.is_deflection[t] else "shear"
+                                        for t, _ in tasks))
+            resp = evaluate_points(s.mesh, s.unit_cases, self.items, sol,
+                                   make_points(s.beam, span[rows[mine]], x[mine],
+                                               right[mine]), names)
+            c = coef[rows[mine]]
+            slopes = {q: np.einsum("iu,iu->i", resp[q], c) for q in names}
+            out[mine] = slopes[names[0]] if len(names) == 1 else np.where(
+                deflection[mine], slopes["rotation"], slopes["shear"])
+        return out
 
     def contract(self, task: np.ndarray, span: np.ndarray, coef: np.ndarray) -> SpanCases:
         """The cases ``coef`` (one row per bracket) contracted on each bracket's span
@@ -460,12 +494,11 @@ class _Search:
             coef = np.empty((x.size, s.unit_cases.n_units))
             for t, rows, resp in self.responses(task, span, x):
                 coef[rows] = governing_coefficients(resp, self.sets[t])
-        gov = self.contract(task, span, coef)
         deflection = self.is_deflection[task]
         n = x.size
         # the slope at the bracket's ends and either side of the station, and at the
         # inner Chebyshev-Lobatto nodes of [lo, x] and of [x, hi] (with [x, hi]'s end
-        # at hi as a left-side limit): one response for the side test and the root
+        # at hi as a left-side limit): one evaluation for the side test and the root
         nodes = LOBATTO_NODES[1:4]
         mid_l, half_l = 0.5 * (lo + x), 0.5 * (x - lo)
         mid_r, half_r = 0.5 * (x + hi), 0.5 * (hi - x)
@@ -473,8 +506,14 @@ class _Search:
                              (mid_r[:, None] + half_r[:, None] * nodes).T.ravel()])
         sides = np.repeat([True, True, False, True, False, True, True, True, True, True, True],
                           n)
-        f_all = response(gov.take(np.tile(np.arange(n), 11)), at, np.tile(deflection, 11),
-                         slope=True, right=sides).reshape(11, n)
+        rows = np.tile(np.arange(n), 11)
+        gov: SpanCases | None = None
+        if _by_units(11 * n, s.unit_cases.n_units):
+            f_all = self.unit_slopes(task, span, coef, rows, at, sides)
+        else:
+            gov = self.contract(task, span, coef)
+            f_all = response(gov.take(rows), at, deflection[rows], slope=True, right=sides)
+        f_all = f_all.reshape(11, n)
         f_lo, f_hi, left, right = f_all[0], f_all[1], f_all[2], f_all[3]
         ok = (f_lo > 0.0) & (f_hi < 0.0)
         # the slope just left and right of the station itself: through zero there (a
@@ -488,11 +527,11 @@ class _Search:
         active = ok & ~at_x
         # the root's side of the station: [x, hi] going up (or with x at lo), [lo, x]
         # going down (or with x at hi); on it the slope is one polynomial of degree at
-        # most four where no load edge, point load or element end lies inside
+        # most four where no break (a load edge, point load or element end) lies inside
         use_r = active & (up | (x == lo))
         use_l = active & ~use_r & (down | (x == hi))
         a_side, b_side = np.where(use_r, x, lo), np.where(use_r, hi, x)
-        smooth = (use_r | use_l) & ~breaks_inside(gov, a_side, b_side)
+        smooth = (use_r | use_l) & ~breaks_inside(self.breaks[span], a_side, b_side)
         values = np.where(use_r, f_all[[3, 8, 9, 10, 4]], f_all[[0, 5, 6, 7, 2]]).T
         half = np.where(use_r, half_r, half_l)
         u = quartic_roots(values, smooth, tol / np.maximum(half, _TINY),
@@ -502,6 +541,8 @@ class _Search:
         root = np.where(smooth, root, x)
         rest = active & ~smooth
         if rest.any():
+            if gov is None:
+                gov = self.contract(task, span, coef)
             root = anderson_bjorck_root(slope_at(gov, deflection), np.where(up, x, lo),
                                         np.where(down, x, hi), np.where(up, right, f_lo),
                                         np.where(down, left, f_hi), root, rest, tol,
@@ -528,6 +569,15 @@ class _Search:
         scale = np.maximum(np.maximum(np.abs(value), self.scale[task]), _TINY)
         governs = value <= own + config.GOVERNS_RTOL * scale
         return root, value, (ok | at_end) & governs, combo[:n]
+
+
+def _by_units(n_points: int, n_units: int) -> bool:
+    """Whether the slopes at ``n_points`` points are taken from every unit case's
+    responses there (one evaluation: they fit one block of
+    :func:`envelope.solved.chunk_rows`, and the evaluation is numpy's) rather than from
+    each bracket's case contracted on its span (whose work does not grow with the unit
+    cases: a long beam's)."""
+    return n_points <= chunk_rows(n_units) and n_units < config.KERNEL_MIN_UNITS
 
 
 def _at_span_ends(pts: Points, n_spans: int) -> tuple[np.ndarray, np.ndarray]:

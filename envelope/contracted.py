@@ -53,10 +53,7 @@ class SpanCases:
     the start, slope of the intensity, and the case's factor (0 for padding).  Its
     concentrated items (``c_*``, rows x items): element, element-local position, force
     or moment times the case's factor, and whether it is a force (1.0) or a moment
-    (0.0).  ``breaks`` (rows x breaks): where the row's response is not smooth, as span
-    positions: the starts of the span's elements, the ends of the case's distributed
-    items and the positions of its point items (padded with 0, a span's start, and
-    +inf)."""
+    (0.0)."""
 
     elem: np.ndarray
     d_elem: np.ndarray
@@ -70,7 +67,6 @@ class SpanCases:
     c_p: np.ndarray
     c_force: np.ndarray
     c_w: np.ndarray
-    breaks: np.ndarray
 
     def take(self, rows: np.ndarray) -> SpanCases:
         """The rows ``rows`` (in that order, repeats allowed)."""
@@ -137,22 +133,16 @@ def contract(mesh: Mesh, units: UnitCases, solutions: list[tuple[Solution, np.nd
     at = units.item_elem[item] - first[row]
     v = (item_values(units) if values is None else values)[item]
     kind = units.item_kind[item]
-    # the items' ends as span positions, added as the stations add them
-    item_start = mesh.start[units.item_elem[item]]
     dist = kind == DISTRIBUTED
-    d_elem, d = _padded(row[dist], n, at[dist], np.column_stack(
-        [v[dist][:, :4], w[dist], v[dist][:, 0] + item_start[dist],
-         v[dist][:, 1] + item_start[dist]]))
+    d_elem, d = _padded(row[dist], n, at[dist], np.column_stack([v[dist][:, :4], w[dist]]))
     conc = ~dist
     c_elem, c = _padded(row[conc], n, at[conc], np.column_stack(
-        [v[conc][:, [0, 4]], (kind[conc] == POINT).astype(float), w[conc],
-         v[conc][:, 0] + item_start[conc]]))
+        [v[conc][:, [0, 4]], (kind[conc] == POINT).astype(float), w[conc]]))
     elem_arrays = np.concatenate([np.stack([start, mesh.length[elem], mesh.EI[elem]]),
                                   states])
-    breaks = np.concatenate([start, d[..., 5], d[..., 6], c[..., 4]], axis=1)
     return SpanCases(elem_arrays, d_elem[..., None], d[..., 0:1], d[..., 1:2], d[..., 2:3],
                      d[..., 3:4], d[..., 4:5], c_elem, c[..., 0], c[..., 1], c[..., 2],
-                     c[..., 3], breaks)
+                     c[..., 3])
 
 
 def response(sc: SpanCases, x_span: np.ndarray, deflection: np.ndarray, slope: bool,
@@ -269,10 +259,30 @@ def slope_at(sc: SpanCases, deflection: np.ndarray) -> Callable[[np.ndarray], np
 
 
 
-def breaks_inside(sc: SpanCases, a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Per row, whether a break of its case's response (``SpanCases.breaks``: an
-    element's start, an end of a distributed item or the position of a point item the
-    case loads) lies strictly inside (a, b) (span positions).  Between breaks a response
-    and its slope are each one polynomial in the position (of degree at most five and
-    four: the load terms of linearly varying loads)."""
-    return np.any((sc.breaks > a[:, None]) & (sc.breaks < b[:, None]), axis=1)
+
+def span_breaks(mesh: Mesh, units: UnitCases, n_spans: int) -> np.ndarray:
+    """Per span (spans x breaks, padded with +inf), where some unit case's response is
+    not smooth, as span positions: the starts of the span's elements after its first,
+    the ends of distributed items and the positions of point items (added as
+    :func:`envelope.recovery.stations` adds them).  Between breaks every response and
+    its slope are each one polynomial in the position (of degree at most five and four:
+    the load terms of linearly varying loads)."""
+    later = np.flatnonzero(mesh.start > 0.0)  # elements not first in their span
+    dist = units.item_kind == DISTRIBUTED
+    start = mesh.start[units.item_elem]
+    span = np.concatenate([mesh.span[later], mesh.span[units.item_elem],
+                           mesh.span[units.item_elem[dist]]])
+    at = np.concatenate([mesh.start[later], units.item_a + start,
+                         units.item_b[dist] + start[dist]])
+    order = np.lexsort((at, span))
+    span, at = span[order], at[order]
+    rank = np.arange(span.size) - np.searchsorted(span, span)
+    out = np.full((n_spans, int(rank.max(initial=-1)) + 1), np.inf)
+    out[span, rank] = at
+    return out
+
+
+def breaks_inside(breaks: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Per row, whether one of its ``breaks`` (rows x breaks, :func:`span_breaks` of the
+    row's span) lies strictly inside (a, b)."""
+    return np.any((breaks > a[:, None]) & (breaks < b[:, None]), axis=1)

@@ -347,39 +347,62 @@ def test_slope_roots_by_quartics_match_the_regula_falsi_on_the_slopes(
     for path in generated[:16]:
         a = analyse(load_case(path))
         monkeypatch.setattr(envelope.actions, "breaks_inside",
-                            lambda sc, lo, hi: np.ones(lo.size, dtype=bool))
+                            lambda breaks, lo, hi: np.ones(lo.size, dtype=bool))
         slow = design_actions(a.solved, a.stations, a.station_envelopes)
         monkeypatch.undo()
         _assert_same_actions(a.design_actions, slow, path.name)
 
 
-def test_breaks_inside_are_the_element_starts_and_the_loaded_items_ends() -> None:
-    """A bracket with an element start, a distributed item's end or a point item of the
-    case strictly inside it has a break; one with such a point only at its ends, or with
-    an item the case does not load inside it, has none."""
-    from envelope.contracted import breaks_inside
+def test_slopes_from_the_unit_cases_match_the_contracted_slopes(
+        generated: list[Path], monkeypatch: pytest.MonkeyPatch) -> None:
+    """A small beam's slope values for the roots from every unit case's slope times the
+    governing coefficients, against the case contracted on its span (a long beam's way):
+    the same answers to round-off, also with a redistributed strength solution (two
+    solutions, one evaluation each)."""
+    import envelope.actions
+
+    for path in generated[:16]:
+        a = analyse(load_case(path))
+        variants = [(a.solved, a.station_envelopes)]
+        n = len(a.beam.supports)
+        if n >= 3:
+            fraction = np.zeros(n)
+            fraction[1:-1] = 0.15
+            s = a.solved.redistributed(fraction)
+            variants.append((s, envelopes_at(s, a.stations, {
+                "moment": "strength", "shear": "strength", "deflection": "service"})))
+        for solved, env in variants:
+            fast = design_actions(solved, a.stations, env)
+            monkeypatch.setattr(envelope.actions, "_by_units", lambda n_points, n_units: False)
+            slow = design_actions(solved, a.stations, env)
+            monkeypatch.undo()
+            _assert_same_actions(fast, slow, path.name)
+
+
+def test_span_breaks_are_the_element_starts_and_the_load_items_ends() -> None:
+    """Per span, the breaks are the starts of its later elements, both ends of its
+    distributed items and the positions of its point items, as span positions; a bracket
+    has one inside only where one lies strictly between its ends."""
+    from envelope.contracted import breaks_inside, span_breaks
+    from envelope.loading import DISTRIBUTED
 
     for path in sorted((REPO / "cases").glob("*.toml")):
         s = analyse(load_case(path)).solved
         units, mesh = s.unit_cases, s.mesh
-        span_of = mesh.span[units.item_elem]
-        at_a = mesh.start[units.item_elem] + units.item_a
+        breaks = span_breaks(mesh, units, s.beam.n_spans)
         for j in range(s.beam.n_spans):
-            coef = np.zeros((1, units.n_units))
-            mine = np.flatnonzero(span_of == j)
-            if not mine.size:
-                continue
-            loaded = units.item_unit[mine[0]]
-            coef[0, loaded] = 1.0
-            sc = contract(mesh, units, [(s.solution, np.arange(1))], np.array([j]), coef)
-            p = float(at_a[mine[0]])
-            length = float(s.beam.geometry.span_length[j])
-            lo, hi = np.array([max(p - 1e-3 * length, 0.0)]), np.array([p + 1e-3 * length])
-            assert breaks_inside(sc, lo, hi)[0] == (p > 0.0), path.name
-            assert not breaks_inside(sc, np.array([p]), np.array([p]))[0]
-            # every break of the row is an element start or a loaded item's position
-            want = set(mesh.start[mesh.span == j].tolist()) | {
-                float(v) for i in mine if units.item_unit[i] == loaded
-                for v in (at_a[i], mesh.start[units.item_elem[i]] + units.item_b[i])}
-            got = set(sc.breaks[0][np.isfinite(sc.breaks[0])].tolist()) - {0.0}
-            assert got <= want, path.name
+            want = sorted(mesh.start[(mesh.span == j) & (mesh.start > 0.0)].tolist() + [
+                float(mesh.start[e] + v) for e, v, k, on in zip(
+                    units.item_elem, units.item_b, units.item_kind,
+                    mesh.span[units.item_elem] == j, strict=True)
+                if on and k == DISTRIBUTED] + [
+                float(mesh.start[e] + v) for e, v, on in zip(
+                    units.item_elem, units.item_a, mesh.span[units.item_elem] == j,
+                    strict=True) if on])
+            got = breaks[j][np.isfinite(breaks[j])].tolist()
+            assert got == want, path.name
+            for p in want:
+                near = np.array([p - 1e-9, p, p]), np.array([p + 1e-9, p + 1e-9, p])
+                row = np.repeat(breaks[j:j + 1], 3, axis=0)
+                assert breaks_inside(row, *near).tolist()[1:] == [False, False]
+                assert breaks_inside(row, *near)[0]
