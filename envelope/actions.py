@@ -280,7 +280,7 @@ class _Search:
         # the load items laid out by element once, for the evaluations at a few points
         self.items = items if items is not None else element_items(
             solved.unit_cases, solved.mesh.n_elements)
-        self.item_values = item_values(solved.unit_cases)  # what a contraction gathers
+        self._item_values: np.ndarray | None = None  # what a contraction gathers
         self.scale = np.array(scale, dtype=float)
         self.quantity = [q for q, _ in tasks]
         self.sets: list[CaseSet] = [solved.case_set(name) for _, name in tasks]
@@ -308,8 +308,8 @@ class _Search:
             rest = np.flatnonzero(~done)
             steps = np.array(config.VERTEX_PROBES) * br.length[rest, None]
             x_rest = br.x[rest, None]
-            probes = np.clip(np.c_[x_rest - steps, x_rest + steps], br.a[rest, None],
-                             br.b[rest, None])
+            probes = np.clip(np.concatenate([x_rest - steps, x_rest + steps], axis=1),
+                             br.a[rest, None], br.b[rest, None])
             k = probes.shape[1]
             inside = self.envelope_max(np.repeat(br.task[rest], k), np.repeat(br.span[rest], k),
                                        probes.ravel()).reshape(probes.shape)
@@ -322,8 +322,8 @@ class _Search:
 
             def f(x: np.ndarray) -> np.ndarray:
                 twice = x.size != span.size
-                return self.envelope_max(np.r_[task, task] if twice else task,
-                                         np.r_[span, span] if twice else span, x)
+                return self.envelope_max(np.concatenate([task, task]) if twice else task,
+                                         np.concatenate([span, span]) if twice else span, x)
 
             xg, vg = golden_max(f, br.a[rest], br.b[rest], config.GOLDEN_XTOL * length,
                                 group=task)
@@ -413,7 +413,9 @@ class _Search:
         s = self.solved
         groups = [(sol, np.concatenate([r for _, r in tasks]))
                   for sol, tasks in self._by_solution(task)]
-        return contract(s.mesh, s.unit_cases, groups, span, coef, self.item_values)
+        if self._item_values is None:  # made once, where a contraction is needed
+            self._item_values = item_values(s.unit_cases)
+        return contract(s.mesh, s.unit_cases, groups, span, coef, self._item_values)
 
     def envelope_max(self, task: np.ndarray, span: np.ndarray, x: np.ndarray,
                      combo: np.ndarray | None = None,
@@ -654,8 +656,8 @@ def design_actions(solved: Solved, pts: Points,
 
     moment, shear, deflection = env["moment"], env["shear"], env["deflection"]
     faces = None if moment is None else make_points(
-        beam, np.r_[np.arange(n), np.arange(n)], np.r_[geometry.face_left, geometry.face_right],
-        np.r_[np.ones(n, bool), np.zeros(n, bool)])
+        beam, np.tile(np.arange(n), 2), np.concatenate([geometry.face_left, geometry.face_right]),
+        np.arange(2 * n) < n)
     # a beam whose stations fit one block: every unit case at the stations, span ends and
     # faces in one evaluation, read by the live envelope, the governing cases at the
     # bracket stations and the faces' least moment

@@ -40,13 +40,17 @@ class ElementItems:
     and end (element-local), intensity at the start, slope of the intensity (as
     load_terms computes it) and force or moment of a point item; ``unit``: the item's
     unit case (0 for padding); ``valid``: an item, not padding; ``dist``: a distributed
-    item; ``force``: a point force (the rest of the valid items are point moments)."""
+    item; ``force``: a point force (the rest of the valid items are point moments);
+    ``has_dist``, ``has_point``: whether there is any distributed item, any point force
+    or moment (the terms of a kind the beam lacks are not made)."""
 
     floats: np.ndarray
     unit: np.ndarray
     valid: np.ndarray
     dist: np.ndarray
     force: np.ndarray
+    has_dist: bool
+    has_point: bool
 
     @property
     def width(self) -> int:
@@ -72,7 +76,9 @@ def element_items(units: UnitCases, n_elements: int) -> ElementItems:
     flags = np.zeros((3, n_elements, width), dtype=bool)
     flags[:, elem, rank] = [np.ones(elem.size, dtype=bool), kind == DISTRIBUTED,
                             kind == POINT]
-    return ElementItems(floats, unit, *flags)
+    is_dist = kind == DISTRIBUTED
+    return ElementItems(floats, unit, flags[0], flags[1], flags[2], bool(is_dist.any()),
+                        bool((~is_dist).any()))
 
 
 def evaluate_points(mesh: Mesh, units: UnitCases, items: ElementItems, sol: Solution,
@@ -105,41 +111,72 @@ def _subtract_terms(units: UnitCases, items: ElementItems, points: Points,
     """The load terms of every item of each point's element (at ``s`` on it, ``ei``
     its EI as a column), subtracted from ``out`` in place (per point and unit case,
     summed in the items' order)."""
-    dist, force = items.dist[elem], items.force[elem]
     f = items.floats[elem]  # points x items x 5
     a, b, wa, slope, p = (f[..., k] for k in range(5))
     sd = s[:, None]
+    wanted: list[str] = [q for q in ("shear", "moment", "rotation", "deflection") if q in out]
+    # per kind of item, its terms (none where the beam has no item of that kind)
+    dist_terms = _distributed_terms(sd, a, b, wa, slope, wanted) if items.has_dist else {}
+    conc_terms = _point_terms(sd, a, p, points.right, items.force[elem], wanted) if (
+        items.has_point) else {}
+    is_dist = items.dist[elem] if dist_terms and conc_terms else None
     terms: dict[str, np.ndarray] = {}
-    # distributed items: the three Gauss points of each (the products of load_terms; the
-    # clip as a maximum and a minimum, the same numbers)
-    half = 0.5 * (np.minimum(np.maximum(sd, a), b) - a)
-    a3 = a[..., None]
-    t = a3 + half[..., None] * _GAUSS_1X
-    wq = GAUSS_W * half[..., None] * (wa[..., None] + slope[..., None] * (t - a3))
-    r = sd[..., None] - t
-    wr = wq * r
-    # point forces and moments: the Heaviside step with the side of the limit
-    d = sd - a
-    h = ((d > 0.0) | ((d == 0.0) & points.right[:, None])).astype(float)
-    d = np.where(h > 0.0, d, 0.0)
-    pc = p * h
-    if "shear" in out:
-        terms["shear"] = np.where(dist, _sum(wq, axis=2), np.where(force, pc, 0.0))
-    if "moment" in out:
-        terms["moment"] = np.where(dist, _sum(wr, axis=2), np.where(force, pc * d, -pc))
-    if "rotation" in out or "deflection" in out:
-        wrr = wr * r
-        if "rotation" in out:
-            m1 = np.where(dist, _sum(wrr / 2.0, axis=2),
-                          np.where(force, pc * d * d / 2.0, -pc * d))
-            terms["rotation"] = m1 / ei
-        if "deflection" in out:
-            m2 = np.where(dist, _sum(wrr * r / 6.0, axis=2),
-                          np.where(force, pc * d**3 / 6.0, -pc * d * d / 2.0))
-            terms["deflection"] = m2 / ei
+    for name in wanted:
+        if is_dist is not None:
+            term = np.where(is_dist, dist_terms[name], conc_terms[name])
+        else:
+            term = (dist_terms or conc_terms)[name]
+        terms[name] = term / ei if name in ("rotation", "deflection") else term
     keep = items.valid[elem]
     n_u = units.n_units
     flat = (np.arange(points.n)[:, None] * n_u + items.unit[elem])[keep]
     size = points.n * n_u
     for name, term in terms.items():
         out[name] -= np.bincount(flat, term[keep], size).reshape(points.n, n_u)
+
+
+def _distributed_terms(sd: np.ndarray, a: np.ndarray, b: np.ndarray, wa: np.ndarray,
+                       slope: np.ndarray, wanted: list[str]) -> dict[str, np.ndarray]:
+    """The terms of distributed items (points x items; meaningless where an item is
+    not distributed) of the ``wanted`` quantities, the rotation and deflection not yet
+    divided by EI: the three Gauss points of each item (the products of load_terms; the
+    clip as a maximum and a minimum, the same numbers)."""
+    half = 0.5 * (np.minimum(np.maximum(sd, a), b) - a)
+    a3 = a[..., None]
+    t = a3 + half[..., None] * _GAUSS_1X
+    wq = GAUSS_W * half[..., None] * (wa[..., None] + slope[..., None] * (t - a3))
+    r = sd[..., None] - t
+    wr = wq * r
+    out: dict[str, np.ndarray] = {}
+    if "shear" in wanted:
+        out["shear"] = _sum(wq, axis=2)
+    if "moment" in wanted:
+        out["moment"] = _sum(wr, axis=2)
+    if "rotation" in wanted or "deflection" in wanted:
+        wrr = wr * r
+        if "rotation" in wanted:
+            out["rotation"] = _sum(wrr / 2.0, axis=2)
+        if "deflection" in wanted:
+            out["deflection"] = _sum(wrr * r / 6.0, axis=2)
+    return out
+
+
+def _point_terms(sd: np.ndarray, a: np.ndarray, p: np.ndarray, right: np.ndarray,
+                 force: np.ndarray, wanted: list[str]) -> dict[str, np.ndarray]:
+    """The terms of point forces and moments (points x items; meaningless where an
+    item is distributed) of the ``wanted`` quantities, the rotation and deflection not
+    yet divided by EI: the Heaviside step with the side of the limit."""
+    d = sd - a
+    h = ((d > 0.0) | ((d == 0.0) & right[:, None])).astype(float)
+    d = np.where(h > 0.0, d, 0.0)
+    pc = p * h
+    out: dict[str, np.ndarray] = {}
+    if "shear" in wanted:
+        out["shear"] = np.where(force, pc, 0.0)
+    if "moment" in wanted:
+        out["moment"] = np.where(force, pc * d, -pc)
+    if "rotation" in wanted:
+        out["rotation"] = np.where(force, pc * d * d / 2.0, -pc * d)
+    if "deflection" in wanted:
+        out["deflection"] = np.where(force, pc * d**3 / 6.0, -pc * d * d / 2.0)
+    return out

@@ -27,7 +27,51 @@ def beams(tmp_path_factory: pytest.TempPathFactory) -> list[Solved]:
     folder = tmp_path_factory.mktemp("beams")
     make_cases_module().make_cases(40, folder, seed=11)
     paths = sorted(folder.glob("*.toml")) + sorted((REPO / "cases").glob("*.toml"))
-    return [solve_beam(load_case(p)) for p in paths]
+    # an invented beam with point forces and moments only (no distributed item)
+    (folder / "points-only.toml").write_text(_POINTS_ONLY)
+    return [solve_beam(load_case(p)) for p in [*paths, folder / "points-only.toml"]]
+
+
+_POINTS_ONLY = """id = "points-only"
+units = "SI"
+[section]
+E = 30000
+I = 4.0e9
+[[spans]]
+length = 5.0
+[[spans]]
+length = 6.5
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[cases]
+D = { kind = "dead" }
+L = { kind = "live" }
+[[loads]]
+case = "D"
+type = "point"
+spans = 1
+P = 20.0
+at = 2.0
+[[loads]]
+case = "L"
+type = "point"
+spans = "all"
+P = 15.0
+at = 3.1
+[[loads]]
+case = "L"
+type = "moment"
+spans = 2
+M = 8.0
+at = 1.2
+[combinations]
+strength = "asce7-lrfd"
+service = "characteristic"
+"""
 
 
 def _points(s: Solved, rng: np.random.Generator) -> list[Points]:
@@ -85,3 +129,12 @@ def test_items_are_laid_out_element_by_element(
     items = element_items(s.unit_cases, s.mesh.n_elements)
     assert items.width == int(np.diff(s.unit_cases.elem_first).max())
     assert items.valid.sum() == s.unit_cases.item_unit.size
+
+
+def test_the_beams_have_items_of_either_kind_alone_and_both(beams: list[Solved]) -> None:
+    # the terms of a kind of item the beam lacks are not made: each way is compared above
+    kinds = set()
+    for s in beams:
+        items = element_items(s.unit_cases, s.mesh.n_elements)
+        kinds.add((items.has_dist, items.has_point))
+    assert kinds == {(True, True), (True, False), (False, True)}
