@@ -34,7 +34,7 @@ from envelope.contracted import (
     slope_at,
     span_breaks,
 )
-from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients, reduce
+from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients
 from envelope.moving import MovingEffect, moving_loads, point_effects
 from envelope.recovery import Points, evaluate_some, make_points, pair_count
 from envelope.search import LOBATTO_NODES, anderson_bjorck_root, golden_max, quartic_roots
@@ -619,17 +619,31 @@ def _least(R: np.ndarray, cs: CaseSet, sums: bool) -> np.ndarray:
     return -column_max(-R, cs, None, sums).max(axis=1)
 
 
-def _live_at_stations(solved: Solved, block: _Block) -> Extremes | None:
-    """The live deflection envelope at the stations from ``block``: the values of
-    ``envelope_at(solved, pts, "deflection", "live", labels=False)``, the same sums."""
+@dataclass(frozen=True, slots=True)
+class _Largest:
+    """An envelope's largest value at each row and the combination governing it (an
+    index into the case set's combinations): what the search reads of the live
+    deflection envelope at the stations."""
+
+    max: np.ndarray
+    max_combo: np.ndarray
+
+
+def _live_at_stations(solved: Solved, block: _Block) -> _Largest | None:
+    """The live deflection envelope's largest values at the stations from ``block``:
+    ``envelope_at(solved, pts, "deflection", "live", labels=False)``'s ``max`` and
+    ``max_combo``, the same sums and the same first largest column (as
+    :func:`envelope.enveloper.reduce` takes it), without the least values."""
     cs = solved.case_set("live")
     if cs.is_empty:
         return None
     R = block.responses[("deflection", id(solved.solution_for("live")))][:block.n_stations]
-    return reduce(R, cs, labels=False, kernel=block.sums)
+    vmax = column_max(R, cs, None, block.sums)
+    col = np.argmax(vmax, axis=1)
+    return _Largest(vmax[np.arange(col.size), col], cs.col_combo[col])
 
 
-def _live_combo(solved: Solved, live: Extremes, found: _Found) -> np.ndarray:
+def _live_combo(solved: Solved, live: _Largest | Extremes, found: _Found) -> np.ndarray:
     """Per span, the live combination governing at the span's largest live deflection:
     the station envelope's where that is at a station, the search's where it found it,
     else the envelope evaluated there."""
@@ -663,8 +677,9 @@ def design_actions(solved: Solved, pts: Points,
     # bracket stations and the faces' least moment
     items = element_items(solved.unit_cases, solved.mesh.n_elements)
     block = _one_block(solved, pts, faces, items)
-    live = _live_at_stations(solved, block) if block is not None else envelope_at(
-        solved, pts, "deflection", "live", labels=False)
+    live: _Largest | Extremes | None = _live_at_stations(
+        solved, block) if block is not None else envelope_at(solved, pts, "deflection",
+                                                               "live", labels=False)
     # one search for the three maxima: sagging moment, service and live deflection
     wanted = {"moment": (moment, "moment", None), "deflection": (deflection, "deflection", None),
               "live": (live, "deflection", "live")}

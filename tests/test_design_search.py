@@ -406,3 +406,27 @@ def test_span_breaks_are_the_element_starts_and_the_load_items_ends() -> None:
                 row = np.repeat(breaks[j:j + 1], 3, axis=0)
                 assert breaks_inside(row, *near).tolist()[1:] == [False, False]
                 assert breaks_inside(row, *near)[0]
+
+
+def test_live_largest_at_the_stations_is_the_envelopes_bit_for_bit(
+        generated: list[Path]) -> None:
+    """The live deflection's largest value and its combination at the stations, read
+    from the one block without the least values, against envelope_at (the reference):
+    the same numbers and the same first governing combination."""
+    from envelope.actions import _live_at_stations, _one_block
+    from envelope.unitpoints import element_items
+
+    checked = 0
+    for path in generated[:24]:
+        a = analyse(load_case(path))
+        s, pts = a.solved, a.stations
+        block = _one_block(s, pts, None, element_items(s.unit_cases, s.mesh.n_elements))
+        want = envelope_at(s, pts, "deflection", "live", labels=False)
+        if block is None or want is None:
+            continue
+        got = _live_at_stations(s, block)
+        assert got is not None
+        assert np.array_equal(got.max, want.max), path.name
+        assert np.array_equal(got.max_combo, want.max_combo), path.name
+        checked += 1
+    assert checked >= 12
