@@ -65,7 +65,8 @@ def refine_max(solved: Solved, pts: Points, env_max: np.ndarray, quantity: str,
 @dataclass(frozen=True, slots=True)
 class _Brackets:
     """Every local maximum among the stations, of every request: its request (``task``),
-    span, span length, station position and neighbouring positions [a, b]."""
+    span, span length, station position and neighbouring positions [a, b], and the
+    largest station value there (``v``: of either side, at a jump)."""
 
     task: np.ndarray
     span: np.ndarray
@@ -73,6 +74,7 @@ class _Brackets:
     x: np.ndarray
     a: np.ndarray
     b: np.ndarray
+    v: np.ndarray
 
 
 def _starts(v: np.ndarray) -> np.ndarray:
@@ -88,7 +90,8 @@ class _StationMaxima:
     """Per group of rows (a span of a request): the best station's value, x_span and row
     (the first best; -1 for a group without rows).  Per local maximum among the distinct
     station positions of a group: its group, position with the neighbouring positions (a,
-    x, b), and the last row at that position (the right-side limit at a jump)."""
+    x, b), the largest value there (of either side at a jump), and the last row at that
+    position (the right-side limit at a jump)."""
 
     best: np.ndarray
     best_x: np.ndarray
@@ -97,6 +100,7 @@ class _StationMaxima:
     a: np.ndarray
     x: np.ndarray
     b: np.ndarray
+    v: np.ndarray
     row: np.ndarray
 
 
@@ -128,7 +132,7 @@ def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
     a = np.where(opens[i], ux[i], ux[np.maximum(i - 1, 0)])
     b = np.where(closes[i], ux[i], ux[np.minimum(i + 1, ux.size - 1)])
     last = order[np.append(starts[1:], order.size) - 1]  # the last row at each position
-    return _StationMaxima(best, best_x, best_row, us[i], a, ux[i], b, last[i])
+    return _StationMaxima(best, best_x, best_row, us[i], a, ux[i], b, uv[i], last[i])
 
 
 def refine_maxima(solved: Solved, pts: Points, requests: Sequence[Request]
@@ -176,7 +180,7 @@ def _refine(solved: Solved, pts: Points, requests: Sequence[Request],
     if group.size:
         task, span = np.divmod(group, n_spans)
         length = np.asarray(solved.beam.geometry.span_length, dtype=float)[span]
-        br = _Brackets(task, span.astype(np.int64), length, sm.x, sm.a, sm.b)
+        br = _Brackets(task, span.astype(np.int64), length, sm.x, sm.a, sm.b, sm.v)
         scale = [float(np.max(np.abs(env_max), initial=0.0)) for env_max, _, _ in requests]
         search = _Search(solved, [(q, c or QUANTITY_SET[q]) for _, q, c in requests], scale,
                          items)
@@ -304,7 +308,9 @@ class _Search:
                                                   br.b, coef)
         if not np.all(done):
             # a vertex at the station itself (under a point load, at a span end): the
-            # envelope is lower on both sides, near and far
+            # envelope is lower on both sides, near and far, than at the station (its
+            # larger side at a jump: a point moment's downward jump has its largest
+            # value on the left, which the search's right-side limit does not see)
             rest = np.flatnonzero(~done)
             steps = np.array(config.VERTEX_PROBES) * br.length[rest, None]
             x_rest = br.x[rest, None]
@@ -314,7 +320,8 @@ class _Search:
             inside = self.envelope_max(np.repeat(br.task[rest], k), np.repeat(br.span[rest], k),
                                        probes.ravel()).reshape(probes.shape)
             own = probes == x_rest  # clipped onto the station: no information
-            done[rest] = np.all(own | (inside <= vm[rest, None]), axis=1)
+            top = np.maximum(vm[rest], br.v[rest])[:, None]
+            done[rest] = np.all(own | (inside <= top), axis=1)
         if not np.all(done):
             # a kink, or the governing case changes: golden section on the envelope itself
             rest = np.flatnonzero(~done)

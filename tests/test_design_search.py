@@ -30,7 +30,7 @@ from envelope.search import anderson_bjorck_root, golden_max, illinois_root
 from envelope.solved import envelope_at, envelopes_at
 
 from beams import make_cases_module
-from tolerances import LONG_SUM
+from tolerances import LONG_SUM, ROUND_OFF
 
 REPO = Path(__file__).resolve().parents[1]
 
@@ -430,3 +430,56 @@ def test_live_largest_at_the_stations_is_the_envelopes_bit_for_bit(
         assert np.array_equal(got.max_combo, want.max_combo), path.name
         checked += 1
     assert checked >= 12
+
+
+_MID_SPAN_COUPLE = """id = "mid-span-couple"
+units = "SI"
+[section]
+E = 30000
+I = 4.0e9
+[[spans]]
+length = 6.0
+[[supports]]
+type = "pinned"
+[[supports]]
+type = "pinned"
+[cases]
+D = { kind = "dead" }
+[[loads]]
+case = "D"
+type = "uniform"
+spans = "all"
+w = 10.0
+[[loads]]
+case = "D"
+type = "moment"
+spans = 1
+M = COUPLE
+at = 3.0
+[combinations]
+strength = "asce7-lrfd"
+service = "characteristic"
+"""
+
+
+@pytest.mark.parametrize("couple", [20.0, -20.0])
+def test_a_point_moments_jump_is_a_vertex_at_its_larger_side_without_golden_section(
+        couple: float, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """An invented simply supported 6 m span, 10 kN/m and a 20 kN m couple at mid-span
+    (either sense): by statics the moment either side of the couple is
+    w L^2 / 8 +- M / 2 = 45 +- 10 kN m, so the largest is 1.4 x 55 = 77 kN m (ASCE 7-22
+    2.3.1, 1.4 D) at mid-span, on whichever side is larger.  The envelope falls away on
+    both sides of that side's value: a vertex at the station, found by the probes
+    without golden section (which the right-side limit alone sent there)."""
+    import envelope.actions
+
+    path = tmp_path / "couple.toml"
+    path.write_text(_MID_SPAN_COUPLE.replace("COUPLE", repr(couple)))
+
+    def no_golden(*args: object, **kwargs: object) -> None:
+        raise AssertionError("golden section")
+
+    monkeypatch.setattr(envelope.actions, "golden_max", no_golden)
+    d = analyse(load_case(path)).design_actions
+    np.testing.assert_allclose(d["moment_pos"], [77.0], rtol=ROUND_OFF, atol=0)
+    assert d["moment_pos_x"].tolist() == [3.0]
