@@ -1205,7 +1205,9 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
 
 
 #: The names in each key drawn (a kept figure keeps its key while they stay the same).
-_KEY_NAMES: WeakKeyDictionary[Any, list[str]] = WeakKeyDictionary()
+#: (With the figure's size: a legend is anchored for the size it was made at.)
+_KEY_NAMES: WeakKeyDictionary[Any, tuple[list[str], tuple[float, ...]]] = \
+    WeakKeyDictionary()
 #: The key of each kept figure drawn the fast way: kept as pixels per set of symbols.
 _KEY_STAMPS: WeakKeyDictionary[Any, Stamp] = WeakKeyDictionary()
 
@@ -1277,11 +1279,13 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
         stamp.show((tuple(names), tuple(fig.get_size_inches()), fig.dpi),
                    lambda: KeyRow(fig, names, _key_columns(names),
                                   lambda some: _key_legend(fig, some, add=False)))
-    elif [_KEY_NAMES.get(legend) for legend in fig.legends] != [names]:
+    elif [_KEY_NAMES.get(legend) for legend in fig.legends] != \
+            [(names, tuple(fig.get_size_inches()))]:
         # a kept figure keeps its key while the symbols are the same
         for legend in list(fig.legends):
             legend.remove()
-        _KEY_NAMES[_key_legend(fig, names, add=True)] = list(names)
+        _KEY_NAMES[_key_legend(fig, names, add=True)] = (list(names),
+                                                         tuple(fig.get_size_inches()))
     note = (f"Units {units.get('length', '')}, {units.get('force', '')}, "
             f"{units.get('moment', '')}, deflection {units.get('deflection', '')}.  "
             "Labels: value, governing combination, loaded spans; CL at the centreline.")

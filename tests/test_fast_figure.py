@@ -8,6 +8,7 @@ figure drawn entirely by matplotlib, within the tolerance stated in
 from __future__ import annotations
 
 import io
+import json
 from importlib.resources import files
 from pathlib import Path
 
@@ -177,11 +178,20 @@ def test_a_kept_figure_given_other_panel_heights_draws_as_a_new_figure(
     drawn on the figure kept from the beam before is the same file, byte for byte, as
     the beam drawn on a figure made for it, drawn the fast way and by matplotlib."""
     paths = make_cases_module().make_cases(12, tmp_path / "cases", seed=7)
+    beams = [_columns(path) for path in paths]
+    # the first demo again with two more load cases: more lanes, the same symbols
+    more = _columns(CASES[0])
+    sketch = json.loads(more["meta"]["envelope:sketch"])
+    for name in ("extra 1", "extra 2"):
+        sketch["cases"][name] = "live"
+        sketch["loads"].append({"case": name, "type": "uniform", "span": 1,
+                                "start": 0.0, "end": 1.0, "w_start": 1.0, "w_end": 1.0})
+    more["meta"]["envelope:sketch"] = json.dumps(sketch)
+    beams += [_columns(CASES[0]), more]
     resized = 0
     for fast in (True, False):
         previous = None
-        for path in paths:
-            cols = _columns(path)
+        for cols in beams:
             if previous is not None:
                 plots._KEPT.clear()
                 plots.draw_results(previous, tmp_path / "before.png", durable=False,
@@ -195,6 +205,6 @@ def test_a_kept_figure_given_other_panel_heights_draws_as_a_new_figure(
                 plots._KEPT.clear()
                 new = plots.draw_results(cols, tmp_path / "new.png", durable=False,
                                          fast=fast).read_bytes()
-                assert kept == new, path.name
+                assert kept == new
             previous = cols
     assert resized >= 4  # beams whose panels have other heights than the beam before
