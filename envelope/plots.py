@@ -196,27 +196,36 @@ _RISES = np.array([4.0, 12.0, 22.0, 34.0, 48.0, 64.0, 84.0, 108.0])
 _SHIFTS = np.array([-0.5, -0.1, -0.9, 0.3, -1.3, 0.8, -1.8])
 
 
+_RISE_STEPS = tuple(float(r) for r in _RISES)
+_SHIFT_STEPS = tuple(float(s) for s in _SHIFTS)
+
+
 def _first_free(ax_x: float, ax_y: float, w: float, h: float, up: float, px_per_pt: float,
-                frame: Bbox, placed: np.ndarray) -> tuple[float, float] | None:
+                frame: Bbox, placed: Sequence[tuple[float, float, float, float]]
+                ) -> tuple[float, float] | None:
     """The lower-left corner (pixels) of the first place, in the order of ``_RISES``
-    and ``_SHIFTS``, where a ``w`` x ``h`` label lies inside ``frame`` and overlaps no
-    box of ``placed`` (rows x0, y0, x1, y1); None where there is none.  Every place is
-    tested at once."""
-    sides = np.array([up, -up])
-    y0 = (ax_y + sides[None, :] * _RISES[:, None] * px_per_pt
-          - np.where(sides > 0, 0.0, h)[None, :])[:, :, None]       # rise, side, 1
-    x0 = (ax_x + _SHIFTS * w)[None, None, :]                            # 1, 1, shift
-    x0, y0 = np.broadcast_arrays(x0, y0)
-    x1, y1 = x0 + w, y0 + h
-    free = (x0 >= frame.x0) & (x1 <= frame.x1) & (y0 >= frame.y0) & (y1 <= frame.y1)
-    if placed.size:
-        b = placed.T[:, None, None, None, :]
-        free &= ~((x0[..., None] < b[2]) & (b[0] < x1[..., None]) & (y0[..., None] < b[3])
-                  & (b[1] < y1[..., None])).any(axis=-1)
-    first = np.flatnonzero(free)
-    if not first.size:
-        return None
-    return float(x0.flat[first[0]]), float(y0.flat[first[0]])
+    and ``_SHIFTS`` (each rise above then below, or below then above, each at every
+    shift), where a ``w`` x ``h`` label lies inside ``frame`` and overlaps no box of
+    ``placed`` (x0, y0, x1, y1); None where there is none.  Plain floats, stopping at
+    the first free place (most labels take one of their first few): the same
+    operations, so the same corner, as testing every place at once with numpy (the
+    reference in tests/test_figures.py)."""
+    ax_x, ax_y, w, h = float(ax_x), float(ax_y), float(w), float(h)
+    fx0, fy0, fx1, fy1 = float(frame.x0), float(frame.y0), float(frame.x1), float(frame.y1)
+    lefts = [ax_x + shift * w for shift in _SHIFT_STEPS]
+    for rise in _RISE_STEPS:
+        for side in (up, -up):
+            y0 = ax_y + side * rise * px_per_pt - (0.0 if side > 0 else h)
+            y1 = y0 + h
+            if not (y0 >= fy0 and y1 <= fy1):
+                continue
+            level = [b for b in placed if y0 < b[3] and b[1] < y1]
+            for x0 in lefts:
+                x1 = x0 + w
+                if (x0 >= fx0 and x1 <= fx1
+                        and not any(x0 < b[2] and b[0] < x1 for b in level)):
+                    return x0, y0
+    return None
 
 
 def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
@@ -256,7 +265,8 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
             markers += 1
             if np.isfinite(ax_x) and np.isfinite(ax_y):
                 r = lab.clear * px_per_pt
-                placed.append((ax_x - r, ax_y - r, ax_x + r, ax_y + r))
+                placed.append((float(ax_x - r), float(ax_y - r), float(ax_x + r),
+                               float(ax_y + r)))
             continue
         if not (np.isfinite(ax_x) and np.isfinite(ax_y)):
             dropped += 1
@@ -267,12 +277,13 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
             probe.get_window_extent(renderer)
         w, h = size.width, size.height
         corner = _first_free(ax_x, ax_y, w, h, 1.0 if lab.above else -1.0, px_per_pt,
-                             frame, np.array(placed))
+                             frame, placed)
         if corner is None:
             dropped += 1
             continue
         best = Bbox.from_bounds(corner[0], corner[1], w, h)
-        placed.append((best.x0 - 1, best.y0 - 1, best.x1 + 1, best.y1 + 1))
+        placed.append((float(best.x0 - 1), float(best.y0 - 1), float(best.x1 + 1),
+                       float(best.y1 + 1)))
         # offset by the pixels between the anchor (the measured extent's corner) and
         # where the label goes
         offset = ((best.x0 - ax_x - size.x0) / px_per_pt,

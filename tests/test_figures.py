@@ -648,3 +648,57 @@ def test_the_readme_figure_is_the_bundled_demo_as_drawn_now(tmp_path: Path) -> N
         "docs/demo-envelope.png is out of date: python -m envelope run -o OUT -q, then copy "
         "OUT/demo-office-4span/envelope.png to docs/demo-envelope.png")
 
+
+
+def _first_free_reference(ax_x: float, ax_y: float, w: float, h: float, up: float,
+                          px_per_pt: float, frame: object,
+                          placed: list[tuple[float, float, float, float]]
+                          ) -> tuple[float, float] | None:
+    """Every place of a label tested at once with numpy (the slow reference of
+    :func:`envelope.plots._first_free`): the first free in the order rise, side,
+    shift."""
+    placed_array = np.array(placed)
+    sides = np.array([up, -up])
+    y0 = (ax_y + sides[None, :] * plots._RISES[:, None] * px_per_pt
+          - np.where(sides > 0, 0.0, h)[None, :])[:, :, None]
+    x0 = (ax_x + plots._SHIFTS * w)[None, None, :]
+    x0, y0 = np.broadcast_arrays(x0, y0)
+    x1, y1 = x0 + w, y0 + h
+    free = ((x0 >= frame.x0) & (x1 <= frame.x1) & (y0 >= frame.y0)  # type: ignore[attr-defined]
+            & (y1 <= frame.y1))  # type: ignore[attr-defined]
+    if placed_array.size:
+        b = placed_array.T[:, None, None, None, :]
+        free &= ~((x0[..., None] < b[2]) & (b[0] < x1[..., None]) & (y0[..., None] < b[3])
+                  & (b[1] < y1[..., None])).any(axis=-1)
+    first = np.flatnonzero(free)
+    if not first.size:
+        return None
+    return float(x0.flat[first[0]]), float(y0.flat[first[0]])
+
+
+def test_label_places_are_those_of_testing_every_place_at_once() -> None:
+    """The first free place of a label (plain floats, stopping at the first) is the
+    corner the numpy reference finds testing every place at once, bit for bit: random
+    frames crowded with random boxes, labels of random sizes on both sides, with and
+    without any free place."""
+    from matplotlib.transforms import Bbox
+
+    rng = np.random.default_rng(3)
+    found = missing = 0
+    for _ in range(400):
+        left, bottom = rng.uniform(0, 300, 2)
+        frame = Bbox.from_extents(left, bottom, left + rng.uniform(50, 500),
+                                  bottom + rng.uniform(20, 300))
+        placed: list[tuple[float, float, float, float]] = []
+        for _ in range(int(rng.integers(0, 40))):
+            x, y = rng.uniform(frame.x0 - 20, frame.x1), rng.uniform(frame.y0 - 20, frame.y1)
+            placed.append((x, y, x + rng.uniform(5, 80), y + rng.uniform(5, 30)))
+        for _ in range(5):
+            args = (rng.uniform(frame.x0, frame.x1), rng.uniform(frame.y0, frame.y1),
+                    rng.uniform(5, 120), rng.uniform(6, 40), float(rng.choice([1.0, -1.0])),
+                    110 / 72, frame)
+            expected = _first_free_reference(*args, placed)
+            assert plots._first_free(*args, placed) == expected
+            found += expected is not None
+            missing += expected is None
+    assert found > 100 and missing > 100
