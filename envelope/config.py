@@ -69,6 +69,13 @@ MOVING_CHUNK_ROWS = 256
 #: Rows per Parquet row group of stations.parquet (all cases, long format).
 STATIONS_ROW_GROUP = 1_000_000
 
+#: A result table of at most this many values (rows x columns) is encoded as Parquet in
+#: memory and written to its file in one call: the encoder's many small writes through
+#: a Python file object cost about 0.3 ms a file, a tenth of a small beam's writing.  A
+#: larger table streams to its file, so a long beam's peak memory holds no copy of it
+#: (4 M values: a few tens of MiB of encoded bytes at most).
+BUFFERED_WRITE_MAX_VALUES = 1 << 22
+
 #: Zero crossings of the envelope (detailing extents) are found to this fraction of the
 #: span length.
 DESIGN_XTOL = 1e-10

@@ -15,6 +15,7 @@ import json
 import os
 from collections.abc import Mapping, Sequence
 from pathlib import Path
+from typing import BinaryIO
 
 import numpy as np
 import pyarrow as pa
@@ -507,15 +508,21 @@ def write_parquet(path: Path, table: pa.Table, durable: bool = True,
                                             durable)
 
 
-def _write_row_groups(table: pa.Table, fh: object) -> None:
+def _write_row_groups(table: pa.Table, fh: BinaryIO) -> None:
     """``table`` as Parquet, one row group per chunk of its columns (envelope.parquet is
-    built in chunks of whole spans; the other tables have one)."""
+    built in chunks of whole spans; the other tables have one).  A table of at most
+    :data:`envelope.config.BUFFERED_WRITE_MAX_VALUES` values is encoded in memory and
+    written in one call (the same bytes), a larger one streamed to ``fh``."""
+    small = table.num_rows * table.num_columns <= config.BUFFERED_WRITE_MAX_VALUES
+    sink: pa.BufferOutputStream | BinaryIO = pa.BufferOutputStream() if small else fh
     if table.num_rows == 0:
-        pq.write_table(table, fh)
-        return
-    with pq.ParquetWriter(fh, table.schema) as writer:
-        for batch in table.to_batches():
-            writer.write_batch(batch)
+        pq.write_table(table, sink)
+    else:
+        with pq.ParquetWriter(sink, table.schema) as writer:
+            for batch in table.to_batches():
+                writer.write_batch(batch)
+    if isinstance(sink, pa.BufferOutputStream):
+        fh.write(sink.getvalue())
 
 
 def check_tables(out_dir: Path, result_tables: Mapping[str, pa.Table]) -> None:

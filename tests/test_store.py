@@ -143,3 +143,30 @@ def test_envelope_in_small_blocks_and_row_groups_is_the_same_file_content(
     for name in a.column_names:
         assert a.column(name).to_pylist() == b.column(name).to_pylist(), name
     assert b.schema.field("moment_max_loaded").type == pa.dictionary(pa.int32(), pa.string())
+
+
+@pytest.mark.parametrize("demo", ["segmented", "office-4span-si.toml", "mezzanine-us.toml"])
+def test_tables_encoded_in_memory_are_the_bytes_streamed_to_the_file(
+        tmp_path, monkeypatch, demo) -> None:
+    """Every result file written from the encoding in memory (the fast path of small
+    tables) is the file streamed to disk by the Parquet writer, byte for byte, in one
+    row group and in several (one span a row group)."""
+    from pathlib import Path
+
+    from envelope import api, config
+    from tests.beams import parse_text
+
+    root = Path(__file__).resolve().parent.parent
+    text = _SEGMENTED if demo == "segmented" else (root / "cases" / demo).read_text()
+    for spans in (64, 1):
+        monkeypatch.setattr(config, "ENVELOPE_ROW_GROUP_SPANS", spans)
+        result = api.analyse(parse_text(text))
+        files = {}
+        for name, limit in (("memory", 1 << 22), ("streamed", 0)):
+            monkeypatch.setattr(config, "BUFFERED_WRITE_MAX_VALUES", limit)
+            folder = api.write(result, tmp_path / f"{name}-{spans}", durable=False)
+            files[name] = {p.name: p.read_bytes() for p in sorted(folder.iterdir())}
+        assert files["memory"].keys() == files["streamed"].keys()
+        assert len(files["memory"]) >= 4
+        for name, data in files["memory"].items():
+            assert data == files["streamed"][name], name

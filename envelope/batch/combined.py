@@ -53,10 +53,16 @@ def from_ipc(data: bytes) -> Any:
 
 
 def _write(path: Path, table: Any, durable: bool = True) -> None:
-    """One Parquet file, atomically (:mod:`envelope.files`)."""
+    """One Parquet file, atomically (:mod:`envelope.files`), encoded in memory and
+    written in one call (the encoder's many small writes through a Python file object
+    cost more; the combined tables and a beam's partition are small)."""
+    import pyarrow as pa
     import pyarrow.parquet as pq
 
-    write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
+    sink = pa.BufferOutputStream()
+    pq.write_table(table, sink)
+    data = sink.getvalue()
+    write_atomic(path, lambda fh: fh.write(data), durable)
 
 
 def _units_metadata(labels: dict[str, str]) -> bytes:
