@@ -761,16 +761,21 @@ def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray |
     if cells is not None:
         parts.append(np.packbits(cells, axis=1))
     key = np.ascontiguousarray(np.concatenate(parts, axis=1))
-    # one text per distinct (column, choice): rows as opaque byte strings
-    raw = key.view(np.dtype((np.void, key.shape[1]))).ravel()
-    _, first, inverse = np.unique(raw, return_index=True, return_inverse=True)
-    text = np.empty(first.size, dtype=object)
+    # one text per distinct (column, choice): rows as opaque byte strings, told apart by
+    # a dict in order of first appearance (a few hundred rows: cheaper than a sort)
+    keys = key.view(np.dtype((np.void, key.shape[1]))).ravel().tolist()
+    distinct: dict[bytes, int] = {}
+    inverse = np.fromiter((distinct.setdefault(k, len(distinct)) for k in keys),
+                          dtype=np.intp, count=len(keys))
+    first = np.empty(len(distinct), dtype=np.intp)
+    first[inverse] = np.arange(len(keys))  # a row of each (equal keys: equal choices)
+    text = np.empty(len(distinct), dtype=object)
     n_g = len(cs.cell_labels)
     present: dict[int, dict[str, set[int]]] = {}
     case_names = list(cs.case_names)
     unit_case = cs.unit_case
-    for i, row in enumerate(first):
-        seen = known.get(raw[row].tobytes())
+    for i, (raw, row) in enumerate(zip(distinct, first.tolist(), strict=True)):
+        seen = known.get(raw)
         if seen is not None:
             text[i] = seen
             continue
@@ -789,9 +794,8 @@ def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray |
             if c not in present:
                 present[c] = _patterned_cells(cs, c)
             _mark_empty_cells(by_case, present[c], cells[row])
-        text[i] = known[raw[row].tobytes()] = _label_text(cs.cell_labels, by_case,
-                                                          cs.all_patterned[k])
-    return text[inverse.ravel()]
+        text[i] = known[raw] = _label_text(cs.cell_labels, by_case, cs.all_patterned[k])
+    return text[inverse]
 
 
 def _patterned_cells(cs: SuperposedCaseSet, c: int) -> dict[str, set[int]]:
