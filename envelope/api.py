@@ -36,8 +36,8 @@ __all__ = ["Analysis", "analyse", "load_case", "plot", "redraw", "summary_text",
 #: exports, influence lines); any of them an earlier run or command left and this run
 #: did not write is removed, so a folder never mixes two runs.
 _RESULT_SUFFIXES = (".parquet",)
-_FIGURE = "envelope.png"
-_DERIVED = (_FIGURE, "report.html", "report.pdf", "results.xlsx")
+FIGURE = "envelope.png"
+_DERIVED = (FIGURE, "report.html", "report.pdf", "results.xlsx")
 #: The folder ``envelope export --format csv`` writes by default, and what it holds.
 _CSV_FOLDER = "csv"
 _CSV_FILES = (".csv", "CAUTION.txt")
@@ -231,8 +231,8 @@ def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.Path
         if plots:
             from envelope import plots as figures
 
-            figures.draw_results(store.result_columns(built), stage / _FIGURE, durable)
-            written.add(_FIGURE)
+            figures.draw_results(store.result_columns(built), stage / FIGURE, durable)
+            written.add(FIGURE)
         for item in sorted(stage.iterdir()):  # (the tables under their staged names)
             os.replace(item, folder / final_name(item.name))
         stage.rmdir()
@@ -301,4 +301,4 @@ def redraw(folder: str | os.PathLike[str], output: str | os.PathLike[str] | None
         results = store.read_results(folder)
     except (FileNotFoundError, OSError) as exc:
         raise EnvelopeError(f"{folder}: not a result folder ({exc})") from None
-    return plots.draw_results(results, Path(output) if output else folder / _FIGURE)
+    return plots.draw_results(results, Path(output) if output else folder / FIGURE)

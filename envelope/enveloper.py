@@ -38,7 +38,7 @@ from __future__ import annotations
 import itertools
 import json
 from collections.abc import Sequence
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, cast
 
 import numpy as np
 
@@ -763,7 +763,7 @@ def _labels(cs: CaseSet, col: np.ndarray, units: np.ndarray, cells: np.ndarray |
     key = np.ascontiguousarray(np.concatenate(parts, axis=1))
     # one text per distinct (column, choice): rows as opaque byte strings, told apart by
     # a dict in order of first appearance (a few hundred rows: cheaper than a sort)
-    keys = key.view(np.dtype((np.void, key.shape[1]))).ravel().tolist()
+    keys = cast("list[bytes]", key.view(np.dtype((np.void, key.shape[1]))).ravel().tolist())
     distinct: dict[bytes, int] = {}
     inverse = np.fromiter((distinct.setdefault(k, len(distinct)) for k in keys),
                           dtype=np.intp, count=len(keys))

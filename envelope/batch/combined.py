@@ -105,8 +105,10 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
         if to_system is not None and system != to_system:
             table = _converted(table, units, to_system)
         column = pa.array([system] * table.num_rows, pa.string())
+        # the same columns without the field metadata (the units): a new schema over
+        # them, no cast
         plain = pa.schema([f.remove_metadata() for f in table.schema])
-        tables.append(table.cast(plain).replace_schema_metadata(None)
+        tables.append(pa.Table.from_arrays(table.columns, schema=plain)
                       .append_column("system", column))
     if not tables:
         return None
@@ -134,7 +136,7 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
     }
     if to_system is not None:
         meta[b"envelope:converted_to"] = to_system.encode()
-    return combined.cast(pa.schema(fields, metadata=meta))
+    return pa.Table.from_arrays(combined.columns, schema=pa.schema(fields, metadata=meta))
 
 
 def _beam_table(out: Path, beam_id: str, stem: str,

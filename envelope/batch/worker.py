@@ -27,18 +27,22 @@ def _is_result(name: str) -> bool:
     return is_result_file(name)
 
 
-def _snapshot(folder: Path) -> dict[str, tuple[int, int, int]]:
-    """Identity (inode, mtime, size) of each visible file in ``folder``."""
-    out: dict[str, tuple[int, int, int]] = {}
-    try:
-        with os.scandir(folder) as it:
-            for item in it:
-                if item.is_file(follow_symlinks=False) and not item.name.startswith("."):
-                    st = item.stat()
-                    out[item.name] = (st.st_ino, st.st_mtime_ns, st.st_size)
-    except FileNotFoundError:
-        pass
-    return out
+def _written_names(built: dict[str, object], all_cases: bool, plots: bool) -> list[str]:
+    """The files :func:`envelope.api.write_built` writes for these tables and options."""
+    from envelope.api import FIGURE
+
+    names = [f"{stem}.parquet" for stem in built]
+    if all_cases:
+        names.append("stations.parquet")
+    if plots:
+        names.append(FIGURE)
+    return names
+
+
+def _sizes(folder: Path, names: list[str]) -> dict[str, int]:
+    """The size in bytes of each file of ``names`` in ``folder``, by name, sorted (a
+    file that is not there fails the beam: the manifest never lists a missing file)."""
+    return {name: os.lstat(folder / name).st_size for name in sorted(names)}
 
 
 def _message(exc: BaseException, target: str, shown: str) -> str:
@@ -149,25 +153,21 @@ def run_beam(task: Task, out: str, plots: bool, unsynced: list[Path] | None = No
             folder = Path(out) / beam.id
             # From here on the folder is not complete until the new manifest stands.
             (folder / MANIFEST).unlink(missing_ok=True)
-            before = _snapshot(folder)
             # no fsync per file: the manifest, written last, is checked against every
             # file (size and input hash) before a beam counts as done, so a file lost to
             # a power failure is found and the beam rerun
             all_cases = beam.output.all_cases
             built = api.built_tables(result, all_cases)
+            # writes every file of the beam and removes the result files of an earlier
+            # run that this one did not write (stale)
             api.write_built(result, built, out, plots, all_cases, durable=False)
             written = time.perf_counter()
-            after = _snapshot(folder)
-            produced = {name: ident for name, ident in after.items()
-                        if before.get(name) != ident}
-            for name in before.keys() - produced.keys():
-                if _is_result(name):  # written by an earlier run, not by this one: stale
-                    (folder / name).unlink(missing_ok=True)
             write_partition(Path(out), beam.id, beam.units.name, built["envelope"])
             manifest = {
                 "beam": beam.id, "input_sha256": beam.input_sha256,
                 "version": engine_version(), "source": shown, "units": beam.units.name,
-                "plots": plots, "files": {name: produced[name][2] for name in sorted(produced)},
+                "plots": plots, "files": _sizes(folder, _written_names(built, all_cases,
+                                                                       plots)),
             }
             data = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
             write_atomic(folder / MANIFEST, lambda fh: fh.write(data), unsynced is None)
