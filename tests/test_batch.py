@@ -369,6 +369,42 @@ def test_the_worker_takes_the_quick_read_s_document_only_for_the_same_bytes(
     assert beam == load_case(paths[0]) and beam.title.startswith("changed: ")
 
 
+def test_a_folder_s_case_files_are_parsed_once_and_identified_as_by_their_own_read(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """Case files found in a folder are parsed once, while they are told apart from other
+    TOML files: the quick read takes that parse (the fast path) and gives the entries
+    of reading each file afresh (the reference path); a file changed in between is
+    parsed again and read as it is now."""
+    import tomllib
+
+    from envelope.batch import discovery
+
+    cases = tmp_path / "cases"
+    make_cases(5, cases, seed=16)
+    (cases / "tool.toml").write_text('[tool]\nname = "not a case"\n')
+    (cases / "empty.toml").write_text("")
+    calls: list[int] = []
+    real = tomllib.loads
+
+    def counted(text: str) -> dict[str, object]:
+        calls.append(1)
+        return real(text)
+
+    monkeypatch.setattr(discovery.tomllib, "loads", counted)
+    parsed: discovery.Parsed = {}
+    found = discover([str(cases)], [], parsed)
+    fast = [discovery.identify(i, p, parsed=parsed) for i, p in enumerate(found)]
+    assert len(calls) == 7 and len(found) == 6  # tool.toml left out
+    reference = [discovery.identify(i, p) for i, p in enumerate(found)]
+    assert len(calls) == 7 + 6
+    assert fast == reference
+    changed = Path(found[0])
+    changed.write_text(changed.read_text().replace('id = "', 'id = "x', 1))
+    again = discovery.identify(0, found[0], parsed=parsed)
+    assert again == discovery.identify(0, found[0]) != fast[0]
+    assert again.beam_id is not None and again.beam_id.startswith("x")
+
+
 def test_a_folder_with_old_and_new_files_is_not_taken_as_done(tmp_path: Path) -> None:
     cases = tmp_path / "cases"
     make_cases(3, cases, seed=12, max_spans=2)

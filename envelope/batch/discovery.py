@@ -38,29 +38,45 @@ def unreadable(path: str) -> str | None:
     return f"not a regular file: {file_kind(st.st_mode)}"
 
 
-def is_case_document(path: Path) -> bool:
+#: Case files parsed while searching folders: path -> (SHA-256 of the bytes read, the
+#: document's ``id`` or None when it has none or is empty, the document pickled for the
+#: worker), so that :func:`identify` takes them instead of parsing the same bytes again
+#: (the pickle, not the document, is kept: a tenth of the memory of a large batch's
+#: documents).
+Parsed = dict[str, tuple[str, object, bytes | None]]
+
+
+def is_case_document(path: Path, parsed: Parsed | None = None) -> bool:
     """False for a TOML file that holds none of a case file's top-level keys (a
     ``pyproject.toml`` beside the cases); a file that cannot be read or parsed (a FIFO,
     a file over the size limit, nesting too deep...) counts as a case, so that its
-    problem is reported rather than skipped.  Never blocks on a FIFO or a device."""
+    problem is reported rather than skipped.  Never blocks on a FIFO or a device.  A
+    case file's bytes and document are kept in ``parsed`` when given."""
     from envelope.casefile import TOP_KEYS
 
     try:
-        data = tomllib.loads(read_regular(path, config.CASE_FILE_MAX_BYTES)
-                             .decode("utf-8-sig"))
+        raw = read_regular(path, config.CASE_FILE_MAX_BYTES)
+        data = tomllib.loads(raw.decode("utf-8-sig"))
     except Exception:  # unreadable, not UTF-8, not TOML, nested too deeply...
         return True
-    return not data or any(key in data for key in TOP_KEYS)
+    is_case = not data or any(key in data for key in TOP_KEYS)
+    if is_case and parsed is not None:
+        parsed[str(path)] = (hashlib.sha256(raw).hexdigest(), _given_id(data, path),
+                             _packed(data))
+    return is_case
 
 
-def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None) -> list[str]:
+def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None,
+             parsed: Parsed | None = None) -> list[str]:
     """Case files named by ``paths``: files as given, folders searched recursively for
     ``*.toml`` (links to folders are not followed, so a link loop cannot trap the
     search), glob patterns expanded (``**`` allowed).  Each file once, in order.  A
     TOML file found in a folder that is not a case file is left out and, when
     ``skipped`` is given, listed there with the reason.  A path that is not a regular
     file (a FIFO, a device, a link loop or a dangling link) is listed: the batch
-    reports it as that file's failure (see :func:`unreadable`)."""
+    reports it as that file's failure (see :func:`unreadable`).  The files found by a
+    search were parsed to tell case files apart: with ``parsed``, their bytes and
+    documents are kept there (for :func:`identify`)."""
     found: list[str] = []
     seen: set[str] = set()
 
@@ -75,7 +91,7 @@ def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None)
 
     def add_found(p: Path) -> None:
         """A file found by a folder search or a pattern, not named by the user."""
-        if unreadable(str(p)) is not None or is_case_document(p):
+        if unreadable(str(p)) is not None or is_case_document(p, parsed):
             add(str(p))
         elif skipped is not None:
             skipped.append((str(p), "not a case file: none of its keys is a case key"))
@@ -114,11 +130,13 @@ def discover(paths: Sequence[str], skipped: list[tuple[str, str]] | None = None)
     return found
 
 
-def identify(index: int, path: str, absolute: bool = False) -> Entry:
+def identify(index: int, path: str, absolute: bool = False,
+             parsed: Parsed | None = None) -> Entry:
     """Hash the file and read its id the way the case reader does (the ``id`` key, else
     the file stem), without checking the rest: the worker reports any problem.  Any
     failure of this quick read (a file that is not regular, too large, not TOML, nested
-    too deeply) leaves the id unknown; it never stops the batch."""
+    too deeply) leaves the id unknown; it never stops the batch.  The document of
+    ``parsed`` (:func:`discover`) is taken when the file still holds the same bytes."""
     from envelope.casefile import ID_PATTERN
 
     target = os.path.abspath(path) if absolute else path
@@ -127,15 +145,25 @@ def identify(index: int, path: str, absolute: bool = False) -> Entry:
     except UnreadableFile:
         return Entry(index, path, target, None, None)
     sha256 = hashlib.sha256(raw).hexdigest()
-    try:
-        data = tomllib.loads(raw.decode("utf-8-sig"))
-    except Exception:  # not UTF-8, not TOML, nested too deeply for the parser...
-        return Entry(index, path, target, None, sha256)
-    beam_id = data.get("id", Path(path).stem) if data else None
+    known = None if parsed is None else parsed.get(path)
+    if known is not None and known[0] == sha256:  # the same bytes as when found
+        beam_id, packed = known[1], known[2]
+    else:
+        try:
+            data = tomllib.loads(raw.decode("utf-8-sig"))
+        except Exception:  # not UTF-8, not TOML, nested too deeply for the parser...
+            return Entry(index, path, target, None, sha256)
+        beam_id, packed = _given_id(data, path), _packed(data)
     if not isinstance(beam_id, str) or not ID_PATTERN.fullmatch(beam_id) \
             or beam_id in (".", ".."):
         beam_id = None
-    return Entry(index, path, target, beam_id, sha256, _packed(data))
+    return Entry(index, path, target, beam_id, sha256, packed)
+
+
+def _given_id(data: dict[str, object], path: str | Path) -> object:
+    """The id a document gives its beam (the ``id`` key, else the file stem; not yet
+    checked), or None for an empty document."""
+    return data.get("id", Path(path).stem) if data else None
 
 
 def _packed(data: dict[str, object]) -> bytes | None:

@@ -12,7 +12,7 @@ from typing import Any, TextIO
 
 from envelope.batch.cluster import _check_cluster, connect, run_cluster
 from envelope.batch.combined import combine, write_failures
-from envelope.batch.discovery import check_duplicates, discover, identify, unreadable
+from envelope.batch.discovery import Parsed, check_duplicates, discover, identify, unreadable
 from envelope.batch.local import default_workers, run_local
 from envelope.batch.model import COMBINED, BatchError, Entry, Outcome, Summary
 from envelope.batch.progress import Progress, _Silent
@@ -77,8 +77,10 @@ def run_batch(paths: Sequence[str], out: str | os.PathLike[str], *, workers: int
     if time_limit is not None and time_limit <= 0:
         raise BatchError(f"--time-limit must be greater than zero, got {time_limit:g}")
     not_cases: list[tuple[str, str]] = []
-    entries = [identify(i, p, absolute=scheduler is not None)
-               for i, p in enumerate(discover(paths, not_cases))]
+    parsed: Parsed = {}  # a case file found in a folder is parsed once, not twice
+    entries = [identify(i, p, absolute=scheduler is not None, parsed=parsed)
+               for i, p in enumerate(discover(paths, not_cases, parsed))]
+    del parsed
     check_duplicates(entries)
     summary = Summary(out=Path(shown_out), total=len(entries) + len(failures),
                       not_cases=not_cases)
