@@ -119,7 +119,10 @@ def dictionary_column(values: np.ndarray | list[str],
         bufs[0] = pa.py_buffer(np.packbits(~np.asarray(null, dtype=bool), bitorder="little"))
         count = int(np.count_nonzero(null))
     indices = pa.Array.from_buffers(pa.int32(), codes.size, bufs, null_count=count)
-    return pa.DictionaryArray.from_arrays(indices, string_column(list(index)))
+    # the distinct texts in order: string_column of them, without looking for repeats
+    texts = [v.encode() for v in index]
+    return pa.DictionaryArray.from_arrays(
+        indices, _coded_strings(texts, np.arange(len(texts), dtype=np.int64), None, True))
 
 
 def repeated_string(value: str, n: int) -> pa.Array:

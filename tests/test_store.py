@@ -11,6 +11,7 @@ from envelope.errors import StaticsError
 from envelope.store import (
     check_finite,
     coded_string_column,
+    dictionary_column,
     float_column,
     int_column,
     make_table,
@@ -71,6 +72,20 @@ def test_coded_strings_are_the_column_of_their_strings() -> None:
             b.to_pybytes() if b is not None else None for b in plain.buffers()]
     assert coded_string_column(texts, np.zeros(0, dtype=int)).equals(string_column([]))
     assert repeated_string("B-7", 4).buffers()[1:] == string_column(["B-7"] * 4).buffers()[1:]
+
+
+def test_a_dictionary_column_is_pyarrow_s_dictionary_encoding_of_its_strings() -> None:
+    """The ``_loaded`` columns: the indices and the dictionary built from the rows are
+    those of pyarrow's own dictionary encoding (the reference), nulls included."""
+    rows = ["L: 1 3", "all", "L: 1 3", "é; W: none", "", "all"]
+    null = np.array([False, False, True, False, False, False])
+    for mask in (None, null):
+        ours = dictionary_column(rows, mask)
+        theirs = pa.array(rows, pa.string(), mask=mask).dictionary_encode()
+        assert ours.indices.cast(pa.int32()).equals(theirs.indices.cast(pa.int32()))
+        assert ours.dictionary.equals(theirs.dictionary)
+        assert ours.dictionary.buffers()[1:] == string_column(
+            ours.dictionary.to_pylist()).buffers()[1:]
 
 
 def test_unit_metadata_is_the_same_cached_and_keeps_a_fields_own_metadata() -> None:

@@ -65,7 +65,14 @@ def _remove_temporaries(folder: Path) -> None:
     done in a folder that is a symbolic link, and no link is followed."""
     if is_link(folder):
         return
-    for tmp in folder.glob(".*.tmp"):
+    try:  # one listing, no pattern compiled (the batch looks in every beam's folder)
+        with os.scandir(folder) as entries:
+            names = [e.name for e in entries if e.name.startswith(".")
+                     and e.name.endswith(".tmp") and len(e.name) > 4]
+    except (FileNotFoundError, NotADirectoryError):
+        return
+    for name in names:
+        tmp = folder / name
         try:
             mode = os.lstat(tmp).st_mode
         except FileNotFoundError:
