@@ -104,6 +104,13 @@ class _StationMaxima:
     row: np.ndarray
 
 
+def _in_order(span: np.ndarray, x_span: np.ndarray, values: np.ndarray) -> bool:
+    """Whether the rows are in order of span, then position (and no value is NaN)."""
+    step = np.diff(span)
+    return bool(np.all((step > 0) | ((step == 0) & (np.diff(x_span) >= 0.0)))) and not bool(
+        np.isnan(values).any())
+
+
 def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
                     n_groups: int) -> _StationMaxima:
     """The best station of each group of rows (``span``: a group per span and request)
@@ -113,13 +120,24 @@ def _station_maxima(span: np.ndarray, x_span: np.ndarray, values: np.ndarray,
     best_x = np.zeros(n_groups)
     best_row = np.full(n_groups, -1, dtype=np.int64)
     rows = np.arange(span.size)
-    first_best = np.lexsort((rows, -values, span))  # per group: largest, first row
-    head = first_best[_starts(span[first_best])]
+    # the stations come span by span in order of position (as envelope.recovery.stations
+    # makes them): then the rows are their own order, and each group's first largest
+    # row is found by runs instead of sorting
+    ordered = _in_order(span, x_span, values)
+    if ordered:
+        group_start = np.flatnonzero(_starts(span))
+        largest = np.maximum.reduceat(values, group_start)
+        at_largest = values == np.repeat(largest, np.diff(np.append(group_start, span.size)))
+        head = np.minimum.reduceat(np.where(at_largest, rows, span.size), group_start)
+    else:
+        first_best = np.lexsort((rows, -values, span))  # per group: largest, first row
+        head = first_best[_starts(span[first_best])]
     best[span[head]], best_x[span[head]], best_row[span[head]] = (values[head], x_span[head],
                                                                   head)
 
-    order = np.lexsort((rows, x_span, span))
-    sp, xs, vals = span[order], x_span[order], values[order]
+    order = rows if ordered else np.lexsort((rows, x_span, span))
+    sp, xs, vals = (span, x_span, values) if ordered else (span[order], x_span[order],
+                                                            values[order])
     new_span = _starts(sp)
     first = new_span | _starts(xs)
     starts = np.flatnonzero(first)

@@ -483,3 +483,26 @@ def test_a_point_moments_jump_is_a_vertex_at_its_larger_side_without_golden_sect
     d = analyse(load_case(path)).design_actions
     np.testing.assert_allclose(d["moment_pos"], [77.0], rtol=ROUND_OFF, atol=0)
     assert d["moment_pos_x"].tolist() == [3.0]
+
+
+def test_station_maxima_by_runs_are_those_by_sorting(generated: list[Path],
+                                                     monkeypatch: pytest.MonkeyPatch) -> None:
+    """Stations in order of span and position: each group's best station and the local
+    maxima found by runs, the same arrays as by sorting the rows (the general way)."""
+    import envelope.actions
+    from envelope.actions import _in_order, _station_maxima
+
+    for path in generated[:16]:
+        a = analyse(load_case(path))
+        pts, n = a.stations, a.beam.n_spans
+        groups = np.concatenate([pts.span, n + pts.span])
+        x = np.tile(pts.x_span, 2)
+        values = np.concatenate([a.station_envelopes["moment"].max,
+                                 a.station_envelopes["deflection"].max])
+        assert _in_order(groups, x, values)
+        fast = _station_maxima(groups, x, values, 2 * n)
+        monkeypatch.setattr(envelope.actions, "_in_order", lambda *args: False)
+        slow = _station_maxima(groups, x, values, 2 * n)
+        monkeypatch.undo()
+        for name in fast.__slots__:
+            assert np.array_equal(getattr(fast, name), getattr(slow, name)), (path.name, name)
