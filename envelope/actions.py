@@ -13,9 +13,15 @@ moments are taken at the support centrelines and at the support faces (half
 the support width from the centreline; the centreline where no width is given).
 
 One search serves every quantity (the moment, the service deflection and the live
-deflection): each step evaluates the points of all of them at once.  The case governing
-a bracket is contracted with the solution once (:func:`envelope.recovery.combine`), so
-a step of the slope root costs the load items at its point, not every unit case.
+deflection): each step evaluates the points of all of them at once.  Between
+neighbouring stations the governing case's slope is one polynomial of degree at most
+four (the load terms of linearly varying loads), so its root is found from five values
+of it on the root's side of the station (:func:`envelope.search.quartic_roots`, in
+Python floats): on a small beam every unit case's slope at those points times the
+governing coefficients (one evaluation), on a long beam the case contracted on its span
+(:mod:`envelope.contracted`: a point costs the span's loaded items, not every unit
+case).  Where a break (a load edge, a point load, an element end) lies inside, regula
+falsi steps along the contracted slope instead.
 """
 
 from __future__ import annotations
@@ -492,7 +498,10 @@ class _Search:
                           coef: np.ndarray | None = None
                           ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """The root in [lo, hi] of the slope (shear for moment, rotation for deflection)
-        of the case governing at ``x``, by Illinois regula falsi, exact to round-off.
+        of the case governing at ``x``, exact to round-off: from five values of the slope
+        on the root's side of ``x`` (a quartic there, :func:`envelope.search.quartic_roots`),
+        or by Anderson-Bjorck regula falsi on the contracted slope where a break lies
+        inside that side.
 
         Returns the root, the envelope there, and whether that is a true maximum of the
         envelope: the slope changed sign from + to - (or, with ``x`` at an end of its

@@ -4,7 +4,11 @@ per step for all of them.
 * :func:`golden_max`: golden-section search for the maximum of a function in each
   bracket (no derivative needed; robust at kinks).
 * :func:`illinois_root`: the root of a function that changes sign over each bracket,
-  by regula falsi with the Illinois modification (superlinear, exact to round-off).
+  by regula falsi with the Illinois modification (superlinear, exact to round-off);
+  :func:`anderson_bjorck_root` the same with the Anderson-Bjorck modification.
+* :func:`quartic_roots`: the root of a polynomial of degree at most four given by its
+  values at five nodes (the design search's slopes between stations), each bracket
+  searched by itself in Python floats.
 
 The functions searched take an array of positions, one per bracket (or two per bracket
 for the first golden-section step, ``[c..., d...]``), and return the values there.
