@@ -2,6 +2,7 @@
 times one without).
 
     python benchmarks/figures_bench.py batch [N] [--repeats R] [--json OUT.json]
+                                             [--against TREE]
     python benchmarks/figures_bench.py worker [N] [--repeats R] [--json OUT.json]
 
 ``batch`` (the target): whole processes, ``envelope batch <N files> -o OUT --workers 2
@@ -10,7 +11,10 @@ times one without).
 it); the two sides are interleaved (A B B A ...) and the ratio is taken of the medians
 (the best of each side is printed too).  The CPU time of each batch (user and system,
 the batch and its workers) is recorded beside it: on a machine shared with other work
-it varies less than the wall time.  N defaults to 60.
+it varies less than the wall time.  N defaults to 60.  ``--against TREE`` also runs the
+engine of another source tree (a worktree of an earlier commit) in the same rounds, its
+with and without figures interleaved with this tree's (A B B A for each), and reports
+each tree's ratios and the figures' CPU per beam of both.
 
 ``worker``: one batch worker's chunk in this process (:func:`run_chunk`, as a worker
 runs it, so the figure is reused across beams), with and without figures; the CPU time
@@ -84,12 +88,13 @@ def bench_worker(n: int, repeats: int, work: Path) -> dict:
             "per_beam_cpu_with_s": best["with"][0] / n, "raw_cpu_wall_s": raw}
 
 
-def _batch_once(cases: Path, out: Path, plots: bool) -> tuple[float, float]:
+def _batch_once(cases: Path, out: Path, plots: bool, tree: Path = ROOT
+                ) -> tuple[float, float]:
     """Wall time and CPU time (user and system, of the batch and its workers) of one
-    batch."""
+    batch with the engine of ``tree``."""
     args = [sys.executable, "-m", "envelope", "batch", str(cases), "-o", str(out),
             "--workers", "2", "--force", "-q", "--plots" if plots else "--no-plots"]
-    env = dict(os.environ, PYTHONPATH=str(ROOT), MPLBACKEND="Agg")
+    env = dict(os.environ, PYTHONPATH=str(tree), MPLBACKEND="Agg")
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
     subprocess.run(args, check=True, env=env, stdout=subprocess.DEVNULL)
@@ -126,20 +131,58 @@ def bench_batch(n: int, repeats: int, work: Path) -> dict:
             "median_cpu_s": median_cpu, "raw_cpu_s": cpu}
 
 
+def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
+    """CPU time of whole batches, with and without figures, of this tree and ``other``
+    in the same rounds (each round: this tree A B B A, then the other's)."""
+    cases = work / "cases"
+    trees = {"this": ROOT, "other": other}
+    for tree in trees.values():  # file cache and compiled modules, untimed
+        _batch_once(cases, work / "warm", True, tree)
+    cpu: dict[str, dict[str, list[float]]] = {t: {"without": [], "with": []} for t in trees}
+    wall: dict[str, dict[str, list[float]]] = {t: {"without": [], "with": []} for t in trees}
+    for _ in range(repeats):
+        for name, tree in trees.items():
+            for plots in (False, True, True, False):
+                out = work / ("with" if plots else "without")
+                shutil.rmtree(out, ignore_errors=True)
+                w, used = _batch_once(cases, out, plots, tree)
+                wall[name]["with" if plots else "without"].append(w)
+                cpu[name]["with" if plots else "without"].append(used)
+    result: dict = {"other_tree": str(other), "raw_cpu_s": cpu, "raw_wall_s": wall}
+    for name in trees:
+        med = {k: statistics.median(v) for k, v in cpu[name].items()}
+        med_wall = {k: statistics.median(v) for k, v in wall[name].items()}
+        result[name] = {"median_cpu_s": med, "ratio_median_cpu": med["with"] / med["without"],
+                        "median_wall_s": med_wall,
+                        "ratio_median_wall": med_wall["with"] / med_wall["without"],
+                        "figures_cpu_per_beam_s": (med["with"] - med["without"]) / n}
+        print(f"{name} ({trees[name]}): CPU without figures {med['without']:.2f} s, with "
+              f"{med['with']:.2f} s: {med['with'] / med['without']:.2f}x (wall "
+              f"{med_wall['with'] / med_wall['without']:.2f}x); the figures "
+              f"{(med['with'] - med['without']) / n * 1e3:.0f} ms CPU a beam "
+              f"(medians of {2 * repeats})")
+    return result
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("what", choices=("batch", "worker"))
     parser.add_argument("n", nargs="?", type=int, default=60)
     parser.add_argument("--repeats", type=int, default=3)
     parser.add_argument("--json", type=Path)
+    parser.add_argument("--against", type=Path, help="another source tree, run in the "
+                        "same rounds (batch only)")
     args = parser.parse_args()
     start = {"date": time.strftime("%Y-%m-%d %H:%M:%S"), "load_average_start": os.getloadavg()}
     with tempfile.TemporaryDirectory() as tmp:
         work = Path(tmp)
         make_cases(args.n, work / "cases", seed=7)
-        bench = bench_batch if args.what == "batch" else bench_worker
-        result = {"what": args.what, "beams": args.n, "repeats": args.repeats,
-                  **bench(args.n, args.repeats, work)}
+        if args.against is not None:
+            measured = bench_against(args.n, args.repeats, work, args.against.resolve())
+        else:
+            bench = bench_batch if args.what == "batch" else bench_worker
+            measured = bench(args.n, args.repeats, work)
+        result = {"what": args.what, "beams": args.n, "repeats": args.repeats, **measured}
     result.update(start, load_average_end=os.getloadavg(), target=1.5, commit=_commit(),
                   machine=platform.platform(), cpus=os.cpu_count())
     print(f"load average {start['load_average_start'][0]:.1f} at the start, "
