@@ -27,6 +27,7 @@ from __future__ import annotations
 import os
 from typing import Any
 
+import matplotlib as mpl
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg, RendererAgg, get_hinting_flag
 from matplotlib.font_manager import fontManager, get_font
@@ -72,6 +73,20 @@ _FONTS: dict[_Key, Any] = {}
 
 _STEP = 64 // TEXT_SUBPIXEL_STEPS  # one position step in FreeType's 1/64 pixel
 _IDENTITY = np.array([[0x10000, 0], [0, 0x10000]])  # FreeType's 16.16 unit matrix
+
+
+#: The FreeType load flags of each ``text.hinting`` setting, as matplotlib maps them.
+_HINTING: dict[Any, Any] = {}
+
+
+def _hinting() -> Any:
+    """``get_hinting_flag()`` (the load flags of the present ``text.hinting``) without
+    building matplotlib's table of them at each call (a few thousand calls a figure)."""
+    value = dict.__getitem__(mpl.rcParams, "text.hinting")
+    flag = _HINTING.get(value)
+    if flag is None:
+        flag = _HINTING[value] = get_hinting_flag()
+    return flag
 
 
 def _font_key(prop: Any) -> _Key:
@@ -175,7 +190,7 @@ class CachedTextRenderer(RendererAgg):
         if ismath or not _GLYPH_API:
             return super().get_text_width_height_descent(s, prop, ismath)
         fkey = _font_key(prop)
-        flags = get_hinting_flag()
+        flags = _hinting()
         key = (s, fkey, self.dpi, flags)
         hit = _EXTENTS.get(key)
         if hit is None:
@@ -266,7 +281,7 @@ class CachedTextRenderer(RendererAgg):
                                            or mtext.get_language() is not None))):
             super().draw_text(gc, x, y, s, prop, angle, ismath, mtext)
             return
-        flags = get_hinting_flag()
+        flags = _hinting()
         fkey = _font_key(prop)
         # the origin in 1/64 px along and across the line (FreeType's y upwards), kept
         # to whole position steps; an upright line is laid out level with the canvas
@@ -322,7 +337,7 @@ def kept_layout(text: Any, renderer: Any) -> Any:
            text._verticalalignment, text._multialignment, text.get_rotation(),
            text.get_rotation_mode(), text._linespacing, text.get_usetex(),
            text._parse_math, renderer.dpi, text.get_figure(root=True).dpi,
-           get_hinting_flag())
+           _hinting())
     hit = _TEXT_LAYOUTS.get(key)
     if hit is None:
         hit = _bounded(_TEXT_LAYOUTS).setdefault(
