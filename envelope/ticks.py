@@ -160,10 +160,13 @@ class TickLayer(Artist):
                 frame.y0 -= reach
             else:
                 frame.x0 -= reach
-        whole = Bbox.union([*boxes, frame])
+        # the lower (left) edge of the union of the numbers and the frame, as
+        # ``Bbox.union`` finds it
+        edges = [*boxes, frame]
         pad = axis.labelpad * self.ax.get_figure(root=True).dpi / 72.0
         x, y = axis.label.get_position()
-        axis.label.set_position((x, whole.y0 - pad) if side.level else (whole.x0 - pad, y))
+        axis.label.set_position((x, min(b.ymin for b in edges) - pad) if side.level
+                                else (min(b.xmin for b in edges) - pad, y))
 
 
 def install(ax: Any) -> TickLayer:
