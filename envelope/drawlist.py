@@ -63,8 +63,22 @@ class DrawList(Artist):
 
 
 def _key(style: dict[str, Any]) -> Hashable:
-    return tuple(sorted((k, v if isinstance(v, Hashable) else repr(v))
-                        for k, v in style.items()))
+    """The style as a key: its items in name order, a value that cannot be hashed by
+    its repr."""
+    key = tuple(sorted(style.items()))
+    try:
+        hash(key)
+    except TypeError:
+        return tuple(sorted((k, repr(v) if _unhashable(v) else v) for k, v in style.items()))
+    return key
+
+
+def _unhashable(value: Any) -> bool:
+    try:
+        hash(value)
+    except TypeError:
+        return True
+    return False
 
 
 #: At most this many templates are kept per panel (a style that varies without end,
@@ -375,8 +389,9 @@ def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> Bbox |
     there, as ``Text.get_window_extent`` gives it (None where nothing is drawn)."""
     if not (np.isfinite(posx) and np.isfinite(posy)):
         return None
+    lines = [text._preprocess_math(line) for line in text.get_text().split("\n")]
     if (text._bbox_patch or text.get_path_effects() or text.get_usetex()
-            or any(text._preprocess_math(line)[1] for line in text.get_text().split("\n"))):
+            or any(math for _, math in lines)):
         text.draw(renderer)  # a box, path effects, TeX or math: as matplotlib draws it
         return text.get_window_extent(renderer)
     bbox, info, _ = kept_layout(text, renderer)
@@ -391,8 +406,7 @@ def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> Bbox |
     angle = text.get_rotation()
     prop = text._fontproperties
     mtext = text if len(info) == 1 else None
-    for line, _, (x, y) in info:
-        clean, _ = text._preprocess_math(line)
+    for (clean, _), (_, _, (x, y)) in zip(lines, info, strict=True):
         renderer.draw_text(gc, x + posx, canvash - (y + posy), clean, prop, angle,
                            ismath=False, mtext=mtext)
     gc.restore()
