@@ -270,13 +270,22 @@ class _Groups:
     def add(self, k: int, col: int, mask: np.ndarray) -> None:
         """One group per switchable case of combination ``k`` that is not patterned:
         that case's factors, acting where ``mask`` says when on."""
+        self.add_columns(k, range(col, col + 1), mask)
+
+    def add_columns(self, k: int, cols: range, mask: np.ndarray) -> None:
+        """:meth:`add` for each column of ``cols`` (in order), all of combination ``k``:
+        the groups' factors found once for them all."""
         inp = self.inp
+        found = []
         for name in inp.switchable[k]:
             part = np.where(inp.whole[:, k] & self.of_case[name], inp.factor[:, k], 0.0)
             if np.any(part != 0.0):
                 src = self.known.setdefault(part.tobytes(), len(self.distinct))
                 if src == len(self.distinct):
                     self.distinct.append(part)
+                found.append((src, name))
+        for col in cols:
+            for src, name in found:
                 self.src.append(src)
                 self.col.append(col)
                 self.case.append(name)
@@ -417,7 +426,8 @@ def _explicit(beam: Beam, combos: tuple[Combination, ...], units: UnitCases, cel
     every_cell = np.ones(cells.n, dtype=bool)
     unit_span = cells.span[units.cell]
     col_combo: list[int] = []
-    fixed, col_cells = [], []
+    fixed: list[np.ndarray] = []
+    col_cells: list[np.ndarray] = []
     col_masks: list[Masks] = []
     groups = _Groups(inp)
     for k in range(len(combos)):
@@ -426,18 +436,23 @@ def _explicit(beam: Beam, combos: tuple[Combination, ...], units: UnitCases, cel
         pat_k = inp.is_patterned & (f_k != 0.0)
         if inp.has_pattern[k] and np.all(inp.optional[pat_k, k]):
             spans = (*spans, frozenset())  # no patterned case acting at all
-        for s in spans:
-            span_on = np.zeros(beam.n_spans, dtype=bool)
-            span_on[list(s)] = True
-            on, cell_on = span_on[unit_span], span_on[cells.span]
-            f = np.where(inp.is_patterned, np.where(on, f_k, 0.0), f_k)
-            f = np.where(inp.is_dead & ~on, f_k * fav, f)
-            fixed.append(np.where(inp.whole[:, k], 0.0, f))
-            col_cells.append(cell_on)
-            col_masks.append(tuple((n, tuple(bool(b) for b in cell_on))
-                                   for n in inp.switchable[k] if inp.pattern_of[n]))
-            groups.add(k, len(col_combo), every_cell)
-            col_combo.append(k)
+        # every arrangement of the combination at once, a row each (elementwise
+        # choices and one product: each column the same numbers as one at a time)
+        span_on = np.zeros((len(spans), beam.n_spans), dtype=bool)
+        for row, s in enumerate(spans):
+            span_on[row, list(s)] = True
+        on, cell_on = span_on[:, unit_span], span_on[:, cells.span]
+        f = np.where(inp.is_patterned, np.where(on, f_k, 0.0), f_k)
+        f = np.where(inp.is_dead & ~on, f_k * fav, f)
+        fixed.extend(np.where(inp.whole[:, k], 0.0, f))
+        col_cells.extend(cell_on)
+        named = [n for n in inp.switchable[k] if inp.pattern_of[n]]
+        for mask in cell_on.tolist():
+            loaded = tuple(mask)
+            col_masks.append(tuple((n, loaded) for n in named))
+        groups.add_columns(k, range(len(col_combo), len(col_combo) + len(spans)),
+                           every_cell)
+        col_combo.extend([k] * len(spans))
     return ExplicitCaseSet(
         **_common(combos, units, cells, inp, col_combo, fixed, groups),
         col_cells=np.array(col_cells, dtype=bool).reshape(len(col_combo), cells.n),
