@@ -276,9 +276,8 @@ def _solve_block(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
 
     # upper banded storage: ab[3 + i - j, j] = K[i, j]
     ab = np.zeros((4, n_dof))
-    p, q = np.triu_indices(4)
     base = 2 * np.arange(n_e)
-    for pi, qi in zip(p.tolist(), q.tolist(), strict=True):
+    for pi, qi in _UPPER_4:
         # one band entry per element for each (p, q): no repeated index within a step,
         # and at most two terms meet in an entry (so the order does not matter)
         ab[3 + pi - qi, base + qi] += ke[:, pi, qi]
@@ -391,6 +390,11 @@ def _solve_block(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
         reaction_moment=reaction_moment,
         condition=condition,
     )
+
+
+#: The (row, column) pairs of a 4 x 4 matrix's upper triangle, row by row
+#: (``numpy.triu_indices(4)``, made once).
+_UPPER_4 = tuple((p, q) for p in range(4) for q in range(p, 4))
 
 
 def _node_sums(f: np.ndarray, n_dof: int) -> np.ndarray:
