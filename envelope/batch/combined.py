@@ -4,6 +4,7 @@ failure list."""
 from __future__ import annotations
 
 import csv
+import functools
 import hashlib
 import io
 import json
@@ -87,7 +88,7 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
     unit holds for the whole column; nothing mixes kN and kip in a column unnamed."""
     import pyarrow as pa
 
-    from envelope.columnunits import column_units, convert
+    from envelope.columnunits import convert
 
     tables, labels, caution = [], {}, b""
     units_by_system: dict[str, dict[str, str]] = {}
@@ -99,8 +100,8 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
         system = systems[beam_id]
         labels[system] = meta.get(b"envelope:units", b"{}").decode()
         caution = meta.get(b"envelope:caution", caution)
-        own = json.loads(meta.get(b"envelope:sizing_units", b"{}"))
-        units = column_units(table.column_names, json.loads(labels[system]), own)
+        units = _column_units(tuple(table.column_names), labels[system],
+                              meta.get(b"envelope:sizing_units", b"{}"))
         units_by_system.setdefault(system, {}).update(units)
         if to_system is not None and system != to_system:
             table = _converted(table, units, to_system)
@@ -137,6 +138,16 @@ def _combine_table(out: Path, ids: Sequence[str], systems: dict[str, str], stem:
     if to_system is not None:
         meta[b"envelope:converted_to"] = to_system.encode()
     return pa.Table.from_arrays(combined.columns, schema=pa.schema(fields, metadata=meta))
+
+
+@functools.lru_cache(maxsize=64)
+def _column_units(names: tuple[str, ...], labels: str, own: bytes) -> dict[str, str]:
+    """:func:`envelope.columnunits.column_units` of a beam's table from its metadata
+    texts (``envelope:units``, ``envelope:sizing_units``), kept per column layout and
+    units: the beams of a batch share a few (the callers never change the dictionary)."""
+    from envelope.columnunits import column_units
+
+    return column_units(names, json.loads(labels), json.loads(own))
 
 
 def _beam_table(out: Path, beam_id: str, stem: str,
