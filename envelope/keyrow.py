@@ -68,8 +68,9 @@ def _vpack(bboxes: Sequence[Bbox], sep: float, pad: float, align: str
 #: figure that shows them and drawn on any: an entry's boxes and artists depend on the
 #: figure only through its resolution.
 _ENTRIES: dict[tuple[str, float], _Entry] = {}
-#: Each figure's legend without entries, by figure size: where the legend's anchor is.
-_ANCHORS: WeakKeyDictionary[Any, tuple[tuple[float, ...], Any]] = WeakKeyDictionary()
+#: Each figure's legends without entries, by figure size (a kept figure takes the sizes
+#: of its beams' panel heights): where the legend's anchor is.
+_ANCHORS: WeakKeyDictionary[Any, dict[tuple[float, ...], Any]] = WeakKeyDictionary()
 
 
 class KeyRow(Artist):
@@ -100,10 +101,13 @@ class KeyRow(Artist):
     def _anchor(self, fig: Any) -> Any:
         """The figure's legend without entries (its anchor is every key's)."""
         size = tuple(fig.bbox.bounds)
-        kept = _ANCHORS.get(fig)
-        if kept is None or kept[0] != size:
-            kept = _ANCHORS[fig] = (size, self.legend_of([]))
-        return kept[1]
+        kept = _ANCHORS.setdefault(fig, {})
+        legend = kept.get(size)
+        if legend is None:
+            if len(kept) >= 64:  # a bounded memory: the sizes of a few dozen layouts
+                kept.clear()
+            legend = kept[size] = self.legend_of([])
+        return legend
 
     def _layout(self, renderer: Any) -> tuple[list[tuple[Any, Any, tuple[float, float],
                                                          tuple[float, float]]], Bbox]:
