@@ -141,6 +141,12 @@ ROOT_BRACKET = 1e-5
 #: several temporaries); below it numpy is quicker than importing numba.
 KERNEL_MIN_PAIRS = 2_000_000
 
+#: From this many (rows x intervals x loads) values a moving train's worst positions
+#: (:func:`envelope.influence._run_extremes`) are found by the numba kernel, one pass
+#: without the (rows x intervals x 4 x 4) numpy temporaries, about 0.3 s of numpy
+#: passes, near the cost of loading numba; once numba is loaded every train uses it.
+KERNEL_MIN_TRAIN_VALUES = 2_000_000
+
 #: Largest case file read, in bytes: a beam of a thousand spans with a dozen load items
 #: each is under 1 MB; anything larger is refused before it is parsed.
 CASE_FILE_MAX_BYTES = 4 * 1024 * 1024

@@ -23,10 +23,12 @@ Units are the beam's consistent units (m, kN; ft, kip), downward loads positive.
 from __future__ import annotations
 
 import itertools
+import sys
 from typing import Any
 
 import numpy as np
 
+from envelope import config
 from envelope.loading import POINT, UnitCases
 from envelope.mesh import Mesh, build_mesh, locate
 from envelope.model import Beam
@@ -238,8 +240,10 @@ def _run_extremes(lines: InfluenceLines, table: np.ndarray, loads: np.ndarray,
     lo, hi = cuts[:-1], cuts[1:]
     keep = hi > lo
     lo, hi = lo[keep], hi[keep]
-    mid = 0.5 * (lo + hi)
     n_rows = table.shape[0]
+    if _use_kernel(n_rows * lo.size * loads.size):
+        return _run_extremes_kernel(table, b, loads, offsets, lo, hi)
+    mid = 0.5 * (lo + hi)
     samples = np.zeros((n_rows, lo.size, 4))
     for load, off in zip(loads, offsets, strict=True):
         at_mid = mid + off
@@ -254,6 +258,32 @@ def _run_extremes(lines: InfluenceLines, table: np.ndarray, loads: np.ndarray,
     coef = samples @ _VANDERMONDE_INV.T
     vmax, tmax, vmin, tmin = _cubic_extremes(coef)
     return _best(vmax, tmax, vmin, tmin, lo, hi)
+
+
+def _use_kernel(values: int) -> bool:
+    """Whether a train's extremes over ``values`` (rows x intervals x loads) are found
+    by the numba kernel: where numba is loaded already (a long beam's solve or an
+    earlier large train loaded it), or where the numpy passes would cost more than
+    loading it (:data:`envelope.config.KERNEL_MIN_TRAIN_VALUES`)."""
+    return "numba" in sys.modules or values >= config.KERNEL_MIN_TRAIN_VALUES
+
+
+def _run_extremes_kernel(table: np.ndarray, bounds: np.ndarray, loads: np.ndarray,
+                         offsets: np.ndarray, lo: np.ndarray, hi: np.ndarray
+                         ) -> tuple[np.ndarray, ...]:
+    """:func:`_run_extremes` for intervals ``lo``-``hi`` by
+    :func:`envelope._kernels.train_extremes`: one pass, no (rows x intervals x 4 x 4)
+    temporaries; the numpy path is its tested reference."""
+    from envelope import _kernels  # numba is imported only here
+
+    out = np.empty((4, table.shape[0]))
+    fit = np.vstack([SAMPLES[None, :], _VANDERMONDE_INV])
+    _kernels.train_extremes(np.ascontiguousarray(table, dtype=np.float64),
+                            np.ascontiguousarray(bounds, dtype=np.float64),
+                            np.vstack([loads, offsets]).astype(np.float64),
+                            np.vstack([lo, hi]).astype(np.float64), fit, out)
+    return (out[_kernels.TRAIN_MAX], out[_kernels.TRAIN_MIN], out[_kernels.TRAIN_X_MAX],
+            out[_kernels.TRAIN_X_MIN])
 
 
 def influence_at(beam: Beam, span: int, x_span: float, right: bool = True,

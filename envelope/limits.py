@@ -149,7 +149,11 @@ def estimate(beam: Beam) -> Estimate:
         influence = 4 * (elements + rows)
         values = influence * (elements + rows + n + 1)
         memory += BYTES_PER_INFLUENCE_VALUE * values
-        kernels = kernels or influence >= config.KERNEL_MIN_UNITS
+        # a train's worst positions: rows x intervals (about axles x pieces) x axles
+        axles = max(len(load.axles) for load in beam.loads if load.is_moving)
+        train = rows * axles * axles * (elements + rows)
+        kernels = (kernels or influence >= config.KERNEL_MIN_UNITS
+                   or train >= config.KERNEL_MIN_TRAIN_VALUES)
         solves = 1 + math.ceil(stations / config.MOVING_CHUNK_ROWS)
         seconds += SECONDS_PER_INFLUENCE_VALUE * values * solves
     memory += KERNEL_BYTES * kernels

@@ -172,3 +172,64 @@ def test_tabulated_shear_line_jumps_by_the_unit_load_at_the_point() -> None:
     assert lines["shear"][off] == pytest.approx(want[off], abs=FIT_RTOL)
     assert set(lines) == {"shear", "moment", "rotation", "deflection", "reaction_1",
                           "reaction_2"}
+
+
+@pytest.mark.parametrize(("loads", "offsets"), [
+    ([30.0, 30.0, 12.0], [0.0, 1.8, 4.0]),     # an axle group, both ways
+    ([18.0, 8.0], [0.0, 1.4]),                 # two axles
+])
+def test_the_train_kernel_gives_the_numpy_extremes(monkeypatch: pytest.MonkeyPatch,
+                                                   loads: list[float],
+                                                   offsets: list[float]) -> None:
+    """envelope._kernels.train_extremes against its reference, the numpy passes of
+    _run_extremes: the same largest and least values to round-off and the same
+    positions, every quantity and reaction, one-way and both ways, on all spans and on
+    some."""
+    from envelope import influence
+
+    beam = _continuous()
+    pts = stations(beam, build_mesh(beam), _no_units(beam))
+    lines = influence_lines(beam, pts)
+    p, o = np.array(loads), np.array(offsets)
+    for spans in (None, np.array([1, 2])):
+        for q in ("moment", "shear", "deflection", "rotation", "reaction"):
+            got = {}
+            for use in (False, True):
+                monkeypatch.setattr(influence, "_use_kernel", lambda values, u=use: u)
+                got[use] = train_worst(lines, q, p, o, spans)
+            want, fast = got[False], got[True]
+            scale = max(float(np.abs(want.max).max()), float(np.abs(want.min).max()))
+            for field in ("max", "min"):
+                assert np.allclose(getattr(fast, field), getattr(want, field), rtol=0.0,
+                                   atol=1e-12 * scale), (q, field)
+            if q in ("moment", "deflection", "rotation"):
+                # continuous lines: the train placed at the kernel's position (positions
+                # may differ from the reference's where the extreme ties) gives the value,
+                # with a load exactly at an end of the beam on it or just off it (a
+                # one-sided limit); a shear or reaction line jumps, so only its values
+                allowed = (np.ones(lines.n_pieces, dtype=bool) if spans is None
+                           else np.isin(lines.span, spans))
+                for field in ("max", "min"):
+                    x = getattr(fast, f"x_{field}")
+                    sign = np.where(getattr(fast, f"reversed_{field}"), -1.0, 1.0)
+                    inside, closed = np.zeros(x.size), np.zeros(x.size)
+                    for load, off in zip(p, o, strict=True):
+                        at = x + sign * off
+                        piece = np.clip(np.searchsorted(lines.bounds, at, side="right") - 1,
+                                        0, lines.n_pieces - 1)
+                        value = load * np.diagonal(
+                            lines.values(q, np.clip(at, 0.0, beam.length)))
+                        on = allowed[piece]
+                        inside += np.where(on & (at > 0.0) & (at < beam.length), value, 0.0)
+                        closed += np.where(on & (at >= 0.0) & (at <= beam.length), value, 0.0)
+                    worst = getattr(fast, field)
+                    moved = np.abs(worst) > 1e-9 * scale  # else the load is absent
+                    gap = np.minimum(np.abs(inside - worst), np.abs(closed - worst))
+                    assert np.all(gap[moved] <= 1e-9 * scale), (q, field)
+            # the direction may differ only where both directions reach the same value
+            ways = [train_worst(lines, q, p, sign * o, spans, both_ways=False)
+                    for sign in (1.0, -1.0)]
+            for field in ("max", "min"):
+                differ = getattr(fast, f"reversed_{field}") != getattr(want, f"reversed_{field}")
+                tie = np.abs(getattr(ways[0], field) - getattr(ways[1], field))
+                assert np.all(tie[differ] <= 1e-12 * scale), (q, field)
