@@ -4,7 +4,7 @@
         [--first 200] [--json OUT.json]
 
 BEFORE_DIR and AFTER_DIR are source trees of the engine (e.g. ``git worktree add
---detach /tmp/before REV``).  Each engine runs in a long-lived process of its own, which
+--detach ../before REV``).  Each engine runs in a long-lived process of its own, which
 does on every round what a batch does for the same beams of ``make_cases.py`` (seed 11,
 beams ``first`` to ``first + beams``): the coordinator's quick read of each file
 (``identify``), one worker's chunk (``run_chunk``) and the combining of OUT/_all; the
@@ -31,6 +31,16 @@ from pathlib import Path
 from typing import Any
 
 HERE = Path(__file__).resolve().parent
+
+
+def _commit(tree: Path) -> str:
+    """The short commit of the source tree ``tree`` (recorded instead of its path, which
+    names a folder of one machine)."""
+    try:
+        return subprocess.run(["git", "-C", str(tree), "rev-parse", "--short", "HEAD"],
+                              capture_output=True, text=True, check=True).stdout.strip()
+    except (OSError, subprocess.CalledProcessError):
+        return "unknown"
 
 
 def serve(cases: Path, beams: int, first: int, out: Path) -> None:
@@ -129,7 +139,7 @@ def main() -> None:
     if args.json:
         args.json.write_text(json.dumps({
             "date": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()),
-            "engines": {k: str(v) for k, v in sides.items()}, "beams": args.beams,
+            "engines": {k: _commit(v) for k, v in sides.items()}, "beams": args.beams,
             "first_beam": args.first, "rounds": args.rounds, "order": order,
             "load_average_start": load0, "load_average_end": load1, "results": result,
             "raw_cpu_s_per_beam": raw}, indent=1))

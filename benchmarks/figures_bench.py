@@ -49,9 +49,11 @@ from make_cases import make_cases  # noqa: E402
 from envelope.batch.worker import run_chunk  # noqa: E402
 
 
-def _commit() -> str:
+def _commit(tree: Path = ROOT) -> str:
+    """The short commit of the source tree ``tree`` (recorded instead of its path, which
+    names a folder of one machine)."""
     try:
-        return subprocess.run(["git", "-C", str(ROOT), "rev-parse", "--short", "HEAD"],
+        return subprocess.run(["git", "-C", str(tree), "rev-parse", "--short", "HEAD"],
                               capture_output=True, text=True, check=True).stdout.strip()
     except (OSError, subprocess.CalledProcessError):
         return "unknown"
@@ -148,7 +150,7 @@ def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
                 w, used = _batch_once(cases, out, plots, tree)
                 wall[name]["with" if plots else "without"].append(w)
                 cpu[name]["with" if plots else "without"].append(used)
-    result: dict = {"other_tree": str(other), "raw_cpu_s": cpu, "raw_wall_s": wall}
+    result: dict = {"other_tree_commit": _commit(other), "raw_cpu_s": cpu, "raw_wall_s": wall}
     for name in trees:
         med = {k: statistics.median(v) for k, v in cpu[name].items()}
         med_wall = {k: statistics.median(v) for k, v in wall[name].items()}
@@ -156,7 +158,7 @@ def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
                         "median_wall_s": med_wall,
                         "ratio_median_wall": med_wall["with"] / med_wall["without"],
                         "figures_cpu_per_beam_s": (med["with"] - med["without"]) / n}
-        print(f"{name} ({trees[name]}): CPU without figures {med['without']:.2f} s, with "
+        print(f"{name} ({_commit(trees[name])}): CPU without figures {med['without']:.2f} s, with "
               f"{med['with']:.2f} s: {med['with'] / med['without']:.2f}x (wall "
               f"{med_wall['with'] / med_wall['without']:.2f}x); the figures "
               f"{(med['with'] - med['without']) / n * 1e3:.0f} ms CPU a beam "
