@@ -318,7 +318,7 @@ def train_extremes(table: np.ndarray, bounds: np.ndarray,  # noqa: C901 (one loo
     of each (the first interval on a tie, as numpy's argmax)."""
     piece, on, powers = _train_pieces(bounds, axles, runs, fit)
     n_int = runs.shape[1]
-    for r in prange(table.shape[0]):
+    for r in range(table.shape[0]):  # serial: parallel rows took more CPU and wall
         best_hi, best_lo, x_hi, x_lo = -np.inf, np.inf, np.nan, np.nan
         sample = np.empty(4)
         coef = np.empty(4)

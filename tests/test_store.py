@@ -185,3 +185,23 @@ def test_tables_encoded_in_memory_are_the_bytes_streamed_to_the_file(
         assert len(files["memory"]) >= 4
         for name, data in files["memory"].items():
             assert data == files["streamed"][name], name
+
+
+def test_a_batch_partition_or_combined_table_streamed_is_the_one_encoded_in_memory(
+        tmp_path, monkeypatch) -> None:
+    """envelope.batch.combined writes a table above config.BUFFERED_WRITE_MAX_VALUES
+    straight to its file (no encoded copy held for a long beam's partition): the same
+    bytes as the encoding in memory of a smaller one."""
+    from pathlib import Path
+
+    from envelope import api, config
+    from envelope.batch import combined
+
+    case = Path(__file__).resolve().parent.parent / "cases" / "office-4span-si.toml"
+    table = api.tables(api.analyse(api.load_case(case)))["envelope"]
+    files = {}
+    for name, limit in (("memory", 1 << 22), ("streamed", 0)):
+        monkeypatch.setattr(config, "BUFFERED_WRITE_MAX_VALUES", limit)
+        combined._write(tmp_path / f"{name}.parquet", table, durable=False)
+        files[name] = (tmp_path / f"{name}.parquet").read_bytes()
+    assert len(files["memory"]) > 1000 and files["memory"] == files["streamed"]

@@ -15,7 +15,7 @@ from collections.abc import Collection, Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
-from envelope import engine_version
+from envelope import config, engine_version
 from envelope.batch.model import COMBINED, Outcome
 from envelope.batch.resume import _remove_temporaries, _stamped
 from envelope.files import real_folder, write_atomic
@@ -54,12 +54,18 @@ def from_ipc(data: bytes) -> Any:
 
 
 def _write(path: Path, table: Any, durable: bool = True) -> None:
-    """One Parquet file, atomically (:mod:`envelope.files`), encoded in memory and
-    written in one call (the encoder's many small writes through a Python file object
-    cost more; the combined tables and a beam's partition are small)."""
+    """One Parquet file, atomically (:mod:`envelope.files`).  A table of at most
+    :data:`envelope.config.BUFFERED_WRITE_MAX_VALUES` values (most partitions and
+    combined tables) is encoded in memory and written in one call, since the encoder's
+    many small writes through a Python file object cost more; a larger one (a long
+    beam's partition) streams to the file, as store.py writes it, so that no encoded
+    copy of it is held (the same bytes either way)."""
     import pyarrow as pa
     import pyarrow.parquet as pq
 
+    if table.num_rows * table.num_columns > config.BUFFERED_WRITE_MAX_VALUES:
+        write_atomic(path, lambda fh: pq.write_table(table, fh), durable)
+        return
     sink = pa.BufferOutputStream()
     pq.write_table(table, sink)
     data = sink.getvalue()
