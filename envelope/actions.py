@@ -37,7 +37,6 @@ from envelope.contracted import (
     contract,
     item_values,
     response,
-    slope_at,
     span_breaks,
 )
 from envelope.enveloper import CaseSet, Extremes, column_max, governing_coefficients
@@ -579,7 +578,8 @@ class _Search:
         if rest.any():
             if gov is None:
                 gov = self.contract(task, span, coef)
-            root = anderson_bjorck_root(slope_at(gov, deflection), np.where(up, x, lo),
+            root = anderson_bjorck_root(lambda xs: response(gov, xs, deflection, slope=True),
+                                        np.where(up, x, lo),
                                         np.where(down, x, hi), np.where(up, right, f_lo),
                                         np.where(down, left, f_hi), root, rest, tol,
                                         group=task)

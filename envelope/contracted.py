@@ -18,7 +18,6 @@ consistent units.
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -204,60 +203,6 @@ def response(sc: SpanCases, x_span: np.ndarray, deflection: np.ndarray, slope: b
     v = v1 + theta1 * s + (M0 * s**2 / 2.0 + V0 * s**3 / 6.0) / EI - (
         m2 + _sum(c_w * (c2 / ei), axis=1))
     return np.where(deflection, -v, moment)
-
-
-def slope_at(sc: SpanCases, deflection: np.ndarray) -> Callable[[np.ndarray], np.ndarray]:
-    """``response(sc, x, deflection, slope=True)`` as a function of ``x`` alone (each
-    row's right-side limit): what does not depend on ``x`` is made once, for a search
-    that asks for the slopes step after step.  The same numbers as :func:`response`
-    (each product the same; the point forces' weights ``c_w c_p c_force`` times the
-    0/1 step are those of ``c_w (c_p step) c_force``, as a factor of 0 or 1 is exact)."""
-    n_elem = sc.elem.shape[2]
-    half_force = 0.5 * sc.c_force
-    force_less_one = sc.c_force - 1.0
-    forces = sc.c_w * (sc.c_p * sc.c_force)  # rows x items: the point forces' weights
-    d_a, d_b, d_wa, d_slope, c_a, c_p = sc.d_a, sc.d_b, sc.d_wa, sc.d_slope, sc.c_a, sc.c_p
-    single = n_elem == 1
-    start, length, EI, V0, M0, theta1, _ = sc.elem[:, :, 0]
-    ei = EI[:, None]
-    ei3 = ei[..., None]
-    d_w, c_w, f_w = sc.d_w, sc.c_w, forces
-
-    def slope(x_span: np.ndarray) -> np.ndarray:
-        nonlocal start, length, EI, V0, M0, theta1, ei, ei3, d_w, c_w, f_w
-        if not single:
-            # the element holding the point (the right-side limit), as in response()
-            e = (x_span[:, None] >= sc.elem[0, :, 1:]).sum(axis=1)
-            start, length, EI, V0, M0, theta1, _ = sc.elem.reshape(7, -1)[
-                :, np.arange(x_span.size) * n_elem + e]
-            ei = EI[:, None]
-            ei3 = ei[..., None]
-            d_w = np.where(sc.d_elem == e[:, None, None], sc.d_w, 0.0)
-            here = sc.c_elem == e[:, None]
-            c_w, f_w = np.where(here, sc.c_w, 0.0), np.where(here, forces, 0.0)
-        s = np.minimum(np.maximum(x_span - start, 0.0), length)
-        sd = s[:, None]
-        sg = sd[..., None]
-        half = 0.5 * (np.minimum(np.maximum(sg, d_a), d_b) - d_a)
-        t = d_a + half * _GAUSS_1X
-        wq = GAUSS_W * half * (d_wa + d_slope * (t - d_a))
-        r = sg - t
-        dc = sd - c_a
-        h = dc >= 0.0
-        dc = dc * h
-        pcd = c_p * h * dc
-        q = _sum(d_w * _sum(wq, axis=2, keepdims=True), axis=(1, 2))
-        shear = V0 - (q + _sum(f_w * h, axis=1))
-        wqr = wq * r
-        m1 = _sum(d_w * (_sum(wqr * r / 2.0, axis=2, keepdims=True) / ei3), axis=(1, 2))
-        c1 = pcd * (half_force * dc + force_less_one)
-        rotation = theta1 + (M0 * s + V0 * s**2 / 2.0) / EI - (
-            m1 + _sum(c_w * (c1 / ei), axis=1))
-        return np.where(deflection, -rotation, shear)
-
-    return slope
-
-
 
 
 def span_breaks(mesh: Mesh, units: UnitCases, n_spans: int) -> np.ndarray:

@@ -24,7 +24,7 @@ import reference_actions
 from envelope.actions import _least_moment, design_actions, refine_max, refine_maxima
 from envelope.analysis import analyse
 from envelope.casefile import load_case
-from envelope.contracted import contract, response, slope_at
+from envelope.contracted import contract, response
 from envelope.recovery import combine, evaluate_combined, evaluate_some, make_points
 from envelope.search import anderson_bjorck_root, golden_max, illinois_root
 from envelope.solved import envelope_at, envelopes_at
@@ -312,29 +312,6 @@ def test_design_actions_without_the_one_block_matches_the_reference(
         monkeypatch.undo()
         _assert_same_actions(without, _reference(a), path.name)
         _assert_same_actions(without, with_block, path.name)
-
-
-def test_slopes_made_for_the_root_steps_are_the_contracted_slopes_bit_for_bit(
-        generated: list[Path]) -> None:
-    # envelope.contracted.slope_at (what does not depend on x made once) against
-    # response(slope=True): the same numbers, on spans of one and of several elements
-    rng = np.random.default_rng(11)
-    several = 0
-    for path in generated[:24]:
-        s = analyse(load_case(path)).solved
-        several += int(s.mesh.span_count.max() > 1)
-        n = 50
-        span = rng.integers(0, s.beam.n_spans, n)
-        length = np.asarray(s.beam.geometry.span_length)[span]
-        coef = rng.normal(size=(n, s.unit_cases.n_units))
-        sc = contract(s.mesh, s.unit_cases, [(s.solution, np.arange(n))], span, coef)
-        deflection = rng.random(n) < 0.5
-        slope = slope_at(sc, deflection)
-        for x in (rng.random(n) * length, np.zeros(n), length,
-                  np.where(np.arange(n) % 5 == 0, np.nan, rng.random(n) * length)):
-            want = response(sc, x, deflection, slope=True)
-            assert np.array_equal(slope(x), want, equal_nan=True), path.name
-    assert several
 
 
 def test_slope_roots_by_quartics_match_the_regula_falsi_on_the_slopes(
