@@ -198,6 +198,17 @@ def write(result: Analysis, out: str | os.PathLike[str] = "results", plots: bool
     return write_built(result, _tables(result, all_cases), out, plots, all_cases, durable)
 
 
+def result_names(built: dict[str, pa.Table], all_cases: bool, plots: bool) -> set[str]:
+    """The files :func:`write_built` writes for the tables ``built`` and these options
+    (the batch's manifest lists them)."""
+    names = {f"{stem}.parquet" for stem in built}
+    if all_cases:
+        names.add("stations.parquet")
+    if plots:
+        names.add(FIGURE)
+    return names
+
+
 def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.PathLike[str],
                 plots: bool, all_cases: bool, durable: bool) -> Path:
     """:func:`write` of tables already built by :func:`built_tables` (the batch worker
@@ -222,17 +233,15 @@ def write_built(result: Analysis, built: dict[str, pa.Table], out: str | os.Path
 
         shutil.rmtree(old, ignore_errors=True)
     stage = temporary_folder(folder, ".staging-", ".tmp")
-    written = {f"{stem}.parquet" for stem in built}
+    written = result_names(built, all_cases, plots)
     try:
         if all_cases:
             store.write_stations(stage / "stations.parquet", result, durable, staged=True)
-            written.add("stations.parquet")
         store.write_tables(stage, built, durable, checked=True, staged=True)
         if plots:
             from envelope import plots as figures
 
             figures.draw_results(store.result_columns(built), stage / FIGURE, durable)
-            written.add(FIGURE)
         for item in sorted(stage.iterdir()):  # (the tables under their staged names)
             os.replace(item, folder / final_name(item.name))
         stage.rmdir()

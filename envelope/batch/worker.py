@@ -27,19 +27,7 @@ def _is_result(name: str) -> bool:
     return is_result_file(name)
 
 
-def _written_names(built: dict[str, object], all_cases: bool, plots: bool) -> list[str]:
-    """The files :func:`envelope.api.write_built` writes for these tables and options."""
-    from envelope.api import FIGURE
-
-    names = [f"{stem}.parquet" for stem in built]
-    if all_cases:
-        names.append("stations.parquet")
-    if plots:
-        names.append(FIGURE)
-    return names
-
-
-def _sizes(folder: Path, names: list[str]) -> dict[str, int]:
+def _sizes(folder: Path, names: set[str]) -> dict[str, int]:
     """The size in bytes of each file of ``names`` in ``folder``, by name, sorted (a
     file that is not there fails the beam: the manifest never lists a missing file)."""
     return {name: os.lstat(folder / name).st_size for name in sorted(names)}
@@ -166,8 +154,7 @@ def run_beam(task: Task, out: str, plots: bool, unsynced: list[Path] | None = No
             manifest = {
                 "beam": beam.id, "input_sha256": beam.input_sha256,
                 "version": engine_version(), "source": shown, "units": beam.units.name,
-                "plots": plots, "files": _sizes(folder, _written_names(built, all_cases,
-                                                                       plots)),
+                "plots": plots, "files": _sizes(folder, api.result_names(built, all_cases, plots)),
             }
             data = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
             write_atomic(folder / MANIFEST, lambda fh: fh.write(data), unsynced is None)
