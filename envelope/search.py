@@ -205,26 +205,25 @@ def _ab_scalar(f: Function, lo_a: np.ndarray, hi_a: np.ndarray, f_lo_a: np.ndarr
         f_c = f(np.array(x)).tolist()
         # a finished group keeps its bracket: its root no longer moves
         for i in (i for i in range(n) if step[i]):
-            _ab_move(i, c[i], f_c[i], lo, hi, f_lo, f_hi, stale)
+            lo[i], hi[i], f_lo[i], f_hi[i], stale[i] = _ab_move(
+                c[i], f_c[i], lo[i], hi[i], f_lo[i], f_hi[i], stale[i])
     return np.array(root, dtype=float)
 
 
-def _ab_move(i: int, c: float, f_c: float, lo: list[float], hi: list[float],
-             f_lo: list[float], f_hi: list[float], stale: list[int]) -> None:
-    """One bracket's move to its new point ``c`` (value ``f_c``), in place: the end of
-    the same sign moves, the other end's value is scaled where it is stale."""
+def _ab_move(c: float, f_c: float, lo: float, hi: float, f_lo: float, f_hi: float,
+             stale: int) -> tuple[float, float, float, float, int]:
+    """One bracket's move to its new point ``c`` (value ``f_c``): the end of the same
+    sign moves, the other end's value is scaled where it is stale; the new (lo, hi,
+    f_lo, f_hi, stale)."""
     if f_c > 0.0:
-        m = 1.0 - _divide(f_c, f_lo[i])
-        lo[i], f_lo[i] = c, f_c
-        if stale[i] > 0:
-            f_hi[i] = (m if m > 0.0 else 0.5) * f_hi[i]
-        stale[i] = 1
-    else:
-        m = 1.0 - _divide(f_c, f_hi[i])
-        hi[i], f_hi[i] = c, f_c
-        if stale[i] < 0:
-            f_lo[i] = (m if m > 0.0 else 0.5) * f_lo[i]
-        stale[i] = -1
+        m = 1.0 - _divide(f_c, f_lo)
+        if stale > 0:
+            f_hi = (m if m > 0.0 else 0.5) * f_hi
+        return c, hi, f_c, f_hi, 1
+    m = 1.0 - _divide(f_c, f_hi)
+    if stale < 0:
+        f_lo = (m if m > 0.0 else 0.5) * f_lo
+    return lo, c, f_lo, f_c, -1
 
 
 def _divide(a: float, b: float) -> float:
@@ -293,16 +292,5 @@ def _quartic_root(c: list[float], tol: float, root: float) -> float:
         if done:
             break
         f_u = c0 + u * (c1 + u * (c2 + u * (c3 + u * c4)))
-        if f_u > 0.0:
-            m = 1.0 - _divide(f_u, f_lo)
-            lo, f_lo = u, f_u
-            if stale > 0:
-                f_hi = (m if m > 0.0 else 0.5) * f_hi
-            stale = 1
-        else:
-            m = 1.0 - _divide(f_u, f_hi)
-            hi, f_hi = u, f_u
-            if stale < 0:
-                f_lo = (m if m > 0.0 else 0.5) * f_lo
-            stale = -1
+        lo, hi, f_lo, f_hi, stale = _ab_move(u, f_u, lo, hi, f_lo, f_hi, stale)
     return root
