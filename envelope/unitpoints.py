@@ -20,6 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from envelope import config
+from envelope.contracted import item_values
 from envelope.loading import DISTRIBUTED, POINT, UnitCases
 from envelope.loadterms import GAUSS_W, GAUSS_X
 from envelope.mesh import Mesh, locate
@@ -65,12 +66,9 @@ def element_items(units: UnitCases, n_elements: int) -> ElementItems:
     width = int(count.max(initial=0))
     elem = units.item_elem
     rank = np.arange(elem.size) - first[elem]
-    a, b, wa, wb = units.item_a, units.item_b, units.item_wa, units.item_wb
-    width_ab = b - a
-    slope = np.divide(wb - wa, width_ab, out=np.zeros_like(width_ab), where=width_ab > 0.0)
     kind = units.item_kind
     floats = np.zeros((n_elements, width, 5))
-    floats[elem, rank] = np.stack([a, b, wa, slope, units.item_p], axis=1)
+    floats[elem, rank] = item_values(units)
     unit = np.zeros((n_elements, width), dtype=np.int64)
     unit[elem, rank] = units.item_unit
     flags = np.zeros((3, n_elements, width), dtype=bool)
