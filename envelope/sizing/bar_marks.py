@@ -9,9 +9,13 @@ strength of the continuing bars.  Per support with hogging steel, the top bars a
 marks: a third of them (at least 2) carried past the point where the hogging envelope
 ends (ACI 318-19 9.7.3.8.4: by the largest of d, 12 db and ln/16), the rest cut off
 where the envelope falls below the strength of the carried bars.  Each cut-off point
-is found on the envelope itself (sampled, then bisected to
-:data:`envelope.config.DESIGN_XTOL` of the span) and extended by the code's rule
-(:mod:`envelope.sizing.cutoffs`).
+is found on the envelope itself and extended by the code's rule
+(:mod:`envelope.sizing.cutoffs`): every span the marks need is sampled in one
+evaluation of the envelope (both signs at once), and then the ends of every stretch
+are narrowed together to :data:`envelope.config.DESIGN_XTOL` of the span, each step
+of all of them one more evaluation (:func:`envelope.sizing.cutoffs.cross_together`).
+With moving loads every evaluation at new points is an influence-line solve: a
+handful of them instead of one per end and step.
 
 Positions ``start`` and ``end`` are from the left end of span 1 (m / ft); ``span`` is
 the span a bottom mark lies in, or the span left of the support for a top mark
@@ -42,16 +46,101 @@ BOTTOM_SHARE = {"continuous": 0.25, "simple": 1.0 / 3.0}
 TOP_SHARE = 1.0 / 3.0
 
 
-def _envelope(analysis: Analysis, span: int, sign: float):  # type: ignore[no-untyped-def]
-    """Demand function of one span: sign * the envelope (max for sagging, -min for
-    hogging) of the strength moment at any x_span (consistent units)."""
-    def f(x: np.ndarray) -> np.ndarray:
-        ext = envelope_at(analysis.solved, make_points(analysis.beam,
-                                                       np.full(x.size, span), x),
+class _Demand:
+    """The strength envelope of moment of a beam, sampled per span once and then asked
+    at any points of any spans together: sagging demand is the envelope's max, hogging
+    demand minus its min (consistent units)."""
+
+    def __init__(self, analysis: Analysis, spans: list[int], x_peak: dict[int, float]
+                 ) -> None:
+        self.analysis = analysis
+        lengths = [analysis.beam.spans[j].length for j in spans]
+        self.x = {j: np.unique(np.r_[np.linspace(0.0, L, SAMPLES + 1),
+                                     [x_peak[j]] if j in x_peak else []])
+                  for j, L in zip(spans, lengths, strict=True)}
+        span = np.concatenate([np.full(self.x[j].size, j, dtype=np.int64) for j in spans]
+                              + [np.zeros(0, dtype=np.int64)])
+        x = np.concatenate([self.x[j] for j in spans] + [np.zeros(0)])
+        mmax, mmin = self._at(span, x)
+        cuts = np.cumsum([0] + [self.x[j].size for j in spans])
+        self.sagging = {j: mmax[cuts[i]:cuts[i + 1]] for i, j in enumerate(spans)}
+        self.hogging = {j: -mmin[cuts[i]:cuts[i + 1]] for i, j in enumerate(spans)}
+
+    def _at(self, span: np.ndarray, x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Max and min of the envelope at points given in any order (asked in beam
+        order)."""
+        if span.size == 0:
+            return np.zeros(0), np.zeros(0)
+        order = np.lexsort((x, span))
+        ext = envelope_at(self.analysis.solved,
+                          make_points(self.analysis.beam, span[order], x[order]),
                           "moment", labels=False)
         assert ext is not None
-        return ext.max if sign > 0 else -ext.min
-    return f
+        mmax, mmin = np.empty(x.size), np.empty(x.size)
+        mmax[order], mmin[order] = ext.max, ext.min
+        return mmax, mmin
+
+    def at(self, span: np.ndarray, sign: np.ndarray, x: np.ndarray) -> np.ndarray:
+        """Demand at ``x`` in ``span`` of the sign ``sign`` (+1 sagging, -1 hogging)."""
+        mmax, mmin = self._at(span, x)
+        return np.where(sign > 0, mmax, -mmin)
+
+
+class _Runs:
+    """Stretches of spans where a demand exceeds a capacity, found together: each is
+    asked for (:meth:`add`), the ends of all of them are narrowed in lockstep
+    (:meth:`solve`: one envelope evaluation per step for every end), then read
+    (:meth:`ends`)."""
+
+    def __init__(self, demand: _Demand) -> None:
+        self.demand = demand
+        self.found: list[list[float]] = []
+        # per end to narrow: (run, slot, span, sign, inside x, beyond x, g inside,
+        # g beyond, capacity, tolerance)
+        self.brackets: list[tuple[int, int, int, float, float, float, float, float,
+                                  float, float]] = []
+
+    def add(self, span: int, sign: float, capacity: float, seed: int) -> int:
+        """Ask for the run around sample ``seed`` of ``span``'s sampled demand of the
+        sign ``sign`` above ``capacity``; its number for :meth:`ends`."""
+        x = self.demand.x[span]
+        m = self.demand.sagging[span] if sign > 0 else self.demand.hogging[span]
+        run = len(self.found)
+        ends = cutoffs.run_ends(m - capacity, seed)
+        if ends is None:
+            self.found.append([np.nan, np.nan])
+            return run
+        i0, i1 = ends
+        self.found.append([float(x[i0]), float(x[i1])])
+        tol = config.DESIGN_XTOL * (float(x[-1] - x[0]) or 1.0)
+        for slot, i, j, edge in ((0, i0, i0 - 1, 0), (1, i1, i1 + 1, x.size - 1)):
+            if i != edge:
+                self.brackets.append((run, slot, span, sign, float(x[i]), float(x[j]),
+                                      float(m[i]) - capacity, float(m[j]) - capacity,
+                                      capacity, tol))
+        return run
+
+    def solve(self) -> None:
+        """Narrow every end asked for to :data:`envelope.config.DESIGN_XTOL` of its
+        span (:func:`envelope.sizing.cutoffs.cross_together`)."""
+        if not self.brackets:
+            return
+        run, slot, span, sign, inside, outside, g_in, g_out, capacity, tol = (
+            np.array(v) for v in zip(*self.brackets, strict=True))
+        span = span.astype(np.int64)
+
+        def g(k: np.ndarray, c: np.ndarray) -> np.ndarray:
+            return self.demand.at(span[k], sign[k], c) - capacity[k]
+
+        roots = cutoffs.cross_together(inside, outside, g_in, g_out, g, tol)
+        for r, s, root in zip(run.tolist(), slot.tolist(), roots.tolist(), strict=True):
+            self.found[r][s] = root
+        self.brackets = []
+
+    def ends(self, run: int) -> tuple[float, float]:
+        """The two ends of run ``run`` (span-local; NaN, NaN where there is none)."""
+        a, b = self.found[run]
+        return a, b
 
 
 def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np.ndarray]:
@@ -115,27 +204,55 @@ def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np
         a_l = 0.45 * d * max(cot) if cot else d  # z (cot theta) / 2 with z = 0.9 d
         return a_l + lbd, lbd
 
+    # What to find: the bottom cut-offs of each span with bars to stop, the top
+    # stretches each side of each support with hogging steel.
+    bottom: list[tuple[int, tuple[int, str, float, float, float], int, float]] = []
     for j in range(n):
-        L = lengths[j]
         mid = 3 * j + 1
-        count, size, ab, d, db = group(mid)
+        bars = group(mid)
+        count = bars[0]
         if count == 0:
             continue
         continuous = any(0 < k < n for k in (j, j + 1))
         keep = count if count <= 2 else max(2, math.ceil(count * BOTTOM_SHARE[
             "continuous" if continuous else "simple"]))
+        bottom.append((j, bars, keep, float(sizing["x_span"][mid])))
+    top: list[tuple[int, tuple[int, str, float, float, float], int]] = []
+    for k in range(n + 1):
+        faces = [i for i in (3 * (k - 1) + 2 if k > 0 else None, 3 * k if k < n else None)
+                 if i is not None]
+        best = max(faces, key=lambda i: float(sizing["as_provided"][i]))
+        bars = group(best)
+        if bars[0] == 0:
+            continue
+        top.append((k, bars, bars[0] if bars[0] <= 2 else max(2, math.ceil(
+            bars[0] * TOP_SHARE))))
+    cut_spans = {j: x_peak for j, bars, keep, x_peak in bottom if keep < bars[0]}
+    sides = {k: [(j, at_left) for j, at_left in ((k - 1, False), (k, True)) if 0 <= j < n]
+             for k, _, _ in top}
+    sampled = sorted(set(cut_spans) | {j for s in sides.values() for j, _ in s})
+    demand = _Demand(analysis, sampled, cut_spans)
+    runs = _Runs(demand)
+    sag_run = {j: runs.add(j, 1.0, strength(keep * bars[2], bars[3], True),
+                           int(np.argmin(np.abs(demand.x[j] - cut_spans[j]))))
+               for j, bars, keep, _ in bottom if j in cut_spans}
+    hog_runs: dict[tuple[int, int], tuple[int, int]] = {}
+    for k, bars, keep in top:
+        _, _, ab, d, _ = bars
+        for j, at_left in sides[k]:
+            seed = 0 if at_left else demand.x[j].size - 1
+            scale = max(float(np.max(np.abs(demand.hogging[j]))), np.finfo(float).tiny)
+            hog_runs[k, j] = (runs.add(j, -1.0, config.ZERO_RTOL * scale, seed),
+                              runs.add(j, -1.0, strength(keep * ab, d, False), seed))
+    runs.solve()
+
+    for j, (count, size, _, d, db), keep, x_peak in bottom:
+        L = lengths[j]
         rows.append(_row(beam.id, j, f"B{j + 1}-1", "bottom", keep, size,
                          joint_x[j], joint_x[j] + L))
         if keep == count:
             continue
-        demand = _envelope(analysis, j, 1.0)
-        x = np.linspace(0.0, L, SAMPLES + 1)
-        x_peak = float(sizing["x_span"][mid])
-        x = np.unique(np.r_[x, x_peak])
-        m = demand(x)
-        seed = int(np.argmin(np.abs(x - x_peak)))
-        a, b = cutoffs.run_around(x, m, strength(keep * ab, d, True), seed, demand,
-                                  config.DESIGN_XTOL)
+        a, b = runs.ends(sag_run[j])
         if not np.isfinite(a):
             a = b = x_peak
         ext, ld = (v * to_c for v in extension(d, db, False, j))
@@ -144,29 +261,13 @@ def bar_marks(analysis: Analysis, sizing: dict[str, np.ndarray]) -> dict[str, np
         rows.append(_row(beam.id, j, f"B{j + 1}-2", "bottom", count - keep, size,
                          joint_x[j] + start, joint_x[j] + end))
 
-    for k in range(n + 1):
-        faces = [i for i in (3 * (k - 1) + 2 if k > 0 else None, 3 * k if k < n else None)
-                 if i is not None]
-        best = max(faces, key=lambda i: float(sizing["as_provided"][i]))
-        count, size, ab, d, db = group(best)
-        if count == 0:
-            continue
-        keep = count if count <= 2 else max(2, math.ceil(count * TOP_SHARE))
+    for k, (count, size, _, d, db), keep in top:
         ext, ld = (v * to_c for v in extension(d, db, True, min(k, n - 1)))
         pos: dict[str, list[float]] = {"keep": [], "cut": []}
-        for j, at_left in ((k - 1, False), (k, True)):  # span left of / right of joint k
-            if not 0 <= j < n:
-                continue
+        for j, at_left in sides[k]:  # span left of / right of joint k
             L = lengths[j]
-            demand = _envelope(analysis, j, -1.0)
-            x = np.linspace(0.0, L, SAMPLES + 1)
-            m = demand(x)
-            seed = 0 if at_left else x.size - 1
-            scale = max(float(np.max(np.abs(m))), np.finfo(float).tiny)
-            a0, b0 = cutoffs.run_around(x, m, config.ZERO_RTOL * scale, seed, demand,
-                                        config.DESIGN_XTOL)
-            a1, b1 = cutoffs.run_around(x, m, strength(keep * ab, d, False), seed, demand,
-                                        config.DESIGN_XTOL)
+            a0, b0 = runs.ends(hog_runs[k, j][0])
+            a1, b1 = runs.ends(hog_runs[k, j][1])
             ln = L - _half_width(beam, j) - _half_width(beam, j + 1)
             face = _half_width(beam, k)
             if at_left:

@@ -71,54 +71,101 @@ def anchorage_length_en(db: np.ndarray | float, fyk: float, fck: float,
     return np.maximum(lb_rqd, np.maximum(np.maximum(0.3 * lb_rqd, 10.0 * db), 100.0))
 
 
+def run_ends(demand: np.ndarray, seed: int) -> tuple[int, int] | None:
+    """First and last sample of the run of ``demand > 0`` (demand less capacity, sampled
+    in order) around sample ``seed``; None where the sample at ``seed`` is not above."""
+    above = demand > 0.0
+    if not above[seed]:
+        return None
+    i0 = seed
+    while i0 > 0 and above[i0 - 1]:
+        i0 -= 1
+    i1 = seed
+    while i1 < demand.size - 1 and above[i1 + 1]:
+        i1 += 1
+    return i0, i1
+
+
+def cross_together(inside: np.ndarray, outside: np.ndarray, f_in: np.ndarray,
+                   f_out: np.ndarray, refine: Callable[[np.ndarray, np.ndarray], np.ndarray],
+                   xtol: np.ndarray) -> np.ndarray:
+    """The roots of many brackets at once, each by regula falsi with the Illinois
+    modification (the end kept twice in a row has its value halved): bracket ``k`` holds
+    a root of a function g_k between ``inside[k]`` (g_k = ``f_in[k]`` > 0) and
+    ``outside[k]`` (g_k = ``f_out[k]`` <= 0), and is narrowed until it is at most
+    ``xtol[k]`` wide.  ``refine(k, c)`` gives g at abscissae ``c`` of brackets ``k``
+    (index arrays): every step of every open bracket in one call, so that a search
+    over many cut-off points costs as many calls as its longest bracket takes steps
+    (a few), not their sum.  Each bracket takes the same steps, in the same floating
+    point operations, as the bracket alone would (:func:`run_around` with one)."""
+    a = np.asarray(inside, dtype=float).copy()
+    b = np.asarray(outside, dtype=float).copy()
+    fa = np.asarray(f_in, dtype=float).copy()
+    fb = np.asarray(f_out, dtype=float).copy()
+    side = np.zeros(a.size, dtype=np.int8)
+    root = np.full(a.size, np.nan)
+    open_ = np.ones(a.size, dtype=bool)
+    for _ in range(100):
+        narrow = open_ & (np.abs(b - a) <= xtol)
+        root[narrow] = np.where(np.abs(fa[narrow]) <= np.abs(fb[narrow]), a[narrow],
+                                b[narrow])
+        open_ &= ~narrow
+        k = np.flatnonzero(open_)
+        if k.size == 0:
+            break
+        ak, bk, fak, fbk = a[k], b[k], fa[k], fb[k]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            c = np.where(fbk != fak, bk - fbk * (bk - ak) / (fbk - fak), 0.5 * (ak + bk))
+        outside_ab = ~((np.minimum(ak, bk) < c) & (c < np.maximum(ak, bk)))
+        c[outside_ab] = 0.5 * (ak + bk)[outside_ab]
+        fc = np.asarray(refine(k, c), dtype=float)
+        hit = fc == 0.0
+        root[k[hit]] = c[hit]
+        open_[k[hit]] = False
+        same = ~hit & ((fc > 0.0) == (fak > 0.0))
+        other = ~hit & ~same
+        ks, ko = k[same], k[other]
+        a[ks], fa[ks] = c[same], fc[same]
+        fb[ks[side[ks] == -1]] *= 0.5
+        side[ks] = -1
+        b[ko], fb[ko] = c[other], fc[other]
+        fa[ko[side[ko] == 1]] *= 0.5
+        side[ko] = 1
+    last = np.flatnonzero(open_)  # still open after 100 steps: the better end
+    root[last] = np.where(np.abs(fa[last]) <= np.abs(fb[last]), a[last], b[last])
+    return root
+
+
 def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
                refine: Callable[[np.ndarray], np.ndarray] | None = None,
                tol: float = 1e-9) -> tuple[float, float]:
     """The stretch around sample ``seed`` where ``demand`` (sampled at ``x``, sorted)
     stays above ``capacity``: its two ends, each bracketed by neighbouring samples and,
-    with ``refine`` (demand at any points), bisected to ``tol`` of the span, else
-    interpolated linearly.  NaN, NaN where the demand at ``seed`` is not above."""
-    above = demand > capacity
-    if not above[seed]:
+    with ``refine`` (demand at any points), narrowed to ``tol`` of the span by
+    :func:`cross_together`, else interpolated linearly.  NaN, NaN where the demand at
+    ``seed`` is not above."""
+    ends = run_ends(demand - capacity, seed)
+    if ends is None:
         return np.nan, np.nan
-    i0 = seed
-    while i0 > 0 and above[i0 - 1]:
-        i0 -= 1
-    i1 = seed
-    while i1 < x.size - 1 and above[i1 + 1]:
-        i1 += 1
+    i0, i1 = ends
     span = float(x[-1] - x[0]) or 1.0
-
-    def cross(inside: float, outside: float, v_in: float, v_out: float) -> float:
-        """Regula falsi (Illinois) on demand - capacity, which changes sign between
-        the samples: a few evaluations of a piecewise smooth envelope."""
+    found = [float(x[i0]), float(x[i1])]
+    # (which end, the sample inside the run, the sample beyond it)
+    brackets = [(slot, i, j) for slot, i, j, edge in ((0, i0, i0 - 1, 0),
+                                                       (1, i1, i1 + 1, x.size - 1))
+                if i != edge]
+    if brackets:
+        ins = np.array([i for _, i, _ in brackets])
+        out = np.array([j for _, _, j in brackets])
         if refine is None:
-            return inside + (capacity - v_in) / (v_out - v_in) * (outside - inside)
-        a, b = inside, outside
-        fa, fb = v_in - capacity, v_out - capacity
-        side = 0
-        for _ in range(100):
-            if abs(b - a) <= tol * span:
-                break
-            c = b - fb * (b - a) / (fb - fa) if fb != fa else 0.5 * (a + b)
-            if not min(a, b) < c < max(a, b):
-                c = 0.5 * (a + b)
-            fc = float(refine(np.array([c]))[0]) - capacity
-            if fc == 0.0:
-                return c
-            if (fc > 0.0) == (fa > 0.0):
-                a, fa = c, fc
-                if side == -1:
-                    fb *= 0.5
-                side = -1
-            else:
-                b, fb = c, fc
-                if side == 1:
-                    fa *= 0.5
-                side = 1
-        return a if abs(fa) <= abs(fb) else b
+            roots = x[ins] + (capacity - demand[ins]) / (demand[out] - demand[ins]) * (
+                x[out] - x[ins])
+        else:
+            def g(_k: np.ndarray, c: np.ndarray) -> np.ndarray:
+                return np.asarray(refine(c), dtype=float) - capacity
 
-    start = float(x[i0]) if i0 == 0 else cross(x[i0], x[i0 - 1], demand[i0], demand[i0 - 1])
-    end = float(x[i1]) if i1 == x.size - 1 else cross(x[i1], x[i1 + 1], demand[i1],
-                                                        demand[i1 + 1])
-    return start, end
+            roots = cross_together(x[ins], x[out], demand[ins] - capacity,
+                                   demand[out] - capacity, g, np.full(ins.size, tol * span))
+        for (slot, _, _), r in zip(brackets, roots, strict=True):
+            found[slot] = float(r)
+    return found[0], found[1]
