@@ -27,21 +27,32 @@ drawings pixel for pixel.
 from __future__ import annotations
 
 from collections.abc import Callable, Hashable
+from math import isfinite
 from numbers import Real
 from typing import Any
 from weakref import WeakKeyDictionary
 
+import matplotlib as mpl
 import matplotlib.colors as mcolors
 import numpy as np
 from matplotlib import cbook
+from matplotlib._path import affine_transform  # type: ignore[attr-defined]
 from matplotlib.artist import Artist
+from matplotlib.backends.backend_agg import RendererAgg
 from matplotlib.collections import FillBetweenPolyCollection, LineCollection
 from matplotlib.lines import Line2D
 from matplotlib.patches import FancyArrowPatch, Polygon, Rectangle
 from matplotlib.path import Path
 from matplotlib.transforms import Affine2D, Bbox
 
-from envelope.glyphs import KeptText, kept_layout
+from envelope.glyphs import (
+    _GLYPH_API,
+    CachedTextRenderer,
+    KeptText,
+    _font_key,
+    _hinting,
+    kept_layout,
+)
 
 Item = tuple[Callable[..., None], tuple[Any, ...]]
 
@@ -239,6 +250,152 @@ class Panel:
 
 
 # -------------------------------------------------------------------- the drawing
+#
+# What a drawing works out per style (a graphics context, a transform's matrix, a
+# marker's path) is worked out once per drawing of the figure and kept with the
+# template (or text) it belongs to, known by the renderer's pass token (a new one at
+# each clear of the canvas: :class:`envelope.glyphs.CachedTextRenderer`); another
+# renderer has no token and works it out at each item.  Each item then makes only
+# its own path (or position) and issues the same drawing calls as matplotlib.
+
+
+def _exact_affine() -> bool:
+    """Whether ``(a * x + c * y) + e`` in Python floats is matplotlib's affine
+    transform of a point bit for bit here (its C loop computes exactly that; a compiler
+    fusing the multiply and add would not)."""
+    rng = np.random.default_rng(11)
+    matrix = np.vstack([rng.standard_normal((2, 3)) * [[3e2, 7e-3, 1e3]], [0.0, 0.0, 1.0]])
+    points = rng.standard_normal((256, 2)) * 1e4
+    points[::7] *= 1e-9
+    done = affine_transform(points, matrix)
+    (a, c, e), (b, d, f) = matrix[:2].tolist()
+    for (x, y), (u, v) in zip(points.tolist(), done.tolist(), strict=True):
+        if (a * x + c * y) + e != u or (b * x + d * y) + f != v:
+            return False
+    return True
+
+
+#: Positions are transformed in Python floats where that is matplotlib's arithmetic.
+_EXACT_AFFINE = _exact_affine()
+
+
+def _matrix(transform: Any) -> tuple[float, ...] | None:
+    """An affine transform's matrix as six floats (a, c, e, b, d, f), for
+    :func:`_apply`; None for a transform that is not affine (or where Python floats
+    are not matplotlib's arithmetic)."""
+    if not _EXACT_AFFINE or not transform.is_affine:
+        return None
+    (a, c, e), (b, d, f) = transform.get_affine().get_matrix()[:2].tolist()
+    return a, c, e, b, d, f
+
+
+def _apply(transform: Any, matrix: tuple[float, ...] | None, x: float, y: float
+           ) -> tuple[float, float]:
+    """``transform.transform((x, y))``, from its matrix where given (the same floats)."""
+    if matrix is None:
+        px, py = transform.transform((x, y))
+        return float(px), float(py)
+    a, c, e, b, d, f = matrix
+    return (a * x + c * y) + e, (b * x + d * y) + f
+
+
+def _prepared(renderer: Any, owner: Any, make: Callable[[Any, Any], Any]) -> Any:
+    """``make(renderer, owner)``, kept with ``owner`` for the rest of this drawing."""
+    token = getattr(renderer, "pass_token", None)
+    if token is None:
+        return make(renderer, owner)
+    kept = owner.__dict__.get("_envelope_prepared")
+    if kept is not None and kept[0] is token:
+        return kept[1]
+    state = make(renderer, owner)
+    owner._envelope_prepared = (token, state)
+    return state
+
+
+def _plan_key(renderer: Any) -> Any:
+    """What a template's plan depends on beyond its style: the kind of renderer, its
+    resolution and the rc settings read in drawing; None for a renderer without pass
+    tokens (nothing kept)."""
+    token = getattr(renderer, "pass_token", None)
+    if token is None:
+        return None
+    kept = renderer.__dict__.get("_envelope_plan_key")
+    if kept is not None and kept[0] is token:
+        return kept[1]
+    rc = mpl.rcParams
+    key = (type(renderer), renderer.dpi, rc["path.simplify"], rc["path.simplify_threshold"],
+           rc["agg.path.chunksize"], rc["hatch.linewidth"], rc["text.hinting"],
+           rc["text.hinting_factor"])
+    renderer._envelope_plan_key = (token, key)
+    return key
+
+
+def _planned(renderer: Any, template: Any, make: Callable[[Any, Any], Any]) -> Any:
+    """``make(renderer, template)`` for a template of the display lists (its style is
+    set once, only its data change), kept with it across drawings while the renderer
+    and the rc settings read in drawing stay the same."""
+    key = _plan_key(renderer)
+    if key is None:
+        return make(renderer, template)
+    kept = template.__dict__.get("_envelope_plan")
+    if kept is not None and kept[0] == key:
+        return kept[1]
+    state = make(renderer, template)
+    template._envelope_plan = (key, state)
+    return state
+
+
+def _affine(renderer: Any, transform: Any, kind: str) -> Any:
+    """``transform.get_affine().frozen()`` ("frozen affine"), ``get_affine()``
+    ("affine"), ``frozen()`` ("frozen") or its matrix for :func:`_apply` ("matrix"),
+    worked out once per drawing (the view and the axes' place are set before it)."""
+    token = getattr(renderer, "pass_token", None)
+    kept: tuple[object, dict[str, Any]] | None = \
+        transform.__dict__.get("_envelope_affines") if token is not None else None
+    if kept is None or kept[0] is not token:
+        kept = (token, {})
+        if token is not None:
+            transform._envelope_affines = kept
+    hit = kept[1].get(kind)
+    if hit is None:
+        if kind == "frozen affine":
+            hit = transform.get_affine().frozen()
+        elif kind == "affine":
+            hit = transform.get_affine()
+        elif kind == "frozen":
+            hit = transform.frozen()
+        else:
+            hit = (_matrix(transform),)
+        kept[1][kind] = hit
+    return hit
+
+
+def _direct(renderer: Any) -> bool:
+    """Whether ``renderer.draw_path`` passes a path straight to Agg's own (no chunking:
+    ``agg.path.chunksize`` 100 or less), which may then be called instead."""
+    return (isinstance(renderer, RendererAgg)
+            and type(renderer).draw_path is RendererAgg.draw_path
+            and not mpl.rcParams["agg.path.chunksize"] > 100)
+
+
+def _new_path(vertices: np.ndarray, codes: np.ndarray | None, steps: int,
+              simplify: tuple[float, bool]) -> Path:
+    """``Path(vertices, codes, steps)`` of float (N, 2) vertices without NaN masks,
+    without its checks (``simplify``: the rc settings' threshold and switch)."""
+    path: Any = Path.__new__(Path)
+    path._vertices = vertices
+    path._codes = codes
+    path._interpolation_steps = steps
+    threshold, on = simplify
+    path._simplify_threshold = threshold
+    path._should_simplify = (threshold > 0 and on and len(vertices) >= 128
+                             and (codes is None or bool(np.all(codes <= Path.LINETO))))
+    path._readonly = False
+    return path  # type: ignore[no-any-return]
+
+
+def _simplify() -> tuple[float, bool]:
+    return mpl.rcParams["path.simplify_threshold"], mpl.rcParams["path.simplify"]
 
 
 def _draw_artist(renderer: Any, artist: Artist) -> None:
@@ -250,19 +407,19 @@ def _draw_artist(renderer: Any, artist: Artist) -> None:
 _SHORT: int = Line2D._subslice_optim_min_size  # type: ignore[attr-defined]
 
 
-def draw_line(renderer: Any, line: Any, x: np.ndarray, y: np.ndarray) -> None:
-    """``Line2D.draw`` of ``line`` with the data (x, y): the same path, styles and calls
-    (a solid or dashed line, then its markers), without the artist's bookkeeping."""
-    if (x.size > _SHORT or line._drawstyle != "default" or line.get_path_effects()
+def _line_plan(renderer: Any, line: Any) -> Any:
+    """What ``Line2D.draw`` sets up for ``line``'s style: (transform, direct, the
+    line's gc or None, (gc, marker path, its transform, alt path, alt transform, face,
+    alt face) or None, interpolation steps, simplification); None where the template
+    draws (drawstyles, path effects, sketches, gap colours, markevery, a transform
+    that is not affine)."""
+    transform = line.get_transform()
+    if (line._drawstyle != "default" or line.get_path_effects()
             or line.get_sketch_params() is not None or line._gapcolor is not None
-            or line.get_markevery() is not None):
-        line.set_data(x, y)
-        line.draw(renderer)
-        return
-    path = Path(np.column_stack((x, y)),
-                _interpolation_steps=line.get_path()._interpolation_steps)
-    affine = line.get_transform().get_affine().frozen()
-    if line._lineStyles[line._linestyle] != "_draw_nothing" and x.size:
+            or line.get_markevery() is not None or not transform.is_affine):
+        return None
+    stroke = None
+    if line._lineStyles[line._linestyle] != "_draw_nothing":
         gc = renderer.new_gc()
         line._set_gc_clip(gc)
         gc.set_url(line.get_url())
@@ -277,10 +434,10 @@ def draw_line(renderer: Any, line: Any, x: np.ndarray, y: np.ndarray) -> None:
             gc.set_dashes(*line._dash_pattern)
         else:
             gc.set_dashes(0, None)
-        renderer.draw_path(gc, path, affine)
-        gc.restore()
+        stroke = gc
+    markers = None
     marker = line._marker
-    if marker and line._markersize > 0 and x.size:
+    if marker and line._markersize > 0:
         gc = renderer.new_gc()
         line._set_gc_clip(gc)
         gc.set_url(line.get_url())
@@ -305,12 +462,116 @@ def draw_line(renderer: Any, line: Any, x: np.ndarray, y: np.ndarray) -> None:
             gc.set_linewidth(0)
         else:
             marker_trans = marker_trans.scale(w)
-        renderer.draw_markers(gc, marker.get_path(), marker_trans, path, affine, fc_rgba)
         alt = marker.get_alt_path()
+        markers = (gc, marker.get_path(), marker_trans, alt,
+                   marker.get_alt_transform().scale(w) if alt else None, fc_rgba, fcalt_rgba)
+    return (transform, _direct(renderer), stroke, markers,
+            line.get_path()._interpolation_steps, _simplify())
+
+
+def draw_line(renderer: Any, line: Any, x: np.ndarray, y: np.ndarray) -> None:
+    """``Line2D.draw`` of ``line`` with the data (x, y): the same path, styles and calls
+    (a solid or dashed line, then its markers), without the artist's bookkeeping."""
+    plan = _planned(renderer, line, _line_plan) if x.size <= _SHORT else None
+    if plan is None:
+        line.set_data(x, y)
+        line.draw(renderer)
+        return
+    if not x.size:
+        return
+    transform, direct, stroke, markers, steps, simplify = plan
+    affine = _affine(renderer, transform, "frozen affine")
+    path = _new_path(np.column_stack((x, y)), None, steps, simplify)
+    if stroke is not None:
+        (renderer._renderer if direct else renderer).draw_path(stroke, path, affine)
+    if markers is not None:
+        gc, marker_path, marker_trans, alt, alt_trans, fc_rgba, fcalt_rgba = markers
+        renderer.draw_markers(gc, marker_path, marker_trans, path, affine, fc_rgba)
         if alt:
-            renderer.draw_markers(gc, alt, marker.get_alt_transform().scale(w), path,
-                                  affine, fcalt_rgba)
-        gc.restore()
+            renderer.draw_markers(gc, alt, alt_trans, path, affine, fcalt_rgba)
+
+
+def _collection_plan(renderer: Any, drawn: Any) -> Any:
+    """What ``Collection.draw`` sets up for ``drawn``'s style: (gc, transform, offset
+    transform, a single path's gc or None); None where the
+    template draws (hatches, sketches, path effects, gap colours, units, scalar
+    mapping, transforms that are not affine)."""
+    if (drawn._hatch or drawn.get_sketch_params() is not None or drawn.get_path_effects()
+            or drawn._gapcolor is not None or drawn.have_units() or drawn._A is not None
+            or not drawn.get_transform().is_affine
+            or not drawn.get_offset_transform().is_affine or len(drawn.get_transforms())):
+        return None
+    gc = renderer.new_gc()
+    drawn._set_gc_clip(gc)
+    gc.set_snap(drawn.get_snap())
+    if drawn._joinstyle:
+        gc.set_joinstyle(drawn._joinstyle)
+    if drawn._capstyle:
+        gc.set_capstyle(drawn._capstyle)
+    facecolors, edgecolors = drawn.get_facecolor(), drawn.get_edgecolor()
+    single = None
+    if (len(facecolors) == 1 and len(edgecolors) == 1 and len(drawn._linewidths) == 1
+            and all(ls[1] is None for ls in drawn._linestyles)
+            and len(drawn._antialiaseds) == 1 and len(drawn._urls) == 1):
+        single = renderer.new_gc()
+        drawn._set_gc_clip(single)
+        single.set_snap(drawn.get_snap())
+        if drawn._joinstyle:
+            single.set_joinstyle(drawn._joinstyle)
+        if drawn._capstyle:
+            single.set_capstyle(drawn._capstyle)
+        single.set_foreground(tuple(edgecolors[0]), isRGBA=True)
+        single.set_linewidth(drawn._linewidths[0])
+        single.set_dashes(*drawn._linestyles[0])
+        single.set_antialiased(drawn._antialiaseds[0])
+        single.set_url(drawn._urls[0])
+    return gc, drawn.get_transform(), drawn.get_offset_transform(), single
+
+
+def _draw_paths(renderer: Any, drawn: Any, paths: list[Path], offsets: np.ndarray) -> None:
+    """``Collection.draw`` of ``drawn`` (its plan kept per drawing) with these paths and
+    offsets: one path of one style pasted by ``draw_markers`` where it fits in the
+    figure, else ``draw_path_collection``."""
+    plan = _planned(renderer, drawn, _collection_plan)
+    if plan is None or not drawn.get_visible() or np.ma.isMaskedArray(offsets):
+        drawn.draw(renderer)
+        return
+    if not len(offsets):
+        return
+    gc, transform, offset_transform, single = plan
+    frozen = _affine(renderer, transform, "frozen")
+    offset_trf = _affine(renderer, offset_transform, "affine")
+    if single is not None and len(paths) == 1:
+        fig = drawn.get_figure(root=True)
+        width, height = _extent(paths[0], transform, _affine(renderer, transform, "affine"))
+        if width < fig.bbox.width and height < fig.bbox.height:
+            renderer.draw_markers(single, paths[0], frozen, Path(offsets), offset_trf,
+                                  tuple(drawn.get_facecolor()[0]))
+            return
+    try:
+        renderer.draw_path_collection(
+            gc, frozen, paths, drawn.get_transforms(), offsets, offset_trf,
+            drawn.get_facecolor(), drawn.get_edgecolor(), drawn._linewidths,
+            drawn._linestyles, drawn._antialiaseds, drawn._urls, "screen",
+            hatchcolors=drawn.get_hatchcolor())
+    except TypeError:  # a renderer without hatch colours: as the collection draws
+        drawn.draw(renderer)
+
+
+def _extent(path: Path, transform: Any, affine: Any) -> tuple[float, float]:
+    """The width and height of ``path.get_extents(transform)`` (an affine transform):
+    of its end points, transformed, but those of curves and closing codes."""
+    codes = path.codes
+    if codes is not None and np.isin(codes, (Path.CURVE3, Path.CURVE4)).any():
+        box = path.get_extents(transform)
+        return box.width, box.height
+    points = affine.transform(path.vertices)
+    if codes is not None:
+        points = points[(codes == Path.MOVETO) | (codes == Path.LINETO)]
+    if not len(points):
+        return -np.inf, -np.inf
+    low, high = points.min(axis=0), points.max(axis=0)
+    return high[0] - low[0], high[1] - low[1]
 
 
 def _draw_collection(renderer: Any, drawn: Any, paths: Any, offsets: Any) -> None:
@@ -319,19 +580,18 @@ def _draw_collection(renderer: Any, drawn: Any, paths: Any, offsets: Any) -> Non
     else:
         drawn.set_verts(paths)
     drawn.set_offsets(offsets)
-    drawn.draw(renderer)
+    _draw_paths(renderer, drawn, drawn.get_paths(), drawn.get_offsets())
 
 
-def _draw_polygon(renderer: Any, patch: Any, xy: np.ndarray) -> None:
-    """``Patch.draw`` of the polygon ``xy`` in ``patch``'s style (a plain patch: no
-    hatch, sketch, path effects or gap colour; those are drawn by the patch)."""
-    patch.set_xy(xy)
+def _polygon_plan(renderer: Any, patch: Any) -> Any:
+    """What ``Patch.draw`` sets up for a plain polygon in ``patch``'s style: (gc, transform,
+    face, direct, simplification); None where the patch draws (hatches, sketches,
+    path effects, gap colours, a transform that is not affine)."""
+    transform = patch.get_transform()
     if (patch._hatch or patch.get_sketch_params() is not None or patch.get_path_effects()
-            or patch._gapcolor is not None or not patch.get_visible()):
-        patch.draw(renderer)
-        return
-    # a polygon's own transform is the identity: its path drawn through the axes'
-    affine = patch.get_transform().get_affine()
+            or patch._gapcolor is not None or not patch.get_visible()
+            or not transform.is_affine):
+        return None
     gc = renderer.new_gc()
     lw = patch._linewidth
     if patch._edgecolor[3] == 0 or patch._linestyle == "None":
@@ -349,9 +609,42 @@ def _draw_polygon(renderer: Any, patch: Any, xy: np.ndarray) -> None:
         gc.set_dashes(*patch._dash_pattern)
     else:
         gc.set_dashes(0, None)
-    renderer.draw_path(gc, patch.get_path(), affine,
-                       patch._facecolor if patch._facecolor[3] else None)
-    gc.restore()
+    face = patch._facecolor if patch._facecolor[3] else None
+    return gc, transform, face, _direct(renderer), _simplify()
+
+
+#: Path codes of a closed polygon of n vertices (the last closing it), by n.
+_CLOSED_CODES: dict[int, np.ndarray] = {}
+
+
+def _closed_codes(n: int) -> np.ndarray:
+    codes = _CLOSED_CODES.get(n)
+    if codes is None:
+        codes = np.full(n, Path.LINETO, dtype=Path.code_type)
+        codes[0] = Path.MOVETO
+        codes[-1] = Path.CLOSEPOLY
+        codes.flags.writeable = False
+        if len(_CLOSED_CODES) < 64:
+            _CLOSED_CODES[n] = codes
+    return codes
+
+
+def _draw_polygon(renderer: Any, patch: Any, xy: np.ndarray) -> None:
+    """``Patch.draw`` of the polygon ``xy`` in ``patch``'s style (a plain patch: no
+    hatch, sketch, path effects or gap colour; those are drawn by the patch)."""
+    plan = _planned(renderer, patch, _polygon_plan) if patch._closed else None
+    if plan is None or len(xy) < 2:
+        patch.set_xy(xy)
+        patch.draw(renderer)
+        return
+    gc, transform, face, direct, simplify = plan
+    affine = _affine(renderer, transform, "affine")
+    # Polygon.set_xy: closed by a copy of the first vertex unless the last is one
+    if (xy[0] != xy[-1]).any():
+        xy = np.concatenate([xy, xy[:1]])
+    # a polygon's own transform is the identity: its path drawn through the axes'
+    (renderer._renderer if direct else renderer).draw_path(
+        gc, _new_path(xy, _closed_codes(len(xy)), 1, simplify), affine, face)
 
 
 def _draw_rectangle(renderer: Any, patch: Rectangle, xy: tuple[float, float],
@@ -369,7 +662,7 @@ def _draw_fill(renderer: Any, fill: Any, x: np.ndarray, y1: np.ndarray,
         fill.set_verts(fill._make_verts(x, y1, y2, None))
     else:
         fill.set_data(x, y1, y2)
-    fill.draw(renderer)
+    _draw_paths(renderer, fill, fill.get_paths(), fill.get_offsets())
 
 
 def _draw_arrow(renderer: Any, ax: Any, patch: FancyArrowPatch, xy: tuple[float, float],
@@ -384,18 +677,34 @@ def _draw_arrow(renderer: Any, ax: Any, patch: FancyArrowPatch, xy: tuple[float,
     patch.draw(renderer)
 
 
-def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> Bbox | None:
-    """``Text.draw`` of ``text`` at (posx, posy) pixels (its layout kept); its extent
-    there, as ``Text.get_window_extent`` gives it (None where nothing is drawn)."""
-    if not (np.isfinite(posx) and np.isfinite(posy)):
-        return None
-    lines = [text._preprocess_math(line) for line in text.get_text().split("\n")]
-    if (text._bbox_patch or text.get_path_effects() or text.get_usetex()
-            or any(math for _, math in lines)):
-        text.draw(renderer)  # a box, path effects, TeX or math: as matplotlib draws it
-        return text.get_window_extent(renderer)
-    bbox, info, _ = kept_layout(text, renderer)
-    canvash = renderer.get_canvas_width_height()[1]
+class _TextPlan:
+    """What ``Text.draw`` sets up for a text's style (see :func:`_text_plan`)."""
+
+    __slots__ = ("angle", "fkey", "flags", "gc", "glyphs", "layouts", "plain", "prop",
+                 "transform", "turn")
+
+    angle: float              # the text's rotation (degrees)
+    fkey: tuple[Any, ...]     # its font as a key (envelope.glyphs)
+    flags: Any                # the hinting flags of the rc settings
+    gc: Any                   # its graphics context, as Text.draw sets it up
+    glyphs: bool              # its lines drawn from cached glyphs straight
+    layouts: dict[str, Any]   # string -> (extent, lines), while the style stays
+    plain: bool               # no box, path effects or TeX
+    prop: Any                 # its font properties
+    transform: Any            # its transform
+    turn: float               # its rotation in [0, 360)
+
+
+#: The layouts kept per text (string -> extent and lines), at most this many strings.
+_TEXT_STRINGS = 512
+
+
+def _text_plan(renderer: Any, text: Any) -> _TextPlan:
+    """The graphics context, font, angle and transform matrix of ``text``'s style, and
+    its layouts per string (kept with the text while its style and the resolution
+    stay the same: what :func:`envelope.glyphs.kept_layout` keys them by)."""
+    plan = _TextPlan()
+    plan.plain = not (text._bbox_patch or text.get_path_effects() or text.get_usetex())
     gc = renderer.new_gc()
     gc.set_foreground(mcolors.to_rgba(text.get_color()), isRGBA=True)
     gc.set_alpha(text.get_alpha())
@@ -403,32 +712,102 @@ def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float) -> Bbox |
     gc.set_antialiased(text._antialiased)
     gc.set_snap(text.get_snap())
     text._set_gc_clip(gc)
-    angle = text.get_rotation()
-    prop = text._fontproperties
-    mtext = text if len(info) == 1 else None
-    for (clean, _), (_, _, (x, y)) in zip(lines, info, strict=True):
-        renderer.draw_text(gc, x + posx, canvash - (y + posy), clean, prop, angle,
-                           ismath=False, mtext=mtext)
-    gc.restore()
+    plan.gc = gc
+    plan.angle = text.get_rotation()
+    plan.prop = text._fontproperties
+    plan.transform = text.get_transform()
+    plan.turn = plan.angle % 360
+    plan.fkey = _font_key(plan.prop)
+    plan.flags = _hinting()
+    # the glyph lines drawn straight where CachedTextRenderer.draw_text would
+    plan.glyphs = (type(renderer) is CachedTextRenderer and _GLYPH_API
+                   and plan.turn in (0, 90) and bool(gc.get_antialiased())
+                   and text.get_fontfeatures() is None and text.get_language() is None)
+    style = (type(renderer), plan.fkey, text._horizontalalignment,
+             text._verticalalignment, text._multialignment, plan.angle,
+             text.get_rotation_mode(), text._linespacing, text.get_usetex(),
+             text._parse_math, text.get_wrap(), renderer.dpi,
+             text.get_figure(root=True).dpi, plan.flags)
+    kept = text.__dict__.get("_envelope_layouts")
+    if kept is None or kept[0] != style:
+        kept = text._envelope_layouts = (style, {})
+    plan.layouts = kept[1]
+    return plan
+
+
+def _lines_of(renderer: Any, text: Any, plan: _TextPlan, s: str) -> Any:
+    """(extent at the origin, ((line, x, y), ...)) of ``text`` showing ``s`` (its
+    text, set), kept per string; None where a line is math (``Text.draw`` draws)."""
+    layouts = plan.layouts
+    hit = layouts.get(s, False)
+    if hit is not False:
+        return hit
+    lines = [text._preprocess_math(line) for line in s.split("\n")]
+    if any(math for _, math in lines):
+        hit = None
+    else:
+        bbox, info, _ = kept_layout(text, renderer)
+        hit = (bbox, tuple((clean, x, y) for (clean, _), (_, _, (x, y))
+                           in zip(lines, info, strict=True)))
+    if len(layouts) >= _TEXT_STRINGS:
+        layouts.clear()
+    layouts[s] = hit
+    return hit
+
+
+def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float,
+                   plan: _TextPlan | None = None) -> Bbox | None:
+    """``Text.draw`` of ``text`` at (posx, posy) pixels (its layout kept); its extent
+    there, as ``Text.get_window_extent`` gives it (None where nothing is drawn)."""
+    if not (isfinite(posx) and isfinite(posy)):
+        return None
+    if plan is None:
+        plan = _planned(renderer, text, _text_plan)
+    layout = _lines_of(renderer, text, plan, text.get_text()) if plan.plain else None
+    if layout is None:
+        text.draw(renderer)  # a box, path effects, TeX or math: as matplotlib draws it
+        return text.get_window_extent(renderer)
+    bbox, lines = layout
+    gc, canvash = plan.gc, renderer.get_canvas_width_height()[1]
+    if plan.glyphs:
+        draw_line = renderer.draw_glyph_line
+        for clean, x, y in lines:
+            draw_line(gc, x + posx, canvash - (y + posy), clean, plan.prop, plan.angle,
+                      plan.turn, plan.fkey, plan.flags, text if len(lines) == 1 else None)
+    else:
+        mtext = text if len(lines) == 1 else None
+        for clean, x, y in lines:
+            renderer.draw_text(gc, x + posx, canvash - (y + posy), clean, plan.prop,
+                               plan.angle, ismath=False, mtext=mtext)
     return bbox.translated(posx, posy)
 
 
-def draw_text(renderer: Any, text: Any) -> Bbox | None:
+def draw_text(renderer: Any, text: Any, fixed: bool = False) -> Bbox | None:
     """``Text.draw`` of ``text`` as it stands (position, string, style): the same
     ``draw_text`` calls, its layout kept; its extent (pixels), or None where nothing is
-    drawn.  A text with a box, path effects, TeX or math is drawn by matplotlib."""
+    drawn.  A text with a box, path effects, TeX or math is drawn by matplotlib.
+    ``fixed``: the text's transform stays the same for the rest of the drawing (its
+    matrix is kept with the text's style)."""
     if not text.get_visible() or not text.get_text():
         return None
-    posx, posy = text.get_transform().transform((float(text._x), float(text._y)))
-    return _draw_lines_of(renderer, text, posx, posy)
+    plan = _prepared(renderer, text, _text_plan)
+    x, y = float(text._x), float(text._y)
+    transform = text.get_transform()
+    if fixed:
+        posx, posy = _apply(transform, _affine(renderer, transform, "matrix")[0], x, y)
+    else:
+        posx, posy = _apply(transform, None, x, y)
+    return _draw_lines_of(renderer, text, posx, posy, plan)
 
 
 def _draw_text(renderer: Any, text: Any, x: float, y: float, s: str) -> None:
     if not s:
         return
     text.set_text(s)
-    posx, posy = text.get_transform().transform((x, y))
-    _draw_lines_of(renderer, text, posx, posy)
+    plan = _planned(renderer, text, _text_plan)
+    transform = plan.transform
+    posx, posy = _apply(transform, _affine(renderer, transform, "matrix")[0], x, y)
+    _draw_lines_of(renderer, text, posx, posy, plan)
 
 
 def _draw_label(renderer: Any, ax: Any, text: Any, xy: tuple[float, float],
@@ -436,10 +815,18 @@ def _draw_label(renderer: Any, ax: Any, text: Any, xy: tuple[float, float],
     if not s:
         return
     text.set_text(s)
-    anchor = ax.transData.transform((float(xy[0]), float(xy[1])))
-    dpi = ax.get_figure(root=True).dpi
-    posx, posy = Affine2D().scale(dpi / 72).translate(*anchor).transform(offset)
-    _draw_lines_of(renderer, text, posx, posy)
+    (matrix,) = _affine(renderer, ax.transData, "matrix")
+    scale = ax.get_figure(root=True).dpi / 72
+    ax_, ay_ = _apply(ax.transData, matrix, float(xy[0]), float(xy[1]))
+    ox, oy = float(offset[0]), float(offset[1])
+    if matrix is None or not _EXACT_AFFINE:
+        posx, posy = Affine2D().scale(scale).translate(ax_, ay_).transform((ox, oy))
+    else:
+        # Affine2D().scale(scale).translate(*anchor).transform(offset): the same floats
+        # (the matrix's zeros scaled, the translation added to them)
+        posx = (scale * ox + 0.0 * oy) + (0.0 + ax_)
+        posy = (0.0 * ox + scale * oy) + (0.0 + ay_)
+    _draw_lines_of(renderer, text, float(posx), float(posy))
 
 
 #: The display lists of each axes drawn the fast way.

@@ -24,6 +24,7 @@ and style on this canvas.
 
 from __future__ import annotations
 
+import itertools
 import os
 from typing import Any
 
@@ -101,8 +102,26 @@ def _bounded(cache: dict[_Key, Any]) -> dict[_Key, Any]:
     return cache
 
 
+_SERIALS = itertools.count()
+
+
 class CachedTextRenderer(RendererAgg):
-    """The Agg renderer with glyphs, layouts and extents kept across figures."""
+    """The Agg renderer with glyphs, layouts and extents kept across figures.
+
+    ``pass_token`` is a new object at each :meth:`clear` (each drawing of the figure on
+    the canvas): what the figure's fast drawing works out once per drawing (a style's
+    graphics context, a panel's transform) is kept with it (:mod:`envelope.drawlist`)."""
+
+    pass_token: object = None
+
+    def __init__(self, width: float, height: float, dpi: float) -> None:
+        super().__init__(width, height, dpi)
+        self.serial = next(_SERIALS)  # (a renderer's id may be a later renderer's)
+
+    def clear(self) -> None:
+        """Clear the canvas: a new drawing, with a new :attr:`pass_token`."""
+        super().clear()
+        self.pass_token = object()
 
     def _font(self, prop: Any, fkey: _Key, sized: bool = True) -> Any:
         """The FT2Font matplotlib chooses for ``prop``, set to its size when ``sized``."""
@@ -281,8 +300,15 @@ class CachedTextRenderer(RendererAgg):
                                            or mtext.get_language() is not None))):
             super().draw_text(gc, x, y, s, prop, angle, ismath, mtext)
             return
-        flags = _hinting()
-        fkey = _font_key(prop)
+        self.draw_glyph_line(gc, x, y, s, prop, angle, turn, _font_key(prop), _hinting(),
+                             mtext)
+
+    def draw_glyph_line(self, gc: Any, x: float, y: float, s: str, prop: Any,
+                        angle: float, turn: float, fkey: _Key, flags: Any,
+                        mtext: Any = None) -> None:
+        """:meth:`draw_text` of a line it draws from cached glyphs (level or upright,
+        not math, antialiased, no font features: the caller has checked), the font's
+        key and the hinting flags given."""
         # the origin in 1/64 px along and across the line (FreeType's y upwards), kept
         # to whole position steps; an upright line is laid out level with the canvas
         # turned a quarter clockwise (along = canvas up, across = canvas left)
@@ -291,7 +317,7 @@ class CachedTextRenderer(RendererAgg):
         oy, fy = divmod(round(round(64 * across) / _STEP) * _STEP, 64)
         line = self._line(s, prop, fkey, flags, fx, fy)
         if line is None:
-            super().draw_text(gc, x, y, s, prop, angle, ismath, mtext)
+            super().draw_text(gc, x, y, s, prop, angle, False, mtext)
             return
         image, left, top = line
         if not image.size:

@@ -93,7 +93,7 @@ class _Side:
             else:
                 number.set_y(loc)
             number.set_text(text)
-            box = draw_text(renderer, number)
+            box = draw_text(renderer, number, fixed=True)
             if text:
                 boxes.append(box if box is not None else number.get_window_extent(renderer))
         return boxes

@@ -1,0 +1,180 @@
+"""What the display lists keep between items and between drawings (envelope/drawlist.py):
+a style's graphics context and layouts kept with its template, a transform's matrix
+kept for one drawing.  Each kept thing is checked against matplotlib drawing the same
+artist afresh (its own ``draw``), pixel for pixel: a kept text drawn at a new place, a
+text restyled between drawings, two styles side by side, a view changed between
+drawings, an rc setting changed between drawings; and the positions worked out in
+Python floats are matplotlib's transform's, bit for bit."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import Any
+
+import matplotlib as mpl
+import numpy as np
+import pytest
+from matplotlib.figure import Figure
+from matplotlib.lines import Line2D
+from matplotlib.text import Text
+
+from envelope import drawlist, plots
+
+
+def _figure(fast: bool) -> tuple[Figure, Any]:
+    fig = Figure(figsize=(4.0, 3.0), dpi=plots.DPI, facecolor="white")
+    plots.StyledCanvas(fig)
+    ax = fig.add_axes((0.15, 0.15, 0.8, 0.8))
+    ax.set_xlim(0.0, 10.0)
+    ax.set_ylim(-3.0, 7.0)
+    if fast:
+        drawlist.install(ax)
+    return fig, ax
+
+
+def _pixels(fig: Figure) -> np.ndarray:
+    fig.canvas.draw()
+    return np.asarray(fig.canvas.buffer_rgba()).copy()
+
+
+def _same(fast: Figure, reference: Figure) -> None:
+    ours, theirs = _pixels(fast), _pixels(reference)
+    assert ours.shape == theirs.shape
+    assert np.array_equal(ours, theirs), np.count_nonzero((ours != theirs).any(axis=2))
+
+
+TEXT_STYLE: dict[str, Any] = {"fontsize": 7, "color": plots.INK, "ha": "left",
+                              "va": "bottom", "linespacing": 1.05, "parse_math": False}
+
+
+def test_a_kept_text_drawn_at_a_new_place_is_a_fresh_drawing() -> None:
+    """The second drawing moves the text: its layout and graphics context come from
+    the template (kept at the first drawing); the pixels are those of a text drawn there
+    afresh by matplotlib."""
+    fig, ax = _figure(fast=True)
+    panel = drawlist.panel_of(ax)
+    assert panel is not None
+    text = "+12.5\nULS 1, loaded 1-3"
+    panel.text(2.0, 1.0, text, **TEXT_STYLE)
+    panel.label((3.0, 2.0), (4.0, 6.5), text, **TEXT_STYLE)
+    _pixels(fig)
+    (template,) = [t for key, t in panel.templates.items() if key[:2] == ("text", True)]
+    assert text in template._envelope_layouts[1]  # kept with the template
+    panel.clear()
+    panel.text(5.37, 4.21, text, **TEXT_STYLE)
+    panel.label((6.13, -1.7), (-3.2, 8.25), text, **TEXT_STYLE)
+    reference, ref_ax = _figure(fast=False)
+    plots._text(ref_ax, 5.37, 4.21, text, **TEXT_STYLE)
+    plots._annotate(ref_ax, text, (6.13, -1.7), (-3.2, 8.25), textcoords="offset points",
+                    annotation_clip=False, **TEXT_STYLE)
+    _same(fig, reference)
+
+
+def test_two_styles_of_one_string_are_kept_apart() -> None:
+    """The same string in two colours and two sizes in one drawing: one template each,
+    each drawn in its own style."""
+    fig, ax = _figure(fast=True)
+    reference, ref_ax = _figure(fast=False)
+    styles = [dict(TEXT_STYLE), {**TEXT_STYLE, "color": plots.MAX_COLOUR},
+              {**TEXT_STYLE, "fontsize": 9}, {**TEXT_STYLE, "fontsize": 9, "rotation": 90}]
+    for i, style in enumerate(styles):
+        plots._text(ax, 1.0 + 2 * i, 2.0, "span 3", **style)
+        plots._text(ref_ax, 1.0 + 2 * i, 2.0, "span 3", **style)
+    for _ in range(2):  # drawn again from what the first drawing kept
+        _same(fig, reference)
+
+
+def _restyled(draw: Callable[[Any, Text], None]) -> None:
+    """One text drawn, restyled, and drawn again by ``draw`` on a fresh canvas: the
+    pixels of matplotlib's drawing of the restyled text."""
+    fig, _ = _figure(fast=False)
+    text = Text(0.3, 0.4, "Shear [kN]\nspan 2", fontsize=7, color=plots.SOFT,
+                transform=fig.transFigure, parse_math=False)
+    text.set_figure(fig)
+    renderer = fig.canvas.get_renderer()
+    for size, colour, angle in ((7, plots.SOFT, 0), (11, plots.INK, 0), (11, plots.INK, 90),
+                                (6.5, plots.MAX_COLOUR, 90)):
+        text.set_fontsize(size)
+        text.set_color(colour)
+        text.set_rotation(angle)
+        renderer.clear()
+        draw(renderer, text)
+        ours = np.asarray(renderer.buffer_rgba()).copy()
+        renderer.clear()
+        Text.draw(text, renderer)
+        assert np.array_equal(ours, np.asarray(renderer.buffer_rgba())), (size, angle)
+
+
+def test_a_text_restyled_between_drawings_is_drawn_in_its_new_style() -> None:
+    """``draw_text`` keeps a text's style for one drawing only: its size, colour and
+    angle changed before the next drawing are drawn (a layout kept by a key without
+    the font or the angle would draw the old one)."""
+    _restyled(lambda renderer, text: drawlist.draw_text(renderer, text))
+    _restyled(lambda renderer, text: drawlist.draw_text(renderer, text, fixed=True))
+
+
+def test_items_follow_a_view_changed_between_drawings() -> None:
+    """Lines, markers, polygons, fills, collections and texts of a display list drawn,
+    the view changed, drawn again: the transforms' matrices are worked out again for
+    the new drawing (the pixels of matplotlib's drawing at the new view)."""
+    def record(ax: Any) -> None:
+        x = np.linspace(0.0, 10.0, 40)
+        plots._line(ax, x, np.sin(x) * 3, color=plots.MAX_COLOUR, lw=1.2, zorder=3)
+        plots._line(ax, [2.0, 5.0], [1.0, 1.0], marker="o", markersize=5, mfc="white",
+                    color=plots.INK, ls="none", zorder=6)
+        plots._polygon(ax, [(1.0, 0.0), (1.0, 1.5), (4.0, 2.5), (4.0, 0.0)],
+                       fc=plots.CASE_COLOURS[1], alpha=0.28, ec=plots.CASE_COLOURS[1],
+                       lw=0.7, zorder=2)
+        plots._envelope(ax, x, np.cos(x) + 2, np.cos(x) - 2, 400)
+        plots._text(ax, 6.0, -1.0, "support 2", fontsize=6.5, color=plots.SOFT)
+        plots.place_labels(ax.get_figure(root=True),
+                           [plots.Label(ax, 5.0, 3.0, "+3.0\nULS 2", True, 0)])
+
+    fig, ax = _figure(fast=True)
+    record(ax)
+    _pixels(fig)
+    reference, ref_ax = _figure(fast=False)
+    record(ref_ax)
+    for low, high in ((-6.0, 9.0), (-2.5, 4.0)):
+        ax.set_ylim(low, high)
+        ref_ax.set_ylim(low, high)
+        _same(fig, reference)
+
+
+def test_an_rc_setting_changed_between_drawings_is_followed() -> None:
+    """A line's plan keeps the path simplification it read: a drawing under another
+    threshold works it out again (the pixels of matplotlib drawing a line made and
+    drawn under that threshold, as each beam's lines are)."""
+    x = np.linspace(0.0, 10.0, 600)
+    y = np.sin(7 * x) * np.exp(-x / 5) * 3
+    fig, ax = _figure(fast=True)
+    plots._line(ax, x, y, color=plots.MIN_COLOUR, lw=1.2, zorder=3)
+    for rc in ({}, {"path.simplify_threshold": 0.9}, {"path.simplify": False}, {}):
+        with mpl.rc_context(rc):
+            reference, ref_ax = _figure(fast=False)
+            ref_ax.add_artist(Line2D(x, y, color=plots.MIN_COLOUR, lw=1.2, zorder=3))
+            _same(fig, reference)
+    # (the thresholds draw differently: a plan kept across them would be seen)
+    with mpl.rc_context({"path.simplify_threshold": 0.9}):
+        coarse = _pixels(fig)
+    assert not np.array_equal(coarse, _pixels(fig))
+
+
+@pytest.mark.parametrize("which", ["data", "axes", "blended", "offset"])
+def test_positions_in_python_floats_are_matplotlibs_transform(which: str) -> None:
+    """:func:`drawlist._apply` from a transform's matrix gives ``transform.transform``
+    bit for bit (the arithmetic of matplotlib's C loop), for the transforms the
+    figure's texts use."""
+    assert drawlist._EXACT_AFFINE  # (this machine: else the transform itself is used)
+    _, ax = _figure(fast=False)
+    ax.set_xlim(-0.37, 13.1)
+    ax.set_ylim(171.3, -42.9)
+    transform = {"data": ax.transData, "axes": ax.transAxes,
+                 "blended": ax.get_xaxis_transform(),
+                 "offset": ax.get_yaxis_text1_transform(3.5)[0]}[which]
+    matrix = drawlist._matrix(transform)
+    rng = np.random.default_rng(3)
+    for x, y in rng.standard_normal((500, 2)) * [20.0, 300.0]:
+        expected = transform.transform((float(x), float(y)))
+        assert drawlist._apply(transform, matrix, float(x), float(y)) == \
+            (expected[0], expected[1])
