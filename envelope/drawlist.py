@@ -736,8 +736,9 @@ def _text_plan(renderer: Any, text: Any) -> _TextPlan:
 
 
 def _lines_of(renderer: Any, text: Any, plan: _TextPlan, s: str) -> Any:
-    """(extent at the origin, ((line, x, y), ...)) of ``text`` showing ``s`` (its
-    text, set), kept per string; None where a line is math (``Text.draw`` draws)."""
+    """(extent at the origin, ((line, x, y), ...), the extent's corners as floats) of
+    ``text`` showing ``s`` (its text, set), kept per string; None where a line is math
+    (``Text.draw`` draws)."""
     layouts = plan.layouts
     hit = layouts.get(s, False)
     if hit is not False:
@@ -747,8 +748,9 @@ def _lines_of(renderer: Any, text: Any, plan: _TextPlan, s: str) -> Any:
         hit = None
     else:
         bbox, info, _ = kept_layout(text, renderer)
+        (x0, y0), (x1, y1) = bbox.get_points().tolist()
         hit = (bbox, tuple((clean, x, y) for (clean, _), (_, _, (x, y))
-                           in zip(lines, info, strict=True)))
+                           in zip(lines, info, strict=True)), (x0, y0, x1, y1))
     if len(layouts) >= _TEXT_STRINGS:
         layouts.clear()
     layouts[s] = hit
@@ -767,19 +769,55 @@ def _draw_lines_of(renderer: Any, text: Any, posx: float, posy: float,
     if layout is None:
         text.draw(renderer)  # a box, path effects, TeX or math: as matplotlib draws it
         return text.get_window_extent(renderer)
-    bbox, lines = layout
+    _draw_layout(renderer, text, plan, layout[1], posx, posy)
+    return layout[0].translated(posx, posy)
+
+
+def _draw_layout(renderer: Any, text: Any, plan: _TextPlan, lines: Any, posx: float,
+                 posy: float) -> None:
+    """The ``draw_text`` calls of ``Text.draw`` for these lines (line, x, y) of
+    ``text`` at (posx, posy) pixels."""
     gc, canvash = plan.gc, renderer.get_canvas_width_height()[1]
+    mtext = text if len(lines) == 1 else None
     if plan.glyphs:
         draw_line = renderer.draw_glyph_line
         for clean, x, y in lines:
             draw_line(gc, x + posx, canvash - (y + posy), clean, plan.prop, plan.angle,
-                      plan.turn, plan.fkey, plan.flags, text if len(lines) == 1 else None)
+                      plan.turn, plan.fkey, plan.flags, mtext)
     else:
-        mtext = text if len(lines) == 1 else None
         for clean, x, y in lines:
             renderer.draw_text(gc, x + posx, canvash - (y + posy), clean, plan.prop,
                                plan.angle, ismath=False, mtext=mtext)
-    return bbox.translated(posx, posy)
+
+
+def draw_string(renderer: Any, text: Any, x: float, y: float, s: str
+                ) -> tuple[float, float, float, float] | None:
+    """``Text.draw`` of ``text`` showing ``s`` at (x, y) in its transform, which stays
+    the same for the rest of the drawing (a tick number: its matrix is kept); its
+    extent (x0, y0, x1, y1 in pixels: ``Text.get_window_extent``'s corners), or None
+    where nothing is drawn.  The text is set to ``s`` and (x, y) only where its layout
+    is new or matplotlib draws it (a box, path effects, TeX or math)."""
+    if not s or not text.get_visible():
+        return None
+    plan = _prepared(renderer, text, _text_plan)
+    posx, posy = _apply(plan.transform, _affine(renderer, plan.transform, "matrix")[0],
+                        x, y)
+    if not (isfinite(posx) and isfinite(posy)):
+        return None
+    layout = plan.layouts.get(s, False) if plan.plain else None
+    if layout is False:
+        text.set_text(s)
+        layout = _lines_of(renderer, text, plan, s)
+    if layout is None:
+        text.set_text(s)
+        text.set_position((x, y))
+        text.draw(renderer)
+        box = text.get_window_extent(renderer)
+        return box.x0, box.y0, box.x1, box.y1
+    _draw_layout(renderer, text, plan, layout[1], posx, posy)
+    # Bbox.translated: each corner moved
+    x0, y0, x1, y1 = layout[2]
+    return x0 + posx, y0 + posy, x1 + posx, y1 + posy
 
 
 def draw_text(renderer: Any, text: Any, fixed: bool = False) -> Bbox | None:

@@ -32,6 +32,7 @@ import matplotlib as mpl
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg, RendererAgg, get_hinting_flag
 from matplotlib.font_manager import fontManager, get_font
+from matplotlib.patches import Rectangle
 from matplotlib.text import Annotation, Text
 
 from envelope.config import TEXT_CACHE_ENTRIES, TEXT_SUBPIXEL_STEPS
@@ -121,6 +122,12 @@ class CachedTextRenderer(RendererAgg):
     def clear(self) -> None:
         """Clear the canvas: a new drawing, with a new :attr:`pass_token`."""
         super().clear()
+        self.pass_token = object()
+
+    def fill(self, value: int) -> None:
+        """Set every pixel to ``value`` (its RGBA bytes read as one native uint32): a
+        new drawing, as :meth:`clear` starts one."""
+        np.asarray(self.buffer_rgba()).view(np.uint32).fill(value)
         self.pass_token = object()
 
     def _font(self, prop: Any, fkey: _Key, sized: bool = True) -> Any:
@@ -333,10 +340,73 @@ class CachedTextRenderer(RendererAgg):
                                            0, gc)
 
 
+#: A figure background's drawing by its key (:func:`_background_key`) -> the one pixel
+#: value it gave everywhere (RGBA as a native uint32), or None where it gave several.
+_BACKGROUNDS: dict[_Key, int | None] = {}
+
+
+def _background_key(fig: Any, width: int, height: int) -> _Key | None:
+    """All that the drawing of ``fig``'s background patch on a cleared canvas of
+    ``width`` x ``height`` pixels depends on, or None for a patch other than a plain
+    rectangle in figure coordinates (hatched, clipped, with path effects or a
+    sketch)."""
+    patch: Any = fig.patch
+    if (type(patch) is not Rectangle or not patch.get_visible() or patch.get_hatch()
+            or patch.get_path_effects() or patch.get_sketch_params() is not None
+            or patch.get_clip_path() is not None or patch.get_clip_box() is not None
+            or vars(patch)["_transform"] is not fig.transSubfigure):
+        return None
+    own = vars(patch)
+    offset, dashes = own["_dash_pattern"]
+    return (width, height, fig.dpi, own["_x0"], own["_y0"], own["_width"], own["_height"],
+            patch.get_angle(), patch.rotation_point, tuple(patch.get_facecolor()),
+            tuple(patch.get_edgecolor()), patch.get_linewidth(), offset,
+            dashes if dashes is None else tuple(dashes), patch.get_alpha(),
+            patch.get_antialiased(), patch.get_snap(), patch.get_capstyle(),
+            patch.get_joinstyle(), patch.get_fill())
+
+
 class CachedTextCanvas(FigureCanvasAgg):
-    """The Agg canvas drawing its text through :class:`CachedTextRenderer`."""
+    """The Agg canvas drawing its text through :class:`CachedTextRenderer`.
+
+    With :attr:`fill_background` set, a figure whose background (its patch, drawn
+    first on the cleared canvas) once gave one pixel value everywhere starts each
+    later drawing of the same size and style with every pixel set to that value
+    instead of clearing the canvas and drawing the patch (a fifth of the time the
+    raster figure's drawing spends in Agg): the same pixels."""
 
     _lastKey: Any = None  # the (width, height, dpi) of the renderer kept
+    fill_background = False
+
+    def draw(self) -> None:
+        """Draw the figure (see the class docstring for its background)."""
+        if not self.fill_background:
+            super().draw()
+            return
+        renderer = self.renderer = self.get_renderer()
+        fig = self.figure
+        key = _background_key(fig, int(renderer.width), int(renderer.height))
+        if key is None:
+            super().draw()
+            return
+        value = _BACKGROUNDS.get(key, False)
+        if value is None:  # drawn, and not one pixel value
+            super().draw()
+            return
+        if value is False:  # drawn, and kept where it is one value
+            renderer.clear()
+            fig.patch.draw(renderer)
+            pixels = np.asarray(renderer.buffer_rgba()).view(np.uint32).ravel()
+            first = int(pixels[0]) if pixels.size else 0
+            _bounded(_BACKGROUNDS)[key] = first if (pixels == first).all() else None
+        else:
+            renderer.fill(value)
+        patch: Any = fig.patch
+        patch._visible = False  # (drawn already: Figure.draw draws it before all else)
+        try:
+            fig.draw(renderer)
+        finally:
+            patch._visible = True
 
     def get_renderer(self) -> CachedTextRenderer:
         """The renderer for the figure's present size and resolution (kept while they

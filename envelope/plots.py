@@ -28,7 +28,8 @@ Text stays text in SVG (``svg.fonttype: none``) and PDF (TrueType, ``pdf.fonttyp
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Iterator, Mapping, Sequence
+from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -39,10 +40,12 @@ import numpy as np
 from matplotlib.axis import GRIDLINE_INTERPOLATION_STEPS
 from matplotlib.collections import LineCollection, PolyCollection
 from matplotlib.figure import Figure, _stale_figure_callback  # type: ignore[attr-defined]
+from matplotlib.image import AxesImage
 from matplotlib.legend import Legend
 from matplotlib.lines import Line2D
 from matplotlib.patches import Polygon, Rectangle
 from matplotlib.path import Path as MPath
+from matplotlib.table import Table
 from matplotlib.text import Annotation, Text
 from matplotlib.ticker import MaxNLocator
 from matplotlib.transforms import Affine2D, Bbox, IdentityTransform
@@ -251,16 +254,21 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
     pad = _LABEL_PAD * _LABEL_SIZE  # the box beyond the text's extent (points)
     # one text, never drawn, measures every label: its extent at the anchor is the
     # label's (left and bottom aligned, so the anchor is the extent's corner)
-    probe = KeptText(0.0, 0.0, "", fontsize=_LABEL_SIZE, ha="left", va="bottom",
-                 linespacing=1.05, parse_math=False)
-    probe.set_figure(fig)
+    probe = _PROBES.get(fig)
+    if probe is None:
+        probe = _PROBES[fig] = KeptText(0.0, 0.0, "", fontsize=_LABEL_SIZE, ha="left",
+                                        va="bottom", linespacing=1.05, parse_math=False)
+        probe.set_figure(fig)
+    matrices: dict[Any, Any] = {}
     for lab in sorted(labels, key=lambda lb: lb.rank):
         ax = lab.ax
         if ax not in frames:
             b = ax.get_window_extent(renderer)
             frames[ax] = Bbox.from_extents(b.x0 + 3, b.y0 + 3, b.x1 - 3, b.y1 - 3)
+            matrices[ax] = drawlist._matrix(ax.transData)
         frame = frames[ax]
-        ax_x, ax_y = ax.transData.transform((lab.x, lab.y))
+        # ax.transData.transform((lab.x, lab.y)), from its matrix (the same floats)
+        ax_x, ax_y = drawlist._apply(ax.transData, matrices[ax], float(lab.x), float(lab.y))
         if lab.clear > 0.0:  # a marker: kept clear, never drawn here
             markers += 1
             if np.isfinite(ax_x) and np.isfinite(ax_y):
@@ -323,6 +331,8 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
     return len(labels) - markers - dropped, dropped
 
 
+#: Each figure's text measuring the value labels (its style set once).
+_PROBES: WeakKeyDictionary[Any, KeptText] = WeakKeyDictionary()
 #: Each figure's points-to-pixels transform (one object per figure, so that a display
 #: list keeps one template per style).
 _POINTS: WeakKeyDictionary[Any, Any] = WeakKeyDictionary()
@@ -451,6 +461,11 @@ _KEEP_AT_MOST = 4
 _HEIGHTS: WeakKeyDictionary[Any, tuple[float, ...]] = WeakKeyDictionary()
 
 
+#: Children of a kept axes that stay from one beam to the next (the layers of the fast
+#: drawing) or that the figure never adds (images, tables).
+_KEPT_CHILDREN = (TickLayer, drawlist.DrawList, AxesImage, Table)
+
+
 class StyledCanvas(CachedTextCanvas):
     """The figure's canvas: it saves with the figure's style whatever the rc settings
     are when ``savefig`` is called (a notebook's ``fig.savefig("f.pdf")`` keeps the
@@ -481,9 +496,10 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
             text.remove()
         # the key stays: :func:`_key` keeps it where the next beam's is the same
         for a in axes:
-            for artist in [*a.lines, *a.patches, *a.texts, *a.collections, *a.artists]:
-                if not isinstance(artist, (TickLayer, drawlist.DrawList)):
-                    artist.remove()
+            # the lines, patches, texts, collections and other artists (Axes.lines ...
+            # Axes.artists: every child but images and tables), the layers kept
+            for artist in [c for c in a._children if not isinstance(c, _KEPT_CHILDREN)]:
+                artist.remove()
             panel = drawlist.panel_of(a)
             if panel is not None:
                 panel.clear()
@@ -495,7 +511,7 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
     # a kept figure is drawn at the file's resolution, so that its renderer (and the
     # text extents measured for placing the labels) serve every beam's file
     fig = Figure(figsize=size, facecolor="white", dpi=DPI if reuse else None)
-    StyledCanvas(fig)
+    StyledCanvas(fig).fill_background = fast  # (a plain background filled at once)
     axes = _panel_axes(fig, heights, top, bottom, fast=fast)
     if fast:
         stamp = Stamp(zorder=Legend.zorder)
@@ -724,6 +740,7 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
     cases = _lanes(sk)
     lane_of = {c: min(i, n_lanes - 1) for i, c in enumerate(cases)}
     kinds = sk.get("cases", {})
+    low, high = ax.get_ylim()
     for c in cases:
         items = [it for it in sk["loads"] if it.get("case") == c]
         lane = lane_of[c]
@@ -783,10 +800,9 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
             label = f"{name} {literal(kinds.get(c, ''), 10)}".strip()
             if scale:
                 label += "\n" + "\n".join(scale[:2])
-            _text(ax, -0.012, (base + 0.35 - ax.get_ylim()[0]) /
-                    (ax.get_ylim()[1] - ax.get_ylim()[0]), label, ha="right", va="center",
-                    fontsize=6, color=colour, parse_math=False, clip_on=False,
-                    transform=ax.transAxes, linespacing=1.0)
+            _text(ax, -0.012, (base + 0.35 - low) / (high - low), label, ha="right",
+                  va="center", fontsize=6, color=colour, parse_math=False, clip_on=False,
+                  transform=ax.transAxes, linespacing=1.0)
     if sk.get("loads_omitted"):
         _text(ax, 0.0, 0.45 + n_lanes, f"{sk['loads_omitted']} more load items not drawn",
               fontsize=6, color=SOFT, parse_math=False, va="bottom")
@@ -794,6 +810,22 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
 
 
 # --------------------------------------------------------------------------- the figure
+
+
+@contextmanager
+def _styled() -> Iterator[None]:
+    """The figure's style (:data:`STYLE`) for drawing a file, as ``mpl.rc_context(STYLE)``
+    sets it, the settings it changed restored after (the drawing changes no other rc
+    setting, so this is what rc_context restores, without copying every setting twice
+    a beam)."""
+    rc = mpl.rcParams
+    saved = {key: dict.__getitem__(rc, key) for key in STYLE}
+    changed = {key: value for key, value in STYLE.items() if saved[key] != value}
+    rc.update(changed)
+    try:
+        yield
+    finally:
+        dict.update(rc, {key: saved[key] for key in changed})
 
 
 def figure(results: Mapping[str, Mapping], ax: Any = None) -> Figure:
@@ -814,7 +846,7 @@ def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool
     path = Path(path)
     fmt = path.suffix.lstrip(".").lower() or "png"
     fast = fast and fmt == "png"  # SVG and PDF keep matplotlib's artists (editable text)
-    with mpl.rc_context(STYLE):
+    with _styled():
         fig = _build(results, None, reuse=True, fast=fast)
         if fmt == "png" and fig.dpi == DPI:  # the canvas as it is, encoded directly
             write_atomic(path, lambda fh: fh.write(figure_png(fig)), durable)
@@ -884,8 +916,8 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False,
     _fig_text(fig, fx0, 0.1 / fig.get_figheight(), CAUTION, fontsize=7, color=MAX_COLOUR,
               ha="left", va="bottom", parse_math=False)
 
+    # (the strip shares the panels' x axis: m_ax.set_xlim has set its limits)
     used = _strip(strip, sk, joint_x, kinds, units, n_lanes)
-    strip.set_xlim(m_ax.get_xlim())
 
     labels: list[Label] = []
     # moment

@@ -25,7 +25,7 @@ from matplotlib.artist import Artist
 from matplotlib.lines import Line2D
 from matplotlib.transforms import Bbox
 
-from envelope.drawlist import draw_line, draw_text
+from envelope.drawlist import draw_line, draw_string, draw_text
 from envelope.glyphs import KeptText
 
 
@@ -78,24 +78,27 @@ class _Side:
         inside = (locs >= low - close) & (locs <= high + close)
         return locs[inside], [s for s, k in zip(labels, inside, strict=True) if k]
 
-    def draw(self, renderer: Any, locs: np.ndarray, labels: list[str]) -> list[Bbox]:
-        """Draw the marks and numbers; the numbers' extents (pixels)."""
+    def draw(self, renderer: Any, locs: np.ndarray, labels: list[str]
+             ) -> list[tuple[float, float, float, float]]:
+        """Draw the marks and numbers; the numbers' extents (pixels: x0, y0, x1, y1)."""
         zeros = np.zeros(locs.size)
         if self.show_marks and locs.size:
             draw_line(renderer, self.marks, *((locs, zeros) if self.level else (zeros, locs)))
-        boxes: list[Bbox] = []
+        boxes: list[tuple[float, float, float, float]] = []
         if not self.show_numbers:
             return boxes
-        number = self.number
-        for loc, text in zip(locs, labels, strict=True):
-            if self.level:
-                number.set_x(loc)
-            else:
-                number.set_y(loc)
-            number.set_text(text)
-            box = draw_text(renderer, number, fixed=True)
+        number: Any = self.number
+        fixed = float(number._y if self.level else number._x)
+        for loc, text in zip(locs.tolist(), labels, strict=True):
+            x, y = (loc, fixed) if self.level else (fixed, loc)
+            box = draw_string(renderer, number, x, y, text)
             if text:
-                boxes.append(box if box is not None else number.get_window_extent(renderer))
+                if box is None:  # (not drawn: its extent where it stands)
+                    number.set_position((x, y))
+                    number.set_text(text)
+                    b = number.get_window_extent(renderer)
+                    box = (b.x0, b.y0, b.x1, b.y1)
+                boxes.append(box)
         return boxes
 
 
@@ -145,7 +148,8 @@ class TickLayer(Artist):
         renderer.close_group("ticks")
         self.stale = False
 
-    def _place_label(self, axis: Any, side: _Side, boxes: list[Bbox], ticks: bool) -> None:
+    def _place_label(self, axis: Any, side: _Side,
+                     boxes: list[tuple[float, float, float, float]], ticks: bool) -> None:
         """The axis label ``labelpad`` beyond the numbers and the spine with its marks,
         as ``Axis._update_label_position`` places it (left and bottom axes)."""
         spine = self.ax.spines["bottom" if side.level else "left"]
@@ -161,12 +165,15 @@ class TickLayer(Artist):
             else:
                 frame.x0 -= reach
         # the lower (left) edge of the union of the numbers and the frame, as
-        # ``Bbox.union`` finds it
-        edges = [*boxes, frame]
+        # ``Bbox.union`` finds it (each box's lower corner: Bbox.ymin, Bbox.xmin)
         pad = axis.labelpad * self.ax.get_figure(root=True).dpi / 72.0
         x, y = axis.label.get_position()
-        axis.label.set_position((x, min(b.ymin for b in edges) - pad) if side.level
-                                else (min(b.xmin for b in edges) - pad, y))
+        if side.level:
+            low = min([min(b[1], b[3]) for b in boxes] + [frame.ymin])
+            axis.label.set_position((x, low - pad))
+        else:
+            low = min([min(b[0], b[2]) for b in boxes] + [frame.xmin])
+            axis.label.set_position((low - pad, y))
 
 
 def install(ax: Any) -> TickLayer:

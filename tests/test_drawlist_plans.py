@@ -18,7 +18,7 @@ from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.text import Text
 
-from envelope import drawlist, plots
+from envelope import drawlist, glyphs, plots
 
 
 def _figure(fast: bool) -> tuple[Figure, Any]:
@@ -178,3 +178,37 @@ def test_positions_in_python_floats_are_matplotlibs_transform(which: str) -> Non
         expected = transform.transform((float(x), float(y)))
         assert drawlist._apply(transform, matrix, float(x), float(y)) == \
             (expected[0], expected[1])
+
+
+def test_a_plain_background_is_filled_as_drawn_and_follows_its_style() -> None:
+    """The canvas of a fast figure fills a plain background once its drawing gave one
+    pixel value everywhere: every drawing, the first, the filled ones, one after the
+    background's colour or edge changed (another key: drawn, not filled with the old
+    value) and one whose background is not one value (an edge drawn inside it), is
+    the pixels of the same figure drawn with its background patch (on the same canvas
+    without filling)."""
+
+    def figure(canvas: type) -> Figure:
+        fig = Figure(figsize=(3.0, 2.0), dpi=plots.DPI, facecolor="white")
+        canvas(fig)
+        ax = fig.add_axes((0.2, 0.2, 0.7, 0.7))
+        ax.plot([0, 1, 2], [0, 2, 1], color=plots.MAX_COLOUR)
+        ax.text(0.5, 1.0, "span 1", fontsize=7)
+        return fig
+
+    fast, reference = figure(plots.StyledCanvas), figure(plots.StyledCanvas)
+    fast.canvas.fill_background = True  # type: ignore[attr-defined]
+    drawn = []
+    for face, edge, width in (("white", "white", 0.0), ("white", "white", 0.0),
+                              (plots.PAPER, "white", 0.0), (plots.PAPER, "white", 0.0),
+                              ("white", plots.INK, 6.0), ("white", plots.INK, 6.0),
+                              ("white", "white", 0.0)):
+        for fig in (fast, reference):
+            fig.patch.set_facecolor(face)
+            fig.patch.set_edgecolor(edge)
+            fig.patch.set_linewidth(width)
+        drawn.append(_pixels(fast))
+        assert np.array_equal(drawn[-1], _pixels(reference)), (face, edge, width)
+        assert fast.patch.get_visible()
+    keys = [k for k in glyphs._BACKGROUNDS if k[:2] == (330, 220)]
+    assert {glyphs._BACKGROUNDS[k] is None for k in keys} == {True, False}
