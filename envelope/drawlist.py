@@ -534,6 +534,8 @@ def _draw_paths(renderer: Any, drawn: Any, paths: list[Path], offsets: np.ndarra
     figure, else ``draw_path_collection``."""
     plan = _planned(renderer, drawn, _collection_plan)
     if plan is None or not drawn.get_visible() or np.ma.isMaskedArray(offsets):
+        if paths is not drawn.get_paths():  # (made here: what set_verts would make)
+            drawn._paths = list(paths)
         drawn.draw(renderer)
         return
     if not len(offsets):
@@ -562,7 +564,7 @@ def _extent(path: Path, transform: Any, affine: Any) -> tuple[float, float]:
     """The width and height of ``path.get_extents(transform)`` (an affine transform):
     of its end points, transformed, but those of curves and closing codes."""
     codes = path.codes
-    if codes is not None and np.isin(codes, (Path.CURVE3, Path.CURVE4)).any():
+    if codes is not None and bool(np.any((codes == Path.CURVE3) | (codes == Path.CURVE4))):
         box = path.get_extents(transform)
         return box.width, box.height
     points = affine.transform(path.vertices)
@@ -575,11 +577,22 @@ def _extent(path: Path, transform: Any, affine: Any) -> tuple[float, float]:
 
 
 def _draw_collection(renderer: Any, drawn: Any, paths: Any, offsets: Any) -> None:
+    drawn.set_offsets(offsets)
+    if (not isinstance(drawn, LineCollection) and type(paths) is list
+            and all(type(v) is np.ndarray and v.ndim == 2 and v.shape[1] == 2 and len(v)
+                    and v.dtype == float for v in paths)
+            and _planned(renderer, drawn, _collection_plan) is not None):
+        # PolyCollection.set_verts(paths): each polygon closed by a copy of its first
+        # vertex (Path._create_closed)
+        simplify = _simplify()
+        _draw_paths(renderer, drawn,
+                    [_new_path(np.concatenate([v, v[:1]]), _closed_codes(len(v) + 1), 1,
+                               simplify) for v in paths], drawn.get_offsets())
+        return
     if isinstance(drawn, LineCollection):
         drawn.set_segments(paths)
     else:
         drawn.set_verts(paths)
-    drawn.set_offsets(offsets)
     _draw_paths(renderer, drawn, drawn.get_paths(), drawn.get_offsets())
 
 
@@ -655,9 +668,34 @@ def _draw_rectangle(renderer: Any, patch: Rectangle, xy: tuple[float, float],
     patch.draw(renderer)
 
 
+def _fill_path(fill: Any, x: np.ndarray, y1: np.ndarray, y2: np.ndarray) -> Path | None:
+    """The one polygon ``fill._make_verts(x, y1, y2, None)`` makes and ``set_verts``
+    closes (the area between two finite curves along x, no steps, no interpolation):
+    the start on the second curve, along the first, the end on the second, back along
+    it, the start again; None for anything else."""
+    n = x.size
+    if (fill._step is not None or fill._interpolate or fill.t_direction != "x" or not n
+            or x.ndim != 1 or x.shape != y1.shape or x.shape != y2.shape
+            or any(np.ma.isMA(a) for a in (x, y1, y2))):
+        return None
+    vertices = np.empty((2 * n + 3, 2))
+    vertices[0] = x[0], y2[0]
+    vertices[1: n + 1, 0], vertices[1: n + 1, 1] = x, y1
+    vertices[n + 1] = x[-1], y2[-1]
+    vertices[n + 2: 2 * n + 2, 0], vertices[n + 2: 2 * n + 2, 1] = x[::-1], y2[::-1]
+    vertices[-1] = vertices[0]
+    return _new_path(vertices, _closed_codes(2 * n + 3), 1, _simplify())
+
+
 def _draw_fill(renderer: Any, fill: Any, x: np.ndarray, y1: np.ndarray,
                y2: np.ndarray) -> None:
-    if np.isfinite(x).all() and np.isfinite(y1).all() and np.isfinite(y2).all():
+    finite = np.isfinite(x).all() and np.isfinite(y1).all() and np.isfinite(y2).all()
+    if finite and _planned(renderer, fill, _collection_plan) is not None:
+        path = _fill_path(fill, x, y1, y2)
+        if path is not None:
+            _draw_paths(renderer, fill, [path], fill.get_offsets())
+            return
+    if finite:
         # nothing for ``set_data`` to mask: its polygons straight from the arrays
         fill.set_verts(fill._make_verts(x, y1, y2, None))
     else:
