@@ -492,8 +492,14 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
             for ax, rect in zip(axes, _panel_rects(size, heights, top, bottom), strict=True):
                 ax.set_position(rect)
             _HEIGHTS[fig] = tuple(heights)
+        spare = _SPARE_TEXTS.setdefault(fig, {})
         for text in list(fig.texts):
-            text.remove()
+            style = text.__dict__.get("_envelope_style")
+            if style is not None and len(spare.setdefault(style, [])) < 4:
+                fig.texts.remove(text)  # (kept for the next beam's text of its style)
+                spare[style].append(text)
+            else:
+                text.remove()
         # the key stays: :func:`_key` keeps it where the next beam's is the same
         for a in axes:
             # the lines, patches, texts, collections and other artists (Axes.lines ...
@@ -546,10 +552,27 @@ def _text(ax: Any, x: float, y: float, s: str, **style: Any) -> Text | None:
     return text
 
 
+#: The figure texts a kept figure took off for the next beam, by style (a text made
+#: anew is a tenth of the figure's own code): each is given the next beam's string and
+#: place, the same text as one made with them.
+_SPARE_TEXTS: WeakKeyDictionary[Any, dict[Any, list[Text]]] = WeakKeyDictionary()
+
+
 def _fig_text(fig: Figure, x: float, y: float, s: str, **style: Any) -> Text:
     """A text added to ``fig`` as ``Figure.text`` adds it (its layout kept on the raster
-    canvas: :class:`envelope.glyphs.KeptText`)."""
+    canvas: :class:`envelope.glyphs.KeptText`); a kept figure's text of the same style
+    taken off for this beam where there is one."""
+    key = None if "transform" in style else drawlist._key(style)
+    spare = _SPARE_TEXTS.get(fig, {}).get(key) if key is not None else None
+    if spare:
+        text = spare.pop()
+        text.set_position((x, y))
+        text.set_text(s)
+        fig.texts.append(text)
+        fig.stale = True
+        return text
     text = KeptText(x, y, s, **{"transform": fig.transSubfigure, **style})
+    text._envelope_style = key  # type: ignore[attr-defined]
     text.set_figure(fig)
     text.stale_callback = _stale_figure_callback
     fig.texts.append(text)

@@ -9,6 +9,7 @@ Python floats are matplotlib's transform's, bit for bit."""
 from __future__ import annotations
 
 from collections.abc import Callable
+from pathlib import Path
 from typing import Any
 
 import matplotlib as mpl
@@ -18,7 +19,8 @@ from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.text import Text
 
-from envelope import drawlist, glyphs, plots
+import envelope
+from envelope import drawlist, glyphs, plots, store
 
 
 def _figure(fast: bool) -> tuple[Figure, Any]:
@@ -212,3 +214,21 @@ def test_a_plain_background_is_filled_as_drawn_and_follows_its_style() -> None:
         assert fast.patch.get_visible()
     keys = [k for k in glyphs._BACKGROUNDS if k[:2] == (330, 220)]
     assert {glyphs._BACKGROUNDS[k] is None for k in keys} == {True, False}
+
+
+def test_a_kept_figure_reuses_its_texts_for_the_next_beam(tmp_path: Path) -> None:
+    """The title, the caution and the note of a beam drawn on a kept figure are the
+    texts of the beam before, given the new strings and places (the files are those of
+    a figure made for the beam: tests/test_fast_figure.py)."""
+    case = sorted((Path(__file__).resolve().parents[1] / "cases").glob("*.toml"))[0]
+    cols = store.result_columns(envelope.tables(envelope.analyse(envelope.load_case(
+        str(case)))))
+    plots._KEPT.clear()
+    plots.draw_results(cols, tmp_path / "a.png", durable=False)
+    ((fig, _),) = plots._KEPT.values()
+    first = list(fig.texts)
+    cols["meta"]["envelope:title"] = "Another beam"
+    plots.draw_results(cols, tmp_path / "b.png", durable=False)
+    assert len(fig.texts) == len(first) == 3
+    assert {id(t) for t in fig.texts} == {id(t) for t in first}
+    assert "Another beam" in [t.get_text() for t in fig.texts]
