@@ -13,7 +13,7 @@ is found on the envelope itself and extended by the code's rule
 (:mod:`envelope.sizing.cutoffs`): every span the marks need is sampled in one
 evaluation of the envelope (both signs at once), and then the ends of every stretch
 are narrowed together to :data:`envelope.config.DESIGN_XTOL` of the span, each step
-of all of them one more evaluation (:func:`envelope.sizing.cutoffs.cross_together`).
+of all of them one more evaluation (:func:`envelope.sizing.cutoffs.narrow`).
 With moving loads every evaluation at new points is an influence-line solve: a
 handful of them instead of one per end and step.
 
@@ -122,17 +122,17 @@ class _Runs:
 
     def solve(self) -> None:
         """Narrow every end asked for to :data:`envelope.config.DESIGN_XTOL` of its
-        span (:func:`envelope.sizing.cutoffs.cross_together`)."""
+        span (:func:`envelope.sizing.cutoffs.narrow`)."""
         if not self.brackets:
             return
         run, slot, span, sign, inside, outside, g_in, g_out, capacity, tol = (
             np.array(v) for v in zip(*self.brackets, strict=True))
         span = span.astype(np.int64)
 
-        def g(k: np.ndarray, c: np.ndarray) -> np.ndarray:
-            return self.demand.at(span[k], sign[k], c) - capacity[k]
+        def g(c: np.ndarray) -> np.ndarray:
+            return self.demand.at(span, sign, c) - capacity
 
-        roots = cutoffs.cross_together(inside, outside, g_in, g_out, g, tol)
+        roots = cutoffs.narrow(inside, outside, g_in, g_out, g, tol)
         for r, s, root in zip(run.tolist(), slot.tolist(), roots.tolist(), strict=True):
             self.found[r][s] = root
         self.brackets = []

@@ -86,54 +86,29 @@ def run_ends(demand: np.ndarray, seed: int) -> tuple[int, int] | None:
     return i0, i1
 
 
-def cross_together(inside: np.ndarray, outside: np.ndarray, f_in: np.ndarray,
-                   f_out: np.ndarray, refine: Callable[[np.ndarray, np.ndarray], np.ndarray],
-                   xtol: np.ndarray) -> np.ndarray:
-    """The roots of many brackets at once, each by regula falsi with the Illinois
-    modification (the end kept twice in a row has its value halved): bracket ``k`` holds
-    a root of a function g_k between ``inside[k]`` (g_k = ``f_in[k]`` > 0) and
-    ``outside[k]`` (g_k = ``f_out[k]`` <= 0), and is narrowed until it is at most
-    ``xtol[k]`` wide.  ``refine(k, c)`` gives g at abscissae ``c`` of brackets ``k``
-    (index arrays): every step of every open bracket in one call, so that a search
-    over many cut-off points costs as many calls as its longest bracket takes steps
-    (a few), not their sum.  Each bracket takes the same steps, in the same floating
-    point operations, as the bracket alone would (:func:`run_around` with one)."""
-    a = np.asarray(inside, dtype=float).copy()
-    b = np.asarray(outside, dtype=float).copy()
-    fa = np.asarray(f_in, dtype=float).copy()
-    fb = np.asarray(f_out, dtype=float).copy()
-    side = np.zeros(a.size, dtype=np.int8)
-    root = np.full(a.size, np.nan)
-    open_ = np.ones(a.size, dtype=bool)
-    for _ in range(100):
-        narrow = open_ & (np.abs(b - a) <= xtol)
-        root[narrow] = np.where(np.abs(fa[narrow]) <= np.abs(fb[narrow]), a[narrow],
-                                b[narrow])
-        open_ &= ~narrow
-        k = np.flatnonzero(open_)
-        if k.size == 0:
-            break
-        ak, bk, fak, fbk = a[k], b[k], fa[k], fb[k]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            c = np.where(fbk != fak, bk - fbk * (bk - ak) / (fbk - fak), 0.5 * (ak + bk))
-        outside_ab = ~((np.minimum(ak, bk) < c) & (c < np.maximum(ak, bk)))
-        c[outside_ab] = 0.5 * (ak + bk)[outside_ab]
-        fc = np.asarray(refine(k, c), dtype=float)
-        hit = fc == 0.0
-        root[k[hit]] = c[hit]
-        open_[k[hit]] = False
-        same = ~hit & ((fc > 0.0) == (fak > 0.0))
-        other = ~hit & ~same
-        ks, ko = k[same], k[other]
-        a[ks], fa[ks] = c[same], fc[same]
-        fb[ks[side[ks] == -1]] *= 0.5
-        side[ks] = -1
-        b[ko], fb[ko] = c[other], fc[other]
-        fa[ko[side[ko] == 1]] *= 0.5
-        side[ko] = 1
-    last = np.flatnonzero(open_)  # still open after 100 steps: the better end
-    root[last] = np.where(np.abs(fa[last]) <= np.abs(fb[last]), a[last], b[last])
-    return root
+def narrow(inside: np.ndarray, outside: np.ndarray, g_in: np.ndarray, g_out: np.ndarray,
+           g: Callable[[np.ndarray], np.ndarray], xtol: np.ndarray) -> np.ndarray:
+    """Where each of many functions crosses zero between two samples: bracket ``k`` has
+    ``g_k > 0`` at ``inside[k]`` (value ``g_in[k]``) and ``g_k <= 0`` at ``outside[k]``
+    (``g_out[k]``), either side of it; ``g(x)`` gives every g_k at ``x[k]``.  All
+    brackets step together, to ``xtol`` (:func:`envelope.search.anderson_bjorck_root`,
+    each bracket turned so that its lower end is the positive one), so a search over
+    many cut-off points costs as many calls of ``g`` as its slowest bracket takes steps,
+    not their sum."""
+    from envelope.search import anderson_bjorck_root
+
+    inside, outside = np.asarray(inside, dtype=float), np.asarray(outside, dtype=float)
+    sign = np.where(inside < outside, 1.0, -1.0)  # -1: the positive end is the upper
+    lo, hi = np.minimum(inside, outside), np.maximum(inside, outside)
+    f_in, f_out = sign * np.asarray(g_in, dtype=float), sign * np.asarray(g_out, dtype=float)
+    f_lo, f_hi = np.where(sign > 0, f_in, f_out), np.where(sign > 0, f_out, f_in)
+
+    def f(x: np.ndarray) -> np.ndarray:
+        return sign * np.asarray(g(x), dtype=float)
+
+    # (the search's first point is its first step from the inside sample)
+    return anderson_bjorck_root(f, lo, hi, f_lo, f_hi, inside,
+                                np.ones(lo.size, dtype=bool), np.asarray(xtol, dtype=float))
 
 
 def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
@@ -142,7 +117,7 @@ def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
     """The stretch around sample ``seed`` where ``demand`` (sampled at ``x``, sorted)
     stays above ``capacity``: its two ends, each bracketed by neighbouring samples and,
     with ``refine`` (demand at any points), narrowed to ``tol`` of the span by
-    :func:`cross_together`, else interpolated linearly.  NaN, NaN where the demand at
+    :func:`narrow`, else interpolated linearly.  NaN, NaN where the demand at
     ``seed`` is not above."""
     ends = run_ends(demand - capacity, seed)
     if ends is None:
@@ -161,11 +136,11 @@ def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
             roots = x[ins] + (capacity - demand[ins]) / (demand[out] - demand[ins]) * (
                 x[out] - x[ins])
         else:
-            def g(_k: np.ndarray, c: np.ndarray) -> np.ndarray:
+            def g(c: np.ndarray) -> np.ndarray:
                 return np.asarray(refine(c), dtype=float) - capacity
 
-            roots = cross_together(x[ins], x[out], demand[ins] - capacity,
-                                   demand[out] - capacity, g, np.full(ins.size, tol * span))
+            roots = narrow(x[ins], x[out], demand[ins] - capacity, demand[out] - capacity,
+                           g, np.full(ins.size, tol * span))
         for (slot, _, _), r in zip(brackets, roots, strict=True):
             found[slot] = float(r)
     return found[0], found[1]
