@@ -8,7 +8,7 @@ import math
 
 import numpy as np
 
-from envelope.search import golden_max, illinois_root
+from envelope.search import bisect, golden_max, illinois_root
 
 
 def test_golden_max_finds_each_brackets_maximum() -> None:
@@ -85,3 +85,38 @@ def test_quartic_roots_at_a_jump_an_inactive_row_and_an_exact_zero() -> None:
     got = quartic_roots(values, np.array([True, True, False, True]), np.full(4, 1e-15),
                         np.array([1.0, -1.0, 0.5, -1.0]))
     assert got.tolist() == [-1.0, 1.0, 0.5, 0.0]
+
+
+def test_bisection_stops_when_no_bracket_moves_with_the_answer_of_every_step() -> None:
+    # the reference: a hundred steps, always (as the sizing bisected before); brackets
+    # of many scales, some already a single float wide, a NaN bracket, a predicate
+    # that is never true (the upper end stays) and one that is always true
+    rng = np.random.default_rng(3)
+    n = 200
+    target = rng.uniform(-1e3, 1e3, n) * 10.0 ** rng.integers(-6, 6, n)
+    lo = target - rng.uniform(0.0, 10.0, n) * np.abs(target)
+    hi = target + rng.uniform(0.0, 10.0, n) * np.abs(target)
+    lo[:5] = target[:5]
+    hi[:5] = np.nextafter(target[:5], np.inf)
+    lo[5] = np.nan
+    target[6] = -np.inf
+    target[7] = np.inf
+
+    def short(x: np.ndarray) -> np.ndarray:
+        return x < target
+
+    ref_lo, ref_hi = lo.copy(), hi.copy()
+    for _ in range(100):
+        mid = 0.5 * (ref_lo + ref_hi)
+        below = short(mid)
+        ref_lo, ref_hi = np.where(below, mid, ref_lo), np.where(below, ref_hi, mid)
+    calls = []
+
+    def counted(x: np.ndarray) -> np.ndarray:
+        calls.append(1)
+        return short(x)
+
+    got_lo, got_hi = bisect(counted, lo, hi)
+    np.testing.assert_array_equal(got_lo, ref_lo)
+    np.testing.assert_array_equal(got_hi, ref_hi)
+    assert len(calls) < 100

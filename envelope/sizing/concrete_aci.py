@@ -19,6 +19,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from envelope.search import bisect
+
 #: Concrete strain at the extreme compression fibre (22.2.2.1).
 EPS_CU = 0.003
 #: Least net tensile strain of a nonprestressed beam (9.3.3.1).
@@ -172,11 +174,7 @@ def flexure(mu: np.ndarray | float, b: np.ndarray | float, d: np.ndarray | float
     lower = np.take_along_axis(grid, np.maximum(first - 1, 0)[..., None], axis=-1)[..., 0]
     lo = np.where(in_tc, 0.0, lower)
     hi = np.where(in_tc, a_tc, upper)
-    for _ in range(100):
-        mid = 0.5 * (lo + hi)
-        short = phi_mn(mid[..., None])[..., 0] < mu
-        lo = np.where(short, mid, lo)
-        hi = np.where(short, hi, mid)
+    lo, hi = bisect(lambda mid: phi_mn(mid[..., None])[..., 0] < mu, lo, hi)
     a = np.where(mu > 0, hi, 0.0)
     C, _ = _block(a, b, d, fc, bf_, hf_)
     eps_t = _strain(a, b1, dt)

@@ -28,6 +28,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from envelope.search import bisect
 from envelope.sizing import concrete_aci as aci
 from envelope.sizing import concrete_en as en
 
@@ -101,11 +102,7 @@ def aci_capacity(As: np.ndarray, As2: np.ndarray, b: np.ndarray | float,
 
     lo = np.full(As.shape, 1e-9) * d_
     hi = d_.copy()
-    for _ in range(100):
-        mid = 0.5 * (lo + hi)
-        short = parts(mid)[0] < As * fy_
-        lo = np.where(short, mid, lo)
-        hi = np.where(short, hi, mid)
+    lo, hi = bisect(lambda mid: parts(mid)[0] < As * fy_, lo, hi)
     c = 0.5 * (lo + hi)
     _, mn, fs2 = parts(c)
     eps_t = aci.EPS_CU * (d_ - c) / c
