@@ -43,7 +43,7 @@ from matplotlib.collections import FillBetweenPolyCollection, LineCollection
 from matplotlib.lines import Line2D
 from matplotlib.patches import FancyArrowPatch, Polygon, Rectangle
 from matplotlib.path import Path
-from matplotlib.transforms import Affine2D, Bbox
+from matplotlib.transforms import Affine2D, Bbox, TransformNode
 
 from envelope.glyphs import (
     _GLYPH_API,
@@ -74,22 +74,28 @@ class DrawList(Artist):
 
 
 def _key(style: dict[str, Any]) -> Hashable:
-    """The style as a key: its items in name order, a value that cannot be hashed by
-    its repr."""
+    """The style as a key: its items in name order; a transform (which cannot be
+    hashed) by its identity, any other value that cannot be hashed by its repr."""
     key = tuple(sorted(style.items()))
     try:
         hash(key)
     except TypeError:
-        return tuple(sorted((k, repr(v) if _unhashable(v) else v) for k, v in style.items()))
+        return tuple(sorted((k, _hashable(v)) for k, v in style.items()))
     return key
 
 
-def _unhashable(value: Any) -> bool:
+def _hashable(value: Any) -> Hashable:
+    """``value``, or for one that cannot be hashed: a transform's identity (what its
+    repr, the default one, spells out, without making the string; the template made
+    with it keeps it, so no other object takes its id while the key is in use), else
+    its repr."""
     try:
         hash(value)
     except TypeError:
-        return True
-    return False
+        if isinstance(value, TransformNode):
+            return ("transform", id(value))
+        return repr(value)
+    return value  # type: ignore[no-any-return]
 
 
 #: At most this many templates are kept per panel (a style that varies without end,

@@ -232,3 +232,30 @@ def test_a_kept_figure_reuses_its_texts_for_the_next_beam(tmp_path: Path) -> Non
     assert len(fig.texts) == len(first) == 3
     assert {id(t) for t in fig.texts} == {id(t) for t in first}
     assert "Another beam" in [t.get_text() for t in fig.texts]
+
+
+def test_a_template_with_a_transform_is_kept_across_views_and_apart_from_others() -> None:
+    """Items given a transform (the axes', a blended one, the data's) keep one template
+    each while the view changes, and two transforms never share one (the pixels of
+    matplotlib's drawing at each view)."""
+    def record(ax: Any) -> None:
+        style = {"fontsize": 6, "color": plots.SOFT, "parse_math": False}
+        plots._text(ax, 0.2, 0.5, "lane 1", transform=ax.transAxes, **style)
+        plots._text(ax, 0.2, 0.5, "lane 1", **style)
+        plots._hline(ax, 0.0, color=plots.INK, lw=0.6, zorder=2)
+        plots._support_lines(ax, np.array([0.0, 4.0, 10.0]))
+
+    fig, ax = _figure(fast=True)
+    panel = drawlist.panel_of(ax)
+    assert panel is not None
+    reference, ref_ax = _figure(fast=False)
+    record(ref_ax)
+    counts = []
+    for low, high in ((-3.0, 7.0), (-11.0, 2.5), (0.2, 0.9)):
+        panel.clear()
+        record(ax)
+        for a in (ax, ref_ax):
+            a.set_ylim(low, high)
+        _same(fig, reference)
+        counts.append(len(panel.templates))
+    assert counts == [4, 4, 4]
