@@ -655,6 +655,31 @@ def test_extents_three_equal_spans() -> None:
     np.testing.assert_allclose(ext["hogging_right_extent"][1], (0.5 - r) * 6.0, rtol=1e-8)
 
 
+def test_extents_are_found_in_a_handful_of_envelope_evaluations(monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    # the three-span beam's ten crossings (exact: 0.5 +- sqrt(0.05) of the middle span,
+    # 0.8 of the end spans, references.md 3.2) narrowed together by a root search on
+    # the moment: the grid, the brackets' ends, then a few steps for all of them
+    # (bisection to 1e-10 of the span took some thirty)
+    import importlib
+
+    module = importlib.import_module("envelope.sizing.extents")  # (the package's
+    calls = []  # ``extents`` is the function)
+    real = module._envelope
+
+    def counted(*args):  # type: ignore[no-untyped-def]
+        calls.append(1)
+        return real(*args)
+
+    monkeypatch.setattr(module, "_envelope", counted)
+    ext = module.extents(_extent_beam(3))
+    r = math.sqrt(0.05)
+    # (to the edge of the round-off band, ZERO_RTOL of the largest moment: some 3e-9 m
+    # from the exact zero on this beam, about the band over the shear there)
+    np.testing.assert_allclose(ext["sagging_start"][1], (0.5 - r) * 6.0, rtol=0, atol=5e-9)
+    np.testing.assert_allclose(ext["sagging_end"][0], 0.8 * 6.0, rtol=0, atol=5e-9)
+    assert len(calls) <= 12
+
+
 def test_extents_are_on_the_span_rows_of_sizing() -> None:
     _, cols = run(case_text(SI_CONCRETE, spans=(6.0, 6.0), dead=10.0))
     i = row(cols, 2, "span")
