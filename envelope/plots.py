@@ -279,37 +279,36 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
         if not (np.isfinite(ax_x) and np.isfinite(ax_y)):
             dropped += 1
             continue
-        probe.set_text(lab.text)
-        # the extent as ``Text.get_window_extent`` gives it at the origin (its layout)
-        size = probe._get_layout(renderer)[0] if lab.text else \
-            probe.get_window_extent(renderer)
-        w, h = size.width, size.height
+        # the extent as ``Text.get_window_extent`` gives it at the origin (its layout):
+        # its corners (sx0, sy0), (sx1, sy1)
+        sx0, sy0, sx1, sy1 = _probe_extent(probe, lab.text, renderer)
+        w, h = sx1 - sx0, sy1 - sy0  # (Bbox.width, Bbox.height)
         corner = _first_free(ax_x, ax_y, w, h, 1.0 if lab.above else -1.0, px_per_pt,
                              frame, placed)
         if corner is None:
             dropped += 1
             continue
-        best = Bbox.from_bounds(corner[0], corner[1], w, h)
-        placed.append((float(best.x0 - 1), float(best.y0 - 1), float(best.x1 + 1),
-                       float(best.y1 + 1)))
+        # the label's extent there, as Bbox.from_bounds(*corner, w, h) has it
+        bx0, by0 = corner
+        bx1, by1 = bx0 + w, by0 + h
+        placed.append((bx0 - 1, by0 - 1, bx1 + 1, by1 + 1))
         # offset by the pixels between the anchor (the measured extent's corner) and
         # where the label goes
-        offset = ((best.x0 - ax_x - size.x0) / px_per_pt,
-                  (best.y0 - ax_y - size.y0) / px_per_pt)
+        offset = ((bx0 - ax_x - sx0) / px_per_pt, (by0 - ax_y - sy0) / px_per_pt)
         anchors, boxes, starts, leaders = drawn.setdefault(ax, ([], [], [], []))
-        x0, y0 = (best.x0 - ax_x) / px_per_pt - pad, (best.y0 - ax_y) / px_per_pt - pad
-        x1, y1 = (best.x1 - ax_x) / px_per_pt + pad, (best.y1 - ax_y) / px_per_pt + pad
+        x0, y0 = (bx0 - ax_x) / px_per_pt - pad, (by0 - ax_y) / px_per_pt - pad
+        x1, y1 = (bx1 - ax_x) / px_per_pt + pad, (by1 - ax_y) / px_per_pt + pad
         anchors.append((lab.x, lab.y))
         boxes.append(np.array([(x0, y0), (x1, y0), (x1, y1), (x0, y1), (x0, y0)]))
         # a label more than 6 points from its value, up or sideways, draws a leader to
         # it (from the nearest side), so that it never reads as a neighbouring peak's
-        dx = max(best.x0 - ax_x, ax_x - best.x1, 0.0)
-        dy = max(best.y0 - ax_y, ax_y - best.y1, 0.0)
+        dx = max(bx0 - ax_x, ax_x - bx1, 0.0)
+        dy = max(by0 - ax_y, ax_y - by1, 0.0)
         if max(dx, dy) > 6 * px_per_pt:
-            side = 0.5 if dx <= 6 * px_per_pt else (0.0 if ax_x < best.x0 else 1.0)
-            edge = best.y0 if best.y0 > ax_y else best.y1
+            side = 0.5 if dx <= 6 * px_per_pt else (0.0 if ax_x < bx0 else 1.0)
+            edge = by0 if by0 > ax_y else by1
             starts.append((lab.x, lab.y))
-            leaders.append(np.array([((best.x0 + side * w - ax_x) / px_per_pt,
+            leaders.append(np.array([((bx0 + side * w - ax_x) / px_per_pt,
                                       (edge - ax_y) / px_per_pt), (0.0, 0.0)]))
         style = {"fontsize": _LABEL_SIZE, "color": lab.colour, "ha": "left", "va": "bottom",
                  "linespacing": 1.05, "parse_math": False, "zorder": 8, "gid": "value-label"}
@@ -333,6 +332,24 @@ def place_labels(fig: Figure, labels: Sequence[Label]) -> tuple[int, int]:
 
 #: Each figure's text measuring the value labels (its style set once).
 _PROBES: WeakKeyDictionary[Any, KeptText] = WeakKeyDictionary()
+
+
+def _probe_extent(probe: Any, text: str, renderer: Any) -> tuple[float, float, float, float]:
+    """The corners (x0, y0, x1, y1) of ``probe``'s extent at the origin showing ``text``
+    (its layout's extent; ``get_window_extent`` for an empty text), kept per string
+    with the probe (its style is set once) while the resolution and hinting stay."""
+    key = (text, type(renderer), renderer.dpi, probe.get_figure(root=True).dpi,
+           dict.__getitem__(mpl.rcParams, "text.hinting"))
+    sizes = probe.__dict__.setdefault("_envelope_sizes", {})
+    hit = sizes.get(key)
+    if hit is None:
+        probe.set_text(text)
+        box = probe._get_layout(renderer)[0] if text else probe.get_window_extent(renderer)
+        (x0, y0), (x1, y1) = box.get_points().tolist()
+        if len(sizes) >= 1024:
+            sizes.clear()
+        hit = sizes[key] = (x0, y0, x1, y1)
+    return hit  # type: ignore[no-any-return]
 #: Each figure's points-to-pixels transform (one object per figure, so that a display
 #: list keeps one template per style).
 _POINTS: WeakKeyDictionary[Any, Any] = WeakKeyDictionary()

@@ -259,3 +259,23 @@ def test_a_template_with_a_transform_is_kept_across_views_and_apart_from_others(
         _same(fig, reference)
         counts.append(len(panel.templates))
     assert counts == [4, 4, 4]
+
+
+def test_a_label_extent_kept_per_string_follows_the_resolution() -> None:
+    """The value labels' measuring text keeps each string's extent: the extent of a
+    text laid out afresh by matplotlib (``Text._get_layout``), at each resolution the
+    figure is drawn at (a key without it would give the first one's)."""
+    style: dict[str, Any] = {"fontsize": 7, "ha": "left", "va": "bottom",
+                             "linespacing": 1.05, "parse_math": False}
+    fig = Figure(figsize=(4.0, 3.0), dpi=plots.DPI)
+    plots.StyledCanvas(fig)
+    probe = plots.KeptText(0.0, 0.0, "", **style)
+    probe.set_figure(fig)
+    for dpi in (plots.DPI, 200.0, plots.DPI):
+        fig.set_dpi(dpi)
+        renderer = fig.canvas.get_renderer()
+        for s in ("+12.5\nULS 1, loaded 1-3", "-3.07 at CL", "+12.5\nULS 1, loaded 1-3"):
+            fresh = Text(0.0, 0.0, s, **style)
+            fresh.set_figure(fig)
+            expected = Text._get_layout(fresh, renderer)[0].get_points().ravel().tolist()  # type: ignore[attr-defined]
+            assert list(plots._probe_extent(probe, s, renderer)) == expected, (dpi, s)
