@@ -160,6 +160,39 @@ def test_simple_span_uniform_load_is_5_w_l4_over_384_ei() -> None:
     assert out["slope_right"] == pytest.approx(-w * L**3 / (24 * ei), rel=1e-5)
 
 
+def _simple_span_dense(xi: np.ndarray, kappa: np.ndarray, w_left: float, w_right: float
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The reference: the whole matrix of the simply supported span's G (xi (L - x) / L
+    up to x, x (L - xi) / L beyond) times the trapezoidal weights, as a product."""
+    s = xi - xi[0]
+    L = s[-1]
+    x, t = s[:, None], s[None, :]
+    g = np.where(t <= x, t * (L - x), x * (L - t)) / L
+    h = np.diff(s)
+    wts = np.zeros_like(s)
+    wts[:-1] += h / 2
+    wts[1:] += h / 2
+    chord = w_left + (w_right - w_left) * (s[:, None] / L)
+    w = (g * wts) @ kappa + chord
+    return (w, (w_right - w_left) / L + ((L - s) * wts) @ kappa / L,
+            (w_right - w_left) / L - (s * wts) @ kappa / L)
+
+
+def test_simple_span_running_sums_equal_the_whole_influence_matrix() -> None:
+    # an uneven grid with a repeated point (a jump of curvature at a point load or a
+    # change of section), several diagrams at once, settled supports
+    rng = np.random.default_rng(5)
+    xi = np.sort(np.r_[0.0, 7.3, rng.uniform(0.0, 7.3, 120), [2.5, 2.5]])
+    kappa = np.c_[np.sin(xi) + 2.0, rng.normal(size=xi.size), np.where(xi < 2.5, 1.0, -3.0)]
+    kappa *= 1e-3
+    out = curvature.simple_span(xi, kappa, 0.004, -0.002)
+    w, slope_left, slope_right = _simple_span_dense(xi, kappa, 0.004, -0.002)
+    scale = np.abs(w).max()
+    np.testing.assert_allclose(out["w"], w, rtol=0, atol=1e-13 * scale)
+    np.testing.assert_allclose(out["slope_left"], slope_left, rtol=1e-12)
+    np.testing.assert_allclose(out["slope_right"], slope_right, rtol=1e-12)
+
+
 def test_fixed_ended_span_uniform_load_is_w_l4_over_384_ei() -> None:
     # fixed-ended moments -wL^2/12 superposed: midspan deflection w L^4 / (384 EI)
     L, w, ei = 6.0, 20.0, 4.0e4

@@ -7,8 +7,9 @@ curvature (a point load, a change of stiffness) should be a grid point.
 
 - A span supported at both ends: w(x) = chord + integral of G(x, xi) kappa(xi) dxi,
   with G the influence line of a simply supported span (virtual work: the moment of a
-  unit load at x), G = xi (L - x) / L for xi <= x and x (L - xi) / L beyond.  The chord
-  joins the support deflections (springs, settlements; 0 on rigid supports).
+  unit load at x), G = xi (L - x) / L for xi <= x and x (L - xi) / L beyond, summed as
+  two running sums along the span (the whole matrix of G is the tests' reference).
+  The chord joins the support deflections (springs, settlements; 0 on rigid supports).
 - A cantilever: w = w_root + theta_root s - integral over the root..x of (s - t) kappa,
   with s measured from the root; the root slope comes from the neighbouring span or is
   0 at a support that restrains rotation.
@@ -40,17 +41,22 @@ def simple_span(xi: np.ndarray, kappa: np.ndarray, w_left: np.ndarray | float = 
     k2 = kappa[:, None] if flat else kappa
     length = xi[-1] - xi[0]
     s = xi - xi[0]
-    x = s[:, None]
-    t = s[None, :]
-    g = np.where(t <= x, t * (length - x), x * (length - t)) / length
     weights = _weights(s)
     wl = np.asarray(w_left, dtype=float)
     wr = np.asarray(w_right, dtype=float)
     chord = wl + (wr - wl) * (s[:, None] / length)
-    w = (g * weights[None, :]) @ k2 + chord
+    # G split at x: the points up to x weigh xi (L - x) / L, those beyond x (L - xi) / L,
+    # so each part is a running sum along the span (n operations, not n x n): from
+    # the left end up to and including x, and from the right end down to beyond x
+    # (a point at x itself weighs the same either way)
+    left = np.cumsum((s * weights)[:, None] * k2, axis=0)
+    right_terms = ((length - s) * weights)[:, None] * k2
+    right = np.zeros_like(right_terms)
+    right[:-1] = np.cumsum(right_terms[:0:-1], axis=0)[::-1]
+    w = ((length - s)[:, None] * left + s[:, None] * right) / length + chord
     slope_chord = (wr - wl) / length
-    slope_left = slope_chord + ((length - s) * weights) @ k2 / length
-    slope_right = slope_chord - (s * weights) @ k2 / length
+    slope_left = slope_chord + right_terms.sum(axis=0) / length
+    slope_right = slope_chord - left[-1] / length
     if flat:
         return {"w": w[:, 0], "slope_left": np.asarray(slope_left)[0],
                 "slope_right": np.asarray(slope_right)[0]}
