@@ -130,7 +130,7 @@ def _section_arrays(x: object, b: object, d: object, fc: object, fy: object,
 
 #: Half-width of the bracket put around the closed-form block depth of a
 #: tension-controlled section before bisection (relative to the depth).
-SEED_RTOL = 1e-10
+SEED_RTOL = 1e-13
 
 
 def tension_controlled_depth(mu: np.ndarray, b: np.ndarray, d: np.ndarray, fc: np.ndarray,
