@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import multiprocessing
 import os
 import signal
 import sys
@@ -22,9 +23,9 @@ CHUNKS_PER_SLOT = 4
 MAX_CHUNK = 16
 
 
-def _watch_parent(parent: int) -> None:
-    """End this worker when the coordinating process ends, even by SIGKILL: at once on
-    Linux (PR_SET_PDEATHSIG), within a second elsewhere (polling the parent id)."""
+def die_with_parent() -> None:
+    """On Linux, have the kernel kill this process (SIGKILL) when the thread that started
+    it ends, with its process (PR_SET_PDEATHSIG); elsewhere nothing."""
     if sys.platform.startswith("linux"):
         try:
             import ctypes
@@ -33,13 +34,26 @@ def _watch_parent(parent: int) -> None:
         except (OSError, AttributeError):
             pass
 
-    def poll() -> None:
+
+def _watch_parent(parent: int) -> None:
+    """End this worker when the coordinating process ends, even by SIGKILL: at once on
+    Linux (PR_SET_PDEATHSIG, to this process's parent: the coordinator, or the fork
+    server, which dies with the coordinator), and within moments elsewhere (a thread
+    that waits on multiprocessing's pipe from the coordinator, which closes when it
+    ends; the parent id polled in a process multiprocessing did not start)."""
+    die_with_parent()
+    coordinator = multiprocessing.parent_process()
+
+    def watch() -> None:
+        if coordinator is not None and coordinator.pid == parent:
+            coordinator.join()  # returns when the coordinator's end of the pipe closes
+            os._exit(1)
         while True:
             if os.getppid() != parent:
                 os._exit(1)
             time.sleep(1.0)
 
-    threading.Thread(target=poll, name="envelope-parent-watch", daemon=True).start()
+    threading.Thread(target=watch, name="envelope-parent-watch", daemon=True).start()
 
 
 #: Thread pools of the numerical libraries, one thread per worker process unless the
