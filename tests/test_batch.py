@@ -518,8 +518,10 @@ def test_batch_survives_a_killed_local_worker(cases60: Path, clean60: Path,
     out = tmp_path / "out"
     proc = start_batch(str(cases60), "-o", str(out), "--workers", "2")
     wait_until(lambda: manifests(out) >= 6 or proc.poll() is not None, "beams to be written")
-    workers = [p for p in psutil.Process(proc.pid).children()
-               if "resource_tracker" not in " ".join(p.cmdline())]
+    # the pool's workers: forked by the batch's fork server (its children), or spawned;
+    # not the resource tracker nor the server itself
+    workers = [p for p in psutil.Process(proc.pid).children(recursive=True)
+               if "resource_tracker" not in " ".join(p.cmdline()) and not p.children()]
     assert proc.poll() is None and workers, "the batch ended before a worker could be killed"
     workers[0].kill()
     stdout, stderr = proc.communicate(timeout=HANG_GUARD)

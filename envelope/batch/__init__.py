@@ -11,7 +11,8 @@ No engineering here, only orchestration:
   in its metadata.  A rerun of a beam first removes the manifest, so a folder where a
   kill left some files new and others old is never taken as done;
 * the work: beams go to the workers in chunks (lists of paths), so each worker process
-  imports the engine once and the per-task cost is spread over several beams.  Each beam
+  imports the engine once (where it can, a fork of one server process of the batch that
+  imported it) and the per-task cost is spread over several beams.  Each beam
   is written with :func:`envelope.api.write`, exactly as ``envelope run`` writes it;
 * failures: a bad file, an unstable beam or any other error is one row of
   ``OUT/_all/failures.csv`` and the batch goes on.  A worker process that dies (killed,
@@ -30,9 +31,11 @@ that ``envelope --help`` stays quick.
 The modules: :mod:`~envelope.batch.model` (errors, entries, outcomes, the summary),
 :mod:`~envelope.batch.discovery`, :mod:`~envelope.batch.resume`,
 :mod:`~envelope.batch.worker` (one beam, one chunk), :mod:`~envelope.batch.local` (the
-process pool), :mod:`~envelope.batch.cluster` (dask), :mod:`~envelope.batch.combined`
-(OUT/_all), :mod:`~envelope.batch.progress`, :mod:`~envelope.batch.runner`
-(:func:`run_batch`) and :mod:`~envelope.batch.command` (the click command).
+process pool), :mod:`~envelope.batch.forkserver` (the pool's workers forked from a warm
+server of the batch, with :mod:`~envelope.batch.preload`), :mod:`~envelope.batch.cluster`
+(dask), :mod:`~envelope.batch.combined` (OUT/_all), :mod:`~envelope.batch.progress`,
+:mod:`~envelope.batch.runner` (:func:`run_batch`) and :mod:`~envelope.batch.command` (the
+click command).
 """
 
 from __future__ import annotations

@@ -13,6 +13,7 @@ from collections import deque
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
+from multiprocessing.context import BaseContext
 
 from envelope.batch.model import Outcome, Task
 from envelope.batch.worker import _died, run_chunk
@@ -67,7 +68,10 @@ def _init_worker(parent: int, plots: bool = False) -> None:
     """Once per worker process: leave Ctrl-C to the coordinator, die with it, one thread
     per numerical library (set before numpy loads), and import the engine and pyarrow
     (and, for a batch with figures, matplotlib the lean way:
-    :mod:`envelope.leanimport`) now rather than in the first beam."""
+    :mod:`envelope.leanimport`) now rather than in the first beam.  A worker forked
+    from the batch's warm server (:mod:`envelope.batch.preload`) has all this already,
+    and the imports here cost nothing; where the server could not do them (a failed
+    import), they are done here, and a failure shows as the worker's."""
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     _watch_parent(parent)
     for name in THREAD_VARIABLES:
@@ -80,26 +84,97 @@ def _init_worker(parent: int, plots: bool = False) -> None:
         import_lean()
 
 
-def _pool(workers: int, plots: bool = False) -> ProcessPoolExecutor:
-    import multiprocessing
+def _engine_origin() -> str:
+    """The folder of the engine this process runs (a worker's is the coordinator's)."""
+    import envelope
 
-    # spawn: a clean interpreter, no copy of the coordinator's threads or locks
-    return ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context("spawn"),
+    return os.path.dirname(os.path.realpath(envelope.__file__))
+
+
+def _context(plots: bool) -> BaseContext:
+    """The start method of a batch's workers: forked from a warm server of the batch's
+    own (:mod:`envelope.batch.forkserver`) where multiprocessing can, else spawned
+    (clean interpreters, no copy of the coordinator's threads or locks).  The server
+    is started here, so that it imports while the batch gets ready (stopped by
+    :meth:`_Start.close`)."""
+    if "forkserver" in multiprocessing.get_all_start_methods():
+        try:
+            from envelope.batch.forkserver import WarmContext
+
+            warm = WarmContext(["envelope.batch.preload_figures" if plots
+                                else "envelope.batch.preload"])
+            warm.start()
+            return warm
+        except (ImportError, OSError):  # no fork server here: spawned workers
+            pass
+    return multiprocessing.get_context("spawn")
+
+
+def _pool(workers: int, plots: bool = False, context: BaseContext | None = None
+          ) -> ProcessPoolExecutor:
+    return ProcessPoolExecutor(max_workers=workers,
+                               mp_context=context or multiprocessing.get_context("spawn"),
                                initializer=_init_worker, initargs=(os.getpid(), plots))
+
+
+class _Start:
+    """How a batch starts its pools' workers (:func:`_context`), the same for every pool
+    of the batch; :meth:`close` when the batch is done."""
+
+    def __init__(self, plots: bool) -> None:
+        self.plots = plots
+        self.context = _context(plots)
+        self.origin = _engine_origin()
+        self.checked = False
+
+    def pool(self, workers: int) -> ProcessPoolExecutor:
+        pool = _pool(workers, self.plots, self.context)
+        if not self.checked:
+            try:
+                same = self._same_engine(pool)
+            except BaseException:  # Ctrl-C while the first worker starts
+                pool.shutdown(wait=True, cancel_futures=True)
+                raise
+            self.checked = True
+            if not same:
+                pool.shutdown(wait=True, cancel_futures=True)
+                self.close()
+                self.context = multiprocessing.get_context("spawn")
+                pool = _pool(workers, self.plots, self.context)
+        return pool
+
+    def _same_engine(self, pool: ProcessPoolExecutor) -> bool:
+        """Whether the workers of a fork server's ``pool`` run this process's engine.
+        The server imports it (Python 3.11 to 3.13) by the path a new interpreter
+        started here would use, not this process's ``sys.path``: a script that put
+        another source tree first would otherwise run its batch on another engine."""
+        if getattr(self.context, "stop", None) is None:
+            return True
+        try:
+            return pool.submit(_engine_origin).result() == self.origin
+        except Exception:  # an engine without _engine_origin, or a worker that died
+            return False
+
+    def close(self) -> None:
+        """End the fork server, if there is one."""
+        stop = getattr(self.context, "stop", None)
+        if stop is not None:
+            stop()
 
 
 Work = Callable[[Sequence[Task], str, bool], list[Outcome]]
 
 
 def _drain(chunks: Sequence[list[Task]], workers: int, window: int, out: str, plots: bool,
-           report: Callable[[list[Outcome]], None], work: Work) -> list[list[Task]]:
+           report: Callable[[list[Outcome]], None], work: Work, start: _Start
+           ) -> list[list[Task]]:
     """Run ``work`` on each of ``chunks`` on pools of ``workers`` processes with at most
     ``window`` tasks in flight; returns the chunks that were in flight when a worker
     process died (a new pool takes the rest)."""
     todo = deque(chunks)
     broken: list[list[Task]] = []
     while todo:
-        pool = _pool(max(1, min(workers, len(todo))), plots)
+        pool = start.pool(max(1, min(workers, len(todo))))
         try:
             inflight: dict[Future[list[Outcome]], list[Task]] = {}
             dead = False
@@ -139,12 +214,16 @@ def run_local(tasks: Sequence[Task], out: str, plots: bool, workers: int,
     beams lost again are run alone on a pool of one, where a death is that beam's."""
     size = chunk or chunk_size(len(tasks), workers)
     chunks = [list(tasks[i:i + size]) for i in range(0, len(tasks), size)]
-    lost = _drain(chunks, workers, 2 * workers, out, plots, report, work)
-    if lost:
-        singles = [[t] for c in lost for t in c]
-        lost = _drain(singles, workers, workers, out, plots, report, work)
-    if lost:
-        lost = _drain(lost, 1, 1, out, plots, report, work)
+    start = _Start(plots)
+    try:
+        lost = _drain(chunks, workers, 2 * workers, out, plots, report, work, start)
+        if lost:
+            singles = [[t] for c in lost for t in c]
+            lost = _drain(singles, workers, workers, out, plots, report, work, start)
+        if lost:
+            lost = _drain(lost, 1, 1, out, plots, report, work, start)
+    finally:
+        start.close()
     for (task,) in lost:
         report([_died(task, "the worker process died while analysing this beam")])
 
