@@ -14,7 +14,11 @@ the batch and its workers) is recorded beside it: on a machine shared with other
 it varies less than the wall time.  N defaults to 60.  ``--against TREE`` also runs the
 engine of another source tree (a worktree of an earlier commit) in the same rounds, its
 with and without figures interleaved with this tree's (A B B A for each), and reports
-each tree's ratios and the figures' CPU per beam of both.
+each tree's ratios and the figures' CPU per beam of both.  Each tree's batches run in
+that tree's folder (``python -m`` puts the working folder first on the path, before
+PYTHONPATH: run from this tree's folder, the other "tree" ran this engine), and the
+engine version each wrote into its manifests is recorded (``engines``), with a warning
+when both are the same.
 
 ``worker``: one batch worker's chunk in this process (:func:`run_chunk`, as a worker
 runs it, so the figure is reused across beams), with and without figures; the CPU time
@@ -99,7 +103,9 @@ def _batch_once(cases: Path, out: Path, plots: bool, tree: Path = ROOT
     env = dict(os.environ, PYTHONPATH=str(tree), MPLBACKEND="Agg")
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
-    subprocess.run(args, check=True, env=env, stdout=subprocess.DEVNULL)
+    # run in the tree: ``python -m`` puts the working folder first on the path, before
+    # PYTHONPATH, so from another source tree's folder it would run that tree's engine
+    subprocess.run(args, check=True, env=env, stdout=subprocess.DEVNULL, cwd=tree)
     wall = time.perf_counter() - start
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
@@ -138,8 +144,15 @@ def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
     in the same rounds (each round: this tree A B B A, then the other's)."""
     cases = work / "cases"
     trees = {"this": ROOT, "other": other}
-    for tree in trees.values():  # file cache and compiled modules, untimed
+    engines = {}
+    for name, tree in trees.items():  # file cache and compiled modules, untimed
         _batch_once(cases, work / "warm", True, tree)
+        # the engine that ran, from a manifest: each tree's own
+        manifest = next((work / "warm").glob("*/.complete.json"))
+        engines[name] = json.loads(manifest.read_text())["version"]
+        shutil.rmtree(work / "warm")
+    if engines["this"] == engines["other"] and _commit(ROOT) != _commit(other):
+        print(f"warning: both trees ran the same engine ({engines['this']})")
     cpu: dict[str, dict[str, list[float]]] = {t: {"without": [], "with": []} for t in trees}
     wall: dict[str, dict[str, list[float]]] = {t: {"without": [], "with": []} for t in trees}
     for _ in range(repeats):
@@ -150,7 +163,8 @@ def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
                 w, used = _batch_once(cases, out, plots, tree)
                 wall[name]["with" if plots else "without"].append(w)
                 cpu[name]["with" if plots else "without"].append(used)
-    result: dict = {"other_tree_commit": _commit(other), "raw_cpu_s": cpu, "raw_wall_s": wall}
+    result: dict = {"other_tree_commit": _commit(other), "engines": engines, "raw_cpu_s": cpu,
+                    "raw_wall_s": wall}
     for name in trees:
         med = {k: statistics.median(v) for k, v in cpu[name].items()}
         med_wall = {k: statistics.median(v) for k, v in wall[name].items()}
