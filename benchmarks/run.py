@@ -545,7 +545,7 @@ def bench_batch(plan: Plan, work: Path, targets: list[Target]) -> dict[str, Any]
     small_runs: list[Run] = []
     plain: list[float] = []
     # the first fifth of the beams alone: the difference is the marginal cost of the rest,
-    # with the pool's start (spawned workers importing the engine) taken out
+    # with the pool's start (the workers, or their fork server, importing the engine) taken out
     n_small = max(1, len(paths) // 5)
     small_args = [a for a in args if a not in set(map(str, paths[n_small:]))]
 
