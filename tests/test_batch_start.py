@@ -8,7 +8,8 @@
   start method, and a healthy worker outlives the old one-second parent check;
 * a server whose engine is not the coordinator's is not used (spawned workers instead);
 * a fork server killed during a batch is replaced, and the batch goes on;
-* a failed import in the server is kept, not raised.
+* a failed import in the server is kept, not raised;
+* without the forkserver start method (Windows) the workers are spawned.
 
 The properties checked are this project's own requirements (common practice for process
 pools: children never outlive their coordinator); no outside reference applies.
@@ -195,3 +196,18 @@ def test_a_failed_import_in_the_server_is_kept_not_raised(tmp_path: Path,
                                       "envelope_test_missing_module"}
     assert isinstance(forkserver.FAILED["envelope_test_broken_module"], RuntimeError)
     assert isinstance(forkserver.FAILED["envelope_test_missing_module"], ImportError)
+
+
+def test_without_a_fork_server_the_workers_are_spawned(monkeypatch: pytest.MonkeyPatch) -> None:
+    """As on Windows: no "forkserver" start method, spawned workers, nothing to stop."""
+    monkeypatch.setattr(multiprocessing, "get_all_start_methods", lambda: ["spawn"])
+    start = _Start(True)
+    assert start.context.get_start_method() == "spawn"
+    pool = start.pool(1)
+    try:
+        facts = pool.submit(_worker_facts).result(timeout=120)
+    finally:
+        pool.shutdown(wait=True)
+        start.close()
+    assert facts["ppid"] == os.getpid() and facts["preload"] is False
+    assert facts["sigint"] is True
