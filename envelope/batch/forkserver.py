@@ -35,6 +35,7 @@ import io
 import os
 import signal
 import time
+from collections.abc import Sequence
 from multiprocessing import context, forkserver, popen_forkserver, spawn, util
 from multiprocessing.process import BaseProcess
 from typing import Any
@@ -113,12 +114,61 @@ class _Process(context.ForkServerProcess):
         return _Popen(process_obj, process_obj._server)
 
 
+class _Server(forkserver.ForkServer):
+    """multiprocessing's fork server, one per :class:`WarmContext`, that can be stopped
+    and that replaces itself when it was killed."""
+
+    def connect_to_new_process(self, fds: Sequence[int]) -> tuple[int, int]:
+        """multiprocessing's, started again where the server was killed but not yet
+        reaped: its socket is closed, but ``ensure_running`` takes it for alive."""
+        try:
+            return super().connect_to_new_process(fds)
+        except ConnectionRefusedError:
+            self.stop(grace=0.0)
+            return super().connect_to_new_process(fds)
+
+    def pid(self) -> int | None:
+        """The server's process id, while it runs."""
+        pid: int | None = getattr(self, "_forkserver_pid", None)
+        return pid
+
+    def stop(self, grace: float) -> None:
+        """End the server: close this process's end of its "alive" pipe, so that it ends
+        once its workers have, and wait for it (killed after ``grace`` seconds; a worker
+        left then dies with it, by its parent-death signal).  Waiting also counts its
+        CPU time, and its workers', in this process's children."""
+        server: Any = self
+        pid = self.pid()
+        alive = getattr(server, "_forkserver_alive_fd", None)
+        if pid is None:
+            return
+        server._forkserver_pid = server._forkserver_alive_fd = None
+        if alive is not None:
+            os.close(alive)
+        address = getattr(server, "_forkserver_address", None)
+        server._forkserver_address = None
+        try:
+            deadline = time.monotonic() + grace
+            while os.waitpid(pid, os.WNOHANG)[0] == 0:
+                if time.monotonic() >= deadline:
+                    with contextlib.suppress(ProcessLookupError):
+                        os.kill(pid, signal.SIGKILL)
+                    os.waitpid(pid, 0)
+                    break
+                time.sleep(0.005)
+        except ChildProcessError:  # already waited for
+            pass
+        if isinstance(address, str) and not util.is_abstract_socket_namespace(address):
+            with contextlib.suppress(OSError):
+                os.unlink(address)
+
+
 class WarmContext(context.ForkServerContext):
     """A "forkserver" context with a server of its own, that imports ``preload`` (module
     names) before it forks any worker."""
 
     def __init__(self, preload: list[str]) -> None:
-        self.server = forkserver.ForkServer()
+        self.server = _Server()
         self.server.set_forkserver_preload(preload)
 
     def Process(self, *args: Any, **kwargs: Any) -> _Process:  # type: ignore[override]
@@ -134,34 +184,8 @@ class WarmContext(context.ForkServerContext):
 
     def server_pid(self) -> int | None:
         """The server's process id, while it runs."""
-        pid: int | None = getattr(self.server, "_forkserver_pid", None)
-        return pid
+        return self.server.pid()
 
     def stop(self) -> None:
-        """End the server: close this process's end of its "alive" pipe, so that it ends
-        once its workers have, and wait for it (killed after :data:`STOP_GRACE`
-        seconds; a worker left then dies with it, by its parent-death signal).  Waiting
-        also counts its CPU time, and its workers', in this process's children."""
-        server: Any = self.server
-        pid = getattr(server, "_forkserver_pid", None)
-        alive = getattr(server, "_forkserver_alive_fd", None)
-        if pid is None:
-            return
-        server._forkserver_pid = server._forkserver_alive_fd = None
-        if alive is not None:
-            os.close(alive)
-        address = getattr(server, "_forkserver_address", None)
-        server._forkserver_address = None
-        try:
-            deadline = time.monotonic() + STOP_GRACE
-            while os.waitpid(pid, os.WNOHANG)[0] == 0:
-                if time.monotonic() > deadline:
-                    os.kill(pid, signal.SIGKILL)
-                    os.waitpid(pid, 0)
-                    break
-                time.sleep(0.005)
-        except ChildProcessError:  # already waited for
-            pass
-        if isinstance(address, str) and not util.is_abstract_socket_namespace(address):
-            with contextlib.suppress(OSError):
-                os.unlink(address)
+        """End the server (:meth:`_Server.stop`, killed after :data:`STOP_GRACE`)."""
+        self.server.stop(STOP_GRACE)
