@@ -30,7 +30,7 @@ from pathlib import Path
 
 import pytest
 
-from envelope.batch import forkserver
+from envelope.batch import forkserver, local
 from envelope.batch.local import _Start, run_local
 from envelope.batch.model import Outcome, Task
 
@@ -198,9 +198,16 @@ def test_a_failed_import_in_the_server_is_kept_not_raised(tmp_path: Path,
     assert isinstance(forkserver.FAILED["envelope_test_missing_module"], ImportError)
 
 
-def test_without_a_fork_server_the_workers_are_spawned(monkeypatch: pytest.MonkeyPatch) -> None:
-    """As on Windows: no "forkserver" start method, spawned workers, nothing to stop."""
-    monkeypatch.setattr(multiprocessing, "get_all_start_methods", lambda: ["spawn"])
+@pytest.mark.parametrize("why", ["no fork server", "another Python"])
+def test_without_a_fork_server_the_workers_are_spawned(why: str,
+                                                       monkeypatch: pytest.MonkeyPatch) -> None:
+    """As on Windows (no "forkserver" start method), or on a Python whose
+    multiprocessing the warm server was not written for: spawned workers, nothing to
+    stop."""
+    if why == "no fork server":
+        monkeypatch.setattr(multiprocessing, "get_all_start_methods", lambda: ["spawn"])
+    else:
+        monkeypatch.setattr(local, "FORK_SERVER_PYTHONS", ((3, 10),))
     start = _Start(True)
     assert start.context.get_start_method() == "spawn"
     pool = start.pool(1)

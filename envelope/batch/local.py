@@ -91,13 +91,21 @@ def _engine_origin() -> str:
     return os.path.dirname(os.path.realpath(envelope.__file__))
 
 
+#: Python versions whose multiprocessing internals :mod:`envelope.batch.forkserver`
+#: repeats (``popen_forkserver.Popen._launch`` and ``ForkServer``'s private state);
+#: on any other the workers are spawned, as where there is no fork server at all.
+FORK_SERVER_PYTHONS = ((3, 11), (3, 12), (3, 13))
+
+
 def _context(plots: bool) -> BaseContext:
     """The start method of a batch's workers: forked from a warm server of the batch's
     own (:mod:`envelope.batch.forkserver`) where multiprocessing can, else spawned
-    (clean interpreters, no copy of the coordinator's threads or locks).  The server
+    (clean interpreters, no copy of the coordinator's threads or locks), as on a
+    Python the server was not written for (:data:`FORK_SERVER_PYTHONS`).  The server
     is started here, so that it imports while the batch gets ready (stopped by
     :meth:`_Start.close`)."""
-    if "forkserver" in multiprocessing.get_all_start_methods():
+    if (sys.version_info[:2] in FORK_SERVER_PYTHONS
+            and "forkserver" in multiprocessing.get_all_start_methods()):
         try:
             from envelope.batch.forkserver import WarmContext
 
