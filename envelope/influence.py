@@ -32,7 +32,7 @@ from envelope import config
 from envelope.loading import POINT, UnitCases
 from envelope.mesh import Mesh, build_mesh, locate
 from envelope.model import Beam
-from envelope.recovery import Points, evaluate
+from envelope.recovery import Points, evaluate_some
 from envelope.solver import solve
 from envelope.values import dataclass
 
@@ -126,19 +126,22 @@ def _sample_cases(beam: Beam, mesh: Mesh, bounds: np.ndarray,
     )
 
 
-def influence_lines(beam: Beam, points: Points) -> InfluenceLines:
-    """Exact influence lines of every quantity at ``points`` and of every reaction."""
+def influence_lines(beam: Beam, points: Points,
+                    quantities: tuple[str, ...] = QUANTITIES) -> InfluenceLines:
+    """Exact influence lines of ``quantities`` (default all four) at ``points`` and of
+    every reaction: only the quantities asked for are evaluated and fitted (the
+    evaluation at every point of every sample load is most of the work)."""
     mesh = build_mesh(beam)
     bounds, span = _piece_bounds(beam, mesh, points)
     units = _sample_cases(beam, mesh, bounds, span)
     sol = solve(mesh, beam.supports, units, beam.source)
-    resp = evaluate(mesh, units, sol, points)
+    resp = evaluate_some(mesh, units, sol, points, quantities)
     n_p = span.size
 
     def fit(values: np.ndarray) -> np.ndarray:
         return values.reshape(values.shape[0], n_p, 4) @ _VANDERMONDE_INV.T
 
-    coef = {q: fit(getattr(resp, q)) for q in QUANTITIES}
+    coef = {q: fit(resp[q]) for q in QUANTITIES if q in quantities}
     return InfluenceLines(bounds, span, coef, fit(sol.reaction))
 
 

@@ -135,7 +135,7 @@ def point_effects(beam: Beam, points: Points, quantities: tuple[str, ...]
     step = config.MOVING_CHUNK_ROWS
     parts: dict[str, list[MovingEffect]] = {q: [] for q in quantities}
     for lo in range(0, max(points.n, 1), step):
-        lines = influence_lines(beam, points.take(slice(lo, lo + step)))
+        lines = influence_lines(beam, points.take(slice(lo, lo + step)), quantities)
         for q in quantities:
             parts[q].append(_worst(lines, q, loads, None, unit))
     return {q: _concat(parts[q]) for q in quantities}
@@ -169,7 +169,7 @@ def reaction_effects(beam: Beam, joints: np.ndarray) -> tuple[MovingEffect, Movi
     right = np.r_[np.ones(n_s, bool), np.zeros(n_s, bool)]
     order = np.lexsort((right, beam.geometry.joint_x[span] + x_span))
     pts = make_points(beam, span[order], x_span[order], right[order])
-    lines = influence_lines(beam, pts)
+    lines = influence_lines(beam, pts, ("moment",))
     unit = beam.units.consistent("length")
     reaction = _worst(lines, "reaction", loads, np.asarray(joints), unit)
     # rows of pts: joint j right side is span j at 0; left side is span j-1 at its end
@@ -197,7 +197,7 @@ def moment_and_reaction_effect(beam: Beam, points: Points, joint: int, weight: f
     times the reaction of ``joint`` (a bearing support's reduced moment)."""
     from envelope.influence import InfluenceLines, influence_lines
 
-    lines = influence_lines(beam, points)
+    lines = influence_lines(beam, points, ("moment",))
     both = lines.coef["moment"] + weight * lines.reaction[joint][None, :, :]
     own = InfluenceLines(lines.bounds, lines.span, {"moment": both}, lines.reaction)
     return _worst(own, "moment", moving_loads(beam), None, beam.units.consistent("length"))
@@ -210,7 +210,7 @@ def moment_functional_effect(beam: Beam, points: Points, weights: np.ndarray
     functional of the moment influence lines."""
     from envelope.influence import InfluenceLines, influence_lines
 
-    lines = influence_lines(beam, points)
+    lines = influence_lines(beam, points, ("moment",))
     table = np.tensordot(np.asarray(weights, dtype=float), lines.coef["moment"], axes=(1, 0))
     own = InfluenceLines(lines.bounds, lines.span, {"moment": table}, lines.reaction)
     return _worst(own, "moment", moving_loads(beam), None, beam.units.consistent("length"))

@@ -53,6 +53,23 @@ def test_simple_span_moment_line_is_the_closed_form() -> None:
     assert r[1] == pytest.approx(xi / L, abs=FIT_RTOL)
 
 
+@pytest.mark.parametrize("asked", [("moment",), ("deflection", "shear"), ("rotation",)])
+def test_lines_of_some_quantities_are_those_of_all_bit_for_bit(asked: tuple[str, ...]
+                                                               ) -> None:
+    # only the quantities asked for are evaluated and fitted; each is the same line as
+    # from the call that makes all four, and the reactions too
+    beam = _continuous()
+    pts = make_points(beam, np.array([0, 1, 1, 2, 3]), np.array([2.0, 0.0, 3.3, 6.0, 1.0]),
+                      np.array([True, True, True, False, True]))
+    every = influence_lines(beam, pts)
+    some = influence_lines(beam, pts, asked)
+    assert set(some.coef) == set(asked)
+    for q in asked:
+        np.testing.assert_array_equal(some.coef[q], every.coef[q])
+    np.testing.assert_array_equal(some.reaction, every.reaction)
+    np.testing.assert_array_equal(some.bounds, every.bounds)
+
+
 def test_point_load_worst_position_gives_pl_over_4_at_midspan() -> None:
     L, P = 8.0, 9.0
     beam = _simple(L)
