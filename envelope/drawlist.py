@@ -497,6 +497,19 @@ def draw_line(renderer: Any, line: Any, x: np.ndarray, y: np.ndarray) -> None:
             renderer.draw_markers(gc, alt, alt_trans, path, affine, fcalt_rgba)
 
 
+def _collection_gc(renderer: Any, drawn: Any) -> Any:
+    """A new graphics context with ``drawn``'s clip, snapping, join and cap styles, as
+    ``Collection.draw`` sets them up."""
+    gc = renderer.new_gc()
+    drawn._set_gc_clip(gc)
+    gc.set_snap(drawn.get_snap())
+    if drawn._joinstyle:
+        gc.set_joinstyle(drawn._joinstyle)
+    if drawn._capstyle:
+        gc.set_capstyle(drawn._capstyle)
+    return gc
+
+
 def _collection_plan(renderer: Any, drawn: Any) -> Any:
     """What ``Collection.draw`` sets up for ``drawn``'s style: (gc, transform, offset
     transform, a single path's gc or None); None where the
@@ -507,25 +520,13 @@ def _collection_plan(renderer: Any, drawn: Any) -> Any:
             or not drawn.get_transform().is_affine
             or not drawn.get_offset_transform().is_affine or len(drawn.get_transforms())):
         return None
-    gc = renderer.new_gc()
-    drawn._set_gc_clip(gc)
-    gc.set_snap(drawn.get_snap())
-    if drawn._joinstyle:
-        gc.set_joinstyle(drawn._joinstyle)
-    if drawn._capstyle:
-        gc.set_capstyle(drawn._capstyle)
+    gc = _collection_gc(renderer, drawn)
     facecolors, edgecolors = drawn.get_facecolor(), drawn.get_edgecolor()
     single = None
     if (len(facecolors) == 1 and len(edgecolors) == 1 and len(drawn._linewidths) == 1
             and all(ls[1] is None for ls in drawn._linestyles)
             and len(drawn._antialiaseds) == 1 and len(drawn._urls) == 1):
-        single = renderer.new_gc()
-        drawn._set_gc_clip(single)
-        single.set_snap(drawn.get_snap())
-        if drawn._joinstyle:
-            single.set_joinstyle(drawn._joinstyle)
-        if drawn._capstyle:
-            single.set_capstyle(drawn._capstyle)
+        single = _collection_gc(renderer, drawn)
         single.set_foreground(tuple(edgecolors[0]), isRGBA=True)
         single.set_linewidth(drawn._linewidths[0])
         single.set_dashes(*drawn._linestyles[0])

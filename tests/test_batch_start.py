@@ -50,6 +50,17 @@ def _worker_facts() -> dict[str, object]:
             "sigint": signal.getsignal(signal.SIGINT) is signal.SIG_IGN}
 
 
+def _one_worker_facts(start: _Start) -> dict[str, object]:
+    """:func:`_worker_facts` of the one worker of a pool of ``start``, which is then
+    closed with the pool."""
+    pool = start.pool(1)
+    try:
+        return pool.submit(_worker_facts).result(timeout=120)
+    finally:
+        pool.shutdown(wait=True)
+        start.close()
+
+
 def _sleep_and_answer(seconds: float) -> int:
     time.sleep(seconds)
     return os.getpid()
@@ -100,12 +111,7 @@ def test_a_server_whose_engine_is_not_this_one_is_not_used() -> None:
     start = _Start(False)
     start.origin = "/elsewhere/envelope"  # as if a script had put another tree first
     server = start.context.server_pid()  # type: ignore[attr-defined]
-    pool = start.pool(1)
-    try:
-        facts = pool.submit(_worker_facts).result(timeout=120)
-    finally:
-        pool.shutdown(wait=True)
-        start.close()
+    facts = _one_worker_facts(start)
     assert start.context.get_start_method() == "spawn"
     assert facts["ppid"] == os.getpid() and facts["preload"] is False
     assert server is not None and _gone(server, timeout=5)
@@ -210,11 +216,6 @@ def test_without_a_fork_server_the_workers_are_spawned(why: str,
         monkeypatch.setattr(local, "FORK_SERVER_PYTHONS", ((3, 10),))
     start = _Start(True)
     assert start.context.get_start_method() == "spawn"
-    pool = start.pool(1)
-    try:
-        facts = pool.submit(_worker_facts).result(timeout=120)
-    finally:
-        pool.shutdown(wait=True)
-        start.close()
+    facts = _one_worker_facts(start)
     assert facts["ppid"] == os.getpid() and facts["preload"] is False
     assert facts["sigint"] is True
