@@ -99,3 +99,23 @@ def test_brackets_narrowed_together_find_each_root_either_side() -> None:
     np.testing.assert_allclose(roots, r, rtol=0, atol=1e-11)
     assert roots[3] == r[3]
     assert len(calls) < 20  # superlinear: a handful of steps for all forty together
+
+
+@pytest.mark.parametrize("n", [2, 60])  # (Python floats up to ROOT_SCALAR_BRACKETS, arrays)
+def test_a_bracket_whose_outside_sample_is_the_root_ends_there_either_way(n: int) -> None:
+    # g = x - r with its root exactly on a bracket's outside end (g_out = 0, allowed:
+    # "g_k <= 0 at outside"), the inside end above the root (the positive end is the
+    # bracket's upper end) and below it: the root is the outside sample
+    r = np.linspace(1.0, 9.0, n)
+    inside = np.where(np.arange(n) % 2 == 0, r + 0.5, r - 0.5)
+    sense = np.where(inside > r, 1.0, -1.0)  # positive inside
+
+    def g(x: np.ndarray) -> np.ndarray:
+        return sense * (x - r)
+
+    roots = cutoffs.narrow(inside, r, g(inside), g(r), g, np.full(n, 1e-12))
+    np.testing.assert_array_equal(roots, r)
+    # a straight moment sampled exactly on the capacity, at a run's start and its end
+    x = np.linspace(0.0, 10.0, 11)
+    assert cutoffs.run_around(x, x.copy(), 3.0, 10, lambda c: c, 1e-9) == (3.0, 10.0)
+    assert cutoffs.run_around(x, 10.0 - x, 3.0, 0, lambda c: 10.0 - c, 1e-9) == (0.0, 7.0)

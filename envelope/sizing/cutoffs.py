@@ -94,21 +94,24 @@ def narrow(inside: np.ndarray, outside: np.ndarray, g_in: np.ndarray, g_out: np.
     brackets step together, to ``xtol`` (:func:`envelope.search.anderson_bjorck_root`,
     each bracket turned so that its lower end is the positive one), so a search over
     many cut-off points costs as many calls of ``g`` as its slowest bracket takes steps,
-    not their sum."""
+    not their sum.  Where ``g_out`` is 0 the root is ``outside`` itself (not searched:
+    turned, such a bracket would have a zero at its positive end)."""
     from envelope.search import anderson_bjorck_root
 
     inside, outside = np.asarray(inside, dtype=float), np.asarray(outside, dtype=float)
+    g_out = np.asarray(g_out, dtype=float)
     sign = np.where(inside < outside, 1.0, -1.0)  # -1: the positive end is the upper
     lo, hi = np.minimum(inside, outside), np.maximum(inside, outside)
-    f_in, f_out = sign * np.asarray(g_in, dtype=float), sign * np.asarray(g_out, dtype=float)
+    f_in, f_out = sign * np.asarray(g_in, dtype=float), sign * g_out
     f_lo, f_hi = np.where(sign > 0, f_in, f_out), np.where(sign > 0, f_out, f_in)
 
     def f(x: np.ndarray) -> np.ndarray:
         return sign * np.asarray(g(x), dtype=float)
 
     # (the search's first point is its first step from the inside sample)
-    return anderson_bjorck_root(f, lo, hi, f_lo, f_hi, inside,
-                                np.ones(lo.size, dtype=bool), np.asarray(xtol, dtype=float))
+    exact = g_out == 0.0
+    return anderson_bjorck_root(f, lo, hi, f_lo, f_hi, np.where(exact, outside, inside),
+                                ~exact, np.asarray(xtol, dtype=float))
 
 
 def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
