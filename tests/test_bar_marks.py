@@ -3,9 +3,10 @@ together, in lockstep, against each stretch found alone.
 
 The invented beam: four concrete spans of 5.5-7.5 m under dead and live load and a
 two-axle truck moving over every span, so that every evaluation of the envelope at a
-new point is an influence-line solve.  The reference narrows each end of each stretch
-alone (:func:`envelope.sizing.cutoffs.run_around`, one point an evaluation), as
-bars.parquet was found before the lockstep search; both stop within
+new point is an influence-line solve.  The reference narrows each stretch by itself
+(:func:`envelope.sizing.cutoffs.run_around`: its own two ends, one evaluation a step),
+with the same root search (:func:`envelope.sizing.cutoffs.narrow`), not the one-end
+regula falsi bars.parquet was found with before; both stop within
 :data:`envelope.config.DESIGN_XTOL` of the span, so they agree to that.
 """
 
@@ -45,7 +46,7 @@ def analysis():  # type: ignore[no-untyped-def]
 
 def _alone(analysis, span: int, sign: float, x: np.ndarray, m: np.ndarray,  # type: ignore[no-untyped-def]
            capacity: float, seed: int) -> tuple[float, float]:
-    """One stretch narrowed by itself, one point an evaluation."""
+    """One stretch narrowed by itself (its two ends, one evaluation a step)."""
     def demand(c: np.ndarray) -> np.ndarray:
         ext = envelope_at(analysis.solved, make_points(analysis.beam, np.full(c.size, span), c),
                           "moment", labels=False)
