@@ -90,7 +90,7 @@ def test_quartic_roots_at_a_jump_an_inactive_row_and_an_exact_zero() -> None:
 def test_bisection_stops_when_no_bracket_moves_with_the_answer_of_every_step() -> None:
     # the reference: a hundred steps, always (as the sizing bisected before); brackets
     # of many scales, some already a single float wide, a NaN bracket, a predicate
-    # that is never true (the upper end stays) and one that is always true
+    # that is never true (the lower end stays) and one that is always true (the upper)
     rng = np.random.default_rng(3)
     n = 200
     target = rng.uniform(-1e3, 1e3, n) * 10.0 ** rng.integers(-6, 6, n)
