@@ -72,9 +72,12 @@ STATIONS_ROW_GROUP = 1_000_000
 #: A result table of at most this many values (rows x columns) is encoded as Parquet in
 #: memory and written to its file in one call: the encoder's many small writes through
 #: a Python file object cost about 0.3 ms a file, a tenth of a small beam's writing.  A
-#: larger table streams to its file, so a long beam's peak memory holds no copy of it
-#: (4 M values: a few tens of MiB of encoded bytes at most).
-BUFFERED_WRITE_MAX_VALUES = 1 << 22
+#: larger table streams to its file, so a long beam's peak memory holds no copy of it.
+#: The generated beams of a batch (up to 12 spans) make tables of at most some 4 000
+#: values; a 512-span beam's reactions table of 12 312 values (1.9 MB of Parquet, with
+#: its governing-case texts) cost 16 MiB of peak memory encoded in memory, its envelope
+#: table (0.5 M values) 40 MiB more.
+BUFFERED_WRITE_MAX_VALUES = 1 << 13
 
 #: Zero crossings of the envelope (detailing extents) are found to this fraction of the
 #: span length.
