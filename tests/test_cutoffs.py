@@ -119,3 +119,24 @@ def test_a_bracket_whose_outside_sample_is_the_root_ends_there_either_way(n: int
     x = np.linspace(0.0, 10.0, 11)
     assert cutoffs.run_around(x, x.copy(), 3.0, 10, lambda c: c, 1e-9) == (3.0, 10.0)
     assert cutoffs.run_around(x, 10.0 - x, 3.0, 0, lambda c: 10.0 - c, 1e-9) == (0.0, 7.0)
+
+
+@pytest.mark.parametrize(("big", "small"), [(1e6, 1e-4), (1e3, 1e-3), (100.0, 1e-6), (5.0, 2.0)])
+def test_a_jump_inside_a_bracket_is_found_to_the_tolerance(big: float, small: float) -> None:
+    # a couple makes the moment envelope jump: demand far above the capacity on one side,
+    # just below it on the other (regula falsi's steps shrink there while its bracket
+    # does not); both ends of a run, so both orientations of the bracket
+    x = np.linspace(0.0, 1.0, 11)
+
+    def falls(c: np.ndarray) -> np.ndarray:  # above up to 0.33, just below after
+        c = np.asarray(c, dtype=float)
+        return np.where(c < 0.33, big * (1.0 - c), -small - (c - 0.33))
+
+    def rises(c: np.ndarray) -> np.ndarray:  # just below up to 0.33, far above after
+        c = np.asarray(c, dtype=float)
+        return np.where(c < 0.33, small * (c - 0.33) - 1e-9, big * (c + 0.1))
+
+    end = cutoffs.run_around(x, falls(x), 0.0, 0, falls, 1e-10)[1]
+    start = cutoffs.run_around(x, rises(x), 0.0, 10, rises, 1e-10)[0]
+    assert end == pytest.approx(0.33, abs=1e-10)
+    assert start == pytest.approx(0.33, abs=1e-10)

@@ -95,7 +95,8 @@ def narrow(inside: np.ndarray, outside: np.ndarray, g_in: np.ndarray, g_out: np.
     each bracket turned so that its lower end is the positive one), so a search over
     many cut-off points costs as many calls of ``g`` as its slowest bracket takes steps,
     not their sum.  Where ``g_out`` is 0 the root is ``outside`` itself (not searched:
-    turned, such a bracket would have a zero at its positive end)."""
+    turned, such a bracket would have a zero at its positive end).  A bracket whose
+    search stalls (a jump inside it) is bisected."""
     from envelope.search import anderson_bjorck_root
 
     inside, outside = np.asarray(inside, dtype=float), np.asarray(outside, dtype=float)
@@ -110,8 +111,22 @@ def narrow(inside: np.ndarray, outside: np.ndarray, g_in: np.ndarray, g_out: np.
 
     # (the search's first point is its first step from the inside sample)
     exact = g_out == 0.0
-    return anderson_bjorck_root(f, lo, hi, f_lo, f_hi, np.where(exact, outside, inside),
-                                ~exact, np.asarray(xtol, dtype=float))
+    xtol = np.asarray(xtol, dtype=float)
+    root = anderson_bjorck_root(f, lo, hi, f_lo, f_hi, np.where(exact, outside, inside),
+                                ~exact, xtol)
+    # A jump inside a bracket (a couple's step in the moment) can stall regula falsi far
+    # from it, on the side whose values are small: its steps shrink, the bracket does
+    # not.  Where f does not change sign across [root - xtol, root + xtol] the bracket
+    # is bisected instead (to the last bit, :func:`envelope.search.bisect`).
+    left, right = f(np.maximum(root - xtol, lo)), f(np.minimum(root + xtol, hi))
+    stalled = ~exact & ~((left >= 0.0) & (right <= 0.0))
+    if stalled.any():
+        from envelope.search import bisect
+
+        a, b = bisect(lambda x: f(x) > 0.0, np.where(stalled, lo, root),
+                      np.where(stalled, hi, root))
+        root = np.where(stalled, 0.5 * (a + b), root)
+    return root
 
 
 def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
