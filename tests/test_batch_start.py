@@ -204,16 +204,18 @@ def test_a_failed_import_in_the_server_is_kept_not_raised(tmp_path: Path,
     assert isinstance(forkserver.FAILED["envelope_test_missing_module"], ImportError)
 
 
-@pytest.mark.parametrize("why", ["no fork server", "another Python"])
+@pytest.mark.parametrize("why", ["no fork server", "another Python", "another system"])
 def test_without_a_fork_server_the_workers_are_spawned(why: str,
                                                        monkeypatch: pytest.MonkeyPatch) -> None:
-    """As on Windows (no "forkserver" start method), or on a Python whose
-    multiprocessing the warm server was not written for: spawned workers, nothing to
-    stop."""
+    """As on Windows (no "forkserver" start method), on a Python whose
+    multiprocessing the warm server was not written for, or on a system other than
+    Linux: spawned workers, nothing to stop."""
     if why == "no fork server":
         monkeypatch.setattr(multiprocessing, "get_all_start_methods", lambda: ["spawn"])
-    else:
+    elif why == "another Python":
         monkeypatch.setattr(local, "FORK_SERVER_PYTHONS", ((3, 10),))
+    else:  # macOS has a fork server, but forking after numpy has loaded is unsafe there
+        monkeypatch.setattr(local, "FORK_SERVER_PLATFORMS", ("sunos",))
     start = _Start(True)
     assert start.context.get_start_method() == "spawn"
     facts = _one_worker_facts(start)

@@ -95,16 +95,22 @@ def _engine_origin() -> str:
 #: repeats (``popen_forkserver.Popen._launch`` and ``ForkServer``'s private state);
 #: on any other the workers are spawned, as where there is no fork server at all.
 FORK_SERVER_PYTHONS = ((3, 11), (3, 12), (3, 13))
+#: Systems where workers fork from the warm server: Linux.  Elsewhere (macOS among
+#: those with a fork server) a fork after numpy and pyarrow have loaded is the risk for
+#: which Python spawns by default there; the workers are spawned.
+FORK_SERVER_PLATFORMS = ("linux",)
 
 
 def _context(plots: bool) -> BaseContext:
     """The start method of a batch's workers: forked from a warm server of the batch's
     own (:mod:`envelope.batch.forkserver`) where multiprocessing can, else spawned
     (clean interpreters, no copy of the coordinator's threads or locks), as on a
-    Python the server was not written for (:data:`FORK_SERVER_PYTHONS`).  The server
+    Python the server was not written for (:data:`FORK_SERVER_PYTHONS`) or a system
+    other than Linux (:data:`FORK_SERVER_PLATFORMS`).  The server
     is started here, so that it imports while the batch gets ready (stopped by
     :meth:`_Start.close`)."""
     if (sys.version_info[:2] in FORK_SERVER_PYTHONS
+            and sys.platform.startswith(FORK_SERVER_PLATFORMS)
             and "forkserver" in multiprocessing.get_all_start_methods()):
         try:
             from envelope.batch.forkserver import WarmContext
