@@ -2,10 +2,10 @@
 
 A spawned worker is a whole interpreter that imports the engine, pyarrow and, for a
 batch with figures, matplotlib (:mod:`envelope.leanimport`): 0.2 to 0.45 s of CPU in
-every worker.  Where multiprocessing has the "forkserver" start method (Linux and other
-Unix systems), the batch starts one server process that does this once
-(:mod:`envelope.batch.preload`, :mod:`envelope.batch.preload_figures`), and each worker
-is a fork of it.
+every worker.  On Linux with Python 3.11 to 3.13 (``envelope.batch.local``:
+``FORK_SERVER_PLATFORMS``, ``FORK_SERVER_PYTHONS``), the batch starts one server
+process that does this once (:mod:`envelope.batch.preload`,
+:mod:`envelope.batch.preload_figures`), and each worker is a fork of it.
 
 The server is the batch's own, not multiprocessing's shared one (whose list of modules
 to preload is fixed when it first starts, for the whole process): :class:`WarmContext`
