@@ -36,7 +36,6 @@ import matplotlib as mpl
 import matplotlib.colors as mcolors
 import numpy as np
 from matplotlib import cbook
-from matplotlib._path import affine_transform  # type: ignore[attr-defined]
 from matplotlib.artist import Artist
 from matplotlib.backends.backend_agg import RendererAgg
 from matplotlib.collections import FillBetweenPolyCollection, LineCollection
@@ -53,6 +52,11 @@ from envelope.glyphs import (
     _hinting,
     kept_layout,
 )
+
+try:  # matplotlib's own affine loop (private: without it, transforms are used as they are)
+    from matplotlib._path import affine_transform  # type: ignore[attr-defined]
+except ImportError:  # pragma: no cover - a matplotlib that has moved it
+    affine_transform = None  # type: ignore[assignment]
 
 Item = tuple[Callable[..., None], tuple[Any, ...]]
 
@@ -268,12 +272,18 @@ class Panel:
 def _exact_affine() -> bool:
     """Whether ``(a * x + c * y) + e`` in Python floats is matplotlib's affine
     transform of a point bit for bit here (its C loop computes exactly that; a compiler
-    fusing the multiply and add would not)."""
+    fusing the multiply and add would not); False where it cannot be checked (a
+    matplotlib without that loop, or one that calls it otherwise)."""
+    if affine_transform is None:
+        return False
     rng = np.random.default_rng(11)
     matrix = np.vstack([rng.standard_normal((2, 3)) * [[3e2, 7e-3, 1e3]], [0.0, 0.0, 1.0]])
     points = rng.standard_normal((256, 2)) * 1e4
     points[::7] *= 1e-9
-    done = affine_transform(points, matrix)
+    try:
+        done = affine_transform(points, matrix)
+    except Exception:  # (a private function's signature is no promise)
+        return False
     (a, c, e), (b, d, f) = matrix[:2].tolist()
     for (x, y), (u, v) in zip(points.tolist(), done.tolist(), strict=True):
         if (a * x + c * y) + e != u or (b * x + d * y) + f != v:

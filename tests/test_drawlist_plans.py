@@ -279,3 +279,36 @@ def test_a_label_extent_kept_per_string_follows_the_resolution() -> None:
             fresh.set_figure(fig)
             expected = Text._get_layout(fresh, renderer)[0].get_points().ravel().tolist()  # type: ignore[attr-defined]
             assert list(plots._probe_extent(probe, s, renderer)) == expected, (dpi, s)
+
+
+def test_without_matplotlibs_affine_loop_positions_come_from_the_transforms(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    """The private ``matplotlib._path.affine_transform`` the import-time check calls may
+    be missing or called otherwise in another matplotlib: the check then says no (it
+    does not fail the import), and texts, labels and value labels placed through the
+    transforms themselves are matplotlib's drawing."""
+    monkeypatch.setattr(drawlist, "affine_transform", None)
+    assert drawlist._exact_affine() is False
+
+    def moved(points: Any) -> Any:  # (one argument: another signature)
+        return points
+
+    monkeypatch.setattr(drawlist, "affine_transform", moved)
+    assert drawlist._exact_affine() is False
+    monkeypatch.setattr(drawlist, "_EXACT_AFFINE", False)
+    _, ax = _figure(fast=False)
+    assert drawlist._matrix(ax.transData) is None
+    text = "+12.5\nULS 1, loaded 1-3"
+    fig, ax = _figure(fast=True)
+    panel = drawlist.panel_of(ax)
+    assert panel is not None
+    panel.text(5.37, 4.21, text, **TEXT_STYLE)
+    panel.label((6.13, -1.7), (-3.2, 8.25), text, **TEXT_STYLE)
+    plots.place_labels(fig, [plots.Label(ax, 2.5, 1.0, "-3.07 at CL", False, 0)])
+    reference, ref_ax = _figure(fast=False)
+    plots._text(ref_ax, 5.37, 4.21, text, **TEXT_STYLE)
+    plots._annotate(ref_ax, text, (6.13, -1.7), (-3.2, 8.25), textcoords="offset points",
+                    annotation_clip=False, **TEXT_STYLE)
+    plots.place_labels(reference, [plots.Label(ref_ax, 2.5, 1.0, "-3.07 at CL", False, 0)])
+    for _ in range(2):
+        _same(fig, reference)
