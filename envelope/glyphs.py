@@ -348,22 +348,29 @@ _BACKGROUNDS: dict[_Key, int | None] = {}
 def _background_key(fig: Any, width: int, height: int) -> _Key | None:
     """All that the drawing of ``fig``'s background patch on a cleared canvas of
     ``width`` x ``height`` pixels depends on, or None for a patch other than a plain
-    rectangle in figure coordinates (hatched, clipped, with path effects or a
-    sketch)."""
+    rectangle in figure coordinates (hatched, clipped, with path effects, a sketch or
+    a gap colour), or one whose state is not where this matplotlib is known to keep it
+    (its private attributes: drawn as it is)."""
     patch: Any = fig.patch
-    if (type(patch) is not Rectangle or not patch.get_visible() or patch.get_hatch()
-            or patch.get_path_effects() or patch.get_sketch_params() is not None
-            or patch.get_clip_path() is not None or patch.get_clip_box() is not None
-            or vars(patch)["_transform"] is not fig.transSubfigure):
+    try:
+        own = vars(patch)
+        if (type(patch) is not Rectangle or not patch.get_visible() or patch.get_hatch()
+                or patch.get_path_effects() or patch.get_sketch_params() is not None
+                or patch.get_clip_path() is not None or patch.get_clip_box() is not None
+                or own["_transform"] is not fig.transSubfigure
+                or own.get("_gapcolor") is not None):
+            return None
+        offset, dashes = own["_dash_pattern"]
+        # (the line style too: "None" draws no edge with the dash pattern of "-")
+        return (width, height, fig.dpi, own["_x0"], own["_y0"], own["_width"],
+                own["_height"], patch.get_angle(), patch.rotation_point,
+                tuple(patch.get_facecolor()), tuple(patch.get_edgecolor()),
+                patch.get_linewidth(), repr(patch.get_linestyle()), offset,
+                dashes if dashes is None else tuple(dashes), patch.get_alpha(),
+                patch.get_antialiased(), patch.get_snap(), patch.get_capstyle(),
+                patch.get_joinstyle(), patch.get_fill())
+    except (AttributeError, KeyError, TypeError, ValueError):
         return None
-    own = vars(patch)
-    offset, dashes = own["_dash_pattern"]
-    return (width, height, fig.dpi, own["_x0"], own["_y0"], own["_width"], own["_height"],
-            patch.get_angle(), patch.rotation_point, tuple(patch.get_facecolor()),
-            tuple(patch.get_edgecolor()), patch.get_linewidth(), offset,
-            dashes if dashes is None else tuple(dashes), patch.get_alpha(),
-            patch.get_antialiased(), patch.get_snap(), patch.get_capstyle(),
-            patch.get_joinstyle(), patch.get_fill())
 
 
 class CachedTextCanvas(FigureCanvasAgg):

@@ -312,3 +312,38 @@ def test_without_matplotlibs_affine_loop_positions_come_from_the_transforms(
     plots.place_labels(reference, [plots.Label(ref_ax, 2.5, 1.0, "-3.07 at CL", False, 0)])
     for _ in range(2):
         _same(fig, reference)
+
+
+def test_a_background_edge_switched_on_by_its_line_style_is_drawn() -> None:
+    """Two backgrounds alike but for the edge's line style: ``"None"`` draws no edge (one
+    pixel value, kept), ``"-"`` draws it; the second is drawn, not filled with the
+    first's value (a key without the line style: their dash patterns are the same)."""
+    def figure(fill: bool) -> Figure:
+        fig = Figure(figsize=(3.1, 2.0), dpi=plots.DPI, facecolor="white")
+        plots.StyledCanvas(fig).fill_background = fill
+        fig.patch.set_edgecolor(plots.INK)
+        fig.patch.set_linewidth(6.0)
+        return fig
+
+    fast, reference = figure(True), figure(False)
+    for style in ("None", "-", "None", "--"):
+        for fig in (fast, reference):
+            fig.patch.set_linestyle(style)
+        assert np.array_equal(_pixels(fast), _pixels(reference)), style
+
+
+def test_a_background_whose_patch_keeps_its_state_elsewhere_is_drawn(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    """The background's key reads the patch's private state (its place, transform and
+    dash pattern); a matplotlib that keeps one of them elsewhere (here the dash pattern
+    on the class, not the patch) draws the background as it is, without failing."""
+    from matplotlib.patches import Rectangle
+
+    fast = Figure(figsize=(3.2, 2.0), dpi=plots.DPI, facecolor=plots.PAPER)
+    plots.StyledCanvas(fast).fill_background = True
+    reference = Figure(figsize=(3.2, 2.0), dpi=plots.DPI, facecolor=plots.PAPER)
+    plots.StyledCanvas(reference)
+    pattern = vars(fast.patch).pop("_dash_pattern")
+    monkeypatch.setattr(Rectangle, "_dash_pattern", pattern, raising=False)
+    assert glyphs._background_key(fast, 352, 220) is None
+    assert np.array_equal(_pixels(fast), _pixels(reference))
