@@ -476,6 +476,10 @@ _KEPT: dict[tuple[Any, ...], tuple[Figure, list[Any]]] = {}
 _KEEP_AT_MOST = 4
 #: The panel heights (in) each kept figure has now.
 _HEIGHTS: WeakKeyDictionary[Any, tuple[float, ...]] = WeakKeyDictionary()
+#: The rc settings each kept figure was made under (within the figure's style): a kept
+#: figure is reused only under the same settings, so that a notebook that changed one
+#: (the font, say) gets the figure a new one would be (a comparison of some 3 us).
+_RC_OF: WeakKeyDictionary[Any, dict[str, Any]] = WeakKeyDictionary()
 
 
 #: Children of a kept axes that stay from one beam to the next (the layers of the fast
@@ -502,8 +506,14 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
     fast = fast and reuse
     key = (len(heights), fast)
     size = (WIDTH, sum(heights) + top + bottom + 0.12 * len(heights))
-    if reuse and key in _KEPT:
-        fig, axes = _KEPT[key]
+    kept = _KEPT.get(key) if reuse else None
+    if kept is not None:
+        made_under = _RC_OF.get(kept[0])
+        if made_under is None or not dict.__eq__(mpl.rcParams, made_under):
+            del _KEPT[key]  # made under other rc settings: a new one instead
+            kept = None
+    if kept is not None:
+        fig, axes = kept
         if _HEIGHTS.get(fig) != tuple(heights):  # another beam's panel heights
             fig.set_size_inches(size)
             for ax, rect in zip(axes, _panel_rects(size, heights, top, bottom), strict=True):
@@ -545,6 +555,7 @@ def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
             _KEPT.pop(next(iter(_KEPT)))
         _KEPT[key] = (fig, axes)
         _HEIGHTS[fig] = tuple(heights)
+        _RC_OF[fig] = dict(dict.items(mpl.rcParams))  # type: ignore[arg-type]
     return fig, axes
 
 

@@ -240,6 +240,29 @@ def test_a_kept_figure_reuses_its_texts_for_the_next_beam(tmp_path: Path) -> Non
         assert (tmp_path / "b.png").read_bytes() == (tmp_path / "fresh.png").read_bytes()
 
 
+def test_a_kept_figure_is_not_reused_under_other_rc_settings(tmp_path: Path) -> None:
+    """A notebook that changes an rc setting the figure's style leaves alone (the font
+    family) between two files gets the second drawn as a new figure would draw it, not
+    on the figure kept from the first (whose texts and measures follow the old font)."""
+    case = sorted((Path(__file__).resolve().parents[1] / "cases").glob("*.toml"))[0]
+    cols = store.result_columns(envelope.tables(envelope.analyse(envelope.load_case(
+        str(case)))))
+    assert "font.family" not in plots.STYLE
+    with mpl.rc_context():
+        for fast in (True, False):
+            mpl.rcParams["font.family"] = "sans-serif"
+            plots._KEPT.clear()
+            plots.draw_results(cols, tmp_path / "before.png", durable=False, fast=fast)
+            mpl.rcParams["font.family"] = "serif"
+            plots.draw_results(cols, tmp_path / "after.png", durable=False, fast=fast)
+            plots._KEPT.clear()
+            plots.draw_results(cols, tmp_path / "fresh.png", durable=False, fast=fast)
+            after = (tmp_path / "after.png").read_bytes()
+            assert after == (tmp_path / "fresh.png").read_bytes()
+            assert after != (tmp_path / "before.png").read_bytes()
+    plots._KEPT.clear()
+
+
 def test_a_template_with_a_transform_is_kept_across_views_and_apart_from_others() -> None:
     """Items given a transform (the axes', a blended one, the data's) keep one template
     each while the view changes, and two transforms never share one (the pixels of
