@@ -106,18 +106,17 @@ class _Runs:
         x = self.demand.x[span]
         m = self.demand.sagging[span] if sign > 0 else self.demand.hogging[span]
         run = len(self.found)
-        ends = cutoffs.run_ends(m - capacity, seed)
-        if ends is None:
+        stretch = cutoffs.run_brackets(x, m - capacity, seed)
+        if stretch is None:
             self.found.append([np.nan, np.nan])
             return run
-        i0, i1 = ends
-        self.found.append([float(x[i0]), float(x[i1])])
+        ends, brackets = stretch
+        self.found.append(ends)
         tol = config.DESIGN_XTOL * (float(x[-1] - x[0]) or 1.0)
-        for slot, i, j, edge in ((0, i0, i0 - 1, 0), (1, i1, i1 + 1, x.size - 1)):
-            if i != edge:
-                self.brackets.append((run, slot, span, sign, float(x[i]), float(x[j]),
-                                      float(m[i]) - capacity, float(m[j]) - capacity,
-                                      capacity, tol))
+        for slot, i, j in brackets:
+            self.brackets.append((run, slot, span, sign, float(x[i]), float(x[j]),
+                                  float(m[i]) - capacity, float(m[j]) - capacity,
+                                  capacity, tol))
         return run
 
     def solve(self) -> None:

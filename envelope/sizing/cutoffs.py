@@ -129,6 +129,23 @@ def narrow(inside: np.ndarray, outside: np.ndarray, g_in: np.ndarray, g_out: np.
     return root
 
 
+def run_brackets(x: np.ndarray, excess: np.ndarray, seed: int
+                 ) -> tuple[list[float], list[tuple[int, int, int]]] | None:
+    """The run of ``excess > 0`` (demand less capacity, sampled at ``x``) around sample
+    ``seed``: its ends as far as the samples tell ([start, end], the first and last
+    sample inside) and the brackets left to narrow, (0 for the start or 1 for the end,
+    the sample inside the run, the sample just beyond it), none where the run reaches
+    the first or last sample; None where the sample at ``seed`` is not above."""
+    ends = run_ends(excess, seed)
+    if ends is None:
+        return None
+    i0, i1 = ends
+    brackets = [(slot, i, j) for slot, i, j, edge in ((0, i0, i0 - 1, 0),
+                                                       (1, i1, i1 + 1, x.size - 1))
+                if i != edge]
+    return [float(x[i0]), float(x[i1])], brackets
+
+
 def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
                refine: Callable[[np.ndarray], np.ndarray] | None = None,
                tol: float = 1e-9) -> tuple[float, float]:
@@ -137,16 +154,11 @@ def run_around(x: np.ndarray, demand: np.ndarray, capacity: float, seed: int,
     with ``refine`` (demand at any points), narrowed to ``tol`` of the span by
     :func:`narrow`, else interpolated linearly.  NaN, NaN where the demand at
     ``seed`` is not above."""
-    ends = run_ends(demand - capacity, seed)
-    if ends is None:
+    run = run_brackets(x, demand - capacity, seed)
+    if run is None:
         return np.nan, np.nan
-    i0, i1 = ends
+    found, brackets = run
     span = float(x[-1] - x[0]) or 1.0
-    found = [float(x[i0]), float(x[i1])]
-    # (which end, the sample inside the run, the sample beyond it)
-    brackets = [(slot, i, j) for slot, i, j, edge in ((0, i0, i0 - 1, 0),
-                                                       (1, i1, i1 + 1, x.size - 1))
-                if i != edge]
     if brackets:
         ins = np.array([i for _, i, _ in brackets])
         out = np.array([j for _, _, j in brackets])
