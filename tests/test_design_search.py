@@ -29,7 +29,7 @@ from envelope.recovery import combine, evaluate_combined, evaluate_some, make_po
 from envelope.search import anderson_bjorck_root, golden_max, illinois_root
 from envelope.solved import envelope_at, envelopes_at
 
-from beams import make_cases_module
+from beams import beam_text, make_cases_module
 from tolerances import LONG_SUM, ROUND_OFF
 
 REPO = Path(__file__).resolve().parents[1]
@@ -409,34 +409,16 @@ def test_live_largest_at_the_stations_is_the_envelopes_bit_for_bit(
     assert checked >= 12
 
 
-_MID_SPAN_COUPLE = """id = "mid-span-couple"
-units = "SI"
-[section]
-E = 30000
-I = 4.0e9
-[[spans]]
-length = 6.0
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-D = { kind = "dead" }
-[[loads]]
-case = "D"
-type = "uniform"
-spans = "all"
-w = 10.0
-[[loads]]
-case = "D"
-type = "moment"
-spans = 1
-M = COUPLE
-at = 3.0
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-"""
+def _mid_span_couple(couple: float) -> str:
+    """The invented beam of the test below: a 6 m simple span, 10 kN/m dead and a dead
+    couple ``couple`` (kN m) at mid-span."""
+    return beam_text(
+        [6.0], ["pinned"] * 2,
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 10.0},
+         {"case": "D", "type": "moment", "spans": 1, "M": couple, "at": 3.0}],
+        section={"E": 30000, "I": 4.0e9},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+        top={"id": "mid-span-couple"})
 
 
 @pytest.mark.parametrize("couple", [20.0, -20.0])
@@ -451,7 +433,7 @@ def test_a_point_moments_jump_is_a_vertex_at_its_larger_side_without_golden_sect
     import envelope.actions
 
     path = tmp_path / "couple.toml"
-    path.write_text(_MID_SPAN_COUPLE.replace("COUPLE", repr(couple)))
+    path.write_text(_mid_span_couple(couple))
 
     def no_golden(*args: object, **kwargs: object) -> None:
         raise AssertionError("golden section")

@@ -17,7 +17,7 @@ from envelope.recovery import QUANTITIES, Points, evaluate_some, make_points, st
 from envelope.solved import Solved, solve_beam
 from envelope.unitpoints import element_items, evaluate_points
 
-from beams import make_cases_module
+from beams import beam_text, make_cases_module
 
 REPO = Path(__file__).resolve().parents[1]
 
@@ -32,46 +32,14 @@ def beams(tmp_path_factory: pytest.TempPathFactory) -> list[Solved]:
     return [solve_beam(load_case(p)) for p in [*paths, folder / "points-only.toml"]]
 
 
-_POINTS_ONLY = """id = "points-only"
-units = "SI"
-[section]
-E = 30000
-I = 4.0e9
-[[spans]]
-length = 5.0
-[[spans]]
-length = 6.5
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[[supports]]
-type = "pinned"
-[cases]
-D = { kind = "dead" }
-L = { kind = "live" }
-[[loads]]
-case = "D"
-type = "point"
-spans = 1
-P = 20.0
-at = 2.0
-[[loads]]
-case = "L"
-type = "point"
-spans = "all"
-P = 15.0
-at = 3.1
-[[loads]]
-case = "L"
-type = "moment"
-spans = 2
-M = 8.0
-at = 1.2
-[combinations]
-strength = "asce7-lrfd"
-service = "characteristic"
-"""
+_POINTS_ONLY = beam_text(
+    [5.0, 6.5], ["pinned"] * 3,
+    [{"case": "D", "type": "point", "spans": 1, "P": 20.0, "at": 2.0},
+     {"case": "L", "type": "point", "spans": "all", "P": 15.0, "at": 3.1},
+     {"case": "L", "type": "moment", "spans": 2, "M": 8.0, "at": 1.2}],
+    section={"E": 30000, "I": 4.0e9}, cases={"D": "dead", "L": "live"},
+    combinations={"strength": "asce7-lrfd", "service": "characteristic"},
+    top={"id": "points-only"})
 
 
 def _points(s: Solved, rng: np.random.Generator) -> list[Points]:
