@@ -30,17 +30,9 @@ import time
 from pathlib import Path
 from typing import Any
 
+from provenance import short_commit
+
 HERE = Path(__file__).resolve().parent
-
-
-def _commit(tree: Path) -> str:
-    """The short commit of the source tree ``tree`` (recorded instead of its path, which
-    names a folder of one machine)."""
-    try:
-        return subprocess.run(["git", "-C", str(tree), "rev-parse", "--short", "HEAD"],
-                              capture_output=True, text=True, check=True).stdout.strip()
-    except (OSError, subprocess.CalledProcessError):
-        return "unknown"
 
 
 def serve(cases: Path, beams: int, first: int, out: Path) -> None:
@@ -139,7 +131,7 @@ def main() -> None:
     if args.json:
         args.json.write_text(json.dumps({
             "date": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()),
-            "engines": {k: _commit(v) for k, v in sides.items()}, "beams": args.beams,
+            "engines": {k: short_commit(v) for k, v in sides.items()}, "beams": args.beams,
             "first_beam": args.first, "rounds": args.rounds, "order": order,
             "load_average_start": load0, "load_average_end": load1, "results": result,
             "raw_cpu_s_per_beam": raw}, indent=1))

@@ -49,18 +49,9 @@ sys.path.insert(0, str(ROOT))
 sys.path.insert(0, str(ROOT / "benchmarks"))
 
 from make_cases import make_cases  # noqa: E402
+from provenance import short_commit  # noqa: E402
 
 from envelope.batch.worker import run_chunk  # noqa: E402
-
-
-def _commit(tree: Path = ROOT) -> str:
-    """The short commit of the source tree ``tree`` (recorded instead of its path, which
-    names a folder of one machine)."""
-    try:
-        return subprocess.run(["git", "-C", str(tree), "rev-parse", "--short", "HEAD"],
-                              capture_output=True, text=True, check=True).stdout.strip()
-    except (OSError, subprocess.CalledProcessError):
-        return "unknown"
 
 
 def _worker_side(tasks: list, work: Path, plots: bool) -> tuple[float, float]:
@@ -151,7 +142,7 @@ def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
         manifest = next((work / "warm").glob("*/.complete.json"))
         engines[name] = json.loads(manifest.read_text())["version"]
         shutil.rmtree(work / "warm")
-    if engines["this"] == engines["other"] and _commit(ROOT) != _commit(other):
+    if engines["this"] == engines["other"] and short_commit(ROOT) != short_commit(other):
         print(f"warning: both trees ran the same engine ({engines['this']})")
     cpu: dict[str, dict[str, list[float]]] = {t: {"without": [], "with": []} for t in trees}
     wall: dict[str, dict[str, list[float]]] = {t: {"without": [], "with": []} for t in trees}
@@ -163,7 +154,7 @@ def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
                 w, used = _batch_once(cases, out, plots, tree)
                 wall[name]["with" if plots else "without"].append(w)
                 cpu[name]["with" if plots else "without"].append(used)
-    result: dict = {"other_tree_commit": _commit(other), "engines": engines, "raw_cpu_s": cpu,
+    result: dict = {"other_tree_commit": short_commit(other), "engines": engines, "raw_cpu_s": cpu,
                     "raw_wall_s": wall}
     for name in trees:
         med = {k: statistics.median(v) for k, v in cpu[name].items()}
@@ -172,7 +163,8 @@ def bench_against(n: int, repeats: int, work: Path, other: Path) -> dict:
                         "median_wall_s": med_wall,
                         "ratio_median_wall": med_wall["with"] / med_wall["without"],
                         "figures_cpu_per_beam_s": (med["with"] - med["without"]) / n}
-        print(f"{name} ({_commit(trees[name])}): CPU without figures {med['without']:.2f} s, with "
+        print(f"{name} ({short_commit(trees[name])}): CPU without figures "
+              f"{med['without']:.2f} s, with "
               f"{med['with']:.2f} s: {med['with'] / med['without']:.2f}x (wall "
               f"{med_wall['with'] / med_wall['without']:.2f}x); the figures "
               f"{(med['with'] - med['without']) / n * 1e3:.0f} ms CPU a beam "
@@ -199,7 +191,7 @@ def main() -> None:
             bench = bench_batch if args.what == "batch" else bench_worker
             measured = bench(args.n, args.repeats, work)
         result = {"what": args.what, "beams": args.n, "repeats": args.repeats, **measured}
-    result.update(start, load_average_end=os.getloadavg(), target=1.5, commit=_commit(),
+    result.update(start, load_average_end=os.getloadavg(), target=1.5, commit=short_commit(ROOT),
                   machine=platform.platform(), cpus=os.cpu_count())
     print(f"load average {start['load_average_start'][0]:.1f} at the start, "
           f"{result['load_average_end'][0]:.1f} at the end")
