@@ -173,6 +173,109 @@ def test_checks_without_values_never_pass_a_failing_status() -> None:
     assert checks.overall(rows)[0] == "fails"
 
 
+def _close(shown: str, value: float, digits: int) -> bool:
+    """A displayed number is ``value`` rounded to ``digits`` decimals."""
+    return shown == collect.fmt(abs(value), digits)
+
+
+def test_every_concrete_check_shows_its_demand_capacity_and_unit(office: Path) -> None:
+    # ACI 318-19 9.5.1.1: phiMn >= Mu, the ratio Mu / phiMn; the demand and capacity are
+    # the sizing table's own columns, shown as its table shows them
+    data = collect.collect(office)
+    sizing = data.tables["sizing"]
+    rows = [dict(zip(sizing.columns, r, strict=True)) for r in sizing.rows]
+    digits = {c: collect.decimals(sizing.column(c)) for c in sizing.columns}
+    flexure = [c for c in data.checks if c["check"] == "flexure"]
+    assert len(flexure) == 12
+    for c in flexure:
+        r = next(r for r in rows if str(r["span"]) == c["span"]
+                 and r["section"] == c["section"])
+        assert _close(c["demand"], r["moment_design"], digits["moment_design"]), c
+        assert _close(c["capacity"], r["phiMn"], digits["phiMn"]), c
+        assert c["unit"] == "kN*m"
+        assert float(c["value"]) == pytest.approx(abs(r["moment_design"]) / r["phiMn"],
+                                                  abs=5e-4)
+    kinds = {c["check"] for c in data.checks}
+    assert {"maximum steel", "bars provided", "crack control"} <= kinds
+    for c in data.checks:
+        if c["check"] in ("maximum steel", "bars provided"):
+            assert c["unit"] == "mm2" and c["demand"] != "-" and c["capacity"] != "-"
+        if c["check"] == "deflection":  # ACI 318-19 24.2.2: incremental vs span/240
+            assert c["unit"] == "mm" and float(c["demand"]) / float(c["capacity"]) == \
+                pytest.approx(float(c["value"]), abs=2e-3)
+        if c["check"] == "shear":  # the stirrups chosen, stated, never a bare pass
+            assert c["demand"] != "-" and c["unit"] == "kN"
+            assert "Av/s required" in c["detail"] and "stirrups #" in c["detail"]
+    page = (office / "report.html").read_text()
+    assert "<th>demand</th><th>capacity</th><th>unit</th>" in page
+    # the largest utilisation is the largest ratio of the table
+    assert data.max_utilisation == max(float(c["value"]) for c in data.checks
+                                       if c["value"] != "-")
+
+
+def test_a_check_the_sizing_could_not_make_is_not_checked_never_pass() -> None:
+    table = collect.Table(
+        "sizing", "", ("span", "section", "moment_design", "shear_design", "as_required",
+                       "as_max", "phiMn", "av_over_s_required", "utilisation_deflection",
+                       "status"), {},
+        ((1, "left", -50.0, 90.0, 300.0, 900.0, None, None, None, "ok"),
+         (1, "span", 80.0, None, 400.0, 900.0, 100.0, None, None,
+          "cracked deflection not computed for this span (an internal limit)"),
+         (1, "right", -60.0, 95.0, 320.0, 900.0, 70.0, 0.3, None,
+          "not checked: the web is noncompact")))
+    rows = checks.checks(table, None, "aci318-19")
+    got = [(r["section"], r["check"], r["result"]) for r in rows]
+    # no strength (phiMn) and no Av/s: nothing to check against, so not checked
+    assert ("left", "flexure", "not checked") in got
+    assert ("left", "shear", "not checked") in got
+    # a status that says a check was not done or not computed is not a failure
+    assert ("span", "deflection", "not checked") not in got  # no ratio: no deflection row
+    assert ("span", "other", "not checked") in got
+    assert ("right", "other", "not checked") in got
+    assert ("right", "flexure", "pass") in got and ("right", "shear", "pass") in got
+    assert checks.overall(rows)[0] == "incomplete"
+
+
+def test_a_steel_ratio_whose_demand_and_limit_are_not_tabulated_says_so() -> None:
+    table = collect.Table(
+        "sizing", "", ("span", "section", "deflection_live", "deflection_live_allowed",
+                       "utilisation_deflection", "status"), {"deflection_live": "mm"},
+        ((1, "span", 10.0, 20.0, 0.5, "ok"), (2, "span", 10.0, 20.0, 0.8, "ok")))
+    rows = checks.checks(table, None, "en1992-1-1")
+    assert [(r["demand"], r["capacity"], r["unit"]) for r in rows] == [
+        ("10.00", "20.00", "mm"), ("-", "-", "")]
+    assert rows[1]["detail"] == "the demand and limit of this ratio are not tabulated"
+
+
+def test_json_and_empty_cells_read_as_text_never_as_brackets(office: Path) -> None:
+    assert collect.fmt("{}") == "none" and collect.fmt("[]") == "none"
+    assert collect.fmt('{"D": 1.2, "L": 1.6}') == "D: 1.2, L: 1.6"
+    assert collect.fmt('["L", "Lr"]') == "L, Lr"
+    assert collect.fmt('{"L": [1.0, 0.8]}') == "L: (1, 0.8)"
+    assert collect.fmt("") == "-" and collect.fmt("[not json") == "[not json"
+    page = (office / "report.html").read_text()
+    for token in (">{}<", ">[]<", ">None<", ">nan<", ">-0.0<"):
+        assert token not in page, token
+    assert ">D: 1.2, SDL: 1.2, L: 1.6<" in page
+
+
+def test_pdf_table_headings_can_break_so_they_never_run_over_each_other(
+        office: Path) -> None:
+    import re
+
+    from envelope.report import pdf
+
+    data = pdf.report_json(collect.collect(office))
+    longest = 0
+    for table in data["tables"].values():
+        for part in table["parts"]:
+            for name in part["columns"]:
+                longest = max([longest, *(len(w) for w in re.split("[\u200b ]", name))])
+    # reactions.parquet has service_reaction_max_combo (26 characters) among columns of
+    # numbers about 8 characters wide; a heading breaks after each underscore
+    assert longest <= 16
+
+
 # -- exports -----------------------------------------------------------------------------
 
 

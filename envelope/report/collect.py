@@ -65,7 +65,8 @@ def decimals(values: list[Any]) -> int:
 
 
 def fmt(value: Any, digits: int = 2) -> str:
-    """Display text of one cell: ``-`` for a missing value."""
+    """Display text of one cell: ``-`` for a missing value or an empty text; a JSON
+    object or list (the factors of cases.parquet) as plain text, ``none`` where empty."""
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return "-"
     if isinstance(value, bool):
@@ -73,6 +74,30 @@ def fmt(value: Any, digits: int = 2) -> str:
     if isinstance(value, float):
         text = f"{value:.{digits}f}"
         return text.lstrip("-") if float(text) == 0.0 else text
+    if isinstance(value, str):
+        if not value.strip():
+            return "-"
+        if value[:1] in "{[":
+            try:
+                parsed = json.loads(value)
+            except ValueError:
+                return value
+            if isinstance(parsed, dict | list):
+                return _plain(parsed) or "none"
+    return str(value)
+
+
+def _plain(value: Any, top: bool = True) -> str:
+    """A parsed JSON value as a calculation sheet writes it: ``D: 1.2, L: 1.6``; a list
+    inside another value in brackets, ``L: (1, 0.8)``."""
+    if isinstance(value, dict):
+        inner = ", ".join(f"{k}: {_plain(v, False)}" for k, v in value.items())
+        return inner if top else f"({inner})"
+    if isinstance(value, list):
+        inner = ", ".join(_plain(v, False) for v in value)
+        return inner if top else f"({inner})"
+    if isinstance(value, float):
+        return f"{value:g}"
     return str(value)
 
 

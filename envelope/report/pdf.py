@@ -17,6 +17,15 @@ from envelope.report.html import CAUTION, SIZING_CAUTION, patterning_text
 #: Columns per printed table part (the key columns repeat in every part).
 PART_COLUMNS = 9
 KEYS = ("span", "section", "support", "set", "combination")
+#: A zero-width space: where a long column name may break across lines in its heading
+#: (typst breaks no word by itself, so ``service_reaction_max_combo`` ran over its
+#: neighbours' headings).
+BREAK = "\u200b"
+
+
+def heading_text(name: str) -> str:
+    """A column name as a table heading: breakable after each underscore."""
+    return name.replace("_", "_" + BREAK)
 
 
 def table_parts(t: Table, width: int = PART_COLUMNS) -> dict[str, Any]:
@@ -30,7 +39,7 @@ def table_parts(t: Table, width: int = PART_COLUMNS) -> dict[str, Any]:
     parts = []
     for k in range(0, max(len(rest), 1), step):
         idx = keys + rest[k:k + step]
-        parts.append({"columns": [t.columns[i] for i in idx],
+        parts.append({"columns": [heading_text(t.columns[i]) for i in idx],
                       "units": [t.units.get(t.columns[i], "") for i in idx],
                       "numeric": [numeric[i] for i in idx],
                       "rows": [[row[i] for i in idx] for row in cells]})
