@@ -213,6 +213,29 @@ def test_every_concrete_check_shows_its_demand_capacity_and_unit(office: Path) -
                                        if c["value"] != "-")
 
 
+def test_each_design_action_names_its_governing_combination_and_pattern(
+        office: Path) -> None:
+    data = collect.collect(office)
+    gov = data.tables["governing"]
+    rows = {(r[0], r[1]): dict(zip(gov.columns, r, strict=True)) for r in gov.rows}
+    design = data.tables["design"]
+    cells = {(r[0], c): v for r, shown in zip(design.rows, design.cells(), strict=True)
+             for c, v in zip(design.columns, shown, strict=True)}
+    for (span, action), r in rows.items():
+        assert r["value"] == cells[(span, action)]  # the design table's number
+        assert r["combination"] and r["loaded"], r
+    # the checkerboard of influence lines (common practice; ACI 318-19 6.4.2): the
+    # largest sagging moment of span 1 with spans 1 and 3 loaded, the hogging moment at
+    # support 2 with the spans beside it and the next but one (1, 2 and 4)
+    assert rows[(1, "moment_pos")]["loaded"] == "1 3"
+    assert rows[(1, "moment_neg_right")]["loaded"] == "1 2 4"
+    assert rows[(2, "moment_pos")]["loaded"] == "2 4"
+    assert rows[(1, "moment_pos")]["combination"] == "1.2D + 1.2SDL + 1.6L"
+    assert rows[(1, "moment_pos")]["unit"] == "kN*m"
+    page = (office / "report.html").read_text()
+    assert 'id="governing-table"' in page and ">1 2 4<" in page
+
+
 def test_a_check_the_sizing_could_not_make_is_not_checked_never_pass() -> None:
     table = collect.Table(
         "sizing", "", ("span", "section", "moment_design", "shear_design", "as_required",

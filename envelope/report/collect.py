@@ -183,6 +183,7 @@ def collect(folder: str | Path) -> ReportData:
         warnings=json.loads(meta.get("envelope:warnings", "[]")), tables=tables,
         input_text=text, document=document)
     data.echo = echo.echo(document, data.system) if document else []
+    tables["governing"] = governing(tables["design"], tables["envelope"])
     data.checks = checks.checks(tables.get("sizing"), document, code)
     data.status, data.max_utilisation = checks.overall(data.checks)
     try:  # an illustration: a load the sketch cannot draw never stops the report
@@ -191,6 +192,58 @@ def collect(folder: str | Path) -> ReportData:
         data.sketch_svg = ""
     data.figure_svg = figure_svg(folder)
     return data
+
+
+#: Design actions of design.parquet -> the envelope column whose station holds the
+#: governing combination, the part of the span searched, and whether signs are compared
+#: as magnitudes ("left", "right": the half at that end).
+GOVERNED = (("moment_pos", "moment_max", "all", False),
+            ("moment_neg_left", "moment_min", "left", False),
+            ("moment_neg_left_face", "moment_min", "left", False),
+            ("moment_neg_right", "moment_min", "right", False),
+            ("moment_neg_right_face", "moment_min", "right", False),
+            ("shear_left", "shear_max", "left", True),
+            ("shear_right", "shear_min", "right", True),
+            ("deflection_max", "deflection_max", "all", False))
+
+
+def governing(design: Table, envelope: Table) -> Table:
+    """Per span and design action: the combination and loaded spans that govern it, read
+    from the station of envelope.parquet that holds the value (the nearest station to the
+    largest sagging moment, which is found between stations); the envelope figure labels
+    its values the same way.  The value shown is design.parquet's."""
+    env = [dict(zip(envelope.columns, r, strict=True)) for r in envelope.rows]
+    rows: list[tuple[Any, ...]] = []
+    for row in design.rows:
+        d = dict(zip(design.columns, row, strict=True))
+        mine = [e for e in env if e.get("span") == d.get("span")]
+        if not mine:
+            continue
+        mid = 0.5 * (min(e["x_span"] for e in mine) + max(e["x_span"] for e in mine))
+        for action, column, part, magnitude in GOVERNED:
+            value = d.get(action)
+            if action not in design.columns or f"{column}_combo" not in envelope.columns \
+                    or not isinstance(value, float) or not math.isfinite(value):
+                continue
+            text = fmt(value, decimals(design.column(action)))
+            if float(text) == 0.0:  # no such action (a free or pinned end): none governs
+                continue
+            near = [e for e in mine if isinstance(e.get(column), float)
+                    and (part == "all" or (e["x_span"] <= mid if part == "left"
+                                           else e["x_span"] >= mid))]
+            if not near:
+                continue
+            if action == "moment_pos" and isinstance(d.get("moment_pos_x"), float):
+                best = min(near, key=lambda e: abs(e["x_span"] - d["moment_pos_x"]))
+            else:
+                best = min(near, key=lambda e: abs((abs(e[column]) - abs(value))
+                                                   if magnitude else e[column] - value))
+            rows.append((d.get("span"), action, text, design.units.get(action, ""),
+                         best["x_span"], best[f"{column}_combo"],
+                         best.get(f"{column}_loaded")))
+    return Table("governing", "Governing combination and pattern per design action",
+                 ("span", "action", "value", "unit", "x_span", "combination", "loaded"),
+                 {"x_span": envelope.units.get("x_span", "")}, tuple(rows))
 
 
 def figure_svg(folder: Path) -> str:
