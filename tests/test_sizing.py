@@ -699,6 +699,39 @@ def test_t_beam_end_to_end_flange_only_in_sagging() -> None:
         rect_as(-cols["moment_design"][j] * 1e6, 300, 540, 30, 420), rel=1e-9)
 
 
+@pytest.mark.parametrize("code", ["aci318-19", "en1992-1-1"])
+def test_t_beam_b_column_is_the_width_the_flexure_used(code: str) -> None:
+    # docs/outputs.md: `b` is the web width, or the flange width where a flange carries
+    # the compression; a row's K = M / (b d^2 fck) (EN) and a = As fy / (0.85 f'c b)
+    # (ACI 318-19 22.2.2.4.1, block within the flange) must follow from its own b
+    design = {**SI_CONCRETE, "code": code, "fy": 420 if code == "aci318-19" else 500,
+              "flange_width": 1200, "flange_depth": 120}
+    _, cols = run(case_text(design, spans=(8.0, 8.0), dead=30.0))
+    i, j = row(cols, 1, "span"), row(cols, 1, "right")
+    assert "stress block within the flange" in cols["note"][i]
+    assert cols["b"][i] == 1200 and cols["b"][j] == 300   # hogging: the web
+    m, d = cols["moment_design"][i] * 1e6, cols["d"][i]
+    if code == "en1992-1-1":
+        assert cols["K"][i] == pytest.approx(m / (cols["b"][i] * d * d * 30), rel=1e-12)
+    else:
+        block = cols["as_design"][i] * 420 / (0.85 * 30 * cols["b"][i])
+        assert cols["a"][i] == pytest.approx(block, rel=1e-12)
+
+
+def test_en_t_beam_with_its_block_below_the_flange_reports_the_web_it_used() -> None:
+    # EN 1992-1-1 sizing takes the web alone where 0.8x passes the flange (rectangular
+    # method, on the safe side): its b is then the web, as K says
+    design = {**SI_CONCRETE, "code": "en1992-1-1", "fy": 500, "flange_width": 400,
+              "flange_depth": 60}
+    _, cols = run(case_text(design, spans=(8.0, 8.0), dead=60.0))
+    i = row(cols, 1, "span")
+    assert "web alone used" in cols["note"][i]
+    d = cols["d"][i]
+    assert cols["b"][i] == 300
+    assert cols["K"][i] == pytest.approx(cols["moment_design"][i] * 1e6 / (300 * d * d * 30),
+                                         rel=1e-12)
+
+
 # ------------------------------------------------------------- the demo cases, whole
 
 

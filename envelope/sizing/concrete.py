@@ -123,7 +123,9 @@ def size_concrete(analysis: Analysis) -> Sized:
         if why:
             notes[i].append(f"shear taken at the face: {FACE_REASONS[why]}")
     su = SECTION_UNITS[beam.units.name]
-    base = {"b": np.full(rows.n, b), "h": h, "d": d}
+    # b: the web, or the flange where a flange carries the compression (the width the
+    # flexure used; ``_en`` gives its own where its T-section falls back to the web)
+    base = {"b": bf.astype(float), "h": h, "d": d}
     units.update({k: su["length"] for k in base})
     return Sized(rows, {**base, **cols}, units, notes, failures)
 
@@ -326,6 +328,7 @@ def _en(analysis: Analysis, rows: Rows, b: float, h: np.ndarray, d: np.ndarray,
     end_only = np.where(ends, 1.0, np.nan)
     ok = ~too_small
     return {
+        "b": width / L,
         "K": fl["K"], "K_lim": np.full(rows.n, en.K_LIM),
         "z": np.where(ok & (rows.moment != 0.0), np.where(two, dbl["z"], fl["z"]),
                       np.nan) / L,
