@@ -22,6 +22,14 @@ forms, never from the engine's own code, so that a change that breaks one fails 
   end, over the interior support and under a joist seat.
 - school-2span-en.toml crack control (EN 1992-1-1 7.3.3, Table 7.3N): the steel stress of
   the cracked section under the quasi-permanent face moment and the bar spacing limit.
+- office-4span-si.toml deflection (ACI 318-19 24.2): span 3 under its governing
+  arrangement (live load on spans 1 and 3), end moments from the analysis and statics
+  between, Ie of Table 24.2.3.5 (2019) per region with the bars provided, immediate,
+  live, long-term and incremental deflection (24.2.4.1) by the unit-load method with
+  scipy's quad, against Table 24.2.2.
+- school-2span-en.toml sagging T-section (EN 1992-1-1:2004): K with the flange width,
+  the K / z method, the bars provided, and crack control (7.3.3, Table 7.3N) under the
+  quasi-permanent moment with the variable load on span 1 alone (three-moment equation).
 - What cannot be checked says so: EN concrete outside C12/15 to C50/60, and a steel
   section given without the dimensions of its shape.
 """
@@ -42,7 +50,7 @@ from envelope.analysis import analyse
 from envelope.casefile import load_case, parse_case
 from envelope.sizing import size
 from envelope.store import live_reduction_by_span
-from tests.tolerances import CRACKED_GRID, SOLVE, STATION_PEAK
+from tests.tolerances import CRACKED_GRID, ROUND_OFF, SOLVE, STATION_PEAK
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
 
@@ -521,3 +529,182 @@ def test_demo_office_with_live_load_reduction_matches_eq_4_7_1() -> None:
     cols = size(a)
     assert cols["moment_design"][_row(cols, 1, "right")] == pytest.approx(m_face, rel=SOLVE)
     assert m_face == pytest.approx(-482.0139, rel=1e-6)   # independent stiffness solve
+
+
+# ------------------------------------- office cracked deflection (ACI 318-19 24.2)
+
+def _end_moments(text: str, span: int) -> dict[str, tuple[float, float]]:
+    """End moments (kN*m) of ``span`` under each explicit service row of the case text,
+    by combination name: the analysis (checked on its own elsewhere) gives the end
+    moments, statics the rest of the diagram."""
+    from envelope.analysis import explicit_case_blocks
+    from envelope.api import built_tables
+
+    a = analyse(parse_case(tomllib.loads(text), str(CASES / "office-4span-si.toml")))
+    cases = built_tables(a, True)["cases"].to_pylist()
+    service = {k: r["combination"] for k, r in enumerate(cases) if r["set"] == "service"}
+    x, m, which = [], [], []
+    for block in explicit_case_blocks(a):
+        here = (block["span"] == span) & np.isin(block["case"], list(service))
+        x.append(block["x_span"][here])
+        m.append(block["moment"][here])
+        which.append(block["case"][here])
+    xs, ms, ks = np.concatenate(x), np.concatenate(m), np.concatenate(which)
+    out = {}
+    for k, name in service.items():
+        mine = ks == k
+        xk, mk = xs[mine], ms[mine]
+        out[name] = (float(mk[np.argmin(xk)]), float(mk[np.argmax(xk)]))
+    return out
+
+
+def test_demo_office_span_3_cracked_deflection_matches_table_24_2_3_5(
+        office: dict[str, np.ndarray]) -> None:
+    # Span 3 (8.4 m) deflects most with the live load on spans 1 and 3 (the engine's
+    # governing service arrangement, read from its envelope).  End moments of that
+    # arrangement and of D + SDL alone from the analysis; between the ends, statics of
+    # the uniform load.  ACI 318-19: Ec = 4700 sqrt(f'c) (19.2.2.1(b)), fr = 0.62
+    # sqrt(f'c) (19.2.3.1), Ie of Table 24.2.3.5 (the 2019 form, Icr / (1 - ((2/3) Mcr /
+    # Ma)^2 (1 - Icr/Ig))) per region: the sagging part with its largest sagging moment
+    # and the bottom bars, each hogging end with its end moment and that face's top
+    # bars; Delta_L = Delta_(D+L) - Delta_D; a quarter of L sustained, lambda_Delta = 2.0
+    # (Table 24.2.4.1.3, 60 months; 24.2.4.1.1, rho' = 0); incremental = lambda_Delta
+    # Delta_sus + Delta_L against span/240 (Table 24.2.2, damage unlikely).  Deflection by
+    # the unit-load method with scipy's quad, the zero moments as breakpoints.
+    from envelope.api import built_tables
+
+    office_env = built_tables(analyse(load_case(CASES / "office-4span-si.toml")), False)
+    rows = [r for r in office_env["envelope"].to_pylist() if r["span"] == 3]
+    assert max(rows, key=lambda r: r["deflection_max"])["deflection_max_loaded"] == "1 3"
+    text = (CASES / "office-4span-si.toml").read_text()
+    spans13 = text.replace('method = "exhaustive"', 'method = "none"').replace(
+        'case = "L"\ntype = "uniform"\nspans = "all"', 'case = "L"\ntype = "uniform"\n'
+        'spans = [1, 3]')
+    assert spans13.count("spans = [1, 3]") == 1
+    ends = _end_moments(spans13, 3)
+    (dl, dr), (tl, tr) = ends["D + SDL"], ends["D + SDL + L"]
+    L = 8.4
+    w_d = 24.5 * 0.28 + 29.4 + 7.2
+    w_l = 24.0
+
+    def diagram(ml: float, mr: float, w: float) -> Callable[[float], float]:
+        return lambda x: ml * (1 - x / L) + mr * x / L + w * x * (L - x) / 2
+
+    fc = 35.0
+    ec, fr = 4700 * math.sqrt(fc), 0.62 * math.sqrt(fc)
+    b, h = 400.0, 700.0
+    ig = b * h**3 / 12
+    mcr = fr * ig / (h / 2) / 1e6
+    n = 200_000 / ec
+    areas = {"#8": 0.79 * 645.16, "#10": 1.27 * 645.16}   # ASTM A615 (from memory)
+
+    def icr(section: str) -> float:
+        i = _row(office, 3, section)
+        count, size = str(office["bars"][i]).split()
+        As, d = int(count) * areas[size], float(office["d"][i])
+        rn = As / (b * d) * n
+        c = d * (math.sqrt(2 * rn + rn * rn) - rn)
+        return b * c**3 / 3 + n * As * (d - c) ** 2
+
+    assert [office["bars"][_row(office, 3, s)] for s in ("left", "span", "right")] == [
+        "3 #10", "3 #8", "3 #10"]
+    icr_sag, icr_left, icr_right = icr("span"), icr("left"), icr("right")
+
+    def ie(ma: float, i_cr: float) -> float:
+        if ma <= 2 / 3 * mcr:
+            return ig
+        return min(i_cr / (1 - (2 / 3 * mcr / ma) ** 2 * (1 - i_cr / ig)), ig)
+
+    def deflection(ml: float, mr: float, w: float) -> Callable[[float], float]:
+        m = diagram(ml, mr, w)
+        zeros = [x for x in (brentq(m, 0.0, L / 2), brentq(m, L / 2, L))]
+        ma_sag = -minimize_scalar(lambda x: -m(x), bounds=(0, L), method="bounded",
+                                  options={"xatol": 1e-10}).fun
+        ie_sag, ie_l, ie_r = ie(ma_sag, icr_sag), ie(-ml, icr_left), ie(-mr, icr_right)
+
+        def kappa(x: float) -> float:      # 1/m: M in kN*m, E in kPa, I in m^4
+            mm = m(x)
+            i_e = ie_sag if mm >= 0 else (ie_l if x < L / 2 else ie_r)
+            return mm / (ec * 1e3 * i_e * 1e-12)
+
+        def at(a: float) -> float:         # mm, downward
+            def g(x: float) -> float:
+                return x * (L - a) / L if x <= a else a * (L - x) / L
+            pts = sorted({a, *zeros})
+            return 1000 * quad(lambda x: g(x) * kappa(x), 0, L, points=pts, limit=200)[0]
+        return at
+
+    total = deflection(tl, tr, w_d + w_l)
+    dead = deflection(dl, dr, w_d)
+    sus = deflection(dl + 0.25 * (tl - dl), dr + 0.25 * (tr - dr), w_d + 0.25 * w_l)
+
+    def peak(f: Callable[[float], float]) -> float:
+        return -float(minimize_scalar(lambda a: -f(a), bounds=(0.2 * L, 0.8 * L),
+                                      method="bounded", options={"xatol": 1e-7}).fun)
+
+    i = _row(office, 3, "span")
+    assert office["deflection_immediate"][i] == pytest.approx(peak(total), rel=CRACKED_GRID)
+    live = peak(lambda a: total(a) - dead(a))
+    assert office["deflection_immediate_live"][i] == pytest.approx(live, rel=CRACKED_GRID)
+    incremental = peak(lambda a: 2.0 * sus(a) + total(a) - dead(a))
+    assert office["deflection_incremental"][i] == pytest.approx(incremental,
+                                                                rel=CRACKED_GRID)
+    assert office["deflection_long_term"][i] == pytest.approx(
+        peak(lambda a: total(a) + 2.0 * sus(a)), rel=CRACKED_GRID)
+    # the larger ratio: incremental over span/240 (live over span/360 is less)
+    assert live / (8400 / 360) < incremental / (8400 / 240)
+    assert office["utilisation_deflection"][i] == pytest.approx(incremental / (8400 / 240),
+                                                                rel=CRACKED_GRID)
+
+
+# ------------------------------------------ school sagging T-section (EN 1992-1-1)
+
+def test_demo_school_sagging_t_section_and_its_crack_control_match_hand_check(
+        school: dict[str, np.ndarray]) -> None:
+    # Span 1 at its largest sagging moment (the design action of the engine).  The block
+    # 0.8x stays in the 120 mm flange, so the section is a 1300 mm rectangle: K = M /
+    # (b d^2 fck), z = d/2 (1 + sqrt(1 - 3.53 K)) <= 0.95 d and As = M / (0.87 fyk z)
+    # (the K / z method of the simplified block of 3.1.7(3) with alpha_cc = 0.85,
+    # gamma_c = 1.5, gamma_s = 1.15; the 0.95 d cap and 0.87 are common practice).
+    i = _row(school, 1, "span")
+    m = school["moment_design"][i] * 1e6
+    bf, hf, bw, d, fck, fyk = 1300.0, 120.0, 300.0, 545.0, 30.0, 500.0
+    assert school["b"][i] == bf and school["d"][i] == d
+    k = m / (bf * d * d * fck)
+    assert school["K"][i] == pytest.approx(k, rel=ROUND_OFF)
+    z = min(d / 2 * (1 + math.sqrt(1 - 3.53 * k)), 0.95 * d)
+    assert z == 0.95 * d and school["z"][i] == pytest.approx(z, rel=ROUND_OFF)
+    assert school["as_required"][i] == pytest.approx(m / (0.87 * fyk * z), rel=ROUND_OFF)
+    x = (d - z) / 0.4
+    assert 0.8 * x <= hf
+    # bars: the fewest of the set that give the steel, clear spacing of 8.2(2)
+    count, size = str(school["bars"][i]).split()
+    db = float(size[1:])
+    As = int(count) * math.pi * db * db / 4
+    assert school["as_provided"][i] == pytest.approx(As, rel=ROUND_OFF)
+    assert As >= school["as_design"][i]
+    pitch = (bw - 2 * 55.0) / (int(count) - 1)
+    assert pitch - db >= max(db, 20 + 5, 20)
+    # crack control (7.3.3, Table 7.3N, wk = 0.3 mm): the largest quasi-permanent sagging
+    # moment at the row, G on both spans and 0.6 Q (psi_2, category C, EN 1990 Table
+    # A1.1) on span 1 alone, which sags span 1 most (three-moment equation, elastic:
+    # service moments are not redistributed); the cracked T-section with alpha_e =
+    # Es / Ecm (Table 3.1)
+    g, q = 25.0 * 0.276 + 7.0, 0.6 * 10.5
+    l1, l2 = 6.6, 7.2
+    mb = -((g + q) * l1**3 + g * l2**3) / (8 * (l1 + l2))
+    xs = school["x_span"][i]
+    m_qp = (g + q) * xs * (l1 - xs) / 2 + mb * xs / l1
+    mb_all = -(g + q) * (l1**3 + l2**3) / (8 * (l1 + l2))
+    assert m_qp > (g + q) * xs * (l1 - xs) / 2 + mb_all * xs / l1   # the pattern governs
+    n = 200_000 / (22_000 * ((fck + 8) / 10) ** 0.3)
+    c = (-n * As + math.sqrt((n * As) ** 2 + 2 * bf * n * As * d)) / bf
+    assert c <= hf                                   # the cracked axis in the flange
+    icr = bf * c**3 / 3 + n * As * (d - c) ** 2
+    sigma = n * m_qp * 1e6 * (d - c) / icr
+    assert school["steel_stress"][i] == pytest.approx(sigma, rel=SOLVE)
+    # Table 7.3N, wk = 0.3: 250 mm at 200 MPa, 300 mm at 160 MPa, linear between
+    assert 160 < sigma < 200
+    assert school["bar_spacing_max"][i] == pytest.approx(300 - (sigma - 160) / 40 * 50,
+                                                         rel=SOLVE)
+    assert school["bar_spacing"][i] == pytest.approx(pitch, rel=ROUND_OFF)
