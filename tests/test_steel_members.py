@@ -92,22 +92,31 @@ def test_worked_example_w18x50_braced_at_third_points() -> None:
 
 
 def test_flange_local_buckling_f3_by_hand() -> None:
-    # Table B4.1b case 10 at Fy = 50: lambda_p = 0.38 * 24.083 = 9.15, lambda_r = 24.08
-    lam_p, lam_r = ltb.flange_limits(E, FY)
-    assert (lam_p, lam_r) == pytest.approx((9.152, 24.083), abs=1e-3)
+    # Table B4.1b case 11 (flanges of built-up I-shapes; the shapes here are welded) at
+    # Fy = 50, h/tw = 16.8/0.36 = 46.67: kc = 4/sqrt(46.67) = 0.58554 (note [a]),
+    # lambda_p = 0.38 * 24.083 = 9.152, lambda_r = 0.95 sqrt(0.58554 * 29000 / 35) =
+    # 20.925 (FL = 0.7 Fy for a doubly symmetric section, F4-6a)
+    lam_p, lam_r = ltb.flange_limits(E, FY, ltb.kc(16.8, 0.36))
+    assert (lam_p, lam_r) == pytest.approx((9.152, 20.925), abs=1e-3)
     # compact: bf/2tf = 7.5/1.2 = 6.25 -> Mp
     assert ltb.mn_flb(7.5, 0.6, 16.8, 0.36, 103.7, 91.5, E, FY) == pytest.approx(5185.0)
     # noncompact: bf = 12, tf = 0.5: lambda = 12; F3-1:
-    #   Mn = 5185 - (5185 - 3202.5)(12 - 9.152)/(24.083 - 9.152) = 5185 - 1982.5 * 0.19074
-    #      = 4806.9 kip*in
-    assert ltb.mn_flb(12.0, 0.5, 16.8, 0.36, 103.7, 91.5, E, FY) == pytest.approx(4806.9,
+    #   Mn = 5185 - (5185 - 3202.5)(12 - 9.152)/(20.925 - 9.152) = 5185 - 1982.5 * 0.24193
+    #      = 4705.4 kip*in
+    assert ltb.mn_flb(12.0, 0.5, 16.8, 0.36, 103.7, 91.5, E, FY) == pytest.approx(4705.4,
                                                                                     abs=0.5)
-    # slender: bf = 16, tf = 0.3: lambda = 26.67; kc = 4/sqrt(16.8/0.36) = 0.5855; F3-2:
+    # slender by case 11 (noncompact by case 10, the rolled-shape limit 24.08, which gave
+    # 3479.1): bf = 13.2, tf = 0.3: lambda = 22 > 20.925; F3-2:
+    #   Mn = 0.9 * 29000 * 0.58554 * 91.5 / 484 = 2889.2 kip*in
+    assert ltb.mn_flb(13.2, 0.3, 16.8, 0.36, 103.7, 91.5, E, FY) == pytest.approx(2889.2,
+                                                                                    abs=0.1)
+    # slender: bf = 16, tf = 0.3: lambda = 26.67; F3-2:
     #   Mn = 0.9 * 29000 * 0.58554 * 91.5 / 711.11 = 1398360 / 711.11 = 1966.4 kip*in
     assert ltb.mn_flb(16.0, 0.3, 16.8, 0.36, 103.7, 91.5, E, FY) == pytest.approx(1966.4,
                                                                                     abs=0.1)
-    assert list(ltb.flange_class(np.array([7.5, 12.0, 16.0]), np.array([0.6, 0.5, 0.3]),
-                                 E, FY)) == ["compact", "noncompact", "slender"]
+    assert list(ltb.flange_class(np.array([7.5, 12.0, 13.2, 16.0]),
+                                 np.array([0.6, 0.5, 0.3, 0.3]), 16.8, 0.36, E, FY)
+                ) == ["compact", "noncompact", "slender", "slender"]
 
 
 def test_web_compactness_b4_1b_case_15() -> None:

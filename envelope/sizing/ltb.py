@@ -8,9 +8,14 @@ MPa (moments N*mm, lengths mm, Sx and Zx mm^3, J mm^4, Cw mm^6); US kip, in, ksi
 in, in^3, in^4, in^6).  ``E`` is passed in (see :data:`E_STEEL`).
 
 Scope: doubly symmetric I-shapes (c = 1, F2-8a) with compact webs (Table B4.1b case 15);
-flanges compact, noncompact or slender by Table B4.1b case 10 (rolled I-shapes).  A
-noncompact or slender web (F4, F5) is outside this module: :func:`web_is_compact` says
-which sections need them, and the caller reports them as not checked.
+flanges compact, noncompact or slender by Table B4.1b case 11 (built-up I-shapes).  A
+sections table does not say which shapes are rolled and which are welded (the demo tables
+and the tests' shapes are welded), so every flange takes the built-up limit lambda_r =
+0.95 sqrt(kc E / FL), which is below case 10's 1.0 sqrt(E/Fy) for every kc (at most
+0.76): on the safe side for a rolled shape, as :mod:`envelope.sizing.web` keeps phi_v =
+0.90 for shear.  A noncompact or slender web (F4, F5) is outside this module:
+:func:`web_is_compact` says which sections need them, and the caller reports them as not
+checked.
 """
 
 from __future__ import annotations
@@ -98,10 +103,13 @@ def mn_ltb(lb: np.ndarray | float, cb_: np.ndarray | float, Zx: np.ndarray | flo
     return np.minimum(mn, mp)
 
 
-def flange_limits(E: float, Fy: float) -> tuple[float, float]:
-    """Table B4.1b case 10 (flanges of rolled I-shapes in flexure): lambda_p = 0.38
-    sqrt(E/Fy) (compact), lambda_r = 1.0 sqrt(E/Fy) (noncompact)."""
-    return 0.38 * np.sqrt(E / Fy), 1.0 * np.sqrt(E / Fy)
+def flange_limits(E: float, Fy: float, kc_: np.ndarray | float
+                  ) -> tuple[float, np.ndarray]:
+    """Table B4.1b case 11 (flanges of built-up I-shapes in flexure): lambda_p = 0.38
+    sqrt(E/Fy) (compact; the same as case 10), lambda_r = 0.95 sqrt(kc E / FL)
+    (noncompact) with FL = 0.7 Fy, the value for a doubly symmetric section (Sxt/Sxc =
+    1 >= 0.7, Eq. F4-6a)."""
+    return 0.38 * float(np.sqrt(E / Fy)), 0.95 * np.sqrt(_a(kc_) * E / (0.7 * Fy))
 
 
 def web_is_compact(h: np.ndarray | float, tw: np.ndarray | float, E: float, Fy: float
@@ -129,15 +137,16 @@ def mn_flb(bf: np.ndarray | float, tf: np.ndarray | float, h: np.ndarray | float
     """
     mp = Fy * _a(Zx)
     lam = _a(bf) / (2.0 * _a(tf))
-    lam_p, lam_r = flange_limits(E, Fy)
+    k_c = kc(h, tw)
+    lam_p, lam_r = flange_limits(E, Fy, k_c)
     noncompact = mp - (mp - 0.7 * Fy * _a(Sx)) * (lam - lam_p) / (lam_r - lam_p)
-    slender = 0.9 * E * kc(h, tw) * _a(Sx) / lam**2
+    slender = 0.9 * E * k_c * _a(Sx) / lam**2
     return np.where(lam <= lam_p, mp, np.where(lam <= lam_r, noncompact, slender))
 
 
-def flange_class(bf: np.ndarray | float, tf: np.ndarray | float, E: float, Fy: float
-                 ) -> np.ndarray:
-    """'compact', 'noncompact' or 'slender' flange (Table B4.1b case 10), per section."""
+def flange_class(bf: np.ndarray | float, tf: np.ndarray | float, h: np.ndarray | float,
+                 tw: np.ndarray | float, E: float, Fy: float) -> np.ndarray:
+    """'compact', 'noncompact' or 'slender' flange (Table B4.1b case 11), per section."""
     lam = _a(bf) / (2.0 * _a(tf))
-    lam_p, lam_r = flange_limits(E, Fy)
+    lam_p, lam_r = flange_limits(E, Fy, kc(h, tw))
     return np.where(lam <= lam_p, "compact", np.where(lam <= lam_r, "noncompact", "slender"))

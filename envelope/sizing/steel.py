@@ -325,7 +325,8 @@ def _row_messages(rows: Rows, shapes: Shapes, checks: Checks, inp: SteelInput, k
                 continue
         if um > 1.0:
             limit = ("0.90 Mp (F2.1)" if not full or
-                     ltb.flange_class(shapes.bf[k], shapes.tf[k], inp.E, inp.Fy) == "compact"
+                     ltb.flange_class(shapes.bf[k], shapes.tf[k], shapes.h[k], shapes.tw[k],
+                                      inp.E, inp.Fy) == "compact"
                      else "0.90 Mn for flange local buckling (F3.2)")
             failures[i].append(
                 f"moment: Mu = {abs(rows.moment[i]):.1f} {mu_unit} exceeds phi_b Mn = "
