@@ -236,6 +236,28 @@ def test_each_design_action_names_its_governing_combination_and_pattern(
     assert 'id="governing-table"' in page and ">1 2 4<" in page
 
 
+def test_end_actions_are_governed_at_the_span_ends_of_either_sign(tmp_path: Path) -> None:
+    # a cantilever's tip shear is positive (upward reaction-free end, load at the tip):
+    # the design shear_right is a magnitude, so the shear_max column governs there;
+    # 16.2 kN = 1.35 x the 12 kN dead tip load (EN 1990 6.10, Table A1.2(B))
+    run = _invoke("run", str(CASES / "carpark-3span-overhang-si.toml"), "-o",
+                  str(tmp_path), "--no-plots", "-q")
+    assert run.exit_code == 0, run.output
+    data = collect.collect(next(p for p in tmp_path.iterdir() if p.is_dir()))
+    gov = data.tables["governing"]
+    rows = {(r[0], r[1]): dict(zip(gov.columns, r, strict=True)) for r in gov.rows}
+    tip = rows[(4, "shear_right")]
+    assert tip["value"] == "16.2" and tip["x_span"] == pytest.approx(2.2)
+    assert tip["combination"].startswith("1.35G")
+    lengths = dict(zip(data.tables["design"].column("span"),
+                       data.tables["design"].column("length"), strict=True))
+    for (span, action), r in rows.items():
+        if action in ("shear_left", "moment_neg_left"):
+            assert r["x_span"] == 0.0, r
+        if action in ("shear_right", "moment_neg_right"):
+            assert r["x_span"] == pytest.approx(lengths[span]), r
+
+
 def test_a_check_the_sizing_could_not_make_is_not_checked_never_pass() -> None:
     table = collect.Table(
         "sizing", "", ("span", "section", "moment_design", "shear_design", "as_required",

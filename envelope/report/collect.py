@@ -194,17 +194,38 @@ def collect(folder: str | Path) -> ReportData:
     return data
 
 
-#: Design actions of design.parquet -> the envelope column whose station holds the
-#: governing combination, the part of the span searched, and whether signs are compared
-#: as magnitudes ("left", "right": the half at that end).
-GOVERNED = (("moment_pos", "moment_max", "all", False),
-            ("moment_neg_left", "moment_min", "left", False),
-            ("moment_neg_left_face", "moment_min", "left", False),
-            ("moment_neg_right", "moment_min", "right", False),
-            ("moment_neg_right_face", "moment_min", "right", False),
-            ("shear_left", "shear_max", "left", True),
-            ("shear_right", "shear_min", "right", True),
-            ("deflection_max", "deflection_max", "all", False))
+#: Design actions of design.parquet -> the envelope columns whose station holds the
+#: governing combination, and where in the span: "pos" the station nearest the largest
+#: sagging moment, "left_end" / "right_end" the span's end station, "left" / "right" the
+#: half at that end (the support faces), "all" the whole span.  Shears are compared as
+#: magnitudes (the design value is the larger magnitude at the end, of either sign).
+GOVERNED = (("moment_pos", ("moment_max",), "pos"),
+            ("moment_neg_left", ("moment_min",), "left_end"),
+            ("moment_neg_left_face", ("moment_min",), "left"),
+            ("moment_neg_right", ("moment_min",), "right_end"),
+            ("moment_neg_right_face", ("moment_min",), "right"),
+            ("shear_left", ("shear_max", "shear_min"), "left_end"),
+            ("shear_right", ("shear_max", "shear_min"), "right_end"),
+            ("deflection_max", ("deflection_max",), "all"))
+
+
+def _stations(mine: list[dict[str, Any]], where: str, x_pos: Any) -> list[dict[str, Any]]:
+    """The stations of one span that may hold a design action (see :data:`GOVERNED`)."""
+    xs = [e["x_span"] for e in mine]
+    lo, hi = min(xs), max(xs)
+    if where == "left_end":
+        return [e for e in mine if e["x_span"] == lo]
+    if where == "right_end":
+        return [e for e in mine if e["x_span"] == hi]
+    if where == "pos" and isinstance(x_pos, float) and math.isfinite(x_pos):
+        best = min(abs(x - x_pos) for x in xs)
+        return [e for e in mine if abs(e["x_span"] - x_pos) == best]
+    mid = 0.5 * (lo + hi)
+    if where == "left":
+        return [e for e in mine if e["x_span"] <= mid]
+    if where == "right":
+        return [e for e in mine if e["x_span"] >= mid]
+    return mine
 
 
 def governing(design: Table, envelope: Table) -> Table:
@@ -216,28 +237,26 @@ def governing(design: Table, envelope: Table) -> Table:
     rows: list[tuple[Any, ...]] = []
     for row in design.rows:
         d = dict(zip(design.columns, row, strict=True))
-        mine = [e for e in env if e.get("span") == d.get("span")]
+        mine = [e for e in env if e.get("span") == d.get("span")
+                and isinstance(e.get("x_span"), float)]
         if not mine:
             continue
-        mid = 0.5 * (min(e["x_span"] for e in mine) + max(e["x_span"] for e in mine))
-        for action, column, part, magnitude in GOVERNED:
+        for action, columns, where in GOVERNED:
             value = d.get(action)
-            if action not in design.columns or f"{column}_combo" not in envelope.columns \
-                    or not isinstance(value, float) or not math.isfinite(value):
+            if action not in design.columns or not isinstance(value, float) \
+                    or not math.isfinite(value):
                 continue
             text = fmt(value, decimals(design.column(action)))
             if float(text) == 0.0:  # no such action (a free or pinned end): none governs
                 continue
-            near = [e for e in mine if isinstance(e.get(column), float)
-                    and (part == "all" or (e["x_span"] <= mid if part == "left"
-                                           else e["x_span"] >= mid))]
-            if not near:
+            shear = action.startswith("shear")
+            found = [(abs((abs(e[c]) - abs(value)) if shear else e[c] - value), i, e, c)
+                     for i, e in enumerate(_stations(mine, where, d.get("moment_pos_x")))
+                     for c in columns if f"{c}_combo" in envelope.columns
+                     and isinstance(e.get(c), float)]
+            if not found:
                 continue
-            if action == "moment_pos" and isinstance(d.get("moment_pos_x"), float):
-                best = min(near, key=lambda e: abs(e["x_span"] - d["moment_pos_x"]))
-            else:
-                best = min(near, key=lambda e: abs((abs(e[column]) - abs(value))
-                                                   if magnitude else e[column] - value))
+            _, _, best, column = min(found, key=lambda f: (f[0], f[1]))
             rows.append((d.get("span"), action, text, design.units.get(action, ""),
                          best["x_span"], best[f"{column}_combo"],
                          best.get(f"{column}_loaded")))
