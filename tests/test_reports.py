@@ -103,6 +103,37 @@ def test_report_holds_caution_provenance_input_combinations_and_every_check(
     assert "<svg" in page and "model sketch" in page
 
 
+#: Keys whose numbers are dimensionless (docs/case-format.md lists no unit for them):
+#: counts, span numbers, factors, ratios and strains.
+UNITLESS = ("spans", "stations_per_span", "segments", "favourable_dead", "camber_fraction",
+            "damping", "tolerance", "creep", "shrinkage", "xi", "redistribution")
+
+
+def test_every_plain_number_of_every_example_is_echoed_with_its_unit() -> None:
+    import re
+    import tomllib
+
+    from envelope.report import echo
+
+    for path in [*sorted(CASES.glob("*.toml")), ROOT / "envelope" / "data" / "demo.toml"]:
+        document = tomllib.loads(path.read_text())
+        for r in echo.echo(document, document.get("units", "SI")):
+            last = re.sub(r"\[\d+\]", "", r["key"]).rsplit(".", 1)[-1]
+            if not re.fullmatch(r"[-+0-9.eE, \[\]]+", r["value"]) or last in UNITLESS \
+                    or ".factors." in r["key"] or ".sustained." in r["key"]:
+                continue
+            assert r["unit"], (path.name, r)
+    # brace positions, one list per span, keep their lists (case-format "bracing")
+    rows = {r["key"]: r for r in echo.echo(
+        {"design": {"bracing": {"bottom": [[], [13.0]]}, "bearing_length": 100,
+                    "vibration": {"live": 0.5, "spacing": 3.0}}}, "US")}
+    assert rows["design.bracing.bottom"] == {"key": "design.bracing.bottom",
+                                             "value": "[], [13]", "unit": "ft"}
+    assert rows["design.bearing_length"]["unit"] == "in"
+    assert rows["design.vibration.live"]["unit"] == "psf"
+    assert rows["design.vibration.spacing"]["unit"] == "ft"
+
+
 def test_a_new_sizing_column_appears_in_the_report_without_a_code_change(
         office: Path, tmp_path: Path) -> None:
     folder = tmp_path / office.name

@@ -26,6 +26,20 @@ DESIGN_UNITS: dict[str, tuple[str, str]] = {
     "Zx": ("mm^3", "in^3"), "Sx": ("mm^3", "in^3"), "Ix": ("mm^4", "in^4"),
     "Iy": ("mm^4", "in^4"), "Aw": ("mm^2", "in^2"), "ry": ("mm", "in"),
     "J": ("mm^4", "in^4"), "Cw": ("mm^6", "in^6"),
+    **{k: ("mm", "in") for k in ("bearing_length", "rts", "ho", "k")},
+    "weight": ("kg/m", "lb/ft"), "crack_width": ("mm", "mm"),
+    "months": ("months", "months"),
+}
+#: [design] keys whose plain numbers are in the case's own units (case-format
+#: "bracing (steel)", "vibration (steel)"): key path prefix -> quantity.
+DESIGN_QUANTITY: dict[str, str] = {
+    "design.bracing": "length", "design.vibration.spacing": "length",
+    "design.vibration.effective_width": "length",
+}
+#: [design] keys in a unit of their own: path -> (SI, US).
+DESIGN_OWN: dict[str, tuple[str, str]] = {
+    "design.vibration.live": ("kN/m^2", "psf"),
+    "design.bars": ("mm", ""),  # a list of metric bar diameters; US sizes are names
 }
 
 
@@ -35,6 +49,12 @@ def unit_of(path: str, system: str) -> str:
     if path.startswith("design"):
         if path.startswith("design.deflection_limits"):
             return "span / value"
+        for prefix, quantity in DESIGN_QUANTITY.items():
+            if path == prefix or path.startswith(prefix + "."):
+                return pretty_unit(SYSTEMS[system].customary(quantity))
+        own = DESIGN_OWN.get(path)
+        if own:
+            return own[0 if system == "SI" else 1]
         pair = DESIGN_UNITS.get(last)
         return pair[0 if system == "SI" else 1] if pair else ""
     q = KEY_QUANTITY.get(last)
@@ -51,9 +71,16 @@ def _walk(value: Any, path: str, out: list[dict[str, str]], system: str) -> None
     else:
         shown = _shown(value)
         unit = "as written" if isinstance(value, str) and _has_unit(value, path) else \
-            unit_of(path, system) if isinstance(value, int | float) and not \
-            isinstance(value, bool) else ""
+            unit_of(path, system) if _numbers(value) else ""
         out.append({"key": path, "value": shown, "unit": unit})
+
+
+def _numbers(value: Any) -> bool:
+    """A plain number, or a list (of lists) holding plain numbers only."""
+    if isinstance(value, list):
+        return bool(value) and all(_numbers(v) or v == [] for v in value) and \
+            any(_numbers(v) for v in value)
+    return isinstance(value, int | float) and not isinstance(value, bool)
 
 
 def _has_unit(text: str, path: str) -> bool:
@@ -64,6 +91,9 @@ def _shown(value: Any) -> str:
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, list):
+        if any(isinstance(v, list) for v in value):  # one list per span: keep the brackets
+            return ", ".join(f"[{_shown(v)}]" if isinstance(v, list) else _shown(v)
+                             for v in value)
         return ", ".join(_shown(v) for v in value)
     if isinstance(value, float):
         return f"{value:g}"
