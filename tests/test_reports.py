@@ -312,6 +312,40 @@ def test_a_check_the_sizing_could_not_make_is_not_checked_never_pass() -> None:
     assert checks.overall(rows)[0] == "incomplete"
 
 
+def test_a_failure_whose_text_holds_a_semicolon_stays_one_failure_of_its_check() -> None:
+    # sizing joins failures with "; " and some failures go on after "; " with their
+    # advice or inside a bracket: neither is a failure of its own
+    shear = ("section too small for shear: Vu = 263.3 kN exceeds phi(Vc + Vs,max) = "
+             "189.9 kN (ACI 318-19 22.5.1.2) by 38.6%; widen or deepen the section")
+    bars = ("no arrangement of the bar set gives the compression steel 5471 mm2 in one or "
+            "two layers of a 200 mm web: widen the section or allow larger bars")
+    redistributed = ("moment redistribution 20.0 % at support 2 exceeds the 9.3 % allowed "
+                     "(ACI 318-19 6.6.5: the lesser of 1000 eps_t percent and 20 percent, "
+                     "none below eps_t = 0.0075; eps_t = 0.0093 here)")
+    deflection = ("deflection: with Ix = 445 in4 the live-load deflection is 12% over its "
+                  "limit; needs Ix >= 500 in4")
+    cracked = ("cracked deflection not computed: the service moment cracks a section where "
+               "no tension steel is provided")
+    assert checks.failures("; ".join([shear, bars, redistributed, deflection, cracked])) == [
+        shear, bars, redistributed, deflection, cracked]
+    assert checks.failures("ok") == []
+    table = collect.Table(
+        "sizing", "", ("span", "section", "moment_design", "shear_design", "as_required",
+                       "as_max", "as_design", "as_provided", "phiMn", "av_over_s_required",
+                       "status"), {},
+        ((1, "left", -170.0, 263.3, 2578.0, 3525.0, 2578.0, 3277.0, 170.0, None,
+          f"{shear}; {bars}"),
+         (1, "span", 270.0, None, 4033.0, 5705.0, 4033.0, 4200.0, 270.0, None, cracked)))
+    rows = checks.checks(table, None, "aci318-19")
+    got = {(r["section"], r["check"]): (r["result"], r["detail"]) for r in rows}
+    assert got[("left", "shear")][0] == "fail" and shear in got[("left", "shear")][1]
+    assert got[("left", "bars provided")] == ("fail", bars)
+    assert ("left", "other") not in got  # the advice is no failure of its own
+    # the cracked-deflection text says "tension steel": it is no maximum-steel failure
+    assert got[("span", "maximum steel")] == ("pass", "")
+    assert got[("span", "other")] == ("not checked", cracked)
+
+
 def test_a_steel_ratio_whose_demand_and_limit_are_not_tabulated_says_so() -> None:
     table = collect.Table(
         "sizing", "", ("span", "section", "deflection_live", "deflection_live_allowed",
@@ -320,7 +354,17 @@ def test_a_steel_ratio_whose_demand_and_limit_are_not_tabulated_says_so() -> Non
     rows = checks.checks(table, None, "en1992-1-1")
     assert [(r["demand"], r["capacity"], r["unit"]) for r in rows] == [
         ("10.00", "20.00", "mm"), ("-", "-", "")]
+    assert rows[0]["detail"] == "deflection_live / deflection_live_allowed"
     assert rows[1]["detail"] == "the demand and limit of this ratio are not tabulated"
+    # a steel moment check at a support names the unbraced segment its demand is from
+    segment = collect.Table(
+        "sizing", "", ("span", "section", "moment_design", "moment_segment", "phi_mn",
+                       "segment", "utilisation_moment", "status"), {"moment_segment": "kN*m"},
+        ((1, "left", 0.0, 190.0, 238.0, "bottom flange 0.00-6.00 m", 190.0 / 238.0, "ok"),))
+    row = checks.checks(segment, None, "aisc360-22")[0]
+    assert (row["demand"], row["capacity"], row["unit"]) == ("190.0", "238.0", "kN*m")
+    assert row["detail"] == ("moment_segment / phi_mn of the governing segment, bottom "
+                             "flange 0.00-6.00 m")
 
 
 def test_json_and_empty_cells_read_as_text_never_as_brackets(office: Path) -> None:

@@ -56,7 +56,7 @@ CLAUSES: dict[str, dict[str, str]] = {
 }
 #: Words of a failing ``status`` that belong to each check.
 STATUS_WORDS = {"flexure": ("singly reinforced", "section too small: "),
-                "maximum steel": ("0.04 Ac", "tension steel"),
+                "maximum steel": ("exceeds 0.04 Ac",),
                 "bars provided": ("no arrangement of the bar set",),
                 "crack control": ("crack control", "bar spacing"),
                 "shear": ("for shear", "stirrup"), "deflection": ("deflection",),
@@ -83,6 +83,26 @@ OTHER_CLAUSE = "see the note and status of sizing.parquet"
 #: A clause a failing status cites in brackets, e.g. "(ACI 318-19 9.9.1.1(b))": the
 #: clause of a failure no check names.
 CITED = re.compile(r"\(((?:ACI 318-19|EN 1992-1-1|AISC 360-22) [^;]*?)\)(?:[:;,.]|$| )")
+
+
+#: How a failure's own advice goes on after "; " (sizing joins failures with "; " too):
+#: "...by 38.6%; widen or deepen the section", "...over its limit; needs Ix >= ...".
+CONTINUES = ("deepen ", "widen ", "needs ")
+
+
+def failures(status: str) -> list[str]:
+    """The failures of a ``status`` (``ok``: none), each whole: a part after "; " that
+    goes on with the failure before it (its advice, or inside its open bracket) is kept
+    with it."""
+    if status == "ok" or not status.strip():
+        return []
+    out: list[str] = []
+    for part in (p.strip() for p in status.split("; ")):
+        if out and (out[-1].count("(") > out[-1].count(")") or part.startswith(CONTINUES)):
+            out[-1] += "; " + part
+        elif part:
+            out.append(part)
+    return out
 
 
 def _missing(v: Any) -> bool:
@@ -132,7 +152,7 @@ def checks(sizing: Table | None, document: dict[str, Any] | None,
     for row in sizing.rows:
         r = dict(zip(cols, row, strict=True))
         status = str(r.get("status") or "ok")
-        failing = [] if status == "ok" else [s.strip() for s in status.split(";")]
+        failing = failures(status)
         named: set[int] = set()
 
         def shown(name: str | None, r: dict[str, Any] = r) -> str:
@@ -203,8 +223,11 @@ def checks(sizing: Table | None, document: dict[str, Any] | None,
             if not _missing(r.get(c)):
                 check = c.removeprefix("utilisation_")
                 pair = _pair(check, r, float(r[c]))
-                add(check, r[c], pair, "" if pair else
-                    "the demand and limit of this ratio are not tabulated")
+                detail = f"{pair[0]} / {pair[1]}" if pair else \
+                    "the demand and limit of this ratio are not tabulated"
+                if pair and pair[0] == "moment_segment" and r.get("segment"):
+                    detail += f" of the governing segment, {r['segment']}"
+                add(check, r[c], pair, detail)
         for i, text in enumerate(failing):
             if i not in named:
                 cited = CITED.search(text)
