@@ -290,6 +290,31 @@ def test_bars_provide_the_steel_and_are_reported() -> None:
     assert all(s.startswith("#") for s in cols["stirrups"][ends] if s)
 
 
+@pytest.mark.parametrize(("dead", "tight"), [(500.0, False), (800.0, True)])
+def test_aci_stirrup_legs_across_a_wide_web_halve_with_high_shear(dead: float,
+                                                                 tight: bool) -> None:
+    # ACI 318-19 Table 9.7.6.2.2: the legs of the stirrups are at most d (24 in / 600 mm)
+    # apart across the width, d/2 (12 in / 300 mm) where Vs > 0.33 sqrt(f'c) bw d (SI),
+    # as along the length (d/2 -> d/4).  A 1200 mm web, d = 640 mm, the outer legs at
+    # the bars' 60 mm from the faces: 1080 mm between them, so 3 legs (540 mm apart)
+    # normally and at least 5 (270 mm) with high shear.
+    design = {**ACI, "b": 1200, "h": 700, "fc": 25}
+    cols = case(design, (4.0,), dead, 0.0)
+    i = row(cols, 1, "left")
+    d = cols["d"][i]
+    vc = 0.17 * math.sqrt(25) * 1200 * d / 1e3                    # Table 22.5.5.1(a)
+    vs = cols["shear_design"][i] / 0.75 - vc
+    assert (vs > 0.33 * math.sqrt(25) * 1200 * d / 1e3) == tight
+    assert cols["s_max"][i] == pytest.approx(d / 4 if tight else d / 2)
+    size_, legs, _, spacing, _ = cols["stirrups"][i].split()
+    legs_n = int(legs[1:])
+    across = (1200 - 2 * 60) / (legs_n - 1)
+    assert across <= (min(d / 2, 300) if tight else min(d, 600))
+    assert legs_n >= 5 if tight else legs_n == 3
+    area = {"#3": 0.11, "#4": 0.20, "#5": 0.31}[size_] * 25.4**2
+    assert legs_n * area / float(spacing) >= cols["av_over_s_required"][i]
+
+
 def test_en_metric_bars_and_crack_control_tables() -> None:
     cols = case(EN, (8.0, 8.0), 20.0, 15.0, extra={"bars": [12, 16, 20]})
     used = {b.split()[1] for b in cols["bars"] if b}

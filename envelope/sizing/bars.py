@@ -248,7 +248,7 @@ def stirrups(av_over_s: np.ndarray, s_max: np.ndarray, width: np.ndarray,
              sizes: BarSet, system: str) -> dict[str, np.ndarray]:
     """Stirrups for a required Av/s (section units per unit length; 0 or NaN: none):
     the smallest size, with the fewest legs that keep the legs' lateral spacing within
-    ``leg_spacing_max`` (ACI 318-19 9.7.6.2.3, EN 1992-1-1 9.2.2(8)), at the largest
+    ``leg_spacing_max`` (ACI 318-19 Table 9.7.6.2.2, EN 1992-1-1 9.2.2(8)), at the largest
     spacing that gives Av/s, rounded down to 25 mm / 1 in and at most ``s_max``, not
     below 75 mm / 3 in where a larger size or more legs does better.  Returns
     ``index`` (-1: none), ``legs``, ``spacing``, ``label`` (``"#4 x2 @ 8"``)."""

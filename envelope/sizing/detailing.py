@@ -5,7 +5,7 @@ long-term and incremental deflections, added to the sizing of
 - bars at every design section (:mod:`envelope.sizing.bars`): the steel required is
   recomputed at the depth the bars give (one or two layers) and the bars provide it;
   ``d`` becomes the depth to the centroid of the bars provided;
-- stirrups at the ends from the Av/s required (ACI 318-19 9.7.6.2.3 / EN 1992-1-1
+- stirrups at the ends from the Av/s required (ACI 318-19 Table 9.7.6.2.2 / EN 1992-1-1
   9.2.2(8) for the lateral spacing of the legs);
 - crack control (:mod:`envelope.sizing.crack_control`): ACI 318-19 24.3.2 with
   fs = (2/3) fy; EN 1992-1-1 7.3.3 with the steel stress of the cracked section under
@@ -20,6 +20,7 @@ long-term and incremental deflections, added to the sizing of
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -210,7 +211,17 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     mm = 1.0 if system == "SI" else 1.0 / bar_mod.IN_MM
     d_now = np.asarray(cols["d"], float)
     if p.code == "aci318-19":
-        legs_max = np.minimum(d_now, 600.0 * mm if system == "SI" else 24.0)
+        # Table 9.7.6.2.2, across the width: d and 24 in / 600 mm, halved (d/2, 12 in /
+        # 300 mm) where Vs > 4 sqrt(f'c) bw d, as the sizing halves s_max along the length
+        # (Vs of the Av/s provided for: Av/s fyt d, so d cancels)
+        s = ACI_SCALES[system]
+        k = aci.COEFFICIENTS[system]
+        fyt = min(float(design.stirrup_strength) * s.stress, k.fyt_cap)
+        with np.errstate(invalid="ignore"):
+            tight = np.nan_to_num(av_s) * fyt > (k.vs_tight * math.sqrt(float(design.fc)
+                                                                       * s.stress) * bw)
+        legs_max = np.where(tight, np.minimum(d_now / 2.0, k.s_max_tight),
+                            np.minimum(d_now, k.s_max))
     else:
         legs_max = np.minimum(0.75 * d_now, 600.0 * mm)
     st = bar_mod.stirrups(av_s, np.where(np.isfinite(s_max), s_max, 0.75 * d_now),
