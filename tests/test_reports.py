@@ -379,6 +379,35 @@ def test_json_and_empty_cells_read_as_text_never_as_brackets(office: Path) -> No
     assert ">D: 1.2, SDL: 1.2, L: 1.6<" in page
 
 
+def test_long_texts_of_the_html_tables_wrap_instead_of_running_off_the_page(
+        office: Path) -> None:
+    # table cells keep numbers on one line (nowrap); a clause, a failing reason or a
+    # sizing note of a sentence or more wraps within the page
+    from html.parser import HTMLParser
+
+    class Cells(HTMLParser):
+        def __init__(self) -> None:
+            super().__init__()
+            self.cells: list[tuple[str, str]] = []
+            self.open: str | None = None
+
+        def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+            if tag == "td":
+                self.open = dict(attrs).get("class") or ""
+
+        def handle_data(self, data: str) -> None:
+            if self.open is not None:
+                self.cells.append((self.open, data))
+                self.open = None
+
+    parser = Cells()
+    parser.feed((office / "report.html").read_text())
+    long = [(cls, text) for cls, text in parser.cells if len(text) > 60 and " " in text]
+    assert long, "no long cell: the test needs a note or a clause"
+    assert all(cls == "prose" for cls, _ in long), [t for c, t in long if c != "prose"]
+    assert "td.prose { white-space: normal" in (office / "report.html").read_text()
+
+
 def test_pdf_table_headings_can_break_so_they_never_run_over_each_other(
         office: Path) -> None:
     import re
