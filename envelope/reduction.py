@@ -18,7 +18,9 @@ The tributary area of a span is its length times the tributary width: each span 
 continuous beam is taken as the member that supports its own area (common practice
 for floor beams; a reaction or a column takes the sum of the spans it supports, which is
 a column's check and out of scope here).  Cantilever spans take KLL = 1 (Table 4.7-1,
-"cantilever beams") whatever ``kll`` says.
+"cantilever beams") whatever ``kll`` says.  Every fixed item of a reduced case is reduced
+(a point item is taken as the reaction of reducible floor load, such as a joist's); a case
+holding a moving load (``concentrated`` or ``train``, its only item) keeps the factor 1.0.
 
 Everything is in the beam's consistent units (m and kN, or ft and kip).  Nothing here
 is presentation: the factors are plain arrays that :mod:`envelope.loading` applies to
@@ -118,6 +120,11 @@ def span_factors(beam: Beam) -> np.ndarray:
     for i, case in enumerate(beam.cases):
         r = case.reduction
         if r is None:
+            continue
+        if any(ld.case == case.name and ld.is_moving for ld in beam.loads):
+            # a concentrated load or a train (its case's only item) is not reduced:
+            # ASCE 7-22 4.7.1 reduces the uniformly distributed Lo, EN 1991-1-1
+            # 6.3.1.2(10) the qk; the factor stays 1.0 and the outputs say so
             continue
         area = lengths * r.tributary_width
         standard = r.standard or standard_of(beam.combinations.strength)

@@ -89,3 +89,24 @@ def test_reduction_only_on_live_cases() -> None:
                      dead={"reduction": {"tributary_width": 6.0}})
     with pytest.raises(CaseError, match="kind 'live'"):
         parse_text(text)
+
+
+def test_a_concentrated_live_load_is_not_reduced_and_the_outputs_say_so() -> None:
+    """ASCE 7-22 4.7.1 reduces the uniformly distributed live load Lo (4.4 concentrated
+    loads are not reduced); EN 1991-1-1:2002 6.3.1.2(10) reduces qk, not Qk.  A reduced
+    case holding a ``concentrated`` load keeps its full value (an end reaction of the full
+    P at the end support, the load there: statics) and reports the factor 1.0."""
+    text = beam_text(
+        [8.0, 8.0], ["pinned"] * 3,
+        [{"case": "D", "type": "uniform", "spans": "all", "w": 10.0},
+         {"case": "L", "type": "concentrated", "spans": "all", "P": 40.0}],
+        section={"E": 30000, "I": 8.0e9},
+        cases={"D": "dead", "L": {"kind": "live",
+                                  "reduction": {"tributary_width": 6.0, "kll": 2}}},
+        combinations={"strength": "asce7-lrfd", "service": "characteristic"})
+    tables = envelope.tables(envelope.analyse(parse_text(text)))
+    assert tables["reactions"].to_pydict()["unfactored_L"][0] == pytest.approx(
+        40.0, rel=SMALL_SOLVE)
+    assert tables["design"].column("live_reduction").to_pylist() == [1.0, 1.0]
+    for reduced in tables["cases"].to_pydict()["live_reduction"]:
+        assert all(f == 1.0 for per_span in json.loads(reduced).values() for f in per_span)
