@@ -289,6 +289,23 @@ def test_end_actions_are_governed_at_the_span_ends_of_either_sign(tmp_path: Path
             assert r["x_span"] == pytest.approx(lengths[span]), r
 
 
+def test_the_design_actions_say_what_their_columns_mean_and_patterning_its_clauses(
+        office: Path) -> None:
+    from envelope.report import html, pdf
+
+    page = (office / "report.html").read_text()
+    # every column of design.parquet that is not self-evident is named in the legend
+    legend = collect.LEGENDS["design"]
+    for name in ("moment_pos", "moment_neg_left", "_face", "shear_left", "deflection_max",
+                 "deflection_live", "span_over_deflection"):
+        assert name in legend
+    assert 'id="design-legend"' in page and "support centrelines" in page
+    assert pdf.report_json(collect.collect(office))["legends"]["design"] == legend
+    # partial loading of live load: ASCE 7-22 4.3.3 beside ACI 318-19 6.4.2 and EN 5.1.3
+    for method in ("exhaustive", "segments"):
+        assert "ASCE 7-22 4.3.3" in html.patterning_text({"patterning": {"method": method}})
+
+
 def test_a_check_the_sizing_could_not_make_is_not_checked_never_pass() -> None:
     table = collect.Table(
         "sizing", "", ("span", "section", "moment_design", "shear_design", "as_required",

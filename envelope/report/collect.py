@@ -22,6 +22,17 @@ from envelope.errors import EnvelopeError
 TABLES = (("design", "Design actions per span"), ("reactions", "Support reactions"),
           ("sizing", "Member sizing per design section"),
           ("cases", "Combinations and patterns"))
+#: What the columns of a table mean, under the table (docs/outputs.md says it at length).
+LEGENDS = {
+    "design": "moment_pos: the largest sagging moment, at moment_pos_x from the span's "
+              "left support; moment_neg_left / moment_neg_right: the most hogging moment at "
+              "the support centrelines, *_face the same at the support faces; shear_left / "
+              "shear_right: the largest shear magnitude at the span ends; deflection_max: "
+              "the largest downward service deflection with the stiffness analysed "
+              "(cracked concrete deflections are in the sizing table); deflection_live: one "
+              "variable action alone, deflection_live_combo which; span_over_deflection: "
+              "length / deflection_max.",
+}
 #: Columns never shown in the report's tables (the beam's own id, repeated).
 HIDDEN = frozenset({"beam"})
 

@@ -7,7 +7,7 @@ from importlib import resources
 from pathlib import Path
 from typing import Any
 
-from envelope.report.collect import ReportData
+from envelope.report.collect import LEGENDS, ReportData
 
 CAUTION = ("Results are for checking by a licensed engineer and defer to local codes; "
            "they are not a design.")
@@ -21,9 +21,10 @@ PATTERNING = {
             "(all spans loaded, alternate spans, each pair of adjacent spans).",
     "exhaustive": "Patterning: every subset of spans for each patterned case, enveloped "
                   "exactly by superposition of per-span unit responses (common practice "
-                  "generalised; covers ACI 318-19 6.4.2 and EN 1992-1-1 5.1.3).",
+                  "generalised; covers ACI 318-19 6.4.2, EN 1992-1-1 5.1.3 and the partial "
+                  "loading of ASCE 7-22 4.3.3 span by span).",
     "segments": "Patterning: every subset of span segments ({segments} per span), "
-                "enveloped exactly by superposition (partial loading).",
+                "enveloped exactly by superposition (partial loading, ASCE 7-22 4.3.3).",
 }
 
 
@@ -57,6 +58,7 @@ def render(data: ReportData) -> str:
     """The HTML text of the report of ``data``."""
     template = environment().get_template("report.html.j2")
     return template.render(d=data, css=css(), caution=data.caution or CAUTION,
+                           legends=LEGENDS,
                            sizing_caution=SIZING_CAUTION,
                            patterning=patterning_text(data.document))
 

@@ -11,7 +11,7 @@ from pathlib import Path
 from typing import Any
 
 from envelope.errors import EnvelopeError
-from envelope.report.collect import ReportData, Table
+from envelope.report.collect import LEGENDS, ReportData, Table
 from envelope.report.html import CAUTION, SIZING_CAUTION, patterning_text
 
 #: Columns per printed table part (the key columns repeat in every part).
@@ -58,7 +58,7 @@ def report_json(data: ReportData) -> dict[str, Any]:
         "version": data.version, "input_sha256": data.input_sha256,
         "status_text": status, "warnings": data.warnings, "echo": data.echo,
         "has_sketch": bool(data.sketch_svg), "patterning": patterning_text(data.document),
-        "checks": data.checks,
+        "checks": data.checks, "legends": LEGENDS,
         "tables": {stem: table_parts(t) for stem, t in data.tables.items()
                    if stem != "envelope"},
     }
