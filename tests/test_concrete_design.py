@@ -315,6 +315,19 @@ def test_aci_stirrup_legs_across_a_wide_web_halve_with_high_shear(dead: float,
     assert legs_n * area / float(spacing) >= cols["av_over_s_required"][i]
 
 
+@pytest.mark.parametrize(("design", "h", "said"), [
+    (ACI, 1000, True), (ACI, 900, False),   # ACI 318-19 9.7.2.3: h > 900 mm
+    (EN, 1000, True), (EN, 950, False)])    # EN 1992-1-1 7.3.3(3): h >= 1000 mm
+def test_skin_reinforcement_of_a_deep_section_is_said_not_designed(
+        design: dict, h: int, said: bool) -> None:
+    cols = case({**design, "h": h}, (9.0, 9.0), 20.0, 15.0)
+    hits = [i for i, note in enumerate(cols["note"]) if "skin reinforcement" in note]
+    assert hits == ([0] if said else [])     # once for the beam, on its first row
+    if said:
+        clause = "9.7.2.3" if design is ACI else "7.3.3(3)"
+        assert clause in cols["note"][0] and "not designed" in cols["note"][0]
+
+
 def test_en_metric_bars_and_crack_control_tables() -> None:
     cols = case(EN, (8.0, 8.0), 20.0, 15.0, extra={"bars": [12, 16, 20]})
     used = {b.split()[1] for b in cols["bars"] if b}

@@ -238,6 +238,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     _crack(analysis, rows, p, cols, units, failures, chosen, side, crack)
     _deflection_columns(analysis, p, defl, cols, units, notes, failures)
     _flags(analysis, rows, p, failures)
+    _skin(analysis, p, np.asarray(cols["h"], dtype=float), notes)
     if p.code == "aci318-19" and "long_term" not in p.given:
         for i in np.flatnonzero(rows.is_span).tolist():
             notes[i].append("no live load taken as sustained (long_term.sustained not "
@@ -332,6 +333,32 @@ def _flags(analysis: Analysis, rows: Rows, p: Params, failures: list[list[str]])
                            f"design that region by 9.9 (strut-and-tie)")
                     if msg not in failures[i]:
                         failures[i].append(msg)
+
+
+#: Depth above which side-face (skin) reinforcement is asked for, section units: ACI
+#: 318-19 9.7.2.3 (h > 36 in / 900 mm), EN 1992-1-1 7.3.3(3) (h >= 1000 mm).
+SKIN_DEPTH = {("aci318-19", "SI"): 900.0, ("aci318-19", "US"): 36.0,
+              ("en1992-1-1", "SI"): 1000.0, ("en1992-1-1", "US"): 1000.0 / bar_mod.IN_MM}
+
+
+def _skin(analysis: Analysis, p: Params, h: np.ndarray, notes: list[list[str]]) -> None:
+    """Say, once for the beam on the first row concerned, that the skin reinforcement a
+    deep section needs on its side faces is not designed here."""
+    system = analysis.beam.units.name
+    limit = SKIN_DEPTH[(p.code, system)]
+    deep = h > limit if p.code == "aci318-19" else h >= limit * (1.0 - 1e-12)
+    if not np.any(deep):
+        return
+    unit = SECTION_UNITS[system]["length"]
+    if p.code == "aci318-19":
+        rule = (f"ACI 318-19 9.7.2.3 asks for it on both side faces over h/2 from the "
+                f"tension face, at the spacing of 24.3.2, where h > {limit:g} {unit}")
+    else:
+        rule = (f"EN 1992-1-1 7.3.3(3) asks for it between the tension steel and the "
+                f"neutral axis, within the links, where h >= {limit:.4g} {unit}")
+    notes[int(np.flatnonzero(deep)[0])].append(
+        f"skin reinforcement not designed: {rule} (h up to {float(np.max(h)):.4g} {unit} "
+        f"here)")
 
 
 def _spacing_clause(code: str) -> str:
