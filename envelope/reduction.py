@@ -138,9 +138,20 @@ def span_factors(beam: Beam) -> np.ndarray:
 
 
 def _area_load(beam: Beam, case: str, n: int) -> np.ndarray:
-    """Largest distributed intensity (force/length) of a case on each span."""
+    """Largest distributed intensity (force/length) of a case on each span: its uniform
+    and linear items summed where they overlap (two 60 psf items over one stretch are 120
+    psf, heavy by ASCE 7-22 4.7.4).  The sum is linear between the items' ends, so its
+    largest value is at one of them, from one side or the other."""
     peak = np.zeros(n)
-    for load in beam.loads:
-        if load.case == case and load.type in ("uniform", "linear"):
-            peak[load.span] = max(peak[load.span], load.w_start, load.w_end)
+    for j in range(n):
+        items = [ld for ld in beam.loads if ld.case == case and ld.span == j
+                 and ld.type in ("uniform", "linear") and ld.end > ld.start]
+        for x in sorted({ld.start for ld in items} | {ld.end for ld in items}):
+            for left in (True, False):
+                total = 0.0
+                for ld in items:
+                    if (ld.start < x <= ld.end) if left else (ld.start <= x < ld.end):
+                        t = (x - ld.start) / (ld.end - ld.start)
+                        total += ld.w_start + (ld.w_end - ld.w_start) * t
+                peak[j] = max(peak[j], total)
     return peak

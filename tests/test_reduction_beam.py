@@ -110,3 +110,27 @@ def test_a_concentrated_live_load_is_not_reduced_and_the_outputs_say_so() -> Non
     assert tables["design"].column("live_reduction").to_pylist() == [1.0, 1.0]
     for reduced in tables["cases"].to_pydict()["live_reduction"]:
         assert all(f == 1.0 for per_span in json.loads(reduced).values() for f in per_span)
+
+
+def test_overlapping_items_are_summed_for_the_heavy_load_rule() -> None:
+    """ASCE 7-22 4.7.4: live loads above 100 psf are not reduced on one floor.  Two
+    uniform items of 0.6 kip/ft on a 10 ft width over the same 40 ft span are 120 psf
+    together, heavy (each alone is 60 psf, which Eq. 4.7-1 would take to 0.25 + 15 /
+    sqrt(2 x 400) = 0.780); 0.6 kip/ft with 0.35 kip/ft over half the span are 95 psf at
+    most, not heavy: reduced to 0.780."""
+    def factor(second: dict[str, Any]) -> float:
+        text = beam_text(
+            [40.0], ["pinned"] * 2,
+            [{"case": "D", "type": "uniform", "spans": "all", "w": 0.5},
+             {"case": "L", "type": "uniform", "spans": "all", "w": 0.6},
+             {"case": "L", "type": "uniform", "spans": "all", **second}],
+            units="US", section={"E": 29000, "I": 800},
+            cases={"D": "dead", "L": {"kind": "live",
+                                      "reduction": {"tributary_width": 10.0, "kll": 2}}},
+            combinations={"strength": "asce7-lrfd", "service": "characteristic"})
+        design = envelope.tables(envelope.analyse(parse_text(text)))["design"]
+        return float(design.column("live_reduction").to_pylist()[0])
+
+    assert factor({"w": 0.6}) == 1.0
+    assert factor({"w": 0.35, "start": 20.0, "end": 40.0}
+                  ) == pytest.approx(0.25 + 15.0 / 800.0**0.5)
