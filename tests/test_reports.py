@@ -719,3 +719,81 @@ def test_display_rounding_keeps_about_four_significant_figures() -> None:
     assert collect.decimals([12.3456]) == 2
     assert collect.fmt(-0.0001, 2) == "0.00"
     assert collect.fmt(math.nan) == "-"
+
+
+# -- the building view ----------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def building(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """A batch of three example beams (no reports: the building view reads the tables):
+    a sized concrete beam (ACI 318-19), a sized steel beam whose chosen section is stiffer
+    than the analysis's first guess, and a beam with no [design]."""
+    out = tmp_path_factory.mktemp("building")
+    run = _invoke("batch", *(str(CASES / f"{name}.toml") for name in
+                             ("office-4span-si", "floor-beam-si",
+                              "carpark-3span-overhang-si")), "-o", str(out), "-q")
+    assert run.exit_code == 0, run.output
+    return out
+
+
+def _span_rows(folder: Path, column: str) -> list[float]:
+    sizing = pq.read_table(folder / "sizing.parquet").to_pylist()
+    return [r[column] for r in sizing if r["section"] == "span"]
+
+
+def test_the_building_view_shows_the_deflections_the_design_checks(building: Path) -> None:
+    from envelope.report import index
+
+    rows = {r["id"]: r for r in index.index_rows(building)}
+    # concrete: the cracked long-term deflection of the sizing (ACI 318-19 24.2.3, 24.2.4),
+    # several times the gross-section deflection of the analysis
+    office = rows["office-4span-si"]
+    design = pq.read_table(building / "office-4span-si" / "design.parquet").to_pylist()
+    long_term = _span_rows(building / "office-4span-si", "deflection_long_term")
+    incremental = _span_rows(building / "office-4span-si", "deflection_incremental")
+    assert office["values"]["deflection"] == pytest.approx(max(long_term))
+    assert office["values"]["deflection"] > 3 * max(r["deflection_max"] for r in design)
+    assert office["values"]["deflection_incremental"] == pytest.approx(max(incremental))
+    # span / deflection in one unit: m to mm by the definition of the SI prefixes
+    assert office["values"]["span_over_deflection"] == pytest.approx(
+        min(1000.0 * r["length"] / d for r, d in zip(design, long_term, strict=True)))
+    assert office["basis"] == "cracked, long-term"
+    utilisation = _span_rows(building / "office-4span-si", "utilisation_deflection")
+    assert office["values"]["utilisation_deflection"] == pytest.approx(max(utilisation))
+    # steel: the analysed deflection with the chosen section's Ix, as its check takes it
+    steel = rows["office-FB7"]
+    total = _span_rows(building / "office-FB7", "deflection_total")
+    analysed = pq.read_table(building / "office-FB7" / "design.parquet").to_pylist()
+    assert steel["values"]["deflection"] == pytest.approx(max(total))
+    assert steel["values"]["deflection_incremental"] is None
+    assert steel["basis"] == "steel, chosen section"
+    # with the [section] I of the case itself, the chosen section's deflection is the
+    # analysed one times I / Ix (linear elastic, one I over the beam: common practice)
+    sizing = pq.read_table(building / "office-FB7" / "sizing.parquet").to_pylist()
+    assert steel["values"]["deflection"] == pytest.approx(
+        max(r["deflection_max"] for r in analysed) * 3.0e8 / sizing[0]["Ix"], rel=1e-9)
+    # not sized: the analysis
+    plain = rows["carpark-3span-overhang-si"]
+    carpark = pq.read_table(building / "carpark-3span-overhang-si" / "design.parquet")
+    assert plain["values"]["deflection"] == max(carpark.column("deflection_max").to_pylist())
+    assert plain["values"]["utilisation_deflection"] is None
+    assert plain["basis"] == "analysed"
+    page = index.render_html(list(rows.values()), "test")
+    assert "cracked, long-term" in page and "largest incremental deflection" in page
+    assert f"{max(long_term):.2f} mm" in page
+
+
+def test_a_station_whose_value_shows_zero_names_no_governing_combination(
+        building: Path) -> None:
+    # a pinned end carries no moment (statics); office-FB7's ends are pinned
+    table, _ = collect.read_table(building / "office-FB7" / "envelope.parquet",
+                                  "envelope", "")
+    cells = [dict(zip(table.columns, r, strict=True)) for r in table.cells()]
+    end = cells[0]
+    assert end["x_span"] == "0.000" and end["moment_max"] == "0.0"
+    assert end["moment_max_combo"] == "-" and end["moment_max_loaded"] == "-"
+    assert end["moment_min_combo"] == "-" and end["deflection_max_combo"] == "-"
+    assert end["shear_max_combo"] != "-"  # the end shear is not zero: its combination stays
+    middle = cells[len(cells) // 4]
+    assert middle["moment_max"] != "0.0" and middle["moment_max_combo"] != "-"

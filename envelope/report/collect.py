@@ -35,6 +35,9 @@ LEGENDS = {
 }
 #: Columns never shown in the report's tables (the beam's own id, repeated).
 HIDDEN = frozenset({"beam"})
+#: Suffixes of the columns that say what governs a value column ``c`` (``c_combo``,
+#: ``c_loaded``): shown as "-" where ``c`` shows as zero (:meth:`Table.cells`).
+GOVERNS = ("_combo", "_loaded")
 
 
 @dataclass(frozen=True)
@@ -55,7 +58,19 @@ class Table:
     def cells(self) -> list[list[str]]:
         """Every row as display text, numbers rounded per column (see :func:`decimals`)."""
         digits = [decimals([r[i] for r in self.rows]) for i in range(len(self.columns))]
-        return [[fmt(v, d) for v, d in zip(r, digits, strict=True)] for r in self.rows]
+        rows = [[fmt(v, d) for v, d in zip(r, digits, strict=True)] for r in self.rows]
+        # a value that shows as zero (a moment at a pinned or free end, the deflection
+        # at a support) is governed by no combination: its combination and pattern "-"
+        named = [(self.columns.index(c), [self.columns.index(f"{c}{s}")
+                                          for s in GOVERNS if f"{c}{s}" in self.columns])
+                 for c in self.columns if f"{c}_combo" in self.columns]
+        for raw, row in zip(self.rows, rows, strict=True):
+            for i, others in named:
+                if isinstance(raw[i], float) and math.isfinite(raw[i]) \
+                        and float(row[i]) == 0.0:
+                    for j in others:
+                        row[j] = "-"
+        return rows
 
     def numeric(self) -> list[bool]:
         """Per column: True where any value is a number (right-aligned)."""
