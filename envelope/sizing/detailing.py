@@ -228,6 +228,8 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
                           np.full(rows.n, bw), d_now, side, legs_max,
                           bar_mod.stirrup_set(bar_set, system), system)
     cols["stirrups"] = np.where(ends, st["label"], "").astype(object)
+    _provided_strength(analysis, p, rows, cols, units, bf, hf, d0, comp_area, comp_depth,
+                       st, bar_mod.stirrup_set(bar_set, system))
     for i in np.flatnonzero(ends & ~st["fits"]).tolist():
         failures[i].append("no stirrup arrangement of the set gives the Av/s required "
                            "at 75 mm / 3 in spacing or more: widen the section")
@@ -244,6 +246,93 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
             notes[i].append("no live load taken as sustained (long_term.sustained not "
                             "given)")
     return Sized(rows, cols, units, notes, failures)
+
+
+def _provided_strength(analysis: Analysis, p: Params, rows: Rows,
+                       cols: dict[str, np.ndarray], units: dict[str, str], bf: np.ndarray,
+                       hf: np.ndarray, dt: np.ndarray, comp_area: np.ndarray,
+                       comp_depth: np.ndarray, st: dict[str, np.ndarray],
+                       sizes: bar_mod.BarSet) -> None:
+    """The strength of what is provided: flexure of ``as_provided`` at the ``d`` of its
+    layout, with the ``bars_compression`` where there are any (ACI ``phiMn_provided``,
+    EN ``MRd_provided``), and shear with the stirrups chosen on the rows that have them
+    (ACI ``phiVn``, EN ``VRd``).  By the functions that size the steel
+    (:mod:`envelope.sizing.concrete_aci`, :mod:`envelope.sizing.concrete_en`,
+    :mod:`envelope.sizing.doubly`), given the area instead of the moment.
+
+    - ACI 318-19: the block of 22.2 (strain compatibility for the compression bars,
+      22.2.1.2); phi by Table 21.2.2 from eps_t at the extreme tension bars, ``dt``
+      (the depth of the first layer: 21.2.2 takes eps_t there), Mn at the centroid
+      ``d``; phiVn = 0.75 (Vc + Vs) with ``Vc`` as tabulated, Vs = Av fyt d / s
+      (22.5.8.5.3, fyt <= 60 ksi / 420 MPa by 20.2.2.4) at most 8 sqrt(f'c) bw d /
+      0.66 sqrt(f'c) bw d (22.5.1.2).
+    - EN 1992-1-1: the rectangular block of 3.1.7(3) at alpha_cc fck / gamma_c over
+      0.8 x, z = d - 0.4 x <= 0.95 d (as the sizing); a T-section's flange where the
+      block stays in it, else the web alone (as the sizing); VRd = min(VRd,s, VRd,max),
+      VRd,s = Asw / s z fywd cot(theta) (6.2.3(3), eq. 6.8), VRd,max = bw z nu1 fcd /
+      (cot + tan) (eq. 6.9), z = 0.9 d, with the ``cot_theta`` of the stirrup design and
+      2.5 (the flattest strut of 6.2.3(2)) on rows that needed only the minimum links
+      (no cot(theta) designed there).
+    """
+    beam = analysis.beam
+    system = beam.units.name
+    design = p.design
+    u = beam.units.labels
+    bw = float(design.b)
+    ends = rows.is_end
+    has = ends & (np.asarray(st["index"]) >= 0)
+    idx = np.maximum(np.asarray(st["index"]), 0)
+    av = np.where(has, st["legs"] * sizes.area[idx], np.nan)  # section units
+    spacing = np.where(has, np.asarray(st["spacing"], float), np.nan)
+    d = np.asarray(cols["d"], float)
+    area = np.asarray(cols["as_provided"], float)
+    placed = comp_area > 0
+    if p.code == "aci318-19":
+        s = ACI_SCALES[system]
+        k = aci.COEFFICIENTS[system]
+        fc, fy = float(design.fc) * s.stress, float(design.fy) * s.stress
+        one = aci.capacity(area, bw, d, fc, fy, system, bf, hf)
+        two = doubly.aci_capacity(area, comp_area, bw, d, comp_depth, fc, fy, system, bf, hf)
+        a = np.where(placed, two["a"], one["a"])
+        phi_d = np.where(placed, two["phi"], one["phi"])
+        phi_mn = np.where(placed, two["phi_mn"], one["phi_mn"])
+        c = a / aci.beta1(fc, system)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            phi_t = aci.phi_flexure(aci.EPS_CU * (np.maximum(dt, d) - c) / c, fy / k.Es)
+            strength = np.where(area > 0, phi_mn / phi_d * phi_t, 0.0)
+        cols["phiMn_provided"] = strength / s.moment
+        fyt = min(float(design.stirrup_strength) * s.stress, k.fyt_cap)
+        root = math.sqrt(fc)
+        with np.errstate(invalid="ignore"):
+            vs = np.minimum(av * fyt * d / spacing, k.vs_max * root * bw * d)
+        vc = np.asarray(cols["Vc"], float) * s.force
+        cols["phiVn"] = np.where(has, aci.PHI_SHEAR * (vc + vs), np.nan) / s.force
+        units["phiMn_provided"] = u["moment"]
+        units["phiVn"] = u["force"]
+        return
+    s = EN_SCALES[system]
+    L = s.length
+    fck, fyk = float(design.fc) * s.stress, float(design.fy) * s.stress
+    fywk = float(design.stirrup_strength) * s.stress
+    dm, As = d * L, area / s.area
+    res = en.resistance(As, bf * L, dm, fck, fyk)
+    web = (bf > bw) & (0.8 * res["x"] > hf * L)
+    width = np.where(web, bw, bf) * L
+    res = en.resistance(As, width, dm, fck, fyk)
+    two_en = doubly.en_capacity(As, comp_area / s.area, width, dm, comp_depth * L, fck, fyk)
+    m_rd = np.where(placed, two_en["m_rd"], np.where(As > 0, res["m_rd"], 0.0))
+    cols["MRd_provided"] = m_rd / s.moment
+    cot = np.asarray(cols["cot_theta"], float)
+    cot = np.where(np.isfinite(cot), cot, 2.5)
+    z = 0.9 * dm
+    fcd = en.ALPHA_CC * fck / en.GAMMA_C
+    nu1 = 0.6 * (1.0 - fck / 250.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        vrd_s = av / s.area / (spacing * L) * z * fywk / en.GAMMA_S * cot
+    vrd_max = bw * L * z * nu1 * fcd / (cot + 1.0 / cot)
+    cols["VRd"] = np.where(has, np.minimum(vrd_s, vrd_max), np.nan) / s.force
+    units["MRd_provided"] = u["moment"]
+    units["VRd"] = u["force"]
 
 
 def _compression_bars(rows: Rows, p: Params, cols: dict[str, np.ndarray], bw: float,

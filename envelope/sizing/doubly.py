@@ -20,7 +20,8 @@ with delta = 1: x/d <= 0.448 for fck <= 50 MPa), z' = d/2 (1 + sqrt(1 - 3.53 K')
 compression steel takes the rest, As2 = (K - K') fck b d^2 / (fsc (d - d2)), and
 As = K' fck b d^2 / (fyd z') + As2 fsc / fyd, fsc = min(Es 0.0035 (x - d2)/x, fyd)
 (3.2.7, 3.1.7(3) block; the displaced concrete neglected, common practice of the
-rectangular-block method).  Neither tension nor compression steel may exceed 0.04 Ac
+rectangular-block method).  :func:`en_capacity` finds x of a given As, As2 by the same
+strain compatibility.  Neither tension nor compression steel may exceed 0.04 Ac
 (9.2.1.1(3)): where it would, the section cannot be made to work by steel.
 """
 
@@ -81,7 +82,8 @@ def aci_as_max(As2: np.ndarray, b: np.ndarray | float, d: np.ndarray | float, d2
 
 
 def aci_capacity(As: np.ndarray, As2: np.ndarray, b: np.ndarray | float,
-                 d: np.ndarray | float, d2: float, fc: float, fy: float, system: str,
+                 d: np.ndarray | float, d2: np.ndarray | float, fc: float, fy: float,
+                 system: str,
                  bf: np.ndarray | float | None = None,
                  hf: np.ndarray | float | None = None) -> dict[str, np.ndarray]:
     """Design strength of tension steel ``As`` (yielding) with compression steel ``As2``:
@@ -136,3 +138,34 @@ def en_design(m: np.ndarray, b: np.ndarray | float, d: np.ndarray | float, d2: f
     return {"as_required": as1, "as_compression": as2, "fsc": fsc, "x": x, "z": z,
             "ok": works & (as1 <= limit) & (as2 <= limit), "over": over.astype(object),
             "as_max": limit}
+
+
+def en_capacity(As: np.ndarray, As2: np.ndarray, b: np.ndarray | float,
+                d: np.ndarray | float, d2: np.ndarray | float, fck: float,
+                fyk: float) -> dict[str, np.ndarray]:
+    """Moment resistance of tension steel ``As`` (yielding, fyd = fyk / gamma_s) with
+    compression steel ``As2`` at ``d2`` (mm^2, mm, MPa): x from
+    0.8 x b fcd + As2 fsc(x) = As fyd by bisection (the left side rises with x),
+    fcd = alpha_cc fck / gamma_c, fsc = Es 0.0035 (x - d2)/x within +-fyd (3.1.7(3)
+    block with lambda = 0.8, eta = 1; 3.2.7); the concrete lever arm d - 0.4 x at most
+    0.95 d, as :func:`envelope.sizing.concrete_en.resistance`.  Returns ``x``, ``fsc``,
+    ``eps_s`` = 0.0035 (d - x)/x and ``m_rd`` (N*mm; 0 without tension steel)."""
+    As, b_, d_, d2_ = np.broadcast_arrays(*(np.asarray(v, float) for v in (As, b, d, d2)))
+    As2 = np.broadcast_to(np.asarray(As2, float), As.shape)
+    fyd = fyk / en.GAMMA_S
+    fcd = en.ALPHA_CC * fck / en.GAMMA_C
+
+    def parts(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        fsc = np.clip(ES_EN * en.EPS_CU * (x - d2_) / x, -fyd, fyd)
+        block = 0.8 * x * b_ * fcd
+        z = np.minimum(d_ - 0.4 * x, 0.95 * d_)
+        return block + As2 * fsc, block * z + As2 * fsc * (d_ - d2_), fsc
+
+    lo, hi = bisect(lambda mid: parts(mid)[0] < As * fyd, 1e-9 * d_, d_.copy())
+    x = 0.5 * (lo + hi)
+    _, m, fsc = parts(x)
+    none = As <= 0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        eps_s = en.EPS_CU * (d_ - x) / x
+    return {"x": x, "fsc": fsc, "eps_s": np.where(none, np.nan, eps_s),
+            "m_rd": np.where(none, 0.0, m)}

@@ -1,0 +1,256 @@
+"""The strength of what a concrete sizing provides (sizing.parquet ``phiMn_provided``,
+``phiVn``, ``MRd_provided``, ``VRd``), against hand calculations written out here.
+
+Each value is computed from the bars and stirrups the sizing names (their count and size
+read from the labels, their areas from the standards' tables below) by the codes'
+equations, cited beside each step:
+
+- ACI 318-19: the rectangular stress block of 22.2.2.4 (0.85 f'c over a = beta_1 c,
+  beta_1 by Table 22.2.2.4.3), strain 0.003 at the compression face (22.2.2.1), strain
+  compatibility for the compression bars (22.2.1.2), phi by Table 21.2.2 from the net
+  tensile strain at the extreme tension bars; shear phi (Vc + Vs) (22.5.1.1), Vc by Table
+  22.5.5.1, Vs = Av fyt d / s (22.5.8.5.3), phi = 0.75 (Table 21.2.1).
+- EN 1992-1-1:2004: the rectangular block of 3.1.7(3) (lambda = 0.8, eta = 1),
+  fcd = alpha_cc fck / gamma_c (3.1.6(1)) with alpha_cc = 0.85 as the sizing takes it (a
+  National Annex choice; the recommended value is 1.0), gamma_c = 1.5 and gamma_s = 1.15
+  (Table 2.1N); shear VRd,s (6.8), VRd,max (6.9) with nu1 = 0.6 (1 - fck/250) (6.6N),
+  z = 0.9 d (6.2.3(1)).
+
+Bar areas: ASTM A615/A615M Table 1 nominal areas (in^2), from memory; metric bars
+pi d^2 / 4 (common practice).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import tomllib
+
+import numpy as np
+import pytest
+
+from envelope.analysis import analyse
+from envelope.casefile import parse_case
+from envelope.sizing import size
+
+ACI = {"material": "concrete", "code": "aci318-19", "b": 300, "h": 600,
+       "cover_to_bar_centre": 60, "fc": 30, "fy": 420}
+EN = {"material": "concrete", "code": "en1992-1-1", "b": 300, "h": 600,
+      "cover_to_bar_centre": 60, "fc": 30, "fy": 500}
+
+#: ASTM A615/A615M Table 1 nominal areas, in^2 (from memory).
+ASTM_AREA_IN2 = {"#3": 0.11, "#4": 0.20, "#5": 0.31, "#6": 0.44, "#7": 0.60, "#8": 0.79,
+                 "#9": 1.00, "#10": 1.27, "#11": 1.56}
+IN2_MM2 = 25.4**2  # exact (1 in = 25.4 mm)
+
+
+def case(design: dict, spans: tuple[float, ...], dead: float, live: float) -> dict:
+    """The sizing of pinned spans under uniform dead and live load (kN/m), strength
+    1.4 D + 1.7 L, SI units."""
+    parts = ['units = "SI"', "[section]\nE = 30000\nI = 5.4e9"]
+    parts += [f"[[spans]]\nlength = {L!r}" for L in spans]
+    parts += ['[[supports]]\ntype = "pinned"'] * (len(spans) + 1)
+    parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }')
+    parts.append(f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {dead!r}')
+    parts.append(f'[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = {live!r}')
+    parts.append('[patterning]\nmethod = "code"')
+    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+                 '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
+                 'factors = { D = 1.4, L = 1.7 }')
+    parts.append("[design]\n" + "\n".join(
+        f"{k} = {v!r}" if not isinstance(v, str) else f'{k} = "{v}"'
+        for k, v in design.items()))
+    beam = parse_case(tomllib.loads("\n\n".join(parts) + "\n"), "t.toml")
+    return size(analyse(beam))
+
+
+def row(cols: dict, span: int, section: str) -> int:
+    """Index of the sizing row of ``span`` (from 1) and ``section``."""
+    (i,) = np.flatnonzero((cols["span"] == span) & (cols["section"] == section))
+    return int(i)
+
+
+def bar_area(label: str) -> float:
+    """mm^2 of a bar label "4 #8" or "3 H20"."""
+    n, size_ = label.split()
+    if size_.startswith("#"):
+        return int(n) * ASTM_AREA_IN2[size_] * IN2_MM2
+    return int(n) * math.pi * float(size_[1:]) ** 2 / 4.0
+
+
+def stirrup(label: str) -> tuple[float, float]:
+    """(Av in mm^2, spacing in mm) of a stirrup label "#3 x2 @ 175 mm" / "H8 x2 @ 200 mm"."""
+    m = re.fullmatch(r"(\S+) x(\d+) @ ([\d.]+) mm", label)
+    assert m, label
+    size_, legs, s = m.group(1), int(m.group(2)), float(m.group(3))
+    one = ASTM_AREA_IN2[size_] * IN2_MM2 if size_.startswith("#") else \
+        math.pi * float(size_[1:]) ** 2 / 4.0
+    return legs * one, s
+
+
+def beta1_si(fc: float) -> float:
+    """ACI 318-19 Table 22.2.2.4.3 (MPa)."""
+    return min(0.85, max(0.65, 0.85 - 0.05 * (fc - 28.0) / 7.0))
+
+
+def phi_aci(eps_t: float, fy: float) -> float:
+    """ACI 318-19 Table 21.2.2 (other than spirals), eps_ty = fy / Es, Es = 200 000 MPa
+    (20.2.2.2)."""
+    eps_ty = fy / 200_000.0
+    return min(0.90, max(0.65, 0.65 + 0.25 * (eps_t - eps_ty) / 0.003))
+
+
+@pytest.fixture(scope="module")
+def aci_two_spans() -> dict:
+    # 2 x 8 m, b x h = 300 x 600, f'c = 30 MPa, fy = 420 MPa, bar centres 60 mm in
+    return case(ACI, (8.0, 8.0), 20.0, 15.0)
+
+
+@pytest.fixture(scope="module")
+def en_two_spans() -> dict:
+    return case(EN, (8.0, 8.0), 20.0, 15.0)
+
+
+def test_aci_singly_reinforced_strength_of_the_bars_provided(aci_two_spans: dict) -> None:
+    cols = aci_two_spans
+    i = row(cols, 1, "span")
+    b, d, fc, fy = 300.0, 600.0 - 60.0, 30.0, 420.0  # one layer: d = h - cover
+    assert cols["bar_layers"][i] == 1 and cols["bars_compression"][i] == ""
+    As = bar_area(cols["bars"][i])
+    a = As * fy / (0.85 * fc * b)          # ACI 318-19 22.2.2.4.1, C = T
+    mn = As * fy * (d - a / 2.0)           # 22.2.2.4.1, moment of the block
+    c = a / beta1_si(fc)                   # 22.2.2.4.2
+    eps_t = 0.003 * (d - c) / c            # 22.2.2.1, 22.2.1.2
+    phi = phi_aci(eps_t, fy)               # Table 21.2.2
+    assert phi == 0.90
+    assert cols["phiMn_provided"][i] == pytest.approx(phi * mn / 1e6, rel=1e-9)
+    # more than as_design is provided: the strength exceeds the design moment
+    assert cols["phiMn_provided"][i] > cols["moment_design"][i]
+    # the hogging face: the top bars, with Mu of the sign it carries
+    j = row(cols, 1, "right")
+    As = bar_area(cols["bars"][j])
+    a = As * fy / (0.85 * fc * b)
+    assert cols["phiMn_provided"][j] == pytest.approx(0.9 * As * fy * (d - a / 2) / 1e6,
+                                                      rel=1e-9)
+    # no moment, no bars: no strength
+    assert cols["phiMn_provided"][row(cols, 1, "left")] == 0.0
+
+
+def test_aci_compression_bars_and_a_transition_zone_phi() -> None:
+    # one 8 m span, 300 x 600, wu = 1.4 x 40 + 1.7 x 20 = 90 kN/m, Mu = wu L^2 / 8 =
+    # 720 kN*m (statics): doubly reinforced,
+    # two layers of tension bars
+    cols = case(ACI, (8.0,), 40.0, 20.0)
+    i = row(cols, 1, "span")
+    assert cols["as_compression"][i] > 0 and cols["bars_compression"][i]
+    b, fc, fy, es = 300.0, 30.0, 420.0, 200_000.0
+    dt = 600.0 - 60.0                     # extreme tension layer (first layer)
+    d = float(cols["d"][i])               # centroid of the two layers (the layout's)
+    d2 = 60.0                             # one layer of compression bars at the cover
+    assert cols["bar_layers"][i] == 2 and d < dt
+    As, As2 = bar_area(cols["bars"][i]), bar_area(cols["bars_compression"][i])
+    b1 = beta1_si(fc)
+    # equilibrium with the compression bars yielding (checked below), the concrete they
+    # displace taken off (ACI 318-19 22.2.1.2, 22.2.2.4.1):
+    # 0.85 f'c b a + As2 (fy - 0.85 f'c) = As fy
+    a = (As * fy - As2 * (fy - 0.85 * fc)) / (0.85 * fc * b)
+    c = a / b1
+    eps2 = 0.003 * (c - d2) / c           # 22.2.1.2 strain compatibility
+    assert eps2 >= fy / es and a > d2     # they yield, and sit inside the block
+    mn = 0.85 * fc * b * a * (d - a / 2) + As2 * (fy - 0.85 * fc) * (d - d2)
+    eps_t = 0.003 * (dt - c) / c          # Table 21.2.2: eps_t at the extreme bars
+    phi = phi_aci(eps_t, fy)
+    assert phi < 0.90                     # transition zone
+    assert cols["phiMn_provided"][i] == pytest.approx(phi * mn / 1e6, rel=1e-7)
+
+
+def test_aci_shear_strength_with_the_stirrups_provided(aci_two_spans: dict) -> None:
+    cols = aci_two_spans
+    j = row(cols, 1, "right")
+    b, d, fc, fyt = 300.0, 540.0, 30.0, 420.0
+    av, s = stirrup(cols["stirrups"][j])
+    root = math.sqrt(fc)
+    # Table 22.5.5.1 with Av >= Av,min: the larger of (a) 0.17 sqrt(f'c) bw d and (b)
+    # 0.66 rho_w^(1/3) sqrt(f'c) bw d, at most 0.42 sqrt(f'c) bw d (22.5.5.1.1); rho_w of
+    # the design steel at the face (the sizing's choice for rho_w)
+    rho_w = cols["as_design"][j] / (b * d)
+    vc = min(max(0.17 * root, 0.66 * rho_w ** (1 / 3) * root), 0.42 * root) * b * d
+    assert cols["Vc"][j] == pytest.approx(vc / 1e3, rel=1e-9)
+    vs = min(av * fyt * d / s, 0.66 * root * b * d)  # 22.5.8.5.3, cap 22.5.1.2
+    assert av * fyt * d / s < 0.66 * root * b * d    # the cap does not bind here
+    assert cols["phiVn"][j] == pytest.approx(0.75 * (vc + vs) / 1e3, rel=1e-9)
+    assert cols["phiVn"][j] >= cols["shear_design"][j]
+    # span rows have no stirrups and no phiVn
+    assert np.isnan(cols["phiVn"][row(cols, 1, "span")])
+
+
+def test_en_strength_of_the_bars_and_links_provided(en_two_spans: dict) -> None:
+    cols = en_two_spans
+    i = row(cols, 1, "span")
+    b, d, fck, fyk = 300.0, 540.0, 30.0, 500.0
+    assert cols["bar_layers"][i] == 1 and cols["bars_compression"][i] == ""
+    As = bar_area(cols["bars"][i])
+    fcd = 0.85 * fck / 1.5                 # EN 1992-1-1:2004 3.1.6(1), Table 2.1N
+    fyd = fyk / 1.15                       # 3.2.7(2), Table 2.1N
+    x = As * fyd / (0.8 * fcd * b)         # 3.1.7(3): lambda = 0.8, eta = 1
+    z = min(d - 0.4 * x, 0.95 * d)
+    # the sizing takes fyd as 0.87 fyk (1/1.15 rounded, common practice): within 0.1 %
+    assert cols["MRd_provided"][i] == pytest.approx(As * fyd * z / 1e6, rel=1e-3)
+    assert cols["MRd_provided"][i] > cols["moment_design"][i]
+    # links at the interior face: cot(theta) of the stirrup design
+    j = row(cols, 1, "right")
+    asw, s = stirrup(cols["stirrups"][j])
+    cot = float(cols["cot_theta"][j])
+    assert 1.0 <= cot <= 2.5               # 6.2.3(2), recommended limits
+    z = 0.9 * d                            # 6.2.3(1)
+    vrd_s = asw / s * z * fyk / 1.15 * cot  # (6.8)
+    nu1 = 0.6 * (1 - fck / 250)            # (6.6N)
+    vrd_max = b * z * nu1 * fcd / (cot + 1 / cot)  # (6.9), alpha_cw = 1
+    assert cols["VRd"][j] == pytest.approx(min(vrd_s, vrd_max) / 1e3, rel=1e-9)
+    assert cols["VRd"][j] >= cols["shear_design"][j]
+
+
+def test_en_links_at_the_minimum_take_the_flattest_strut() -> None:
+    # lightly loaded: VEd <= VRd,c at the ends, only the links of 9.2.2(5); no cot(theta)
+    # was designed there, the resistance is taken at cot(theta) = 2.5 (6.2.3(2))
+    cols = case(EN, (6.0,), 4.0, 2.0)
+    j = row(cols, 1, "left")
+    assert np.isnan(cols["cot_theta"][j]) and cols["stirrups"][j]
+    b, d, fck = 300.0, 540.0, 30.0
+    asw, s = stirrup(cols["stirrups"][j])
+    z = 0.9 * d
+    vrd_s = asw / s * z * 500.0 / 1.15 * 2.5             # (6.8)
+    vrd_max = b * z * 0.6 * (1 - fck / 250) * 0.85 * fck / 1.5 / (2.5 + 1 / 2.5)  # (6.9)
+    assert cols["VRd"][j] == pytest.approx(min(vrd_s, vrd_max) / 1e3, rel=1e-9)
+
+
+def test_us_units_of_the_provided_strengths() -> None:
+    # the same columns in kip*ft and kip for a US beam (ACI 318-19 in psi):
+    # 0.9 As fy (d - a/2), a = As fy / (0.85 f'c b) (22.2.2.4.1), and 0.75 (Vc + Av fyt d/s)
+    text = "\n".join([
+        'units = "US"', "[section]\nE = 4000\nI = 20000",
+        "[[spans]]\nlength = 24.0", '[[supports]]\ntype = "pinned"',
+        '[[supports]]\ntype = "pinned"', '[cases]\nD = { kind = "dead" }',
+        '[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = 2.0',
+        '[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+        '[[combinations.custom]]\nname = "U"\nset = "strength"\nfactors = { D = 1.4 }',
+        '[design]\nmaterial = "concrete"\ncode = "aci318-19"\nb = 12\nh = 24\n'
+        'cover_to_bar_centre = 2.5\nfc = 4\nfy = 60'])
+    cols = size(analyse(parse_case(tomllib.loads(text + "\n"), "t.toml")))
+    i = row(cols, 1, "span")
+    assert cols["bar_layers"][i] == 1
+    n, name = cols["bars"][i].split()
+    As = int(n) * ASTM_AREA_IN2[name]       # in^2
+    b, d, fc, fy = 12.0, 21.5, 4000.0, 60_000.0
+    a = As * fy / (0.85 * fc * b)
+    c = a / 0.85                            # beta_1 = 0.85 at 4000 psi
+    assert 0.003 * (d - c) / c >= 0.00207 + 0.003  # tension controlled, phi = 0.90
+    assert cols["phiMn_provided"][i] == pytest.approx(0.9 * As * fy * (d - a / 2) / 12_000,
+                                                      rel=1e-9)
+    j = row(cols, 1, "left")
+    m = re.fullmatch(r"(#\d+) x(\d+) @ ([\d.]+) in", cols["stirrups"][j])
+    assert m
+    av = int(m.group(2)) * ASTM_AREA_IN2[m.group(1)]
+    vs = av * fy * d / float(m.group(3))    # 22.5.8.5.3, lb
+    assert cols["phiVn"][j] == pytest.approx(0.75 * (cols["Vc"][j] * 1000 + vs) / 1000,
+                                             rel=1e-9)
