@@ -97,7 +97,7 @@ def test_report_holds_caution_provenance_input_combinations_and_every_check(
     assert kinds.count("shear") == 8
     assert kinds.count("deflection") == 4
     assert page.count('<tr class="pass">') + page.count('<tr class="fail">') == len(kinds)
-    assert page.count("ACI 318-19 22.2, 9.5.1.1") == kinds.count("flexure")
+    assert page.count("ACI 318-19 22.2, 21.2.2, 9.5.1.1") == kinds.count("flexure")
     assert all(c["clause"].startswith("ACI 318-19") for c in data.checks)
     assert {c["result"] for c in data.checks} <= {"pass", "fail"}
     assert "<svg" in page and "model sketch" in page
@@ -210,8 +210,9 @@ def _close(shown: str, value: float, digits: int) -> bool:
 
 
 def test_every_concrete_check_shows_its_demand_capacity_and_unit(office: Path) -> None:
-    # ACI 318-19 9.5.1.1: phiMn >= Mu, the ratio Mu / phiMn; the demand and capacity are
-    # the sizing table's own columns, shown as its table shows them
+    # ACI 318-19 9.5.1.1: phiMn >= Mu, the ratio Mu / phiMn of the bars provided
+    # (phiMn_provided); phiVn >= Vu (22.5.1.1); the demand and capacity are the sizing
+    # table's own columns, shown as its table shows them
     data = collect.collect(office)
     sizing = data.tables["sizing"]
     rows = [dict(zip(sizing.columns, r, strict=True)) for r in sizing.rows]
@@ -222,10 +223,10 @@ def test_every_concrete_check_shows_its_demand_capacity_and_unit(office: Path) -
         r = next(r for r in rows if str(r["span"]) == c["span"]
                  and r["section"] == c["section"])
         assert _close(c["demand"], r["moment_design"], digits["moment_design"]), c
-        assert _close(c["capacity"], r["phiMn"], digits["phiMn"]), c
+        assert _close(c["capacity"], r["phiMn_provided"], digits["phiMn_provided"]), c
         assert c["unit"] == "kN*m"
-        assert float(c["value"]) == pytest.approx(abs(r["moment_design"]) / r["phiMn"],
-                                                  abs=5e-4)
+        assert float(c["value"]) == pytest.approx(
+            abs(r["moment_design"]) / r["phiMn_provided"], abs=5e-4)
     kinds = {c["check"] for c in data.checks}
     assert {"maximum steel", "bars provided", "crack control"} <= kinds
     for c in data.checks:
@@ -234,14 +235,47 @@ def test_every_concrete_check_shows_its_demand_capacity_and_unit(office: Path) -
         if c["check"] == "deflection":  # ACI 318-19 24.2.2: incremental vs span/240
             assert c["unit"] == "mm" and float(c["demand"]) / float(c["capacity"]) == \
                 pytest.approx(float(c["value"]), abs=2e-3)
-        if c["check"] == "shear":  # the stirrups chosen, stated, never a bare pass
+        if c["check"] == "shear":  # the stirrups chosen, stated, and their strength
             assert c["demand"] != "-" and c["unit"] == "kN"
             assert "Av/s required" in c["detail"] and "stirrups #" in c["detail"]
+            r = next(r for r in rows if str(r["span"]) == c["span"]
+                     and r["section"] == c["section"])
+            assert _close(c["capacity"], r["phiVn"], digits["phiVn"]), c
+            assert float(c["value"]) == pytest.approx(r["shear_design"] / r["phiVn"],
+                                                      abs=5e-4)
     page = (office / "report.html").read_text()
     assert "<th>demand</th><th>capacity</th><th>unit</th>" in page
     # the largest utilisation is the largest ratio of the table
     assert data.max_utilisation == max(float(c["value"]) for c in data.checks
                                        if c["value"] != "-")
+
+
+def test_a_sized_concrete_beam_is_checked_against_the_strength_of_what_is_provided(
+        office: Path, tmp_path: Path) -> None:
+    # flexure over the bars provided (ACI 318-19 22.2, 21.2.2; EN 1992-1-1:2004 6.1) and
+    # shear over the stirrups provided (ACI 318-19 22.5.1.1, 22.5.8.5.3; EN 6.2.3 (6.8),
+    # (6.9)): bars and stirrups are rounded up, so no ratio sits at 1.000 by
+    # construction, and the largest is a check that shows its demand and capacity
+    run = _invoke("run", str(CASES / "school-2span-en.toml"), "-o", str(tmp_path),
+                  "--no-plots", "-q", "--report")
+    assert run.exit_code == 0, run.output
+    for folder in (office, tmp_path / "school-2span-en"):
+        data = collect.collect(folder)
+        strength = [c for c in data.checks if c["check"] in ("flexure", "shear")]
+        assert strength and all(c["capacity"] != "-" for c in strength)
+        assert all(float(c["value"]) < 1.0 for c in strength)
+        assert all(float(c["value"]) == pytest.approx(
+            float(c["demand"]) / float(c["capacity"]), abs=2e-3) for c in strength)
+        if folder == office:
+            # ACI 318-19: its largest utilisation is below 1 and comes from such a check
+            assert data.max_utilisation is not None and data.max_utilisation < 1.0
+            worst = max((c for c in data.checks if c["value"] != "-"),
+                        key=lambda c: float(c["value"]))
+            assert worst["demand"] != "-" and worst["capacity"] != "-"
+            assert float(worst["value"]) == pytest.approx(
+                float(worst["demand"]) / float(worst["capacity"]), abs=2e-3)
+    page = (tmp_path / "school-2span-en" / "report.html").read_text()
+    assert "EN 1992-1-1:2004 6.2.3 (VRd of the links provided" in page
 
 
 def test_each_design_action_names_its_governing_combination_and_pattern(

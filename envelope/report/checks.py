@@ -6,10 +6,12 @@ check (so checks added to the sizing table appear here unchanged), its demand an
 capacity the pair of columns (:data:`PAIRS`) whose quotient is that utilisation (none
 shown where no pair gives it).  Concrete members, which the table states as required
 quantities, are checked as well: flexure (the design moment over the design strength of
-``as_design``), the maximum tension steel, the bars provided against ``as_design``,
-crack control (bar spacing against its limit), shear (the design shear, with the
-stirrups chosen for the Av/s required) and moment redistribution where it is used (the
-fraction used over the fraction allowed).  A check fails when the row's ``status``
+the bars provided, ``phiMn_provided`` / ``MRd_provided``; of ``as_design`` in a table
+without them), the maximum tension steel, the bars provided against ``as_design``,
+crack control (bar spacing against its limit), shear (the design shear over the design
+strength with the stirrups provided, ``phiVn`` / ``VRd``; ACI rows that need no
+stirrups over ``phiVc``) and moment redistribution where it is used (the fraction used
+over the fraction allowed).  A check fails when the row's ``status``
 names it; a row whose status fails for a reason no check names gets a check of its own,
 so a failure is never hidden; a check that cannot be done (no value, or a status saying
 "not checked") says so instead of passing.
@@ -26,21 +28,27 @@ from envelope.report.collect import Table, decimals, fmt
 #: (code, check) -> the clause the check comes from.
 CLAUSES: dict[str, dict[str, str]] = {
     "aci318-19": {
-        "flexure": "ACI 318-19 22.2, 9.5.1.1 (phiMn of as_design); minimum 9.6.1.2",
+        "flexure": "ACI 318-19 22.2, 21.2.2, 9.5.1.1 (phiMn of the bars provided, "
+                   "phiMn_provided; of as_design where no bars are tabulated); minimum "
+                   "9.6.1.2",
         "maximum steel": "ACI 318-19 9.3.3.1, Table 21.2.2 (tension-controlled limit)",
         "bars provided": "ACI 318-19 9.5.1.1 (as_provided >= as_design)",
         "crack control": "ACI 318-19 24.3.2 (bar spacing)",
-        "shear": "ACI 318-19 22.5, 9.5.1.1; section limit 22.5.1.2; stirrups 9.6.3",
+        "shear": "ACI 318-19 22.5.1.1 (phiVn = phi (Vc + Vs) of the stirrups provided; "
+                 "phiVc where none are needed), 22.5.8.5.3 (Vs = Av fyt d / s), 22.5.1.2 "
+                 "(Vs at most 8 sqrt(f'c) bw d, SI 0.66 sqrt(f'c) bw d); stirrups 9.6.3",
         "deflection": "ACI 318-19 24.2.2, limits span/N from the case file",
         "redistribution": "ACI 318-19 6.6.5: at most 1000 eps_t percent and 20 percent, "
                           "none below eps_t = 0.0075",
     },
     "en1992-1-1": {
-        "flexure": "EN 1992-1-1 6.1 (MRd of as_design; K' limit), 9.2.1.1",
+        "flexure": "EN 1992-1-1:2004 6.1 (MRd of the bars provided, MRd_provided; of "
+                   "as_design where no bars are tabulated; K' limit), 9.2.1.1",
         "maximum steel": "EN 1992-1-1 9.2.1.1(3) (0.04 Ac)",
         "bars provided": "EN 1992-1-1 6.1 (as_provided >= as_design)",
         "crack control": "EN 1992-1-1 7.3.3, Table 7.3N (bar spacing)",
-        "shear": "EN 1992-1-1 6.2.2, 6.2.3; links 9.2.2",
+        "shear": "EN 1992-1-1:2004 6.2.3 (VRd of the links provided: the lesser of "
+                 "VRd,s (6.8) and VRd,max (6.9)), 6.2.2; links 9.2.2",
         "deflection": "EN 1992-1-1 7.4.1, limits span/N from the case file",
         "redistribution": "EN 1992-1-1 5.5(4): delta >= k1 + k2 xu/d and k5 (k6), "
                           "adjacent spans 0.5 to 2",
@@ -149,6 +157,11 @@ def checks(sizing: Table | None, document: dict[str, Any] | None,
     util_cols = [c for c in cols if c.startswith("utilisation_")]
     concrete = "as_required" in cols
     strength = "phiMn" if "phiMn" in cols else "MRd"
+    # the strength of the bars provided where the table has it (results written before
+    # it was tabulated: the strength of as_design)
+    if f"{strength}_provided" in cols:
+        strength = f"{strength}_provided"
+    shear_strength = "phiVn" if "phiVn" in cols else "VRd" if "VRd" in cols else None
     for row in sizing.rows:
         r = dict(zip(cols, row, strict=True))
         status = str(r.get("status") or "ok")
@@ -188,8 +201,14 @@ def checks(sizing: Table | None, document: dict[str, Any] | None,
                 cap = r.get(strength)
                 ratio = abs(moment) / cap if _number(cap) and cap > 0.0 and \
                     not _missing(r.get("as_required")) else None
+                said = ""
+                if strength.endswith("_provided"):  # name what the strength is of
+                    said = f"bars {r['bars']}" if r.get("bars") else \
+                        "no bars provided: no strength to check"
+                    if r.get("bars_compression"):
+                        said += f", compression bars {r['bars_compression']}"
                 add("flexure", ratio, ("moment_design", strength) if ratio is not None
-                    else None)
+                    else None, said)
                 if _number(r.get("as_design")) and _number(r.get("as_max")) and \
                         r["as_max"] > 0.0:
                     add("maximum steel", r["as_design"] / r["as_max"],
@@ -211,8 +230,19 @@ def checks(sizing: Table | None, document: dict[str, Any] | None,
                                  f"{sizing.units.get('av_over_s_required', '')}".rstrip())
                 if r.get("stirrups"):
                     words.append(f"stirrups {r['stirrups']}")
-                words.append("the design shear strength with stirrups is not tabulated")
-                add("shear", None, ("shear_design", None), ", ".join(words),
+                # the strength with the stirrups provided; an ACI row that needs none
+                # against phi Vc (Table 22.5.5.1, 9.6.3.1)
+                cap_col = shear_strength if shear_strength and \
+                    _number(r.get(shear_strength)) else None
+                if cap_col is None and not r.get("stirrups") and need == 0.0 and \
+                        _number(r.get("phiVc")):
+                    cap_col = "phiVc"
+                if cap_col is None:
+                    words.append("the design shear strength with stirrups is not tabulated")
+                cap_v = r.get(cap_col) if cap_col else None
+                ratio_v = abs(r["shear_design"]) / cap_v if _number(cap_v) and cap_v > 0.0 \
+                    and _number(r.get("shear_design")) else None
+                add("shear", ratio_v, ("shear_design", cap_col), ", ".join(words),
                     blank_passes=_number(need))
             used = r.get("redistribution")
             if not _missing(used) and used:
