@@ -279,8 +279,8 @@ class CombinationSpec:
 class Patterning:
     """The ``[patterning]`` table."""
 
-    method: PatternMethod = "none"
-    segments: int = 1
+    method: PatternMethod = "code"
+    segments: int = 4
     favourable_dead: float = 1.0
 
 

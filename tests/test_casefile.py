@@ -158,7 +158,9 @@ def test_defaults_id_from_file_stem_and_empty_title(tmp_path: Path) -> None:
     beam = load_case(simple(tmp_path))
     assert beam.id == "beam"
     assert beam.title == ""
-    assert beam.patterning.method == "none" and beam.patterning.segments == 1
+    # docs/case-format.md: [patterning] method defaults to "code" (ACI 318-19 6.4.2,
+    # EN 1992-1-1 5.1.3 require the live load patterned), segments to 4
+    assert beam.patterning.method == "code" and beam.patterning.segments == 4
     assert beam.patterning.favourable_dead == 1.0
     assert beam.output.stations_per_span == 21 and not beam.output.all_cases
     assert beam.output.moment_plot == "sagging-up"
