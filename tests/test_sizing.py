@@ -834,3 +834,31 @@ def test_sizing_needs_a_design_table() -> None:
     a = analyse(parse_case(tomllib.loads(text), "t.toml"))
     with pytest.raises(ValueError, match="no \\[design\\] table"):
         size(a)
+
+
+def test_console_table_gives_the_bars_and_their_utilisations() -> None:
+    # the console line of a concrete section shows the bars chosen and the moment and
+    # shear over the strengths of what is provided (the report's flexure and shear checks):
+    # util M = |M| / phiMn_provided (ACI 318-19 22.2, 21.2.2), util V = V / phiVn
+    # (22.5.1.1, 22.5.8.5.3) where stirrups are provided, else V / phiVc
+    text = case_text(SI_CONCRETE, spans=(7.0, 7.0), dead=25.0, live=15.0,
+                     section={"E": 30000, "I": 5.4e9})
+    beam = parse_case(tomllib.loads(text), "t.toml")
+    a = analyse(beam)
+    cols = size(a)
+    lines = sizing_summary(a).splitlines()
+    head = lines[1].split()
+    assert head[:9] == ["span", "section", "x", "M", "As", "req", "As", "bars", "util"]
+    for i in range(cols["span"].size):
+        line = next(ln for ln in lines if ln.split()[:2] == [str(cols["span"][i]),
+                                                             str(cols["section"][i])])
+        if cols["bars"][i]:
+            assert f" {cols['bars'][i]} " in line
+            util_m = abs(cols["moment_design"][i]) / cols["phiMn_provided"][i]
+            assert f" {util_m:.2f} " in line
+        shear = cols["shear_design"][i]
+        if np.isfinite(shear):
+            cap = cols["phiVn"][i] if np.isfinite(cols["phiVn"][i]) else cols["phiVc"][i]
+            assert f" {shear / cap:.2f} " in line
+            if cols["stirrups"][i]:
+                assert cols["stirrups"][i] in line

@@ -74,6 +74,36 @@ def _g(v: float) -> str:
     return f"{float(v) + 0.0:.4g}"  # + 0.0: never "-0"
 
 
+def _text(cols: dict[str, np.ndarray], name: str, i: int) -> str:
+    """Row ``i`` of a text column, "-" where it is empty or missing."""
+    column = cols.get(name)
+    value = "" if column is None else column[i]
+    return str(value) if isinstance(value, str) and value else "-"
+
+
+def _ratio(demand: np.ndarray, strength: np.ndarray | None) -> np.ndarray:
+    """|demand| / strength, NaN where the strength is missing, zero or not finite."""
+    n = np.asarray(demand, dtype=float).size
+    if strength is None:
+        return np.full(n, np.nan)
+    cap = np.asarray(strength, dtype=float)
+    ok = np.isfinite(cap) & (cap > 0.0)
+    return np.where(ok, np.abs(np.asarray(demand, dtype=float)) / np.where(ok, cap, 1.0),
+                    np.nan)
+
+
+def _strength_ratios(cols: dict[str, np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
+    """A concrete row's moment and shear over the strengths of what is provided: the
+    bars (ACI ``phiMn_provided``, EN ``MRd_provided``) and the stirrups (``phiVn``,
+    ``VRd``; an ACI end that needs none against ``phiVc``), as the report's checks."""
+    moment = _ratio(cols["moment_design"], cols.get("phiMn_provided",
+                                                    cols.get("MRd_provided")))
+    shear = _ratio(cols["shear_design"], cols.get("phiVn", cols.get("VRd")))
+    if "phiVc" in cols:
+        shear = np.where(np.isnan(shear), _ratio(cols["shear_design"], cols["phiVc"]), shear)
+    return moment, shear
+
+
 def sizing_summary(analysis: Analysis) -> str:
     """A fixed-width table, one line per design section, then the extents per span and the
     closing line that sizing is a first check for a licensed engineer."""
@@ -107,10 +137,12 @@ def sizing_summary(analysis: Analysis) -> str:
             lines[0] += (f"; h = {', '.join(f'{v:g}' for v in other)} {su['length']} at "
                          f"the sections in stretches that give their own depth")
         head = (f"{'span':>4} {'section':<7} {'x':>7} {'M':>9} {'As req':>8} {'As':>8} "
-                f"{'V':>8} {'Av/s':>7} {'s max':>6} {'util d':>6}  status")
+                f"{'bars':<8} {'util M':>6} {'V':>8} {'Av/s':>7} {'s max':>6} "
+                f"{'stirrups':<16} {'util V':>6} {'util d':>6}  status")
         units = (f"{'':>4} {'':<7} {u['length']:>7} {u['moment']:>9} {su['area']:>8} "
-                 f"{su['area']:>8} {u['force']:>8} {su['area_per_length']:>7} "
-                 f"{su['length']:>6}")
+                 f"{su['area']:>8} {'':<8} {'':>6} {u['force']:>8} "
+                 f"{su['area_per_length']:>7} {su['length']:>6}")
+        util_m, util_v = _strength_ratios(cols)
     lines += [head, units]
     for i in range(cols["span"].size):
         start = (f"{cols['span'][i]:>4} {cols['section'][i]:<7} {_n(cols['x_span'][i], 2):>7} "
@@ -127,9 +159,11 @@ def sizing_summary(analysis: Analysis) -> str:
         else:
             body = (f"{_n(cols['as_required'][i], 0 if su['area'] == 'mm2' else 2):>8} "
                     f"{_n(cols['as_design'][i], 0 if su['area'] == 'mm2' else 2):>8} "
+                    f"{_text(cols, 'bars', i):<8} {_n(util_m[i], 2):>6} "
                     f"{_n(cols['shear_design'][i]):>8} "
                     f"{_n(cols['av_over_s_required'][i], 3):>7} "
                     f"{_n(cols['s_max'][i], 0 if su['length'] == 'mm' else 1):>6} "
+                    f"{_text(cols, 'stirrups', i):<16} {_n(util_v[i], 2):>6} "
                     f"{_n(cols['utilisation_deflection'][i], 2):>6}")
         lines.append(start + body + f"  {cols['status'][i]}")
     lines.append(f"Zero-moment extents ({u['length']}): hogging measured from each support, "
@@ -149,6 +183,11 @@ def sizing_summary(analysis: Analysis) -> str:
         lines.append("Lb, Cb, phiMn: the governing unbraced segment of the compression flange "
                      "(AISC 360-22 F2, Cb by F1-1; Lb 0: braced); util J10: web yielding and "
                      "crippling at the support or under a point load; fn: DG11 beam frequency.")
+    if not steel:
+        lines.append("As: the steel to provide (the larger of required and minimum); util M: "
+                     "M over the strength of the bars (phiMn_provided / MRd_provided); util V: "
+                     "V over the strength with the stirrups (phiVn / VRd; ACI ends without "
+                     "stirrups: phiVc).")
     lines.append("M: moment at the section (sagging positive); V: shear at the end section; "
                  "util d: deflection over its limit.  Notes on what governs are in "
                  "sizing.parquet.")
