@@ -136,6 +136,41 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
     return need_en
 
 
+def _compression_required(analysis: Analysis, p: Params, rows: Rows, bw: float,
+                          bf: np.ndarray, hf: np.ndarray, h: np.ndarray) -> Any:
+    """required(d): compression steel (section units; 0 where none, NaN where it cannot
+    work) at depths d (section units), by the same sequence as :func:`_required`."""
+    design = p.design
+    system = analysis.beam.units.name
+    fc_s, fy_s = float(design.fc), float(design.fy)
+    d2 = float(design.cover_to_bar_centre)
+    if p.code == "aci318-19":
+        s = ACI_SCALES[system]
+        fc, fy = fc_s * s.stress, fy_s * s.stress
+        mu = np.abs(rows.moment) * s.moment
+
+        def need(d: np.ndarray) -> np.ndarray:
+            fl = aci.flexure(mu, bw, d, fc, fy, system, bf, hf)
+            dbl = doubly.aci_design(mu, bw, d, d2, fc, fy, system, bf, hf)
+            return np.where(fl["too_small"], dbl["as_compression"], 0.0)
+        return need
+    s = EN_SCALES[system]
+    L = s.length
+    fck, fyk = fc_s * s.stress, fy_s * s.stress
+    m = np.abs(rows.moment) * s.moment
+
+    def need_en(d: np.ndarray) -> np.ndarray:
+        dm = d * L
+        width = bf * L
+        fl = en.flexure(m, width, dm, fck, fyk)
+        inside = 0.8 * fl["x"] <= hf * L
+        width = np.where((bf > bw) & ~inside, bw * L, width)
+        fl = en.flexure(m, width, dm, fck, fyk)
+        dbl = doubly.en_design(m, width, dm, d2 * L, fck, fyk, h * L)
+        return np.where(fl["too_small"], dbl["as_compression"], 0.0) * s.area
+    return need_en
+
+
 def _sustained_moment(analysis: Analysis, rows: Rows, p: Params) -> np.ndarray:
     """Largest sustained moment magnitude at each design row of the sign of its design
     moment (consistent units): permanent cases, then every variable unit case at its
@@ -196,8 +231,22 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
             notes[i].append(f"two layers of bars: d = {chosen['d'][i]:.4g} {su['length']} "
                             f"to their centroid")
     cols["bars"] = chosen["label"]
+    # two layers of tension bars move d up: the compression bars are chosen for the
+    # compression steel of that d (as the tension bars are, through ``need``), not the
+    # ``as_compression`` of the one-layer depth
+    comp = np.nan_to_num(np.asarray(cols["as_compression"], dtype=float))
+    moved = (comp > 0) & (chosen["layers"] == 2)
+    if moved.any():
+        at_d = _compression_required(analysis, p, rows, bw, bf, hf, h)(
+            np.asarray(chosen["d"], dtype=float))
+        comp = np.where(moved & np.isfinite(at_d), np.maximum(comp, at_d), comp)
+        for i in np.flatnonzero(moved & (comp > np.nan_to_num(cols["as_compression"])
+                                         )).tolist():
+            notes[i].append(f"compression bars for {comp[i]:.4g} {su['area']}, the "
+                            f"compression steel at d = {chosen['d'][i]:.4g} "
+                            f"{su['length']} of the two layers of tension bars")
     cols["bars_compression"], comp_area, comp_depth = _compression_bars(
-        rows, p, cols, bw, side, bar_set, system, notes, failures)
+        rows, p, cols, comp, bw, side, bar_set, system, notes, failures)
     cols["as_provided"] = chosen["area"]
     cols["bar_layers"] = chosen["layers"]
     units["bar_layers"] = "1"
@@ -335,15 +384,15 @@ def _provided_strength(analysis: Analysis, p: Params, rows: Rows,
     units["VRd"] = u["force"]
 
 
-def _compression_bars(rows: Rows, p: Params, cols: dict[str, np.ndarray], bw: float,
-                      side: float, bar_set: bar_mod.BarSet, system: str,
-                      notes: list[list[str]], failures: list[list[str]]
+def _compression_bars(rows: Rows, p: Params, cols: dict[str, np.ndarray],
+                      comp: np.ndarray, bw: float, side: float, bar_set: bar_mod.BarSet,
+                      system: str, notes: list[list[str]], failures: list[list[str]]
                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Bars for the compression steel of doubly reinforced rows (``as_compression``), by
-    the same rules as the tension bars (one or two layers, clear spacing), at the
-    compression face; "" elsewhere.  Also their area (0 where none) and the depth of
-    their centroid from the compression face (section units), for the cracked section."""
-    comp = np.nan_to_num(np.asarray(cols["as_compression"], dtype=float))
+    """Bars for the compression steel ``comp`` of doubly reinforced rows (section units:
+    ``as_compression``, or that of the tension bars' depth), by the same rules as the
+    tension bars (one or two layers, clear spacing), at the compression face; ""
+    elsewhere.  Also their area (0 where none) and the depth of their centroid from the
+    compression face (section units), for the cracked section."""
     if not np.any(comp > 0):
         return (np.full(rows.n, "", dtype=object), np.zeros(rows.n),
                 np.full(rows.n, side))
