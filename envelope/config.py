@@ -130,6 +130,10 @@ CONDITION_WARN = 1e12
 #: reach the statics tolerance; below it a failure is the engine's own (exit 3).
 CONDITION_BLAME = 1e6
 
+#: The strength of the bars or stirrups provided may fall below the design action by
+#: this fraction (round-off of the layout's depths) before the sizing status fails.
+PROVIDED_STRENGTH_RTOL = 1e-9
+
 #: A design value smaller than this fraction of the beam's largest value of the same
 #: quantity is round-off (e.g. the moment at a cantilever tip) and is reported as 0.
 ZERO_RTOL = 1e-9

@@ -286,3 +286,34 @@ def test_us_units_of_the_provided_strengths() -> None:
     vs = av * fy * d / float(m.group(3))    # 22.5.8.5.3, lb
     assert cols["phiVn"][j] == pytest.approx(0.75 * (cols["Vc"][j] * 1000 + vs) / 1000,
                                              rel=1e-9)
+
+
+def test_a_section_whose_bars_provided_fall_short_fails_its_status() -> None:
+    # one 8 m span, 350 x 550, MEd = (1.4 x 60 + 1.7 x 30) 8^2 / 8 = 1080 kN*m (statics):
+    # doubly reinforced with two layers of tension bars and of compression bars, whose
+    # own depth the compression steel was not sized for, so MRd of the bars provided
+    # (EN 1992-1-1:2004 6.1, 3.1.7(3)) falls short of MEd; the status must say so, as
+    # the report's flexure check does, and never pass
+    cols = case(dict(EN, b=350, h=550), (8.0,), 60.0, 30.0)
+    i = row(cols, 1, "span")
+    med = 135.0 * 8.0**2 / 8.0
+    assert cols["moment_design"][i] == pytest.approx(med, rel=1e-9)
+    mrd = cols["MRd_provided"][i]
+    assert mrd < med
+    status = cols["status"][i]
+    assert status != "ok"
+    assert (f"bars provided ({cols['bars'][i]}, {cols['bars_compression'][i]} in "
+            f"compression) give MRd_provided {mrd:.4g} kN*m, "
+            f"{100 * (med / mrd - 1):.1f}% short of the design moment {med:.4g} kN*m"
+            ) in status
+
+
+def test_sections_whose_bars_carry_the_moment_pass_that_check(aci_two_spans: dict,
+                                                              en_two_spans: dict) -> None:
+    # the converse: where the strengths provided reach the design actions, no such failure
+    for cols, name, shear in ((aci_two_spans, "phiMn_provided", "phiVn"),
+                              (en_two_spans, "MRd_provided", "VRd")):
+        assert np.all(cols[name] >= np.abs(cols["moment_design"]) * (1 - 1e-9))
+        assert not any("short of the design" in s for s in cols["status"])
+        ok = np.isfinite(cols[shear])
+        assert np.all(cols[shear][ok] >= cols["shear_design"][ok] * (1 - 1e-9))

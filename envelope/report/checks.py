@@ -63,7 +63,8 @@ CLAUSES: dict[str, dict[str, str]] = {
     },
 }
 #: Words of a failing ``status`` that belong to each check.
-STATUS_WORDS = {"flexure": ("singly reinforced", "section too small: "),
+STATUS_WORDS = {"flexure": ("singly reinforced", "section too small: ",
+                             "short of the design moment"),
                 "maximum steel": ("exceeds 0.04 Ac",),
                 "bars provided": ("no arrangement of the bar set",),
                 "crack control": ("crack control", "bar spacing"),

@@ -28,6 +28,7 @@ import numpy as np
 
 from envelope.analysis import Analysis
 from envelope.combinations import PERMANENT_KINDS
+from envelope.config import PROVIDED_STRENGTH_RTOL
 from envelope.design import ConcreteDesign
 from envelope.recovery import evaluate_some, make_points
 from envelope.sizing import bars as bar_mod
@@ -279,6 +280,7 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     cols["stirrups"] = np.where(ends, st["label"], "").astype(object)
     _provided_strength(analysis, p, rows, cols, units, bf, hf, d0, comp_area, comp_depth,
                        st, bar_mod.stirrup_set(bar_set, system))
+    _short_of_provided(p, rows, cols, units, failures)
     for i in np.flatnonzero(ends & ~st["fits"]).tolist():
         failures[i].append("no stirrup arrangement of the set gives the Av/s required "
                            "at 75 mm / 3 in spacing or more: widen the section")
@@ -382,6 +384,34 @@ def _provided_strength(analysis: Analysis, p: Params, rows: Rows,
     cols["VRd"] = np.where(has, np.minimum(vrd_s, vrd_max), np.nan) / s.force
     units["MRd_provided"] = u["moment"]
     units["VRd"] = u["force"]
+
+
+def _short_of_provided(p: Params, rows: Rows, cols: dict[str, np.ndarray],
+                       units: dict[str, str], failures: list[list[str]]) -> None:
+    """Fail the status of a row whose bars (or stirrups) provided are weaker than its
+    design moment (shear): the bars are chosen for ``as_design``, but the depth of their
+    layout, a second layer or the compression bars' own layers can leave the section
+    short (ACI 318-19 9.5.1.1, EN 1992-1-1 6.1 and 6.2.1(1)), and the report, which
+    checks the provided strength, must not disagree with the status."""
+    aci_code = p.code == "aci318-19"
+    pairs = (("phiMn_provided" if aci_code else "MRd_provided", rows.moment,
+              "bars", "design moment"),
+             ("phiVn" if aci_code else "VRd", rows.shear, "stirrups", "design shear"))
+    for strength_name, action_value, what, action in pairs:
+        strength = np.asarray(cols[strength_name], dtype=float)
+        demand = np.abs(np.asarray(action_value, dtype=float))
+        with np.errstate(invalid="ignore"):
+            short = (np.isfinite(strength) & (strength > 0.0) & np.isfinite(demand)
+                     & (demand > strength * (1.0 + PROVIDED_STRENGTH_RTOL)))
+        unit = units.get(strength_name, "")
+        for i in np.flatnonzero(short).tolist():
+            given = str(cols[what][i])
+            if what == "bars" and cols["bars_compression"][i]:
+                given += f", {cols['bars_compression'][i]} in compression"
+            failures[i].append(
+                f"{what} provided ({given}) give {strength_name} "
+                f"{strength[i]:.4g} {unit}, {100.0 * (demand[i] / strength[i] - 1.0):.1f}% "
+                f"short of the {action} {demand[i]:.4g} {unit}")
 
 
 def _compression_bars(rows: Rows, p: Params, cols: dict[str, np.ndarray],
