@@ -221,3 +221,161 @@ def test_without_a_fork_server_the_workers_are_spawned(why: str,
     facts = _one_worker_facts(start)
     assert facts["ppid"] == os.getpid() and facts["preload"] is False
     assert facts["sigint"] is True
+
+
+# ---------------------------------------------------------------------------
+# A fork server that dies while it starts a worker
+# ---------------------------------------------------------------------------
+
+#: Imported by the fork server after its preload (``ENVELOPE_TEST_SERVER_DIES`` =
+#: "FOLDER:N:SERVERS"): each of the first SERVERS servers of the test kills itself
+#: (SIGKILL) at its N-th fork, after the fork and before it writes the new worker's pid
+#: back to the coordinator, and leaves "server child" in FOLDER/died-<i>.
+_SERVER_DIES = textwrap.dedent("""
+    import os, signal
+    from multiprocessing import forkserver
+
+    _folder, _n, _servers = os.environ["ENVELOPE_TEST_SERVER_DIES"].rsplit(":", 2)
+    _write_signed = forkserver.write_signed
+    _forks = [0]
+
+    def write_signed(fd, n):
+        _forks[0] += 1  # the first calls are the pids of new workers (none has ended)
+        if _forks[0] == int(_n):
+            for i in range(int(_servers)):
+                try:
+                    claim = os.open(os.path.join(_folder, f"died-{i}"),
+                                    os.O_CREAT | os.O_EXCL | os.O_WRONLY)
+                except FileExistsError:
+                    continue
+                os.write(claim, f"{os.getpid()} {n}".encode())
+                os.close(claim)
+                os.kill(os.getpid(), signal.SIGKILL)
+        return _write_signed(fd, n)
+
+    forkserver.write_signed = write_signed
+""")
+
+
+def _work_that_logs(tasks: Sequence[Task], out: str, plots: bool) -> list[Outcome]:
+    """Stands in for run_chunk: each beam appends "pid ppid" of its worker to OUT/<id>."""
+    results = []
+    for _target, shown, beam_id, *_ in tasks:
+        with open(os.path.join(out, beam_id or "none"), "a") as log:
+            log.write(f"{os.getpid()} {os.getppid()}\n")
+        time.sleep(0.01)
+        results.append(Outcome(shown, beam_id or "", None, {"beam": beam_id}))
+    return results
+
+
+def _children() -> set[int]:
+    """This process's children, from /proc (Linux), but multiprocessing's resource
+    tracker (started once for the whole process)."""
+    from multiprocessing import resource_tracker
+
+    found = set()
+    for entry in os.listdir("/proc"):
+        if entry.isdigit():
+            try:
+                with open(f"/proc/{entry}/stat") as stat:
+                    fields = stat.read().rsplit(")", 1)[1].split()
+            except OSError:
+                continue
+            if int(fields[1]) == os.getpid():
+                found.add(int(entry))
+    return found - {getattr(resource_tracker._resource_tracker, "_pid", None)}
+
+
+def _ended(pid: int, timeout: float = 20.0) -> bool:
+    """Whether process ``pid`` is gone or a zombie within ``timeout`` seconds (/proc)."""
+    deadline = time.monotonic() + timeout
+    while time.monotonic() < deadline:
+        try:
+            with open(f"/proc/{pid}/stat") as stat:
+                if stat.read().rsplit(")", 1)[1].split()[0] == "Z":
+                    return True
+        except OSError:
+            return True
+        time.sleep(0.02)
+    return False
+
+
+@needs_forkserver
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="reads /proc")
+@pytest.mark.parametrize("fork, servers", [(1, 1), (2, 1), (1, 2)],
+                         ids=["first-worker", "second-worker", "twice"])
+def test_a_server_that_dies_while_it_starts_a_worker_ends_no_batch(
+        fork: int, servers: int, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """The server dies after it forked a worker and before it wrote the worker's pid
+    back: the first worker of the batch (started again on a new server), the second
+    (the first dies with the server, by its parent-death signal: the pool is broken and
+    its tasks in flight run again on a new pool), or the first on two servers in a row
+    (the rest spawned, with a note).  Every beam is reported once, none is lost, the
+    child the dying server forked takes no task, and no process is left.  (Before, the
+    launch's EOFError ended the batch, or the first worker's failure, taken for another
+    engine's, left the batch on spawned workers.)"""
+    (tmp_path / "envelope_test_server_dies.py").write_text(_SERVER_DIES)
+    # the server's import path is a new interpreter's (PYTHONPATH), not this process's
+    monkeypatch.setenv("PYTHONPATH", os.pathsep.join(
+        [str(tmp_path), *filter(None, [os.environ.get("PYTHONPATH")])]))
+    folder, out = tmp_path / "died", tmp_path / "out"
+    folder.mkdir()
+    out.mkdir()
+    monkeypatch.setenv("ENVELOPE_TEST_SERVER_DIES", f"{folder}:{fork}:{servers}")
+
+    def context(plots: bool) -> forkserver.WarmContext:  # local._context's, and the test's
+        warm = forkserver.WarmContext(["envelope.batch.preload",
+                                       "envelope_test_server_dies"])
+        warm.start()
+        return warm
+
+    monkeypatch.setattr(local, "_context", context)
+    before = _children()
+    tasks: list[Task] = [(f"t{i}", f"case-{i}.toml", f"b{i}", None, None) for i in range(12)]
+    seen: list[Outcome] = []
+    notes: list[str] = []
+    run_local(tasks, str(out), False, 2, seen.extend, chunk=3, work=_work_that_logs,
+              note=notes.append)
+    assert sorted(o.path for o in seen) == sorted(t[1] for t in tasks)  # each once
+    assert all(o.error is None for o in seen)
+    runs = {f"b{i}": (out / f"b{i}").read_text().splitlines() for i in range(12)}
+    if fork == 1:  # no worker had started: no beam was run twice
+        assert all(len(lines) == 1 for lines in runs.values()), runs
+    died = sorted(folder.iterdir())
+    assert len(died) == servers
+    for record in died:
+        server, child = map(int, record.read_text().split())
+        assert _ended(server) and _ended(child)
+        assert not any(line.split()[0] == str(child) for lines in runs.values()
+                       for line in lines)  # the dying server's child ran no beam
+    parents = {line.split()[1] for lines in runs.values() for line in lines}
+    if servers == 1:  # every beam still on workers forked from a (new) server
+        assert str(os.getpid()) not in parents and notes == []
+    else:  # the rest of the batch on spawned workers, and the user told so
+        assert parents == {str(os.getpid())}
+        assert len(notes) == 1 and "spawned" in notes[0] and "EOFError" in notes[0]
+    assert _children() - before == set()
+
+
+_WORKER_START = textwrap.dedent("""
+    import os, sys
+    from envelope.batch import forkserver, local
+
+    forkserver.SERVER = int(sys.argv[1])  # as inherited from the server that forked it
+    local._watch_parent(os.getppid())
+    print("took tasks", flush=True)
+""")
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="parent-death signal")
+@pytest.mark.parametrize("alive", [True, False])
+def test_a_worker_whose_server_has_died_ends_before_it_takes_a_task(alive: bool) -> None:
+    """A worker forked from a server that died before the worker set its parent-death
+    signal (a fork clears it) has been taken over by another parent: it ends in its
+    start, where it would otherwise go on to take tasks from the pool's queue."""
+    server = os.getpid() if alive else 1  # this test is the worker's parent
+    env = dict(os.environ, PYTHONPATH=os.pathsep.join(
+        [str(REPO), *filter(None, [os.environ.get("PYTHONPATH")])]))
+    ran = subprocess.run([sys.executable, "-c", _WORKER_START, str(server)], env=env,
+                         capture_output=True, text=True, timeout=120)
+    assert (ran.returncode, ran.stdout) == ((0, "took tasks\n") if alive else (1, ""))

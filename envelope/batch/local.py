@@ -41,8 +41,16 @@ def _watch_parent(parent: int) -> None:
     Linux (PR_SET_PDEATHSIG, to this process's parent: the coordinator, or the fork
     server, which dies with the coordinator), and within moments elsewhere (a thread
     that waits on multiprocessing's pipe from the coordinator, which closes when it
-    ends; the parent id polled in a process multiprocessing did not start)."""
+    ends; the parent id polled in a process multiprocessing did not start).  A worker
+    forked from a server that has died already (before the signal was set, which a
+    fork clears) ends here, before it can take a task: its parent is no longer the
+    server (:data:`envelope.batch.forkserver.SERVER`; the signal set first, so that a
+    server that dies after the check kills it)."""
     die_with_parent()
+    forked = sys.modules.get("envelope.batch.forkserver")
+    server = getattr(forked, "SERVER", None)
+    if server is not None and os.getppid() != server:
+        os._exit(1)
     coordinator = multiprocessing.parent_process()
 
     def watch() -> None:
@@ -133,15 +141,31 @@ def _pool(workers: int, plots: bool = False, context: BaseContext | None = None
 
 class _Start:
     """How a batch starts its pools' workers (:func:`_context`), the same for every pool
-    of the batch; :meth:`close` when the batch is done."""
+    of the batch, but that a fork server that died while starting a worker on two
+    servers in a row (:mod:`envelope.batch.forkserver`) leaves the rest of the batch
+    on spawned workers, with a ``note``; :meth:`close` when the batch is done."""
 
-    def __init__(self, plots: bool) -> None:
+    def __init__(self, plots: bool, note: Callable[[str], None] | None = None) -> None:
         self.plots = plots
         self.context = _context(plots)
         self.origin = _engine_origin()
         self.checked = False
+        self.note = note
+
+    def _check_server(self) -> None:
+        """Spawned workers from now on if the fork server failed (said once)."""
+        failed = getattr(self.context, "failed", None)
+        if failed is not None:
+            self.close()
+            self.context = multiprocessing.get_context("spawn")
+            if self.note is not None:
+                self.note(f"note: the workers' fork server died while starting a worker, "
+                          f"twice ({failed}); the rest of the batch's workers are "
+                          "spawned (each imports the engine itself: slower to start, "
+                          "the same results)")
 
     def pool(self, workers: int) -> ProcessPoolExecutor:
+        self._check_server()
         pool = _pool(workers, self.plots, self.context)
         if not self.checked:
             try:
@@ -174,6 +198,12 @@ class _Start:
         stop = getattr(self.context, "stop", None)
         if stop is not None:
             stop()
+
+    def finish(self) -> None:
+        """At the end of the batch: the note of a failed server, if not yet given, and
+        :meth:`close`."""
+        self._check_server()
+        self.close()
 
 
 Work = Callable[[Sequence[Task], str, bool], list[Outcome]]
@@ -222,13 +252,15 @@ def _drain(chunks: Sequence[list[Task]], workers: int, window: int, out: str, pl
 
 def run_local(tasks: Sequence[Task], out: str, plots: bool, workers: int,
               report: Callable[[list[Outcome]], None], chunk: int | None = None,
-              work: Work = run_chunk) -> None:
+              work: Work = run_chunk, note: Callable[[str], None] | None = None) -> None:
     """Every task on a local pool (``work`` runs one chunk; :func:`run_chunk` but in
     tests).  Chunks lost with a dead worker are rerun beam by beam, on every worker;
-    beams lost again are run alone on a pool of one, where a death is that beam's."""
+    beams lost again are run alone on a pool of one, where a death is that beam's.
+    ``note`` takes a line for the user (the workers spawned after a fork server
+    failed: :class:`_Start`)."""
     size = chunk or chunk_size(len(tasks), workers)
     chunks = [list(tasks[i:i + size]) for i in range(0, len(tasks), size)]
-    start = _Start(plots)
+    start = _Start(plots, note)
     try:
         lost = _drain(chunks, workers, 2 * workers, out, plots, report, work, start)
         if lost:
@@ -237,7 +269,7 @@ def run_local(tasks: Sequence[Task], out: str, plots: bool, workers: int,
         if lost:
             lost = _drain(lost, 1, 1, out, plots, report, work, start)
     finally:
-        start.close()
+        start.finish()
     for (task,) in lost:
         report([_died(task, "the worker process died while analysing this beam")])
 

@@ -177,6 +177,6 @@ def _run(todo: Sequence[Entry], out: Path, summary: Summary, done: dict[str, dic
     if tasks and client is not None:
         run_cluster(tasks, os.fspath(out), plots, client, slots, report, chunk)
     elif tasks:
-        run_local(tasks, os.fspath(out), plots, slots, report, chunk)
+        run_local(tasks, os.fspath(out), plots, slots, report, chunk, note=bar.note)
     summary.run_seconds = time.perf_counter() - run_started
     bar.close()
