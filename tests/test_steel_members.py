@@ -300,3 +300,70 @@ def test_superposed_patterning_gives_the_same_demand_as_the_explicit_cases() -> 
     # w = 1.2*10 + 1.6*15 = 36 kN/m on both spans: M = -wL^2/8 = -288 kN*m
     assert got["code"] == pytest.approx([288.0, 288.0], rel=SOLVE)
     assert got["exhaustive"] == pytest.approx(got["code"], rel=SOLVE)
+
+
+# ------------------------------------------------- rolled and welded shapes (fabrication)
+
+def test_rolled_flanges_take_case_10_and_welded_case_11_by_hand() -> None:
+    # An invented shape with a noncompact flange, made of plates (no fillets): d = 16,
+    # bf = 10, tf = 0.40, tw = 0.30 in; Fy = 50 ksi, E = 29,000 ksi.  bf/2tf = 12.5.
+    d, bf, tf, tw = 16.0, 10.0, 0.40, 0.30
+    h = d - 2 * tf                                   # 15.2 (no k given)
+    zx = bf * tf * (d - tf) + tw * h**2 / 4          # 79.728 in^3
+    sx = (bf * d**3 - (bf - tw) * h**3) / 12 / (d / 2)  # 71.828 in^3
+    mp = FY * zx                                     # 3986.4 kip*in
+    lam = bf / (2 * tf)
+    # AISC 360-22 Table B4.1b: lambda_p = 0.38 sqrt(E/Fy) = 9.1516 (cases 10 and 11);
+    # case 10 (rolled) lambda_r = 1.0 sqrt(E/Fy) = 24.083; case 11 (built-up) lambda_r =
+    # 0.95 sqrt(kc E / FL), kc = 4 / sqrt(h/tw) = 4 / sqrt(50.667) = 0.56195 (note [a]),
+    # FL = 0.7 Fy: 0.95 sqrt(0.56195 * 29000 / 35) = 20.499
+    lam_p = 0.38 * math.sqrt(E / FY)
+    lam_r10 = 1.0 * math.sqrt(E / FY)
+    kc = 4 / math.sqrt(h / tw)
+    lam_r11 = 0.95 * math.sqrt(kc * E / (0.7 * FY))
+    assert (lam_p, lam_r10, kc, lam_r11) == pytest.approx((9.1516, 24.083, 0.56195, 20.499),
+                                                          abs=1e-3)
+    assert lam_p < lam < lam_r11 < lam_r10           # noncompact by both cases
+    assert ltb.flange_limits(E, FY, ltb.kc(h, tw), True)[1] == pytest.approx(lam_r10)
+    assert ltb.flange_limits(E, FY, ltb.kc(h, tw), False)[1] == pytest.approx(lam_r11)
+    # F3-1: Mn = Mp - (Mp - 0.7 Fy Sx)(lambda - lambda_pf)/(lambda_rf - lambda_pf)
+    #   rolled (case 10): 3986.4 - 1472.4 * 3.3484 / 14.932 = 3656.2 kip*in
+    #   welded (case 11): 3986.4 - 1472.4 * 3.3484 / 11.348 = 3551.9 kip*in
+    rolled = mp - (mp - 0.7 * FY * sx) * (lam - lam_p) / (lam_r10 - lam_p)
+    welded = mp - (mp - 0.7 * FY * sx) * (lam - lam_p) / (lam_r11 - lam_p)
+    assert (rolled, welded) == pytest.approx((3656.2, 3551.9), abs=0.1)
+    assert ltb.mn_flb(bf, tf, h, tw, zx, sx, E, FY, rolled=True) == pytest.approx(rolled)
+    assert ltb.mn_flb(bf, tf, h, tw, zx, sx, E, FY, rolled=False) == pytest.approx(welded)
+    assert ltb.mn_flb(bf, tf, h, tw, zx, sx, E, FY) == pytest.approx(welded)  # default
+    # per section in one call
+    both = ltb.mn_flb(np.full(2, bf), tf, h, tw, zx, sx, E, FY, np.array([True, False]))
+    assert both == pytest.approx([rolled, welded])
+    # the earlier flange (bf = 13.2, tf = 0.3 on PG-18x51's web, lambda = 22): slender by
+    # case 11 (F3-2, 2889.2 kip*in), noncompact by case 10 (F3-1):
+    #   Mn = 5185 - (5185 - 3202.5)(22 - 9.1516)/(24.083 - 9.1516) = 3479.1 kip*in
+    assert ltb.mn_flb(13.2, 0.3, 16.8, 0.36, 103.7, 91.5, E, FY, True) == pytest.approx(
+        3479.1, abs=0.1)
+    assert list(ltb.flange_class(13.2, 0.3, 16.8, 0.36, E, FY, np.array([True, False]))
+                ) == ["noncompact", "slender"]
+
+
+def test_rolled_web_shear_g2_1a_by_hand() -> None:
+    # AISC 360-22 G2.1(a): the web of a rolled I-shape with h/tw <= 2.24 sqrt(E/Fy) =
+    # 2.24 * 24.083 = 53.946 takes phi_v = 1.00 and Cv1 = 1.0 in G2-1, Vn = 0.6 Fy Aw Cv1.
+    # The invented shape above: h/tw = 15.2 / 0.30 = 50.667, Aw = d tw = 4.8 in^2:
+    #   phi_v Vn = 1.00 * 0.6 * 50 * 4.8 * 1.0 = 144.0 kip
+    h_tw = 15.2 / 0.30
+    assert h_tw <= 2.24 * math.sqrt(E / FY)
+    assert web.phi_vn(16.0, 0.30, 15.2, E, FY, rolled=True) == pytest.approx(
+        1.00 * 0.6 * FY * 16.0 * 0.30)
+    assert web.phi_vn(16.0, 0.30, 15.2, E, FY, rolled=True) == pytest.approx(144.0)
+    # the same web welded: G2.1(b), phi_v = 0.90; h/tw = 50.667 <= 1.10 sqrt(kv E/Fy)
+    # = 61.22 (kv = 5.34): Cv1 = 1.0 (G2-3): 0.90 * 144.0 = 129.6 kip
+    assert web.phi_vn(16.0, 0.30, 15.2, E, FY, rolled=False) == pytest.approx(129.6)
+    assert web.phi_vn(16.0, 0.30, 15.2, E, FY) == pytest.approx(129.6)
+    # a rolled web beyond 2.24 sqrt(E/Fy): h/tw = 15.2 / 0.25 = 60.8 > 53.946 takes
+    # G2.1(b): 0.90 * 0.6 * 50 * 16 * 0.25 * 1.0 (60.8 <= 61.22, G2-3) = 108.0 kip
+    assert web.phi_vn(16.0, 0.25, 15.2, E, FY, rolled=True) == pytest.approx(108.0)
+    # and thinner still, h/tw = 15.2 / 0.2 = 76 > 61.22: Cv1 = 61.22/76 (G2-4)
+    assert web.phi_vn(16.0, 0.20, 15.2, E, FY, rolled=True) == pytest.approx(
+        0.9 * 0.6 * FY * 16.0 * 0.2 * 1.10 * math.sqrt(5.34 * 580) / 76)

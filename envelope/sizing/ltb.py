@@ -8,12 +8,11 @@ MPa (moments N*mm, lengths mm, Sx and Zx mm^3, J mm^4, Cw mm^6); US kip, in, ksi
 in, in^3, in^4, in^6).  ``E`` is passed in (see :data:`E_STEEL`).
 
 Scope: doubly symmetric I-shapes (c = 1, F2-8a) with compact webs (Table B4.1b case 15);
-flanges compact, noncompact or slender by Table B4.1b case 11 (built-up I-shapes).  A
-sections table does not say which shapes are rolled and which are welded (the demo tables
-and the tests' shapes are welded), so every flange takes the built-up limit lambda_r =
-0.95 sqrt(kc E / FL), which is below case 10's 1.0 sqrt(E/Fy) for every kc (at most
-0.76): on the safe side for a rolled shape, as :mod:`envelope.sizing.web` keeps phi_v =
-0.90 for shear.  A noncompact or slender web (F4, F5) is outside this module:
+flanges compact, noncompact or slender by Table B4.1b case 10 for a rolled shape
+(lambda_r = 1.0 sqrt(E/Fy)) and case 11 for a welded (built-up) one (lambda_r = 0.95
+sqrt(kc E / FL)), per section by the ``rolled`` flag (a section not said to be rolled is
+taken as welded: case 11's limit is below case 10's for every kc, at most 0.76, so on the
+safe side).  A noncompact or slender web (F4, F5) is outside this module:
 :func:`web_is_compact` says which sections need them, and the caller reports them as not
 checked.
 """
@@ -103,13 +102,15 @@ def mn_ltb(lb: np.ndarray | float, cb_: np.ndarray | float, Zx: np.ndarray | flo
     return np.minimum(mn, mp)
 
 
-def flange_limits(E: float, Fy: float, kc_: np.ndarray | float
-                  ) -> tuple[float, np.ndarray]:
-    """Table B4.1b case 11 (flanges of built-up I-shapes in flexure): lambda_p = 0.38
-    sqrt(E/Fy) (compact; the same as case 10), lambda_r = 0.95 sqrt(kc E / FL)
-    (noncompact) with FL = 0.7 Fy, the value for a doubly symmetric section (Sxt/Sxc =
-    1 >= 0.7, Eq. F4-6a)."""
-    return 0.38 * float(np.sqrt(E / Fy)), 0.95 * np.sqrt(_a(kc_) * E / (0.7 * Fy))
+def flange_limits(E: float, Fy: float, kc_: np.ndarray | float,
+                  rolled: np.ndarray | bool = False) -> tuple[float, np.ndarray]:
+    """Table B4.1b limits of the flanges of I-shapes in flexure: lambda_p = 0.38 sqrt(E/Fy)
+    (compact, cases 10 and 11 alike) and lambda_r (noncompact): case 10 (rolled) 1.0
+    sqrt(E/Fy); case 11 (built-up) 0.95 sqrt(kc E / FL) with FL = 0.7 Fy, the value for a
+    doubly symmetric section (Sxt/Sxc = 1 >= 0.7, Eq. F4-6a)."""
+    lam_r = np.where(_a(rolled).astype(bool), np.sqrt(E / Fy),
+                     0.95 * np.sqrt(_a(kc_) * E / (0.7 * Fy)))
+    return 0.38 * float(np.sqrt(E / Fy)), lam_r
 
 
 def web_is_compact(h: np.ndarray | float, tw: np.ndarray | float, E: float, Fy: float
@@ -126,9 +127,10 @@ def kc(h: np.ndarray | float, tw: np.ndarray | float) -> np.ndarray:
 
 def mn_flb(bf: np.ndarray | float, tf: np.ndarray | float, h: np.ndarray | float,
            tw: np.ndarray | float, Zx: np.ndarray | float, Sx: np.ndarray | float,
-           E: float, Fy: float) -> np.ndarray:
+           E: float, Fy: float, rolled: np.ndarray | bool = False) -> np.ndarray:
     """Nominal flexural strength for compression-flange local buckling, F3.2 (Mp where the
-    flange is compact, as F2 then governs alone):
+    flange is compact, as F2 then governs alone), with lambda_pf and lambda_rf of Table
+    B4.1b case 10 where ``rolled``, else case 11 (:func:`flange_limits`):
 
     - lambda = bf/(2 tf) <= lambda_pf: Mn = Mp;
     - noncompact: Mn = Mp - (Mp - 0.7 Fy Sx)(lambda - lambda_pf)/(lambda_rf - lambda_pf)
@@ -138,15 +140,17 @@ def mn_flb(bf: np.ndarray | float, tf: np.ndarray | float, h: np.ndarray | float
     mp = Fy * _a(Zx)
     lam = _a(bf) / (2.0 * _a(tf))
     k_c = kc(h, tw)
-    lam_p, lam_r = flange_limits(E, Fy, k_c)
+    lam_p, lam_r = flange_limits(E, Fy, k_c, rolled)
     noncompact = mp - (mp - 0.7 * Fy * _a(Sx)) * (lam - lam_p) / (lam_r - lam_p)
     slender = 0.9 * E * k_c * _a(Sx) / lam**2
     return np.where(lam <= lam_p, mp, np.where(lam <= lam_r, noncompact, slender))
 
 
 def flange_class(bf: np.ndarray | float, tf: np.ndarray | float, h: np.ndarray | float,
-                 tw: np.ndarray | float, E: float, Fy: float) -> np.ndarray:
-    """'compact', 'noncompact' or 'slender' flange (Table B4.1b case 11), per section."""
+                 tw: np.ndarray | float, E: float, Fy: float,
+                 rolled: np.ndarray | bool = False) -> np.ndarray:
+    """'compact', 'noncompact' or 'slender' flange (Table B4.1b case 10 where ``rolled``,
+    else case 11), per section."""
     lam = _a(bf) / (2.0 * _a(tf))
-    lam_p, lam_r = flange_limits(E, Fy, kc(h, tw))
+    lam_p, lam_r = flange_limits(E, Fy, kc(h, tw), rolled)
     return np.where(lam <= lam_p, "compact", np.where(lam <= lam_r, "noncompact", "slender"))

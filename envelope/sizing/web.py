@@ -5,10 +5,10 @@ Pure functions over numpy arrays that broadcast (sections x forces).  Section un
 mm, MPa; US kip, in, ksi.  ``h`` is the clear web height used for h/tw: d - 2k where the
 fillet distance k is known, else d - 2tf (larger h, so on the safe side).
 
-Shear takes G2.1(b) (phi_v = 0.90, Cv1 by G2-3 / G2-4, kv = 5.34 for a web without
-transverse stiffeners) for every shape: G2.1(a) would allow phi_v = 1.00 for rolled
-shapes with h/tw <= 2.24 sqrt(E/Fy), but the sections table does not say which shapes are
-rolled, so the lower factor is kept (on the safe side).
+Shear: G2.1(a) (phi_v = 1.00, Cv1 = 1.0) for the web of a rolled I-shape with h/tw <= 2.24
+sqrt(E/Fy); G2.1(b) (phi_v = 0.90, Cv1 by G2-3 / G2-4, kv = 5.34 for a web without
+transverse stiffeners) for every other web, welded (built-up) shapes and shapes not said
+to be rolled included (on the safe side).
 """
 
 from __future__ import annotations
@@ -17,6 +17,10 @@ import numpy as np
 
 #: G1(a): resistance factor for shear by G2.1(b).
 PHI_V = 0.90
+#: G2.1(a): resistance factor for the webs of rolled I-shapes with h/tw <= 2.24 sqrt(E/Fy).
+PHI_V_ROLLED = 1.00
+#: G2.1(a): the web slenderness limit's coefficient, h/tw <= 2.24 sqrt(E/Fy).
+ROLLED_LIMIT = 2.24
 #: G2.1(b)(2)(i): web plate shear buckling coefficient without transverse stiffeners.
 KV = 5.34
 #: J10.2: resistance factor for web local yielding.
@@ -38,10 +42,21 @@ def cv1(h: np.ndarray | float, tw: np.ndarray | float, E: float, Fy: float,
     return np.where(ratio <= limit, 1.0, limit / ratio)
 
 
+def g2_1a(h: np.ndarray | float, tw: np.ndarray | float, E: float, Fy: float,
+          rolled: np.ndarray | bool) -> np.ndarray:
+    """Which webs G2.1(a) covers: rolled I-shapes with h/tw <= 2.24 sqrt(E/Fy)."""
+    stocky = _a(h) / _a(tw) <= ROLLED_LIMIT * np.sqrt(E / Fy)
+    return np.asarray(_a(rolled).astype(bool) & stocky)
+
+
 def phi_vn(d: np.ndarray | float, tw: np.ndarray | float, h: np.ndarray | float, E: float,
-           Fy: float) -> np.ndarray:
-    """Design shear strength phi_v Vn = 0.90 * 0.6 Fy Aw Cv1 (G2-1), Aw = d tw."""
-    return PHI_V * 0.6 * Fy * _a(d) * _a(tw) * cv1(h, tw, E, Fy)
+           Fy: float, rolled: np.ndarray | bool = False) -> np.ndarray:
+    """Design shear strength by G2-1, phi_v Vn = phi_v 0.6 Fy Aw Cv1 with Aw = d tw:
+    1.00 * 0.6 Fy Aw (G2.1(a), Cv1 = 1.0) where :func:`g2_1a` holds, else 0.90 * 0.6 Fy
+    Aw Cv1 with Cv1 by G2.1(b)(1)."""
+    base = 0.6 * Fy * _a(d) * _a(tw)
+    return np.where(g2_1a(h, tw, E, Fy, rolled), PHI_V_ROLLED * base,
+                    PHI_V * base * cv1(h, tw, E, Fy))
 
 
 def web_local_yielding(tw: np.ndarray | float, k: np.ndarray | float,
