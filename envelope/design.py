@@ -115,7 +115,8 @@ class SteelSection:
     """One given doubly symmetric I-shape (section units): the full set (d, bf, tf, tw,
     Ix, Zx, Sx, Iy, ry, J, Cw) for every check, or the strength-only Zx, Ix, Aw.
     ``rts``, ``ho``, ``k`` and ``Aw`` are derived or assumed where None (see
-    :mod:`envelope.sizing.shapes`)."""
+    :mod:`envelope.sizing.shapes`); ``fabrication`` is "rolled" or "welded" (the
+    default, on the safe side)."""
 
     name: str
     Zx: float
@@ -134,11 +135,12 @@ class SteelSection:
     rts: float | None = None
     ho: float | None = None
     k: float | None = None
+    fabrication: str = "welded"
 
     def properties(self) -> dict[str, float]:
-        """The properties given (name excluded)."""
-        return {f: v for f in self.__slots__ if f != "name"  # type: ignore[attr-defined]
-                and (v := getattr(self, f)) is not None}
+        """The numeric properties given (name and fabrication excluded)."""
+        return {f: v for f in self.__slots__  # type: ignore[attr-defined]
+                if f not in ("name", "fabrication") and (v := getattr(self, f)) is not None}
 
 
 #: How one flange is braced: "continuous" (a slab or deck), "supports" (at the supports

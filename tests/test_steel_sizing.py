@@ -357,3 +357,147 @@ def test_sections_csv_with_the_full_header_and_a_bad_shape(tmp_path: Path) -> No
                        "s.csv")
     with pytest.raises(CaseError, match=r"s\.csv: line 1: missing columns Sx, Iy"):
         parse_sections("name,d,bf,tf,tw,Ix,Zx,ry,J,Cw,weight\n", "s.csv")
+
+
+# ------------------------------------------------- rolled and welded shapes (fabrication)
+
+def _plates(d: float, bf: float, tf: float, tw: float) -> dict[str, float]:
+    """Properties of an invented doubly symmetric I made of plates (no fillets): Ix, Iy
+    by parallel axes, Zx, Sx = Ix / (d/2), J = sum b t^3 / 3, Cw = Iy ho^2 / 4 (common
+    practice)."""
+    h, ho = d - 2 * tf, d - tf
+    ix = (bf * d**3 - (bf - tw) * h**3) / 12
+    iy = 2 * tf * bf**3 / 12 + h * tw**3 / 12
+    area = 2 * bf * tf + h * tw
+    return dict(d=d, bf=bf, tf=tf, tw=tw, Ix=ix, Zx=bf * tf * ho + tw * h**2 / 4,
+                Sx=ix / (d / 2), Iy=iy, ry=math.sqrt(iy / area),
+                J=(2 * bf * tf**3 + ho * tw**3) / 3, Cw=iy * ho**2 / 4,
+                weight=3.4 * area)
+
+
+#: An invented shape with a noncompact flange (bf/2tf = 12.5) and a stocky web (h/tw =
+#: 50.67), the dimensions of tests/test_steel_members.py's rolled/welded hand check.
+RX = _plates(16.0, 10.0, 0.40, 0.30)
+
+
+def _rx(fabrication: str | None, name: str = "RX-16") -> str:
+    made = "" if fabrication is None else f', fabrication = "{fabrication}"'
+    return ("{ " + f'name = "{name}"' + "".join(f", {k} = {v!r}" for k, v in RX.items())
+            + made + " }")
+
+
+def _f3_1(lam_r: float) -> float:
+    """F3-1 for RX-16 at Fy = 50: Mn = Mp - (Mp - 0.7 Fy Sx)(lambda - lambda_pf) /
+    (lambda_rf - lambda_pf), lambda_pf = 0.38 sqrt(E/Fy) (Table B4.1b)."""
+    mp, lam, lam_p = FY * RX["Zx"], RX["bf"] / (2 * RX["tf"]), 0.38 * math.sqrt(E / FY)
+    return mp - (mp - 0.7 * FY * RX["Sx"]) * (lam - lam_p) / (lam_r - lam_p)
+
+
+def test_rolled_section_takes_case_10_flanges_and_g2_1a_shear() -> None:
+    # AISC 360-22 Table B4.1b case 10 (rolled): lambda_rf = 1.0 sqrt(E/Fy) = 24.083;
+    # bf/2tf = 12.5 is noncompact (9.152 < 12.5 < 24.083): F3-1 gives Mn = 3656.2
+    # kip*in, phi_b Mn = 0.9 * 3656.2 / 12 = 274.22 kip*ft on the sagging rows (top flange
+    # braced by the deck, so F3 governs there).
+    mn = _f3_1(math.sqrt(E / FY))
+    assert mn == pytest.approx(3656.2, abs=0.1)
+    _, cols = run(girder(section=_rx("rolled")))
+    j = row(cols, 1, "span")
+    assert cols["phi_mn"][j] == pytest.approx(0.9 * mn / 12, rel=1e-9)
+    assert cols["phi_mn"][j] == pytest.approx(274.22, abs=0.01)
+    assert "rolled section" in cols["note"][j] and "Table B4.1b case 10" in cols["note"][j]
+    assert "lambda_rf = 1.0 sqrt(E/Fy) = 24.08" in cols["note"][j]
+    # G2.1(a): h/tw = 15.2/0.30 = 50.67 <= 2.24 sqrt(E/Fy) = 53.95: phi_v = 1.00, Cv1 =
+    # 1.0; phi_v Vn = 1.00 * 0.6 Fy Aw = 1.0 * 0.6 * 50 * (16 * 0.30) = 144.0 kip
+    i = row(cols, 1, "left")
+    assert cols["phiVn"][i] == pytest.approx(1.0 * 0.6 * FY * RX["d"] * RX["tw"], rel=1e-9)
+    assert cols["phiVn"][i] == pytest.approx(144.0)
+    assert "G2.1(a)" in cols["note"][i] and "phi_v = 1.00, Cv1 = 1.0" in cols["note"][i]
+    assert math.isnan(cols["phiVn"][j]) and "G2.1" not in cols["note"][j]
+
+
+@pytest.mark.parametrize("fabrication", ["welded", None])
+def test_welded_or_unsaid_section_takes_case_11_flanges_and_g2_1b_shear(
+        fabrication: str | None) -> None:
+    # The same dimensions welded (or not said: welded, the default): Table B4.1b case 11,
+    # kc = 4 / sqrt(h/tw) = 0.56195, lambda_rf = 0.95 sqrt(kc E / 0.7 Fy) = 20.499;
+    # F3-1: Mn = 3551.9 kip*in, phi_b Mn = 0.9 * 3551.9 / 12 = 266.39 kip*ft.
+    kc = 4 / math.sqrt((RX["d"] - 2 * RX["tf"]) / RX["tw"])
+    mn = _f3_1(0.95 * math.sqrt(kc * E / (0.7 * FY)))
+    assert mn == pytest.approx(3551.9, abs=0.1)
+    _, cols = run(girder(section=_rx(fabrication)))
+    j = row(cols, 1, "span")
+    assert cols["phi_mn"][j] == pytest.approx(0.9 * mn / 12, rel=1e-9)
+    assert cols["phi_mn"][j] == pytest.approx(266.39, abs=0.01)
+    assert "welded section" in cols["note"][j] and "Table B4.1b case 11" in cols["note"][j]
+    # G2.1(b): phi_v = 0.90, h/tw = 50.67 <= 1.10 sqrt(5.34 E/Fy) = 61.22: Cv1 = 1.0
+    # (G2-3); phi_v Vn = 0.90 * 0.6 * 50 * 4.8 = 129.6 kip
+    i = row(cols, 1, "left")
+    assert cols["phiVn"][i] == pytest.approx(129.6)
+    assert "G2.1(b): welded web, phi_v = 0.90, Cv1 = 1" in cols["note"][i]
+
+
+def test_sections_csv_fabrication_column(tmp_path: Path) -> None:
+    from envelope.sizing.sections import parse_sections
+
+    values = ",".join(repr(v) for v in RX.values())
+    head = "name," + ",".join(RX) + ",fabrication\n"
+    table = parse_sections(head + f"RX-a,{values},rolled\nRX-b,{values}, welded \n", "s.csv")
+    assert list(table.rolled) == [True, False]
+    # no column: every row welded (the safe side)
+    plain = parse_sections("name," + ",".join(RX) + f"\nRX-a,{values}\n", "s.csv")
+    assert list(plain.rolled) == [False]
+    # a rolled row of the user's table is sized with G2.1(a): 144.0 kip (above)
+    (tmp_path / "shapes.csv").write_text(head + f"RX-a,{values},rolled\n")
+    path = tmp_path / "g.toml"
+    path.write_text(girder(section="x").replace("section = x\n", 'sections = "shapes.csv"\n'))
+    cols = size(analyse(load_case(path)))
+    assert cols["phiVn"][row(cols, 1, "left")] == pytest.approx(144.0)
+
+
+@pytest.mark.parametrize(("value", "message"), [
+    ('"hot-rolled"', r"design\.section\.fabrication: expected \"rolled\" or \"welded\", "
+                     r"got 'hot-rolled'"),
+    ('"Rolled"', r"design\.section\.fabrication: expected \"rolled\" or \"welded\""),
+    ("1", r"design\.section\.fabrication: expected a string"),
+])
+def test_bad_fabrication_of_the_given_section_is_refused(value: str, message: str) -> None:
+    text = girder(section=_rx(None)[:-2] + f", fabrication = {value} }}")
+    with pytest.raises(CaseError, match=message):
+        parse_case(tomllib.loads(text), "g.toml")
+
+
+def test_bad_fabrication_in_the_sections_csv_is_refused(tmp_path: Path) -> None:
+    from click.testing import CliRunner
+
+    from envelope.cli import main
+    from envelope.sizing.sections import parse_sections
+
+    values = ",".join(repr(v) for v in RX.values())
+    head = "name," + ",".join(RX) + ",fabrication\n"
+    with pytest.raises(CaseError, match=r"s\.csv: line 3\.fabrication: expected \"rolled\" "
+                                        r"or \"welded\", got 'cast'"):
+        parse_sections(head + f"RX-a,{values},rolled\nRX-b,{values},cast\n", "s.csv")
+    with pytest.raises(CaseError, match=r"line 2\.fabrication: expected \"rolled\" or "
+                                        r"\"welded\", got ''"):
+        parse_sections(head + f"RX-a,{values},\n", "s.csv")
+    # through the command line: one line naming the table, the row and the column, exit
+    # status 2, nothing written
+    (tmp_path / "shapes.csv").write_text(head + f"RX-a,{values},extruded\n")
+    path = tmp_path / "g.toml"
+    path.write_text(girder(section="x").replace("section = x\n", 'sections = "shapes.csv"\n'))
+    out = tmp_path / "out"
+    result = CliRunner().invoke(main, ["run", str(path), "-o", str(out)])
+    assert result.exit_code == 2, result.output
+    lines = result.stderr.strip().splitlines()
+    assert len(lines) == 1 and "shapes.csv" in lines[0]
+    assert "line 2.fabrication" in lines[0] and "\"rolled\" or \"welded\"" in lines[0]
+    assert "Traceback" not in result.output and not out.exists()
+
+
+def test_a_rolled_strength_only_section_keeps_phi_v_0_90() -> None:
+    # no d, tw, k: h/tw is unknown, so G2.1(a)'s h/tw <= 2.24 sqrt(E/Fy) cannot be shown;
+    # phi_v Vn = 0.90 * 0.6 * 50 * 6.48 = 174.96 kip as for a welded web (G2.1(b))
+    _, cols = run(girder(section=PG_OLD[:-2] + ', fabrication = "rolled" }'))
+    i = row(cols, 1, "left")
+    assert cols["phiVn"][i] == pytest.approx(0.9 * 0.6 * FY * 6.48)
+    assert "gives no h/tw for G2.1(a)" in cols["note"][i]

@@ -4,8 +4,9 @@ flange, the bearing length of point loads, the camber fraction and the vibration
 Numbers of the section are in section units (mm, mm^2, ... / in, in^2, ...): plain
 numbers kept as given, unit strings converted where the quantity has a unit in the
 system (lengths, areas, second moments); section moduli, Cw and weight take plain numbers
-only.  Brace positions and the vibration lengths are in the case's customary length
-(m / ft) like every position; the vibration ``live`` load in kN/m^2 (SI) or psf (US).
+only; ``fabrication`` is "rolled" or "welded" (the default).  Brace positions and the
+vibration lengths are in the case's customary length (m / ft) like every position; the
+vibration ``live`` load in kN/m^2 (SI) or psf (US).
 """
 
 from __future__ import annotations
@@ -13,13 +14,16 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
+from envelope import config
 from envelope.casefile.reader import Reader, join
 from envelope.design import Bracing, FloorVibration, SteelSection
 
 #: Keys of ``[design] section`` (steel): the full set of a doubly symmetric I-shape,
-#: its optional derived values and the strength-only ``Aw``.
+#: its optional derived values, the strength-only ``Aw`` and how it is made.
 DESIGN_SECTION_KEYS = ("name", "d", "bf", "tf", "tw", "Ix", "Zx", "Sx", "Iy", "ry", "J",
-                       "Cw", "weight", "rts", "ho", "k", "Aw")
+                       "Cw", "weight", "rts", "ho", "k", "Aw", "fabrication")
+#: Values of ``fabrication`` (Table B4.1b case 10 and G2.1(a) for rolled shapes).
+FABRICATIONS = ("rolled", "welded")
 #: The full set: every check can be made.
 FULL_SECTION = ("d", "bf", "tf", "tw", "Ix", "Zx", "Sx", "Iy", "ry", "J", "Cw")
 #: The strength-only set.
@@ -56,8 +60,16 @@ def section(r: Reader, value: object, number: Number) -> SteelSection:
                      if wanted is FULL_SECTION else "the strength-only set (Zx, Ix, Aw)")
             r.fail(join(skey, prop), f"{prop!r} is required for {which}")
     out: dict[str, Any] = {}
+    if "fabrication" in table:
+        fkey = join(skey, "fabrication")
+        made = r.string(table["fabrication"], fkey)
+        if made not in FABRICATIONS:
+            shown = repr(made) if len(made) <= config.ECHO_CHARS else \
+                repr(made[:config.ECHO_CHARS]) + f" (cut; {len(made)} characters)"
+            r.fail(fkey, f"expected \"rolled\" or \"welded\", got {shown}")
+        out["fabrication"] = made
     for prop in DESIGN_SECTION_KEYS[1:]:
-        if prop in table:
+        if prop in table and prop != "fabrication":
             out[prop] = number(table[prop], join(skey, prop), SECTION_QUANTITY[prop])
     if wanted is FULL_SECTION:
         if 2.0 * out["tf"] >= out["d"]:

@@ -106,7 +106,9 @@ def schema() -> dict[str, Any]:
         "sections": {"type": "string", "description": "a CSV of sections, relative to the "
                                                       "case file"},
         "section": {"type": "object", "properties": {
-            k: ({"type": "string"} if k == "name" else _number(k, design=True))
+            k: ({"type": "string"} if k == "name" else
+                {"enum": list(cf.FABRICATIONS)} if k == "fabrication" else
+                _number(k, design=True))
             for k in cf.DESIGN_SECTION_KEYS}},
         "bracing": _object(cf.BRACING_KEYS, {k: {"anyOf": [
             {"enum": list(cf.BRACING_WORDS)},

@@ -1,6 +1,7 @@
 """The user's own table of steel sections (CSV), read and checked once.
 
-Header ``name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight`` (optional ``rts``, ``ho``, ``k``)
+Header ``name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight`` (optional ``rts``, ``ho``, ``k``,
+``fabrication``: ``rolled`` or ``welded`` per row, welded where the column is absent)
 for every check, or the strength-only ``name,Zx,Ix,Aw,weight`` (see
 :mod:`envelope.sizing.shapes`); columns in any order, each once; one section per row in
 the case's section units (mm, mm^2, mm^3, mm^4, mm^6 / in, ..., in^6), weight in any
@@ -28,6 +29,8 @@ from envelope.errors import CaseError
 from envelope.files import UnreadableFile, read_regular
 from envelope.model import Beam
 from envelope.sizing.shapes import (
+    FABRICATION,
+    FABRICATIONS,
     FULL,
     OPTIONAL,
     STRENGTH_ONLY,
@@ -36,7 +39,8 @@ from envelope.sizing.shapes import (
     from_columns,
 )
 
-HEADERS = "name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight (or name,Zx,Ix,Aw,weight)"
+HEADERS = ("name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight (or name,Zx,Ix,Aw,weight); optional "
+           "rts,ho,k,Aw,fabrication")
 
 
 def resolve(beam: Beam, path: str) -> Path:
@@ -129,6 +133,15 @@ def _number(raw: str, source: str, key: str) -> float:
     return value
 
 
+def _fabrication(raw: str, source: str, line: int) -> str:
+    """A ``fabrication`` cell: ``rolled`` or ``welded`` (surrounding spaces ignored)."""
+    value = raw.strip()
+    if value not in FABRICATIONS:
+        raise CaseError(source, f"line {line}.{FABRICATION}",
+                        f"expected \"rolled\" or \"welded\", got {shown(raw)}")
+    return value
+
+
 def _rows(text: str, source: str) -> list[tuple[int, list[str]]]:
     """The non-blank, non-comment rows of the CSV text with their line numbers; a row
     that is not CSV (an unclosed quote, a field over the csv module's size limit) is
@@ -156,7 +169,7 @@ def parse_sections(text: str, source: str) -> Shapes:
                                     f"{HEADERS} and one row per section")
     line, header = rows[0]
     header = [h.strip() for h in header]
-    known = (*FULL, *OPTIONAL, "Aw")
+    known = (*FULL, *OPTIONAL, "Aw", FABRICATION)
     for h in header:
         if h not in known:
             raise CaseError(source, f"line {line}",
@@ -173,8 +186,9 @@ def parse_sections(text: str, source: str) -> Shapes:
     if len(rows) == 1:
         raise CaseError(source, "", "the sections table has a header but no sections")
     col = {h: k for k, h in enumerate(header)}
-    numeric = [c for c in header if c != "name"]
+    numeric = [c for c in header if c not in ("name", FABRICATION)]
     names: list[str] = []
+    made: list[str] = []
     values: dict[str, list[float]] = {c: [] for c in numeric}
     for line, row in rows[1:]:
         if len(row) != len(header):
@@ -188,7 +202,9 @@ def parse_sections(text: str, source: str) -> Shapes:
         names.append(name)
         for c in numeric:
             values[c].append(_number(row[col[c]].strip(), source, f"line {line}.{c}"))
-    shapes = from_columns(names, {c: np.array(v) for c, v in values.items()})
+        made.append(_fabrication(row[col[FABRICATION]], source, line)
+                    if FABRICATION in col else "welded")
+    shapes = from_columns(names, {c: np.array(v) for c, v in values.items()}, made)
     for i, c, problem in check_geometry(shapes):
         raise CaseError(source, f"line {rows[i + 1][0]}.{c}", problem)
     return shapes

@@ -2,8 +2,8 @@
 
 Two kinds of table (section units: mm, mm^2, mm^3, mm^4, mm^6 / in, in^2, ..., in^6):
 
-- full: ``name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight`` (optional ``rts``, ``ho``, ``k``):
-  every check of the steel sizing can be made;
+- full: ``name,d,bf,tf,tw,Ix,Zx,Sx,Iy,ry,J,Cw,weight`` (optional ``rts``, ``ho``, ``k``,
+  ``fabrication``): every check of the steel sizing can be made;
 - strength-only (the older table): ``name,Zx,Ix,Aw,weight``: plastic moment, shear on
   Aw and stiffness only; lateral-torsional buckling, flange local buckling, the web
   checks and vibration cannot be made and are reported as not checked.
@@ -12,6 +12,10 @@ Derived where not given: rts from Eq. F2-7 (rts^2 = sqrt(Iy Cw)/Sx), ho = d - tf
 distance between flange centroids), Aw = d tw (G2.1).  The clear web height h for the
 slenderness h/tw is d - 2k where the fillet distance k is given, else d - 2tf (a larger
 h: on the safe side); k for J10.2 is tf where not given (no fillet: on the safe side).
+
+``fabrication`` (``rolled`` or ``welded``; welded where not given, on the safe side)
+picks the flange limits of Table B4.1b (case 10 rolled, case 11 welded) and whether
+G2.1(a) may apply to the web (:mod:`envelope.sizing.ltb`, :mod:`envelope.sizing.web`).
 """
 
 from __future__ import annotations
@@ -26,6 +30,9 @@ from envelope.sizing.ltb import rts as rts_f2_7
 FULL = ("name", "d", "bf", "tf", "tw", "Ix", "Zx", "Sx", "Iy", "ry", "J", "Cw", "weight")
 #: Optional columns of the full table (derived or assumed where absent).
 OPTIONAL = ("rts", "ho", "k")
+#: Optional column saying how each shape is made, and its values.
+FABRICATION = "fabrication"
+FABRICATIONS = ("rolled", "welded")
 #: Columns of the strength-only table.
 STRENGTH_ONLY = ("name", "Zx", "Ix", "Aw", "weight")
 #: What a strength-only table cannot check (the status says so).
@@ -58,6 +65,7 @@ class Shapes:
     k: np.ndarray
     Aw: np.ndarray
     h: np.ndarray
+    rolled: np.ndarray        # bool: fabrication = "rolled" (else welded)
     k_given: bool
 
     @property
@@ -73,13 +81,14 @@ class Shapes:
 
 
 _ARRAYS = ("d", "bf", "tf", "tw", "Ix", "Zx", "Sx", "Iy", "ry", "J", "Cw", "weight", "rts",
-           "ho", "k", "Aw", "h")
+           "ho", "k", "Aw", "h", "rolled")
 
 
-def from_columns(names: tuple[str, ...] | list[str], columns: dict[str, np.ndarray]
-                 ) -> Shapes:
+def from_columns(names: tuple[str, ...] | list[str], columns: dict[str, np.ndarray],
+                 fabrication: tuple[str, ...] | list[str] | None = None) -> Shapes:
     """Shapes from named columns (positive numbers in section units).  A table with every
-    :data:`FULL` column is full; otherwise it must have the :data:`STRENGTH_ONLY` ones."""
+    :data:`FULL` column is full; otherwise it must have the :data:`STRENGTH_ONLY` ones.
+    ``fabrication`` gives each shape's "rolled" or "welded" (None: every shape welded)."""
     names = tuple(names)
     n = len(names)
     nan = np.full(n, np.nan)
@@ -97,7 +106,9 @@ def from_columns(names: tuple[str, ...] | list[str], columns: dict[str, np.ndarr
     if full and not k_given:
         col["k"] = col["tf"]
     col["h"] = col["d"] - 2.0 * col["k"]
-    return Shapes(name=names, full=full, k_given=k_given, **col)
+    rolled = np.array([f == "rolled" for f in fabrication] if fabrication is not None
+                      else [False] * n, dtype=bool)
+    return Shapes(name=names, full=full, k_given=k_given, rolled=rolled, **col)
 
 
 def check_geometry(shapes: Shapes) -> list[tuple[int, str, str]]:

@@ -6,7 +6,9 @@ Checks (:mod:`envelope.sizing.steel_checks`): flexure with lateral-torsional buc
 each flange's unbraced segments (F2, Cb by F1-1 from the exact moments of the governing
 cases) and flange local buckling (F3); shear (G2.1); web local yielding and crippling at
 the supports and under point loads (J10.2, J10.3); deflection limits; DG11 walking
-vibration (with ``vibration`` given); a camber suggestion.
+vibration (with ``vibration`` given); a camber suggestion.  The section's
+``fabrication`` picks the flange limits of Table B4.1b (case 10 rolled, case 11 welded)
+and whether a stocky web takes G2.1(a); the notes say which.
 
 Moments are taken at the support centrelines (no face reduction for steel) and shears at
 the span ends.  Deflections rescale the analysed ones (made with the ``[section]`` I of
@@ -24,7 +26,7 @@ import numpy as np
 
 from envelope.analysis import Analysis
 from envelope.design import Bracing, SteelDesign, SteelSection
-from envelope.sizing import ltb
+from envelope.sizing import ltb, web
 from envelope.sizing import steel_aisc as aisc
 from envelope.sizing.bracing import BracingSpec
 from envelope.sizing.layout import AISC_SCALES, SECTION_UNITS, Rows, Sized, design_rows
@@ -78,7 +80,7 @@ def given_shape(section: SteelSection) -> Shapes:
     cols = {k: np.array([float(v)]) for k, v in section.properties().items()}
     if "weight" not in cols:
         cols["weight"] = np.array([1.0])
-    return from_columns([section.name], cols)
+    return from_columns([section.name], cols, [section.fabrication])
 
 
 def _bracing_text(spec: BracingSpec, flange: str) -> str:
@@ -283,6 +285,39 @@ def _candidate_lines(shapes: Shapes, checks: Checks, worst_u: np.ndarray, gov: n
     return tuple(out)
 
 
+def _fabrication_notes(shapes: Shapes, k: int, inp: SteelInput) -> tuple[str, str]:
+    """What the chosen section's fabrication decides, for the notes: the flange limit of
+    Table B4.1b (every row) and the shear clause of G2.1 (end rows)."""
+    rolled = bool(shapes.rolled[k])
+    made = "rolled" if rolled else "welded"
+    if not shapes.full:
+        if not rolled:
+            return "", ""
+        return "", ("rolled, but a strength-only section gives no h/tw for G2.1(a): shear "
+                    "by phi_v = 0.90 (AISC 360-22 G2.1(b))")
+    E, Fy = inp.E, inp.Fy
+    lam = float(shapes.bf[k] / (2.0 * shapes.tf[k]))
+    lam_p, lam_r = ltb.flange_limits(E, Fy, ltb.kc(shapes.h[k], shapes.tw[k]), rolled)
+    limit = "1.0 sqrt(E/Fy)" if rolled else "0.95 sqrt(kc E/FL)"
+    case = "10 (rolled)" if rolled else "11 (welded, built-up)"
+    klass = ltb.flange_class(shapes.bf[k], shapes.tf[k], shapes.h[k], shapes.tw[k], E, Fy,
+                             rolled)
+    flange = (f"{made} section: flange bf/2tf = {lam:.2f} {klass} by AISC 360-22 Table "
+              f"B4.1b case {case}, lambda_pf = 0.38 sqrt(E/Fy) = {lam_p:.2f}, lambda_rf = "
+              f"{limit} = {float(lam_r):.2f} (F3)")
+    h_tw = float(shapes.h[k] / shapes.tw[k])
+    limit_a = web.ROLLED_LIMIT * float(np.sqrt(E / Fy))
+    if bool(web.g2_1a(shapes.h[k], shapes.tw[k], E, Fy, rolled)):
+        shear = (f"shear by AISC 360-22 G2.1(a): rolled web, h/tw = {h_tw:.2f} <= 2.24 "
+                 f"sqrt(E/Fy) = {limit_a:.2f}, phi_v = 1.00, Cv1 = 1.0")
+    else:
+        cv1 = float(web.cv1(shapes.h[k], shapes.tw[k], E, Fy))
+        why = (f"rolled web with h/tw = {h_tw:.2f} > 2.24 sqrt(E/Fy) = {limit_a:.2f}"
+               if rolled else "welded web")
+        shear = f"shear by AISC 360-22 G2.1(b): {why}, phi_v = 0.90, Cv1 = {cv1:.3g}"
+    return flange, shear
+
+
 def _row_messages(rows: Rows, shapes: Shapes, checks: Checks, inp: SteelInput, k: int,
                   notes: list[list[str]], failures: list[list[str]], source: str,
                   compact_web: bool, u: dict[str, str], su: dict[str, str]) -> None:
@@ -292,8 +327,13 @@ def _row_messages(rows: Rows, shapes: Shapes, checks: Checks, inp: SteelInput, k
     full = shapes.full
     bracing = (f"{_bracing_text(inp.top, 'top')}, {_bracing_text(inp.bottom, 'bottom')}"
                + ("" if inp.bracing_given else " (no bracing given: supports only assumed)"))
+    flange_note, shear_note = _fabrication_notes(shapes, k, inp)
     for i in range(n):
         notes[i].append(source)
+        if flange_note:
+            notes[i].append(flange_note)
+        if shear_note and rows.is_end[i]:
+            notes[i].append(shear_note)
         if not full:
             failures[i].append(f"not checked: {NOT_CHECKED} ({MISSING})")
         elif not compact_web:
@@ -326,17 +366,21 @@ def _row_messages(rows: Rows, shapes: Shapes, checks: Checks, inp: SteelInput, k
         if um > 1.0:
             limit = ("0.90 Mp (F2.1)" if not full or
                      ltb.flange_class(shapes.bf[k], shapes.tf[k], shapes.h[k], shapes.tw[k],
-                                      inp.E, inp.Fy) == "compact"
+                                      inp.E, inp.Fy, shapes.rolled[k]) == "compact"
                      else "0.90 Mn for flange local buckling (F3.2)")
             failures[i].append(
                 f"moment: Mu = {abs(rows.moment[i]):.1f} {mu_unit} exceeds phi_b Mn = "
                 f"{limit} = {phi:.1f} {mu_unit} (AISC 360-22) by {_pct(um)}")
+    rolled_web = full and bool(web.g2_1a(shapes.h[k], shapes.tw[k], inp.E, inp.Fy,
+                                         shapes.rolled[k]))
+    strength = ("1.00 * 0.6 Fy Aw (Cv1 = 1.0)", "G2.1(a)") if rolled_web else \
+        ("0.90 * 0.6 Fy Aw Cv1", "G2.1(b)" if full else "G2.1")
     for i in np.flatnonzero(rows.is_end).tolist():
         us = checks.shear[i, k]
         if us > 1.0:
             failures[i].append(
-                f"shear: Vu = {rows.shear[i]:.1f} {f_unit} exceeds phi_v Vn = 0.90 * 0.6 Fy "
-                f"Aw Cv1 = {checks.phi_vn[i, k]:.1f} {f_unit} (AISC 360-22 G2.1) by "
+                f"shear: Vu = {rows.shear[i]:.1f} {f_unit} exceeds phi_v Vn = {strength[0]} "
+                f"= {checks.phi_vn[i, k]:.1f} {f_unit} (AISC 360-22 {strength[1]}) by "
                 f"{_pct(us)}")
     lb_unit = su["length"]
     for i in range(n):

@@ -121,7 +121,7 @@ def _flexure(analysis: Analysis, rows: Rows, shapes: Shapes, inp: SteelInput,
     mp = Fy * shapes.Zx
     if shapes.full:
         m_local = np.minimum(mp, ltb.mn_flb(shapes.bf, shapes.tf, shapes.h, shapes.tw,
-                                            shapes.Zx, shapes.Sx, E, Fy))
+                                            shapes.Zx, shapes.Sx, E, Fy, shapes.rolled))
     else:
         m_local = mp
     phi_local = ltb.PHI_B * m_local / scale_m          # consistent units, per shape
@@ -325,7 +325,8 @@ def check_all(analysis: Analysis, rows: Rows, shapes: Shapes, inp: SteelInput,
     ends = rows.is_end
     vu = np.where(ends, np.nan_to_num(rows.shear), np.nan)[:, None]
     if shapes.full:
-        phi_vn = web.phi_vn(shapes.d, shapes.tw, shapes.h, inp.E, inp.Fy) / scale_f
+        phi_vn = web.phi_vn(shapes.d, shapes.tw, shapes.h, inp.E, inp.Fy,
+                            shapes.rolled) / scale_f
     else:
         phi_vn = web.PHI_V * 0.6 * inp.Fy * shapes.Aw / scale_f
     shear = vu / phi_vn[None, :]

@@ -638,7 +638,16 @@ NEW_ROWS: list[Row] = [
     ("design_steel_section_unknown_key",
      design(STEEL, section='{ name = "b1", Zy = 2.1e6, Ix = 4.2e8, Aw = 5400 }'),
      f"{FILE}: design.section.Zy: unknown key 'Zy' (valid: name, d, bf, tf, tw, Ix, Zx, Sx, Iy, "
-     "ry, J, Cw, weight, rts, ho, k, Aw)"),
+     "ry, J, Cw, weight, rts, ho, k, Aw, fabrication)"),
+    ("design_steel_section_fabrication_unknown",
+     design(STEEL, section='{ name = "b1", Zx = 2.1e6, Ix = 4.2e8, Aw = 5400, '
+                           'fabrication = "cold-formed" }'),
+     f"{FILE}: design.section.fabrication: expected \"rolled\" or \"welded\", got "
+     "'cold-formed'"),
+    ("design_steel_section_fabrication_not_a_string",
+     design(STEEL, section='{ name = "b1", Zx = 2.1e6, Ix = 4.2e8, Aw = 5400, '
+                           'fabrication = true }'),
+     f"{FILE}: design.section.fabrication: expected a string, got a boolean (true)"),
 ]
 
 
