@@ -712,3 +712,33 @@ def test_demo_school_sagging_t_section_and_its_crack_control_match_hand_check(
     assert school["bar_spacing_max"][i] == pytest.approx(300 - (sigma - 160) / 40 * 50,
                                                          rel=SOLVE)
     assert school["bar_spacing"][i] == pytest.approx(pitch, rel=ROUND_OFF)
+
+
+# ------------------------------------------- the deflection limits the checks used
+
+def test_demo_deflection_limits_are_tabulated_beside_the_deflections(
+        office: dict[str, np.ndarray], school: dict[str, np.ndarray]) -> None:
+    # office (ACI 318-19 Table 24.2.2): immediate live span/360 (the case's live limit),
+    # after attachment of nonstructural elements not likely to be damaged span/240;
+    # spans 7.2, 8.4, 8.4, 7.2 m
+    spans_mm = np.array([7200.0, 8400.0, 8400.0, 7200.0])
+    mid = office["section"] == "span"
+    assert office["deflection_immediate_live_allowed"][mid] == pytest.approx(spans_mm / 360)
+    assert office["deflection_incremental_allowed"][mid] == pytest.approx(spans_mm / 240)
+    ratios = np.fmax(office["deflection_immediate_live"][mid]
+                     / office["deflection_immediate_live_allowed"][mid],
+                     office["deflection_incremental"][mid]
+                     / office["deflection_incremental_allowed"][mid])
+    assert office["utilisation_deflection"][mid] == pytest.approx(ratios, rel=1e-12)
+    assert np.all(np.isnan(office["deflection_incremental_allowed"][~mid]))
+    # school (EN 1992-1-1:2004 7.4.1(4) span/250 long-term, 7.4.1(5) span/500 after
+    # construction, recommended values); spans 6.6 and 7.2 m
+    spans_mm = np.array([6600.0, 7200.0])
+    mid = school["section"] == "span"
+    assert school["deflection_long_term_allowed"][mid] == pytest.approx(spans_mm / 250)
+    assert school["deflection_incremental_allowed"][mid] == pytest.approx(spans_mm / 500)
+    ratios = np.fmax(school["deflection_long_term"][mid]
+                     / school["deflection_long_term_allowed"][mid],
+                     school["deflection_incremental"][mid]
+                     / school["deflection_incremental_allowed"][mid])
+    assert school["utilisation_deflection"][mid] == pytest.approx(ratios, rel=1e-12)

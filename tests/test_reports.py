@@ -250,6 +250,24 @@ def test_every_concrete_check_shows_its_demand_capacity_and_unit(office: Path) -
                                        if c["value"] != "-")
 
 
+def test_an_en_deflection_check_shows_the_limit_it_was_checked_against(
+        tmp_path: Path) -> None:
+    # EN 1992-1-1:2004 7.4.1(4) span/250 long-term and 7.4.1(5) span/500 after
+    # construction: the report's ratio is demand over the tabulated limit
+    # (deflection_long_term_allowed, deflection_incremental_allowed), not "not tabulated"
+    run = _invoke("run", str(CASES / "school-2span-en.toml"), "-o", str(tmp_path),
+                  "--no-plots", "-q")
+    assert run.exit_code == 0, run.output
+    data = collect.collect(tmp_path / "school-2span-en")
+    found = [c for c in data.checks if c["check"] == "deflection"]
+    assert len(found) == 2
+    for c in found:
+        assert c["detail"] in ("deflection_long_term / deflection_long_term_allowed",
+                               "deflection_incremental / deflection_incremental_allowed")
+        assert c["unit"] == "mm" and float(c["demand"]) / float(c["capacity"]) == \
+            pytest.approx(float(c["value"]), abs=2e-3)
+
+
 def test_a_sized_concrete_beam_is_checked_against_the_strength_of_what_is_provided(
         office: Path, tmp_path: Path) -> None:
     # flexure over the bars provided (ACI 318-19 22.2, 21.2.2; EN 1992-1-1:2004 6.1) and

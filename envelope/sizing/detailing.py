@@ -684,6 +684,16 @@ def _deflection_columns(analysis: Analysis, p: Params, defl: dict[str, Any],
                            "EN 1992-1-1 7.4.1(5)"))
     util = np.full(n, np.nan)
     span_rows = np.arange(n) * 3 + 1
+    mid = np.zeros(3 * n, dtype=bool)
+    mid[span_rows] = True
+    # each limit as a length (span / N), on the span rows of the checks this code makes
+    limited = ("immediate_live", "incremental") if p.code == "aci318-19" else \
+        ("long_term", "incremental")
+    for key in limited:
+        limit = next((c[2] for c in checks if c[0] == key), np.nan)
+        col = f"deflection_{key}_allowed"
+        cols[col] = np.where(mid, np.repeat(ell / limit, 3), np.nan)
+        units[col] = lab
     for j in range(n):
         i = int(span_rows[j])
         notes[i].extend(defl["notes"][j])
@@ -699,8 +709,6 @@ def _deflection_columns(analysis: Analysis, p: Params, defl: dict[str, Any],
                 failures[i].append(
                     f"{text} deflection {value:.2f} {lab} (cracked) exceeds span/{limit:g} "
                     f"= {allowed:.2f} {lab} ({clause}) by {100 * (u - 1):.1f}%")
-    mid = np.zeros(3 * n, dtype=bool)
-    mid[span_rows] = True
     for key, col in (("immediate", "deflection_immediate"),
                      ("immediate_live", "deflection_immediate_live"),
                      ("long_term", "deflection_long_term"),
