@@ -317,3 +317,27 @@ def test_sections_whose_bars_carry_the_moment_pass_that_check(aci_two_spans: dic
         assert not any("short of the design" in s for s in cols["status"])
         ok = np.isfinite(cols[shear])
         assert np.all(cols[shear][ok] >= cols["shear_design"][ok] * (1 - 1e-9))
+
+
+def test_en_links_where_two_layers_lower_d_take_the_strut_that_suits_them() -> None:
+    # 2 x 8 m under 45 + 30 kN/m: the interior faces take two layers of bars, d falls
+    # from 540 to 520 mm after the links were designed at 540 mm with the flattest strut
+    # whose VRd,max (6.9) just reaches VEd; at the lower d that strut is short, a steeper
+    # one (EN 1992-1-1:2004 6.2.3(2): 1 <= cot(theta) <= 2.5, the designer's choice)
+    # carries VEd with the links provided
+    cols = case(EN, (8.0, 8.0), 45.0, 30.0)
+    j = row(cols, 1, "right")
+    assert cols["bar_layers"][j] == 2
+    d, b, fck, fyk = float(cols["d"][j]), 300.0, 30.0, 500.0
+    assert d < 540.0
+    asw, s = stirrup(cols["stirrups"][j])
+    z = 0.9 * d                                               # 6.2.3(1)
+    fcd = 0.85 * fck / 1.5                                    # 3.1.6(1), Table 2.1N
+    nu1 = 0.6 * (1 - fck / 250)                               # (6.6N)
+    # no flatter strut than the design's (its shift of the tension force, 6.2.3(7))
+    cot = np.linspace(1.0, float(cols["cot_theta"][j]), 200_001)
+    vrd = np.minimum(asw / s * z * fyk / 1.15 * cot,          # (6.8)
+                     b * z * nu1 * fcd / (cot + 1 / cot))     # (6.9), alpha_cw = 1
+    assert cols["VRd"][j] == pytest.approx(vrd.max() / 1e3, rel=1e-6)
+    assert cols["VRd"][j] >= cols["shear_design"][j]
+    assert not any("stirrups provided" in f for f in str(cols["status"][j]).split("; "))

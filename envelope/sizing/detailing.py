@@ -323,7 +323,8 @@ def _provided_strength(analysis: Analysis, p: Params, rows: Rows,
       VRd,s = Asw / s z fywd cot(theta) (6.2.3(3), eq. 6.8), VRd,max = bw z nu1 fcd /
       (cot + tan) (eq. 6.9), z = 0.9 d, with the ``cot_theta`` of the stirrup design and
       2.5 (the flattest strut of 6.2.3(2)) on rows that needed only the minimum links
-      (no cot(theta) designed there).
+      (no cot(theta) designed there), or the steeper strut at which the two meet where
+      VRd,max of that one falls below VRd,s (d lowered by two layers of bars).
     """
     beam = analysis.beam
     system = beam.units.name
@@ -373,13 +374,21 @@ def _provided_strength(analysis: Analysis, p: Params, rows: Rows,
     two_en = doubly.en_capacity(As, comp_area / s.area, width, dm, comp_depth * L, fck, fyk)
     m_rd = np.where(placed, two_en["m_rd"], np.where(As > 0, res["m_rd"], 0.0))
     cols["MRd_provided"] = m_rd / s.moment
-    cot = np.asarray(cols["cot_theta"], float)
-    cot = np.where(np.isfinite(cot), cot, 2.5)
+    # the strut: the flattest of the design (2.5 where none was designed) unless VRd,max
+    # of that strut falls below VRd,s, as where two layers of bars lowered d after the
+    # links were designed; then the steeper one at which (6.8) and (6.9) meet,
+    # cot^2 + 1 = bw nu1 fcd / (Asw/s fywd), which gives the most of the two (6.2.3(2))
+    designed = np.asarray(cols["cot_theta"], float)
+    flattest = np.where(np.isfinite(designed), designed, 2.5)
     z = 0.9 * dm
     fcd = en.ALPHA_CC * fck / en.GAMMA_C
     nu1 = 0.6 * (1.0 - fck / 250.0)
+    fywd = fywk / en.GAMMA_S
     with np.errstate(invalid="ignore", divide="ignore"):
-        vrd_s = av / s.area / (spacing * L) * z * fywk / en.GAMMA_S * cot
+        asw_s = av / s.area / (spacing * L)
+        meet = np.sqrt(np.maximum(bw * L * nu1 * fcd / (asw_s * fywd) - 1.0, 1.0))
+        cot = np.where(has, np.minimum(meet, flattest), flattest)
+        vrd_s = asw_s * z * fywd * cot
     vrd_max = bw * L * z * nu1 * fcd / (cot + 1.0 / cot)
     cols["VRd"] = np.where(has, np.minimum(vrd_s, vrd_max), np.nan) / s.force
     units["MRd_provided"] = u["moment"]
