@@ -316,7 +316,8 @@ def _provided_strength(analysis: Analysis, p: Params, rows: Rows,
       (the depth of the first layer: 21.2.2 takes eps_t there), Mn at the centroid
       ``d``; phiVn = 0.75 (Vc + Vs) with ``Vc`` as tabulated, Vs = Av fyt d / s
       (22.5.8.5.3, fyt <= 60 ksi / 420 MPa by 20.2.2.4) at most 8 sqrt(f'c) bw d /
-      0.66 sqrt(f'c) bw d (22.5.1.2).
+      0.66 sqrt(f'c) bw d (22.5.1.2); ``Vc`` scaled by d / dt where two layers lowered
+      d (on the safe side: its rho_w and lambda_s rise as d falls).
     - EN 1992-1-1: the rectangular block of 3.1.7(3) at alpha_cc fck / gamma_c over
       0.8 x, z = d - 0.4 x <= 0.95 d (as the sizing); a T-section's flange where the
       block stays in it, else the web alone (as the sizing); VRd = min(VRd,s, VRd,max),
@@ -357,7 +358,11 @@ def _provided_strength(analysis: Analysis, p: Params, rows: Rows,
         root = math.sqrt(fc)
         with np.errstate(invalid="ignore"):
             vs = np.minimum(av * fyt * d / spacing, k.vs_max * root * bw * d)
-        vc = np.asarray(cols["Vc"], float) * s.force
+        # Vc was sized at the one-layer depth ``dt``; at the d of two layers it is taken
+        # in proportion (Table 22.5.5.1: bw d times a factor that rho_w = As / (bw d)
+        # and lambda_s only raise as d falls, so on the safe side)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            vc = np.asarray(cols["Vc"], float) * s.force * np.where(dt > 0, d / dt, 1.0)
         cols["phiVn"] = np.where(has, aci.PHI_SHEAR * (vc + vs), np.nan) / s.force
         units["phiMn_provided"] = u["moment"]
         units["phiVn"] = u["force"]
