@@ -361,3 +361,31 @@ def test_aci_shear_strength_where_two_layers_lower_d_takes_vc_at_that_d() -> Non
     exact = 0.75 * (vc + vs) / 1e3                               # Table 21.2.1
     # Vc taken in proportion to d from the sized d: on the safe side, within 1 %
     assert exact * (1 - 0.01) <= cols["phiVn"][j] <= exact * (1 + 1e-9)
+
+
+def test_stirrups_weaker_than_the_design_shear_fail_the_status() -> None:
+    # the shear half of the rule (ACI 318-19 9.5.1.1: phiVn >= Vu; EN 1992-1-1 6.2.1(1)):
+    # an end whose stirrups give less than its design shear fails, naming them and by
+    # how much; one whose stirrups carry it does not (invented rows, kN)
+    from types import SimpleNamespace
+
+    from envelope.sizing.detailing import _short_of_provided
+    from envelope.sizing.layout import Rows
+
+    n = 3
+    rows = Rows(span=np.zeros(n, int), section=np.array(["left", "span", "right"], object),
+                x_span=np.zeros(n), moment=np.array([-100.0, 80.0, -100.0]),
+                shear=np.array([210.0, np.nan, 190.0]), shear_x_span=np.zeros(n),
+                face_reason=np.full(n, "", object))
+    for code, moment, shear in (("aci318-19", "phiMn_provided", "phiVn"),
+                                ("en1992-1-1", "MRd_provided", "VRd")):
+        cols = {moment: np.array([120.0, 90.0, 120.0]), shear: np.array([200.0, np.nan, 200.0]),
+                "bars": np.array(["3 #8", "2 #8", "3 #8"], object),
+                "bars_compression": np.array(["", "", ""], object),
+                "stirrups": np.array(["#3 x2 @ 150 mm", "", "#3 x2 @ 150 mm"], object)}
+        failures: list[list[str]] = [[] for _ in range(n)]
+        _short_of_provided(SimpleNamespace(code=code), rows, cols,  # type: ignore[arg-type]
+                           {moment: "kN*m", shear: "kN"}, failures)
+        assert failures[0] == [f"stirrups provided (#3 x2 @ 150 mm) give {shear} 200 kN, "
+                               f"5.0% short of the design shear 210 kN"]
+        assert failures[1] == [] and failures[2] == []
