@@ -21,6 +21,7 @@ from typing import Any
 
 import numpy as np
 
+from envelope.analysis import analyse
 from envelope.casefile import parse_case
 from envelope.model import Beam
 from envelope.recovery import Response, make_points
@@ -154,3 +155,32 @@ def make_cases_module() -> ModuleType:
     module = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(module)
     return module
+
+
+def concrete_sizing(design: Mapping[str, Any], spans: Sequence[float], dead: float,
+                    live: float, supports: Sequence[str] | None = None,
+                    extra: Mapping[str, Any] | None = None,
+                    stretches: Sequence[str] = ()) -> dict[str, np.ndarray]:
+    """sizing.parquet's columns of an SI beam: uniform dead and live load (kN/m) on every
+    span, pinned supports unless given, code patterning, strength 1.4 D + 1.7 L, the
+    characteristic service set, ``[design]`` = ``design`` with ``extra``; ``stretches``
+    adds TOML lines (``[[spans.sections]]``) to the spans in order."""
+    from envelope.sizing import size
+
+    sup = supports or ("pinned",) * (len(spans) + 1)
+    parts = ['units = "SI"', "[section]\nE = 30000\nI = 5.4e9"]
+    parts += [f"[[spans]]\nlength = {L!r}" + (f"\n{stretches[j]}" if j < len(stretches)
+                                               else "") for j, L in enumerate(spans)]
+    parts += [f'[[supports]]\ntype = "{s}"' for s in sup]
+    parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }')
+    parts.append(f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {dead!r}')
+    parts.append(f'[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = {live!r}')
+    parts.append('[patterning]\nmethod = "code"')
+    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n'
+                 '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
+                 'factors = { D = 1.4, L = 1.7 }')
+    given = {**design, **(extra or {})}
+    parts.append("[design]\n" + "\n".join(f"{k} = {toml_value(v)}"
+                                           for k, v in given.items()))
+    beam = parse_case(tomllib.loads("\n\n".join(parts) + "\n"), "t.toml")
+    return size(analyse(beam))

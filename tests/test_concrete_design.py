@@ -25,42 +25,14 @@ from envelope.casefile import parse_case
 from envelope.design import LongTerm
 from envelope.sizing import size
 
+from beams import concrete_sizing as case
+from beams import toml_value
 from tolerances import SOLVE
 
 ACI = {"material": "concrete", "code": "aci318-19", "b": 300, "h": 600,
        "cover_to_bar_centre": 60, "fc": 30, "fy": 420}
 EN = {"material": "concrete", "code": "en1992-1-1", "b": 300, "h": 600,
       "cover_to_bar_centre": 60, "fc": 30, "fy": 500}
-
-
-def _value(v: object) -> str:
-    """A TOML value: strings, numbers, lists and inline tables."""
-    if isinstance(v, dict):
-        return "{ " + ", ".join(f"{k} = {_value(x)}" for k, x in v.items()) + " }"
-    if isinstance(v, list | tuple):
-        return "[" + ", ".join(_value(x) for x in v) + "]"
-    return f'"{v}"' if isinstance(v, str) else repr(v)
-
-
-def case(design: dict, spans: tuple[float, ...], dead: float, live: float,
-         supports: tuple[str, ...] | None = None, extra: dict | None = None,
-         stretches: tuple[str, ...] = ()) -> dict:
-    sup = supports or ("pinned",) * (len(spans) + 1)
-    parts = ['units = "SI"', "[section]\nE = 30000\nI = 5.4e9"]
-    parts += [f"[[spans]]\nlength = {L!r}" + (f"\n{stretches[j]}" if j < len(stretches)
-                                               else "") for j, L in enumerate(spans)]
-    parts += [f'[[supports]]\ntype = "{s}"' for s in sup]
-    parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }')
-    parts.append(f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {dead!r}')
-    parts.append(f'[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = {live!r}')
-    parts.append('[patterning]\nmethod = "code"')
-    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n'
-                 '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
-                 'factors = { D = 1.4, L = 1.7 }')
-    given = {**design, **(extra or {})}
-    parts.append("[design]\n" + "\n".join(f"{k} = {_value(v)}" for k, v in given.items()))
-    beam = parse_case(tomllib.loads("\n\n".join(parts) + "\n"), "t.toml")
-    return size(analyse(beam))
 
 
 def row(cols: dict, span: int, section: str) -> int:
@@ -409,7 +381,7 @@ def test_bottom_cut_off_of_a_simple_span_from_the_envelope() -> None:
              '[combinations]\nstrength = "none"\nservice = "characteristic"\n'
              '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
              'factors = { D = 1.4, L = 1.7 }',
-             "[design]\n" + "\n".join(f"{k} = {_value(v)}" for k, v in text_design.items())]
+             "[design]\n" + "\n".join(f"{k} = {toml_value(v)}" for k, v in text_design.items())]
     a = analyse(parse_case(tomllib.loads("\n\n".join(parts) + "\n"), "t.toml"))
     cols = size(a)
     np.testing.assert_array_equal(cols["bars"], beam_cols["bars"])

@@ -33,6 +33,8 @@ from envelope.analysis import analyse
 from envelope.casefile import parse_case
 from envelope.sizing import size
 
+from beams import concrete_sizing as case
+
 ACI = {"material": "concrete", "code": "aci318-19", "b": 300, "h": 600,
        "cover_to_bar_centre": 60, "fc": 30, "fy": 420}
 EN = {"material": "concrete", "code": "en1992-1-1", "b": 300, "h": 600,
@@ -42,26 +44,6 @@ EN = {"material": "concrete", "code": "en1992-1-1", "b": 300, "h": 600,
 ASTM_AREA_IN2 = {"#3": 0.11, "#4": 0.20, "#5": 0.31, "#6": 0.44, "#7": 0.60, "#8": 0.79,
                  "#9": 1.00, "#10": 1.27, "#11": 1.56}
 IN2_MM2 = 25.4**2  # exact (1 in = 25.4 mm)
-
-
-def case(design: dict, spans: tuple[float, ...], dead: float, live: float) -> dict:
-    """The sizing of pinned spans under uniform dead and live load (kN/m), strength
-    1.4 D + 1.7 L, SI units."""
-    parts = ['units = "SI"', "[section]\nE = 30000\nI = 5.4e9"]
-    parts += [f"[[spans]]\nlength = {L!r}" for L in spans]
-    parts += ['[[supports]]\ntype = "pinned"'] * (len(spans) + 1)
-    parts.append('[cases]\nD = { kind = "dead" }\nL = { kind = "live" }')
-    parts.append(f'[[loads]]\ncase = "D"\ntype = "uniform"\nspans = "all"\nw = {dead!r}')
-    parts.append(f'[[loads]]\ncase = "L"\ntype = "uniform"\nspans = "all"\nw = {live!r}')
-    parts.append('[patterning]\nmethod = "code"')
-    parts.append('[combinations]\nstrength = "none"\nservice = "characteristic"\n'
-                 '[[combinations.custom]]\nname = "U"\nset = "strength"\n'
-                 'factors = { D = 1.4, L = 1.7 }')
-    parts.append("[design]\n" + "\n".join(
-        f"{k} = {v!r}" if not isinstance(v, str) else f'{k} = "{v}"'
-        for k, v in design.items()))
-    beam = parse_case(tomllib.loads("\n\n".join(parts) + "\n"), "t.toml")
-    return size(analyse(beam))
 
 
 def row(cols: dict, span: int, section: str) -> int:

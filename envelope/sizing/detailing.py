@@ -95,6 +95,18 @@ def params(design: ConcreteDesign, system: str) -> Params:
                   limits=limits, given=given)
 
 
+def _en_flexure(m: np.ndarray, bw: float, bf: np.ndarray, hf: np.ndarray, dm: np.ndarray,
+                fck: float, fyk: float, L: float) -> tuple[np.ndarray, dict[str, np.ndarray]]:
+    """EN 1992-1-1 flexure (N*mm, mm; ``L`` mm per section unit) on the width
+    the sizing takes: a T-section's flange where the block (0.8 x) stays in it, else the
+    web alone; returns that width and the flexure on it."""
+    width = bf * L
+    fl = en.flexure(m, width, dm, fck, fyk)
+    inside = 0.8 * fl["x"] <= hf * L
+    width = np.where((bf > bw) & ~inside, bw * L, width)
+    return width, en.flexure(m, width, dm, fck, fyk)
+
+
 def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
               bf: np.ndarray, hf: np.ndarray, h: np.ndarray) -> Any:
     """required(d): tension steel to provide (section units) at depths d (section
@@ -124,11 +136,7 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
 
     def need_en(d: np.ndarray) -> np.ndarray:
         dm = d * L
-        width = bf * L
-        fl = en.flexure(m, width, dm, fck, fyk)
-        inside = 0.8 * fl["x"] <= hf * L
-        width = np.where((bf > bw) & ~inside, bw * L, width)
-        fl = en.flexure(m, width, dm, fck, fyk)
+        width, fl = _en_flexure(m, bw, bf, hf, dm, fck, fyk, L)
         as_min = np.where(moment != 0.0, en.as_min(bt * L, dm, fck, fyk), 0.0)
         dbl = doubly.en_design(m, width, dm, d2 * L, fck, fyk, h * L)
         req = np.where(fl["too_small"] & dbl["ok"], dbl["as_required"], fl["as_required"])
@@ -162,11 +170,7 @@ def _compression_required(analysis: Analysis, p: Params, rows: Rows, bw: float,
 
     def need_en(d: np.ndarray) -> np.ndarray:
         dm = d * L
-        width = bf * L
-        fl = en.flexure(m, width, dm, fck, fyk)
-        inside = 0.8 * fl["x"] <= hf * L
-        width = np.where((bf > bw) & ~inside, bw * L, width)
-        fl = en.flexure(m, width, dm, fck, fyk)
+        width, fl = _en_flexure(m, bw, bf, hf, dm, fck, fyk, L)
         dbl = doubly.en_design(m, width, dm, d2 * L, fck, fyk, h * L)
         return np.where(fl["too_small"], dbl["as_compression"], 0.0) * s.area
     return need_en
