@@ -742,3 +742,11 @@ def test_demo_deflection_limits_are_tabulated_beside_the_deflections(
                      school["deflection_incremental"][mid]
                      / school["deflection_incremental_allowed"][mid])
     assert school["utilisation_deflection"][mid] == pytest.approx(ratios, rel=1e-12)
+
+
+def test_demo_school_says_the_crack_control_minimum_is_not_checked(
+        school: dict[str, np.ndarray]) -> None:
+    # EN 1992-1-1:2004 7.3.3(2): Table 7.3N's spacing limits hold where the minimum of
+    # 7.3.2 is provided; the sizing does not check that minimum, and must say so
+    assert "minimum reinforcement for crack control (EN 1992-1-1 7.3.2" in \
+        school["note"][0]

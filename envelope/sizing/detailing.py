@@ -296,6 +296,10 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     _deflection_columns(analysis, p, defl, cols, units, notes, failures)
     _flags(analysis, rows, p, failures)
     _skin(analysis, p, np.asarray(cols["h"], dtype=float), notes)
+    if p.code == "en1992-1-1" and rows.n:
+        notes[0].append("minimum reinforcement for crack control (EN 1992-1-1 7.3.2, "
+                        "which Table 7.3N's spacing limits assume provided) not checked; "
+                        "9.2.1.1(1)'s minimum is")
     if p.code == "aci318-19" and "long_term" not in p.given:
         for i in np.flatnonzero(rows.is_span).tolist():
             notes[i].append("no live load taken as sustained (long_term.sustained not "
