@@ -4,7 +4,10 @@ long-term and incremental deflections, added to the sizing of
 
 - bars at every design section (:mod:`envelope.sizing.bars`): the steel required is
   recomputed at the depth the bars give (one or two layers) and the bars provide it;
-  ``d`` becomes the depth to the centroid of the bars provided;
+  ``d`` becomes the depth to the centroid of the bars provided; where the compression
+  bars take two layers, the compression and tension steel are sized again with the
+  compression steel at their centroid (instead of ``cover_to_bar_centre``) and the bars
+  chosen again, a few rounds;
 - stirrups at the ends from the Av/s required (ACI 318-19 Table 9.7.6.2.2 / EN 1992-1-1
   9.2.2(8) for the lateral spacing of the legs);
 - crack control (:mod:`envelope.sizing.crack_control`): ACI 318-19 24.3.2 with
@@ -108,15 +111,19 @@ def _en_flexure(m: np.ndarray, bw: float, bf: np.ndarray, hf: np.ndarray, dm: np
 
 
 def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
-              bf: np.ndarray, hf: np.ndarray, h: np.ndarray) -> Any:
+              bf: np.ndarray, hf: np.ndarray, h: np.ndarray,
+              d2: np.ndarray | float | None = None) -> Any:
     """required(d): tension steel to provide (section units) at depths d (section
-    units), by the same sequence as :mod:`envelope.sizing.concrete`."""
+    units), by the same sequence as :mod:`envelope.sizing.concrete`; the compression
+    steel at ``d2`` from the compression face (section units; the cover to the bar
+    centre, as in the sizing, unless given per row)."""
     design = p.design
     system = analysis.beam.units.name
     fc_s, fy_s = float(design.fc), float(design.fy)
     moment = rows.moment
     bt = min_steel_width(analysis, rows, h)
-    d2 = float(design.cover_to_bar_centre)  # compression steel, as in the sizing
+    if d2 is None:
+        d2 = float(design.cover_to_bar_centre)  # compression steel, as in the sizing
     if p.code == "aci318-19":
         s = ACI_SCALES[system]
         fc, fy = fc_s * s.stress, fy_s * s.stress
@@ -146,13 +153,16 @@ def _required(analysis: Analysis, p: Params, rows: Rows, bw: float,
 
 
 def _compression_required(analysis: Analysis, p: Params, rows: Rows, bw: float,
-                          bf: np.ndarray, hf: np.ndarray, h: np.ndarray) -> Any:
+                          bf: np.ndarray, hf: np.ndarray, h: np.ndarray,
+                          d2: np.ndarray | float | None = None) -> Any:
     """required(d): compression steel (section units; 0 where none, NaN where it cannot
-    work) at depths d (section units), by the same sequence as :func:`_required`."""
+    work) at depths d (section units), at ``d2`` as :func:`_required`, by the same
+    sequence."""
     design = p.design
     system = analysis.beam.units.name
     fc_s, fy_s = float(design.fc), float(design.fy)
-    d2 = float(design.cover_to_bar_centre)
+    if d2 is None:
+        d2 = float(design.cover_to_bar_centre)
     if p.code == "aci318-19":
         s = ACI_SCALES[system]
         fc, fy = fc_s * s.stress, fy_s * s.stress
@@ -174,6 +184,11 @@ def _compression_required(analysis: Analysis, p: Params, rows: Rows, bw: float,
         dbl = doubly.en_design(m, width, dm, d2 * L, fck, fyk, h * L)
         return np.where(fl["too_small"], dbl["as_compression"], 0.0) * s.area
     return need_en
+
+
+def _scratch(n: int) -> tuple[list[list[str]], list[list[str]]]:
+    """Notes and failures to discard (a trial choice of bars)."""
+    return [[] for _ in range(n)], [[] for _ in range(n)]
 
 
 def _sustained_moment(analysis: Analysis, rows: Rows, p: Params) -> np.ndarray:
@@ -220,11 +235,85 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
         bar_set = bar_mod.bar_set(p.bars, system)
     except ValueError as exc:  # the reader checks the key; this is a last guard
         raise ValueError(f"design.bars: {exc}") from None
-    need = _required(analysis, p, rows, bw, bf, hf, h)
     as_max = np.asarray(cols["as_max"], dtype=float)
     crack = _crack_rule(analysis, rows, p, bw, h, bf, hf, side)
-    chosen = bar_mod.choose(need, d0, np.full(rows.n, bw), side, as_max, bar_set, p.code,
-                            p.aggregate, system, lambda *a: crack(*a)["ok"])
+    comp0 = np.nan_to_num(np.asarray(cols["as_compression"], dtype=float))
+    comp_rule = _compression_required(analysis, p, rows, bw, bf, hf, h)
+
+    def tension_bars(d2: np.ndarray | float,
+                     most: np.ndarray = as_max) -> dict[str, np.ndarray]:
+        need = _required(analysis, p, rows, bw, bf, hf, h, d2)
+        return bar_mod.choose(need, d0, np.full(rows.n, bw), side, most, bar_set, p.code,
+                              p.aggregate, system, lambda *a: crack(*a)["ok"])
+
+    def compression_steel(chosen: dict[str, np.ndarray],
+                          rule: Any) -> tuple[np.ndarray, np.ndarray]:
+        # two layers of tension bars move d up: the compression bars are chosen for the
+        # compression steel of that d (as the tension bars are, through ``need``), not
+        # the ``as_compression`` of the one-layer depth
+        moved = (comp0 > 0) & (chosen["layers"] == 2)
+        comp = comp0
+        if moved.any():
+            at_d = rule(np.asarray(chosen["d"], dtype=float))
+            comp = np.where(moved & np.isfinite(at_d), np.maximum(comp0, at_d), comp0)
+        return comp, moved
+
+    chosen = tension_bars(side)
+    comp, moved = compression_steel(chosen, comp_rule)
+    _, comp_area, comp_depth = _compression_bars(rows, p, cols, comp, bw, side, bar_set,
+                                                 system, *_scratch(rows.n))
+    # compression bars in two layers sit deeper than ``side``: size the compression and
+    # tension steel again with the compression steel at their centroid, and choose the
+    # bars again, until the centroid no longer moves (a few rounds; the depth only
+    # grows, so the steel is sized at or below where its bars sit). Rows whose
+    # compression bars sit at ``side`` keep the first choice.
+    why = ("the section cannot be reinforced: no arrangement of the bar set gives the "
+           "tension and compression steel within the maximum (ACI 318-19 9.3.3.1 "
+           "eps_t >= 0.004), or the compression steel is at or below the neutral axis "
+           "(22.2.1.2)" if p.code == "aci318-19" else
+           "the section cannot be reinforced: no arrangement of the bar set gives the "
+           "tension and compression steel within 0.04 Ac (EN 1992-1-1 9.2.1.1(3)), or "
+           "the compression steel is at or below the neutral axis")
+    d2_rows = np.full(rows.n, side)
+    cannot = np.full(rows.n, "", dtype=object)
+    deep = np.zeros(rows.n, dtype=bool)
+    tol = 1e-9 * max(side, 1.0)
+    for _ in range(3):
+        deeper = ((comp_area > 0) & (comp_depth > d2_rows + tol) & (cannot == "")
+                  & (np.asarray(chosen["index"]) >= 0))
+        if not deeper.any():
+            break
+        trial = np.where(deeper, comp_depth, d2_rows)
+        rule = _compression_required(analysis, p, rows, bw, bf, hf, h, trial)
+        most = as_max
+        if p.code == "aci318-19":  # 9.3.3.1 with the compression steel at its depth
+            sc = ACI_SCALES[system]
+            most = np.where(deeper, doubly.aci_as_max(
+                np.nan_to_num(rule(d0)), bw, d0, trial, float(design.fc) * sc.stress,
+                float(design.fy) * sc.stress, system, bf, hf), as_max)
+        again = tension_bars(trial, most)
+        at_d = rule(np.asarray(again["d"], dtype=float))
+        comp_try = np.where(deeper, np.maximum(comp0, at_d), comp)
+        placed = _compression_bars(rows, p, cols, np.nan_to_num(comp_try), bw, side, bar_set,
+                                   system, *_scratch(rows.n))[1]
+        works = (np.isfinite(np.asarray(_required(analysis, p, rows, bw, bf, hf, h, trial)(
+            np.asarray(again["d"], dtype=float)), dtype=float)) & np.isfinite(at_d)
+            & (np.asarray(again["index"]) >= 0) & (placed > 0))
+        for i in np.flatnonzero(deeper & ~works).tolist():
+            cannot[i] = (f"the compression bars chosen sit {comp_depth[i]:.4g} "
+                         f"{su['length']} from the compression face (two layers); sized "
+                         f"there, {why}: widen or deepen the section")
+        take = deeper & works
+        if not take.any():
+            break
+        deep |= take
+        d2_rows = np.where(take, trial, d2_rows)
+        chosen = {k: np.where(take, again[k], v) for k, v in chosen.items()}
+        comp = np.where(take, comp_try, comp)
+        _, area_now, depth_now = _compression_bars(rows, p, cols, comp, bw, side, bar_set,
+                                                   system, *_scratch(rows.n))
+        comp_area = np.where(deep, area_now, comp_area)
+        comp_depth = np.where(deep, depth_now, comp_depth)
     for i in range(rows.n):
         if not chosen["fits"][i]:
             failures[i].append(
@@ -235,21 +324,19 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
         elif chosen["layers"][i] == 2:
             notes[i].append(f"two layers of bars: d = {chosen['d'][i]:.4g} {su['length']} "
                             f"to their centroid")
+        if cannot[i]:
+            failures[i].append(cannot[i])
     cols["bars"] = chosen["label"]
-    # two layers of tension bars move d up: the compression bars are chosen for the
-    # compression steel of that d (as the tension bars are, through ``need``), not the
-    # ``as_compression`` of the one-layer depth
-    comp = np.nan_to_num(np.asarray(cols["as_compression"], dtype=float))
-    moved = (comp > 0) & (chosen["layers"] == 2)
-    if moved.any():
-        at_d = _compression_required(analysis, p, rows, bw, bf, hf, h)(
-            np.asarray(chosen["d"], dtype=float))
-        comp = np.where(moved & np.isfinite(at_d), np.maximum(comp, at_d), comp)
-        for i in np.flatnonzero(moved & (comp > np.nan_to_num(cols["as_compression"])
-                                         )).tolist():
-            notes[i].append(f"compression bars for {comp[i]:.4g} {su['area']}, the "
-                            f"compression steel at d = {chosen['d'][i]:.4g} "
-                            f"{su['length']} of the two layers of tension bars")
+    for i in np.flatnonzero(moved & ~deep & (comp > comp0)).tolist():
+        notes[i].append(f"compression bars for {comp[i]:.4g} {su['area']}, the "
+                        f"compression steel at d = {chosen['d'][i]:.4g} "
+                        f"{su['length']} of the two layers of tension bars")
+    for i in np.flatnonzero(deep).tolist():
+        notes[i].append(f"compression and tension steel sized with the compression steel "
+                        f"at {d2_rows[i]:.4g} {su['length']} from the compression face, "
+                        f"the centroid of its two layers of bars: {comp[i]:.4g} "
+                        f"{su['area']} in compression at d = {chosen['d'][i]:.4g} "
+                        f"{su['length']}")
     cols["bars_compression"], comp_area, comp_depth = _compression_bars(
         rows, p, cols, comp, bw, side, bar_set, system, notes, failures)
     cols["as_provided"] = chosen["area"]

@@ -38,7 +38,7 @@ ES_EN = 200_000.0
 
 
 def aci_design(mu: np.ndarray, b: np.ndarray | float, d: np.ndarray | float,
-               d2: float, fc: float, fy: float, system: str,
+               d2: np.ndarray | float, fc: float, fy: float, system: str,
                bf: np.ndarray | float | None = None,
                hf: np.ndarray | float | None = None) -> dict[str, np.ndarray]:
     """Tension ``as_required`` and compression ``as_compression`` for ``mu`` (magnitude,
@@ -66,7 +66,8 @@ def aci_design(mu: np.ndarray, b: np.ndarray | float, d: np.ndarray | float,
             "ok": ok, "phi_mn": np.where(ok, mu, np.nan)}
 
 
-def aci_as_max(As2: np.ndarray, b: np.ndarray | float, d: np.ndarray | float, d2: float,
+def aci_as_max(As2: np.ndarray, b: np.ndarray | float, d: np.ndarray | float,
+               d2: np.ndarray | float,
                fc: float, fy: float, system: str, bf: np.ndarray | float | None = None,
                hf: np.ndarray | float | None = None) -> np.ndarray:
     """The most tension steel that keeps eps_t >= 0.004 (9.3.3.1) with compression steel
@@ -113,7 +114,8 @@ def aci_capacity(As: np.ndarray, As2: np.ndarray, b: np.ndarray | float,
             "phi_mn": phi * mn}
 
 
-def en_design(m: np.ndarray, b: np.ndarray | float, d: np.ndarray | float, d2: float,
+def en_design(m: np.ndarray, b: np.ndarray | float, d: np.ndarray | float,
+              d2: np.ndarray | float,
               fck: float, fyk: float, h: np.ndarray | float,
               k_lim: float = en.K_LIM) -> dict[str, np.ndarray]:
     """Tension ``as_required`` and compression ``as_compression`` (mm^2) for ``m``
