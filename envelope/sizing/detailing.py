@@ -268,12 +268,13 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     # grows, so the steel is sized at or below where its bars sit). Rows whose
     # compression bars sit at ``side`` keep the first choice.
     why = ("the section cannot be reinforced: no arrangement of the bar set gives the "
-           "tension and compression steel within the maximum (ACI 318-19 9.3.3.1 "
-           "eps_t >= 0.004), or the compression steel is at or below the neutral axis "
-           "(22.2.1.2)" if p.code == "aci318-19" else
+           "tension and compression steel in one or two layers within the maximum (ACI "
+           "318-19 9.3.3.1, eps_t >= 0.004), or the compression steel is at or below "
+           "the neutral axis (22.2.1.2)" if p.code == "aci318-19" else
            "the section cannot be reinforced: no arrangement of the bar set gives the "
-           "tension and compression steel within 0.04 Ac (EN 1992-1-1 9.2.1.1(3)), or "
-           "the compression steel is at or below the neutral axis")
+           "tension and compression steel in one or two layers within 0.04 Ac (EN "
+           "1992-1-1 9.2.1.1(3)), or the compression steel is at or below the neutral "
+           "axis")
     d2_rows = np.full(rows.n, side)
     cannot = np.full(rows.n, "", dtype=object)
     deep = np.zeros(rows.n, dtype=bool)
@@ -288,8 +289,10 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
         most = as_max
         if p.code == "aci318-19":  # 9.3.3.1 with the compression steel at its depth
             sc = ACI_SCALES[system]
+            # with the compression steel of the tension bars' d (two layers lower it)
+            at_chosen = np.fmax(rule(d0), rule(np.asarray(chosen["d"], dtype=float)))
             most = np.where(deeper, doubly.aci_as_max(
-                np.nan_to_num(rule(d0)), bw, d0, trial, float(design.fc) * sc.stress,
+                np.nan_to_num(at_chosen), bw, d0, trial, float(design.fc) * sc.stress,
                 float(design.fy) * sc.stress, system, bf, hf), as_max)
         again = tension_bars(trial, most)
         at_d = rule(np.asarray(again["d"], dtype=float))
@@ -324,8 +327,6 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
         elif chosen["layers"][i] == 2:
             notes[i].append(f"two layers of bars: d = {chosen['d'][i]:.4g} {su['length']} "
                             f"to their centroid")
-        if cannot[i]:
-            failures[i].append(cannot[i])
     cols["bars"] = chosen["label"]
     for i in np.flatnonzero(moved & ~deep & (comp > comp0)).tolist():
         notes[i].append(f"compression bars for {comp[i]:.4g} {su['area']}, the "
@@ -372,6 +373,9 @@ def detail(analysis: Analysis, sized: Sized) -> Sized:
     _provided_strength(analysis, p, rows, cols, units, bf, hf, d0, comp_area, comp_depth,
                        st, bar_mod.stirrup_set(bar_set, system))
     _short_of_provided(p, rows, cols, units, failures)
+    for i in np.flatnonzero(cannot != "").tolist():  # why, where the bars fall short
+        if any("short of the design moment" in f for f in failures[i]):
+            failures[i].append(cannot[i])
     for i in np.flatnonzero(ends & ~st["fits"]).tolist():
         failures[i].append("no stirrup arrangement of the set gives the Av/s required "
                            "at 75 mm / 3 in spacing or more: widen the section")
