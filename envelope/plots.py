@@ -30,6 +30,7 @@ from __future__ import annotations
 
 from collections.abc import Iterator, Mapping, Sequence
 from contextlib import contextmanager
+from contextvars import ContextVar
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -70,6 +71,16 @@ CAUTION = ("Results are for checking by a licensed engineer and defer to local c
 DPI = 110
 #: Figure width (in) and the fixed margins (in).
 WIDTH = 11.0
+#: The width (in) of the figure the calculation report prints at about 1:1 (its A4 page
+#: gives it 18.2 cm = 7.17 in), and the smallest text size (pt) it draws: printed, no text
+#: is smaller than this (the PNG's 6 and 6.5 pt texts are raised to it).
+REPORT_WIDTH = 7.0
+REPORT_SMALLEST = 7.0
+#: The most height (in) of the report's figure: one A4 page with its heading and caption.
+REPORT_HEIGHT = 9.6
+#: A narrower figure's key sits higher (in from the bottom) in a taller bottom margin:
+#: it takes more rows, the note below it two lines.
+_NARROW_KEY_Y, _NARROW_BOTTOM = 0.62, 1.75
 _LEFT, _RIGHT = 1.0, 0.2
 #: The longest title, combination name and loaded text drawn (characters).
 TITLE_CHARS = 100
@@ -95,6 +106,15 @@ STYLE: dict[RcKeyType, Any] = {
     "svg.fonttype": "none", "pdf.fonttype": 42, "ps.fonttype": 42,
     "svg.hashsalt": "envelope",  # the same ids on every run: reproducible files
     "font.size": 8, "axes.linewidth": 0.7, "text.usetex": False}
+
+#: The smallest text size (pt) of the figure being drawn (0: the sizes as written).
+_SMALLEST: ContextVar[float] = ContextVar("envelope_smallest_text", default=0.0)
+
+
+def _pt(size: float) -> float:
+    """``size`` (pt), or the smallest text size of the figure being drawn if larger."""
+    return max(size, _SMALLEST.get())
+
 
 _CONTROL = {c: "?" for c in range(32)} | {0x7f: "?"}
 
@@ -499,13 +519,15 @@ class StyledCanvas(CachedTextCanvas):
 
 
 def _new_or_reused(heights: Sequence[float], top: float, bottom: float,
-                   reuse: bool, fast: bool = True) -> tuple[Figure, list[Any]]:
-    """A figure with its panel axes: a kept one emptied of the last beam's artists when
-    ``reuse`` (the caller saves it and lets it go; ``fast``: drawn by the fast paths,
-    see :func:`draw_results`), else a new one."""
+                   reuse: bool, fast: bool = True, width: float = WIDTH
+                   ) -> tuple[Figure, list[Any]]:
+    """A figure ``width`` in wide with its panel axes: a kept one emptied of the last
+    beam's artists when ``reuse`` (the caller saves it and lets it go; ``fast``: drawn by
+    the fast paths, see :func:`draw_results`), else a new one.  Kept figures are kept
+    per width and smallest text size: a report's narrow figure is never the PNG's."""
     fast = fast and reuse
-    key = (len(heights), fast)
-    size = (WIDTH, sum(heights) + top + bottom + 0.12 * len(heights))
+    key = (len(heights), fast, width, _SMALLEST.get())
+    size = (width, sum(heights) + top + bottom + 0.12 * len(heights))
     kept = _KEPT.get(key) if reuse else None
     if kept is not None:
         made_under = _RC_OF.get(kept[0])
@@ -735,8 +757,8 @@ def _strip(ax: Any, sk: Mapping[str, Any] | None, joint_x: np.ndarray, kinds: Se
                 used.append(name)
         elif "free end" not in used:
             used.append("free end")
-        _text(ax, xj, -1.25, str(j + 1), ha="center", va="bottom", fontsize=6.5, color=SOFT,
-                parse_math=False)
+        _text(ax, xj, -1.25, str(j + 1), ha="center", va="bottom", fontsize=_pt(6.5),
+                color=SOFT, parse_math=False)
     for j in range(len(joint_x) - 1):
         _text(ax, 0.5 * (joint_x[j] + joint_x[j + 1]), -0.55, f"span {j + 1}", ha="center",
                 va="center", fontsize=7, color=SOFT, parse_math=False)
@@ -852,11 +874,11 @@ def _loads(ax: Any, sk: Mapping[str, Any], joint_x: np.ndarray, units: Mapping[s
             if scale:
                 label += "\n" + "\n".join(scale[:2])
             _text(ax, -0.012, (base + 0.35 - low) / (high - low), label, ha="right",
-                  va="center", fontsize=6, color=colour, parse_math=False, clip_on=False,
+                  va="center", fontsize=_pt(6), color=colour, parse_math=False, clip_on=False,
                   transform=ax.transAxes, linespacing=1.0)
     if sk.get("loads_omitted"):
         _text(ax, 0.0, 0.45 + n_lanes, f"{sk['loads_omitted']} more load items not drawn",
-              fontsize=6, color=SOFT, parse_math=False, va="bottom")
+              fontsize=_pt(6), color=SOFT, parse_math=False, va="bottom")
     return used
 
 
@@ -887,34 +909,52 @@ def figure(results: Mapping[str, Mapping], ax: Any = None) -> Figure:
 
 
 def draw_results(results: Mapping[str, Mapping], path: str | Path, durable: bool = True,
-                 fast: bool = True) -> Path:
+                 fast: bool = True, width: float = WIDTH, smallest: float = 0.0,
+                 height: float | None = None) -> Path:
     """Draw from :func:`envelope.store.read_results` output to ``path`` (.png, .svg or
     .pdf by its suffix, with editable text), on a figure kept for the next beam.
 
     ``fast`` draws the parts matplotlib draws slowly its own way (ticks: see
     :mod:`envelope.ticks`); ``fast=False`` is matplotlib's own drawing, the reference
-    the fast one is compared with in the tests."""
+    the fast one is compared with in the tests.
+
+    ``width`` (in), ``smallest`` (pt, the least text size) and ``height`` (in, the
+    most) draw a figure for a page that prints it at another scale: the calculation
+    report's is :data:`REPORT_WIDTH` wide with no text under :data:`REPORT_SMALLEST`
+    and at most :data:`REPORT_HEIGHT` high, printed at about 1:1 (drawn the plain way:
+    ``fast`` is for the PNG's width only)."""
     path = Path(path)
     fmt = path.suffix.lstrip(".").lower() or "png"
-    fast = fast and fmt == "png"  # SVG and PDF keep matplotlib's artists (editable text)
-    with _styled():
-        fig = _build(results, None, reuse=True, fast=fast)
-        if fmt == "png" and fig.dpi == DPI:  # the canvas as it is, encoded directly
-            write_atomic(path, lambda fh: fh.write(figure_png(fig)), durable)
-            return path
-        kwargs: dict[str, Any] = {"format": fmt, "dpi": DPI, "facecolor": "white"}
-        if fmt == "png":  # fast deflate: a quarter of the encoding time, a larger file
-            kwargs["pil_kwargs"] = {"compress_level": 1}
-        elif fmt == "svg":  # no date: the same results give the same file
-            kwargs["metadata"] = {"Date": None}
-        elif fmt == "pdf":
-            kwargs["metadata"] = {"CreationDate": None}
-        write_atomic(path, lambda fh: fig.savefig(fh, **kwargs), durable)
+    # SVG and PDF keep matplotlib's artists (editable text)
+    fast = fast and fmt == "png" and width == WIDTH and smallest == 0.0
+    token = _SMALLEST.set(smallest)
+    try:
+        with _styled():
+            fig = _build(results, None, reuse=True, fast=fast, width=width, height=height)
+            _save(fig, path, fmt, durable)
+    finally:
+        _SMALLEST.reset(token)
     return path
 
 
+def _save(fig: Figure, path: Path, fmt: str, durable: bool) -> None:
+    """Write ``fig`` to ``path`` as ``fmt`` (within the figure's style)."""
+    if fmt == "png" and fig.dpi == DPI:  # the canvas as it is, encoded directly
+        write_atomic(path, lambda fh: fh.write(figure_png(fig)), durable)
+        return
+    kwargs: dict[str, Any] = {"format": fmt, "dpi": DPI, "facecolor": "white"}
+    if fmt == "png":  # fast deflate: a quarter of the encoding time, a larger file
+        kwargs["pil_kwargs"] = {"compress_level": 1}
+    elif fmt == "svg":  # no date: the same results give the same file
+        kwargs["metadata"] = {"Date": None}
+    elif fmt == "pdf":
+        kwargs["metadata"] = {"CreationDate": None}
+    write_atomic(path, lambda fh: fig.savefig(fh, **kwargs), durable)
+
+
 def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False,
-           fast: bool = False) -> Figure:
+           fast: bool = False, width: float = WIDTH, height: float | None = None
+           ) -> Figure:
     env, design, reac = results["envelope"], results["design"], results["reactions"]
     sizing = results.get("sizing")
     meta = results["meta"]
@@ -944,8 +984,19 @@ def _build(results: Mapping[str, Mapping], ax: Any = None, reuse: bool = False,
     if size_panel:
         heights.append(1.6)
     top, bottom = 0.6, 1.3
+    if width != WIDTH:
+        # a narrower figure: the panels lower, less than in proportion (the labels
+        # keep their size) and within ``height``; the strip as much taller as its lanes'
+        # text is larger; a taller bottom margin for the key
+        bottom = _NARROW_BOTTOM
+        strip = heights[0] * max(1.0, _pt(6.0) / 6.0)
+        panels = (width / WIDTH) ** 0.5
+        if height is not None:
+            room = height - strip - top - bottom - 0.12 * len(heights)
+            panels = min(panels, room / sum(heights[1:]))
+        heights = [strip] + [h * panels for h in heights[1:]]
     if ax is None:
-        fig, axes = _new_or_reused(heights, top, bottom, reuse, fast)
+        fig, axes = _new_or_reused(heights, top, bottom, reuse, fast, width)
     else:
         fig = ax.figure
         region = ax.get_position().bounds
@@ -1278,7 +1329,11 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
         _style_panel(ax, f"Steel area\n[{area}]")
         top_value = float(np.nanmax(np.r_[req, prov, peaks, 0.0]))
         ax.set_ylim(0.0, 1.45 * top_value if top_value > 0 else 1.0)
-        ax.legend(fontsize=6, frameon=False, loc="upper right", ncol=6 if peaks else 4,
+        narrow = ax.figure.get_figwidth() < WIDTH  # the key in two rows
+        if narrow:
+            ax.set_ylim(0.0, 1.9 * top_value if top_value > 0 else 1.0)
+        ax.legend(fontsize=_pt(6), frameon=False, loc="upper right",
+                  ncol=(6 if peaks else 4) // (2 if narrow else 1),
                   columnspacing=1.0, handlelength=1.6)
     else:
         names = [k for k in sizing if str(k).startswith("utilisation_")]
@@ -1292,7 +1347,7 @@ def _sizing_panel(ax: Any, labels: list[Label], sizing: Columns, kind: str,
         values = np.concatenate([_finite(sizing[n]) for n in names] + [np.zeros(1)])
         ax.set_ylim(0.0, max(1.3, float(values[np.isfinite(values)].max()) * 1.3))
         _style_panel(ax, "Utilisation\n(1.0 = capacity)")
-        ax.legend(fontsize=6, frameon=False, loc="upper right", ncol=len(names))
+        ax.legend(fontsize=_pt(6), frameon=False, loc="upper right", ncol=len(names))
 
 
 # --------------------------------------------------------------------------- the key
@@ -1345,18 +1400,21 @@ def _key_handle(name: str) -> Line2D:
     return Line2D([], [], ls="none")
 
 
-def _key_columns(names: Sequence[str]) -> int:
-    """The key's columns: one row of up to seven entries (one column without any)."""
-    return max(min(len(names), 7), 1)
+def _key_columns(names: Sequence[str], narrow: bool = False) -> int:
+    """The key's columns: rows of up to seven entries (four on a narrower figure than
+    the PNG's; one column without any)."""
+    return max(min(len(names), 4 if narrow else 7), 1)
 
 
 def _key_legend(fig: Figure, names: Sequence[str], add: bool) -> Any:
     """The key as a legend in one row under the panels (added to ``fig`` when ``add``)."""
     handles = [_key_handle(name) for name in names]
     options: dict[str, Any] = {
-        "loc": "lower left", "ncol": _key_columns(names), "fontsize": 6.5,
-        "frameon": False,
-        "bbox_to_anchor": (_LEFT / fig.get_figwidth() - 0.01, 0.45 / fig.get_figheight()),
+        "loc": "lower left", "ncol": _key_columns(names, fig.get_figwidth() < WIDTH),
+        "fontsize": _pt(6.5), "frameon": False,
+        "bbox_to_anchor": (_LEFT / fig.get_figwidth() - 0.01,
+                           (0.45 if fig.get_figwidth() >= WIDTH else _NARROW_KEY_Y)
+                           / fig.get_figheight()),
         "handlelength": 1.6, "columnspacing": 1.2, "borderaxespad": 0.0}
     if add:
         return fig.legend(handles, names, **options)
@@ -1384,6 +1442,7 @@ def _key(fig: Figure, used: Sequence[str], dropped: int, units: Mapping[str, str
             f"{units.get('moment', '')}, deflection {units.get('deflection', '')}.  "
             "Labels: value, governing combination, loaded spans; CL at the centreline.")
     if dropped:
-        note += f" {dropped} labels left out for want of room (see design.parquet)."
+        note += "\n" if fig.get_figwidth() < WIDTH else " "
+        note += f"{dropped} labels left out for want of room (see design.parquet)."
     _fig_text(fig, _LEFT / fig.get_figwidth(), 0.27 / fig.get_figheight(), note,
-              fontsize=6.5, color=SOFT, ha="left", va="bottom", parse_math=False)
+              fontsize=_pt(6.5), color=SOFT, ha="left", va="bottom", parse_math=False)

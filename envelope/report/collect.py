@@ -299,7 +299,10 @@ def figure_svg(folder: Path) -> str:
 
     with tempfile.TemporaryDirectory() as tmp:
         path = Path(tmp) / "envelope.svg"
-        plots.draw_results(store.read_results(folder), path, durable=False)
+        # narrow, so that the page prints it at about 1:1 (text of at least 7 pt)
+        plots.draw_results(store.read_results(folder), path, durable=False,
+                           width=plots.REPORT_WIDTH, smallest=plots.REPORT_SMALLEST,
+                           height=plots.REPORT_HEIGHT)
         text = path.read_text(encoding="utf-8")
     start = text.find("<svg")  # drop the XML prolog and doctype: inline SVG
     return text[start:] if start >= 0 else text
