@@ -364,7 +364,7 @@ def _solve_block(mesh: Mesh, supports: tuple[Support, ...], units: UnitCases,
     # the scale of the forces meeting at each dof: |k_e| |d_e| + |fixed-end forces|
     bound = _node_sums(np.einsum("epq,equ->epu", np.abs(ke), np.abs(de)) + np.abs(fF), n_dof)
     try:
-        _check(mesh, node_f, bound, support_dof, Ql, ml, source, first_unit)
+        _check(mesh, node_f, bound, support_dof, Ql, ml, fF, source, first_unit)
     except StaticsError:
         if condition <= config.CONDITION_BLAME:
             raise
@@ -409,17 +409,22 @@ def _node_sums(f: np.ndarray, n_dof: int) -> np.ndarray:
 
 
 def _check(mesh: Mesh, node_f: np.ndarray, bound: np.ndarray, support_dof: np.ndarray,
-           Ql: np.ndarray, ml: np.ndarray, source: str, first_unit: int = 0) -> None:
+           Ql: np.ndarray, ml: np.ndarray, fF: np.ndarray, source: str,
+           first_unit: int = 0) -> None:
     """Residual at free dofs (relative to ``bound``, the sum of the magnitudes of the
     forces meeting there: the backward error of the solve) and global statics of every
-    unit case, or StaticsError."""
+    unit case, or StaticsError.  The statics are measured against the loads' own
+    magnitudes: their totals per element (``Ql``, ``ml``), their fixed-end forces
+    (``fF``: couples that cancel within an element still load it) and the reactions."""
     x = mesh.node_x
     xe = (mesh.x0 + mesh.length)[:, None]
     load_force = Ql.sum(axis=0)
     load_moment = (xe * Ql - ml).sum(axis=0)
-    scale_f = np.abs(Ql).sum(axis=0) + np.abs(node_f[support_dof]).sum(axis=0)
+    end_f = np.abs(fF[:, 0]).sum(axis=0) + np.abs(fF[:, 2]).sum(axis=0)
+    end_m = np.abs(fF[:, 1]).sum(axis=0) + np.abs(fF[:, 3]).sum(axis=0)
+    scale_f = np.abs(Ql).sum(axis=0) + end_f + np.abs(node_f[support_dof]).sum(axis=0)
     lever = float(x[-1]) if x[-1] > 0 else 1.0
-    scale_m = scale_f * lever + np.abs(ml).sum(axis=0)
+    scale_m = scale_f * lever + np.abs(ml).sum(axis=0) + end_m
     tiny = np.finfo(float).tiny
 
     free = ~support_dof
@@ -438,6 +443,8 @@ def _check(mesh: Mesh, node_f: np.ndarray, bound: np.ndarray, support_dof: np.nd
     bad_m = ~(np.abs(sum_m - load_moment) <= config.STATICS_RTOL * (scale_m + tiny))
     if np.any(bad_f | bad_m):
         u = int(np.flatnonzero(bad_f | bad_m)[0])
+        what = ("reactions", sum_f[u], load_force[u]) if bad_f[u] else \
+            ("reaction moments", sum_m[u], load_moment[u])
         raise StaticsError(
-            f"{source}: statics check failed for unit case {u + first_unit}: reactions "
-            f"{sum_f[u]:.12g} against loads {load_force[u]:.12g}; result withheld")
+            f"{source}: statics check failed for unit case {u + first_unit}: {what[0]} "
+            f"{what[1]:.12g} against loads {what[2]:.12g}; result withheld")
