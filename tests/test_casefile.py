@@ -23,6 +23,7 @@ import pytest
 from envelope import stability
 from envelope.casefile import load_case, parse_case
 from envelope.design import ConcreteDesign, DeflectionLimits, SteelDesign
+from envelope.errors import CaseError
 from envelope.model import Section, Span, Stretch, Support
 
 from tolerances import ULPS, UNIT_READING
@@ -447,6 +448,24 @@ def test_custom_combination_factors_follow_case_declaration_order(tmp_path: Path
     combo = load_case(write(tmp_path, text)).combinations.custom[0]
     assert combo.factors == (("D", 1.0), ("L", 0.5))
     assert combo.source == "custom" and combo.set == "service"
+
+
+@pytest.mark.parametrize(("factor", "why"), [(1.7e308, "from -10 to 10"),
+                                             (-11.0, "from -10 to 10"),
+                                             (float("inf"), "a finite number")])
+def test_a_custom_factor_out_of_any_use_is_refused(tmp_path: Path, factor: float,
+                                                   why: str) -> None:
+    # a factor of 1.7e308 overflowed the envelope (exit 3, "non-finite value") instead of
+    # being refused as input; load factors in use lie well within -10 to 10 (common
+    # practice)
+    value = "inf" if factor == float("inf") else repr(factor)
+    extra = ('[[combinations.custom]]\nname = "mine"\nset = "strength"\n'
+             f"factors = {{ D = {value} }}\n")
+    text = simple(tmp_path).read_text().replace('strength = "asce7-lrfd"\n',
+                                                'strength = "asce7-lrfd"\n' + extra)
+    with pytest.raises(CaseError, match=r"combinations\.custom\[\d+\]\.factors\.D: .*"
+                                        + why):
+        load_case(write(tmp_path, text))
 
 
 def test_patterning_output_and_design_tables_are_read(tmp_path: Path) -> None:

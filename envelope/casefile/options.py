@@ -45,6 +45,9 @@ COMBINATION_KEYS = ("strength", "service", "reduced_companion_live", "custom", "
 FACTOR_KEYS = ("G_sup", "G_inf", "Q", "xi")
 #: Bounds on each national factor (gamma_G,sup, gamma_G,inf, gamma_Q up to 3; xi to 1).
 FACTOR_RANGES = {"G_sup": (0.0, 3.0), "G_inf": (0.0, 3.0), "Q": (0.0, 3.0), "xi": (0.0, 1.0)}
+#: Bounds on a custom combination's factor of a case: any load factor in use, with room
+#: (a factor of 1e308 overflowed the envelope to a non-finite result, the engine's error).
+CUSTOM_FACTOR_RANGE = (-10.0, 10.0)
 #: Strength rule sets that read ``factors``.
 EN_STRENGTH_SETS = ("en1990-6.10", "en1990-6.10ab", "en1990-6.10ab-uk")
 STRENGTH_SETS: tuple[StrengthRuleSet, ...] = get_args(StrengthRuleSet)
@@ -239,7 +242,7 @@ def custom(r: Reader, table: dict[str, Any], key: str,
         if case_name not in names:
             r.fail(join(fkey, case_name), f"case {case_name!r} is not declared in [cases] "
                                           f"(declared: {', '.join(names)})")
-        read[case_name] = r.plain_number(value, join(fkey, case_name))
+        read[case_name] = factor_in(r, value, join(fkey, case_name), CUSTOM_FACTOR_RANGE)
     ordered = tuple((c, read[c]) for c in names if c in read)
     return Combination(name=name, set=combo_set, factors=ordered, source="custom")
 
